@@ -1,0 +1,46 @@
+/**
+ * The one error type for user mistakes (bad data or bad usage). The CLI turns
+ * it into a one-line message and an exit code; everything else is a bug and
+ * gets a stack trace with `--debug`.
+ */
+export type InputErrorKind = 'data' | 'usage';
+
+/**
+ * A mistake in the user's input: a file, line, column and value when known.
+ *
+ * @example
+ * throw new InputError('must be a positive number, got "-0.2"', { file: 'samples.csv', line: 12, column: 'sd' });
+ * // message: samples.csv line 12, column "sd": must be a positive number, got "-0.2"
+ */
+export class InputError extends Error {
+  readonly kind: InputErrorKind;
+  readonly file?: string;
+  readonly line?: number;
+  readonly column?: string;
+
+  constructor(
+    detail: string,
+    where: { file?: string; line?: number; column?: string; kind?: InputErrorKind } = {},
+  ) {
+    super(formatLocation(where) + detail);
+    this.name = 'InputError';
+    this.kind = where.kind ?? 'data';
+    this.file = where.file;
+    this.line = where.line;
+    this.column = where.column;
+  }
+}
+
+function formatLocation(where: { file?: string; line?: number; column?: string }): string {
+  const place = [where.file, where.line !== undefined ? `line ${where.line}` : undefined]
+    .filter((part) => part !== undefined)
+    .join(' ');
+  const column = where.column !== undefined ? `column "${where.column}"` : '';
+  const location = [place, column].filter((part) => part !== '').join(', ');
+  return location === '' ? '' : `${location}: `;
+}
+
+/** A usage mistake (bad option or argument): exit code 2 in the CLI. */
+export function usageError(detail: string): InputError {
+  return new InputError(detail, { kind: 'usage' });
+}

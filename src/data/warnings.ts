@@ -1,0 +1,45 @@
+/**
+ * One warning channel with categories. Repeated warnings of the same category
+ * and text are folded into one entry with a count, so a thousand lineages with
+ * the same problem print one line.
+ */
+export type WarningCategory =
+  | 'at-bound'
+  | 'at-limit'
+  | 'weak-identifiability'
+  | 'extrapolated-age'
+  | 'zero-sampling-variance'
+  | 'not-compared'
+  | 'not-converged'
+  | 'duplicate-time'
+  | 'input';
+
+/** A folded warning: what, about which lineage, and how often it was raised. */
+export interface Warning {
+  readonly category: WarningCategory;
+  readonly message: string;
+  readonly count: number;
+}
+
+/** Collects warnings, folding repeats; order of first occurrence is kept. */
+export class WarningLog {
+  private readonly entries = new Map<string, { category: WarningCategory; message: string; count: number }>();
+
+  /** Record one warning. */
+  add(category: WarningCategory, message: string): void {
+    const key = `${category}\u0000${message}`;
+    const entry = this.entries.get(key);
+    if (entry) entry.count += 1;
+    else this.entries.set(key, { category, message, count: 1 });
+  }
+
+  /** Everything recorded so far, repeats folded. */
+  list(): Warning[] {
+    return [...this.entries.values()].map((entry) => ({ ...entry }));
+  }
+
+  /** Whether a warning of this category was raised. */
+  has(category: WarningCategory): boolean {
+    return [...this.entries.values()].some((entry) => entry.category === category);
+  }
+}

@@ -1,0 +1,91 @@
+import { smoothLineage } from '../engine/smoother.js';
+import type { Lineage } from '../lineage.js';
+import type { EvolutionModel } from '../models/model.js';
+import { LikelihoodEvaluator } from './evaluator.js';
+import { fitModel, type FitOptions, type ModelFit } from './fit-model.js';
+import { aicc, akaikeWeights } from './model-choice.js';
+
+/** A model fit with its place in the model-choice table. */
+export interface RankedFit extends ModelFit {
+  /** AICc, or null when N - K - 1 <= 0 or the model was not fitted (not compared). */
+  readonly aicc: number | null;
+  readonly deltaAicc: number | null;
+  readonly weight: number | null;
+  /** Why the model is not compared, when it is not. */
+  readonly notCompared: string | null;
+}
+
+/** The smoothed lineage mean under one model. */
+export interface SmoothedLineage {
+  readonly model: string;
+  readonly mean: Float64Array;
+  readonly standardError: Float64Array;
+  readonly standardizedInnovations: Float64Array;
+}
+
+/** Every model fitted to one lineage, ranked by AICc. */
+export interface LineageFit {
+  readonly lineage: Lineage;
+  readonly models: readonly RankedFit[];
+  /** Id of the best-supported model (lowest AICc), or null when none was compared. */
+  readonly best: string | null;
+  readonly smoothed: SmoothedLineage | null;
+}
+
+/**
+ * Fit every model to a lineage and rank them by AICc with Akaike weights
+ * (N = number of horizons). Models with N - K - 1 <= 0 are listed as not
+ * compared. The lineage mean is smoothed under the best model.
+ */
+export function fitLineage(lineage: Lineage, models: readonly EvolutionModel[], options: FitOptions = {}): LineageFit {
+  const fits = models.map((model) => fitModel(model, lineage, options));
+  const horizons = lineage.mean.length;
+  const criteria = fits.map((fit) => (fit.converged ? aicc(fit.logLik, fit.k, horizons) : null));
+  const { delta, weight } = akaikeWeights(criteria);
+  const ranked: RankedFit[] = fits.map((fit, j) => ({
+    ...fit,
+    aicc: criteria[j],
+    deltaAicc: delta[j],
+    weight: weight[j],
+    notCompared:
+      criteria[j] !== null
+        ? null
+        : !fit.converged
+          ? (fit.message ?? 'not fitted')
+          : `not compared: N - K - 1 = ${horizons - fit.k - 1} <= 0 (too few horizons for K = ${fit.k})`,
+  }));
+  let best: string | null = null;
+  let bestCriterion = Number.POSITIVE_INFINITY;
+  ranked.forEach((fit) => {
+    if (fit.aicc !== null && fit.aicc < bestCriterion) {
+      bestCriterion = fit.aicc;
+      best = fit.id;
+    }
+  });
+  const bestModel = models.find((model) => model.id === best);
+  const bestFit = fits.find((fit) => fit.id === best);
+  const smoothed = bestModel && bestFit ? smoothUnder(bestModel, bestFit, lineage) : null;
+  return { lineage, models: ranked, best, smoothed };
+}
+
+/** Smoothed lineage mean and its standard error under a fitted model. */
+export function smoothUnder(model: EvolutionModel, fit: ModelFit, lineage: Lineage): SmoothedLineage {
+  const evaluator = new LikelihoodEvaluator(model, lineage);
+  const details = evaluator.details(fit.process);
+  model.fillSpace(lineage, fit.process, evaluator.space);
+  const size = lineage.mean.length;
+  const width = evaluator.space.width;
+  const locationMean = new Float64Array(size);
+  for (let i = 0; i < size; i++) {
+    let value = 0;
+    for (let j = 0; j < width; j++) value += evaluator.space.design[i * width + j] * details.coefficients[j];
+    locationMean[i] = value;
+  }
+  const result = smoothLineage(evaluator.space, locationMean, lineage.mean);
+  return {
+    model: model.id,
+    mean: result.smoothedMean,
+    standardError: Float64Array.from(result.smoothedVariance, (variance) => Math.sqrt(variance)),
+    standardizedInnovations: result.standardizedInnovations,
+  };
+}

@@ -1,0 +1,304 @@
+import type { Lineage } from '../lineage.js';
+import type { EvolutionModel } from '../models/model.js';
+import { LikelihoodEvaluator } from './evaluator.js';
+import { chiSquare1At95 } from './model-choice.js';
+import { findRoot } from './optimise.js';
+import { maximiseProcess, type AxisPosition } from './search.js';
+
+/** A parameter estimate with its 95% profile-likelihood interval. */
+export interface ParameterEstimate {
+  /** Maximum-likelihood estimate, or null when it is not finite (e.g. the optimum at the alpha -> 0 limit). */
+  readonly estimate: number | null;
+  /** Interval ends; null when the interval is open (reaches a limit). */
+  readonly lower: number | null;
+  readonly upper: number | null;
+  /** "zero" when the estimate sits on the bound 0; a limit name ("alpha-zero", "alpha-infinite") when at a limit. */
+  readonly atBound: string | null;
+  /** The interval reaches the parameter's bound or limit at this end. */
+  readonly lowerAtBound: boolean;
+  readonly upperAtBound: boolean;
+}
+
+/** One model fitted to one lineage: plain, immutable, read by every output format. */
+export interface ModelFit {
+  readonly id: string;
+  readonly label: string;
+  /** K, number of estimated parameters. */
+  readonly k: number;
+  /** N, number of horizons. */
+  readonly horizons: number;
+  /** Maximised log-likelihood (the supremum when at a bound or limit). */
+  readonly logLik: number;
+  readonly converged: boolean;
+  /** Why the model was not fitted or not converged, in words. */
+  readonly message: string | null;
+  readonly parameters: Readonly<Record<string, ParameterEstimate>>;
+  /** Derived quantities (ou half_life). */
+  readonly derived: Readonly<Record<string, ParameterEstimate>>;
+  /** Process values at the maximum (search space) and design coefficients. */
+  readonly process: readonly number[];
+  readonly estimates: Readonly<Record<string, number>>;
+  /** Estimates at a bound or a limit, in words, for warnings. */
+  readonly flags: readonly string[];
+  /** Which interval method produced lower/upper. */
+  readonly intervalMethod: string;
+  readonly evaluations: number;
+}
+
+/** Options of {@link fitModel}. */
+export interface FitOptions {
+  /** Compute 95% profile-likelihood intervals (default true). */
+  intervals?: boolean;
+  /** Interval confidence level (default 0.95; only 0.95 is supported by the closed-form cut-off). */
+  gridPoints?: number;
+}
+
+/** Half the 95% chi-square(1) quantile: the profile drop that defines a 95% interval. */
+export const profileDrop = chiSquare1At95 / 2;
+
+const unfitted = (model: EvolutionModel, lineage: Lineage, message: string): ModelFit => ({
+  id: model.id,
+  label: model.label,
+  k: model.parameterCount(lineage),
+  horizons: lineage.mean.length,
+  logLik: Number.NEGATIVE_INFINITY,
+  converged: false,
+  message,
+  parameters: {},
+  derived: {},
+  process: [],
+  estimates: {},
+  flags: [],
+  intervalMethod: 'profile',
+  evaluations: 0,
+});
+
+/**
+ * Fit one model to one lineage by maximum likelihood: location parameters by
+ * exact GLS, process parameters by the nested search, then 95%
+ * profile-likelihood intervals for every parameter (maximising over all the
+ * others, cut-off logL_max - 1.92 from the chi-square(1) 95% quantile).
+ *
+ * Never throws for legal data: a model that cannot be fitted comes back with
+ * converged = false and a message.
+ */
+export function fitModel(model: EvolutionModel, lineage: Lineage, options: FitOptions = {}): ModelFit {
+  const size = lineage.mean.length;
+  if (size < model.minimumHorizons) {
+    return unfitted(model, lineage, `needs at least ${model.minimumHorizons} horizons, has ${size}`);
+  }
+  const evaluator = new LikelihoodEvaluator(model, lineage);
+  const evaluate = (process: number[]): number => evaluator.profile(process);
+  const maximum = maximiseProcess(evaluate, model.process, lineage, { points: options.gridPoints });
+  if (!Number.isFinite(maximum.logLik)) {
+    const probe = model.process.map((axis, level) => {
+      const [lower, upper] = axis.range(lineage, []);
+      return level >= 0 ? Math.sqrt(lower * upper) : 0;
+    });
+    const singular = evaluator.whiten(probe).singular;
+    return unfitted(
+      model,
+      lineage,
+      singular
+        ? 'not fitted: the covariance is singular (a horizon where the model has no process variance also has zero sampling variance)'
+        : 'not fitted: the likelihood is not finite anywhere in the search range',
+    );
+  }
+  const details = evaluator.details(maximum.process);
+  const estimates = model.toParameters(details.coefficients, maximum.process, lineage);
+  const flags: string[] = [];
+  const boundOf = (name: string): string | null => {
+    const axisIndex = model.process.findIndex((axis) => axis.name === name);
+    if (axisIndex < 0) return null;
+    return positionName(model, axisIndex, maximum.positions[axisIndex]);
+  };
+  for (const spec of model.parameters) {
+    const bound = boundOf(spec.name);
+    if (bound) flags.push(`${spec.name} at ${bound === 'zero' ? 'its bound 0' : `the ${bound} limit`}`);
+  }
+  const parameters: Record<string, ParameterEstimate> = {};
+  const wantIntervals = options.intervals ?? true;
+  const cutoff = maximum.logLik - profileDrop;
+  for (const spec of model.parameters) {
+    const estimate = estimates[spec.name];
+    const atBound = boundOf(spec.name);
+    const finite = Number.isFinite(estimate);
+    if (!wantIntervals || !finite) {
+      parameters[spec.name] = { estimate: finite ? estimate : null, lower: null, upper: null, atBound, lowerAtBound: false, upperAtBound: false };
+      continue;
+    }
+    const axisIndex = model.process.findIndex((axis) => axis.name === spec.name);
+    const interval = axisIndex >= 0
+      ? processInterval(evaluate, model, lineage, maximum.process, axisIndex, cutoff)
+      : locationInterval(evaluator, model, lineage, spec.name, estimate, maximum.process, details, cutoff, options.gridPoints);
+    parameters[spec.name] = { estimate, atBound, ...interval };
+  }
+  const derived: Record<string, ParameterEstimate> = {};
+  if (parameters.alpha) {
+    const alpha = parameters.alpha;
+    const halfLife = (value: number | null): number | null => (value === null ? null : value > 0 ? Math.LN2 / value : null);
+    derived.half_life = {
+      estimate: halfLife(alpha.estimate),
+      lower: alpha.upperAtBound ? 0 : halfLife(alpha.upper),
+      upper: alpha.lowerAtBound ? null : halfLife(alpha.lower),
+      atBound: alpha.atBound,
+      lowerAtBound: alpha.upperAtBound,
+      upperAtBound: alpha.lowerAtBound,
+    };
+  }
+  return {
+    id: model.id,
+    label: model.label,
+    k: model.parameterCount(lineage),
+    horizons: size,
+    logLik: maximum.logLik,
+    converged: true,
+    message: null,
+    parameters,
+    derived,
+    process: maximum.process,
+    estimates,
+    flags,
+    intervalMethod: 'profile',
+    evaluations: evaluator.evaluations,
+  };
+}
+
+function positionName(model: EvolutionModel, axisIndex: number, position: AxisPosition): string | null {
+  const axis = model.process[axisIndex];
+  if (position === 'zero') return 'zero';
+  if (position === 'range-lower') return axis.limitNames?.[0] ?? 'zero';
+  if (position === 'range-upper') return axis.limitNames?.[1] ?? 'search-upper-end';
+  return null;
+}
+
+type IntervalEnds = Pick<ParameterEstimate, 'lower' | 'upper' | 'lowerAtBound' | 'upperAtBound'>;
+
+/**
+ * Profile interval of a process parameter: hold it at trial values (on a log
+ * scale), maximise over the other process parameters, and find where the
+ * profile crosses the cut-off. The bound 0 (or the lower limit) counts as
+ * reached when the profile there is still above the cut-off.
+ */
+function processInterval(
+  evaluate: (process: number[]) => number,
+  model: EvolutionModel,
+  lineage: Lineage,
+  best: readonly number[],
+  axisIndex: number,
+  cutoff: number,
+): IntervalEnds {
+  const axis = model.process[axisIndex];
+  const others = model.process.length > 1;
+  const profileAt = (value: number): number => {
+    if (!others) {
+      const process = [...best];
+      process[axisIndex] = value;
+      return evaluate(process);
+    }
+    return maximiseProcess(evaluate, model.process, lineage, { fixed: new Map([[axisIndex, value]]), points: 12 }).logLik;
+  };
+  const [rangeLower, rangeUpper] = axis.range(lineage, best.slice(0, axisIndex));
+  const estimate = best[axisIndex];
+  const gap = (logValue: number): number => profileAt(Math.exp(logValue)) - cutoff;
+  // Lower end.
+  let lower: number | null;
+  let lowerAtBound = false;
+  const lowestValue = axis.allowZero ? 0 : rangeLower;
+  if (estimate <= rangeLower * (1 + 1e-8) || profileAt(lowestValue) >= cutoff) {
+    lower = axis.allowZero ? 0 : axis.limitNames?.[0] ? 0 : rangeLower;
+    lowerAtBound = true;
+  } else {
+    let inside = Math.log(estimate);
+    let outside = inside;
+    let found = false;
+    for (let step = 0; step < 80; step++) {
+      outside = Math.max(Math.log(rangeLower), outside - Math.LN2 * 2);
+      if (gap(outside) < 0) {
+        found = true;
+        break;
+      }
+      inside = outside;
+      if (outside <= Math.log(rangeLower)) break;
+    }
+    if (found) lower = Math.exp(findRoot(gap, outside, inside, 1e-10));
+    else {
+      lower = axis.allowZero ? 0 : rangeLower;
+      lowerAtBound = true;
+    }
+  }
+  // Upper end: search beyond the range for variances; alpha's range end is its limit.
+  let upper: number | null;
+  let upperAtBound = false;
+  const ceiling = axis.limitNames?.[1] ? Math.log(rangeUpper) : Math.log(rangeUpper) + Math.log(1e6);
+  if (estimate >= rangeUpper * (1 - 1e-8) && axis.limitNames?.[1]) {
+    upper = null;
+    upperAtBound = true;
+  } else {
+    let inside = estimate > 0 ? Math.log(estimate) : Math.log(rangeLower);
+    let outside = inside;
+    let found = false;
+    for (let step = 0; step < 200; step++) {
+      outside = Math.min(ceiling, outside + Math.LN2 * 2);
+      if (gap(outside) < 0) {
+        found = true;
+        break;
+      }
+      inside = outside;
+      if (outside >= ceiling) break;
+    }
+    if (found) upper = Math.exp(findRoot(gap, inside, outside, 1e-10));
+    else {
+      upper = null;
+      upperAtBound = true;
+    }
+  }
+  return { lower, upper, lowerAtBound, upperAtBound };
+}
+
+/**
+ * Profile interval of a location parameter: hold it at trial values, profile
+ * the other location parameters by GLS and maximise over the process
+ * parameters, and find where the profile crosses the cut-off. Steps start
+ * from the GLS standard error at the maximum.
+ */
+function locationInterval(
+  evaluator: LikelihoodEvaluator,
+  model: EvolutionModel,
+  lineage: Lineage,
+  name: string,
+  estimate: number,
+  best: readonly number[],
+  details: { coefficientCovariance: Float64Array; coefficients: Float64Array },
+  cutoff: number,
+  gridPoints: number | undefined,
+): IntervalEnds {
+  const profileAt = (value: number): number => {
+    const evaluate = (process: number[]): number => evaluator.profileWithLocation(name, value, process);
+    if (model.process.length === 0) return evaluate([]);
+    return maximiseProcess(evaluate, model.process, lineage, { points: Math.min(gridPoints ?? 12, 12) }).logLik;
+  };
+  const index = model.fixLocation(name, estimate, best, lineage).index;
+  const width = Math.sqrt(details.coefficientCovariance.length);
+  let scale = Math.sqrt(Math.max(0, details.coefficientCovariance[index * width + index]));
+  if (name === 'optimum' && best[0] > 0) scale /= best[0];
+  if (!(scale > 0) || !Number.isFinite(scale)) scale = Math.max(1e-8, Math.abs(estimate) * 1e-3);
+  const gap = (value: number): number => profileAt(value) - cutoff;
+  const end = (direction: 1 | -1): number | null => {
+    let inside = estimate;
+    let step = scale;
+    for (let attempt = 0; attempt < 60; attempt++) {
+      const outside = estimate + direction * step;
+      if (gap(outside) < 0) {
+        const root = findRoot(gap, Math.min(inside, outside), Math.max(inside, outside), 1e-12);
+        return Number.isFinite(root) ? root : null;
+      }
+      inside = outside;
+      step *= 2;
+    }
+    return null;
+  };
+  const lower = end(-1);
+  const upper = end(1);
+  return { lower, upper, lowerAtBound: lower === null, upperAtBound: upper === null };
+}

@@ -1,0 +1,40 @@
+/**
+ * Small-sample Akaike information criterion:
+ * AICc = -2 logL + 2K + 2K(K + 1) / (N - K - 1).
+ * Returns null when N - K - 1 <= 0 (the model is not compared).
+ *
+ * Hurvich, C. M. & Tsai, C.-L. (1989). Regression and time series model
+ * selection in small samples. Biometrika 76:297-307.
+ *
+ * @example
+ * aicc(-10, 2, 10); // 24 + 12/7 = 25.714285714285715
+ */
+export function aicc(logLik: number, parameterCount: number, horizons: number): number | null {
+  const denominator = horizons - parameterCount - 1;
+  if (denominator <= 0 || !Number.isFinite(logLik)) return null;
+  return -2 * logLik + 2 * parameterCount + (2 * parameterCount * (parameterCount + 1)) / denominator;
+}
+
+/**
+ * Akaike weights over the compared models: w_j = exp(-Delta_j / 2) /
+ * sum_k exp(-Delta_k / 2), Delta_j = AICc_j - min AICc. Models not compared
+ * (null) get null.
+ *
+ * Burnham, K. P. & Anderson, D. R. (2002). Model Selection and Multimodel
+ * Inference, 2nd ed. Springer.
+ *
+ * @example
+ * akaikeWeights([10, 12, null]); // [0.7310585786300049, 0.2689414213699951, null]
+ */
+export function akaikeWeights(criteria: readonly (number | null)[]): { delta: (number | null)[]; weight: (number | null)[] } {
+  const compared = criteria.filter((value): value is number => value !== null);
+  if (compared.length === 0) return { delta: criteria.map(() => null), weight: criteria.map(() => null) };
+  const minimum = Math.min(...compared);
+  const delta = criteria.map((value) => (value === null ? null : value - minimum));
+  const relative = delta.map((value) => (value === null ? 0 : Math.exp(-value / 2)));
+  const total = relative.reduce((sum, value) => sum + value, 0);
+  return { delta, weight: delta.map((value, j) => (value === null ? null : relative[j] / total)) };
+}
+
+/** 0.95 quantile of the chi-square distribution with 1 degree of freedom (closed form: 1.959963984540054^2). */
+export const chiSquare1At95 = 3.841458820694124;

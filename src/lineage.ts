@@ -1,0 +1,215 @@
+import { InputError } from './data/errors.js';
+import type { SampleSet, TimeKind } from './data/samples.js';
+import type { WarningLog } from './data/warnings.js';
+
+/** The unit of elapsed time: a label and, when known, its length in years. */
+export interface TimeUnit {
+  /** Unit of elapsed time, e.g. "Myr". */
+  readonly label: string;
+  /** Years per unit, or null for a unit the tool cannot convert (a custom label). */
+  readonly years: number | null;
+}
+
+/**
+ * Units the tool can convert (common practice: Ma/Myr million years, ka/kyr
+ * thousand years, yr years). Any other label is used as given.
+ */
+export function timeUnit(name: string): TimeUnit {
+  const key = name.trim();
+  const known: Record<string, TimeUnit> = {
+    ma: { label: 'Myr', years: 1e6 },
+    myr: { label: 'Myr', years: 1e6 },
+    ka: { label: 'kyr', years: 1e3 },
+    kyr: { label: 'kyr', years: 1e3 },
+    yr: { label: 'yr', years: 1 },
+    a: { label: 'yr', years: 1 },
+    years: { label: 'yr', years: 1 },
+  };
+  return known[key.toLowerCase()] ?? { label: key, years: null };
+}
+
+/**
+ * One evolving lineage: the horizons of one (section, trait) pair sorted from
+ * oldest to youngest, with the sampling variance of each horizon's mean.
+ * All arrays have one entry per horizon; the object is never mutated.
+ */
+export interface Lineage {
+  readonly section: string;
+  readonly trait: string;
+  /** Elapsed time since the oldest horizon, t_0 = 0, strictly increasing, in `timeUnit`. */
+  readonly time: Float64Array;
+  /** The stratigraphic position as read (age before present, time, height or depth). */
+  readonly position: Float64Array;
+  readonly positionKind: TimeKind;
+  /** Sample mean of the trait at each horizon (x_i). */
+  readonly mean: Float64Array;
+  /** Number of specimens (n_i). */
+  readonly count: Float64Array;
+  /** Within-horizon sample variance (v_i, n - 1 divisor), pooled when asked. */
+  readonly withinVariance: Float64Array;
+  /** Sampling variance of each mean, e_i = v_i / n_i. */
+  readonly samplingVariance: Float64Array;
+  /** Optional covariate per horizon (NaN where absent). */
+  readonly covariate: Float64Array | null;
+  /** Input line of each horizon. */
+  readonly lines: readonly number[];
+  /** Horizons whose age was extrapolated beyond the age model's ties. */
+  readonly extrapolated: readonly boolean[];
+  readonly timeUnit: TimeUnit;
+  readonly pooled: boolean;
+  readonly logTransformed: boolean;
+}
+
+/** How to assemble lineages from samples. */
+export interface LineageOptions {
+  /** Pool within-horizon variances over the lineage: v_pooled = sum((n_i - 1) v_i) / sum(n_i - 1). */
+  pool?: boolean;
+  /** Unit of the input's time column (default Myr for ages in Ma). */
+  timeUnit?: TimeUnit;
+  /** Fewest horizons accepted for a lineage (default 3). */
+  minimumHorizons?: number;
+  warnings?: WarningLog;
+  /** Ages of the positions when the samples give heights or depths (from an age model). */
+  ageOf?: (section: string, position: number, line: number) => { age: number; extrapolated: boolean };
+}
+
+/** Lineage display name: "section / trait" with empty parts left out. */
+export function lineageName(lineage: { section: string; trait: string }): string {
+  const parts = [lineage.section, lineage.trait].filter((part) => part !== '');
+  return parts.length === 0 ? 'lineage' : parts.join(' / ');
+}
+
+/**
+ * Group horizon records into lineages, one per (section, trait) pair in order
+ * of first appearance, each sorted by time (older first). Sampling variance of
+ * a mean is e_i = v_i / n_i, or v_pooled / n_i with `pool` (MODELS.md).
+ *
+ * @throws InputError for duplicate times, n = 1 without pooling, too few horizons.
+ */
+export function buildLineages(samples: SampleSet, options: LineageOptions = {}): Lineage[] {
+  const unit = options.timeUnit ?? timeUnit('Myr');
+  const minimum = options.minimumHorizons ?? 3;
+  const groups = new Map<string, typeof samples.records[number][]>();
+  for (const record of samples.records) {
+    const key = `${record.section}\u0000${record.trait}`;
+    const group = groups.get(key);
+    if (group) group.push(record);
+    else groups.set(key, [record]);
+  }
+  const lineages: Lineage[] = [];
+  for (const records of groups.values()) {
+    const { section, trait } = records[0];
+    const name = lineageName({ section, trait });
+    const placed = records.map((record) => {
+      if (samples.timeKind === 'height' || samples.timeKind === 'depth') {
+        if (!options.ageOf) {
+          throw new InputError(`gives "${samples.timeKind}" but no age model was given (use --age-model FILE)`, { file: samples.file, line: 1 });
+        }
+        const signed = samples.timeKind === 'depth' ? -record.position : record.position;
+        const { age, extrapolated } = options.ageOf(section, signed, record.line);
+        return { record, age, extrapolated };
+      }
+      return { record, age: samples.timeKind === 'age' ? record.position : -record.position, extrapolated: false };
+    });
+    // Older first: larger age first (time is stored as negative age above).
+    placed.sort((left, right) => right.age - left.age || left.record.line - right.record.line);
+    for (let i = 1; i < placed.length; i++) {
+      if (placed[i].age === placed[i - 1].age) {
+        throw new InputError(
+          `lineage "${name}" has two horizons at the same ${samples.timeKind} ${placed[i].record.position} (lines ${placed[i - 1].record.line} and ${placed[i].record.line}); merge them or correct the ${samples.timeKind}`,
+          { file: samples.file, line: placed[i].record.line, column: samples.timeKind },
+        );
+      }
+    }
+    if (placed.length < minimum) {
+      throw new InputError(`lineage "${name}" has ${placed.length} horizon${placed.length === 1 ? '' : 's'}; at least ${minimum} are needed to fit any model`, { file: samples.file, line: placed[0].record.line });
+    }
+    const count = Float64Array.from(placed, (entry) => entry.record.n);
+    let withinVariance = Float64Array.from(placed, (entry) => entry.record.variance);
+    if (options.pool) {
+      let weighted = 0;
+      let degrees = 0;
+      for (const { record } of placed) {
+        weighted += (record.n - 1) * record.variance;
+        degrees += record.n - 1;
+      }
+      if (degrees === 0) {
+        throw new InputError(`lineage "${name}": every horizon has n = 1, so no within-horizon variance can be pooled`, { file: samples.file, line: placed[0].record.line, column: 'n' });
+      }
+      withinVariance = new Float64Array(placed.length).fill(weighted / degrees);
+    } else {
+      for (const { record } of placed) {
+        if (record.n === 1) {
+          throw new InputError(`n = 1 gives no within-horizon variance; use --pool to pool variances over the lineage`, { file: samples.file, line: record.line, column: samples.form === 'summary' ? 'n' : 'value' });
+        }
+      }
+    }
+    const samplingVariance = Float64Array.from(withinVariance, (variance, i) => variance / count[i]);
+    const firstAge = placed[0].age;
+    const time = Float64Array.from(placed, (entry) => firstAge - entry.age);
+    const hasCovariate = placed.some((entry) => entry.record.covariate !== undefined);
+    for (let i = 0; i < placed.length; i++) {
+      if (samplingVariance[i] === 0) {
+        options.warnings?.add('zero-sampling-variance', `${name}: horizon at ${samples.timeKind} ${placed[i].record.position} (line ${placed[i].record.line}) has zero sampling variance`);
+      }
+      if (placed[i].extrapolated) {
+        options.warnings?.add('extrapolated-age', `${name}: the age of the horizon at ${samples.timeKind} ${placed[i].record.position} (line ${placed[i].record.line}) is extrapolated beyond the age model's ties`);
+      }
+    }
+    lineages.push({
+      section,
+      trait,
+      time,
+      position: Float64Array.from(placed, (entry) => entry.record.position),
+      positionKind: samples.timeKind,
+      mean: Float64Array.from(placed, (entry) => entry.record.mean),
+      count,
+      withinVariance,
+      samplingVariance,
+      covariate: hasCovariate ? Float64Array.from(placed, (entry) => entry.record.covariate ?? Number.NaN) : null,
+      lines: placed.map((entry) => entry.record.line),
+      extrapolated: placed.map((entry) => entry.extrapolated),
+      timeUnit: unit,
+      pooled: options.pool === true,
+      logTransformed: samples.logTransformed,
+    });
+  }
+  return lineages;
+}
+
+/**
+ * A lineage made directly from arrays (for simulation and tests). Times must be
+ * strictly increasing from 0.
+ */
+export function lineageFromArrays(input: {
+  time: ArrayLike<number>;
+  mean: ArrayLike<number>;
+  samplingVariance: ArrayLike<number>;
+  count?: ArrayLike<number>;
+  section?: string;
+  trait?: string;
+  timeUnit?: TimeUnit;
+  covariate?: ArrayLike<number>;
+}): Lineage {
+  const n = input.time.length;
+  const count = input.count ? Float64Array.from(input.count) : new Float64Array(n).fill(1);
+  const samplingVariance = Float64Array.from(input.samplingVariance);
+  const time = Float64Array.from(input.time);
+  return {
+    section: input.section ?? '',
+    trait: input.trait ?? '',
+    time,
+    position: Float64Array.from(time),
+    positionKind: 'time',
+    mean: Float64Array.from(input.mean),
+    count,
+    withinVariance: Float64Array.from(samplingVariance, (value, i) => value * count[i]),
+    samplingVariance,
+    covariate: input.covariate ? Float64Array.from(input.covariate) : null,
+    lines: Array.from({ length: n }, (_, i) => i + 2),
+    extrapolated: new Array<boolean>(n).fill(false),
+    timeUnit: input.timeUnit ?? timeUnit('Myr'),
+    pooled: false,
+    logTransformed: false,
+  };
+}

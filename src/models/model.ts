@@ -1,0 +1,129 @@
+import type { StateSpace } from '../engine/state-space.js';
+import type { Lineage } from '../lineage.js';
+
+/** Role of a parameter: a location (enters the mean linearly), a variance, or a rate such as alpha. */
+export type ParameterRole = 'location' | 'variance' | 'rate';
+
+/** Unit of a parameter as powers of the trait unit and the time unit (drift: trait^1 time^-1). */
+export interface UnitPowers {
+  readonly trait: number;
+  readonly time: number;
+}
+
+/** One reported parameter of a model. */
+export interface ParameterSpec {
+  /** Name exactly as in MODELS.md (snake_case, used in JSON and CSV). */
+  readonly name: string;
+  /** Words for tables and figures. */
+  readonly label: string;
+  readonly role: ParameterRole;
+  readonly unit: UnitPowers;
+  /** Lower bound of the parameter (0 for variances and alpha; -Infinity for locations). */
+  readonly lowerBound: number;
+}
+
+/**
+ * One searched (nonlinear) parameter. Searched on a log scale between the
+ * model's range; `allowZero` adds the bound value 0 as a candidate, because a
+ * variance maximum at 0 is a legitimate answer.
+ */
+export interface ProcessAxis {
+  readonly name: string;
+  readonly allowZero: boolean;
+  /**
+   * Search range in natural units for this lineage, given the values already
+   * chosen for the axes before it (a nested search goes axis by axis).
+   */
+  range(lineage: Lineage, before: readonly number[]): readonly [number, number];
+  /** Name of the limit reached at each end of the range, when an end is a limit rather than a bound. */
+  readonly limitNames?: readonly [string | null, string | null];
+}
+
+/** Mean vector and process covariance C of the dense form (without sampling error). */
+export interface MeanCovariance {
+  readonly mean: Float64Array;
+  readonly covariance: number[][];
+}
+
+/** Expected trajectory of a model and the variance about it, at given times. */
+export interface Expectation {
+  readonly mean: Float64Array;
+  readonly variance: Float64Array;
+}
+
+/**
+ * Everything the engine, fitter, simulator and renderer need to know about a
+ * model. Adding a model means one file implementing this, plus an entry in the
+ * registry and its tests.
+ */
+export interface EvolutionModel {
+  readonly id: string;
+  /** Name in words, e.g. "directional walk (general random walk)". */
+  readonly label: string;
+  /** One-sentence definition for `--help` and the README. */
+  readonly summary: string;
+  /** Where the model's likelihood comes from. */
+  readonly citation: string;
+  readonly parameters: readonly ParameterSpec[];
+  /** Searched parameters in search order; the remaining location parameters are profiled by GLS. */
+  readonly process: readonly ProcessAxis[];
+  /** Number of design columns for this lineage. */
+  width(lineage: Lineage): number;
+  /** K: the number of estimated parameters counted in AICc. */
+  parameterCount(lineage: Lineage): number;
+  /** Fewest horizons for which the model can be fitted at all. */
+  readonly minimumHorizons: number;
+  /** Fill transition, process variance and design for the given process values. */
+  fillSpace(lineage: Lineage, process: ArrayLike<number>, space: StateSpace): void;
+  /** Natural parameters from design coefficients and process values. */
+  toParameters(coefficients: ArrayLike<number>, process: ArrayLike<number>, lineage: Lineage): Record<string, number>;
+  /** Design coefficients that reproduce the constant mean 1 (so the trait can be centred). */
+  constantCoefficients(process: ArrayLike<number>, lineage: Lineage): Float64Array;
+  /**
+   * For a location parameter held at `value`: which design coefficient that
+   * fixes and at what value, given the process values.
+   */
+  fixLocation(name: string, value: number, process: ArrayLike<number>, lineage: Lineage): { index: number; coefficient: number };
+  /** Process values from natural parameters (inverse of the process part of toParameters). */
+  processFrom(parameters: Record<string, number>, lineage: Lineage): number[];
+  /** Design coefficients from natural parameters. */
+  coefficientsFrom(parameters: Record<string, number>, lineage: Lineage): number[];
+  /** Dense mean and covariance straight from the MODELS.md table (reference and simulation). */
+  meanCovariance(lineage: Lineage, parameters: Record<string, number>): MeanCovariance;
+  /** Expected trajectory and its variance about the start, for figures. */
+  expectation(parameters: Record<string, number>, time: ArrayLike<number>): Expectation;
+}
+
+/**
+ * A scale for searching variances: the larger of the variance of the means
+ * and the average sampling variance (never 0 unless the data are constant).
+ */
+export function varianceScale(lineage: Lineage): number {
+  const n = lineage.mean.length;
+  let mean = 0;
+  for (let i = 0; i < n; i++) mean += lineage.mean[i];
+  mean /= n;
+  let spread = 0;
+  let sampling = 0;
+  for (let i = 0; i < n; i++) {
+    spread += (lineage.mean[i] - mean) ** 2;
+    sampling += lineage.samplingVariance[i];
+  }
+  const scale = Math.max(spread / Math.max(1, n - 1), sampling / n);
+  if (scale > 0) return scale;
+  const magnitude = Math.abs(mean);
+  return magnitude > 0 ? (magnitude * 1e-8) ** 2 : 1;
+}
+
+/** Total time span t_m and the shortest interval between horizons. */
+export function timeSpan(lineage: Lineage): { span: number; shortest: number } {
+  const time = lineage.time;
+  let shortest = Number.POSITIVE_INFINITY;
+  for (let i = 1; i < time.length; i++) shortest = Math.min(shortest, time[i] - time[i - 1]);
+  return { span: time[time.length - 1], shortest };
+}
+
+/** A process covariance matrix built entry by entry. */
+export function buildCovariance(size: number, entry: (i: number, j: number) => number): number[][] {
+  return Array.from({ length: size }, (_, i) => Array.from({ length: size }, (_, j) => entry(i, j)));
+}

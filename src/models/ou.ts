@@ -1,0 +1,102 @@
+import type { Lineage } from '../lineage.js';
+import { buildCovariance, timeSpan, varianceScale, type EvolutionModel } from './model.js';
+
+/** (1 - exp(-rate * t)) / rate, equal to t at rate 0 and accurate near it. */
+export function relaxedTime(rate: number, t: number): number {
+  return rate === 0 ? t : -Math.expm1(-rate * t) / rate;
+}
+
+/** Ranges of alpha searched: alpha * span = 1e-5 (the random-walk limit) to alpha * shortest interval = 40 (the stasis-like limit). */
+function alphaRange(lineage: Lineage): readonly [number, number] {
+  const { span, shortest } = timeSpan(lineage);
+  return [1e-5 / span, 40 / shortest];
+}
+
+/**
+ * Ornstein–Uhlenbeck evolution toward an optimum:
+ * mu_i = theta + (a - theta) exp(-alpha t_i),
+ * C_ij = sigma2 / (2 alpha) exp(-alpha (t_i + t_j)) (exp(2 alpha min(t_i, t_j)) - 1).
+ * Parameters: ancestral_mean a, optimum theta (trait units), alpha (per time
+ * unit, >= 0), step_variance sigma2 (trait^2 per time unit, >= 0). Derived:
+ * half_life = ln 2 / alpha.
+ *
+ * The mean is written in the basis exp(-alpha t) and (1 - exp(-alpha t)) / alpha,
+ * which spans the same means and tends to (1, t) as alpha -> 0, so the
+ * profile likelihood is continuous into the directional-walk limit.
+ *
+ * Hunt, G., Bell, M. A. & Travis, M. P. (2008). Evolution toward a new
+ * adaptive optimum: phenotypic evolution in a fossil stickleback lineage.
+ * Evolution 62:700-710. Hansen, T. F. (1997). Stabilizing selection and the
+ * comparative analysis of adaptation. Evolution 51:1341-1351.
+ */
+export const ornsteinUhlenbeck: EvolutionModel = {
+  id: 'ou',
+  label: 'Ornstein–Uhlenbeck (approach to an optimum)',
+  summary: 'The lineage mean is pulled toward an optimum at rate alpha while wandering with step variance; it starts at the ancestral mean.',
+  citation: 'Hunt, G., Bell, M. A. & Travis, M. P. (2008). Evolution toward a new adaptive optimum: phenotypic evolution in a fossil stickleback lineage. Evolution 62:700-710.',
+  parameters: [
+    { name: 'ancestral_mean', label: 'ancestral mean', role: 'location', unit: { trait: 1, time: 0 }, lowerBound: Number.NEGATIVE_INFINITY },
+    { name: 'optimum', label: 'optimum', role: 'location', unit: { trait: 1, time: 0 }, lowerBound: Number.NEGATIVE_INFINITY },
+    { name: 'alpha', label: 'alpha (strength of attraction)', role: 'rate', unit: { trait: 0, time: -1 }, lowerBound: 0 },
+    { name: 'step_variance', label: 'step variance', role: 'variance', unit: { trait: 2, time: -1 }, lowerBound: 0 },
+  ],
+  process: [
+    { name: 'alpha', allowZero: false, range: (lineage) => alphaRange(lineage), limitNames: ['alpha-zero', 'alpha-infinite'] },
+    {
+      name: 'step_variance',
+      allowZero: true,
+      range: (lineage, before) => {
+        const scale = varianceScale(lineage);
+        const { span, shortest } = timeSpan(lineage);
+        const alpha = before[0] ?? 0;
+        return [(1e-9 * scale) / span, 1e3 * scale * Math.max(1 / shortest, 2 * alpha)];
+      },
+    },
+  ],
+  minimumHorizons: 4,
+  width: () => 2,
+  parameterCount: () => 4,
+  fillSpace(lineage, process, space) {
+    const alpha = process[0];
+    const stepVariance = process[1];
+    const time = lineage.time;
+    space.transition[0] = 0;
+    space.processVariance[0] = 0;
+    for (let i = 0; i < space.size; i++) {
+      space.design[2 * i] = Math.exp(-alpha * time[i]);
+      space.design[2 * i + 1] = relaxedTime(alpha, time[i]);
+      if (i > 0) {
+        const interval = time[i] - time[i - 1];
+        space.transition[i] = Math.exp(-alpha * interval);
+        space.processVariance[i] = stepVariance * relaxedTime(2 * alpha, interval);
+      }
+    }
+  },
+  toParameters: (coefficients, process) => ({
+    ancestral_mean: coefficients[0],
+    optimum: coefficients[1] / process[0],
+    alpha: process[0],
+    step_variance: process[1],
+  }),
+  constantCoefficients: (process) => Float64Array.of(1, process[0]),
+  fixLocation: (name, value, process) => (name === 'optimum' ? { index: 1, coefficient: value * process[0] } : { index: 0, coefficient: value }),
+  processFrom: (parameters) => [parameters.alpha, parameters.step_variance],
+  coefficientsFrom: (parameters) => [parameters.ancestral_mean, parameters.optimum * parameters.alpha],
+  meanCovariance(lineage, parameters) {
+    const time = lineage.time;
+    const { ancestral_mean: start, optimum, alpha, step_variance: stepVariance } = parameters;
+    // exp(-alpha (t_i + t_j)) (exp(2 alpha min) - 1) = exp(-alpha |t_i - t_j|) - exp(-alpha (t_i + t_j)), without overflow.
+    return {
+      mean: Float64Array.from(time, (t) => optimum + (start - optimum) * Math.exp(-alpha * t)),
+      covariance: buildCovariance(time.length, (i, j) =>
+        (stepVariance / (2 * alpha)) * (Math.exp(-alpha * Math.abs(time[i] - time[j])) - Math.exp(-alpha * (time[i] + time[j])))),
+    };
+  },
+  expectation(parameters, time) {
+    const { ancestral_mean: start, optimum, alpha, step_variance: stepVariance } = parameters;
+    return {
+      mean: Float64Array.from(time, (t) => optimum + (start - optimum) * Math.exp(-alpha * t)),
+      variance: Float64Array.from(time, (t) => stepVariance * relaxedTime(2 * alpha, t)),
+    };
+  },
+};

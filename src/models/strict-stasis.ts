@@ -1,0 +1,42 @@
+import { buildCovariance, type EvolutionModel } from './model.js';
+
+/**
+ * Strict stasis: no evolutionary change at all, every horizon mean differs
+ * from the stasis mean by sampling error only; mu_i = theta, C = 0.
+ * Parameter: stasis_mean theta (trait units). Its ML estimate is the
+ * inverse-sampling-variance weighted mean (closed form).
+ *
+ * Hunt, G., Bell, M. A. & Travis, M. P. (2008). Evolution toward a new
+ * adaptive optimum: phenotypic evolution in a fossil stickleback lineage.
+ * Evolution 62:700-710.
+ */
+export const strictStasis: EvolutionModel = {
+  id: 'strict-stasis',
+  label: 'strict stasis',
+  summary: 'No change: every horizon mean is the stasis mean plus sampling error alone.',
+  citation: 'Hunt, G., Bell, M. A. & Travis, M. P. (2008). Evolution toward a new adaptive optimum: phenotypic evolution in a fossil stickleback lineage. Evolution 62:700-710.',
+  parameters: [
+    { name: 'stasis_mean', label: 'stasis mean', role: 'location', unit: { trait: 1, time: 0 }, lowerBound: Number.NEGATIVE_INFINITY },
+  ],
+  process: [],
+  minimumHorizons: 2,
+  width: () => 1,
+  parameterCount: () => 1,
+  fillSpace(_lineage, _process, space) {
+    space.transition.fill(0);
+    space.processVariance.fill(0);
+    space.design.fill(1);
+  },
+  toParameters: (coefficients) => ({ stasis_mean: coefficients[0] }),
+  constantCoefficients: () => Float64Array.of(1),
+  fixLocation: (_name, value) => ({ index: 0, coefficient: value }),
+  processFrom: () => [],
+  coefficientsFrom: (parameters) => [parameters.stasis_mean],
+  meanCovariance(lineage, parameters) {
+    const size = lineage.time.length;
+    return { mean: new Float64Array(size).fill(parameters.stasis_mean), covariance: buildCovariance(size, () => 0) };
+  },
+  expectation(parameters, time) {
+    return { mean: Float64Array.from(time, () => parameters.stasis_mean), variance: new Float64Array(time.length) };
+  },
+};

@@ -1,0 +1,28 @@
+import type { StateSpace } from '../engine/state-space.js';
+import type { Lineage } from '../lineage.js';
+import { timeSpan, varianceScale } from './model.js';
+
+/**
+ * Latent dynamics of a Brownian walk started exactly at the ancestral mean:
+ * transition 1, process variance stepVariance * tau_i, no variance at t_0.
+ */
+export function fillWalkDynamics(lineage: Lineage, stepVariance: number, space: StateSpace): void {
+  const time = lineage.time;
+  space.transition[0] = 0;
+  space.processVariance[0] = 0;
+  for (let i = 1; i < space.size; i++) {
+    space.transition[i] = 1;
+    space.processVariance[i] = stepVariance * (time[i] - time[i - 1]);
+  }
+}
+
+/**
+ * Search range for a step variance (trait^2 per time unit): from far below
+ * anything the data could resolve to far above the spread of the means per
+ * shortest interval.
+ */
+export function stepVarianceRange(lineage: Lineage): readonly [number, number] {
+  const scale = varianceScale(lineage);
+  const { span, shortest } = timeSpan(lineage);
+  return [(1e-9 * scale) / span, (1e3 * scale) / shortest];
+}
