@@ -43,13 +43,15 @@ export interface ModelFit {
   /** Which interval method produced lower/upper. */
   readonly intervalMethod: string;
   readonly evaluations: number;
+  /** Model-specific extra fields for the JSON (e.g. `shifts` of a shift model). */
+  readonly extra?: Readonly<Record<string, unknown>>;
 }
 
 /** Options of {@link fitModel}. */
 export interface FitOptions {
   /** Compute 95% profile-likelihood intervals (default true). */
   intervals?: boolean;
-  /** Interval confidence level (default 0.95; only 0.95 is supported by the closed-form cut-off). */
+  /** Grid points per process axis of the search (default 24). */
   gridPoints?: number;
 }
 

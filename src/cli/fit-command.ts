@@ -1,0 +1,93 @@
+import { join } from 'node:path';
+import { usageError } from '../data/errors.js';
+import { WarningLog } from '../data/warnings.js';
+import { fitLineage, type LineageFit } from '../fit/fit-lineage.js';
+import type { EvolutionModel } from '../models/model.js';
+import { findModel, modelSets } from '../models/registry.js';
+import { fitDocument, type Provenance } from '../render/fit-document.js';
+import { modelsCsv } from '../render/models-csv.js';
+import { lineageTable } from '../render/text-table.js';
+import { loadLineages, readInput, type SampleFileOptions } from './input.js';
+import { toolVersion } from './version.js';
+import { prepareOutputFolder, writeAtomically } from './write-output.js';
+
+/** Options of `stratotrend fit`. */
+export interface FitCommandOptions extends SampleFileOptions {
+  json?: boolean;
+  out?: string;
+  models?: string;
+  intervals?: boolean;
+  quiet?: boolean;
+}
+
+/** Resolve `--models`: a named set or a comma-separated list of model ids. */
+export function resolveModels(request: string | undefined): { name: string; models: readonly EvolutionModel[] } {
+  const name = request ?? 'classic';
+  const set = modelSets[name];
+  if (set) return { name, models: set() };
+  const ids = name.split(',').map((id) => id.trim()).filter((id) => id !== '');
+  const models = ids.map((id) => {
+    const model = findModel(id);
+    if (!model) throw usageError(`--models: unknown model "${id}"; use a set (${Object.keys(modelSets).join(', ')}) or model ids`);
+    return model;
+  });
+  if (models.length === 0) throw usageError('--models: no model named');
+  return { name: 'custom', models };
+}
+
+/** Everything `fit` computed, before it is printed or written. */
+export interface FitRun {
+  readonly fits: LineageFit[];
+  readonly document: Record<string, unknown>;
+  readonly warnings: WarningLog;
+}
+
+/** Read the file, fit every lineage, and build the result document (no output). */
+export function runFit(file: string, options: FitCommandOptions): FitRun {
+  const warnings = new WarningLog();
+  const input = readInput(file);
+  const lineages = loadLineages(input, options, warnings);
+  const { name, models } = resolveModels(options.models);
+  const fits = lineages.map((lineage) => fitLineage(lineage, models, { intervals: options.intervals !== false }));
+  for (const fit of fits) {
+    for (const model of fit.models) {
+      for (const flag of model.flags) warnings.add('at-bound', `${fit.lineage.section || 'lineage'}${fit.lineage.trait ? ' / ' + fit.lineage.trait : ''}, ${model.id}: ${flag}`);
+      if (model.notCompared) warnings.add('not-compared', `${fit.lineage.section || 'lineage'}${fit.lineage.trait ? ' / ' + fit.lineage.trait : ''}, ${model.id}: ${model.notCompared}`);
+    }
+  }
+  const provenance: Provenance = {
+    tool: 'stratotrend',
+    version: toolVersion(),
+    inputs: [{ file: input.name, sha256: input.sha256 }],
+    options: {
+      log: options.log === true,
+      pool: options.pool === true,
+      time_unit: options.timeUnit ?? 'Myr',
+      models: name,
+      intervals: options.intervals === false ? 'none' : 'profile',
+      likelihood: 'exact (joint) with known sampling variances, Kalman filter',
+      criterion: 'AICc',
+    },
+  };
+  return { fits, document: fitDocument(fits, provenance, warnings.list(), name), warnings };
+}
+
+/** `stratotrend fit FILE`: print the model table (or JSON) and write outputs with --out. */
+export function fitCommand(file: string, options: FitCommandOptions): void {
+  const run = runFit(file, options);
+  if (options.out) {
+    const folder = prepareOutputFolder(options.out, [file]);
+    writeAtomically(join(folder, 'models.csv'), modelsCsv(run.fits));
+    writeAtomically(join(folder, 'fit.json'), JSON.stringify(run.document, null, 2) + '\n');
+  }
+  if (options.json) {
+    process.stdout.write(JSON.stringify(run.document, null, 2) + '\n');
+  } else if (!options.quiet) {
+    process.stdout.write(run.fits.map(lineageTable).join('\n\n') + '\n');
+    if (options.out) process.stdout.write(`\nWrote models.csv and fit.json to ${options.out}\n`);
+  }
+  for (const warning of run.warnings.list()) {
+    if (warning.category === 'at-bound' || warning.category === 'not-compared') continue;
+    process.stderr.write(`warning (${warning.category}): ${warning.message}${warning.count > 1 ? ` (${warning.count} times)` : ''}\n`);
+  }
+}

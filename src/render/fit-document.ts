@@ -1,0 +1,88 @@
+import type { Warning } from '../data/warnings.js';
+import type { LineageFit, RankedFit } from '../fit/fit-lineage.js';
+import type { ParameterEstimate } from '../fit/fit-model.js';
+
+/** What produced a result: tool, inputs with checksums, and every option. */
+export interface Provenance {
+  readonly tool: string;
+  readonly version: string;
+  readonly inputs: readonly { file: string; sha256: string }[];
+  readonly options: Readonly<Record<string, unknown>>;
+}
+
+/** A finite number or null (JSON has no Infinity or NaN, and the tool never prints them). */
+export function finiteOrNull(value: number | null | undefined): number | null {
+  return value === null || value === undefined || !Number.isFinite(value) ? null : value;
+}
+
+function estimateDocument(estimate: ParameterEstimate): Record<string, unknown> {
+  return {
+    estimate: finiteOrNull(estimate.estimate),
+    lower: finiteOrNull(estimate.lower),
+    upper: finiteOrNull(estimate.upper),
+    at_bound: estimate.atBound,
+    lower_at_bound: estimate.lowerAtBound,
+    upper_at_bound: estimate.upperAtBound,
+  };
+}
+
+/** The JSON form of one ranked model fit. */
+export function modelDocument(model: RankedFit): Record<string, unknown> {
+  return {
+    id: model.id,
+    label: model.label,
+    k: model.k,
+    logLik: finiteOrNull(model.logLik),
+    aicc: finiteOrNull(model.aicc),
+    delta_aicc: finiteOrNull(model.deltaAicc),
+    weight: finiteOrNull(model.weight),
+    converged: model.converged,
+    compared: model.aicc !== null,
+    not_compared_reason: model.notCompared,
+    interval_method: model.intervalMethod,
+    params: Object.fromEntries(Object.entries(model.parameters).map(([name, estimate]) => [name, estimateDocument(estimate)])),
+    derived: Object.fromEntries(Object.entries(model.derived).map(([name, estimate]) => [name, estimateDocument(estimate)])),
+    flags: model.flags,
+    ...(model.extra ?? {}),
+  };
+}
+
+/** The JSON form of one lineage's fit, including its data so figures can be redrawn without refitting. */
+export function lineageDocument(fit: LineageFit): Record<string, unknown> {
+  const { lineage } = fit;
+  const list = (values: ArrayLike<number>): (number | null)[] => Array.from(values, (value) => finiteOrNull(value));
+  return {
+    section: lineage.section,
+    trait: lineage.trait,
+    horizons: lineage.mean.length,
+    time_unit: lineage.timeUnit.label,
+    position_kind: lineage.positionKind,
+    transform: lineage.logTransformed ? 'ln' : 'none',
+    sampling_variance: lineage.pooled ? 'pooled' : 'per-horizon',
+    best_model: fit.best,
+    models: fit.models.map(modelDocument),
+    data: {
+      time: list(lineage.time),
+      position: list(lineage.position),
+      mean: list(lineage.mean),
+      n: list(lineage.count),
+      within_variance: list(lineage.withinVariance),
+      sampling_variance: list(lineage.samplingVariance),
+      extrapolated: lineage.extrapolated,
+      line: lineage.lines,
+    },
+    smoothed: fit.smoothed
+      ? { model: fit.smoothed.model, mean: list(fit.smoothed.mean), standard_error: list(fit.smoothed.standardError) }
+      : null,
+  };
+}
+
+/** The whole `--json` / fit.json document. */
+export function fitDocument(fits: readonly LineageFit[], provenance: Provenance, warnings: readonly Warning[], modelSet: string): Record<string, unknown> {
+  return {
+    provenance,
+    model_set: modelSet,
+    lineages: fits.map(lineageDocument),
+    warnings: warnings.map((warning) => ({ category: warning.category, message: warning.message, count: warning.count })),
+  };
+}

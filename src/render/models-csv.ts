@@ -1,0 +1,46 @@
+import type { LineageFit } from '../fit/fit-lineage.js';
+import { finiteOrNull } from './fit-document.js';
+
+/** Quote a CSV field when it needs it (RFC 4180). */
+export function csvField(value: string | number | boolean | null): string {
+  if (value === null) return '';
+  const text = String(value);
+  return /[",\r\n]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
+}
+
+/**
+ * Tidy model table: one row per lineage × model, one column per quantity;
+ * parameters as `NAME_estimate`, `NAME_lower`, `NAME_upper` over the union
+ * of parameter names, empty where a model lacks a parameter. Numbers are
+ * written in full precision.
+ */
+export function modelsCsv(fits: readonly LineageFit[]): string {
+  const parameterNames: string[] = [];
+  for (const fit of fits) {
+    for (const model of fit.models) {
+      for (const name of [...Object.keys(model.parameters), ...Object.keys(model.derived)]) {
+        if (!parameterNames.includes(name)) parameterNames.push(name);
+      }
+    }
+  }
+  const header = [
+    'section', 'trait', 'horizons', 'time_unit', 'model', 'k', 'logLik', 'aicc', 'delta_aicc', 'weight', 'best', 'compared', 'flags',
+    ...parameterNames.flatMap((name) => [`${name}_estimate`, `${name}_lower`, `${name}_upper`]),
+  ];
+  const rows = [header.join(',')];
+  for (const fit of fits) {
+    for (const model of fit.models) {
+      const estimates = { ...model.parameters, ...model.derived };
+      rows.push([
+        fit.lineage.section, fit.lineage.trait, fit.lineage.mean.length, fit.lineage.timeUnit.label, model.id, model.k,
+        finiteOrNull(model.logLik), finiteOrNull(model.aicc), finiteOrNull(model.deltaAicc), finiteOrNull(model.weight),
+        model.id === fit.best, model.aicc !== null, model.flags.join('; '),
+        ...parameterNames.flatMap((name) => {
+          const estimate = estimates[name];
+          return estimate ? [finiteOrNull(estimate.estimate), finiteOrNull(estimate.lower), finiteOrNull(estimate.upper)] : [null, null, null];
+        }),
+      ].map(csvField).join(','));
+    }
+  }
+  return rows.join('\n') + '\n';
+}

@@ -1,0 +1,73 @@
+import type { LineageFit } from '../fit/fit-lineage.js';
+import { lineageName } from '../lineage.js';
+import { findModel } from '../models/registry.js';
+import { formatFixed, formatNumber, unitLabel } from './units.js';
+
+/** Pad a row of cells to column widths (first column left-aligned, the rest right-aligned). */
+export function alignColumns(rows: readonly (readonly string[])[], indent = '  '): string[] {
+  const widths = rows[0].map((_, column) => Math.max(...rows.map((row) => [...row[column]].length)));
+  return rows.map((row) => indent + row.map((cell, column) => {
+    const padding = ' '.repeat(widths[column] - [...cell].length);
+    return column === 0 ? cell + padding : padding + cell;
+  }).join('  ').trimEnd());
+}
+
+/** How the lineage's numbers were made, in words, for the table heading. */
+export function treatmentWords(fit: LineageFit): string {
+  const { lineage } = fit;
+  const variance = lineage.pooled ? 'pooled within-horizon variance' : 'per-horizon sampling variance';
+  const transform = lineage.logTransformed ? 'natural-log trait' : 'untransformed trait';
+  return `${variance}, ${transform}`;
+}
+
+/**
+ * The terminal table for one lineage: one row per model (K, logL, AICc,
+ * ΔAICc, Akaike weight), the best-supported model marked in words, then the
+ * estimates with their 95% intervals and units.
+ */
+export function lineageTable(fit: LineageFit): string {
+  const { lineage } = fit;
+  const unit = lineage.timeUnit.label;
+  const span = lineage.time[lineage.time.length - 1];
+  const lines: string[] = [];
+  lines.push(`Lineage "${lineageName(lineage)}": ${lineage.mean.length} horizons over ${formatNumber(span)} ${unit} (${treatmentWords(fit)})`);
+  const rows: string[][] = [['model', 'K', 'logL', 'AICc', 'ΔAICc', 'weight', '']];
+  for (const model of fit.models) {
+    rows.push([
+      model.label,
+      String(model.k),
+      formatFixed(model.logLik, 3),
+      formatFixed(model.aicc, 3),
+      formatFixed(model.deltaAicc, 3),
+      model.weight === null ? '—' : model.weight.toFixed(3),
+      model.id === fit.best ? '<- best supported' : model.notCompared ? 'not compared' : '',
+    ]);
+  }
+  lines.push(...alignColumns(rows));
+  lines.push(`  Estimates with 95% profile-likelihood intervals (time in ${unit}):`);
+  for (const model of fit.models) {
+    if (!model.converged) {
+      lines.push(`    ${model.label}: ${model.message}`);
+      continue;
+    }
+    const specs = findModel(model.id)?.parameters ?? [];
+    const parts = specs.map((spec) => {
+      const estimate = model.parameters[spec.name];
+      if (!estimate) return `${spec.name} —`;
+      const unitText = unitLabel(spec.unit, unit);
+      const interval = `[${estimate.lowerAtBound && estimate.lower === null ? 'open' : formatNumber(estimate.lower)}, ${estimate.upperAtBound && estimate.upper === null ? 'open' : formatNumber(estimate.upper)}]`;
+      const bound = estimate.atBound ? (estimate.atBound === 'zero' ? ' (at bound 0)' : ` (at the ${estimate.atBound} limit)`) : '';
+      return `${spec.name} ${formatNumber(estimate.estimate)}${unitText && spec.unit.time !== 0 ? ' ' + unitText : ''} ${interval}${bound}`;
+    });
+    for (const [name, estimate] of Object.entries(model.derived)) {
+      parts.push(`${name} ${formatNumber(estimate.estimate)} ${unit} [${formatNumber(estimate.lower)}, ${estimate.upper === null ? 'open' : formatNumber(estimate.upper)}]`);
+    }
+    lines.push(`    ${model.label}: ${parts.join('; ')}`);
+  }
+  for (const model of fit.models) {
+    if (model.converged && model.notCompared) lines.push(`  ${model.label}: ${model.notCompared}`);
+  }
+  const best = fit.models.find((model) => model.id === fit.best);
+  lines.push(best ? `  Best supported: ${best.label} (Akaike weight ${best.weight?.toFixed(3)}).` : '  No model could be compared.');
+  return lines.join('\n');
+}
