@@ -1,0 +1,38 @@
+import type { Command } from 'commander';
+import { addSampleOptions } from './shared.js';
+
+/**
+ * Define `stratotrend fit`. The action imports the fitting code only when
+ * the command runs, so defining commands stays cheap.
+ */
+export function defineFitCommand(program: Command): void {
+  addSampleOptions(
+    program
+      .command('fit')
+      .description('fit every model to every lineage (section × trait) of a samples CSV and rank them by AICc')
+      .argument('<file>', 'samples CSV (summary form: n, mean, sd or var per horizon; specimen form: value per specimen); "-" reads stdin'),
+  )
+    .option('--json', 'print one JSON document to stdout instead of the table')
+    .option('--out <folder>', 'write models.csv and fit.json into this folder (created if needed)')
+    .option('--models <set>', 'model set: "classic" (the five models) or a comma-separated list of model ids', 'classic')
+    .option('--no-intervals', 'skip the profile-likelihood intervals (faster)')
+    .option('--quiet', 'print nothing but errors and warnings')
+    .addHelpText('after', modelHelp())
+    .action(async (file: string, options) => {
+      const { fitCommand } = await import('../fit-command.js');
+      fitCommand(file, options);
+    });
+}
+
+function modelHelp(): string {
+  return `
+Models (ids as in --models and the JSON):
+  strict-stasis     no change: horizon means differ from stasis_mean by sampling error only (K = 1)
+  stasis            independent fluctuation about stasis_mean with stasis_variance (K = 2)
+  random-walk       unbiased random walk from ancestral_mean with step_variance per time unit (K = 2)
+  directional-walk  random walk with drift per time unit (K = 3)
+  ou                Ornstein–Uhlenbeck approach from ancestral_mean to optimum at rate alpha (K = 4)
+
+Input columns (names case-insensitive): section, trait (optional); one of age (before present,
+older = larger), time (elapsed); n, mean, and sd or var (summary form) or value (specimen form).`;
+}
