@@ -1,0 +1,158 @@
+import { availableParallelism } from 'node:os';
+import { existsSync } from 'node:fs';
+import { fileURLToPath, pathToFileURL } from 'node:url';
+import { Worker } from 'node:worker_threads';
+import type { WorkerReply, WorkerRequest } from './worker.js';
+
+/** Options of {@link runTasks}. */
+export interface PoolOptions {
+  /**
+   * Number of threads. 1 runs every task inline in the calling thread (no
+   * worker is started); the default is the machine's available parallelism.
+   * Never more workers are started than there are chunks of tasks.
+   */
+  threads?: number;
+  /**
+   * Tasks sent to a worker per message (default: about eight chunks per
+   * thread, so a slow task cannot leave the other threads idle for long).
+   */
+  chunkSize?: number;
+  /** Called after each finished chunk with the number of tasks done so far. */
+  onProgress?: (done: number, total: number) => void;
+}
+
+/** A task that threw: carries the task's index and the original error's name, message and stack. */
+export class TaskError extends Error {
+  readonly taskIndex: number;
+  readonly originalName: string;
+  constructor(taskIndex: number, name: string, message: string, stack: string | undefined) {
+    super(message);
+    this.name = 'TaskError';
+    this.taskIndex = taskIndex;
+    this.originalName = name;
+    if (stack) this.stack = stack;
+  }
+}
+
+/**
+ * Where a module can be loaded from by a worker thread. A `.ts` file under
+ * the project (as when running under vitest) maps to its compiled twin in
+ * `dist/` (`npm run build`); anything else is used as given.
+ */
+export function compiledModule(module: string | URL): string {
+  const url = module instanceof URL ? module : module.startsWith('file:') ? new URL(module) : pathToFileURL(module);
+  const path = fileURLToPath(url);
+  if (!path.endsWith('.ts')) return url.href;
+  const root = fileURLToPath(new URL('../../', import.meta.url));
+  const relative = path.startsWith(root) ? path.slice(root.length) : null;
+  if (relative === null || relative.startsWith('dist/')) return url.href;
+  const twin = new URL(`dist/${relative.slice(0, -3)}.js`, pathToFileURL(root)).href;
+  if (!existsSync(fileURLToPath(twin))) throw new Error(`${path} has no compiled twin ${fileURLToPath(twin)}; run "npm run build" first`);
+  return twin;
+}
+
+/** The worker script, compiled (this file may itself be running from source under vitest). */
+function workerScript(): URL {
+  return new URL(compiledModule(new URL(import.meta.url.endsWith('.ts') ? './worker.ts' : './worker.js', import.meta.url)));
+}
+
+type Task = unknown;
+
+/**
+ * Run `exportName` of `module` once per task and return the results in task
+ * order. Tasks and results must be plain data (structured-clone-able:
+ * numbers, strings, arrays, typed arrays, plain objects); the function may be
+ * synchronous or return a promise. With `threads: 1` everything runs inline
+ * in the calling thread, which gives exactly the same results (useful for
+ * small inputs, where starting workers costs more than it saves).
+ *
+ * A task that throws rejects the whole run with a {@link TaskError} naming
+ * the task index; the other workers are stopped.
+ *
+ * @example
+ * const squares = await runTasks<number, number>(new URL('./square.js', import.meta.url), 'square', [1, 2, 3], { threads: 2 });
+ * // squares = [1, 4, 9]
+ */
+export async function runTasks<T = Task, R = unknown>(
+  module: string | URL,
+  exportName: string,
+  tasks: readonly T[],
+  options: PoolOptions = {},
+): Promise<R[]> {
+  const total = tasks.length;
+  const threads = Math.max(1, Math.floor(options.threads ?? availableParallelism()));
+  const results: R[] = new Array(total);
+  if (total === 0) return results;
+  if (threads === 1) return runInline(module, exportName, tasks, options, results);
+  const chunkSize = Math.max(1, Math.floor(options.chunkSize ?? Math.ceil(total / (threads * 8))));
+  const chunkCount = Math.ceil(total / chunkSize);
+  const workerCount = Math.min(threads, chunkCount);
+  const moduleHref = compiledModule(module);
+  const script = workerScript();
+  let nextChunk = 0;
+  let done = 0;
+  const workers: Worker[] = [];
+  try {
+    await new Promise<void>((resolve, reject) => {
+      let finished = 0;
+      let failed = false;
+      const fail = (error: Error): void => {
+        if (failed) return;
+        failed = true;
+        reject(error);
+      };
+      const sendNext = (worker: Worker): void => {
+        if (nextChunk >= chunkCount) {
+          finished += 1;
+          if (finished === workerCount) resolve();
+          return;
+        }
+        const start = nextChunk * chunkSize;
+        nextChunk += 1;
+        const request: WorkerRequest = { start, tasks: tasks.slice(start, start + chunkSize) };
+        worker.postMessage(request);
+      };
+      for (let w = 0; w < workerCount; w++) {
+        const worker = new Worker(script, { workerData: { module: moduleHref, exportName } });
+        workers.push(worker);
+        worker.on('message', (reply: WorkerReply) => {
+          if (failed) return;
+          if (reply.kind === 'error') {
+            fail(new TaskError(reply.index, reply.name, reply.message, reply.stack));
+            return;
+          }
+          for (let j = 0; j < reply.results.length; j++) results[reply.start + j] = reply.results[j] as R;
+          done += reply.results.length;
+          options.onProgress?.(done, total);
+          sendNext(worker);
+        });
+        worker.on('error', (error) => fail(error));
+        worker.on('exit', (code) => {
+          if (code !== 0 && !failed && done < total) fail(new Error(`worker thread stopped with exit code ${code}`));
+        });
+        sendNext(worker);
+      }
+    });
+  } finally {
+    await Promise.all(workers.map((worker) => worker.terminate()));
+  }
+  return results;
+}
+
+async function runInline<T, R>(module: string | URL, exportName: string, tasks: readonly T[], options: PoolOptions, results: R[]): Promise<R[]> {
+  const href = module instanceof URL ? module.href : module.startsWith('file:') ? module : pathToFileURL(module).href;
+  const loaded = (await import(href)) as Record<string, unknown>;
+  const run = loaded[exportName];
+  if (typeof run !== 'function') throw new Error(`${href} does not export a function named "${exportName}"`);
+  const step = Math.max(1, Math.ceil(tasks.length / 100));
+  for (let index = 0; index < tasks.length; index++) {
+    try {
+      results[index] = (await run(tasks[index])) as R;
+    } catch (error) {
+      const cause = error as Error;
+      throw new TaskError(index, cause?.name ?? 'Error', cause?.message ?? String(error), cause?.stack);
+    }
+    if ((index + 1) % step === 0 || index + 1 === tasks.length) options.onProgress?.(index + 1, tasks.length);
+  }
+  return results;
+}
