@@ -27,7 +27,7 @@ function finiteOrWorst(value: number): number {
  * ch. 5. Prentice-Hall.
  *
  * @example
- * brentMaximize((x) => -(x - 2) ** 2, 0, 5).at; // 2 (to about 1e-10)
+ * brentMaximize((x) => -((x - 2) ** 2), 0, 5).at; // 2 (to about 1e-10)
  */
 export function brentMaximize(f: (x: number) => number, lower: number, upper: number, tolerance = 1e-10, maxIterations = 200): Maximum {
   let a = lower;
