@@ -2,21 +2,28 @@ import type { StateSpace } from './state-space.js';
 
 /**
  * Sufficient statistics of one filter pass over the data and every design
- * column: the whitened (standardised-innovation) data w = L^-1 y and design
- * W = L^-1 X enter only through their cross-products, and ln det V is the sum
- * of the log innovation variances (L is the Cholesky factor of V = C + E).
+ * column. The whitened (standardised-innovation) data w = L^-1 y and design
+ * W = L^-1 X enter GLS only through the QR factor of [W w], accumulated row
+ * by row with Givens rotations: W = Q R, z = Q'w, residual = ||w - W beta_gls||^2.
+ * Unlike the cross-products W'W, this never squares the condition number,
+ * so a horizon with a tiny sampling variance (a huge whitened row) costs no
+ * precision. ln det V is the sum of the log innovation variances (L is the
+ * Cholesky factor of V = C + E).
+ *
+ * Golub, G. H. & Van Loan, C. F. (2013). Matrix Computations, 4th ed.,
+ * section 5.1.8 (Givens rotations) and 5.3 (least squares by QR).
  */
 export interface WhitenedSums {
   readonly size: number;
   readonly width: number;
   /** sum_i ln F_i = ln det V. */
   sumLogVariance: number;
-  /** W'W, row-major width × width. */
-  readonly designCross: Float64Array;
-  /** W'w. */
-  readonly designData: Float64Array;
-  /** w'w. */
-  dataCross: number;
+  /** R, upper triangular, row-major width × width (entries below the diagonal are 0). */
+  readonly triangle: Float64Array;
+  /** z = Q'w (first `width` components). */
+  readonly projected: Float64Array;
+  /** ||w||^2 - ||z||^2 accumulated without cancellation: the GLS residual sum of squares. */
+  residual: number;
   /** True when some innovation variance was 0 (V singular): the density does not exist. */
   singular: boolean;
 }
@@ -27,19 +34,50 @@ export function allocateSums(size: number, width: number): WhitenedSums {
     size,
     width,
     sumLogVariance: 0,
-    designCross: new Float64Array(width * width),
-    designData: new Float64Array(width),
-    dataCross: 0,
+    triangle: new Float64Array(width * width),
+    projected: new Float64Array(width),
+    residual: 0,
     singular: false,
   };
+}
+
+/**
+ * Fold one whitened row [row[0..width-1] | row[width]] into the QR factor by
+ * Givens rotations; `row` is overwritten.
+ */
+export function foldRow(sums: WhitenedSums, row: Float64Array, offset: number): void {
+  const width = sums.width;
+  const triangle = sums.triangle;
+  const projected = sums.projected;
+  for (let k = 0; k < width; k++) {
+    const b = row[offset + k];
+    if (b === 0) continue;
+    const a = triangle[k * width + k];
+    const radius = Math.sqrt(a * a + b * b);
+    const cosine = a / radius;
+    const sine = b / radius;
+    triangle[k * width + k] = radius;
+    for (let l = k + 1; l < width; l++) {
+      const upper = triangle[k * width + l];
+      const lower = row[offset + l];
+      triangle[k * width + l] = cosine * upper + sine * lower;
+      row[offset + l] = cosine * lower - sine * upper;
+    }
+    const upperData = projected[k];
+    const lowerData = row[offset + width];
+    projected[k] = cosine * upperData + sine * lowerData;
+    row[offset + width] = cosine * lowerData - sine * upperData;
+  }
+  const left = row[offset + width];
+  sums.residual += left * left;
 }
 
 /**
  * Mean-free Kalman filter over the data and every column of the design at
  * once (the augmented filter of de Jong 1991): all columns share the
  * innovation variances and gains, so one O(N p^2) pass yields ln det V and
- * the cross-products of the whitened data and design, from which the exact
- * GLS estimate and profile likelihood follow. No allocation in the loop:
+ * the QR factor of the whitened design and data, from which the exact GLS
+ * estimate and profile likelihood follow. No allocation in the loop:
  * `work` must hold at least {@link workSize}(width) numbers.
  *
  * de Jong, P. (1991). The diffuse Kalman filter. Annals of Statistics 19:1073-1083.
@@ -51,14 +89,14 @@ export function allocateSums(size: number, width: number): WhitenedSums {
  */
 export function whiten(space: StateSpace, data: Float64Array, sums: WhitenedSums, work: Float64Array): WhitenedSums {
   const { size, width, transition, processVariance, observationVariance, design } = space;
-  const designCross = sums.designCross;
-  const designData = sums.designData;
-  designCross.fill(0);
-  designData.fill(0);
+  sums.triangle.fill(0);
+  sums.projected.fill(0);
+  sums.residual = 0;
   let sumLogVariance = 0;
-  let dataCross = 0;
   let singular = false;
-  // work[0] is the filtered latent deviation of the data; work[1 + j] that of column j.
+  // work[0] is the filtered latent deviation of the data, work[1 + j] that of
+  // column j; work[width + 1 ..] holds this row's whitened values for foldRow.
+  const rowOffset = width + 1;
   work.fill(0, 0, width + 1);
   let filteredVariance = 0;
   for (let i = 0; i < size; i++) {
@@ -77,32 +115,23 @@ export function whiten(space: StateSpace, data: Float64Array, sums: WhitenedSums
     const predictedData = phi * work[0];
     const dataInnovation = data[i] - predictedData;
     work[0] = predictedData + gain * dataInnovation;
-    const whitenedData = dataInnovation * scale;
-    dataCross += whitenedData * whitenedData;
+    work[rowOffset + width] = dataInnovation * scale;
     const row = i * width;
     for (let j = 0; j < width; j++) {
       const predicted = phi * work[1 + j];
       const innovation = design[row + j] - predicted;
       work[1 + j] = predicted + gain * innovation;
-      const whitened = innovation * scale;
-      designData[j] += whitened * whitenedData;
-      // Keep this row's whitened column values for the cross-products below.
-      work[width + 1 + j] = whitened;
+      work[rowOffset + j] = innovation * scale;
     }
-    for (let j = 0; j < width; j++) {
-      const wj = work[width + 1 + j];
-      for (let k = 0; k <= j; k++) designCross[j * width + k] += wj * work[width + 1 + k];
-    }
-    filteredVariance = predictedVariance * observationVariance[i] / innovationVariance;
+    foldRow(sums, work, rowOffset);
+    filteredVariance = (predictedVariance * observationVariance[i]) / innovationVariance;
   }
-  for (let j = 0; j < width; j++) for (let k = j + 1; k < width; k++) designCross[j * width + k] = designCross[k * width + j];
   sums.sumLogVariance = sumLogVariance;
-  sums.dataCross = dataCross;
   sums.singular = singular;
   return sums;
 }
 
 /** Scratch size {@link whiten} needs for a given design width. */
 export function workSize(width: number): number {
-  return 2 * width + 1;
+  return 2 * width + 2;
 }

@@ -1,0 +1,74 @@
+import { describe, expect, it } from 'vitest';
+import { fitModel } from '../../src/fit/fit-model.js';
+import { lineageFromArrays } from '../../src/lineage.js';
+import { directionalWalk } from '../../src/models/directional-walk.js';
+import { randomWalk } from '../../src/models/random-walk.js';
+import { stasis } from '../../src/models/stasis.js';
+import { strictStasis } from '../../src/models/strict-stasis.js';
+import { createRandom } from '../../src/simulate/random.js';
+
+const random = createRandom(2026);
+const time = [0, 0.4, 1.0, 1.3, 2.2, 2.5, 3.9, 4.1, 5.6, 6.0, 7.4, 8.0];
+const mean = time.map((t) => 3 + 0.5 * t + 0.3 * random.normal());
+
+describe('closed-form maximum-likelihood estimates', () => {
+  it('stasis with zero sampling error: stasis_mean = sample mean, stasis_variance = mean squared deviation (divisor N) — closed form of the normal MLE', () => {
+    const lineage = lineageFromArrays({ time, mean, samplingVariance: time.map(() => 0) });
+    const fit = fitModel(stasis, lineage);
+    const average = mean.reduce((sum, value) => sum + value, 0) / mean.length;
+    const variance = mean.reduce((sum, value) => sum + (value - average) ** 2, 0) / mean.length;
+    expect(fit.parameters.stasis_mean.estimate).toBeCloseTo(average, 10);
+    expect(Math.abs((fit.parameters.stasis_variance.estimate as number) / variance - 1)).toBeLessThan(1e-6);
+    const closedLogLik = -0.5 * mean.length * (Math.log(2 * Math.PI * variance) + 1);
+    expect(fit.logLik).toBeCloseTo(closedLogLik, 9);
+  });
+
+  it('strict stasis: stasis_mean is the inverse-variance weighted mean (closed form of GLS)', () => {
+    const samplingVariance = time.map((_, i) => 0.01 + 0.02 * (i % 4));
+    const lineage = lineageFromArrays({ time, mean, samplingVariance });
+    const fit = fitModel(strictStasis, lineage);
+    const weights = samplingVariance.map((value) => 1 / value);
+    const weighted = mean.reduce((sum, value, i) => sum + weights[i] * value, 0) / weights.reduce((sum, value) => sum + value, 0);
+    expect(fit.parameters.stasis_mean.estimate).toBeCloseTo(weighted, 10);
+    // Interval: weighted mean ± 1.959964 / sqrt(sum of weights) (the profile is exactly quadratic).
+    const half = Math.sqrt(3.841458820694124) / Math.sqrt(weights.reduce((sum, value) => sum + value, 0));
+    expect(fit.parameters.stasis_mean.lower).toBeCloseTo(weighted - half, 8);
+    expect(fit.parameters.stasis_mean.upper).toBeCloseTo(weighted + half, 8);
+  });
+
+  it('directional walk as sampling error vanishes (e = 1e-12): drift → (x_m - x_0)/t_m, step variance → mean of (Δx - drift τ)²/τ (closed form of the increments MLE)', () => {
+    const lineage = lineageFromArrays({ time, mean, samplingVariance: time.map(() => 1e-12) });
+    const fit = fitModel(directionalWalk, lineage);
+    const m = time.length - 1;
+    const drift = (mean[m] - mean[0]) / time[m];
+    let sum = 0;
+    for (let i = 1; i <= m; i++) {
+      const tau = time[i] - time[i - 1];
+      sum += (mean[i] - mean[i - 1] - drift * tau) ** 2 / tau;
+    }
+    expect(fit.parameters.drift.estimate).toBeCloseTo(drift, 6);
+    expect(Math.abs((fit.parameters.step_variance.estimate as number) / (sum / m) - 1)).toBeLessThan(1e-5);
+    expect(fit.parameters.ancestral_mean.estimate).toBeCloseTo(mean[0], 5);
+  });
+
+  it('with sampling variance exactly 0 at the first horizon the walks are reported as not fitted (singular covariance), never as a number', () => {
+    const lineage = lineageFromArrays({ time, mean, samplingVariance: time.map(() => 0) });
+    for (const model of [randomWalk, directionalWalk]) {
+      const fit = fitModel(model, lineage);
+      expect(fit.converged).toBe(false);
+      expect(fit.message).toMatch(/singular/);
+    }
+  });
+
+  it('a step variance whose maximum is at the bound 0 is reported as exactly 0 and flagged', () => {
+    // A perfectly straight trend with large sampling error: no room for random steps.
+    const straight = time.map((t) => 1 + 0.2 * t);
+    const lineage = lineageFromArrays({ time, mean: straight, samplingVariance: time.map(() => 0.5) });
+    const fit = fitModel(directionalWalk, lineage);
+    expect(fit.parameters.step_variance.estimate).toBe(0);
+    expect(fit.parameters.step_variance.atBound).toBe('zero');
+    expect(fit.parameters.step_variance.lower).toBe(0);
+    expect(fit.parameters.step_variance.lowerAtBound).toBe(true);
+    expect(fit.flags.join(' ')).toMatch(/step_variance at its bound 0/);
+  });
+});
