@@ -1,6 +1,7 @@
 import type { Lineage } from '../lineage.js';
 import type { EvolutionModel } from '../models/model.js';
 import { LikelihoodEvaluator } from './evaluator.js';
+import { replaceIntervals, type IntervalMethod } from './intervals-method.js';
 import { chiSquare1At95 } from './model-choice.js';
 import { findRoot } from './optimise.js';
 import { maximiseProcess, type AxisPosition } from './search.js';
@@ -53,6 +54,11 @@ export interface FitOptions {
   intervals?: boolean;
   /** Grid points per process axis of the search (default 24). */
   gridPoints?: number;
+  /** How intervals are made (default 'profile'; see `intervals.ts`). */
+  intervalMethod?: IntervalMethod;
+  /** Replicates and seed of the 'bootstrap' interval method (default 199 and 1). */
+  bootstrapReplicates?: number;
+  bootstrapSeed?: number;
 }
 
 /** Half the 95% chi-square(1) quantile: the profile drop that defines a 95% interval. */
@@ -135,7 +141,15 @@ export function fitModel(model: EvolutionModel, lineage: Lineage, options: FitOp
       : locationInterval(evaluator, model, lineage, spec.name, estimate, maximum.process, details, cutoff, options.gridPoints);
     parameters[spec.name] = { estimate, atBound, ...interval };
   }
+  const intervalMethod = wantIntervals ? (options.intervalMethod ?? 'profile') : 'none';
+  if (intervalMethod !== 'profile' && intervalMethod !== 'none') {
+    replaceIntervals(intervalMethod, evaluator, estimates, parameters, processInterval, options);
+  }
   const derived: Record<string, ParameterEstimate> = {};
+  if (parameters.alpha && parameters.alpha.estimate === 0) {
+    // The alpha -> 0 limit: ou is the directional walk whose drift is (optimum - a) alpha.
+    derived.limit_drift = { estimate: details.coefficients[1], lower: null, upper: null, atBound: 'alpha-zero', lowerAtBound: false, upperAtBound: false };
+  }
   if (parameters.alpha) {
     const alpha = parameters.alpha;
     const halfLife = (value: number | null): number | null => (value === null ? null : value > 0 ? Math.LN2 / value : null);
@@ -161,14 +175,14 @@ export function fitModel(model: EvolutionModel, lineage: Lineage, options: FitOp
     process: maximum.process,
     estimates,
     flags,
-    intervalMethod: 'profile',
+    intervalMethod,
     evaluations: evaluator.evaluations,
   };
 }
 
 function positionName(model: EvolutionModel, axisIndex: number, position: AxisPosition): string | null {
   const axis = model.process[axisIndex];
-  if (position === 'zero') return 'zero';
+  if (position === 'zero') return axis.limitNames?.[0] ?? 'zero';
   if (position === 'range-lower') return axis.limitNames?.[0] ?? 'zero';
   if (position === 'range-upper') return axis.limitNames?.[1] ?? 'search-upper-end';
   return null;
@@ -182,7 +196,7 @@ type IntervalEnds = Pick<ParameterEstimate, 'lower' | 'upper' | 'lowerAtBound' |
  * profile crosses the cut-off. The bound 0 (or the lower limit) counts as
  * reached when the profile there is still above the cut-off.
  */
-function processInterval(
+export function processInterval(
   evaluate: (process: number[]) => number,
   model: EvolutionModel,
   lineage: Lineage,

@@ -41,7 +41,10 @@ export const ornsteinUhlenbeck: EvolutionModel = {
     { name: 'step_variance', label: 'step variance', role: 'variance', unit: { trait: 2, time: -1 }, lowerBound: 0 },
   ],
   process: [
-    { name: 'alpha', allowZero: false, range: (lineage) => alphaRange(lineage), limitNames: ['alpha-zero', 'alpha-infinite'] },
+    // alpha = 0 itself is evaluated exactly (the basis and process variance are
+    // continuous there), so a supremum at the random-walk / directional-walk
+    // limit is reported as that supremum, not as a value near it.
+    { name: 'alpha', allowZero: true, range: (lineage) => alphaRange(lineage), limitNames: ['alpha-zero', 'alpha-infinite'] },
     {
       name: 'step_variance',
       allowZero: true,
@@ -72,9 +75,10 @@ export const ornsteinUhlenbeck: EvolutionModel = {
       }
     }
   },
+  // At alpha = 0 the optimum is not finite (it ran away with (optimum - a) alpha -> drift); it is reported as null.
   toParameters: (coefficients, process) => ({
     ancestral_mean: coefficients[0],
-    optimum: coefficients[1] / process[0],
+    optimum: process[0] === 0 ? Number.NaN : coefficients[1] / process[0],
     alpha: process[0],
     step_variance: process[1],
   }),
