@@ -1,11 +1,17 @@
-import { readFileSync } from 'node:fs';
+import { existsSync, readFileSync } from 'node:fs';
+import { dirname, join } from 'node:path';
+import { fileURLToPath } from 'node:url';
 
-/** The tool's version, from package.json (dist/src/cli → project root). */
+/** The tool's version, from the nearest package.json named "stratotrend" above this file. */
 export function toolVersion(): string {
-  try {
-    const text = readFileSync(new URL('../../../package.json', import.meta.url), 'utf8');
-    return (JSON.parse(text) as { version: string }).version;
-  } catch {
-    return 'unknown';
+  let folder = dirname(fileURLToPath(import.meta.url));
+  for (let depth = 0; depth < 6; depth++) {
+    const candidate = join(folder, 'package.json');
+    if (existsSync(candidate)) {
+      const manifest = JSON.parse(readFileSync(candidate, 'utf8')) as { name?: string; version?: string };
+      if (manifest.name === 'stratotrend' && manifest.version) return manifest.version;
+    }
+    folder = dirname(folder);
   }
+  return 'unknown';
 }
