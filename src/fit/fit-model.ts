@@ -1,6 +1,7 @@
 import type { Lineage } from '../lineage.js';
 import type { EvolutionModel } from '../models/model.js';
 import { LikelihoodEvaluator } from './evaluator.js';
+import { fitOverConfigurations, type SearchProgress } from './fit-configurations.js';
 import { replaceIntervals, type IntervalMethod } from './intervals-method.js';
 import { chiSquare1At95 } from './model-choice.js';
 import { findRoot } from './optimise.js';
@@ -59,6 +60,10 @@ export interface FitOptions {
   /** Replicates and seed of the 'bootstrap' interval method (default 199 and 1). */
   bootstrapReplicates?: number;
   bootstrapSeed?: number;
+  /** Fewest horizons per segment of a shift model (default `defaultMinimumSegment`, 5). */
+  minimumSegment?: number;
+  /** Called during the configuration search of shift models (screen, then refine). */
+  onProgress?: (progress: SearchProgress) => void;
 }
 
 /** Half the 95% chi-square(1) quantile: the profile drop that defines a 95% interval. */
@@ -95,6 +100,10 @@ export function fitModel(model: EvolutionModel, lineage: Lineage, options: FitOp
   if (size < model.minimumHorizons) {
     return unfitted(model, lineage, `needs at least ${model.minimumHorizons} horizons, has ${size}`);
   }
+  const unavailable = model.unavailable?.(lineage);
+  if (unavailable) return unfitted(model, lineage, unavailable);
+  // Models with discrete configurations (shift positions): exhaustive loop over them (fit-configurations.ts).
+  if (model.configurations) return fitOverConfigurations(model, lineage, options, fitModel);
   const evaluator = new LikelihoodEvaluator(model, lineage);
   const evaluate = (process: number[]): number => evaluator.profile(process);
   const maximum = maximiseProcess(evaluate, model.process, lineage, { points: options.gridPoints });

@@ -1,0 +1,286 @@
+import { profileOut, type ProfileResult } from '../engine/gls.js';
+import { foldRow, type WhitenedSums } from '../engine/kalman-filter.js';
+import type { Lineage } from '../lineage.js';
+import type { EvolutionModel } from '../models/model.js';
+import type { LikelihoodEvaluator } from './evaluator.js';
+import { findRoot } from './optimise.js';
+import { maximiseProcess } from './search.js';
+
+/**
+ * How the 95% intervals of a fit were made:
+ * - `profile`: plain profile likelihood, cut-off logL_max - chi2(1; 0.95)/2
+ *   (asymptotic);
+ * - `adjusted`: restricted (REML-type) profile: the location parameters not
+ *   being profiled are integrated out rather than maximised over, which
+ *   adds -0.5 ln det(X_r' V^-1 X_r) to the profile (X_r the design without the
+ *   column of the parameter held fixed; all columns for a process parameter);
+ * - `bootstrap`: plain profile, with the cut-off taken from the 95% quantile
+ *   of the likelihood-ratio statistic over a parametric bootstrap of the
+ *   fitted model.
+ */
+export type IntervalMethod = 'profile' | 'adjusted' | 'bootstrap';
+
+/** Every interval method, in the order tables list them. */
+export const intervalMethods: readonly IntervalMethod[] = ['profile', 'adjusted', 'bootstrap'];
+
+/** The method `fit` uses when `--intervals` is not given (see the README for its measured coverage). */
+export const defaultIntervalMethod: IntervalMethod = 'adjusted';
+
+/** Label of each method for tables and JSON. */
+export const intervalMethodLabels: Record<IntervalMethod, string> = {
+  profile: 'profile likelihood (asymptotic chi-square cut-off)',
+  adjusted: 'restricted (REML-type) adjusted profile likelihood',
+  bootstrap: 'profile likelihood with a parametric-bootstrap cut-off',
+};
+
+/** Parse a method name, or return null. */
+export function parseIntervalMethod(text: string): IntervalMethod | null {
+  return (intervalMethods as readonly string[]).includes(text) ? (text as IntervalMethod) : null;
+}
+
+/** Interval ends of one parameter. */
+export interface IntervalEnds {
+  readonly lower: number | null;
+  readonly upper: number | null;
+  readonly lowerAtBound: boolean;
+  readonly upperAtBound: boolean;
+}
+
+/**
+ * Restricted (REML-type) log-likelihood of the process parameters: the
+ * profile log-likelihood minus 0.5 ln det(X' V^-1 X), i.e. the location
+ * parameters integrated out under a flat prior instead of maximised over
+ * (constants that do not depend on the parameters are dropped, which leaves
+ * every likelihood-ratio unchanged).
+ *
+ * Patterson, H. D. & Thompson, R. (1971). Recovery of inter-block
+ * information when block sizes are unequal. Biometrika 58:545-554.
+ * Harville, D. A. (1974). Bayesian inference for variance components using
+ * only error contrasts. Biometrika 61:383-385.
+ */
+export function restrictedLogLik(sums: WhitenedSums): number {
+  const result = profileOut(sums);
+  if (!Number.isFinite(result.logLik)) return Number.NEGATIVE_INFINITY;
+  return result.logLik - 0.5 * result.logDetInformation;
+}
+
+/**
+ * Profile log-likelihood with design coefficient `index` held at `value`,
+ * the other coefficients profiled by GLS, and (when `adjusted`) the
+ * restricted adjustment -0.5 ln det(X_r' V^-1 X_r) for those other
+ * coefficients (Cox & Reid 1987, J. R. Stat. Soc. B 49:1-39, for adjusting
+ * a profile likelihood for nuisance parameters; for linear location
+ * parameters the adjustment is exactly the restricted likelihood of
+ * Patterson & Thompson 1971).
+ */
+export function fixedCoefficientLogLik(sums: WhitenedSums, index: number, value: number, adjusted: boolean): number {
+  const result = reducedProfile(sums, index, value);
+  if (!adjusted || !Number.isFinite(result.logLik)) return result.logLik;
+  return result.logLik - 0.5 * result.logDetInformation;
+}
+
+/**
+ * GLS with design coefficient `index` held at `value`: the QR factor of the
+ * reduced problem is rebuilt from the full factor R (its rows, column
+ * `index` moved into the data), so its `logDetInformation` is
+ * ln det(X_r' V^-1 X_r) without forming cross-products.
+ */
+export function reducedProfile(sums: WhitenedSums, index: number, value: number): ProfileResult {
+  const width = sums.width;
+  const reducedWidth = width - 1;
+  const reduced: WhitenedSums = {
+    size: sums.size,
+    width: reducedWidth,
+    sumLogVariance: sums.sumLogVariance,
+    triangle: new Float64Array(reducedWidth * reducedWidth),
+    projected: new Float64Array(reducedWidth),
+    residual: sums.residual,
+    singular: sums.singular,
+  };
+  if (sums.singular) return profileOut(reduced);
+  const row = new Float64Array(reducedWidth + 1);
+  for (let i = 0; i < width; i++) {
+    let column = 0;
+    for (let k = 0; k < width; k++) {
+      if (k === index) continue;
+      row[column] = k >= i ? sums.triangle[i * width + k] : 0;
+      column += 1;
+    }
+    row[reducedWidth] = sums.projected[i] - value * (index >= i ? sums.triangle[i * width + index] : 0);
+    foldRow(reduced, row, 0);
+  }
+  return profileOut(reduced);
+}
+
+/**
+ * The profile log-likelihood of one parameter as a function of its value,
+ * for one model and one lineage, by the plain or the adjusted method, with
+ * its maximum and maximiser. The building block of every interval method
+ * and of the bootstrap cut-offs.
+ */
+export interface ParameterProfile {
+  /** Profile (or adjusted profile) at a trial value of the parameter. */
+  at(value: number): number;
+  /** Its maximum over the parameter. */
+  readonly maximum: number;
+  /** The value of the parameter at that maximum. */
+  readonly maximiser: number;
+  /** The process values at that maximum. */
+  readonly process: readonly number[];
+}
+
+/**
+ * Build the profile of parameter `name`. For a process parameter the others
+ * are maximised by the nested search (12 grid points per axis); for a
+ * location parameter the other location parameters are profiled by GLS (or
+ * integrated out when `adjusted`) and the process parameters maximised.
+ */
+export function parameterProfile(
+  evaluator: LikelihoodEvaluator,
+  name: string,
+  adjusted: boolean,
+  points = 12,
+): ParameterProfile {
+  const model = evaluator.model;
+  const lineage = evaluator.lineage;
+  const at = profileFunction(evaluator, name, adjusted, points);
+  const axisIndex = model.process.findIndex((axis) => axis.name === name);
+  if (axisIndex >= 0) {
+    const evaluate = (process: number[]): number => {
+      const sums = evaluator.whiten(process);
+      return adjusted ? restrictedLogLik(sums) : profileOut(sums).logLik;
+    };
+    const best = maximiseProcess(evaluate, model.process, lineage, { points: Math.max(points, 24) });
+    return { at, maximum: best.logLik, maximiser: best.process[axisIndex], process: best.process };
+  }
+  // Location parameter: at given process values the maximum over the parameter is at its GLS value,
+  // where the restricted adjustment is the log-determinant without its column.
+  const whole = (process: number[]): number => {
+    const sums = evaluator.whiten(process);
+    const result = profileOut(sums);
+    if (!adjusted || !Number.isFinite(result.logLik)) return result.logLik;
+    const { index } = model.fixLocation(name, 0, process, lineage);
+    const logDet = reducedProfile(sums, index, 0).logDetInformation;
+    return Number.isFinite(logDet) ? result.logLik - 0.5 * logDet : Number.NEGATIVE_INFINITY;
+  };
+  const best = maximiseProcess(whole, model.process, lineage, { points: Math.max(points, 24) });
+  const estimates = model.toParameters(evaluator.details(best.process).coefficients, best.process, lineage);
+  return { at, maximum: best.logLik, maximiser: estimates[name], process: best.process };
+}
+
+/**
+ * The (plain or adjusted) profile log-likelihood of parameter `name` at a
+ * trial value: the other process parameters maximised by the nested search
+ * (`points` grid points per axis), the other location parameters profiled
+ * by GLS or, when adjusted, integrated out.
+ */
+export function profileFunction(evaluator: LikelihoodEvaluator, name: string, adjusted: boolean, points = 12): (value: number) => number {
+  const model = evaluator.model;
+  const lineage = evaluator.lineage;
+  const axisIndex = model.process.findIndex((axis) => axis.name === name);
+  if (axisIndex >= 0) {
+    const evaluate = (process: number[]): number => {
+      const sums = evaluator.whiten(process);
+      return adjusted ? restrictedLogLik(sums) : profileOut(sums).logLik;
+    };
+    return (value: number): number => {
+      if (model.process.length === 1) return evaluate([value]);
+      return maximiseProcess(evaluate, model.process, lineage, { fixed: new Map([[axisIndex, value]]), points }).logLik;
+    };
+  }
+  return (value: number): number => {
+    const evaluate = (process: number[]): number => {
+      const { index, coefficient } = model.fixLocation(name, value, process, lineage);
+      const constant = model.constantCoefficients(process, lineage);
+      return fixedCoefficientLogLik(evaluator.whiten(process), index, coefficient - evaluator.centre * constant[index], adjusted);
+    };
+    if (model.process.length === 0) return evaluate([]);
+    return maximiseProcess(evaluate, model.process, lineage, { points }).logLik;
+  };
+}
+
+/**
+ * Interval of a location parameter where a profile stays above `cutoff`:
+ * steps out from `start` by doubling multiples of `scale` until the profile
+ * falls below the cut-off, then Brent's root finder. An end that is never
+ * crossed is open (null, `AtBound` true).
+ */
+export function locationEnds(at: (value: number) => number, start: number, scale: number, cutoff: number): IntervalEnds {
+  const gap = (value: number): number => at(value) - cutoff;
+  const end = (direction: 1 | -1): number | null => {
+    let inside = start;
+    let step = scale;
+    for (let attempt = 0; attempt < 60; attempt++) {
+      const outside = start + direction * step;
+      if (gap(outside) < 0) {
+        const root = findRoot(gap, Math.min(inside, outside), Math.max(inside, outside), 1e-12);
+        return Number.isFinite(root) ? root : null;
+      }
+      inside = outside;
+      step *= 2;
+    }
+    return null;
+  };
+  const lower = end(-1);
+  const upper = end(1);
+  return { lower, upper, lowerAtBound: lower === null, upperAtBound: upper === null };
+}
+
+/** A standard-error-like step for a location parameter's interval search. */
+export function locationScale(evaluator: LikelihoodEvaluator, name: string, process: readonly number[], estimate: number): number {
+  const model = evaluator.model;
+  const details = evaluator.details(process);
+  const index = model.fixLocation(name, estimate, process, evaluator.lineage).index;
+  const width = Math.sqrt(details.coefficientCovariance.length);
+  let scale = Math.sqrt(Math.max(0, details.coefficientCovariance[index * width + index]));
+  if (name === 'optimum' && process[0] > 0) scale /= process[0];
+  if (!(scale > 0) || !Number.isFinite(scale)) scale = Math.max(1e-8, Math.abs(estimate) * 1e-3);
+  return scale;
+}
+
+/** Options of the model-agnostic interval builder. */
+export interface IntervalRequest {
+  /** Plain or adjusted profile. */
+  readonly adjusted: boolean;
+  /** Likelihood-ratio cut-off (2 × the allowed drop from the maximum) per parameter name. */
+  readonly ratioCutoff: (name: string) => number;
+}
+
+/**
+ * The model-free part of every interval: for each parameter, the set of
+ * values whose (plain or adjusted) profile lies within ratioCutoff / 2 of
+ * the maximum. Process parameters use `processEnds` (the fitter's own
+ * search for variance and rate ends); location parameters step out by their
+ * GLS standard error.
+ */
+export function intervalsByProfile(
+  evaluator: LikelihoodEvaluator,
+  names: readonly string[],
+  request: IntervalRequest,
+  processEnds: (evaluate: (process: number[]) => number, best: readonly number[], axisIndex: number, cutoff: number) => IntervalEnds,
+): Record<string, IntervalEnds> {
+  const model = evaluator.model;
+  const result: Record<string, IntervalEnds> = {};
+  for (const name of names) {
+    const drop = request.ratioCutoff(name) / 2;
+    const axisIndex = model.process.findIndex((axis) => axis.name === name);
+    if (axisIndex >= 0) {
+      const evaluate = (process: number[]): number => {
+        const sums = evaluator.whiten(process);
+        return request.adjusted ? restrictedLogLik(sums) : profileOut(sums).logLik;
+      };
+      const best = maximiseProcess(evaluate, model.process, evaluator.lineage, { points: 24 });
+      result[name] = processEnds(evaluate, best.process, axisIndex, best.logLik - drop);
+      continue;
+    }
+    const profile = parameterProfile(evaluator, name, request.adjusted);
+    const scale = locationScale(evaluator, name, profile.process, profile.maximiser);
+    result[name] = locationEnds(profile.at, profile.maximiser, scale, profile.maximum - drop);
+  }
+  return result;
+}
+
+/** Does an interval contain a value? An open end (null) contains everything beyond it. */
+export function covers(ends: IntervalEnds, value: number): boolean {
+  return (ends.lower === null || value >= ends.lower) && (ends.upper === null || value <= ends.upper);
+}
