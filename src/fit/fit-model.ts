@@ -108,9 +108,10 @@ export function fitModel(model: EvolutionModel, lineage: Lineage, options: FitOp
   const evaluate = (process: number[]): number => evaluator.profile(process);
   const maximum = maximiseProcess(evaluate, model.process, lineage, { points: options.gridPoints });
   if (!Number.isFinite(maximum.logLik)) {
-    const probe = model.process.map((axis, level) => {
+    // Probe at an interior point to tell a singular covariance from a likelihood that is merely not finite.
+    const probe = model.process.map((axis) => {
       const [lower, upper] = axis.range(lineage, []);
-      return level >= 0 ? Math.sqrt(lower * upper) : 0;
+      return Math.sqrt(lower * upper);
     });
     const singular = evaluator.whiten(probe).singular;
     return unfitted(
