@@ -55,6 +55,12 @@ export interface Lineage {
   readonly lines: readonly number[];
   /** Horizons whose age was extrapolated beyond the age model's ties. */
   readonly extrapolated: readonly boolean[];
+  /**
+   * Age before present of the oldest horizon, so age_i = firstAge - t_i puts
+   * lineages of different sections on one timescale (minus the elapsed time
+   * for "time" input). Absent for lineages made from arrays (taken as 0).
+   */
+  readonly firstAge?: number;
   readonly timeUnit: TimeUnit;
   readonly pooled: boolean;
   readonly logTransformed: boolean;
@@ -169,6 +175,7 @@ export function buildLineages(samples: SampleSet, options: LineageOptions = {}):
       covariate: hasCovariate ? Float64Array.from(placed, (entry) => entry.record.covariate ?? Number.NaN) : null,
       lines: placed.map((entry) => entry.record.line),
       extrapolated: placed.map((entry) => entry.extrapolated),
+      firstAge,
       timeUnit: unit,
       pooled: options.pool === true,
       logTransformed: samples.logTransformed,
