@@ -92,6 +92,108 @@ export interface EvolutionModel {
   meanCovariance(lineage: Lineage, parameters: Record<string, number>): MeanCovariance;
   /** Expected trajectory and its variance about the start, for figures. */
   expectation(parameters: Record<string, number>, time: ArrayLike<number>): Expectation;
+  /**
+   * Why the model cannot be fitted to this lineage at all (e.g. no covariate),
+   * or null. Optional; a model without it is always available. A named set
+   * such as `extended` leaves out models that are unavailable.
+   */
+  unavailable?(lineage: Lineage): string | null;
+  /**
+   * Discrete configurations searched exhaustively (shift positions), for
+   * models with a discrete part. When present, every process vector the
+   * model receives (fillSpace, toParameters, constantCoefficients,
+   * fixLocation) carries the configuration's `shifts` after the searched
+   * process values, and processFrom returns them in the same place; `width`
+   * must not depend on the configuration. See {@link bindConfiguration}.
+   */
+  configurations?(lineage: Lineage, options: ConfigurationOptions): readonly Configuration[];
+  /**
+   * Optional fast screen: an approximation of the maximised logL of each
+   * configuration (same order), used to choose which configurations are
+   * searched in full. Must never rank a configuration far below its true
+   * value; the fitter refines every configuration close to the best score.
+   */
+  screen?(lineage: Lineage, configurations: readonly Configuration[]): Float64Array;
+  /**
+   * Optional: when the likelihood at a configuration is a sum over
+   * independent blocks (block-diagonal covariance, no shared parameters),
+   * each block as a plain model on a sub-lineage, in process-axis order.
+   */
+  blocks?(lineage: Lineage, configuration: Configuration): readonly LikelihoodBlock[];
+}
+
+/** A discrete choice of a model: where each new segment starts. */
+export interface Configuration {
+  /** 0-based index, from the oldest horizon, of the first horizon of each new segment; increasing. */
+  readonly shifts: readonly number[];
+}
+
+/** Options of the configuration search. */
+export interface ConfigurationOptions {
+  /** Fewest horizons in a segment (default {@link defaultMinimumSegment}). */
+  readonly minimumSegment?: number;
+}
+
+/**
+ * Default fewest horizons per segment of a shift model: 5, so that each
+ * segment's own mean and variance (or step variance) rest on several
+ * horizons (our choice; settable with `--min-segment`).
+ */
+export const defaultMinimumSegment = 5;
+
+/** One independent block of a separable likelihood. */
+export interface LikelihoodBlock {
+  /** A model without configurations, fitted to `lineage`. */
+  readonly model: EvolutionModel;
+  /** The block's horizons as a lineage of their own (time restarted at 0). */
+  readonly lineage: Lineage;
+  /** The block model's parameter names mapped to the family model's names. */
+  readonly names: Readonly<Record<string, string>>;
+}
+
+/**
+ * A model with its configuration fixed: a plain model (no configurations)
+ * whose process vectors are the searched values only, the shifts appended
+ * before the family model sees them.
+ *
+ * @example
+ * const fixed = bindConfiguration(punctuatedOne, { shifts: [12] });
+ * fixed.process.length; // 1 (the shared stasis variance)
+ */
+export function bindConfiguration(model: EvolutionModel, configuration: Configuration): EvolutionModel {
+  const searched = model.process.length;
+  const full = (process: ArrayLike<number>): number[] => {
+    const values = Array.from(process).slice(0, searched);
+    return values.concat(configuration.shifts);
+  };
+  return {
+    ...model,
+    configurations: undefined,
+    screen: undefined,
+    blocks: undefined,
+    fillSpace: (lineage, process, space) => model.fillSpace(lineage, full(process), space),
+    toParameters: (coefficients, process, lineage) => model.toParameters(coefficients, full(process), lineage),
+    constantCoefficients: (process, lineage) => model.constantCoefficients(full(process), lineage),
+    fixLocation: (name, value, process, lineage) => model.fixLocation(name, value, full(process), lineage),
+    processFrom: (parameters, lineage) => model.processFrom(parameters, lineage).slice(0, searched),
+  };
+}
+
+/** The horizons [start, end) of a lineage as a lineage of their own, time restarted at 0. */
+export function sliceLineage(lineage: Lineage, start: number, end: number): Lineage {
+  const origin = lineage.time[start];
+  return {
+    ...lineage,
+    time: Float64Array.from(lineage.time.subarray(start, end), (t) => t - origin),
+    position: lineage.position.slice(start, end),
+    mean: lineage.mean.slice(start, end),
+    count: lineage.count.slice(start, end),
+    withinVariance: lineage.withinVariance.slice(start, end),
+    samplingVariance: lineage.samplingVariance.slice(start, end),
+    covariate: lineage.covariate ? lineage.covariate.slice(start, end) : null,
+    lines: lineage.lines.slice(start, end),
+    extrapolated: lineage.extrapolated.slice(start, end),
+  };
 }
 
 /**

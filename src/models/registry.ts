@@ -1,4 +1,5 @@
 import { directionalWalk } from './directional-walk.js';
+import { extensionModels } from './extensions.js';
 import type { EvolutionModel } from './model.js';
 import { ornsteinUhlenbeck } from './ou.js';
 import { randomWalk } from './random-walk.js';
@@ -8,11 +9,19 @@ import { strictStasis } from './strict-stasis.js';
 /** The five models of MODELS.md, in the order tables list them. */
 export const classicModels: readonly EvolutionModel[] = [strictStasis, stasis, randomWalk, directionalWalk, ornsteinUhlenbeck];
 
-const registry = new Map<string, EvolutionModel>(classicModels.map((model) => [model.id, model]));
+/**
+ * The classic five plus punctuated, mode-shift and covariate-tracking models
+ * (issue 5). A command leaves out the models a lineage does not allow
+ * (`EvolutionModel.unavailable`, e.g. no covariate).
+ */
+export const extendedModels: readonly EvolutionModel[] = [...classicModels, ...extensionModels];
+
+const registry = new Map<string, EvolutionModel>(extendedModels.map((model) => [model.id, model]));
 
 /** Named model sets for `--models`. */
 export const modelSets: Record<string, () => readonly EvolutionModel[]> = {
   classic: () => classicModels,
+  extended: () => extendedModels,
 };
 
 /** Register a model (extended models call this from their registry module). */

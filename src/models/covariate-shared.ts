@@ -1,0 +1,27 @@
+import type { Lineage } from '../lineage.js';
+
+/**
+ * Why a lineage's covariate cannot be used, or null: it must be present at
+ * every horizon (a `covariate` column or `--covariate-file`).
+ */
+export function covariateProblem(lineage: Lineage): string | null {
+  const covariate = lineage.covariate;
+  if (!covariate) return 'not fitted: no covariate (give a "covariate" column or --covariate-file)';
+  for (let i = 0; i < covariate.length; i++) {
+    if (!Number.isFinite(covariate[i])) return `not fitted: the covariate is missing at the horizon of input line ${lineage.lines[i]}`;
+  }
+  return null;
+}
+
+/**
+ * True when the covariate takes one value over the whole lineage: the slope
+ * is then not identifiable and the covariate models reduce exactly to their
+ * covariate-free counterparts (the slope column is dropped, slope reported
+ * as not estimable).
+ */
+export function covariateIsConstant(lineage: Lineage): boolean {
+  const covariate = lineage.covariate;
+  if (!covariate) return true;
+  for (let i = 1; i < covariate.length; i++) if (covariate[i] !== covariate[0]) return false;
+  return true;
+}
