@@ -1,5 +1,5 @@
 import { InputError } from './data/errors.js';
-import type { SampleSet, TimeKind } from './data/samples.js';
+import type { HorizonRecord, SampleSet, TimeKind } from './data/samples.js';
 import type { WarningLog } from './data/warnings.js';
 
 /** The unit of elapsed time: a label and, when known, its length in years. */
@@ -90,7 +90,10 @@ export function lineageName(lineage: { section: string; trait: string }): string
  * of first appearance, each sorted by time (older first). Sampling variance of
  * a mean is e_i = v_i / n_i, or v_pooled / n_i with `pool` (MODELS.md).
  *
- * @throws InputError for duplicate times, n = 1 without pooling, too few horizons.
+ * Rows at the same age are merged by {@link mergeSameAge} (reported as a
+ * `duplicate-time` warning).
+ *
+ * @throws InputError for an exact copy of a row, n = 1 without pooling, too few horizons.
  */
 export function buildLineages(samples: SampleSet, options: LineageOptions = {}): Lineage[] {
   const unit = options.timeUnit ?? timeUnit('Myr');
@@ -119,14 +122,7 @@ export function buildLineages(samples: SampleSet, options: LineageOptions = {}):
     });
     // Older first: larger age first (time is stored as negative age above).
     placed.sort((left, right) => right.age - left.age || left.record.line - right.record.line);
-    for (let i = 1; i < placed.length; i++) {
-      if (placed[i].age === placed[i - 1].age) {
-        throw new InputError(
-          `lineage "${name}" has two horizons at the same ${samples.timeKind} ${placed[i].record.position} (lines ${placed[i - 1].record.line} and ${placed[i].record.line}); merge them or correct the ${samples.timeKind}`,
-          { file: samples.file, line: placed[i].record.line, column: samples.timeKind },
-        );
-      }
-    }
+    placed.splice(0, placed.length, ...mergeSameAge(placed, name, samples, options.warnings));
     if (placed.length < minimum) {
       throw new InputError(`lineage "${name}" has ${placed.length} horizon${placed.length === 1 ? '' : 's'}; at least ${minimum} are needed to fit any model`, { file: samples.file, line: placed[0].record.line });
     }
@@ -182,6 +178,71 @@ export function buildLineages(samples: SampleSet, options: LineageOptions = {}):
     });
   }
   return lineages;
+}
+
+/**
+ * Merge horizons of one lineage that share an age (the rule for duplicate
+ * times): the samples are combined as if their specimens had been listed
+ * together, n = sum n_j, mean = sum n_j x_j / n, variance = (sum (n_j - 1) v_j
+ * + sum n_j (x_j - mean)^2) / (n - 1) (the exact pooled sample variance of
+ * the union, common practice), and a `duplicate-time` warning names the
+ * lines. Refused instead: a row that repeats another exactly (a copy) and
+ * merged rows with different covariate values.
+ *
+ * @param placed horizons sorted by age, older first.
+ * @throws InputError for an exact copy or conflicting covariates.
+ */
+export function mergeSameAge<T extends { record: HorizonRecord; age: number; extrapolated: boolean }>(
+  placed: readonly T[],
+  name: string,
+  samples: Pick<SampleSet, 'file' | 'timeKind'>,
+  warnings?: WarningLog,
+): T[] {
+  const merged: T[] = [];
+  let start = 0;
+  while (start < placed.length) {
+    let end = start + 1;
+    while (end < placed.length && placed[end].age === placed[start].age) end++;
+    if (end - start === 1) {
+      merged.push(placed[start]);
+      start = end;
+      continue;
+    }
+    const group = placed.slice(start, end);
+    const first = group[0].record;
+    for (const { record } of group.slice(1)) {
+      if (record.position === first.position && record.n === first.n && record.mean === first.mean && record.variance === first.variance) {
+        throw new InputError(
+          `lineage "${name}": this row repeats line ${first.line} exactly (same ${samples.timeKind}, n, mean and spread), got ${samples.timeKind} "${record.position}"; remove the copy`,
+          { file: samples.file, line: record.line, column: samples.timeKind },
+        );
+      }
+      if (record.covariate !== first.covariate) {
+        throw new InputError(
+          `lineage "${name}": rows at the same ${samples.timeKind} are merged into one horizon but their covariates differ (line ${first.line} has ${first.covariate}), got "${record.covariate}"`,
+          { file: samples.file, line: record.line, column: 'covariate' },
+        );
+      }
+    }
+    let n = 0;
+    let weighted = 0;
+    for (const { record } of group) {
+      n += record.n;
+      weighted += record.n * record.mean;
+    }
+    const mean = weighted / n;
+    let squares = 0;
+    for (const { record } of group) squares += (record.n - 1) * record.variance + record.n * (record.mean - mean) ** 2;
+    const variance = n > 1 ? squares / (n - 1) : 0;
+    const lines = group.map((entry) => entry.record.line);
+    warnings?.add(
+      'duplicate-time',
+      `${name}: ${group.length} rows at ${samples.timeKind} ${first.position} (lines ${lines.join(', ')}) merged into one horizon (n = ${n}; mean weighted by n; variance of the combined specimens)`,
+    );
+    merged.push({ ...group[0], record: { ...first, n, mean, variance }, extrapolated: group.some((entry) => entry.extrapolated) });
+    start = end;
+  }
+  return merged;
 }
 
 /**

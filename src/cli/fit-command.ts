@@ -7,7 +7,8 @@ import { findModel, modelSets } from '../models/registry.js';
 import { fitDocument, type Provenance } from '../render/fit-document.js';
 import { modelsCsv } from '../render/models-csv.js';
 import { lineageTable } from '../render/text-table.js';
-import { loadLineages, readInput, type SampleFileOptions } from './input.js';
+import { loadLineages, loadLineagesStreamed, readInput, terminalProgress, type InputText, type SampleFileOptions } from './input.js';
+import type { Lineage } from '../lineage.js';
 import { toolVersion } from './version.js';
 import { prepareOutputFolder, writeAtomically } from './write-output.js';
 
@@ -47,6 +48,21 @@ export function runFit(file: string, options: FitCommandOptions): FitRun {
   const warnings = new WarningLog();
   const input = readInput(file);
   const lineages = loadLineages(input, options, warnings);
+  return fitLoaded(input, lineages, options, warnings);
+}
+
+/**
+ * {@link runFit} reading the file as a stream (bounded memory for specimen
+ * files of millions of rows, progress bar on a terminal); same result.
+ */
+export async function runFitStreamed(file: string, options: FitCommandOptions): Promise<FitRun> {
+  const warnings = new WarningLog();
+  const { input, lineages } = await loadLineagesStreamed(file, options, warnings, {}, terminalProgress(file));
+  return fitLoaded(input, lineages, options, warnings);
+}
+
+/** Fit read lineages and build the result document (no output). */
+export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lineage[], options: FitCommandOptions, warnings: WarningLog): FitRun {
   const { name, models } = resolveModels(options.models);
   const fits = lineages.map((lineage) => fitLineage(lineage, models, { intervals: options.intervals !== false }));
   for (const fit of fits) {
@@ -73,10 +89,10 @@ export function runFit(file: string, options: FitCommandOptions): FitRun {
 }
 
 /** `stratotrend fit FILE`: print the model table (or JSON) and write outputs with --out. */
-export function fitCommand(file: string, options: FitCommandOptions): void {
-  const run = runFit(file, options);
+export async function fitCommand(file: string, options: FitCommandOptions): Promise<void> {
+  const run = await runFitStreamed(file, options);
   if (options.out) {
-    const folder = prepareOutputFolder(options.out, [file]);
+    const folder = prepareOutputFolder(options.out, [file], ['models.csv', 'fit.json']);
     writeAtomically(join(folder, 'models.csv'), modelsCsv(run.fits));
     writeAtomically(join(folder, 'fit.json'), JSON.stringify(run.document, null, 2) + '\n');
   }

@@ -2,7 +2,8 @@ import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import { InputError } from '../data/errors.js';
 import { readSamples, type SampleOptions } from '../data/samples.js';
-import { readTable } from '../data/read-table.js';
+import { decodeText, readTable } from '../data/read-table.js';
+import { streamSampleFile, type StreamProgress } from '../data/stream-samples.js';
 import type { WarningLog } from '../data/warnings.js';
 import { buildLineages, timeUnit, type Lineage, type LineageOptions } from '../lineage.js';
 
@@ -23,7 +24,23 @@ export function readInput(path: string): InputText {
     const reason = code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'is a folder, expected a CSV file' : String((error as Error).message);
     throw new InputError(reason, { file: path });
   }
-  return { name: path === '-' ? 'stdin' : path, text: buffer.toString('utf8'), sha256: createHash('sha256').update(buffer).digest('hex') };
+  const name = path === '-' ? 'stdin' : path;
+  return { name, text: decodeText(buffer, name), sha256: createHash('sha256').update(buffer).digest('hex') };
+}
+
+/**
+ * The `--delimiter` value as a character: "tab" or "\t" for a tab, the words
+ * comma / semicolon, or one character.
+ *
+ * @throws InputError (usage) for anything else.
+ */
+export function delimiterOption(value: string | undefined): string | undefined {
+  if (value === undefined) return undefined;
+  const words: Record<string, string> = { tab: '\t', '\\t': '\t', '\t': '\t', comma: ',', semicolon: ';', ',': ',', ';': ';' };
+  const known = words[value.trim().toLowerCase()] ?? words[value];
+  if (known !== undefined) return known;
+  if ([...value].length === 1 && value !== '"' && value !== '\n' && value !== '\r') return value;
+  throw new InputError(`--delimiter must be one character, "tab", "comma" or "semicolon", got "${value}"`, { kind: 'usage' });
 }
 
 /** Options shared by every command that reads samples. */
@@ -42,7 +59,7 @@ export function loadLineages(
   warnings: WarningLog,
   extra: Pick<LineageOptions, 'ageOf'> = {},
 ): Lineage[] {
-  const delimiter = options.delimiter === undefined ? undefined : options.delimiter === 'tab' || options.delimiter === '\\t' ? '\t' : options.delimiter;
+  const delimiter = delimiterOption(options.delimiter);
   const table = readTable(input.text, input.name, { delimiter });
   const sampleOptions: SampleOptions = { log: options.log, decimalComma: options.decimalComma };
   const samples = readSamples(table, sampleOptions);
@@ -52,4 +69,66 @@ export function loadLineages(
     warnings,
     ...extra,
   });
+}
+
+/**
+ * Read a samples file as a stream (bounded memory for specimen files of
+ * millions of rows; see `streamSampleFile`) and assemble its lineages. Gives
+ * the same lineages, messages and line numbers as {@link readInput} +
+ * {@link loadLineages}; "-" reads stdin.
+ */
+export async function loadLineagesStreamed(
+  path: string,
+  options: SampleFileOptions,
+  warnings: WarningLog,
+  extra: Pick<LineageOptions, 'ageOf'> = {},
+  onProgress?: (progress: StreamProgress) => void,
+): Promise<{ input: Omit<InputText, 'text'>; lineages: Lineage[] }> {
+  const name = path === '-' ? 'stdin' : path;
+  const delimiter = delimiterOption(options.delimiter);
+  let streamed;
+  try {
+    streamed = await streamSampleFile(path === '-' ? process.stdin : path, name, { delimiter, log: options.log, decimalComma: options.decimalComma, onProgress });
+  } catch (error) {
+    const code = (error as NodeJS.ErrnoException).code;
+    if (code === 'ENOENT') throw new InputError('no such file', { file: path });
+    if (code === 'EISDIR') throw new InputError('is a folder, expected a CSV file', { file: path });
+    if (code === 'EACCES') throw new InputError('cannot be read (permission denied)', { file: path });
+    throw error;
+  }
+  const lineages = buildLineages(streamed.samples, {
+    pool: options.pool,
+    timeUnit: timeUnit(options.timeUnit ?? 'Myr'),
+    warnings,
+    ...extra,
+  });
+  return { input: { name, sha256: streamed.sha256 }, lineages };
+}
+
+/**
+ * A progress bar on stderr for reading a large file, drawn only when stderr
+ * is a terminal and the file is over a few megabytes (so pipes, logs and tests
+ * see nothing); cleared when reading ends.
+ */
+export function terminalProgress(file: string, stream: NodeJS.WriteStream = process.stderr): ((progress: StreamProgress) => void) | undefined {
+  if (!stream.isTTY) return undefined;
+  let drawn = false;
+  return (progress) => {
+    const { bytes, totalBytes, rows, done } = progress;
+    if (!drawn && (done || (totalBytes !== null ? totalBytes < 4_000_000 : bytes < 4_000_000))) return;
+    if (done) {
+      if (drawn) stream.write('\r\u001b[K');
+      drawn = false;
+      return;
+    }
+    drawn = true;
+    const width = 30;
+    if (totalBytes !== null && totalBytes > 0) {
+      const fraction = Math.min(1, bytes / totalBytes);
+      const filled = Math.round(fraction * width);
+      stream.write(`\rreading ${file} [${'#'.repeat(filled)}${'.'.repeat(width - filled)}] ${(fraction * 100).toFixed(0)}%, ${rows.toLocaleString('en-US')} rows`);
+    } else {
+      stream.write(`\rreading ${file}: ${rows.toLocaleString('en-US')} rows`);
+    }
+  };
 }

@@ -1,40 +1,131 @@
-import { mkdirSync, realpathSync, renameSync, writeFileSync, existsSync, statSync } from 'node:fs';
+import { closeSync, existsSync, fsyncSync, mkdirSync, openSync, readFileSync, realpathSync, renameSync, statSync, unlinkSync, writeSync } from 'node:fs';
 import { basename, dirname, join, resolve } from 'node:path';
 import { InputError } from '../data/errors.js';
 
 /**
- * Write a file atomically: into a temporary file beside it, then rename, so a
- * reader never sees half a file and a crash never leaves one.
+ * Write a file atomically: into a temporary file beside it, flushed to disk,
+ * then renamed over the target, so a reader never sees half a file and a
+ * crash or a full disk never leaves one (the temporary file is removed on
+ * failure and the old file, if any, is untouched).
+ *
+ * @throws InputError naming the path when the file cannot be written.
  */
 export function writeAtomically(path: string, contents: string | Uint8Array): void {
   const temporary = join(dirname(path), `.${basename(path)}.${process.pid}.tmp`);
-  writeFileSync(temporary, contents);
-  renameSync(temporary, path);
+  let descriptor: number | null = null;
+  try {
+    descriptor = openSync(temporary, 'w');
+    const bytes = typeof contents === 'string' ? Buffer.from(contents, 'utf8') : contents;
+    let written = 0;
+    while (written < bytes.length) written += writeSync(descriptor, bytes, written, bytes.length - written);
+    fsyncSync(descriptor);
+    closeSync(descriptor);
+    descriptor = null;
+    renameSync(temporary, path);
+  } catch (error) {
+    if (descriptor !== null) {
+      try { closeSync(descriptor); } catch { /* already failing */ }
+    }
+    try { unlinkSync(temporary); } catch { /* never created */ }
+    throw writeError(path, error);
+  }
+}
+
+function writeError(path: string, error: unknown): InputError {
+  const code = (error as NodeJS.ErrnoException).code;
+  const reasons: Record<string, string> = {
+    EACCES: 'permission denied',
+    EPERM: 'permission denied',
+    ENOSPC: 'no space left on the device',
+    EROFS: 'the file system is read-only',
+    ENOENT: 'its folder does not exist',
+    EISDIR: 'a folder of that name exists',
+    ENOTDIR: 'part of the path is a file, not a folder',
+  };
+  const reason = (code && reasons[code]) ?? String((error as Error)?.message ?? error);
+  return new InputError(`cannot write "${path}": ${reason}; nothing was changed there`);
+}
+
+/**
+ * Name of the list, kept inside an output folder, of the files stratotrend
+ * wrote there. An existing folder is reused only for these names: any other
+ * file that would be overwritten makes the command refuse.
+ */
+export const ownFilesList = '.stratotrend-files';
+
+function sameFile(left: string, right: string): boolean {
+  if (resolve(left) === resolve(right)) return true;
+  try {
+    return realpathSync(left) === realpathSync(right);
+  } catch {
+    return false;
+  }
 }
 
 /**
  * Prepare an output folder: create it, refuse a path that is an input file,
- * and refuse an existing non-folder.
+ * and refuse an existing non-folder. With `names` (the files the command is
+ * about to write), also refuse when one of them is an input, or already exists
+ * in the folder without having been written by stratotrend (it is not listed
+ * in {@link ownFilesList}); other files in the folder are never touched. The
+ * names are then recorded in that list.
+ *
+ * @throws InputError (usage) naming the folder and the file.
  */
-export function prepareOutputFolder(folder: string, inputs: readonly string[]): string {
+export function prepareOutputFolder(folder: string, inputs: readonly string[], names: readonly string[] = []): string {
   const target = resolve(folder);
-  for (const input of inputs) {
-    if (input === '-') continue;
-    if (existsSync(input) && existsSync(target) && realpathSync(input) === realpathSync(target)) {
+  const realInputs = inputs.filter((input) => input !== '-' && existsSync(input));
+  for (const input of realInputs) {
+    if (existsSync(target) && sameFile(input, target)) {
       throw new InputError(`output folder "${folder}" is an input file`, { kind: 'usage' });
     }
   }
   if (existsSync(target) && !statSync(target).isDirectory()) {
     throw new InputError(`output path "${folder}" exists and is not a folder`, { kind: 'usage' });
   }
-  mkdirSync(target, { recursive: true });
+  for (const name of names) {
+    const path = join(target, name);
+    for (const input of realInputs) {
+      if (sameFile(input, path)) {
+        throw new InputError(`refusing to write "${join(folder, name)}": it is an input file; choose another --out folder`, { kind: 'usage' });
+      }
+    }
+  }
+  const listed = readOwnFiles(target);
+  for (const name of names) {
+    if (existsSync(join(target, name)) && !listed.has(name)) {
+      throw new InputError(
+        `output folder "${folder}" already has "${name}", which stratotrend did not write; choose another --out folder or move that file away`,
+        { kind: 'usage' },
+      );
+    }
+  }
+  try {
+    mkdirSync(target, { recursive: true });
+  } catch (error) {
+    throw writeError(folder, error);
+  }
+  const union = [...new Set([...listed, ...names])].sort();
+  if (names.length > 0 && union.length !== listed.size) {
+    writeAtomically(join(target, ownFilesList), `# files written here by stratotrend; it overwrites only these\n${union.join('\n')}\n`);
+  }
   return target;
+}
+
+/** The names listed in a folder's {@link ownFilesList} (empty when there is none). */
+export function readOwnFiles(folder: string): Set<string> {
+  try {
+    const text = readFileSync(join(folder, ownFilesList), 'utf8');
+    return new Set(text.split('\n').map((line) => line.trim()).filter((line) => line !== '' && !line.startsWith('#')));
+  } catch {
+    return new Set();
+  }
 }
 
 /** Refuse to write an output file over one of the inputs. */
 export function refuseInputPath(path: string, inputs: readonly string[]): void {
   for (const input of inputs) {
-    if (input !== '-' && existsSync(input) && existsSync(path) && realpathSync(input) === realpathSync(path)) {
+    if (input !== '-' && existsSync(input) && sameFile(input, path)) {
       throw new InputError(`refusing to write "${path}": it is an input file`, { kind: 'usage' });
     }
   }

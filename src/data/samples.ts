@@ -43,7 +43,239 @@ export const knownColumns = [
   'section', 'trait', 'age', 'time', 'height', 'depth', 'n', 'mean', 'sd', 'var', 'value', 'covariate',
 ] as const;
 
+/**
+ * Largest magnitude accepted in a numeric cell. Squares and sums of squares of
+ * numbers this size stay finite in double precision (1e200 << 1.8e308), so no
+ * variance or likelihood term can overflow; smaller non-zero magnitudes than
+ * {@link smallestMagnitude} would underflow when squared.
+ */
+export const largestMagnitude = 1e100;
+/** Smallest non-zero magnitude accepted in a numeric cell (see {@link largestMagnitude}). */
+export const smallestMagnitude = 1e-100;
+
 const numberPattern = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
+
+/**
+ * Read one numeric cell: a plain decimal number (exponent allowed), finite and
+ * within the range the tool computes with.
+ *
+ * @throws InputError naming file, line, column and the cell as written.
+ * @example
+ * numberCell('2,5', { file: 'a.csv', line: 3, column: 'mean' }, true); // 2.5
+ */
+export function numberCell(raw: string, where: { file: string; line: number; column: string }, decimalComma = false): number {
+  if (raw === '') throw new InputError('is empty, expected a number', where);
+  const text = decimalComma ? raw.replace(',', '.') : raw;
+  if (!numberPattern.test(text)) {
+    let hint = '';
+    if (!decimalComma && /^[+-]?\d*,\d+$/.test(raw)) hint = ' (for a decimal comma use --decimal-comma)';
+    else if (/^\s*[−–]/.test(raw)) hint = ' (write the minus sign as "-")';
+    else if (/^[+-]?(inf|infinity|nan)$/i.test(raw)) hint = '';
+    else if (/^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?\s*\S+$/.test(text)) hint = ' (remove the unit or text after the number)';
+    throw new InputError(`must be a finite number, got "${raw}"${hint}`, where);
+  }
+  const value = Number(text);
+  if (!Number.isFinite(value)) throw new InputError(`must be a finite number, got "${raw}"`, where);
+  const magnitude = Math.abs(value);
+  if (magnitude > largestMagnitude || (magnitude !== 0 && magnitude < smallestMagnitude)) {
+    throw new InputError(`is outside the range the tool computes with (magnitude 1e-100 to 1e100, or 0), got "${raw}"; rescale the column`, where);
+  }
+  return value;
+}
+
+/** Where each column the tool reads sits in a header, and which form the file has. */
+export interface ColumnPlan {
+  readonly file: string;
+  readonly header: readonly string[];
+  readonly form: 'summary' | 'specimen';
+  readonly timeKind: TimeKind;
+  /** Which spread column a summary-form file has. */
+  readonly spread: 'sd' | 'var' | null;
+}
+
+/**
+ * Check a header and decide what the file holds: exactly one time column;
+ * specimen form (a `value` column and no `mean`) or summary form (`n`, `mean`
+ * and one of `sd` / `var`). An unknown column is refused only when it looks
+ * like a misspelling of a column the file lacks (a misspelt "section" would
+ * otherwise merge sections silently); the message suggests the likely name.
+ *
+ * @param rawHeader the header as written (for messages); defaults to `header`.
+ * @throws InputError naming the file, line 1 and the column.
+ */
+export function planColumns(header: readonly string[], file: string, rawHeader: readonly string[] = header): ColumnPlan {
+  const seen = new Set<string>();
+  for (const name of header) {
+    if (seen.has(name) && name !== '') throw new InputError(`column "${name}" appears twice in the header; keep one`, { file, line: 1 });
+    seen.add(name);
+  }
+  const has = (name: string): boolean => header.includes(name);
+  const timeNames = ['age', 'time', 'height', 'depth'] as const;
+  const timeColumns = timeNames.filter(has);
+  const specimenForm = has('value') && !has('mean');
+  const missing = new Set<string>(['section', 'trait', 'covariate'].filter((name) => !has(name)));
+  if (timeColumns.length === 0) timeNames.forEach((name) => missing.add(name));
+  if (!specimenForm) {
+    for (const name of ['n', 'mean']) if (!has(name)) missing.add(name);
+    if (!has('sd') && !has('var')) { missing.add('sd'); missing.add('var'); }
+    if (!has('mean') && !has('value')) missing.add('value');
+  }
+  header.forEach((name, index) => {
+    if (name === '' || (knownColumns as readonly string[]).includes(name)) return;
+    const written = rawHeader[index] ?? name;
+    if (missing.has('sd') && /^(se|sem|s\.?e\.?m?|std ?err(or)?|standard error)$/.test(name)) {
+      throw new InputError(`column "${written}" looks like a standard error of the mean; the tool needs the within-horizon standard deviation "sd" (sd = se × √n) or variance "var"`, { file, line: 1, column: written });
+    }
+    const guess = likelyColumn(name, missing);
+    if (guess) {
+      throw new InputError(`unknown column "${written}": did you mean "${guess}"? (rename the column; the tool reads ${knownColumns.join(', ')})`, { file, line: 1, column: written });
+    }
+  });
+  if (timeColumns.length === 0) {
+    throw new InputError('no time column: expected one of "age" (before present), "time" (elapsed), "height" or "depth"', { file, line: 1 });
+  }
+  if (timeColumns.length > 1) {
+    throw new InputError(`more than one time column (${timeColumns.join(', ')}): keep exactly one`, { file, line: 1 });
+  }
+  const timeKind = timeColumns[0];
+  if (specimenForm) return { file, header, form: 'specimen', timeKind, spread: null };
+  for (const required of ['n', 'mean']) {
+    if (!has(required)) {
+      throw new InputError(`missing required column "${required}" (summary form needs n, mean and sd or var; specimen form needs value)`, { file, line: 1 });
+    }
+  }
+  if (!has('sd') && !has('var')) throw new InputError('missing required column "sd" or "var"', { file, line: 1 });
+  if (has('sd') && has('var')) throw new InputError('has both "sd" and "var": keep one', { file, line: 1 });
+  return { file, header, form: 'summary', timeKind, spread: has('sd') ? 'sd' : 'var' };
+}
+
+/** Other names people give the columns (normalised: lower case, units and punctuation removed). */
+const synonyms: Readonly<Record<string, string>> = {
+  std: 'sd', stdev: 'sd', 'std dev': 'sd', stddev: 'sd', sdev: 'sd', 's d': 'sd', 'standard deviation': 'sd',
+  variance: 'var',
+  count: 'n', number: 'n', 'sample size': 'n', 'n specimens': 'n', specimens: 'n',
+  average: 'mean', avg: 'mean', means: 'mean',
+  ma: 'age', ages: 'age', 'age ma': 'age', 'age myr': 'age', 'age ka': 'age', 'age bp': 'age',
+  elapsed: 'time', 'elapsed time': 'time', times: 'time',
+  elevation: 'height', 'stratigraphic height': 'height', 'meter level': 'height', 'metre level': 'height',
+  measurement: 'value', measurements: 'value', values: 'value', val: 'value',
+  sections: 'section', traits: 'trait',
+};
+
+/** The known column that `name` most likely misspells, among `candidates`, or null. */
+function likelyColumn(name: string, candidates: ReadonlySet<string>): string | null {
+  const plain = name.replace(/[([].*?[)\]]/g, ' ').replace(/[_\-.\s]+/g, ' ').trim();
+  if (candidates.has(plain)) return plain;
+  const synonym = synonyms[plain] ?? synonyms[plain.replace(/ /g, '')];
+  if (synonym && candidates.has(synonym)) return synonym;
+  let best: string | null = null;
+  let bestDistance = Number.POSITIVE_INFINITY;
+  for (const known of candidates) {
+    if (known.length < 2) continue;
+    const allowed = known.length >= 5 ? 2 : 1;
+    const distance = editDistance(plain, known, true);
+    if (distance <= allowed && distance < bestDistance) {
+      best = known;
+      bestDistance = distance;
+    }
+  }
+  return best;
+}
+
+/**
+ * Turns table rows into horizon records one row at a time, so the whole-file
+ * reader ({@link readSamples}) and the streaming reader
+ * (`stream-samples.ts`) share every check and message. Specimens of the same
+ * (section, trait, position) are summarised as they arrive with
+ * {@link RunningMoments}; memory grows with the number of horizons, not rows.
+ */
+export class HorizonCollector {
+  private readonly index: (name: string) => number;
+  private readonly groups = new Map<string, { section: string; trait: string; position: number; line: number; moments: RunningMoments; covariate?: number; covariateText?: string }>();
+  private readonly summaries: HorizonRecord[] = [];
+
+  constructor(readonly plan: ColumnPlan, private readonly options: SampleOptions = {}) {
+    this.index = (name) => plan.header.indexOf(name);
+  }
+
+  private number(cells: readonly string[], line: number, name: string): number {
+    return numberCell(cells[this.index(name)], { file: this.plan.file, line, column: name }, this.options.decimalComma === true);
+  }
+
+  private label(cells: readonly string[], name: string): string {
+    const at = this.index(name);
+    return at >= 0 ? cells[at] : '';
+  }
+
+  /** Validate and take one data row (cells in header order). */
+  add(line: number, cells: readonly string[]): void {
+    const { plan, options } = this;
+    const file = plan.file;
+    const position = this.number(cells, line, plan.timeKind);
+    const covariate = this.index('covariate') >= 0 ? this.number(cells, line, 'covariate') : undefined;
+    const section = this.label(cells, 'section');
+    const trait = this.label(cells, 'trait');
+    if (plan.form === 'specimen') {
+      let value = this.number(cells, line, 'value');
+      if (options.log) {
+        if (!(value > 0)) throw new InputError(`must be positive to take its logarithm (--log), got "${cells[this.index('value')]}"`, { file, line, column: 'value' });
+        value = Math.log(value);
+      }
+      const key = `${section}\u0000${trait}\u0000${position}`;
+      let group = this.groups.get(key);
+      if (!group) {
+        group = { section, trait, position, line, moments: new RunningMoments(), covariate, covariateText: covariate === undefined ? undefined : cells[this.index('covariate')] };
+        this.groups.set(key, group);
+      } else if (covariate !== undefined && covariate !== group.covariate) {
+        throw new InputError(
+          `differs within the horizon at ${plan.timeKind} ${cells[this.index(plan.timeKind)]} (line ${group.line} has "${group.covariateText}"), got "${cells[this.index('covariate')]}"; give one covariate value per horizon`,
+          { file, line, column: 'covariate' },
+        );
+      }
+      group.moments.add(value);
+      return;
+    }
+    const n = this.number(cells, line, 'n');
+    if (!Number.isInteger(n) || n < 1) throw new InputError(`must be a whole number of specimens of at least 1, got "${cells[this.index('n')]}"`, { file, line, column: 'n' });
+    let mean = this.number(cells, line, 'mean');
+    const spreadName = plan.spread ?? 'sd';
+    const spread = this.number(cells, line, spreadName);
+    if (spread < 0) throw new InputError(`must be zero or positive, got "${cells[this.index(spreadName)]}"`, { file, line, column: spreadName });
+    let variance = spreadName === 'sd' ? spread * spread : spread;
+    if (options.log) {
+      if (!(mean > 0)) throw new InputError(`must be positive to take its logarithm (--log), got "${cells[this.index('mean')]}"`, { file, line, column: 'mean' });
+      variance = variance / (mean * mean);
+      mean = Math.log(mean);
+      if (!Number.isFinite(variance)) {
+        throw new InputError(`gives a log-scale variance (${spreadName} relative to the mean) too large to compute with, got "${cells[this.index(spreadName)]}"`, { file, line, column: spreadName });
+      }
+    }
+    this.summaries.push({ section, trait, position, n, mean, variance, line, covariate });
+  }
+
+  /** The horizons collected so far, in order of first appearance. */
+  finish(): SampleSet {
+    const { plan, options } = this;
+    const records = plan.form === 'summary'
+      ? this.summaries
+      : [...this.groups.values()].map((group) => ({
+          section: group.section,
+          trait: group.trait,
+          position: group.position,
+          n: group.moments.n,
+          mean: group.moments.mean(),
+          variance: group.moments.variance(),
+          line: group.line,
+          covariate: group.covariate,
+        }));
+    for (const record of records) {
+      if (!Number.isFinite(record.variance) || !Number.isFinite(record.mean)) {
+        throw new InputError('the specimens of this horizon have a variance too large to compute with; rescale the values', { file: plan.file, line: record.line, column: 'value' });
+      }
+    }
+    return { file: plan.file, form: plan.form, timeKind: plan.timeKind, records, logTransformed: options.log === true };
+  }
+}
 
 /**
  * Validate a table of samples (summary form: one row per horizon with n, mean
@@ -55,121 +287,27 @@ const numberPattern = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
  * @throws InputError naming file, line, column and value for every bad cell.
  */
 export function readSamples(table: Table, options: SampleOptions = {}): SampleSet {
-  const { file, header } = table;
-  const column = (name: string): number => header.indexOf(name);
-  checkTypos(table);
-  const timeColumns = (['age', 'time', 'height', 'depth'] as const).filter((name) => column(name) >= 0);
-  if (timeColumns.length === 0) {
-    throw new InputError('no time column: expected one of "age" (before present), "time" (elapsed), "height" or "depth"', { file, line: 1 });
-  }
-  if (timeColumns.length > 1) {
-    throw new InputError(`more than one time column (${timeColumns.join(', ')}): keep exactly one`, { file, line: 1 });
-  }
-  const timeKind = timeColumns[0];
-  const specimenForm = column('value') >= 0 && column('mean') < 0;
-  const number = (cells: readonly string[], line: number, name: string): number => {
-    const raw = cells[column(name)];
-    const text = options.decimalComma ? raw.replace(',', '.') : raw;
-    if (raw === '') throw new InputError('is empty, expected a number', { file, line, column: name });
-    if (!numberPattern.test(text)) {
-      const hint = !options.decimalComma && /^[+-]?\d+,\d+$/.test(raw) ? ' (for a decimal comma use --decimal-comma)' : '';
-      throw new InputError(`must be a finite number, got "${raw}"${hint}`, { file, line, column: name });
-    }
-    const value = Number(text);
-    if (!Number.isFinite(value)) throw new InputError(`must be a finite number, got "${raw}"`, { file, line, column: name });
-    return value;
-  };
-  const label = (cells: readonly string[], name: string): string => (column(name) >= 0 ? cells[column(name)] : '');
-  const covariateOf = (cells: readonly string[], line: number): number | undefined =>
-    column('covariate') >= 0 ? number(cells, line, 'covariate') : undefined;
-
-  if (specimenForm) {
-    const groups = new Map<string, { section: string; trait: string; position: number; line: number; moments: RunningMoments; covariate?: number }>();
-    for (const { line, cells } of table.rows) {
-      const position = number(cells, line, timeKind);
-      let value = number(cells, line, 'value');
-      if (options.log) {
-        if (!(value > 0)) throw new InputError(`must be positive to take its logarithm (--log), got "${cells[column('value')]}"`, { file, line, column: 'value' });
-        value = Math.log(value);
-      }
-      const section = label(cells, 'section');
-      const trait = label(cells, 'trait');
-      const key = `${section}\u0000${trait}\u0000${position}`;
-      let group = groups.get(key);
-      if (!group) {
-        group = { section, trait, position, line, moments: new RunningMoments(), covariate: covariateOf(cells, line) };
-        groups.set(key, group);
-      }
-      group.moments.add(value);
-    }
-    const records = [...groups.values()].map((group) => ({
-      section: group.section,
-      trait: group.trait,
-      position: group.position,
-      n: group.moments.n,
-      mean: group.moments.mean(),
-      variance: group.moments.variance(),
-      line: group.line,
-      covariate: group.covariate,
-    }));
-    return { file, form: 'specimen', timeKind, records, logTransformed: options.log === true };
-  }
-
-  for (const required of ['n', 'mean']) {
-    if (column(required) < 0) {
-      throw new InputError(`missing required column "${required}" (summary form needs n, mean and sd or var; specimen form needs value)`, { file, line: 1 });
-    }
-  }
-  const hasSd = column('sd') >= 0;
-  const hasVar = column('var') >= 0;
-  if (!hasSd && !hasVar) throw new InputError('missing required column "sd" or "var"', { file, line: 1 });
-  if (hasSd && hasVar) throw new InputError('has both "sd" and "var": keep one', { file, line: 1 });
-  const records = table.rows.map(({ line, cells }): HorizonRecord => {
-    const position = number(cells, line, timeKind);
-    const n = number(cells, line, 'n');
-    if (!Number.isInteger(n) || n < 1) throw new InputError(`must be a whole number of specimens of at least 1, got "${cells[column('n')]}"`, { file, line, column: 'n' });
-    let mean = number(cells, line, 'mean');
-    const spreadName = hasSd ? 'sd' : 'var';
-    const spread = number(cells, line, spreadName);
-    if (spread < 0) throw new InputError(`must be zero or positive, got "${cells[column(spreadName)]}"`, { file, line, column: spreadName });
-    let variance = hasSd ? spread * spread : spread;
-    if (options.log) {
-      if (!(mean > 0)) throw new InputError(`must be positive to take its logarithm (--log), got "${cells[column('mean')]}"`, { file, line, column: 'mean' });
-      variance = variance / (mean * mean);
-      mean = Math.log(mean);
-    }
-    return { section: label(cells, 'section'), trait: label(cells, 'trait'), position, n, mean, variance, line, covariate: covariateOf(cells, line) };
-  });
-  return { file, form: 'summary', timeKind, records, logTransformed: options.log === true };
+  const plan = planColumns(table.header, table.file, table.rawHeader);
+  const collector = new HorizonCollector(plan, options);
+  for (const { line, cells } of table.rows) collector.add(line, cells);
+  return collector.finish();
 }
 
-function checkTypos(table: Table): void {
-  for (const name of table.header) {
-    if ((knownColumns as readonly string[]).includes(name) || name === '') continue;
-    for (const known of knownColumns) {
-      if (known.length >= 3 && editDistance(name, known) === 1) {
-        throw new InputError(`unknown column "${name}": did you mean "${known}"?`, { file: table.file, line: 1 });
-      }
-    }
-  }
-  const seen = new Set<string>();
-  for (const name of table.header) {
-    if (seen.has(name) && name !== '') throw new InputError(`column "${name}" appears twice in the header`, { file: table.file, line: 1 });
-    seen.add(name);
-  }
-}
-
-/** Levenshtein distance (insertions, deletions, substitutions). */
-export function editDistance(a: string, b: string): number {
-  const previous = Array.from({ length: b.length + 1 }, (_, j) => j);
+/**
+ * Levenshtein distance (insertions, deletions, substitutions); with
+ * `transpositions`, swapping two neighbouring letters also costs 1 (optimal
+ * string alignment distance).
+ */
+export function editDistance(a: string, b: string, transpositions = false): number {
+  const rows: number[][] = Array.from({ length: a.length + 1 }, (_, i) => Array.from({ length: b.length + 1 }, (_, j) => (i === 0 ? j : j === 0 ? i : 0)));
   for (let i = 1; i <= a.length; i++) {
-    let diagonal = previous[0];
-    previous[0] = i;
     for (let j = 1; j <= b.length; j++) {
-      const above = previous[j];
-      previous[j] = Math.min(previous[j] + 1, previous[j - 1] + 1, diagonal + (a[i - 1] === b[j - 1] ? 0 : 1));
-      diagonal = above;
+      const cost = a[i - 1] === b[j - 1] ? 0 : 1;
+      rows[i][j] = Math.min(rows[i - 1][j] + 1, rows[i][j - 1] + 1, rows[i - 1][j - 1] + cost);
+      if (transpositions && i > 1 && j > 1 && a[i - 1] === b[j - 2] && a[i - 2] === b[j - 1]) {
+        rows[i][j] = Math.min(rows[i][j], rows[i - 2][j - 2] + 1);
+      }
     }
   }
-  return previous[b.length];
+  return rows[a.length][b.length];
 }

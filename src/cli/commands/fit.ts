@@ -20,7 +20,7 @@ export function defineFitCommand(program: Command): void {
     .addHelpText('after', modelHelp())
     .action(async (file: string, options) => {
       const { fitCommand } = await import('../fit-command.js');
-      fitCommand(file, options);
+      await fitCommand(file, options);
     });
 }
 
