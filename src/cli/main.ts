@@ -1,6 +1,8 @@
 import { Command, CommanderError } from 'commander';
 import { InputError } from '../data/errors.js';
+import { defineCompareCommand } from './commands/compare.js';
 import { defineFitCommand } from './commands/fit.js';
+import { defineReportCommand } from './commands/report.js';
 import { toolVersion } from './version.js';
 
 /**
@@ -41,5 +43,7 @@ export function buildProgram(): Command {
     .configureOutput({ writeErr: (text) => process.stderr.write(text) });
 
   defineFitCommand(program);
+  defineCompareCommand(program);
+  defineReportCommand(program);
   return program;
 }

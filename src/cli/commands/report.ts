@@ -1,0 +1,29 @@
+import type { Command } from 'commander';
+import { addSampleOptions } from './shared.js';
+
+/**
+ * Define `stratotrend report`. The action imports the fitting and report
+ * code only when the command runs.
+ */
+export function defineReportCommand(program: Command): void {
+  addSampleOptions(
+    program
+      .command('report')
+      .description('fit every model and write one self-contained HTML report (tables, figures, methods text, references, provenance)')
+      .argument('<file>', 'samples CSV as for "fit" ("-" reads stdin), or a fit.json saved by "fit --out" (reported without refitting)'),
+  )
+    .option('--out <file>', 'the HTML file to write', 'stratotrend-report.html')
+    .option('--models <set>', 'model set: "classic" (the five models) or a comma-separated list of model ids', 'classic')
+    .option('--no-intervals', 'skip the confidence intervals (faster)')
+    .option('--figure-format <format>', 'figures inside the page: svg (vector, prints sharply) or png', 'svg')
+    .option('--attach <json...>', 'also show saved results of other analyses: a section comparison (compare --json) or power results (power --json)')
+    .option('--quiet', 'print nothing but errors and warnings')
+    .addHelpText('after', `
+The page needs no network and no other file: styles and figures are inside it.
+It opens in any browser and prints on paper (one lineage per page).
+Its methods text is written from the options of the run; adapt it for the paper.`)
+    .action(async (file: string, options) => {
+      const { reportCommand } = await import('../report-command.js');
+      await reportCommand(file, options);
+    });
+}

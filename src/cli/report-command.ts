@@ -1,0 +1,158 @@
+import { createHash } from 'node:crypto';
+import { readFileSync } from 'node:fs';
+import { InputError, usageError } from '../data/errors.js';
+import { asFitDocument, lineageTitle, type FitDocumentView } from '../render/report/document-view.js';
+import { reportPage, type ReportFigure, type ReportInput } from '../render/report/report-page.js';
+import { sketchTrajectory } from '../render/report/sketch-figure.js';
+import { runFit, type FitCommandOptions, type FitRun } from './fit-command.js';
+import { refuseInputPath, writeAtomically } from './write-output.js';
+
+/** Options of `stratotrend report` (the fit options plus where and how to write the page). */
+export interface ReportCommandOptions extends FitCommandOptions {
+  /** The HTML file to write (default: stratotrend-report.html). */
+  out?: string;
+  /** Figure format inside the page: "svg" (default, vector, prints sharply) or "png". */
+  figureFormat?: string;
+  /** Saved results of other analyses (compare --json, power --json) to show in the report. */
+  attach?: string[];
+}
+
+/** Default name of the report file. */
+export const defaultReportFile = 'stratotrend-report.html';
+
+/** Results of another analysis read from a saved JSON file, sorted into the report's blocks by their layout. */
+interface Attachments {
+  comparison?: unknown;
+  power?: unknown;
+  adequacy?: unknown;
+  files: { file: string; sha256: string; kind: string }[];
+}
+
+function readAttachments(files: readonly string[]): Attachments {
+  const attachments: Attachments = { files: [] };
+  for (const file of files) {
+    let buffer: Buffer;
+    try {
+      buffer = readFileSync(file);
+    } catch {
+      throw new InputError('no such file (given with --attach)', { file, kind: 'usage' });
+    }
+    let value: unknown;
+    try {
+      value = JSON.parse(buffer.toString('utf8'));
+    } catch (error) {
+      throw new InputError(`not JSON: ${(error as Error).message}`, { file });
+    }
+    const record = (value ?? {}) as Record<string, unknown>;
+    const kind = Array.isArray(record.traits) ? 'comparison' : Array.isArray(record.grid) ? 'power' : record.adequacy !== undefined || /adequa/i.test(file) ? 'adequacy' : null;
+    if (!kind) throw new InputError('is neither a section comparison (compare --json: "traits") nor a power result (power --json: "grid") nor adequacy checks', { file });
+    attachments[kind as 'comparison' | 'power' | 'adequacy'] = kind === 'adequacy' && record.adequacy !== undefined ? record.adequacy : value;
+    attachments.files.push({ file, sha256: createHash('sha256').update(buffer).digest('hex'), kind });
+  }
+  return attachments;
+}
+
+/** Read a saved fit.json as the document to report on (no refitting). */
+export function readFitJson(file: string): { document: FitDocumentView; sha256: string } {
+  let buffer: Buffer;
+  try {
+    buffer = readFileSync(file);
+  } catch {
+    throw new InputError('no such file', { file });
+  }
+  try {
+    return { document: asFitDocument(JSON.parse(buffer.toString('utf8')) as Record<string, unknown>), sha256: createHash('sha256').update(buffer).digest('hex') };
+  } catch (error) {
+    throw new InputError(`is not a stratotrend fit.json: ${(error as Error).message}`, { file });
+  }
+}
+
+/**
+ * Draw the trajectory figure of every lineage for the page. Uses the figure
+ * module (chart.js) when it can be loaded; otherwise a plain SVG sketch
+ * drawn from the document, and says so.
+ */
+export async function reportFigures(document: FitDocumentView, format: 'svg' | 'png'): Promise<{ figures: ReportFigure[]; note?: string }> {
+  const figures: ReportFigure[] = [];
+  document.lineages.forEach((lineage, index) => {
+    const sketch = sketchTrajectory(lineage);
+    figures.push({
+      lineage: index,
+      kind: 'trajectory',
+      caption: `${lineageTitle(lineage)}: horizon means with 95% sampling intervals (±1.96 √eᵢ)${lineage.smoothed ? ` and the lineage mean smoothed under the best-supported model with its 95% band` : ''}; time runs up the page, oldest horizon at the bottom.`,
+      mime: 'image/svg+xml',
+      bytes: new TextEncoder().encode(sketch.svg),
+      width: sketch.width,
+      height: sketch.height,
+    });
+  });
+  return { figures, note: format === 'png' ? 'Figures are plain SVG sketches (the chart module is not available in this build).' : undefined };
+}
+
+function parseFormat(value: string | undefined): 'svg' | 'png' {
+  const format = (value ?? 'svg').toLowerCase();
+  if (format !== 'svg' && format !== 'png') throw usageError(`--figure-format: expected "svg" or "png", got "${value}"`);
+  return format;
+}
+
+/**
+ * Build the report page of a document: figures, attached analyses and the
+ * run record (date, command, runtime, report options). Nothing is written.
+ */
+export async function buildReport(document: FitDocumentView, options: ReportCommandOptions, extra: { source?: { file: string; sha256: string } } = {}): Promise<string> {
+  const format = parseFormat(options.figureFormat);
+  const attachments = readAttachments(options.attach ?? []);
+  const { figures, note } = await reportFigures(document, format);
+  const reportOptions: Record<string, unknown> = { figure_format: format };
+  if (extra.source) reportOptions.source = `${extra.source.file} (saved fit document, SHA-256 ${extra.source.sha256}; not refitted)`;
+  attachments.files.forEach((entry, index) => {
+    reportOptions[`attached_${index + 1}`] = `${entry.file} (${entry.kind}, SHA-256 ${entry.sha256})`;
+  });
+  const input: ReportInput = {
+    document,
+    figures,
+    comparison: attachments.comparison,
+    power: attachments.power,
+    adequacy: attachments.adequacy,
+    run: {
+      date: new Date().toISOString(),
+      command: ['stratotrend', ...process.argv.slice(2)].map((part) => (/^[\w@%+=:,./-]+$/.test(part) ? part : `'${part.replace(/'/g, "'\\''")}'`)).join(' '),
+      runtime: `Node.js ${process.version} on ${process.platform} ${process.arch}`,
+      reportOptions,
+      figureNote: note,
+    },
+  };
+  return reportPage(input);
+}
+
+/** Write a report for a finished fit (used by `fit --report FILE`). */
+export async function writeReportForRun(run: FitRun, path: string, inputs: readonly string[], options: ReportCommandOptions = {}): Promise<void> {
+  refuseInputPath(path, inputs);
+  const html = await buildReport(asFitDocument(run.document), options);
+  writeAtomically(path, html);
+}
+
+/**
+ * `stratotrend report FILE`: fit FILE (or read a saved fit.json) and write
+ * one self-contained HTML report.
+ */
+export async function reportCommand(file: string, options: ReportCommandOptions): Promise<void> {
+  const path = options.out ?? defaultReportFile;
+  if (!/\.html?$/i.test(path)) throw usageError(`--out: the report is one HTML file; give a name ending in .html, got "${path}"`);
+  refuseInputPath(path, [file, ...(options.attach ?? [])]);
+  let html: string;
+  let warningLines: string[] = [];
+  if (/\.json$/i.test(file)) {
+    const saved = readFitJson(file);
+    html = await buildReport(saved.document, options, { source: { file, sha256: saved.sha256 } });
+  } else {
+    const run = runFit(file, options);
+    html = await buildReport(asFitDocument(run.document), options);
+    warningLines = run.warnings.list()
+      .filter((warning) => warning.category !== 'at-bound' && warning.category !== 'not-compared')
+      .map((warning) => `warning (${warning.category}): ${warning.message}${warning.count > 1 ? ` (${warning.count} times)` : ''}`);
+  }
+  writeAtomically(path, html);
+  if (!options.quiet) process.stdout.write(`Wrote the report to ${path} (${Math.round(Buffer.byteLength(html) / 1024)} kB, one self-contained HTML file)\n`);
+  for (const line of warningLines) process.stderr.write(`${line}\n`);
+}

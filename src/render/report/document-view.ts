@@ -1,0 +1,92 @@
+/**
+ * The shapes of the fit document (src/render/fit-document.ts) as the report
+ * reads them. The report is built from the JSON document, not from the fit
+ * objects, so a report can be made from a saved fit.json and shows exactly
+ * the numbers that fit.json holds.
+ */
+
+/** One estimate with its interval, as in fit.json. */
+export interface EstimateView {
+  readonly estimate: number | null;
+  readonly lower: number | null;
+  readonly upper: number | null;
+  readonly at_bound: string | null;
+  readonly lower_at_bound: boolean;
+  readonly upper_at_bound: boolean;
+}
+
+/** One model row of a lineage, as in fit.json. */
+export interface ModelView {
+  readonly id: string;
+  readonly label: string;
+  readonly k: number;
+  readonly logLik: number | null;
+  readonly aicc: number | null;
+  readonly delta_aicc: number | null;
+  readonly weight: number | null;
+  readonly converged: boolean;
+  readonly compared: boolean;
+  readonly not_compared_reason: string | null;
+  readonly interval_method: string;
+  readonly params: Readonly<Record<string, EstimateView>>;
+  readonly derived: Readonly<Record<string, EstimateView>>;
+  readonly flags: readonly string[];
+  readonly [extra: string]: unknown;
+}
+
+/** One lineage (section × trait), as in fit.json. */
+export interface LineageView {
+  readonly section: string;
+  readonly trait: string;
+  readonly horizons: number;
+  readonly time_unit: string;
+  readonly position_kind: string;
+  readonly transform: string;
+  readonly sampling_variance: string;
+  readonly best_model: string | null;
+  readonly models: readonly ModelView[];
+  readonly data: {
+    readonly time: readonly (number | null)[];
+    readonly position: readonly (number | null)[];
+    readonly mean: readonly (number | null)[];
+    readonly n: readonly (number | null)[];
+    readonly within_variance: readonly (number | null)[];
+    readonly sampling_variance: readonly (number | null)[];
+    readonly extrapolated: readonly boolean[];
+    readonly line: readonly number[];
+  };
+  readonly smoothed: { readonly model: string; readonly mean: readonly (number | null)[]; readonly standard_error: readonly (number | null)[] } | null;
+  readonly [extra: string]: unknown;
+}
+
+/** The provenance block of fit.json. */
+export interface ProvenanceView {
+  readonly tool: string;
+  readonly version: string;
+  readonly inputs: readonly { readonly file: string; readonly sha256: string }[];
+  readonly options: Readonly<Record<string, unknown>>;
+}
+
+/** The whole fit document. Unknown top-level keys (comparisons, power, …) are kept. */
+export interface FitDocumentView {
+  readonly provenance: ProvenanceView;
+  readonly model_set: string;
+  readonly lineages: readonly LineageView[];
+  readonly warnings: readonly { readonly category: string; readonly message: string; readonly count: number }[];
+  readonly [extra: string]: unknown;
+}
+
+/** Read a document produced by `fitDocument` (or parsed from fit.json) as the report's view of it. */
+export function asFitDocument(document: Record<string, unknown>): FitDocumentView {
+  const view = document as unknown as FitDocumentView;
+  if (!view || typeof view !== 'object' || !Array.isArray(view.lineages) || !view.provenance) {
+    throw new TypeError('not a stratotrend fit document: expected "provenance" and "lineages"');
+  }
+  return view;
+}
+
+/** "section / trait", leaving out empty parts (same rule as the terminal table). */
+export function lineageTitle(lineage: Pick<LineageView, 'section' | 'trait'>): string {
+  const parts = [lineage.section, lineage.trait].filter((part) => part !== '');
+  return parts.length === 0 ? 'lineage' : parts.join(' / ');
+}

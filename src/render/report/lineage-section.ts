@@ -1,0 +1,137 @@
+import { formatNumber } from '../units.js';
+import { boundCaution, closeSupportCaution, directionalCaution, stasisCaution, supportCautions } from './cautions.js';
+import { summariseData, type DataSummary } from './data-summary.js';
+import { lineageTitle, type FitDocumentView, type LineageView } from './document-view.js';
+import { escapeHtml, exactValue, slug } from './html.js';
+import { jsonBlock } from './optional-blocks.js';
+import { estimatesTable, supportTable } from './support-table.js';
+
+/** One figure ready for the page: already-rendered bytes of an image. */
+export interface ReportFigure {
+  /** Index of the lineage in the document the figure belongs to, or null for a figure of several lineages. */
+  readonly lineage: number | null;
+  /** Figure kind, e.g. "trajectory" or "support". */
+  readonly kind: string;
+  readonly caption: string;
+  /** "image/svg+xml" or "image/png". */
+  readonly mime: string;
+  readonly bytes: Uint8Array;
+  readonly width: number;
+  readonly height: number;
+}
+
+/** Lineage-document keys the report shows in its own blocks; anything else appears under "further results". */
+const shownKeys = new Set(['section', 'trait', 'horizons', 'time_unit', 'position_kind', 'transform', 'sampling_variance', 'best_model', 'models', 'data', 'smoothed']);
+
+/** An image element holding the figure's bytes as a data URL (no file or network access when opened). */
+export function figureHtml(figure: ReportFigure): string {
+  const source = `data:${figure.mime};base64,${Buffer.from(figure.bytes).toString('base64')}`;
+  // Shown at most 40rem wide: a print-resolution PNG is far wider than the screen.
+  return `<figure data-kind="${escapeHtml(figure.kind)}"><img src="${source}" width="${figure.width}" height="${figure.height}" style="width:min(100%, 40rem)" alt="${escapeHtml(figure.caption)}"><figcaption>${escapeHtml(figure.caption)}</figcaption></figure>`;
+}
+
+function positionWords(lineage: LineageView, summary: DataSummary): string {
+  const first = summary.firstPosition;
+  const last = summary.lastPosition;
+  if (first === null || last === null) return '';
+  const unit = lineage.position_kind === 'age' ? (lineage.time_unit === 'Myr' ? 'Ma' : lineage.time_unit === 'kyr' ? 'ka' : `${lineage.time_unit} before present`) : lineage.time_unit;
+  return `${lineage.position_kind} ${formatNumber(first)} to ${formatNumber(last)} ${unit}`;
+}
+
+function fact(term: string, value: string, field?: string, exact?: number | null): string {
+  const data = field ? ` data-field="${field}" data-value="${exactValue(exact)}"` : '';
+  return `<dt>${escapeHtml(term)}</dt><dd${data}>${escapeHtml(value)}</dd>`;
+}
+
+function samplingWords(summary: DataSummary): string {
+  if (summary.samplingShare === null) return 'the horizon means do not vary.';
+  const share = summary.samplingShare;
+  const judgement = share >= 1
+    ? 'sampling error alone could produce all of the spread among the horizon means, so little of the observed change is resolved'
+    : share >= 0.5
+      ? 'sampling error is a large part of the spread among the horizon means; small differences between horizons are not resolved'
+      : share >= 0.1
+        ? 'sampling error is a modest part of the spread among the horizon means'
+        : 'sampling error is small against the spread among the horizon means';
+  return `Average sampling variance is ${formatNumber(share * 100, 3)}% of the variance among horizon means: ${judgement}.`;
+}
+
+/** Per-lineage warnings: estimates at bounds, models not compared, extrapolated ages, exact horizons. */
+export function lineageWarnings(lineage: LineageView, summary: DataSummary, document: FitDocumentView): string[] {
+  const warnings: string[] = [];
+  for (const model of lineage.models) {
+    for (const flag of model.flags) warnings.push(`${model.label}: ${flag}`);
+    if (!model.compared) warnings.push(`${model.label}: ${model.not_compared_reason ?? 'not compared'}`);
+  }
+  if (summary.extrapolatedHorizons > 0) {
+    warnings.push(`${summary.extrapolatedHorizons} of ${summary.horizons} horizons have ages extrapolated beyond the age model's tie points; their spacing, and so every rate, rests on an assumed constant sedimentation rate.`);
+  }
+  if (summary.exactHorizons > 0) warnings.push(`${summary.exactHorizons} horizons have zero sampling variance: their means are treated as exact.`);
+  // Warnings of the run that name this lineage and are not already listed above.
+  const name = lineageTitle(lineage);
+  for (const warning of document.warnings) {
+    if (warning.category === 'at-bound' || warning.category === 'not-compared') continue;
+    if (warning.message.includes(name)) warnings.push(`${warning.message}${warning.count > 1 ? ` (${warning.count} times)` : ''}`);
+  }
+  return warnings;
+}
+
+function conclusion(lineage: LineageView): string {
+  const compared = lineage.models.filter((model) => model.compared && model.weight !== null);
+  const best = lineage.models.find((model) => model.id === lineage.best_model);
+  const cautions = [...supportCautions];
+  if (!best) {
+    return `<div class="conclusion"><p>No model could be compared for this lineage.</p></div>`;
+  }
+  const close = compared.filter((model) => model.id !== best.id && model.delta_aicc !== null && model.delta_aicc < 2);
+  if (close.length > 0) cautions.unshift(closeSupportCaution);
+  if (best.id === 'directional-walk') cautions.unshift(directionalCaution);
+  if (best.id === 'stasis' || best.id === 'strict-stasis') cautions.unshift(stasisCaution);
+  if (lineage.models.some((model) => model.flags.length > 0)) cautions.push(boundCaution);
+  const closeWords = close.length > 0
+    ? ` ${close.map((model) => `${model.label} (weight ${model.weight?.toFixed(3)}, ΔAICc ${model.delta_aicc?.toFixed(2)})`).join(' and ')} ${close.length === 1 ? 'is' : 'are'} within 2 AICc units.`
+    : '';
+  return `<div class="conclusion"><p><strong>Best supported among the models fitted:</strong> ${escapeHtml(best.label)}, Akaike weight <span data-field="best_weight" data-value="${exactValue(best.weight)}">${best.weight?.toFixed(3)}</span>.${escapeHtml(closeWords)}</p></div>
+<div class="cautions"><p><strong>Reading this result</strong></p><ul>${cautions.map((caution) => `<li>${escapeHtml(caution)}</li>`).join('')}</ul></div>`;
+}
+
+/**
+ * The report block of one lineage: data summary with warnings, the
+ * model-support table, the conclusion with its cautions, the figures, the
+ * estimates, and any further results the document carries for it (rates,
+ * adequacy checks, … added by later analyses).
+ */
+export function lineageSection(lineage: LineageView, index: number, document: FitDocumentView, figures: readonly ReportFigure[]): string {
+  const summary = summariseData(lineage);
+  const title = lineageTitle(lineage);
+  const unit = lineage.time_unit;
+  const scale = lineage.transform === 'ln' ? ' (ln units)' : '';
+  const warnings = lineageWarnings(lineage, summary, document);
+  const facts = [
+    fact('horizons', String(summary.horizons), 'horizons', summary.horizons),
+    fact('time span', `${formatNumber(summary.span)} ${unit}${positionWords(lineage, summary) ? ` (${positionWords(lineage, summary)})` : ''}`, 'span', summary.span),
+    fact('spacing', `${formatNumber(summary.shortestInterval)} to ${formatNumber(summary.longestInterval)} ${unit} between horizons`),
+    fact('specimens per horizon', `${formatNumber(summary.specimens.smallest)} to ${formatNumber(summary.specimens.largest)} (median ${formatNumber(summary.specimens.median)}; ${formatNumber(summary.specimens.total)} in all)`, 'specimens', summary.specimens.total),
+    fact('net change, oldest to youngest', `${formatNumber(summary.netChange)}${scale}`, 'net_change', summary.netChange),
+    fact('typical standard error of a mean', `${formatNumber(summary.typicalStandardError)}${scale} (root of the average sampling variance)`, 'typical_standard_error', summary.typicalStandardError),
+    fact('net change / standard error', summary.changeToError === null ? '—' : formatNumber(summary.changeToError, 3), 'change_to_error', summary.changeToError),
+    fact('treatment', `${lineage.transform === 'ln' ? 'natural-log trait' : 'untransformed trait'}, ${lineage.sampling_variance === 'pooled' ? 'pooled within-horizon variance' : 'per-horizon sampling variance'}`),
+  ];
+  const own = figures.filter((figure) => figure.lineage === index);
+  const further = Object.entries(lineage).filter(([key]) => !shownKeys.has(key));
+  const anchor = `lineage-${index + 1}-${slug(title)}`;
+  return `<section class="lineage" id="${anchor}" data-lineage="${index}">
+<h2>${escapeHtml(title)}</h2>
+<h3>Data</h3>
+<dl class="facts">${facts.join('')}</dl>
+<p>${escapeHtml(samplingWords(summary))}</p>
+${warnings.length > 0 ? `<div class="warnings" role="note"><strong>Warnings</strong><ul>${warnings.map((warning) => `<li>${escapeHtml(warning)}</li>`).join('')}</ul></div>` : ''}
+<h3>Model support</h3>
+${supportTable(lineage)}
+${conclusion(lineage)}
+${own.length > 0 ? `<h3>Figures</h3>\n${own.map(figureHtml).join('\n')}` : ''}
+<h3>Estimates</h3>
+${estimatesTable(lineage)}
+${further.map(([key, value]) => `<h3>${escapeHtml(key.replace(/_/g, ' '))}</h3>\n${jsonBlock(value)}`).join('\n')}
+</section>`;
+}

@@ -1,0 +1,241 @@
+import type { FitDocumentView, LineageView, ModelView } from './document-view.js';
+import { modelReferenceKeys, referenceCatalogue, uniqueKeys, type Reference } from './references.js';
+
+/**
+ * One sentence of the methods text. `text` may cite inline with markers
+ * `[[key]]` or `[[key1;key2]]` (keys of `referenceCatalogue`); `cites` are
+ * the sources cited at the end of the sentence.
+ */
+export interface MethodsSentence {
+  readonly text: string;
+  readonly cites: readonly string[];
+  /** Which paragraph the sentence belongs to: the data, the models and their fitting, or model choice and further analyses. */
+  readonly paragraph: 'data' | 'models' | 'choice';
+}
+
+const citeMarker = /\[\[([^\]]+)\]\]/g;
+
+/** Every source a sentence cites, inline markers first, then the end citations. */
+export function sentenceKeys(sentence: Pick<MethodsSentence, 'text' | 'cites'>): string[] {
+  const inline = [...sentence.text.matchAll(citeMarker)].flatMap((match) => match[1].split(';'));
+  return uniqueKeys([...inline, ...sentence.cites]);
+}
+
+/**
+ * Render a sentence, replacing citation markers with `cite(keys)` and
+ * adding the end citations in parentheses.
+ */
+export function renderSentence(sentence: MethodsSentence, text: (plain: string) => string, cite: (keys: readonly string[]) => string): string {
+  let output = '';
+  let last = 0;
+  for (const match of sentence.text.matchAll(citeMarker)) {
+    output += text(sentence.text.slice(last, match.index)) + cite(match[1].split(';'));
+    last = (match.index ?? 0) + match[0].length;
+  }
+  output += text(sentence.text.slice(last));
+  return sentence.cites.length === 0 ? output : `${output.replace(/\.$/, '')} (${cite(sentence.cites)}).`;
+}
+
+/** The generated methods text and the references it cites, in alphabetical order. */
+export interface MethodsText {
+  readonly sentences: readonly MethodsSentence[];
+  readonly references: readonly Reference[];
+}
+
+/** Which optional analyses the report shows, so the methods text can describe them. */
+export interface AnalysesRun {
+  readonly comparison?: boolean;
+  readonly power?: { readonly replicates?: number; readonly seed?: number | string } | null;
+  readonly adequacy?: { readonly replicates?: number; readonly seed?: number | string } | null;
+}
+
+function listInWords(items: readonly string[]): string {
+  if (items.length <= 1) return items.join('');
+  if (items.length === 2) return `${items[0]} and ${items[1]}`;
+  return `${items.slice(0, -1).join(', ')} and ${items[items.length - 1]}`;
+}
+
+/** A count in words up to twelve (for the start of a sentence), digits beyond. */
+function countWords(count: number): string {
+  const words = ['no', 'one', 'two', 'three', 'four', 'five', 'six', 'seven', 'eight', 'nine', 'ten', 'eleven', 'twelve'];
+  return words[count] ?? String(count);
+}
+
+function capitalised(text: string): string {
+  return text.charAt(0).toUpperCase() + text.slice(1);
+}
+
+function plural(count: number, word: string, many = `${word}s`): string {
+  return `${count} ${count === 1 ? word : many}`;
+}
+
+/** The models fitted anywhere in the document, in table order, first occurrence kept. */
+export function modelsFitted(document: FitDocumentView): ModelView[] {
+  const seen = new Map<string, ModelView>();
+  for (const lineage of document.lineages) for (const model of lineage.models) if (!seen.has(model.id)) seen.set(model.id, model);
+  return [...seen.values()];
+}
+
+function distinct<T>(lineages: readonly LineageView[], pick: (lineage: LineageView) => T): T[] {
+  return [...new Set(lineages.map(pick))];
+}
+
+function intervalSentence(document: FitDocumentView): MethodsSentence | null {
+  const requested = document.provenance.options.intervals;
+  if (requested === 'none' || requested === false) {
+    return { text: 'No confidence intervals were computed for this run.', cites: [], paragraph: 'models' };
+  }
+  const methods = new Set<string>();
+  for (const lineage of document.lineages) for (const model of lineage.models) if (model.converged) methods.add(model.interval_method);
+  const parts: { text: string; cites: string[] }[] = [];
+  for (const method of methods) {
+    if (method === 'profile') {
+      parts.push({
+        text: 'Approximate 95% confidence intervals are profile-likelihood intervals: the set of values of a parameter at which the log-likelihood, maximised over the other parameters, lies within χ²₁(0.95)/2 ≈ 1.92 of its maximum (an asymptotic cut-off)',
+        cites: ['venzonMoolgavkar1988'],
+      });
+    } else if (method === 'adjusted') {
+      parts.push({
+        text: 'Approximate 95% confidence intervals come from a restricted (REML-type) adjusted profile likelihood, in which the location parameters not held fixed are integrated out rather than maximised over, with the χ²₁(0.95)/2 ≈ 1.92 cut-off',
+        cites: ['venzonMoolgavkar1988'],
+      });
+    } else if (method === 'bootstrap') {
+      parts.push({
+        text: 'Approximate 95% confidence intervals are profile-likelihood intervals whose cut-off is the 95% quantile of the likelihood-ratio statistic over a parametric bootstrap of the fitted model',
+        cites: ['venzonMoolgavkar1988', 'efronTibshirani1993'],
+      });
+    } else {
+      parts.push({ text: `Confidence intervals were made by the method "${method}"`, cites: [] });
+    }
+  }
+  if (parts.length === 0) return null;
+  return { text: parts.map((part) => part.text).join('; ') + '.', cites: uniqueKeys(parts.flatMap((part) => part.cites)), paragraph: 'models' };
+}
+
+/**
+ * Write the methods text of a report from what was actually run: the models
+ * fitted, the likelihood, the treatment of sampling variance, the
+ * transform, the time unit, the model-choice criterion, the interval method,
+ * the optional analyses and the software version, each with its published
+ * source. The wording is the project's own; the user is expected to adapt it.
+ *
+ * @example
+ * methodsText(asFitDocument(runFit('sample-data/shell-length.csv', {}).document)).sentences[0].text;
+ * // "Trait means of 2 lineages (2 sections, 1 trait; 40 horizons in all) were analysed with stratotrend 0.1.0."
+ */
+export function methodsText(document: FitDocumentView, analyses: AnalysesRun = {}): MethodsText {
+  const { lineages, provenance } = document;
+  const sentences: MethodsSentence[] = [];
+  const sections = distinct(lineages, (lineage) => lineage.section).filter((name) => name !== '');
+  const traits = distinct(lineages, (lineage) => lineage.trait).filter((name) => name !== '');
+  const horizons = lineages.reduce((sum, lineage) => sum + lineage.horizons, 0);
+  const detail = [sections.length > 0 ? plural(sections.length, 'section') : null, traits.length > 0 ? plural(traits.length, 'trait') : null, `${plural(horizons, 'horizon')} in all`]
+    .filter((part) => part !== null)
+    .join(', ');
+  sentences.push({
+    text: `Trait means of ${plural(lineages.length, 'lineage')} (${detail}) were analysed with ${provenance.tool} ${provenance.version}.`,
+    cites: [], paragraph: 'data',
+  });
+
+  const transforms = distinct(lineages, (lineage) => lineage.transform);
+  if (transforms.includes('ln') || provenance.options.log === true) {
+    sentences.push({
+      text: 'The trait was analysed on the natural-log scale: specimen measurements were log-transformed one by one before the horizon summaries were taken, and horizons given only as summaries were transformed by the delta method (mean ln(x̄), variance (s/x̄)²), so rates are proportional changes.',
+      cites: [], paragraph: 'data',
+    });
+  } else {
+    sentences.push({ text: 'The trait was analysed on its original scale (no transform).', cites: [], paragraph: 'data' });
+  }
+
+  const treatments = distinct(lineages, (lineage) => lineage.sampling_variance);
+  if (treatments.includes('pooled') || provenance.options.pool === true) {
+    sentences.push({
+      text: 'The sampling variance of each horizon mean was treated as known: the within-horizon variance was pooled over the horizons of each lineage, v = Σ(nᵢ − 1)vᵢ / Σ(nᵢ − 1), and divided by the number of specimens of the horizon, eᵢ = v / nᵢ.',
+      cites: [], paragraph: 'data',
+    });
+  } else {
+    sentences.push({
+      text: 'The sampling variance of each horizon mean was treated as known, eᵢ = vᵢ / nᵢ, from the within-horizon variance vᵢ (n − 1 divisor) and the number of specimens nᵢ of that horizon.',
+      cites: [], paragraph: 'data',
+    });
+  }
+
+  const units = distinct(lineages, (lineage) => lineage.time_unit);
+  const kinds = distinct(lineages, (lineage) => lineage.position_kind);
+  const origin = kinds.includes('height') || kinds.includes('depth')
+    ? 'from stratigraphic positions converted to ages through the age model'
+    : kinds.includes('age')
+      ? 'from ages before present'
+      : 'as given';
+  sentences.push({
+    text: `Time was measured as elapsed time since the oldest horizon of each lineage (${origin}), in ${listInWords(units)}; every rate is per ${listInWords(units)}.`,
+    cites: [], paragraph: 'data',
+  });
+
+  const models = modelsFitted(document);
+  const modelParts = models.map((model) => `${model.label} (K = ${model.k}; [[${modelReferenceKeys(model.id).join(';')}]])`);
+  const setWords = document.model_set === 'classic' ? ' (the classic set)' : document.model_set === 'custom' ? ' (a set chosen by the user)' : ` (the "${document.model_set}" set)`;
+  sentences.push({
+    text: `${capitalised(countWords(models.length))} ${models.length === 1 ? 'model' : 'models'} of phyletic evolution${setWords} were fitted to every lineage by maximum likelihood: ${listInWords(modelParts)}.`,
+    cites: [],
+    paragraph: 'models',
+  });
+  sentences.push({
+    text: 'The likelihood is the exact joint multivariate-normal density of all horizon means, with the model\'s process covariance plus the sampling variances on the diagonal; it was computed in a number of steps proportional to the number of horizons by a Kalman filter on the state-space form of each model, with the parameters that enter the mean linearly estimated exactly by generalised least squares through the augmented filter.',
+    cites: ['kalman1960', 'deJong1991'], paragraph: 'models',
+  });
+  sentences.push({
+    text: 'The remaining (variance and rate) parameters were maximised numerically on a logarithmic grid refined by Brent\'s method, with variances allowed to reach their bound of zero; estimates at a bound or a limit are reported as such.',
+    cites: ['brent1973'], paragraph: 'models',
+  });
+  const intervals = intervalSentence(document);
+  if (intervals) sentences.push(intervals);
+  sentences.push({
+    text: 'Models were ranked by the small-sample Akaike information criterion, AICc = −2 logL + 2K + 2K(K + 1)/(N − K − 1) with N the number of horizons, and their relative support expressed as Akaike weights; a model with N − K − 1 ≤ 0 was not compared.',
+    cites: ['hurvichTsai1989', 'burnhamAnderson2002'], paragraph: 'choice',
+  });
+  if (lineages.some((lineage) => lineage.smoothed !== null)) {
+    sentences.push({
+      text: 'The lineage mean drawn in the figures was smoothed under the best-supported model with a fixed-interval (Rauch–Tung–Striebel) smoother.',
+      cites: ['rauchTungStriebel1965'], paragraph: 'choice',
+    });
+  }
+  if (analyses.comparison) {
+    sentences.push({
+      text: 'Where a trait was measured in two or more sections, hypotheses that the sections share one evolutionary process or each follow their own were fitted to all horizons together and ranked by AICc and Akaike weights in the same way.',
+      cites: ['hurvichTsai1989', 'burnhamAnderson2002'], paragraph: 'choice',
+    });
+  }
+  if (analyses.power) {
+    const details = [analyses.power.replicates ? `${analyses.power.replicates} replicates per drift value` : null, analyses.power.seed !== undefined ? `random seed ${analyses.power.seed}` : null].filter(Boolean).join(', ');
+    sentences.push({
+      text: `The power of this sampling design to detect a directional trend was estimated by simulating the directional walk on the design of the data (its times, sample sizes and within-horizon variances) over a grid of drift values and refitting every model${details ? ` (${details})` : ''}.`,
+      cites: ['efronTibshirani1993'], paragraph: 'choice',
+    });
+  }
+  if (analyses.adequacy) {
+    const details = [analyses.adequacy.replicates ? `${analyses.adequacy.replicates} replicates` : null, analyses.adequacy.seed !== undefined ? `random seed ${analyses.adequacy.seed}` : null].filter(Boolean).join(', ');
+    sentences.push({
+      text: `The adequacy of the best-supported model was checked on its standardised one-step prediction errors, with p-values from a parametric bootstrap of the fitted model${details ? ` (${details})` : ''}.`,
+      cites: ['vojeStarrfeltLiow2018', 'efronTibshirani1993'], paragraph: 'choice',
+    });
+  }
+  const cited = uniqueKeys(sentences.flatMap(sentenceKeys));
+  // The reference list is alphabetical, as journals print it.
+  const references = cited.map((key) => referenceCatalogue[key]).sort((left, right) => left.entry.localeCompare(right.entry, 'en'));
+  return { sentences, references };
+}
+
+/** The methods text as plain paragraphs with author–year citations, ready to paste. */
+export function methodsPlainText(methods: MethodsText): string {
+  return methodsParagraphs(methods)
+    .map((sentences) => sentences.map((sentence) => renderSentence(sentence, (text) => text, (keys) => keys.map((key) => referenceCatalogue[key].cite).join('; '))).join(' '))
+    .join('\n\n');
+}
+
+/** The sentences grouped into their paragraphs, in order (empty paragraphs left out). */
+export function methodsParagraphs(methods: MethodsText): MethodsSentence[][] {
+  return (['data', 'models', 'choice'] as const)
+    .map((paragraph) => methods.sentences.filter((sentence) => sentence.paragraph === paragraph))
+    .filter((sentences) => sentences.length > 0);
+}

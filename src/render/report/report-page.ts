@@ -1,0 +1,176 @@
+import { formatNumber } from '../units.js';
+import { lineageTitle, type FitDocumentView } from './document-view.js';
+import { escapeHtml, exactValue, slug } from './html.js';
+import { figureHtml, lineageSection, type ReportFigure } from './lineage-section.js';
+import { methodsParagraphs, methodsPlainText, methodsText, renderSentence, type AnalysesRun, type MethodsText } from './methods.js';
+import { comparisonBlock, jsonBlock, powerBlock } from './optional-blocks.js';
+import { referenceCatalogue } from './references.js';
+import { reportStyles } from './styles.js';
+import { supportCautions } from './cautions.js';
+
+export type { ReportFigure } from './lineage-section.js';
+
+/** What only the report records about a run (never written into fit.json, which must stay byte-identical). */
+export interface RunRecord {
+  /** When the report was made, ISO 8601. */
+  readonly date: string;
+  /** The command line as typed, when known. */
+  readonly command?: string;
+  /** Runtime, e.g. "Node.js v20.20.2 on linux x64". */
+  readonly runtime?: string;
+  /** Options of the report itself (figure format, …), beside the fit options of the document. */
+  readonly reportOptions?: Readonly<Record<string, unknown>>;
+  /** Random seeds used by any part of the run, by analysis. */
+  readonly seeds?: Readonly<Record<string, unknown>>;
+  /** A sentence about the figures when some could not be drawn. */
+  readonly figureNote?: string;
+}
+
+/** Everything a report shows. Optional analyses appear only when given (or present in the document). */
+export interface ReportInput {
+  readonly document: FitDocumentView;
+  readonly figures?: readonly ReportFigure[];
+  /** `compare --json` result. */
+  readonly comparison?: unknown;
+  /** `power --json` result. */
+  readonly power?: unknown;
+  /** Adequacy checks of the whole run (per-lineage checks may also sit in each lineage document). */
+  readonly adequacy?: unknown;
+  readonly analyses?: AnalysesRun;
+  readonly run: RunRecord;
+}
+
+/** Top-level document keys the report shows in blocks of their own. */
+const topKeys = new Set(['provenance', 'model_set', 'lineages', 'warnings', 'comparison', 'comparisons', 'power', 'adequacy']);
+
+function citationLinks(keys: readonly string[]): string {
+  return keys.map((key) => `<a href="#ref-${key}" class="cite">${escapeHtml(referenceCatalogue[key].cite)}</a>`).join('; ');
+}
+
+/** The methods text as HTML paragraphs, citations linked to the reference list. */
+export function methodsHtml(methods: MethodsText): string {
+  return methodsParagraphs(methods)
+    .map((sentences) => `<p data-block="methods-paragraph">${sentences.map((sentence) => renderSentence(sentence, escapeHtml, citationLinks)).join(' ')}</p>`)
+    .join('\n');
+}
+
+function overview(document: FitDocumentView): string {
+  const rows = document.lineages.map((lineage, index) => {
+    const best = lineage.models.find((model) => model.id === lineage.best_model);
+    const span = (lineage.data.time[lineage.data.time.length - 1] ?? 0) - (lineage.data.time[0] ?? 0);
+    return `<tr data-lineage="${index}"><td><a href="#lineage-${index + 1}-${slug(lineageTitle(lineage))}">${escapeHtml(lineageTitle(lineage))}</a></td>`
+      + `<td class="number" data-field="horizons" data-value="${lineage.horizons}">${lineage.horizons}</td>`
+      + `<td class="number">${escapeHtml(formatNumber(span))} ${escapeHtml(lineage.time_unit)}</td>`
+      + `<td>${best ? escapeHtml(best.label) : 'none compared'}</td>`
+      + `<td class="number" data-field="weight" data-value="${exactValue(best?.weight ?? null)}">${best?.weight === null || best === undefined ? '—' : best.weight.toFixed(3)}</td></tr>`;
+  });
+  return `<table aria-label="overview"><thead><tr><th>lineage</th><th class="number">horizons</th><th class="number">time span</th><th>best supported</th><th class="number">Akaike weight</th></tr></thead><tbody>
+${rows.join('\n')}
+</tbody></table>
+<div class="cautions"><p><strong>Reading these results</strong></p><ul>${supportCautions.map((caution) => `<li>${escapeHtml(caution)}</li>`).join('')}</ul></div>`;
+}
+
+function provenanceBlock(document: FitDocumentView, run: RunRecord): string {
+  const { provenance } = document;
+  const rows: [string, string][] = [
+    ['tool', `${provenance.tool} ${provenance.version}`],
+    ...provenance.inputs.map((input, index): [string, string] => [`input ${index + 1}`, `${input.file} — SHA-256 ${input.sha256}`]),
+    ...Object.entries(provenance.options).map(([key, value]): [string, string] => [`fit option: ${key}`, typeof value === 'string' ? value : JSON.stringify(value)]),
+    ['model set', document.model_set],
+    ...Object.entries(run.reportOptions ?? {}).map(([key, value]): [string, string] => [`report option: ${key}`, typeof value === 'string' ? value : JSON.stringify(value)]),
+    ['random seeds', run.seeds && Object.keys(run.seeds).length > 0 ? Object.entries(run.seeds).map(([key, value]) => `${key}: ${String(value)}`).join('; ') : 'none (the fit uses no random numbers)'],
+    ...(run.command ? [['command', run.command] as [string, string]] : []),
+    ...(run.runtime ? [['runtime', run.runtime] as [string, string]] : []),
+    ['report made', run.date],
+  ];
+  return `<table class="provenance" aria-label="provenance"><tbody>
+${rows.map(([term, value]) => `<tr><td>${escapeHtml(term)}</td><td><code>${escapeHtml(value)}</code></td></tr>`).join('\n')}
+</tbody></table>
+<p class="note">The numbers in this report are those of the run's fit.json (the same options give a byte-identical fit.json; the date is recorded only here).</p>`;
+}
+
+/**
+ * Build the whole report: one self-contained HTML page (styles inline,
+ * figures as data URLs, no scripts, nothing fetched when opened) with an
+ * overview, one section per lineage, the optional analyses that were run,
+ * the run's warnings, the methods text with its references, and provenance.
+ *
+ * @example
+ * const html = reportPage({ document: asFitDocument(run.document), run: { date: new Date().toISOString() } });
+ * html.startsWith('<!DOCTYPE html>'); // true
+ */
+export function reportPage(input: ReportInput): string {
+  const { document, run } = input;
+  const figures = input.figures ?? [];
+  const comparison = input.comparison ?? document.comparison ?? document.comparisons;
+  const power = input.power ?? document.power;
+  const adequacy = input.adequacy ?? document.adequacy;
+  const lineageAdequacy = document.lineages.some((lineage) => lineage.adequacy !== undefined);
+  const analyses: AnalysesRun = {
+    comparison: comparison !== undefined,
+    power: power !== undefined ? (input.analyses?.power ?? {}) : null,
+    adequacy: adequacy !== undefined || lineageAdequacy ? (input.analyses?.adequacy ?? {}) : null,
+  };
+  const methods = methodsText(document, analyses);
+  const inputNames = document.provenance.inputs.map((entry) => entry.file.split(/[\\/]/).pop() ?? entry.file).join(', ');
+  const shared = figures.filter((figure) => figure.lineage === null);
+  const further = Object.entries(document).filter(([key]) => !topKeys.has(key));
+
+  const blocks: { id: string; title: string; html: string }[] = [];
+  blocks.push({ id: 'overview', title: 'Overview', html: overview(document) });
+  document.lineages.forEach((lineage, index) => {
+    blocks.push({ id: `lineage-${index + 1}-${slug(lineageTitle(lineage))}`, title: lineageTitle(lineage), html: lineageSection(lineage, index, document, figures) });
+  });
+  if (shared.length > 0) blocks.push({ id: 'figures-by-trait', title: 'Sections together', html: shared.map(figureHtml).join('\n') });
+  if (comparison !== undefined) {
+    blocks.push({ id: 'comparison', title: 'Comparison of sections', html: `${comparisonBlock(comparison)}<div class="cautions"><ul><li>${escapeHtml('Shared-versus-separate support depends on how well each section is dated; a common process fitted to sections on different age models inherits the errors of both.')}</li></ul></div>` });
+  }
+  if (power !== undefined) {
+    blocks.push({ id: 'power', title: 'Power of this design', html: `${powerBlock(power)}<div class="cautions"><ul><li>${escapeHtml('Power is computed for the models and parameter values simulated; it holds for this design only, under the assumption that the simulated model is right.')}</li></ul></div>` });
+  }
+  if (adequacy !== undefined) blocks.push({ id: 'adequacy', title: 'Adequacy checks', html: jsonBlock(adequacy) });
+  for (const [key, value] of further) blocks.push({ id: slug(key), title: key.replace(/_/g, ' '), html: jsonBlock(value) });
+  if (document.warnings.length > 0) {
+    blocks.push({
+      id: 'warnings',
+      title: 'All warnings of the run',
+      html: `<div class="warnings"><ul>${document.warnings.map((warning) => `<li><code>${escapeHtml(warning.category)}</code> ${escapeHtml(warning.message)}${warning.count > 1 ? ` (${warning.count} times)` : ''}</li>`).join('')}</ul></div>`,
+    });
+  }
+  blocks.push({
+    id: 'methods',
+    title: 'Methods',
+    html: `<div class="methods">${methodsHtml(methods)}</div>
+<p class="note">Written from the options of this run; adapt it to your paper. Check every reference against the journal before submitting.</p>
+<details class="copy"><summary>Plain text for copying</summary><div class="plain-text" data-block="methods-plain">${escapeHtml(methodsPlainText(methods))}</div></details>
+<h3>References</h3>
+<ol class="references">${methods.references.map((reference) => `<li id="ref-${reference.key}">${escapeHtml(reference.entry)}</li>`).join('')}</ol>`,
+  });
+  blocks.push({ id: 'provenance', title: 'Provenance', html: provenanceBlock(document, run) });
+
+  const contents = blocks.map((block) => `<li><a href="#${block.id}">${escapeHtml(block.title)}</a></li>`).join('');
+  const body = blocks.map((block) => (block.html.startsWith('<section') ? block.html : `<section id="${block.id}">\n<h2>${escapeHtml(block.title)}</h2>\n${block.html}\n</section>`)).join('\n');
+  return `<!DOCTYPE html>
+<html lang="en">
+<head>
+<meta charset="utf-8">
+<meta name="viewport" content="width=device-width, initial-scale=1">
+<meta http-equiv="Content-Security-Policy" content="default-src 'none'; img-src data:; style-src 'unsafe-inline'">
+<meta name="generator" content="${escapeHtml(`${document.provenance.tool} ${document.provenance.version}`)}">
+<title>${escapeHtml(`Evolutionary models: ${inputNames}`)}</title>
+<style>${reportStyles}</style>
+</head>
+<body>
+<main>
+<header>
+<h1>Models of phyletic evolution: ${escapeHtml(inputNames)}</h1>
+<p class="subtitle">${escapeHtml(`${document.lineages.length} lineage${document.lineages.length === 1 ? '' : 's'}, ${document.provenance.tool} ${document.provenance.version}, report made ${run.date}`)}</p>
+${run.figureNote ? `<p class="note">${escapeHtml(run.figureNote)}</p>` : ''}
+</header>
+<nav class="contents" aria-label="contents"><strong>Contents</strong><ol>${contents}</ol></nav>
+${body}
+</main>
+</body>
+</html>
+`;
+}
