@@ -1,0 +1,213 @@
+import { join } from 'node:path';
+import { ageFunction, hasAgeUncertainty, readAgeModel, sedimentationRates, type AgeModel } from '../data/age-model.js';
+import { usageError } from '../data/errors.js';
+import { readTable } from '../data/read-table.js';
+import { WarningLog } from '../data/warnings.js';
+import { ageMonteCarlo, summariseDraws, type CandidateSpread, type RankedCandidate } from '../compare/age-uncertainty.js';
+import { compareTraits, lineagesByTrait, type ComparisonRun, type TraitComparison } from '../compare/compare-sections.js';
+import { candidateKey, comparisonCaution, comparisonCsv, comparisonDocument, comparisonTable, estimatesCsv } from '../compare/output.js';
+import { mergeSections, toleratingCoeval } from '../compare/stack.js';
+import { fitLineage, type LineageFit } from '../fit/fit-lineage.js';
+import type { Lineage } from '../lineage.js';
+import { lineageDocument, type Provenance } from '../render/fit-document.js';
+import { modelsCsv } from '../render/models-csv.js';
+import { lineageTable } from '../render/text-table.js';
+import { resolveModels } from './fit-command.js';
+import { loadLineages, readInput, type InputText, type SampleFileOptions } from './input.js';
+import { toolVersion } from './version.js';
+import { prepareOutputFolder, writeAtomically } from './write-output.js';
+
+/** Options of the age model, shared by `fit` and `compare`. */
+export interface AgeModelOptions {
+  ageModel?: string;
+  extrapolate?: boolean;
+  ageDraws?: string;
+  seed?: string;
+}
+
+/** Options of `stratotrend compare`. */
+export interface CompareCommandOptions extends SampleFileOptions, AgeModelOptions {
+  json?: boolean;
+  out?: string;
+  models?: string;
+  intervals?: boolean;
+  composite?: boolean;
+  mergeCoeval?: boolean;
+  figure?: boolean;
+  quiet?: boolean;
+}
+
+/** Read and validate an age-model file (tie points). */
+export function loadAgeModel(path: string, options: SampleFileOptions): { input: InputText; model: AgeModel } {
+  const input = readInput(path);
+  const delimiter = options.delimiter === 'tab' || options.delimiter === '\\t' ? '\t' : options.delimiter;
+  const model = readAgeModel(readTable(input.text, input.name, { delimiter }), { decimalComma: options.decimalComma });
+  return { input, model };
+}
+
+/** Parse `--age-draws` and `--seed`. */
+export function parseDrawOptions(options: AgeModelOptions): { draws: number; seed: number } {
+  const draws = options.ageDraws === undefined ? 0 : Number(options.ageDraws);
+  if (!Number.isInteger(draws) || draws < 0 || draws > 100_000) throw usageError(`--age-draws must be a whole number from 0 to 100000, got "${options.ageDraws}"`);
+  const seed = options.seed === undefined ? 1 : Number(options.seed);
+  if (!Number.isInteger(seed) || seed < 0 || seed > 2 ** 32 - 1) throw usageError(`--seed must be a whole number from 0 to 4294967295, got "${options.seed}"`);
+  if (draws > 0 && options.ageModel === undefined) throw usageError('--age-draws redraws the ages of an age model: give one with --age-model FILE');
+  return { draws, seed };
+}
+
+/** The age model in words: ties and sedimentation rates per section. */
+export function ageModelWords(model: AgeModel, unit: string): string {
+  const lines = [`Age model ${model.file} (ages by linear interpolation between ties; rates in m per ${unit}):`];
+  for (const [section, ties] of model.sections) {
+    const rates = sedimentationRates(ties).map((segment) => Number(segment.rate.toPrecision(3)));
+    const uncertain = ties.filter((tie) => tie.ageSd > 0).length;
+    lines.push(`  ${section || 'every section'}: ${ties.length} ties, sedimentation rates ${rates.join(', ')}${uncertain > 0 ? `; ${uncertain} with age_sd` : ''}`);
+  }
+  return lines.join('\n');
+}
+
+/** Everything `compare` computed, before printing. */
+export interface CompareRun {
+  readonly run: ComparisonRun;
+  readonly composites: readonly LineageFit[];
+  readonly spreads: ReadonlyMap<string, readonly CandidateSpread[]>;
+  readonly draws: { draws: number; seed: number } | null;
+  readonly ageModel: AgeModel | null;
+  readonly document: Record<string, unknown>;
+  readonly warnings: WarningLog;
+}
+
+function candidates(comparison: TraitComparison): RankedCandidate[] {
+  return comparison.hypotheses.map((hypothesis) => ({
+    key: candidateKey(hypothesis),
+    weight: hypothesis.weight,
+    best: comparison.best !== null && comparison.best.id === hypothesis.id && comparison.best.model === hypothesis.model,
+    estimates: hypothesis.estimates,
+  }));
+}
+
+/** Read the files, compare the sections of every trait, and build the document (no output). */
+export function runCompare(file: string, options: CompareCommandOptions): CompareRun {
+  const warnings = new WarningLog();
+  const input = readInput(file);
+  const age = options.ageModel ? loadAgeModel(options.ageModel, options) : null;
+  const { draws, seed } = parseDrawOptions(options);
+  const { name: modelSet, models } = resolveModels(options.models);
+  const lineagesUnder = (model: AgeModel | null, log: WarningLog): Lineage[] =>
+    loadLineages(input, options, log, model ? { ageOf: ageFunction(model, { extrapolate: options.extrapolate, samplesFile: input.name }) } : {});
+  const lineages = lineagesUnder(age?.model ?? null, warnings);
+  const run = compareTraits(lineages, models, { intervals: options.intervals !== false });
+  for (const skipped of run.skipped) warnings.add('input', `trait "${skipped.trait}": ${skipped.reason}`);
+  const composites: LineageFit[] = [];
+  if (options.composite) {
+    const tolerant = models.map(toleratingCoeval);
+    for (const [, sections] of lineagesByTrait(lineages)) {
+      if (sections.length < 2) continue;
+      composites.push(fitLineage(mergeSections(sections, { mergeCoeval: options.mergeCoeval }).lineage, tolerant, { intervals: options.intervals !== false }));
+    }
+  }
+  const spreads = new Map<string, readonly CandidateSpread[]>();
+  if (draws > 0 && age) {
+    if (!hasAgeUncertainty(age.model)) warnings.add('input', `--age-draws: every age_sd in ${age.model.file} is 0, so every draw repeats the plain fit`);
+    const perDraw = ageMonteCarlo(age.model, draws, seed, (drawn) => compareTraits(lineagesUnder(drawn, new WarningLog()), models, { intervals: false }));
+    for (const comparison of run.comparisons) {
+      spreads.set(comparison.trait, summariseDraws(perDraw.map((result) => {
+        const match = result.comparisons.find((entry) => entry.trait === comparison.trait);
+        return match ? candidates(match) : [];
+      })));
+    }
+  }
+  const provenance: Provenance = {
+    tool: 'stratotrend',
+    version: toolVersion(),
+    inputs: [{ file: input.name, sha256: input.sha256 }, ...(age ? [{ file: age.input.name, sha256: age.input.sha256 }] : [])],
+    options: {
+      command: 'compare',
+      log: options.log === true,
+      pool: options.pool === true,
+      time_unit: options.timeUnit ?? 'Myr',
+      models: modelSet,
+      intervals: options.intervals === false ? 'none' : 'profile',
+      age_model: options.ageModel ?? null,
+      extrapolate: options.extrapolate === true,
+      age_draws: draws,
+      seed: draws > 0 ? seed : null,
+      composite: options.composite === true,
+      merge_coeval: options.mergeCoeval === true,
+      criterion: 'AICc, N = all horizons of all sections of the trait',
+    },
+  };
+  const document = {
+    provenance,
+    traits: run.comparisons.map((comparison) => comparisonDocument(comparison, spreads.get(comparison.trait) ?? null)),
+    skipped: run.skipped,
+    composite: composites.map(lineageDocument),
+    caution: comparisonCaution,
+    warnings: warnings.list().map((warning) => ({ category: warning.category, message: warning.message, count: warning.count })),
+  };
+  return { run, composites, spreads, draws: draws > 0 ? { draws, seed } : null, ageModel: age?.model ?? null, document, warnings };
+}
+
+/**
+ * Per-section lineage documents for the sections-together figure: each
+ * section's own fit, with positions replaced by ages (age_i = firstAge - t_i)
+ * so the sections line up on the common timescale.
+ */
+export function sectionDocuments(comparison: TraitComparison, models: ReturnType<typeof resolveModels>['models']): Record<string, unknown>[] {
+  return comparison.sections.map((section) => {
+    const document = lineageDocument(fitLineage(section, models, { intervals: false }));
+    const data = document.data as Record<string, unknown>;
+    const firstAge = section.firstAge ?? 0;
+    return { ...document, position_kind: 'age', data: { ...data, position: Array.from(section.time, (t) => firstAge - t) } };
+  });
+}
+
+/** `stratotrend compare FILE`: print the comparison tables (or JSON) and write outputs with --out. */
+export async function compareCommand(file: string, options: CompareCommandOptions): Promise<void> {
+  const result = runCompare(file, options);
+  const written: string[] = [];
+  if (options.out) {
+    const inputs = [file, ...(options.ageModel ? [options.ageModel] : [])];
+    const folder = prepareOutputFolder(options.out, inputs);
+    writeAtomically(join(folder, 'compare.csv'), comparisonCsv(result.run.comparisons));
+    writeAtomically(join(folder, 'compare-estimates.csv'), estimatesCsv(result.run.comparisons));
+    writeAtomically(join(folder, 'compare.json'), JSON.stringify(result.document, null, 2) + '\n');
+    written.push('compare.csv', 'compare-estimates.csv', 'compare.json');
+    if (result.composites.length > 0) {
+      writeAtomically(join(folder, 'composite-models.csv'), modelsCsv(result.composites));
+      written.push('composite-models.csv');
+    }
+    if (options.figure !== false && result.run.comparisons.length > 0) {
+      const { renderSectionsTogether } = await import('../render/figures/index.js');
+      const { models } = resolveModels(options.models);
+      for (const [index, comparison] of result.run.comparisons.entries()) {
+        const figure = renderSectionsTogether(sectionDocuments(comparison, models), { model: comparison.best?.model });
+        const name = `sections-${index + 1}-${slug(comparison.trait)}.png`;
+        writeAtomically(join(folder, name), figure.bytes);
+        written.push(name);
+      }
+    }
+  }
+  if (options.json) {
+    process.stdout.write(JSON.stringify(result.document, null, 2) + '\n');
+  } else if (!options.quiet) {
+    const unit = result.run.comparisons[0]?.sections[0].timeUnit.label ?? 'Myr';
+    const parts: string[] = [];
+    if (result.ageModel) parts.push(ageModelWords(result.ageModel, unit));
+    for (const comparison of result.run.comparisons) {
+      parts.push(comparisonTable(comparison, result.draws ? { ...result.draws, spreads: result.spreads.get(comparison.trait) ?? [] } : null));
+    }
+    for (const composite of result.composites) parts.push(lineageTable(composite));
+    if (result.run.comparisons.length === 0) parts.push('No trait is measured in two or more sections: nothing to compare.');
+    process.stdout.write(parts.join('\n\n') + '\n');
+    if (written.length > 0) process.stdout.write(`\nWrote ${written.join(', ')} to ${options.out}\n`);
+  }
+  for (const warning of result.warnings.list()) {
+    process.stderr.write(`warning (${warning.category}): ${warning.message}${warning.count > 1 ? ` (${warning.count} times)` : ''}\n`);
+  }
+}
+
+function slug(text: string): string {
+  const cleaned = text.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-+|-+$/g, '');
+  return cleaned === '' ? 'trait' : cleaned.slice(0, 40);
+}

@@ -1,0 +1,239 @@
+/**
+ * Formatting of comparison results (terminal table, JSON document, tidy CSV).
+ * Pure: reads the plain result objects of `compareSections`, prints nothing.
+ */
+import type { ParameterEstimate } from '../fit/fit-model.js';
+import { finiteOrNull } from '../render/fit-document.js';
+import { csvField } from '../render/models-csv.js';
+import { alignColumns } from '../render/text-table.js';
+import { formatFixed, formatNumber } from '../render/units.js';
+import type { CandidateSpread, Spread } from './age-uncertainty.js';
+import type { HypothesisFit, TraitComparison } from './compare-sections.js';
+import { commonTime } from './stack.js';
+
+/** Words for each hypothesis id. */
+export const hypothesisWords: Record<string, string> = {
+  separate: 'separate (each section its own parameters)',
+  shared: 'shared process, own starting values',
+  'shared-offset': 'one lineage, constant offset per section',
+};
+
+/** The interpretive caution printed under every comparison (user-facing). */
+export const comparisonCaution =
+  'Caution: support for a shared or separate process depends on the age model (each section\'s dating and tie points), ' +
+  'sampling, and time-averaging within horizons; "shared-offset" assumes the sections sample one lineage on a correct common timescale. ' +
+  'A shared process does not by itself show that the localities exchanged migrants, nor a separate one that they were isolated; ' +
+  'the likelihood-ratio p-value is approximate when a variance sits at its bound 0. Weigh these results with the specialist\'s knowledge of the sections.';
+
+/** Key for age-draw summaries: "hypothesis model". */
+export function candidateKey(hypothesis: Pick<HypothesisFit, 'id' | 'model'>): string {
+  return `${hypothesis.id} ${hypothesis.model}`;
+}
+
+function estimateText(name: string, estimate: ParameterEstimate): string {
+  const interval = estimate.lower === null && estimate.upper === null ? '' : ` [${estimate.lower === null ? 'open' : formatNumber(estimate.lower)}, ${estimate.upper === null ? 'open' : formatNumber(estimate.upper)}]`;
+  const bound = estimate.atBound ? (estimate.atBound === 'zero' ? ' (at bound 0)' : ` (at the ${estimate.atBound} limit)`) : '';
+  return `${name} ${formatNumber(estimate.estimate)}${interval}${bound}`;
+}
+
+function spreadText(spread: Spread, digits = 3): string {
+  if (spread.median === null) return '—';
+  const show = (value: number | null): string => (value === null ? '—' : digits === 3 ? value.toFixed(3) : formatNumber(value));
+  return `${show(spread.median)} [${show(spread.lower)}, ${show(spread.upper)}]`;
+}
+
+/** Horizons whose ages are extrapolated, per section, in words (empty when none). */
+export function extrapolatedWords(comparison: TraitComparison): string {
+  const parts = comparison.sections
+    .map((section) => ({ name: section.section, count: section.extrapolated.filter(Boolean).length, lines: section.lines.filter((_, i) => section.extrapolated[i]) }))
+    .filter((entry) => entry.count > 0)
+    .map((entry) => `${entry.name}: ${entry.count} (input line${entry.count === 1 ? '' : 's'} ${entry.lines.join(', ')})`);
+  return parts.length === 0 ? '' : `EXTRAPOLATED AGES (beyond the outermost ties) — ${parts.join('; ')}`;
+}
+
+/**
+ * The terminal table of one trait: every hypothesis × model family ranked by
+ * AICc (K, logL, AICc, ΔAICc, weight), the likelihood-ratio tests of shared
+ * against separate, the estimates of the best-supported hypothesis, and the caution.
+ */
+export function comparisonTable(comparison: TraitComparison, ageDraws: { draws: number; seed: number; spreads: readonly CandidateSpread[] } | null = null): string {
+  const unit = comparison.sections[0].timeUnit.label;
+  const lines: string[] = [];
+  const sectionList = comparison.sections.map((section) => `${section.section} (${section.mean.length})`).join(', ');
+  lines.push(`Trait "${comparison.trait || 'trait'}": ${comparison.sections.length} sections — ${sectionList} — ${comparison.horizons} horizons; AICc with N = ${comparison.horizons}, time in ${unit}`);
+  const extrapolated = extrapolatedWords(comparison);
+  if (extrapolated) lines.push(`  ${extrapolated}`);
+  const ranked = [...comparison.hypotheses].sort((a, b) => (a.aicc ?? Infinity) - (b.aicc ?? Infinity));
+  const rows: string[][] = [['hypothesis     model', 'K', 'logL', 'AICc', 'ΔAICc', 'weight', '']];
+  for (const hypothesis of ranked) {
+    const isBest = comparison.best !== null && comparison.best.id === hypothesis.id && comparison.best.model === hypothesis.model;
+    rows.push([
+      `${hypothesis.id.padEnd(15)}${hypothesis.model}`,
+      String(hypothesis.k),
+      formatFixed(hypothesis.logLik, 3),
+      formatFixed(hypothesis.aicc, 3),
+      formatFixed(hypothesis.deltaAicc, 3),
+      hypothesis.weight === null ? '—' : hypothesis.weight.toFixed(3),
+      isBest ? '<- best supported' : hypothesis.aicc === null ? 'not compared' : '',
+    ]);
+  }
+  lines.push(...alignColumns(rows));
+  const summed = (id: string): number => comparison.hypotheses.filter((h) => h.id === id).reduce((sum, h) => sum + (h.weight ?? 0), 0);
+  lines.push(`  Summed weight by hypothesis: separate ${summed('separate').toFixed(3)}, shared ${summed('shared').toFixed(3)}, shared-offset ${summed('shared-offset').toFixed(3)}`);
+  for (const hypothesis of comparison.hypotheses) {
+    if (hypothesis.message) lines.push(`  ${hypothesis.id} ${hypothesis.model}: ${hypothesis.message}`);
+  }
+  if (comparison.tests.length > 0) {
+    lines.push('  Shared against separate (likelihood-ratio test; chi-square p-value):');
+    const testRows = [['model', 'G', 'df', 'p']];
+    for (const test of comparison.tests) {
+      testRows.push([test.model, formatFixed(test.statistic, 3), String(test.degreesOfFreedom), pValueText(test.pValue)]);
+    }
+    lines.push(...alignColumns(testRows, '    '));
+  }
+  const best = comparison.hypotheses.find((h) => comparison.best && h.id === comparison.best.id && h.model === comparison.best.model);
+  if (best) {
+    lines.push(`  Best supported: ${best.id} ${best.label} — ${hypothesisWords[best.id]} (Akaike weight ${best.weight?.toFixed(3)}).`);
+    const estimates = Object.entries(best.parameters).map(([name, estimate]) => estimateText(name, estimate));
+    if (estimates.length > 0) lines.push(`  Its estimates (95% profile intervals where computed): ${estimates.join('; ')}`);
+  } else {
+    lines.push('  No hypothesis could be compared.');
+  }
+  if (ageDraws) {
+    lines.push(`  Age uncertainty: ${ageDraws.draws} redraws of the tie-point ages (seed ${ageDraws.seed}); Akaike weight median [2.5%, 97.5%] and how often best:`);
+    const drawRows = [['hypothesis model', 'weight', 'best in']];
+    let negligible = 0;
+    for (const spread of ageDraws.spreads) {
+      if (spread.bestFraction === 0 && spread.weight.upper !== null && spread.weight.upper < 0.001) {
+        negligible += 1;
+        continue;
+      }
+      drawRows.push([spread.key, spreadText(spread.weight), `${(100 * spread.bestFraction).toFixed(1)}%`]);
+    }
+    lines.push(...alignColumns(drawRows, '    '));
+    if (negligible > 0) lines.push(`    (${negligible} other${negligible === 1 ? '' : 's'}: weight below 0.001 in 97.5% of the draws, never best)`);
+    const bestSpread = best ? ageDraws.spreads.find((spread) => spread.key === candidateKey(best)) : undefined;
+    if (bestSpread) {
+      const parts = Object.entries(bestSpread.estimates).filter(([, spread]) => spread.median !== null).map(([name, spread]) => `${name} ${spreadText(spread, 4)}`);
+      if (parts.length > 0) lines.push(`    Estimates of ${best!.id} ${best!.model} over the redraws (median [2.5%, 97.5%]): ${parts.join('; ')}`);
+    }
+  }
+  lines.push(`  ${comparisonCaution}`);
+  return lines.join('\n');
+}
+
+/** A p-value for tables: 4 decimals, exponent form below 1e-4, "< 1e-15" below what the chi-square tail resolves. */
+export function pValueText(value: number | null): string {
+  if (value === null) return '—';
+  if (value < 1e-15) return '< 1e-15';
+  return value < 1e-4 ? value.toExponential(2) : value.toFixed(4);
+}
+
+function estimateDocument(estimate: ParameterEstimate): Record<string, unknown> {
+  return {
+    estimate: finiteOrNull(estimate.estimate),
+    lower: finiteOrNull(estimate.lower),
+    upper: finiteOrNull(estimate.upper),
+    at_bound: estimate.atBound,
+  };
+}
+
+function spreadDocument(spread: Spread): Record<string, unknown> {
+  return { median: finiteOrNull(spread.median), lower: finiteOrNull(spread.lower), upper: finiteOrNull(spread.upper), draws: spread.count };
+}
+
+/** JSON form of age-draw summaries. */
+export function spreadsDocument(spreads: readonly CandidateSpread[]): Record<string, unknown>[] {
+  return spreads.map((spread) => ({
+    key: spread.key,
+    weight: spreadDocument(spread.weight),
+    best_fraction: spread.bestFraction,
+    estimates: Object.fromEntries(Object.entries(spread.estimates).map(([name, value]) => [name, spreadDocument(value)])),
+  }));
+}
+
+/**
+ * The JSON document of one trait's comparison:
+ * `{trait, sections, horizons, best, hypotheses: [{id, model, label, k, logLik, aicc, delta_aicc, weight, ...}], tests}`.
+ */
+export function comparisonDocument(comparison: TraitComparison, spreads: readonly CandidateSpread[] | null = null): Record<string, unknown> {
+  const { origin, starts } = commonTime(comparison.sections);
+  return {
+    trait: comparison.trait,
+    horizons: comparison.horizons,
+    time_unit: comparison.sections[0].timeUnit.label,
+    common_time_origin_age: origin,
+    sections: comparison.sections.map((section, s) => ({
+      section: section.section,
+      horizons: section.mean.length,
+      first_age: finiteOrNull(section.firstAge ?? null),
+      common_time_start: starts[s],
+      extrapolated: section.extrapolated,
+      extrapolated_horizons: section.extrapolated.filter(Boolean).length,
+      line: section.lines,
+    })),
+    best: comparison.best,
+    hypotheses: comparison.hypotheses.map((hypothesis) => ({
+      id: hypothesis.id,
+      model: hypothesis.model,
+      label: hypothesis.label,
+      description: hypothesisWords[hypothesis.id],
+      k: hypothesis.k,
+      horizons: hypothesis.horizons,
+      logLik: finiteOrNull(hypothesis.logLik),
+      aicc: finiteOrNull(hypothesis.aicc),
+      delta_aicc: finiteOrNull(hypothesis.deltaAicc),
+      weight: finiteOrNull(hypothesis.weight),
+      converged: hypothesis.converged,
+      compared: hypothesis.aicc !== null,
+      message: hypothesis.message,
+      params: Object.fromEntries(Object.entries(hypothesis.parameters).map(([name, estimate]) => [name, estimateDocument(estimate)])),
+      flags: hypothesis.flags,
+    })),
+    tests: comparison.tests.map((test) => ({
+      model: test.model,
+      restricted: test.restricted,
+      full: test.full,
+      statistic: finiteOrNull(test.statistic),
+      df: test.degreesOfFreedom,
+      p_value: finiteOrNull(test.pValue),
+      distribution: 'chi-square (@stdlib/stats-base-dists-chisquare-cdf)',
+    })),
+    age_uncertainty: spreads ? spreadsDocument(spreads) : null,
+  };
+}
+
+/**
+ * Tidy CSV of the comparison: one row per trait × hypothesis × model family,
+ * with the likelihood-ratio test on the family's shared row.
+ */
+export function comparisonCsv(comparisons: readonly TraitComparison[]): string {
+  const header = ['trait', 'hypothesis', 'model', 'k', 'horizons', 'logLik', 'aicc', 'delta_aicc', 'weight', 'best', 'compared', 'lrt_statistic', 'lrt_df', 'lrt_p_value', 'extrapolated_horizons', 'message'];
+  const rows = [header.join(',')];
+  for (const comparison of comparisons) {
+    const extrapolated = comparison.sections.reduce((sum, section) => sum + section.extrapolated.filter(Boolean).length, 0);
+    for (const h of comparison.hypotheses) {
+      const test = h.id === 'shared' ? comparison.tests.find((entry) => entry.model === h.model) : undefined;
+      const best = comparison.best !== null && comparison.best.id === h.id && comparison.best.model === h.model;
+      rows.push([
+        comparison.trait, h.id, h.model, h.k, h.horizons, finiteOrNull(h.logLik), finiteOrNull(h.aicc), finiteOrNull(h.deltaAicc), finiteOrNull(h.weight),
+        best, h.aicc !== null, test ? finiteOrNull(test.statistic) : null, test ? test.degreesOfFreedom : null, test ? finiteOrNull(test.pValue) : null,
+        extrapolated, h.message,
+      ].map(csvField).join(','));
+    }
+  }
+  return rows.join('\n') + '\n';
+}
+
+/** Tidy CSV of the estimates: one row per trait × hypothesis × model × parameter. */
+export function estimatesCsv(comparisons: readonly TraitComparison[]): string {
+  const rows = ['trait,hypothesis,model,parameter,estimate,lower,upper,at_bound'];
+  for (const comparison of comparisons) {
+    for (const h of comparison.hypotheses) {
+      for (const [name, estimate] of Object.entries(h.parameters)) {
+        rows.push([comparison.trait, h.id, h.model, name, finiteOrNull(estimate.estimate), finiteOrNull(estimate.lower), finiteOrNull(estimate.upper), estimate.atBound].map(csvField).join(','));
+      }
+    }
+  }
+  return rows.join('\n') + '\n';
+}
