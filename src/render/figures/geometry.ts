@@ -1,0 +1,184 @@
+import { findModel } from '../../models/registry.js';
+import type { FigureLineage, FigureModel } from './figure-input.js';
+
+/**
+ * Two-sided 95% quantile of the standard normal distribution, 1.959964
+ * (closed form: Φ⁻¹(0.975)); the figures' intervals and envelopes are
+ * mean ± this × standard deviation.
+ */
+export const normal95 = 1.959963984540054;
+
+/** How the time axis of a figure is labelled and which way it runs. */
+export interface TimeAxis {
+  /** 'age': ages before present (older = larger); 'time': time as read; 'elapsed': time since the oldest horizon. */
+  readonly kind: 'age' | 'time' | 'elapsed';
+  /** Axis title with its unit, e.g. "Age (Ma)". */
+  readonly title: string;
+  /**
+   * True when larger values are younger-to-older the wrong way for chart
+   * defaults: ages grow into the past, so the age axis is reversed to put the
+   * oldest horizon at the bottom (stratigraphic) or at the left (horizontal).
+   */
+  readonly reverse: boolean;
+  /** Axis value of a lineage's elapsed time t (t = 0 at its oldest horizon). */
+  toAxis(lineage: FigureLineage, elapsed: number): number;
+}
+
+/** Unit label for ages before present: Myr → Ma, kyr → ka, yr → yr BP (common practice); any other label as given. */
+export function ageUnitLabel(timeUnit: string): string {
+  const key = timeUnit.trim().toLowerCase();
+  if (key === 'myr' || key === 'ma') return 'Ma';
+  if (key === 'kyr' || key === 'ka') return 'ka';
+  if (key === 'yr' || key === 'a' || key === 'years') return 'yr BP';
+  return timeUnit;
+}
+
+/**
+ * The time axis shared by one or several lineages. Ages are drawn as read
+ * (so horizons of different sections line up by age); height or depth
+ * positions are drawn as elapsed time, because the document holds the age
+ * model's times but not the ages of the positions in between.
+ */
+export function timeAxisFor(lineages: readonly FigureLineage[]): TimeAxis {
+  const unit = lineages[0]?.timeUnit ?? 'Myr';
+  const kinds = new Set(lineages.map((lineage) => lineage.positionKind));
+  if (kinds.size === 1 && kinds.has('age')) {
+    return {
+      kind: 'age',
+      title: `Age (${ageUnitLabel(unit)})`,
+      reverse: true,
+      toAxis: (lineage, elapsed) => lineage.position[0] - elapsed,
+    };
+  }
+  if (kinds.size === 1 && kinds.has('time')) {
+    return {
+      kind: 'time',
+      title: `Time (${unit})`,
+      reverse: false,
+      toAxis: (lineage, elapsed) => lineage.position[0] + elapsed,
+    };
+  }
+  return {
+    kind: 'elapsed',
+    title: `Time since oldest horizon (${unit})`,
+    reverse: false,
+    toAxis: (_lineage, elapsed) => elapsed,
+  };
+}
+
+/** Trait axis title: the trait's name (or "trait"), marked when on the natural-log scale. */
+export function traitAxisTitle(lineage: FigureLineage): string {
+  const name = lineage.trait === '' ? 'trait' : lineage.trait;
+  const capital = name.charAt(0).toUpperCase() + name.slice(1);
+  return lineage.transform === 'ln' ? `ln ${name} (mean per horizon)` : `${capital} (mean per horizon)`;
+}
+
+/** Each horizon: its axis time, mean and 95% sampling interval mean ± 1.96 √e_i. */
+export interface HorizonMark {
+  readonly time: number;
+  readonly mean: number;
+  readonly lower: number;
+  readonly upper: number;
+}
+
+/** Horizon means with their 95% sampling intervals (±1.96 √e_i), on the axis' time scale. */
+export function horizonMarks(lineage: FigureLineage, axis: TimeAxis): HorizonMark[] {
+  return lineage.mean.map((mean, i) => {
+    const half = normal95 * Math.sqrt(Math.max(0, lineage.samplingVariance[i]));
+    return { time: axis.toAxis(lineage, lineage.time[i]), mean, lower: mean - half, upper: mean + half };
+  });
+}
+
+/** A model's expected trajectory with its 95% envelope, sampled along the lineage's time span. */
+export interface ModelCurve {
+  readonly id: string;
+  readonly label: string;
+  readonly isBest: boolean;
+  readonly weight: number | null;
+  /** Axis times of the samples, oldest first. */
+  readonly time: readonly number[];
+  readonly mean: readonly number[];
+  readonly lower: readonly number[];
+  readonly upper: readonly number[];
+  /** True when the envelope has width (false for strict stasis: the line alone is drawn). */
+  readonly hasEnvelope: boolean;
+}
+
+/** Why a model's curve cannot be drawn, or the curve. */
+export type ModelCurveResult = { readonly curve: ModelCurve; readonly reason: null } | { readonly curve: null; readonly reason: string };
+
+/** Number of samples of a model curve between the first and last horizon (besides the horizons themselves). */
+export const curveSamples = 160;
+
+/** The model to draw: the one asked for, else the best-supported one. */
+export function chosenModel(lineage: FigureLineage, requested: string | null): { model: FigureModel | null; reason: string | null } {
+  const id = requested ?? lineage.bestModel;
+  if (id === null) return { model: null, reason: 'no model was compared' };
+  const model = lineage.models.find((candidate) => candidate.id === id);
+  if (!model) return { model: null, reason: `model "${id}" is not in this fit` };
+  return { model, reason: null };
+}
+
+/**
+ * The expected trajectory E[x(t)] and 95% envelope E ± 1.96 √Var of a fitted
+ * model, from the model's own `expectation` (src/models): walks a + δt with
+ * variance σ²t from the first horizon, stasis θ ± 1.96 √ω, OU its mean and
+ * variance curves, strict stasis θ. The envelope is the model's process
+ * alone (the spread of the true lineage mean), not sampling error.
+ *
+ * @param lineage - the lineage document
+ * @param axis - the time axis the curve is drawn on
+ * @param requested - model id, or null for the best-supported model
+ */
+export function modelCurve(lineage: FigureLineage, axis: TimeAxis, requested: string | null): ModelCurveResult {
+  const { model, reason } = chosenModel(lineage, requested);
+  if (!model) return { curve: null, reason: reason ?? 'no model' };
+  const definition = findModel(model.id);
+  if (!definition) return { curve: null, reason: `model "${model.id}" is not known to this version of the tool` };
+  const missing = definition.parameters.filter((parameter) => !(parameter.name in model.estimates)).map((parameter) => parameter.name);
+  if (missing.length > 0) return { curve: null, reason: `${model.label} was not fitted (no estimate of ${missing.join(', ')})` };
+  const span = lineage.time[lineage.time.length - 1];
+  const grid = new Set<number>(lineage.time);
+  for (let k = 0; k <= curveSamples; k++) grid.add((span * k) / curveSamples);
+  const times = [...grid].sort((a, b) => a - b);
+  const expectation = definition.expectation(model.estimates, times);
+  const mean: number[] = [];
+  const lower: number[] = [];
+  const upper: number[] = [];
+  let hasEnvelope = false;
+  for (let i = 0; i < times.length; i++) {
+    const variance = Math.max(0, expectation.variance[i]);
+    const half = normal95 * Math.sqrt(variance);
+    if (!Number.isFinite(expectation.mean[i]) || !Number.isFinite(half)) {
+      return { curve: null, reason: `${model.label}: expected trajectory is not finite at t = ${times[i]}` };
+    }
+    if (half > 0) hasEnvelope = true;
+    mean.push(expectation.mean[i]);
+    lower.push(expectation.mean[i] - half);
+    upper.push(expectation.mean[i] + half);
+  }
+  return {
+    curve: {
+      id: model.id,
+      label: model.label,
+      isBest: model.id === lineage.bestModel,
+      weight: model.weight,
+      time: times.map((t) => axis.toAxis(lineage, t)),
+      mean,
+      lower,
+      upper,
+      hasEnvelope,
+    },
+    reason: null,
+  };
+}
+
+/** The smoothed lineage mean with its 95% band (mean ± 1.96 standard errors) at each horizon, or null. */
+export function smoothedBand(lineage: FigureLineage, axis: TimeAxis): { model: string; time: number[]; mean: number[]; lower: number[]; upper: number[] } | null {
+  const smoothed = lineage.smoothed;
+  if (!smoothed) return null;
+  const time = lineage.time.map((t) => axis.toAxis(lineage, t));
+  const lower = smoothed.mean.map((m, i) => m - normal95 * smoothed.standardError[i]);
+  const upper = smoothed.mean.map((m, i) => m + normal95 * smoothed.standardError[i]);
+  return { model: smoothed.model, time, mean: [...smoothed.mean], lower, upper };
+}

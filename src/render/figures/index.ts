@@ -1,0 +1,76 @@
+/**
+ * Publication figures of a fit, drawn from the lineage documents exactly as
+ * fit.json holds them (`lineageDocument` in src/render/fit-document.ts), so
+ * a saved fit can be redrawn without refitting.
+ *
+ * - `renderTrajectory`: one lineage through its section: horizon means with
+ *   95% sampling intervals (±1.96 √e_i), the chosen model's expected
+ *   trajectory and 95% envelope, optionally the smoothed mean and its band.
+ * - `renderSectionsTogether`: several sections of one trait on one time axis,
+ *   each told apart by colour, marker shape and dash pattern.
+ * - `renderModelSupport`: the table of models with Akaike-weight bars.
+ *
+ * Importing this module is cheap: the chart stack (chart.js,
+ * chartjs-node-canvas, @napi-rs/canvas) is loaded on the first figure drawn.
+ *
+ * @example
+ * const figure = renderTrajectory(fitJson.lineages[0], { format: 'svg' });
+ * writeFileSync('trajectory.svg', figure.bytes); // figure.mime === 'image/svg+xml'
+ */
+import { drawFigure, type RenderedFigure } from './chart-backend.js';
+import { readFigureLineage, type FigureLineage } from './figure-input.js';
+import { resolveFigureOptions, type FigureOptions } from './figure-options.js';
+import { modelSupportPlan } from './model-support.js';
+import { trajectoryPlan } from './trajectory.js';
+
+export type { FigureFrame, RenderedFigure } from './chart-backend.js';
+export type { FigureLineage, FigureModel } from './figure-input.js';
+export { readFigureLineage, figureLineageName } from './figure-input.js';
+export type { FigureFormat, FigureOptions, FigureOrientation, ResolvedFigureOptions } from './figure-options.js';
+export { resolveFigureOptions, parseFigureWidth, singleColumnCm, doubleColumnCm, defaultDpi } from './figure-options.js';
+export { pngInfo, withPngMetadata } from './png-metadata.js';
+export * as figureStyle from './style.js';
+
+function asLineage(document: unknown, where: string): FigureLineage {
+  return readFigureLineage(document, where);
+}
+
+/**
+ * The trajectory figure of one lineage.
+ *
+ * @param lineageDocument - one entry of fit.json `lineages` (or `lineageDocument(fit)`)
+ * @param options - format (png default, svg, pdf), width ('single' 9 cm default, 'double' 18 cm, or cm),
+ *   dpi (600 default, PNG only), orientation ('stratigraphic' default or 'horizontal'),
+ *   model (id to draw; default the best-supported), smoothed (band on/off, default off)
+ * @returns the file's bytes, MIME type, size (pixels for PNG, points for vector) and where the plot landed
+ * @throws InputError when the document lacks the horizon data or an option is out of range
+ */
+export function renderTrajectory(lineageDocument: unknown, options: FigureOptions = {}): RenderedFigure {
+  const resolved = resolveFigureOptions(options);
+  return drawFigure(trajectoryPlan([asLineage(lineageDocument, 'lineage')], resolved, false), resolved);
+}
+
+/**
+ * Several sections of one trait on a shared time axis (ages line up across
+ * sections). Each section's horizons and its model's expected trajectory
+ * (best-supported by default) are drawn; envelopes and smoothed bands are
+ * left to the one-lineage figures so the sections stay legible.
+ *
+ * @param lineageDocuments - the lineage documents of the sections, in legend order
+ */
+export function renderSectionsTogether(lineageDocuments: readonly unknown[], options: FigureOptions = {}): RenderedFigure {
+  const resolved = resolveFigureOptions(options);
+  if (lineageDocuments.length === 0) throw new Error('renderSectionsTogether needs at least one lineage');
+  const lineages = lineageDocuments.map((document, index) => asLineage(document, `lineages[${index}]`));
+  return drawFigure(trajectoryPlan(lineages, resolved, true), resolved);
+}
+
+/**
+ * The model-support figure of one lineage: K, logL, AICc, ΔAICc and the
+ * Akaike weight (as a bar) of every model, best marked, models not compared
+ * shown as such. Width, format and dpi options as for `renderTrajectory`.
+ */
+export function renderModelSupport(lineageDocument: unknown, options: FigureOptions = {}): RenderedFigure {
+  const resolved = resolveFigureOptions(options);
+  return drawFigure(modelSupportPlan(asLineage(lineageDocument, 'lineage'), resolved), resolved);
+}

@@ -1,0 +1,293 @@
+import type { Chart, ChartConfiguration, ChartDataset, Plugin, ScaleOptionsByType } from 'chart.js';
+import { measureText, type FigurePlan } from './chart-backend.js';
+import { figureLineageName, type FigureLineage } from './figure-input.js';
+import type { ResolvedFigureOptions } from './figure-options.js';
+import { pointsPerCm } from './figure-options.js';
+import { horizonMarks, modelCurve, smoothedBand, timeAxisFor, traitAxisTitle, type HorizonMark, type ModelCurve } from './geometry.js';
+import { drawInterval, drawLegend, drawMarker, fillBetween, font, layoutLegend, wrapText, type LegendEntry } from './marks.js';
+import { ink, lineWidth, modelInk, seriesStyle, smoothedInk, typeSize, type SeriesStyle } from './style.js';
+
+/** The first part of a model label, before any gloss in parentheses: "directional walk (random walk with drift)" → "directional walk". */
+export function shortModelLabel(label: string): string {
+  const cut = label.indexOf(' (');
+  return cut > 0 ? label.slice(0, cut) : label;
+}
+
+/** A weight as the tables print it: two decimals, "< 0.01" below that. */
+export function formatWeight(weight: number | null): string {
+  if (weight === null) return '—';
+  if (weight > 0 && weight < 0.005) return '< 0.01';
+  return weight.toFixed(2);
+}
+
+/** One lineage as drawn: its horizons, its model curve and, when asked, its smoothed band. */
+interface Series {
+  readonly lineage: FigureLineage;
+  readonly marks: readonly HorizonMark[];
+  readonly curve: ModelCurve | null;
+  readonly curveReason: string | null;
+  readonly smoothed: ReturnType<typeof smoothedBand>;
+  /** Null for the one-lineage look (ink markers, blue model). */
+  readonly style: SeriesStyle | null;
+}
+
+/** Height-to-width ratio of the plot (before the legend): tall for time up the page. */
+function aspect(options: ResolvedFigureOptions): number {
+  const wide = options.widthCm > 12;
+  if (options.orientation === 'stratigraphic') return wide ? 0.78 : 1.2;
+  return wide ? 0.5 : 0.74;
+}
+
+const margin = 6;
+
+/**
+ * Plan a trajectory figure for one lineage (`together` false) or for several
+ * sections of one trait on a shared time axis (`together` true: each section
+ * by colour, marker shape and dash pattern).
+ */
+export function trajectoryPlan(lineages: readonly FigureLineage[], options: ResolvedFigureOptions, together: boolean): FigurePlan {
+  const axis = timeAxisFor(lineages);
+  const series: Series[] = lineages.map((lineage, index) => {
+    const { curve, reason } = modelCurve(lineage, axis, options.model);
+    return {
+      lineage,
+      marks: horizonMarks(lineage, axis),
+      curve,
+      curveReason: reason,
+      smoothed: options.smoothed && !together ? smoothedBand(lineage, axis) : null,
+      style: together ? seriesStyle(index) : null,
+    };
+  });
+  const widthPoints = options.widthCm * pointsPerCm;
+  const innerWidth = widthPoints - 2 * margin;
+  const legendMeasure = (text: string) => measureText(font(typeSize.legend), text);
+  const legend = layoutLegend(legendEntries(series, together), innerWidth, legendMeasure);
+  const heightPoints = Math.round(widthPoints * aspect(options) + legend.height + 6);
+  const title = together
+    ? `${capitalised(lineages[0].trait || 'trait')}: ${lineages.length} sections`
+    : figureLineageName(lineages[0]);
+  const subtitleMeasure = (text: string) => measureText(font(typeSize.subtitle), text);
+  const subtitle = wrapText(subtitleText(series, together, options), innerWidth, subtitleMeasure);
+  const stratigraphic = options.orientation === 'stratigraphic';
+  const traitTitle = traitAxisTitle(lineages[0]);
+
+  const configuration = (): ChartConfiguration => {
+    const datasets: ChartDataset<'scatter'>[] = [];
+    const at = (time: number, value: number) => (stratigraphic ? { x: value, y: time } : { x: time, y: value });
+    // Invisible points at every extreme, so the axes take in intervals and envelopes as well as means.
+    const extent: { x: number; y: number }[] = [];
+    for (const item of series) {
+      for (const mark of item.marks) extent.push(at(mark.time, mark.lower), at(mark.time, mark.upper));
+      if (item.curve && (!together || item.curve)) {
+        const curve = item.curve;
+        const envelope = !together && curve.hasEnvelope;
+        curve.time.forEach((time, i) => {
+          extent.push(at(time, envelope ? curve.lower[i] : curve.mean[i]));
+          if (envelope) extent.push(at(time, curve.upper[i]));
+        });
+      }
+      if (item.smoothed) item.smoothed.time.forEach((time, i) => extent.push(at(time, item.smoothed!.lower[i]), at(time, item.smoothed!.upper[i])));
+    }
+    datasets.push({ label: 'extent', order: 100, data: extent, pointRadius: 0, pointHoverRadius: 0, pointStyle: false, showLine: false });
+    for (const item of series) {
+      if (!together) {
+        datasets.push({
+          label: 'join',
+          order: 30,
+          data: item.marks.map((mark) => at(mark.time, mark.mean)),
+          showLine: true,
+          pointRadius: 0,
+          pointStyle: false,
+          borderJoinStyle: 'round',
+          // A tension above 0 keeps chart.js off its fast path, which merges points by whole x units and jogs lines that run up the page.
+          tension: 1e-6,
+          borderColor: ink.join,
+          borderWidth: lineWidth.join,
+        });
+      }
+      if (item.curve) {
+        const curve = item.curve;
+        datasets.push({
+          label: `model ${curve.id}`,
+          order: 10,
+          data: curve.time.map((time, i) => at(time, curve.mean[i])),
+          showLine: true,
+          pointRadius: 0,
+          pointStyle: false,
+          borderJoinStyle: 'round',
+          // A tension above 0 keeps chart.js off its fast path, which merges points by whole x units and jogs lines that run up the page.
+          tension: 1e-6,
+          borderColor: item.style ? item.style.color : modelInk.line,
+          borderWidth: lineWidth.model,
+          borderDash: item.style ? [...item.style.dash] : [],
+        });
+      }
+      if (item.smoothed) {
+        const band = item.smoothed;
+        datasets.push({
+          label: 'smoothed',
+          order: 20,
+          data: band.time.map((time, i) => at(time, band.mean[i])),
+          showLine: true,
+          pointRadius: 0,
+          pointStyle: false,
+          borderJoinStyle: 'round',
+          // A tension above 0 keeps chart.js off its fast path, which merges points by whole x units and jogs lines that run up the page.
+          tension: 1e-6,
+          borderColor: smoothedInk.line,
+          borderWidth: lineWidth.smoothed,
+          borderDash: [3.5, 1.8],
+        });
+      }
+    }
+    const timeScale = scaleOptions(axis.title, axis.reverse);
+    const traitScale = scaleOptions(traitTitle, false);
+    return {
+      type: 'scatter',
+      data: { datasets },
+      options: {
+        locale: 'en-US',
+        layout: { padding: { left: margin, right: margin + 4, top: margin - 2, bottom: legend.height + 6 } },
+        scales: stratigraphic ? { x: traitScale, y: timeScale } : { x: timeScale, y: traitScale },
+        plugins: {
+          legend: { display: false },
+          tooltip: { enabled: false },
+          title: { display: true, text: title, align: 'start', color: ink.text, font: { size: typeSize.title, weight: 'bold' }, padding: { top: 0, bottom: 2 } },
+          subtitle: { display: subtitle.length > 0, text: subtitle, align: 'start', color: ink.muted, font: { size: typeSize.subtitle }, padding: { top: 0, bottom: 6 } },
+        },
+      },
+      plugins: [marksPlugin(series, stratigraphic, together, legend)],
+    };
+  };
+  return { widthPoints, heightPoints, title, configuration };
+}
+
+function capitalised(text: string): string {
+  return text.charAt(0).toUpperCase() + text.slice(1);
+}
+
+function scaleOptions(title: string, reverse: boolean): ScaleOptionsByType<'linear'> {
+  return {
+    type: 'linear',
+    reverse,
+    grace: '3%',
+    title: { display: true, text: title, color: ink.text, font: { size: typeSize.axisTitle }, padding: { top: 2, bottom: 1 } },
+    ticks: { color: ink.text, font: { size: typeSize.tick }, maxTicksLimit: 8, padding: 2 },
+    grid: { color: ink.grid, lineWidth: lineWidth.grid, tickLength: 3, tickColor: ink.axis, tickWidth: lineWidth.axis },
+    border: { color: ink.axis, width: lineWidth.axis },
+  } as unknown as ScaleOptionsByType<'linear'>;
+}
+
+function subtitleText(series: readonly Series[], together: boolean, options: ResolvedFigureOptions): string {
+  if (together) {
+    const which = options.model ? `the ${shortModelLabel(series.find((s) => s.curve)?.curve?.label ?? options.model)} model fitted to each section` : "each section's best-supported model";
+    const missing = series.filter((s) => !s.curve).map((s) => s.lineage.section || 'lineage');
+    return `Bars: 95% sampling intervals of the horizon means. Lines: expected trajectory of ${which}.${missing.length > 0 ? ` No line for ${missing.join(', ')}.` : ''}`;
+  }
+  const item = series[0];
+  if (!item.curve) return `No model trajectory drawn: ${item.curveReason}.`;
+  const curve = item.curve;
+  const support = curve.weight === null ? '' : `, Akaike weight ${formatWeight(curve.weight)}`;
+  const best = curve.isBest ? 'best-supported model' : `model drawn (best supported: ${shortModelLabel(item.lineage.models.find((m) => m.id === item.lineage.bestModel)?.label ?? 'none')})`;
+  const flat = curve.hasEnvelope || curve.id === 'strict-stasis' ? '' : ' Its envelope has no width: the variance is estimated at 0.';
+  return `${capitalised(curve.label)}: ${best}${support}.${flat}`;
+}
+
+function legendEntries(series: readonly Series[], together: boolean): LegendEntry[] {
+  if (together) {
+    return series.map((item) => {
+      const style = item.style!;
+      const name = item.lineage.section || 'lineage';
+      return {
+        key: {
+          line: item.curve ? { color: style.color, width: lineWidth.model, dash: style.dash } : undefined,
+          marker: { shape: style.marker, color: style.color, filled: style.filled },
+        },
+        text: item.curve ? `${name}: ${shortModelLabel(item.curve.label)}` : name,
+      };
+    });
+  }
+  const item = series[0];
+  const entries: LegendEntry[] = [
+    { key: { interval: { color: ink.text }, marker: { shape: 'circle', color: ink.text } }, text: 'Horizon mean with 95% sampling interval' },
+  ];
+  if (item.curve) {
+    entries.push({ key: { line: { color: modelInk.line, width: lineWidth.model } }, text: `Expected trajectory, ${shortModelLabel(item.curve.label)}` });
+    if (item.curve.hasEnvelope) entries.push({ key: { band: { fill: modelInk.band, edge: modelInk.bandEdge } }, text: '95% envelope of the model' });
+  }
+  if (item.smoothed) {
+    const band = item.smoothed;
+    const wide = band.upper.some((upper, i) => upper > band.lower[i]);
+    entries.push({
+      key: { band: wide ? { fill: smoothedInk.band } : undefined, line: { color: smoothedInk.line, width: lineWidth.smoothed, dash: [3.5, 1.8] } },
+      text: `Smoothed mean (${shortModelLabel(item.lineage.models.find((m) => m.id === band.model)?.label ?? band.model)})${wide ? ' with 95% band' : ', band of zero width'}`,
+    });
+  }
+  return entries;
+}
+
+function marksPlugin(series: readonly Series[], stratigraphic: boolean, together: boolean, legend: ReturnType<typeof layoutLegend>): Plugin<'scatter'> {
+  const pixel = (chart: Chart, time: number, value: number) => {
+    const x = chart.scales.x.getPixelForValue(stratigraphic ? value : time);
+    const y = chart.scales.y.getPixelForValue(stratigraphic ? time : value);
+    return { x, y };
+  };
+  const clip = (chart: Chart) => {
+    const area = chart.chartArea;
+    chart.ctx.save();
+    chart.ctx.beginPath();
+    chart.ctx.rect(area.left, area.top, area.right - area.left, area.bottom - area.top);
+    chart.ctx.clip();
+  };
+  return {
+    id: 'stratotrendTrajectory',
+    beforeDatasetsDraw(chart) {
+      clip(chart);
+      for (const item of series) {
+        if (item.curve && item.curve.hasEnvelope && !together) {
+          const curve = item.curve;
+          fillBetween(
+            chart.ctx,
+            curve.time.map((t, i) => pixel(chart, t, curve.lower[i])),
+            curve.time.map((t, i) => pixel(chart, t, curve.upper[i])),
+            modelInk.band,
+            { color: modelInk.bandEdge, width: lineWidth.bandEdge },
+          );
+        }
+        if (item.smoothed) {
+          const band = item.smoothed;
+          fillBetween(
+            chart.ctx,
+            band.time.map((t, i) => pixel(chart, t, band.lower[i])),
+            band.time.map((t, i) => pixel(chart, t, band.upper[i])),
+            smoothedInk.band,
+            { color: smoothedInk.line, width: lineWidth.bandEdge, dash: [1.5, 1.5] },
+          );
+        }
+      }
+      chart.ctx.restore();
+    },
+    afterDatasetsDraw(chart) {
+      clip(chart);
+      for (const item of series) {
+        const color = item.style ? item.style.color : ink.text;
+        for (const mark of item.marks) {
+          const from = pixel(chart, mark.time, mark.lower);
+          const to = pixel(chart, mark.time, mark.upper);
+          drawInterval(chart.ctx, from.x, from.y, to.x, to.y, color);
+        }
+      }
+      for (const item of series) {
+        const style = item.style;
+        for (const mark of item.marks) {
+          const centre = pixel(chart, mark.time, mark.mean);
+          drawMarker(chart.ctx, style ? style.marker : 'circle', centre.x, centre.y, style ? style.color : ink.text, style ? style.filled : true);
+        }
+      }
+      chart.ctx.restore();
+    },
+    afterDraw(chart) {
+      drawLegend(chart.ctx, legend, margin, chart.height - legend.height - 4);
+    },
+  };
+}
