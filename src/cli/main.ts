@@ -2,6 +2,7 @@ import { Command, CommanderError } from 'commander';
 import { InputError } from '../data/errors.js';
 import { defineCompareCommand } from './commands/compare.js';
 import { defineFitCommand } from './commands/fit.js';
+import { definePowerCommand } from './commands/power.js';
 import { defineReportCommand } from './commands/report.js';
 import { toolVersion } from './version.js';
 
@@ -11,6 +12,11 @@ import { toolVersion } from './version.js';
  */
 export async function main(argv: readonly string[]): Promise<void> {
   const debug = argv.includes('--debug');
+  // A reader that stops early (`| head`) is not an error: stop quietly.
+  process.stdout.on('error', (error: NodeJS.ErrnoException) => {
+    if (error.code === 'EPIPE') process.exit(process.exitCode ?? 0);
+    process.exitCode = reportError(error, debug);
+  });
   const program = buildProgram();
   try {
     await program.parseAsync(argv as string[]);
@@ -45,5 +51,6 @@ export function buildProgram(): Command {
   defineFitCommand(program);
   defineCompareCommand(program);
   defineReportCommand(program);
+  definePowerCommand(program);
   return program;
 }

@@ -262,7 +262,8 @@ export function intervalsByProfile(
   const model = evaluator.model;
   const result: Record<string, IntervalEnds> = {};
   for (const name of names) {
-    const drop = request.ratioCutoff(name) / 2;
+    // A bootstrap cut-off can be 0 when the truth sits on a bound; a tiny floor keeps the root search bracketed.
+    const drop = Math.max(request.ratioCutoff(name), 1e-6) / 2;
     const axisIndex = model.process.findIndex((axis) => axis.name === name);
     if (axisIndex >= 0) {
       const evaluate = (process: number[]): number => {

@@ -1,0 +1,29 @@
+import type { Command } from 'commander';
+import { addSampleOptions } from './shared.js';
+
+/** Define `stratotrend power`; the action loads the simulation code only when run. */
+export function definePowerCommand(program: Command): void {
+  addSampleOptions(
+    program
+      .command('power')
+      .description('how large a trend this file\'s sampling design could detect: simulate directional walks on its own times and sample sizes, refit every model, and report power and the false-trend rate')
+      .argument('<file>', 'samples CSV (as for fit); its design (times, n, within-horizon variances) is kept'),
+  )
+    .option('--lineage <name>', 'which lineage ("section / trait", or a section or trait name); default the first')
+    .option('--replicates <R>', 'simulated lineages per drift value and in the null set', '200')
+    .option('--seed <s>', 'seed of the simulations (same seed, same results on any number of threads)', '1')
+    .option('--drifts <list>', 'drift values per time unit, comma-separated (default: 0 to 5 standard errors of the fitted drift)')
+    .option('--drifts-sd <list>', 'drift values in pooled within-horizon standard deviations per time unit')
+    .option('--step-variance <v>', 'step variance of the simulated walks (default: the fitted directional walk\'s)')
+    .option('--weight-threshold <w>', 'Akaike weight the directional walk must exceed for P(weight) (its weight cannot pass about 0.8 when ou is fitted too, because ou contains it as a limit)', '0.5')
+    .option('--target-drift <d>', 'also find how many horizons at the same spacing and sample sizes give 80% power for this drift')
+    .option('--no-coverage', 'skip the check of interval coverage on this design')
+    .option('--threads <k>', 'worker threads (default: every core; results do not depend on it)')
+    .option('--figure <file>', 'write the power curve (png, or svg/pdf by extension)')
+    .option('--json', 'print one JSON document instead of the table')
+    .option('--quiet', 'no table and no progress bar')
+    .action(async (file: string, options) => {
+      const { powerCommand } = await import('../power-command.js');
+      await powerCommand(file, options);
+    });
+}

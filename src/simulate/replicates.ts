@@ -1,0 +1,77 @@
+import { fitLineage } from '../fit/fit-lineage.js';
+import { findModel } from '../models/registry.js';
+import type { EvolutionModel } from '../models/model.js';
+import { designLineage, type Design } from './design.js';
+import { createRandom } from './random.js';
+import { replicateSeed } from './seeds.js';
+import { simulateMeans, withMeans } from './simulate-lineage.js';
+
+/**
+ * One simulate-and-refit replicate as plain data, so it can run on any
+ * worker thread: draw a lineage from `generator` at `parameters` on the
+ * design, fit every model in `fit`, and report what model choice needs.
+ */
+export interface FitReplicateTask {
+  readonly design: Design;
+  readonly generator: string;
+  readonly parameters: Readonly<Record<string, number>>;
+  /** Model ids fitted to each replicate (AICc and weights are over these). */
+  readonly fit: readonly string[];
+  readonly seed: number;
+  /** Which family of replicates (grid point, null set, design size...): part of the replicate's seed. */
+  readonly stream: number;
+  readonly index: number;
+}
+
+/** What one replicate returns: per fitted model, logL, AICc and Akaike weight (null when not compared). */
+export interface FitReplicateResult {
+  readonly stream: number;
+  readonly index: number;
+  readonly logLik: Record<string, number | null>;
+  readonly aicc: Record<string, number | null>;
+  readonly weight: Record<string, number | null>;
+  readonly best: string | null;
+  /** Fitted estimates per model (natural parameters). */
+  readonly estimates: Record<string, Record<string, number>>;
+}
+
+function modelById(id: string): EvolutionModel {
+  const model = findModel(id);
+  if (!model) throw new Error(`unknown model "${id}"`);
+  return model;
+}
+
+/**
+ * Run one replicate. Its random stream depends on (seed, stream, index)
+ * only, so the result is the same on any thread and in any order.
+ */
+export function fitReplicate(task: FitReplicateTask): FitReplicateResult {
+  const generator = modelById(task.generator);
+  const design = designLineage(task.design);
+  const random = createRandom(replicateSeed(task.seed, task.stream, task.index));
+  const lineage = withMeans(design, simulateMeans(generator, design, { ...task.parameters }, random));
+  const fitted = fitLineage(lineage, task.fit.map(modelById), { intervals: false });
+  const logLik: Record<string, number | null> = {};
+  const aicc: Record<string, number | null> = {};
+  const weight: Record<string, number | null> = {};
+  const estimates: Record<string, Record<string, number>> = {};
+  for (const model of fitted.models) {
+    logLik[model.id] = model.converged && Number.isFinite(model.logLik) ? model.logLik : null;
+    aicc[model.id] = model.aicc;
+    weight[model.id] = model.weight;
+    estimates[model.id] = { ...model.estimates };
+  }
+  return { stream: task.stream, index: task.index, logLik, aicc, weight, best: fitted.best, estimates };
+}
+
+/**
+ * Likelihood-ratio statistic 2 (logL_full - logL_reduced) of a replicate,
+ * floored at 0 (the nested maximum can only be lower up to search
+ * tolerance); null when either model was not fitted.
+ */
+export function ratioStatistic(result: FitReplicateResult, full: string, reduced: string): number | null {
+  const upper = result.logLik[full];
+  const lower = result.logLik[reduced];
+  if (upper === null || lower === null || upper === undefined || lower === undefined) return null;
+  return Math.max(0, 2 * (upper - lower));
+}

@@ -1,0 +1,73 @@
+import type { Lineage } from '../lineage.js';
+import type { EvolutionModel } from '../models/model.js';
+import { createRandom } from './random.js';
+import { replicateSeed } from './seeds.js';
+import { simulateMeans } from './simulate-lineage.js';
+
+/** What to simulate: a model, its parameters per design lineage, replicates and the form of the file. */
+export interface SimulationRequest {
+  readonly model: EvolutionModel;
+  /** Design lineages (times, n, within-horizon variances; their means are ignored). */
+  readonly designs: readonly Lineage[];
+  /** Natural parameters per design lineage (same order). */
+  readonly parameters: readonly Readonly<Record<string, number>>[];
+  readonly replicates: number;
+  readonly seed: number;
+  /** summary: one row per horizon (n, mean, sd); specimen: one row per specimen (value). */
+  readonly form: 'summary' | 'specimen';
+}
+
+/** Numbers as text: 10 significant digits, no trailing zeros (deterministic, and read back exactly enough). */
+export function formatValue(value: number): string {
+  return String(Number(value.toPrecision(10)));
+}
+
+function quoteCell(text: string): string {
+  return /[",\n\r]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
+}
+
+/**
+ * Simulated samples as CSV text in the tool's own input format, so the
+ * output can be fed straight back to `fit`, `power` or `bootstrap`. Each
+ * replicate of each design lineage becomes its own section ("<section>
+ * r001"...). Ages are written when the design came with ages, elapsed time
+ * otherwise.
+ *
+ * Summary form: the horizon mean is drawn exactly as the likelihood assumes
+ * (sampling error N(0, v_i / n_i)) and sd is the design's within-horizon sd.
+ * Specimen form: n_i specimens are drawn around the horizon's latent mean
+ * with variance v_i, so their mean has the same sampling variance and their
+ * sample variance scatters as a real sample's would.
+ *
+ * Seeds come from (seed, replicate, lineage) only: same seed, same bytes.
+ */
+export function simulatedTable(request: SimulationRequest): string {
+  const ages = request.designs.every((design) => design.positionKind === 'age');
+  const header = request.form === 'summary' ? ['section', 'trait', ages ? 'age' : 'time', 'n', 'mean', 'sd'] : ['section', 'trait', ages ? 'age' : 'time', 'value'];
+  const lines = [header.join(',')];
+  const width = String(request.replicates).length;
+  for (let replicate = 0; replicate < request.replicates; replicate++) {
+    request.designs.forEach((design, lineageIndex) => {
+      const random = createRandom(replicateSeed(request.seed, 31, replicate, lineageIndex));
+      const baseName = design.section === '' ? 'simulated' : design.section;
+      const section = request.replicates > 1 ? `${baseName} r${String(replicate + 1).padStart(Math.max(3, width), '0')}` : baseName;
+      const trait = design.trait === '' ? 'trait' : design.trait;
+      const size = design.time.length;
+      const prefix = (i: number): string => [quoteCell(section), quoteCell(trait), formatValue(ages ? design.position[i] : design.time[i])].join(',');
+      if (request.form === 'summary') {
+        const means = simulateMeans(request.model, design, { ...request.parameters[lineageIndex] }, random);
+        for (let i = 0; i < size; i++) {
+          lines.push(`${prefix(i)},${design.count[i]},${formatValue(means[i])},${formatValue(Math.sqrt(design.withinVariance[i]))}`);
+        }
+      } else {
+        const latentDesign: Lineage = { ...design, samplingVariance: new Float64Array(size) };
+        const latent = simulateMeans(request.model, latentDesign, { ...request.parameters[lineageIndex] }, random);
+        for (let i = 0; i < size; i++) {
+          const sd = Math.sqrt(design.withinVariance[i]);
+          for (let specimen = 0; specimen < design.count[i]; specimen++) lines.push(`${prefix(i)},${formatValue(latent[i] + sd * random.normal())}`);
+        }
+      }
+    });
+  }
+  return lines.join('\n') + '\n';
+}
