@@ -9,11 +9,12 @@ import { modelsCsv } from '../render/models-csv.js';
 import { lineageTable } from '../render/text-table.js';
 import { loadLineages, loadLineagesStreamed, readInput, terminalProgress, type InputText, type SampleFileOptions } from './input.js';
 import type { Lineage } from '../lineage.js';
+import type { FigureCommandOptions } from './render-command.js';
 import { toolVersion } from './version.js';
 import { prepareOutputFolder, writeAtomically } from './write-output.js';
 
 /** Options of `stratotrend fit`. */
-export interface FitCommandOptions extends SampleFileOptions {
+export interface FitCommandOptions extends SampleFileOptions, FigureCommandOptions {
   json?: boolean;
   out?: string;
   models?: string;
@@ -91,16 +92,21 @@ export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lin
 /** `stratotrend fit FILE`: print the model table (or JSON) and write outputs with --out. */
 export async function fitCommand(file: string, options: FitCommandOptions): Promise<void> {
   const run = await runFitStreamed(file, options);
+  // Figures load their module (and, when drawing, the chart stack) only with --out.
+  const figures = options.out && options.figures !== false ? await import('./render-command.js') : null;
+  const lineageDocuments = (run.document as { lineages: unknown[] }).lineages;
+  const figurePlan = figures ? figures.planFigureFiles(lineageDocuments, options) : null;
   if (options.out) {
-    const folder = prepareOutputFolder(options.out, [file], ['models.csv', 'fit.json']);
+    const folder = prepareOutputFolder(options.out, [file], ['models.csv', 'fit.json', ...(figurePlan?.names ?? [])]);
     writeAtomically(join(folder, 'models.csv'), modelsCsv(run.fits));
     writeAtomically(join(folder, 'fit.json'), JSON.stringify(run.document, null, 2) + '\n');
+    if (figures && figurePlan) figures.writeFigureFiles(lineageDocuments, figurePlan, folder);
   }
   if (options.json) {
     process.stdout.write(JSON.stringify(run.document, null, 2) + '\n');
   } else if (!options.quiet) {
     process.stdout.write(run.fits.map(lineageTable).join('\n\n') + '\n');
-    if (options.out) process.stdout.write(`\nWrote models.csv and fit.json to ${options.out}\n`);
+    if (options.out) process.stdout.write(`\nWrote models.csv and fit.json${figurePlan ? ` and ${figurePlan.names.length} figure files` : ''} to ${options.out}\n`);
   }
   for (const warning of run.warnings.list()) {
     if (warning.category === 'at-bound' || warning.category === 'not-compared') continue;

@@ -3,6 +3,7 @@ import { InputError } from '../data/errors.js';
 import { defineCompareCommand } from './commands/compare.js';
 import { defineFitCommand } from './commands/fit.js';
 import { definePowerCommand } from './commands/power.js';
+import { defineRedrawCommand } from './commands/render.js';
 import { defineReportCommand } from './commands/report.js';
 import { toolVersion } from './version.js';
 
@@ -52,5 +53,6 @@ export function buildProgram(): Command {
   defineCompareCommand(program);
   defineReportCommand(program);
   definePowerCommand(program);
+  defineRedrawCommand(program);
   return program;
 }

@@ -1,4 +1,5 @@
 import type { Command } from 'commander';
+import { addFigureOptions } from './render.js';
 import { addSampleOptions } from './shared.js';
 
 /**
@@ -6,17 +7,18 @@ import { addSampleOptions } from './shared.js';
  * the command runs, so defining commands stays cheap.
  */
 export function defineFitCommand(program: Command): void {
-  addSampleOptions(
+  addFigureOptions(addSampleOptions(
     program
       .command('fit')
       .description('fit every model to every lineage (section × trait) of a samples CSV and rank them by AICc')
       .argument('<file>', 'samples CSV (summary form: n, mean, sd or var per horizon; specimen form: value per specimen); "-" reads stdin'),
-  )
+  ))
     .option('--json', 'print one JSON document to stdout instead of the table')
     .option('--out <folder>', 'write models.csv and fit.json into this folder (created if needed)')
     .option('--models <set>', 'model set: "classic" (the five models) or a comma-separated list of model ids', 'classic')
     .option('--no-intervals', 'skip the profile-likelihood intervals (faster)')
     .option('--quiet', 'print nothing but errors and warnings')
+    .option('--no-figures', 'with --out, write no figure files (by default each lineage gets a trajectory and a model-support figure, each trait with several sections a sections figure)')
     .addHelpText('after', modelHelp())
     .action(async (file: string, options) => {
       const { fitCommand } = await import('../fit-command.js');

@@ -29,6 +29,7 @@ export { readFigureLineage, figureLineageName } from './figure-input.js';
 export type { FigureFormat, FigureOptions, FigureOrientation, ResolvedFigureOptions } from './figure-options.js';
 export { resolveFigureOptions, parseFigureWidth, singleColumnCm, doubleColumnCm, defaultDpi } from './figure-options.js';
 export { pngInfo, withPngMetadata } from './png-metadata.js';
+export { figureJobs, figureKinds, fileSlug, type FigureJob, type FigureKind } from './figure-set.js';
 export * as figureStyle from './style.js';
 
 function asLineage(document: unknown, where: string): FigureLineage {

@@ -1,0 +1,165 @@
+import { readFileSync } from 'node:fs';
+import { dirname, join } from 'node:path';
+import { InputError, usageError } from '../data/errors.js';
+import {
+  figureJobs,
+  figureKinds,
+  parseFigureWidth,
+  renderModelSupport,
+  renderSectionsTogether,
+  renderTrajectory,
+  resolveFigureOptions,
+  type FigureFormat,
+  type FigureJob,
+  type FigureKind,
+  type FigureOptions,
+} from '../render/figures/index.js';
+import { prepareOutputFolder, writeAtomically } from './write-output.js';
+
+/** Figure options as commander hands them over (strings until checked). */
+export interface FigureCommandOptions {
+  figures?: boolean;
+  figureFormat?: string;
+  figureWidth?: string;
+  dpi?: string;
+  orientation?: string;
+  drawModel?: string;
+  smoothedBand?: boolean;
+}
+
+/** The checked figure options and the formats to write. */
+export interface FigureRequest {
+  readonly formats: readonly FigureFormat[];
+  readonly options: FigureOptions;
+}
+
+/**
+ * Check the figure options of a command line.
+ *
+ * @throws InputError (usage) naming the option and the bad value
+ */
+export function figureRequest(options: FigureCommandOptions): FigureRequest {
+  const formats = (options.figureFormat ?? 'png').split(',').map((format) => format.trim().toLowerCase()).filter((format) => format !== '');
+  for (const format of formats) {
+    if (format !== 'png' && format !== 'svg' && format !== 'pdf') throw usageError(`--figure-format: expected png, svg or pdf, got "${format}"`);
+  }
+  if (formats.length === 0) throw usageError('--figure-format: no format named');
+  const dpiText = options.dpi ?? '600';
+  const dpi = Number(dpiText);
+  if (!/^\s*\d+(\.\d+)?\s*$/.test(dpiText) || !Number.isFinite(dpi)) throw usageError(`--dpi: expected a number of dots per inch, got "${dpiText}"`);
+  const orientation = options.orientation ?? 'stratigraphic';
+  if (orientation !== 'stratigraphic' && orientation !== 'horizontal') throw usageError(`--orientation: expected stratigraphic or horizontal, got "${orientation}"`);
+  const figureOptions: FigureOptions = {
+    width: parseFigureWidth(options.figureWidth ?? 'single'),
+    dpi,
+    orientation,
+    model: options.drawModel,
+    smoothed: options.smoothedBand === true,
+  };
+  // Range checks (width, dpi) live with the figures; run them now so a bad option fails before any file is written.
+  for (const format of formats) resolveFigureOptions({ ...figureOptions, format: format as FigureFormat });
+  return { formats: [...new Set(formats)] as FigureFormat[], options: figureOptions };
+}
+
+/** The figures to write and their file names, known before anything is drawn. */
+export interface FigurePlanForFolder {
+  readonly jobs: readonly FigureJob[];
+  readonly request: FigureRequest;
+  readonly names: readonly string[];
+}
+
+/** Plan the figure files of a fit document's lineages. */
+export function planFigureFiles(lineages: readonly unknown[], options: FigureCommandOptions, kinds: readonly FigureKind[] = figureKinds): FigurePlanForFolder {
+  const request = figureRequest(options);
+  const jobs = figureJobs(lineages, kinds);
+  const names = jobs.flatMap((job) => request.formats.map((format) => `${job.stem}.${format}`));
+  return { jobs, request, names };
+}
+
+/**
+ * Draw the planned figures and write them into `folder` (already prepared
+ * with `prepareOutputFolder`, which claimed the names).
+ *
+ * @returns the file names written, in drawing order
+ */
+export function writeFigureFiles(lineages: readonly unknown[], plan: FigurePlanForFolder, folder: string): string[] {
+  const written: string[] = [];
+  for (const job of plan.jobs) {
+    for (const format of plan.request.formats) {
+      const options: FigureOptions = { ...plan.request.options, format };
+      const documents = job.lineages.map((index) => lineages[index]);
+      const figure =
+        job.kind === 'trajectory'
+          ? renderTrajectory(documents[0], options)
+          : job.kind === 'model-support'
+            ? renderModelSupport(documents[0], options)
+            : renderSectionsTogether(documents, options);
+      const name = `${job.stem}.${format}`;
+      writeAtomically(join(folder, name), figure.bytes);
+      written.push(name);
+    }
+  }
+  return written;
+}
+
+/** Options of `stratotrend redraw`. */
+export interface RedrawCommandOptions extends FigureCommandOptions {
+  out?: string;
+  only?: string;
+  lineage?: string[];
+  quiet?: boolean;
+}
+
+function readFitDocument(file: string): unknown[] {
+  let text: string;
+  try {
+    text = readFileSync(file, 'utf8');
+  } catch (error) {
+    const code = (error as NodeJS.ErrnoException).code;
+    throw new InputError(code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'is a folder, expected a fit.json file' : String((error as Error).message), { file });
+  }
+  let document: unknown;
+  try {
+    document = JSON.parse(text);
+  } catch (error) {
+    throw new InputError(`not JSON (${(error as Error).message}); expected the fit.json written by "fit --out"`, { file });
+  }
+  const lineages = (document as { lineages?: unknown })?.lineages;
+  if (!Array.isArray(lineages)) throw new InputError('has no "lineages" list; expected the fit.json written by "fit --out"', { file });
+  if (lineages.length === 0) throw new InputError('"lineages" is empty: nothing to draw', { file });
+  return lineages;
+}
+
+function parseKinds(text: string): FigureKind[] {
+  const kinds = text.split(',').map((kind) => kind.trim()).filter((kind) => kind !== '');
+  for (const kind of kinds) {
+    if (!(figureKinds as readonly string[]).includes(kind)) throw usageError(`--only: unknown figure kind "${kind}"; use ${figureKinds.join(', ')}`);
+  }
+  if (kinds.length === 0) throw usageError('--only: no figure kind named');
+  return kinds as FigureKind[];
+}
+
+function lineageMatches(document: unknown, wanted: readonly string[]): boolean {
+  if (wanted.length === 0) return true;
+  const doc = document as { section?: unknown; trait?: unknown };
+  const section = typeof doc.section === 'string' ? doc.section : '';
+  const trait = typeof doc.trait === 'string' ? doc.trait : '';
+  const names = [section, trait, [section, trait].filter((part) => part !== '').join(' / ')].map((name) => name.toLowerCase());
+  return wanted.some((name) => names.includes(name.trim().toLowerCase()));
+}
+
+/** `stratotrend redraw FIT_JSON`: draw the figures of a saved fit again, without refitting. */
+export function redrawCommand(file: string, options: RedrawCommandOptions): void {
+  const all = readFitDocument(file);
+  const wanted = options.lineage ?? [];
+  const lineages = all.filter((document) => lineageMatches(document, wanted));
+  if (lineages.length === 0) {
+    throw usageError(`--lineage: no lineage of ${file} is called ${wanted.map((name) => `"${name}"`).join(' or ')}`);
+  }
+  const plan = planFigureFiles(lineages, options, parseKinds(options.only ?? figureKinds.join(',')));
+  if (plan.jobs.length === 0) throw usageError('nothing to draw (a sections figure needs a trait measured in two or more sections)');
+  const out = options.out ?? dirname(file);
+  const folder = prepareOutputFolder(out, [file], plan.names);
+  const written = writeFigureFiles(lineages, plan, folder);
+  if (!options.quiet) process.stdout.write(written.map((name) => join(out, name)).join('\n') + '\n');
+}
