@@ -9,17 +9,22 @@ import { modelsCsv } from '../render/models-csv.js';
 import { lineageTable } from '../render/text-table.js';
 import { loadLineages, loadLineagesStreamed, readInput, terminalProgress, type InputText, type SampleFileOptions } from './input.js';
 import type { Lineage } from '../lineage.js';
-import type { FigureCommandOptions } from './render-command.js';
+import { fitLineages } from '../parallel/fit-lineages.js';
+import { fittingProgress } from './fit-progress.js';
 import { toolVersion } from './version.js';
 import { prepareOutputFolder, writeAtomically } from './write-output.js';
 
 /** Options of `stratotrend fit`. */
-export interface FitCommandOptions extends SampleFileOptions, FigureCommandOptions {
+export interface FitCommandOptions extends SampleFileOptions {
   json?: boolean;
   out?: string;
   models?: string;
   intervals?: boolean;
   quiet?: boolean;
+  /** Worker threads for many lineages (1 = fit in the main thread); default: all cores when the batch is large enough. */
+  threads?: number;
+  /** Print (and add to the JSON, and draw with --out) the cross-lineage summary instead of one table per lineage. */
+  summary?: boolean;
 }
 
 /** Resolve `--models`: a named set or a comma-separated list of model ids. */
@@ -59,13 +64,19 @@ export function runFit(file: string, options: FitCommandOptions): FitRun {
 export async function runFitStreamed(file: string, options: FitCommandOptions): Promise<FitRun> {
   const warnings = new WarningLog();
   const { input, lineages } = await loadLineagesStreamed(file, options, warnings, {}, terminalProgress(file));
-  return fitLoaded(input, lineages, options, warnings);
+  // Many lineages are fitted on worker threads (same numbers, input order; see src/parallel/fit-lineages.ts).
+  const { models } = resolveModels(options.models);
+  const fits = await fitLineages(lineages, models, { intervals: options.intervals !== false }, {
+    threads: options.threads,
+    onProgress: fittingProgress(lineages.length, options),
+  });
+  return fitLoaded(input, lineages, options, warnings, fits);
 }
 
 /** Fit read lineages and build the result document (no output). */
-export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lineage[], options: FitCommandOptions, warnings: WarningLog): FitRun {
+export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lineage[], options: FitCommandOptions, warnings: WarningLog, fitted?: LineageFit[]): FitRun {
   const { name, models } = resolveModels(options.models);
-  const fits = lineages.map((lineage) => fitLineage(lineage, models, { intervals: options.intervals !== false }));
+  const fits = fitted ?? lineages.map((lineage) => fitLineage(lineage, models, { intervals: options.intervals !== false }));
   for (const fit of fits) {
     for (const model of fit.models) {
       for (const flag of model.flags) warnings.add('at-bound', `${fit.lineage.section || 'lineage'}${fit.lineage.trait ? ' / ' + fit.lineage.trait : ''}, ${model.id}: ${flag}`);
@@ -92,21 +103,19 @@ export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lin
 /** `stratotrend fit FILE`: print the model table (or JSON) and write outputs with --out. */
 export async function fitCommand(file: string, options: FitCommandOptions): Promise<void> {
   const run = await runFitStreamed(file, options);
-  // Figures load their module (and, when drawing, the chart stack) only with --out.
-  const figures = options.out && options.figures !== false ? await import('./render-command.js') : null;
-  const lineageDocuments = (run.document as { lineages: unknown[] }).lineages;
-  const figurePlan = figures ? figures.planFigureFiles(lineageDocuments, options) : null;
+  const compilation = options.summary ? await import('./compilation-output.js') : null;
+  const summary = compilation ? compilation.addCompilation(run) : null;
   if (options.out) {
-    const folder = prepareOutputFolder(options.out, [file], ['models.csv', 'fit.json', ...(figurePlan?.names ?? [])]);
+    const folder = prepareOutputFolder(options.out, [file], ['models.csv', 'fit.json', ...(summary ? ['compilation.png'] : [])]);
     writeAtomically(join(folder, 'models.csv'), modelsCsv(run.fits));
     writeAtomically(join(folder, 'fit.json'), JSON.stringify(run.document, null, 2) + '\n');
-    if (figures && figurePlan) figures.writeFigureFiles(lineageDocuments, figurePlan, folder);
+    if (compilation && summary) await compilation.writeCompilationFigure(summary, folder);
   }
   if (options.json) {
     process.stdout.write(JSON.stringify(run.document, null, 2) + '\n');
   } else if (!options.quiet) {
-    process.stdout.write(run.fits.map(lineageTable).join('\n\n') + '\n');
-    if (options.out) process.stdout.write(`\nWrote models.csv and fit.json${figurePlan ? ` and ${figurePlan.names.length} figure files` : ''} to ${options.out}\n`);
+    process.stdout.write((compilation && summary ? compilation.compilationText(summary) : run.fits.map(lineageTable).join('\n\n')) + '\n');
+    if (options.out) process.stdout.write(`\nWrote models.csv${summary ? ', compilation.png' : ''} and fit.json to ${options.out}\n`);
   }
   for (const warning of run.warnings.list()) {
     if (warning.category === 'at-bound' || warning.category === 'not-compared') continue;

@@ -1,5 +1,4 @@
-import type { Command } from 'commander';
-import { addFigureOptions } from './render.js';
+import { InvalidArgumentError, type Command } from 'commander';
 import { addSampleOptions } from './shared.js';
 
 /**
@@ -7,23 +6,30 @@ import { addSampleOptions } from './shared.js';
  * the command runs, so defining commands stays cheap.
  */
 export function defineFitCommand(program: Command): void {
-  addFigureOptions(addSampleOptions(
+  addSampleOptions(
     program
       .command('fit')
       .description('fit every model to every lineage (section × trait) of a samples CSV and rank them by AICc')
       .argument('<file>', 'samples CSV (summary form: n, mean, sd or var per horizon; specimen form: value per specimen); "-" reads stdin'),
-  ))
+  )
     .option('--json', 'print one JSON document to stdout instead of the table')
     .option('--out <folder>', 'write models.csv and fit.json into this folder (created if needed)')
     .option('--models <set>', 'model set: "classic" (the five models) or a comma-separated list of model ids', 'classic')
     .option('--no-intervals', 'skip the profile-likelihood intervals (faster)')
     .option('--quiet', 'print nothing but errors and warnings')
-    .option('--no-figures', 'with --out, write no figure files (by default each lineage gets a trajectory and a model-support figure, each trait with several sections a sections figure)')
+    .option('--summary', 'print the cross-lineage summary (wins per model, Akaike weights, drift) instead of one table per lineage; adds "compilation" to the JSON and compilation.png with --out')
+    .option('--threads <count>', 'worker threads for many lineages (1 = no workers; default: every core when there are enough lineages to pay off)', parseThreads)
     .addHelpText('after', modelHelp())
     .action(async (file: string, options) => {
       const { fitCommand } = await import('../fit-command.js');
       await fitCommand(file, options);
     });
+}
+
+function parseThreads(value: string): number {
+  const count = Number(value);
+  if (!Number.isInteger(count) || count < 1 || count > 256) throw new InvalidArgumentError(`--threads must be a whole number from 1 to 256, got "${value}"`);
+  return count;
 }
 
 function modelHelp(): string {

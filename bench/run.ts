@@ -1,0 +1,369 @@
+/**
+ * `npm run bench`: measures the engine, the fitter, batch fitting, start-up,
+ * figure rendering and peak memory in one run, prints a table and writes
+ * bench/results.json. `--smoke` runs a seconds-long version of every
+ * measurement (what CI runs, so this script keeps working); `--out FILE`
+ * writes the JSON elsewhere. Nothing here asserts anything: the numbers and
+ * the targets of issue 7 are reported side by side.
+ *
+ * Heavy cases (long fits, batches) run in child processes (bench/case.ts) so
+ * that each one's peak memory is its own.
+ */
+import { execFileSync, spawnSync } from 'node:child_process';
+import { existsSync, writeFileSync } from 'node:fs';
+import { availableParallelism, cpus, loadavg, totalmem } from 'node:os';
+import { fileURLToPath } from 'node:url';
+import { denseLogLik } from '../src/engine/dense.js';
+import { LikelihoodEvaluator } from '../src/fit/evaluator.js';
+import { fitLineage } from '../src/fit/fit-lineage.js';
+import type { Lineage } from '../src/lineage.js';
+import type { EvolutionModel } from '../src/models/model.js';
+import { classicModels, findModel } from '../src/models/registry.js';
+import { lineageDocument } from '../src/render/fit-document.js';
+import { benchLineage } from './workload.js';
+
+const distRoot = new URL('../', import.meta.url); // dist/
+const projectRoot = new URL('../../', import.meta.url);
+const smoke = process.argv.includes('--smoke');
+const outIndex = process.argv.indexOf('--out');
+const outFile = outIndex >= 0 ? process.argv[outIndex + 1] : smoke ? null : fileURLToPath(new URL('bench/results.json', projectRoot));
+
+/** Median of a list. */
+function median(values: readonly number[]): number {
+  const sorted = [...values].sort((a, b) => a - b);
+  const middle = Math.floor(sorted.length / 2);
+  return sorted.length % 2 === 1 ? sorted[middle] : 0.5 * (sorted[middle - 1] + sorted[middle]);
+}
+
+/** Nanoseconds per call of `run`: repeated until `budgetMs` has passed, median of `rounds` rounds. */
+function nanosecondsPerCall(run: () => void, budgetMs: number, rounds = 5): number {
+  const perRound: number[] = [];
+  run();
+  for (let round = 0; round < rounds; round++) {
+    let calls = 0;
+    const started = performance.now();
+    let elapsed = 0;
+    do {
+      run();
+      calls += 1;
+      elapsed = performance.now() - started;
+    } while (elapsed < budgetMs / rounds);
+    perRound.push((elapsed * 1e6) / calls);
+  }
+  return median(perRound);
+}
+
+function generatingParameters(model: EvolutionModel, lineage: Lineage): Record<string, number> {
+  const span = lineage.time[lineage.time.length - 1];
+  if (model.id === 'ou') return { ancestral_mean: 5, optimum: 6, alpha: 10 / span, step_variance: 0.05 };
+  if (model.id === 'random-walk') return { ancestral_mean: 5, step_variance: 0.05 };
+  if (model.id === 'directional-walk') return { ancestral_mean: 5, step_variance: 0.05, drift: 0.1 };
+  if (model.id === 'stasis') return { stasis_mean: 5, stasis_variance: 0.02 };
+  return { stasis_mean: 5 };
+}
+
+interface LikelihoodRow {
+  model: string;
+  horizons: number;
+  denseMicroseconds: number | null;
+  filterMicroseconds: number;
+  ratio: number | null;
+  filterNanosecondsPerHorizon: number;
+  profileNanosecondsPerHorizon: number;
+  differenceFromDense: number | null;
+}
+
+/** Filter (full parameters, and profile with GLS) against the dense O(N^3) reference. */
+function measureLikelihood(): LikelihoodRow[] {
+  const sizes = smoke ? [50, 200] : [50, 200, 1000];
+  const rows: LikelihoodRow[] = [];
+  for (const id of ['random-walk', 'ou']) {
+    const model = findModel(id) as EvolutionModel;
+    for (const horizons of sizes) {
+      const lineage = benchLineage(horizons, 31 + horizons, 4);
+      const parameters = generatingParameters(model, lineage);
+      const evaluator = new LikelihoodEvaluator(model, lineage);
+      const process = model.processFrom(parameters, lineage);
+      const filterValue = evaluator.atParameters(parameters);
+      const dense = (): number => {
+        const { mean, covariance } = model.meanCovariance(lineage, parameters);
+        return denseLogLik(mean, covariance, lineage.samplingVariance, lineage.mean);
+      };
+      const denseValue = dense();
+      const denseNs = nanosecondsPerCall(() => void dense(), smoke ? 60 : horizons >= 1000 ? 4000 : 1000, 3);
+      const filterNs = nanosecondsPerCall(() => void evaluator.atParameters(parameters), smoke ? 40 : 500);
+      const profileNs = nanosecondsPerCall(() => void evaluator.profile(process), smoke ? 40 : 500);
+      rows.push({
+        model: id,
+        horizons,
+        denseMicroseconds: denseNs / 1000,
+        filterMicroseconds: filterNs / 1000,
+        ratio: denseNs / filterNs,
+        filterNanosecondsPerHorizon: filterNs / horizons,
+        profileNanosecondsPerHorizon: profileNs / horizons,
+        differenceFromDense: Math.abs(filterValue - denseValue),
+      });
+    }
+    // Long sequences: the filter only (the dense form would need N^2 doubles).
+    for (const horizons of smoke ? [] : [100_000]) {
+      const lineage = benchLineage(horizons, 31 + horizons, 4);
+      const parameters = generatingParameters(model, lineage);
+      const evaluator = new LikelihoodEvaluator(model, lineage);
+      const process = model.processFrom(parameters, lineage);
+      const filterNs = nanosecondsPerCall(() => void evaluator.atParameters(parameters), 1000);
+      const profileNs = nanosecondsPerCall(() => void evaluator.profile(process), 1000);
+      rows.push({ model: id, horizons, denseMicroseconds: null, filterMicroseconds: filterNs / 1000, ratio: null, filterNanosecondsPerHorizon: filterNs / horizons, profileNanosecondsPerHorizon: profileNs / horizons, differenceFromDense: null });
+    }
+  }
+  return rows;
+}
+
+/** Run one case of bench/case.ts in a child process and parse its JSON line. */
+function runCase(name: string, args: Record<string, unknown>): Record<string, unknown> {
+  const script = fileURLToPath(new URL('bench/case.js', distRoot));
+  const output = execFileSync(process.execPath, [script, name, JSON.stringify(args)], { encoding: 'utf8', maxBuffer: 1 << 24, stdio: ['ignore', 'pipe', 'inherit'] });
+  return JSON.parse(output.trim().split('\n').pop() as string);
+}
+
+interface FitRow {
+  horizons: number;
+  intervals: boolean;
+  milliseconds: number;
+  evaluations: number;
+  peakMemoryMiB: number;
+}
+
+function measureFits(): FitRow[] {
+  const plan: { horizons: number; intervals: boolean }[] = smoke
+    ? [{ horizons: 100, intervals: false }, { horizons: 1000, intervals: false }, { horizons: 100, intervals: true }]
+    : [
+        ...[100, 1000, 10_000, 20_000, 100_000].map((horizons) => ({ horizons, intervals: false })),
+        ...[100, 1000, 10_000, 20_000].map((horizons) => ({ horizons, intervals: true })),
+      ];
+  return plan.map((entry) => {
+    process.stderr.write(`  fit: ${entry.horizons} horizons${entry.intervals ? ' with intervals' : ''}...\n`);
+    return runCase('fit', entry) as unknown as FitRow;
+  });
+}
+
+interface BatchRow {
+  lineages: number;
+  horizons: number;
+  threads: number;
+  intervals: boolean;
+  seconds: number;
+  lineagesPerSecond: number;
+  digest: string;
+  peakMemoryMiB: number;
+}
+
+function measureBatch(): { rows: BatchRow[]; speedup: number; identical: boolean } {
+  const lineages = smoke ? 12 : 1000;
+  const threads = Math.max(2, availableParallelism());
+  const rows = [1, threads].map((count) => {
+    process.stderr.write(`  batch: ${lineages} lineages on ${count} thread(s)...\n`);
+    // Smoke mode skips the intervals so the batch takes a second, not a minute.
+    return runCase('batch', { lineages, horizons: 30, threads: count, intervals: !smoke }) as unknown as BatchRow;
+  });
+  return { rows, speedup: rows[1].lineagesPerSecond / rows[0].lineagesPerSecond, identical: rows[0].digest === rows[1].digest };
+}
+
+/** Wall time of a command, median of `repeats` runs, in ms. */
+function wallTime(args: readonly string[], repeats: number): number {
+  const times: number[] = [];
+  for (let k = 0; k < repeats; k++) {
+    const started = performance.now();
+    const result = spawnSync(process.execPath, args, { stdio: 'ignore' });
+    times.push(performance.now() - started);
+    if (result.status !== 0) throw new Error(`${args.join(' ')} exited with ${result.status}`);
+  }
+  return median(times);
+}
+
+function measureStartup(): { helpMilliseconds: number; nodeMilliseconds: number; ratio: number } {
+  const repeats = smoke ? 3 : 15;
+  const launcher = fileURLToPath(new URL('bin/stratotrend', projectRoot));
+  const nodeMilliseconds = wallTime(['-e', '0'], repeats);
+  const helpMilliseconds = wallTime([launcher, '--help'], repeats);
+  return { helpMilliseconds, nodeMilliseconds, ratio: helpMilliseconds / nodeMilliseconds };
+}
+
+interface FigureRow {
+  figure: string;
+  available: boolean;
+  firstMilliseconds: number | null;
+  milliseconds: number | null;
+  bytes: number | null;
+}
+
+/** Time each PNG figure the project can draw; "not available" when its module is not built. */
+async function measureFigures(): Promise<FigureRow[]> {
+  const fit = fitLineage(benchLineage(40, 77, 4), classicModels);
+  const document = lineageDocument(fit);
+  const candidates: { figure: string; module: string; exportName: string; input: () => Promise<unknown> }[] = [
+    { figure: 'trajectory', module: 'src/render/figures/index.js', exportName: 'renderTrajectory', input: async () => document },
+    { figure: 'model support', module: 'src/render/figures/index.js', exportName: 'renderModelSupport', input: async () => document },
+    {
+      figure: 'compilation summary',
+      module: 'src/render/figures/compilation.js',
+      exportName: 'renderCompilation',
+      input: async () => {
+        const { summariseCompilation } = await import('../src/compare/compilation.js');
+        const fits = Array.from({ length: 60 }, (_, k) => fitLineage(benchLineage(30, 900 + k, k), classicModels, { intervals: false }));
+        return summariseCompilation(fits);
+      },
+    },
+  ];
+  const rows: FigureRow[] = [];
+  for (const candidate of candidates) {
+    const path = new URL(candidate.module, distRoot);
+    let draw: ((input: unknown, options: Record<string, unknown>) => { bytes: Uint8Array }) | undefined;
+    if (existsSync(path)) {
+      try {
+        draw = (await import(path.href))[candidate.exportName];
+      } catch {
+        draw = undefined;
+      }
+    }
+    if (typeof draw !== 'function') {
+      rows.push({ figure: candidate.figure, available: false, firstMilliseconds: null, milliseconds: null, bytes: null });
+      continue;
+    }
+    const input = await candidate.input();
+    const render = draw;
+    let started = performance.now();
+    const first = render(input, { format: 'png' });
+    const firstMilliseconds = performance.now() - started;
+    const times: number[] = [];
+    for (let k = 0; k < (smoke ? 1 : 5); k++) {
+      started = performance.now();
+      render(input, { format: 'png' });
+      times.push(performance.now() - started);
+    }
+    rows.push({ figure: candidate.figure, available: true, firstMilliseconds, milliseconds: median(times), bytes: first.bytes.length });
+  }
+  return rows;
+}
+
+/** bench/calibration.ts (issue 9), when it exists: run in the full benchmark only. */
+async function measureCalibration(): Promise<unknown> {
+  if (smoke) return { skipped: 'smoke mode' };
+  const source = new URL('bench/calibration.ts', projectRoot);
+  const compiled = new URL('bench/calibration.js', distRoot);
+  if (!existsSync(source) || !existsSync(compiled)) return { skipped: 'bench/calibration.ts not present' };
+  process.stderr.write('  calibration (bench/calibration.ts)...\n');
+  const module = (await import(compiled.href)) as { runCalibration?: (options: Record<string, unknown>) => unknown };
+  if (typeof module.runCalibration !== 'function') return { skipped: 'bench/calibration.ts exports no runCalibration' };
+  const started = performance.now();
+  const result = await module.runCalibration({});
+  return { seconds: (performance.now() - started) / 1000, result: JSON.parse(JSON.stringify(result ?? null)) };
+}
+
+/** Growth of time with horizons, as the time ratio for 16× the horizons (from a power law through two sizes). */
+function growthFor16(rows: readonly FitRow[], intervals: boolean, from: number, to: number): number | null {
+  const a = rows.find((row) => row.intervals === intervals && row.horizons === from);
+  const b = rows.find((row) => row.intervals === intervals && row.horizons === to);
+  if (!a || !b) return null;
+  const exponent = Math.log(b.milliseconds / a.milliseconds) / Math.log(to / from);
+  return 16 ** exponent;
+}
+
+function format(value: number | null | undefined, digits = 3): string {
+  if (value === null || value === undefined || !Number.isFinite(value)) return '—';
+  if (Math.abs(value) >= 1000) return value.toFixed(0);
+  return value.toPrecision(digits);
+}
+
+function table(rows: readonly (readonly string[])[]): string {
+  const widths = rows[0].map((_, column) => Math.max(...rows.map((row) => row[column].length)));
+  return rows.map((row) => '  ' + row.map((cell, column) => (column === 0 ? cell.padEnd(widths[column]) : cell.padStart(widths[column]))).join('  ')).join('\n');
+}
+
+async function main(): Promise<void> {
+  const cores = availableParallelism();
+  const machine = {
+    cores,
+    cpu: cpus()[0]?.model ?? 'unknown',
+    memoryGiB: totalmem() / 2 ** 30,
+    node: process.version,
+    platform: `${process.platform} ${process.arch}`,
+    loadAverageAtStart: loadavg()[0],
+  };
+  process.stderr.write(`stratotrend benchmark (${smoke ? 'smoke' : 'full'}) on ${cores} cores...\n`);
+  process.stderr.write('  likelihood: filter against the dense reference...\n');
+  const likelihood = measureLikelihood();
+  const fits = measureFits();
+  const batch = measureBatch();
+  process.stderr.write('  start-up...\n');
+  const startup = measureStartup();
+  process.stderr.write('  figures...\n');
+  const figures = await measureFigures();
+  const calibration = await measureCalibration();
+
+  const at1000 = likelihood.filter((row) => row.horizons === (smoke ? 200 : 1000));
+  const worstRatio = Math.min(...at1000.map((row) => row.ratio ?? Number.POSITIVE_INFINITY));
+  const worstNs = Math.max(...likelihood.filter((row) => row.horizons >= (smoke ? 200 : 1000)).map((row) => row.profileNanosecondsPerHorizon));
+  const growth = smoke ? growthFor16(fits, false, 100, 1000) : growthFor16(fits, false, 1000, 100_000);
+  const growthIntervals = smoke ? null : growthFor16(fits, true, 1000, 20_000);
+  const fit20000 = fits.find((row) => row.horizons === 20_000 && row.intervals);
+  const fit20000Estimates = fits.find((row) => row.horizons === 20_000 && !row.intervals);
+  const targets = [
+    { name: `dense / filter time at N = ${smoke ? 200 : 1000} (slowest model)`, target: '>= 1000', measured: worstRatio, met: worstRatio >= 1000 },
+    { name: 'ns per horizon per likelihood evaluation (profile, N >= 1000, slowest model)', target: '<= 100', measured: worstNs, met: worstNs <= 100 },
+    { name: 'fit time ratio for 16x horizons, estimates only', target: '<= 20', measured: growth, met: growth !== null && growth <= 20 },
+    { name: 'fit time ratio for 16x horizons, with intervals', target: '<= 20', measured: growthIntervals, met: growthIntervals !== null && growthIntervals <= 20 },
+    { name: 'five models, 20000 horizons, with intervals (s)', target: '<= 2', measured: fit20000 ? fit20000.milliseconds / 1000 : null, met: fit20000 ? fit20000.milliseconds <= 2000 : false },
+    { name: 'five models, 20000 horizons, estimates only (s)', target: '<= 2', measured: fit20000Estimates ? fit20000Estimates.milliseconds / 1000 : null, met: fit20000Estimates ? fit20000Estimates.milliseconds <= 2000 : false },
+    { name: `batch speedup on ${batch.rows[1].threads} threads`, target: '>= 1.6', measured: batch.speedup, met: batch.speedup >= 1.6 },
+    { name: '`stratotrend --help` / `node -e 0`', target: '<= 2', measured: startup.ratio, met: startup.ratio <= 2 },
+  ];
+  const results = { mode: smoke ? 'smoke' : 'full', date: new Date().toISOString(), machine, likelihood, fits, batch, startup, figures, calibration, targets };
+  if (outFile) writeFileSync(outFile, JSON.stringify(results, null, 2) + '\n');
+
+  const lines: string[] = [];
+  lines.push(`stratotrend benchmark — ${results.mode} — ${machine.cores} cores (${machine.cpu}), node ${machine.node}, load average at start ${machine.loadAverageAtStart.toFixed(2)}`);
+  lines.push('', 'Likelihood: O(N) filter against the dense O(N^3) reference (invented lineages)');
+  lines.push(table([
+    ['model', 'N', 'dense µs', 'filter µs', 'ratio', 'ns/horizon', 'ns/horizon (GLS profile)', '|filter - dense| logL'],
+    ...likelihood.map((row) => [row.model, String(row.horizons), format(row.denseMicroseconds), format(row.filterMicroseconds), format(row.ratio), format(row.filterNanosecondsPerHorizon), format(row.profileNanosecondsPerHorizon), row.differenceFromDense === null ? '—' : row.differenceFromDense.toExponential(1)]),
+  ]));
+  lines.push('', 'Fitting all five classic models to one lineage (the fit command\'s work)');
+  lines.push(table([
+    ['N', 'intervals', 'seconds', 'evaluations', 'µs per evaluation', 'peak MiB'],
+    ...fits.map((row) => [String(row.horizons), row.intervals ? 'profile' : 'none', format(row.milliseconds / 1000), String(row.evaluations), format((row.milliseconds * 1000) / row.evaluations), format(row.peakMemoryMiB)]),
+  ]));
+  lines.push('', `Batch: ${batch.rows[0].lineages} lineages × ${batch.rows[0].horizons} horizons in one file, five models ${batch.rows[0].intervals ? 'with' : 'without'} intervals`);
+  lines.push(table([
+    ['threads', 'seconds', 'lineages/s', 'peak MiB', 'result digest'],
+    ...batch.rows.map((row) => [String(row.threads), format(row.seconds), format(row.lineagesPerSecond), format(row.peakMemoryMiB), row.digest]),
+  ]));
+  lines.push(`  speedup ${format(batch.speedup)}×; threaded results ${batch.identical ? 'identical to' : 'DIFFER FROM'} sequential`);
+  lines.push('', 'Start-up (median wall time)');
+  lines.push(table([
+    ['command', 'ms'],
+    ['node -e 0', format(startup.nodeMilliseconds)],
+    ['stratotrend --help', format(startup.helpMilliseconds)],
+  ]));
+  lines.push(`  ratio ${format(startup.ratio)}`);
+  lines.push('', 'Figures (PNG, default size and dpi)');
+  lines.push(table([
+    ['figure', 'first ms (loads the chart stack)', 'ms per PNG', 'bytes'],
+    ...figures.map((row) => (row.available ? [row.figure, format(row.firstMilliseconds), format(row.milliseconds), String(row.bytes)] : [row.figure, 'not available', 'not available', '—'])),
+  ]));
+  const memory = [...fits.filter((row) => row.horizons >= 20_000 || smoke), ...batch.rows];
+  lines.push('', `Peak memory of the largest runs: ${memory.map((row) => `${'lineages' in row ? `batch ${row.threads} thread(s)` : `fit N = ${row.horizons}${row.intervals ? ' + intervals' : ''}`} ${format(row.peakMemoryMiB)} MiB`).join('; ')}`);
+  if (!smoke) lines.push('', `Calibration: ${JSON.stringify(calibration).slice(0, 200)}`);
+  lines.push('', 'Targets (issue 7)');
+  lines.push(table([
+    ['measure', 'target', 'measured', 'met'],
+    ...targets.map((row) => [row.name, row.target, format(row.measured), row.measured === null ? '—' : row.met ? 'yes' : 'NO']),
+  ]));
+  if (smoke) lines.push('', '(smoke mode: small sizes, so the targets above are not meaningful)');
+  if (outFile) lines.push('', `Wrote ${outFile}`);
+  process.stdout.write(lines.join('\n') + '\n');
+}
+
+main().catch((error) => {
+  process.stderr.write(`${(error as Error).stack ?? String(error)}\n`);
+  process.exit(1);
+});

@@ -1,0 +1,99 @@
+import type { CompilationSummary, Distribution } from '../compare/compilation.js';
+import { alignColumns } from './text-table.js';
+import { formatNumber } from './units.js';
+
+/** The caution printed with every compilation summary. */
+export const compilationCaution =
+  'Counts of wins summarise model support, not mechanism: a good fit to a random walk says nothing by itself about drift versus selection, ' +
+  'and support depends on sampling, time-averaging and the age model of each sequence. Drift estimates are on the scale of each trait, ' +
+  'so pooling them across traits or units compares unlike things. Defer to the specialist’s judgement of the sequences.';
+
+function percent(share: number): string {
+  return `${(100 * share).toFixed(1)}%`;
+}
+
+function spread(value: Distribution, format: (x: number | null) => string = (x) => formatNumber(x, 3)): string {
+  return value.count === 0 ? '—' : `${format(value.median)} [${format(value.lowerQuartile)}, ${format(value.upperQuartile)}]`;
+}
+
+/**
+ * The terminal table of a compilation: one row per model with its wins, its
+ * share of the lineages, and the median [quartiles] and mean of its Akaike
+ * weight; then the drift estimates' distribution.
+ */
+export function compilationTable(summary: CompilationSummary): string {
+  const weight = (x: number | null): string => (x === null ? '—' : x.toFixed(2));
+  const lines: string[] = [];
+  lines.push(`Compilation of ${summary.lineages} lineage${summary.lineages === 1 ? '' : 's'} (${summary.compared} with models compared by AICc)`);
+  lines.push('');
+  lines.push(
+    ...alignColumns([
+      ['model', 'wins', 'share', 'weight median [quartiles]', 'mean weight', 'compared'],
+      ...summary.models.map((model) => [model.label, String(model.wins), percent(model.winShare), spread(model.weight, weight), weight(model.weight.mean), String(model.compared)]),
+    ]),
+  );
+  const drift = summary.drift;
+  if (drift && drift.estimate.count > 0) {
+    const unit = drift.timeUnits.length === 1 ? `trait units per ${drift.timeUnits[0]}` : `trait units per time unit (mixed units: ${drift.timeUnits.join(', ')})`;
+    lines.push('');
+    lines.push(`Drift of the ${drift.model} model (${unit}), over ${drift.estimate.count} lineages:`);
+    lines.push(
+      ...alignColumns([
+        ['lineages', 'median [quartiles]', 'mean', 'range'],
+        ['all fitted', spread(drift.estimate), formatNumber(drift.estimate.mean, 3), `${formatNumber(drift.estimate.minimum, 3)} to ${formatNumber(drift.estimate.maximum, 3)}`],
+        [
+          `where ${drift.model} wins (${drift.winnersEstimate.count})`,
+          spread(drift.winnersEstimate),
+          formatNumber(drift.winnersEstimate.mean, 3),
+          drift.winnersEstimate.count === 0 ? '—' : `${formatNumber(drift.winnersEstimate.minimum, 3)} to ${formatNumber(drift.winnersEstimate.maximum, 3)}`,
+        ],
+      ]),
+    );
+    lines.push(`  95% interval wholly above 0 in ${drift.positive} lineage${drift.positive === 1 ? '' : 's'}, wholly below 0 in ${drift.negative}.`);
+  }
+  lines.push('');
+  lines.push(compilationCaution);
+  return lines.join('\n');
+}
+
+/** The JSON form of a compilation summary (snake_case like fit.json). */
+export function compilationDocument(summary: CompilationSummary): Record<string, unknown> {
+  const distributionDocument = (value: Distribution) => ({
+    count: value.count,
+    mean: value.mean,
+    minimum: value.minimum,
+    lower_quartile: value.lowerQuartile,
+    median: value.median,
+    upper_quartile: value.upperQuartile,
+    maximum: value.maximum,
+  });
+  return {
+    lineages: summary.lineages,
+    compared: summary.compared,
+    models: summary.models.map((model) => ({
+      id: model.id,
+      label: model.label,
+      wins: model.wins,
+      win_share: model.winShare,
+      compared: model.compared,
+      weight: distributionDocument(model.weight),
+    })),
+    drift: summary.drift
+      ? {
+          model: summary.drift.model,
+          time_units: summary.drift.timeUnits,
+          estimate: distributionDocument(summary.drift.estimate),
+          where_best: distributionDocument(summary.drift.winnersEstimate),
+          interval_above_zero: summary.drift.positive,
+          interval_below_zero: summary.drift.negative,
+        }
+      : null,
+    per_lineage: summary.names.map((name, index) => ({
+      lineage: name,
+      best: summary.best[index],
+      weights: Object.fromEntries(summary.models.map((model) => [model.id, model.weights[index]])),
+      drift: summary.drift ? summary.drift.estimates[index] : null,
+    })),
+    caution: compilationCaution,
+  };
+}
