@@ -5,13 +5,14 @@ import { readTable } from '../data/read-table.js';
 import { WarningLog } from '../data/warnings.js';
 import { ageMonteCarlo, summariseDraws, type CandidateSpread, type RankedCandidate } from '../compare/age-uncertainty.js';
 import { compareTraits, lineagesByTrait, type ComparisonRun, type TraitComparison } from '../compare/compare-sections.js';
-import { candidateKey, comparisonCaution, comparisonCsv, comparisonDocument, comparisonTable, estimatesCsv } from '../compare/output.js';
+import { candidateKey, comparisonCaution, comparisonCsv, comparisonDocument, comparisonTable, estimatesCsv, spreadsDocument } from '../compare/output.js';
 import { mergeSections, toleratingCoeval } from '../compare/stack.js';
 import { fitLineage, type LineageFit } from '../fit/fit-lineage.js';
-import type { Lineage } from '../lineage.js';
+import { lineageName, type Lineage, type LineageOptions } from '../lineage.js';
 import { lineageDocument, type Provenance } from '../render/fit-document.js';
 import { modelsCsv } from '../render/models-csv.js';
-import { lineageTable } from '../render/text-table.js';
+import { alignColumns, lineageTable } from '../render/text-table.js';
+import { formatNumber } from '../render/units.js';
 import { resolveModels } from './fit-command.js';
 import { loadLineages, readInput, type InputText, type SampleFileOptions } from './input.js';
 import { toolVersion } from './version.js';
@@ -66,6 +67,103 @@ export function ageModelWords(model: AgeModel, unit: string): string {
   return lines.join('\n');
 }
 
+/**
+ * The `ageOf` hook for `loadLineages` when `--age-model` is given (and the
+ * age model itself), or nothing.
+ */
+export function ageModelHook(file: string, options: AgeModelOptions & SampleFileOptions): { ageModel: AgeModel | null; ageInput: InputText | null; extra: Pick<LineageOptions, 'ageOf'> } {
+  if (!options.ageModel) {
+    if (options.extrapolate) throw usageError('--extrapolate extends an age model: give one with --age-model FILE');
+    return { ageModel: null, ageInput: null, extra: {} };
+  }
+  const { input, model } = loadAgeModel(options.ageModel, options);
+  return { ageModel: model, ageInput: input, extra: { ageOf: ageFunction(model, { extrapolate: options.extrapolate, samplesFile: file === '-' ? 'stdin' : file }) } };
+}
+
+/** Extrapolated horizons of fitted lineages in words (empty when none). */
+export function extrapolatedLineageWords(lineages: readonly Lineage[]): string {
+  const parts = lineages
+    .map((lineage) => ({ name: lineageName(lineage), lines: lineage.lines.filter((_, i) => lineage.extrapolated[i]) }))
+    .filter((entry) => entry.lines.length > 0)
+    .map((entry) => `${entry.name}: ${entry.lines.length} (input line${entry.lines.length === 1 ? '' : 's'} ${entry.lines.join(', ')})`);
+  return parts.length === 0 ? '' : `EXTRAPOLATED AGES (beyond the outermost ties) — ${parts.join('; ')}`;
+}
+
+/**
+ * `fit --age-draws N`: redraw the tie-point ages N times, refit every lineage
+ * (without intervals), and summarise per lineage how the Akaike weights and
+ * point estimates move. Adds `age_model` and `age_uncertainty` to the fit
+ * document and returns the text block for the terminal (empty without draws).
+ */
+export function fitAgeDraws(file: string, options: AgeModelOptions & SampleFileOptions & { models?: string }, fits: readonly LineageFit[], document: Record<string, unknown>): string {
+  const { draws, seed } = parseDrawOptions(options);
+  const { ageModel, ageInput } = options.ageModel ? ageModelHook(file, options) : { ageModel: null, ageInput: null };
+  if (!ageModel || !ageInput) return '';
+  const provenance = document.provenance as { inputs?: { file: string; sha256: string }[]; options?: Record<string, unknown> } | undefined;
+  provenance?.inputs?.push({ file: ageInput.name, sha256: ageInput.sha256 });
+  if (provenance?.options) Object.assign(provenance.options, { age_model: options.ageModel, extrapolate: options.extrapolate === true, age_draws: draws, seed: draws > 0 ? seed : null });
+  document.age_model = ageModelDocument(ageModel);
+  const lines: string[] = [];
+  const extrapolated = extrapolatedLineageWords(fits.map((fit) => fit.lineage));
+  if (extrapolated) lines.push(extrapolated);
+  if (draws === 0) return lines.join('\n');
+  if (file === '-') throw usageError('--age-draws needs the samples in a file (stdin cannot be read again for each draw)');
+  const input = readInput(file);
+  const { models } = resolveModels(options.models);
+  const perDraw = ageMonteCarlo(ageModel, draws, seed, (drawn) =>
+    loadLineages(input, options, new WarningLog(), { ageOf: ageFunction(drawn, { extrapolate: options.extrapolate, samplesFile: input.name }) })
+      .map((lineage) => fitLineage(lineage, models, { intervals: false })));
+  const summaries = fits.map((fit) => {
+    const name = lineageName(fit.lineage);
+    const spreads = summariseDraws(perDraw.map((drawFits) => {
+      const match = drawFits.find((entry) => lineageName(entry.lineage) === name);
+      return (match?.models ?? []).map((model) => ({ key: model.id, weight: model.weight, best: match?.best === model.id, estimates: model.estimates }));
+    }));
+    return { fit, name, spreads };
+  });
+  document.age_uncertainty = {
+    draws,
+    seed,
+    method: 'tie ages redrawn from N(age, age_sd^2), kept in stratigraphic order; every lineage refitted without intervals',
+    lineages: summaries.map(({ fit, spreads }) => ({ section: fit.lineage.section, trait: fit.lineage.trait, models: spreadsDocument(spreads) })),
+  };
+  if (!hasAgeUncertainty(ageModel)) lines.push(`warning: every age_sd in ${ageModel.file} is 0, so every draw repeats the plain fit`);
+  for (const { fit, name, spreads } of summaries) {
+    lines.push(`Age uncertainty for "${name}": ${draws} redraws of the tie-point ages (seed ${seed}); Akaike weight median [2.5%, 97.5%] and how often best:`);
+    const rows = [['model', 'weight', 'best in']];
+    for (const spread of spreads) rows.push([spread.key, spreadWords(spread.weight, 3), `${(100 * spread.bestFraction).toFixed(1)}%`]);
+    lines.push(...alignColumns(rows));
+    const keyModels = [fit.best, 'directional-walk'].filter((id, index, list): id is string => id !== null && list.indexOf(id) === index);
+    for (const id of keyModels) {
+      const spread = spreads.find((entry) => entry.key === id);
+      if (!spread) continue;
+      const parts = Object.entries(spread.estimates).filter(([, value]) => value.median !== null).map(([parameter, value]) => `${parameter} ${spreadWords(value, 4)}`);
+      if (parts.length > 0) lines.push(`  ${id} estimates over the redraws (median [2.5%, 97.5%]; age uncertainty only, not a confidence interval): ${parts.join('; ')}`);
+    }
+  }
+  lines.push('Caution: these spreads show how the conclusion moves with the dating alone; they do not include sampling error, and the age model itself (choice of ties, constant rates between them) is assumed.');
+  return lines.join('\n');
+}
+
+function spreadWords(spread: { median: number | null; lower: number | null; upper: number | null }, digits: number): string {
+  if (spread.median === null) return '—';
+  const show = (value: number | null): string => (value === null ? '—' : digits === 3 ? value.toFixed(3) : formatNumber(value, digits));
+  return `${show(spread.median)} [${show(spread.lower)}, ${show(spread.upper)}]`;
+}
+
+/** The age model as JSON: ties and sedimentation rates per section. */
+export function ageModelDocument(model: AgeModel): Record<string, unknown> {
+  return {
+    file: model.file,
+    position_kind: model.positionKind,
+    sections: [...model.sections].map(([section, ties]) => ({
+      section,
+      ties: ties.map((tie) => ({ height: tie.height, age: tie.age, age_sd: tie.ageSd, line: tie.line })),
+      sedimentation_rates: sedimentationRates(ties).map((segment) => ({ from_height: segment.fromHeight, to_height: segment.toHeight, rate: segment.rate })),
+    })),
+  };
+}
+
 /** Everything `compare` computed, before printing. */
 export interface CompareRun {
   readonly run: ComparisonRun;
@@ -90,7 +188,8 @@ function candidates(comparison: TraitComparison): RankedCandidate[] {
 export function runCompare(file: string, options: CompareCommandOptions): CompareRun {
   const warnings = new WarningLog();
   const input = readInput(file);
-  const age = options.ageModel ? loadAgeModel(options.ageModel, options) : null;
+  const hook = ageModelHook(file, options);
+  const age = hook.ageModel && hook.ageInput ? { model: hook.ageModel, input: hook.ageInput } : null;
   const { draws, seed } = parseDrawOptions(options);
   const { name: modelSet, models } = resolveModels(options.models);
   const lineagesUnder = (model: AgeModel | null, log: WarningLog): Lineage[] =>
@@ -141,6 +240,7 @@ export function runCompare(file: string, options: CompareCommandOptions): Compar
     provenance,
     traits: run.comparisons.map((comparison) => comparisonDocument(comparison, spreads.get(comparison.trait) ?? null)),
     skipped: run.skipped,
+    age_model: age ? ageModelDocument(age.model) : null,
     composite: composites.map(lineageDocument),
     caution: comparisonCaution,
     warnings: warnings.list().map((warning) => ({ category: warning.category, message: warning.message, count: warning.count })),

@@ -11,11 +11,12 @@ import { loadLineages, loadLineagesStreamed, readInput, terminalProgress, type I
 import type { Lineage } from '../lineage.js';
 import { fitLineages } from '../parallel/fit-lineages.js';
 import { fittingProgress } from './fit-progress.js';
+import type { AgeModelOptions } from './compare-command.js';
 import { toolVersion } from './version.js';
 import { prepareOutputFolder, writeAtomically } from './write-output.js';
 
 /** Options of `stratotrend fit`. */
-export interface FitCommandOptions extends SampleFileOptions {
+export interface FitCommandOptions extends AgeModelOptions, SampleFileOptions {
   json?: boolean;
   out?: string;
   models?: string;
@@ -63,7 +64,9 @@ export function runFit(file: string, options: FitCommandOptions): FitRun {
  */
 export async function runFitStreamed(file: string, options: FitCommandOptions): Promise<FitRun> {
   const warnings = new WarningLog();
-  const { input, lineages } = await loadLineagesStreamed(file, options, warnings, {}, terminalProgress(file));
+  const { ageModelHook } = await import('./compare-command.js');
+  const { extra } = ageModelHook(file, options);
+  const { input, lineages } = await loadLineagesStreamed(file, options, warnings, extra, terminalProgress(file));
   // Many lineages are fitted on worker threads (same numbers, input order; see src/parallel/fit-lineages.ts).
   const { models } = resolveModels(options.models);
   const fits = await fitLineages(lineages, models, { intervals: options.intervals !== false }, {
@@ -103,6 +106,9 @@ export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lin
 /** `stratotrend fit FILE`: print the model table (or JSON) and write outputs with --out. */
 export async function fitCommand(file: string, options: FitCommandOptions): Promise<void> {
   const run = await runFitStreamed(file, options);
+  // Age model: extrapolated horizons in words, and the Monte Carlo over tie ages (--age-draws).
+  const { fitAgeDraws } = await import('./compare-command.js');
+  const ageText = fitAgeDraws(file, options, run.fits, run.document);
   const compilation = options.summary ? await import('./compilation-output.js') : null;
   const summary = compilation ? compilation.addCompilation(run) : null;
   if (options.out) {
@@ -117,6 +123,7 @@ export async function fitCommand(file: string, options: FitCommandOptions): Prom
     process.stdout.write((compilation && summary ? compilation.compilationText(summary) : run.fits.map(lineageTable).join('\n\n')) + '\n');
     if (options.out) process.stdout.write(`\nWrote models.csv${summary ? ', compilation.png' : ''} and fit.json to ${options.out}\n`);
   }
+  if (ageText && !options.json && !options.quiet) process.stdout.write('\n' + ageText + '\n');
   for (const warning of run.warnings.list()) {
     if (warning.category === 'at-bound' || warning.category === 'not-compared') continue;
     process.stderr.write(`warning (${warning.category}): ${warning.message}${warning.count > 1 ? ` (${warning.count} times)` : ''}\n`);

@@ -1,4 +1,5 @@
 import { InvalidArgumentError, type Command } from 'commander';
+import { addAgeModelOptions } from './compare.js';
 import { addSampleOptions } from './shared.js';
 
 /**
@@ -6,12 +7,12 @@ import { addSampleOptions } from './shared.js';
  * the command runs, so defining commands stays cheap.
  */
 export function defineFitCommand(program: Command): void {
-  addSampleOptions(
+  addAgeModelOptions(addSampleOptions(
     program
       .command('fit')
       .description('fit every model to every lineage (section × trait) of a samples CSV and rank them by AICc')
       .argument('<file>', 'samples CSV (summary form: n, mean, sd or var per horizon; specimen form: value per specimen); "-" reads stdin'),
-  )
+  ))
     .option('--json', 'print one JSON document to stdout instead of the table')
     .option('--out <folder>', 'write models.csv and fit.json into this folder (created if needed)')
     .option('--models <set>', 'model set: "classic" (the five models) or a comma-separated list of model ids', 'classic')
