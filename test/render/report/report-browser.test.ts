@@ -1,0 +1,208 @@
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { pathToFileURL } from 'node:url';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Browser, BrowserContext, Page } from 'playwright-core';
+import { runFit } from '../../../src/cli/fit-command.js';
+import { buildReport } from '../../../src/cli/report-command.js';
+import { asFitDocument } from '../../../src/render/report/document-view.js';
+import { chromiumArgs, findChromium, onCi } from './browser.js';
+
+// The report opened in a real browser (system Chromium driven by
+// playwright-core), from a file:// URL with every non-file request refused.
+// The expected numbers are those of fit.json, written exactly as
+// `fit --out` writes it, and read back with JSON.parse: the page must show
+// the same doubles (data-value attributes) and their rounded forms.
+
+const executable = findChromium();
+if (!executable) {
+  const message = 'report browser test: no Chromium found (install the Debian package "chromium": apt-get install -y chromium)';
+  if (onCi) throw new Error(`${message}; CI=true, so this is a failure, not a skip`);
+  console.warn(`\n!!!!!!!!\n!!! SKIPPED: ${message}\n!!!!!!!!\n`);
+}
+
+interface PageLog {
+  consoleErrors: string[];
+  failedRequests: string[];
+  refusedRequests: string[];
+}
+
+async function openOffline(context: BrowserContext, url: string): Promise<{ page: Page; log: PageLog }> {
+  const log: PageLog = { consoleErrors: [], failedRequests: [], refusedRequests: [] };
+  const page = await context.newPage();
+  page.on('console', (message) => {
+    if (message.type() === 'error') log.consoleErrors.push(message.text());
+  });
+  page.on('pageerror', (error) => log.consoleErrors.push(String(error)));
+  page.on('requestfailed', (request) => {
+    if (!log.refusedRequests.includes(request.url())) log.failedRequests.push(`${request.url()}: ${request.failure()?.errorText}`);
+  });
+  await page.route('**/*', async (route) => {
+    const requested = route.request().url();
+    if (requested.startsWith('file:')) return route.continue();
+    log.refusedRequests.push(requested);
+    return route.abort('internetdisconnected');
+  });
+  await page.goto(url, { waitUntil: 'load' });
+  return { page, log };
+}
+
+/** Pixel variance of a PNG, decoded by the browser itself on a blank page (no image library needed). */
+async function pixelStatistics(context: BrowserContext, png: Buffer): Promise<{ variance: number; inked: number }> {
+  const page = await context.newPage();
+  await page.setContent('<canvas id="c"></canvas>');
+  const result = await page.evaluate(async (base64) => {
+    const image = new Image();
+    image.src = `data:image/png;base64,${base64}`;
+    await image.decode();
+    const canvas = document.getElementById('c') as HTMLCanvasElement;
+    canvas.width = image.naturalWidth;
+    canvas.height = image.naturalHeight;
+    const context2d = canvas.getContext('2d')!;
+    context2d.drawImage(image, 0, 0);
+    const { data } = context2d.getImageData(0, 0, canvas.width, canvas.height);
+    let sum = 0;
+    let sumSquares = 0;
+    let inked = 0;
+    const pixels = data.length / 4;
+    for (let i = 0; i < data.length; i += 4) {
+      const grey = (data[i] + data[i + 1] + data[i + 2]) / 3;
+      sum += grey;
+      sumSquares += grey * grey;
+      if (grey < 200) inked += 1;
+    }
+    const mean = sum / pixels;
+    return { variance: sumSquares / pixels - mean * mean, inked: inked / pixels };
+  }, png.toString('base64'));
+  await page.close();
+  return result;
+}
+
+describe.skipIf(!executable)('HTML report in headless Chromium, offline', () => {
+  let folder: string;
+  let browser: Browser;
+  let context: BrowserContext;
+  let fitJson: { lineages: { models: Record<string, unknown>[] }[] };
+  let page: Page;
+  let log: PageLog;
+
+  beforeAll(async () => {
+    const { chromium } = await import('playwright-core');
+    folder = mkdtempSync(join(tmpdir(), 'stratotrend-report-'));
+    const run = runFit('sample-data/shell-length.csv', {});
+    const fitText = JSON.stringify(run.document, null, 2) + '\n';
+    writeFileSync(join(folder, 'fit.json'), fitText);
+    fitJson = JSON.parse(readFileSync(join(folder, 'fit.json'), 'utf8'));
+    const html = await buildReport(asFitDocument(run.document), {});
+    writeFileSync(join(folder, 'report.html'), html);
+    browser = await chromium.launch({ executablePath: executable!, args: chromiumArgs });
+    context = await browser.newContext({ viewport: { width: 1280, height: 900 }, offline: true });
+    ({ page, log } = await openOffline(context, pathToFileURL(join(folder, 'report.html')).href));
+  });
+
+  afterAll(async () => {
+    await browser?.close();
+    if (folder) rmSync(folder, { recursive: true, force: true });
+  });
+
+  it('loads with no console errors, no failed and no refused requests', () => {
+    expect(log.consoleErrors).toEqual([]);
+    expect(log.failedRequests).toEqual([]);
+    expect(log.refusedRequests).toEqual([]);
+  });
+
+  it('the offline guard does catch a network request (control: a page that asks for one)', async () => {
+    const probe = join(folder, 'probe.html');
+    writeFileSync(probe, '<!DOCTYPE html><title>probe</title><img src="http://203.0.113.7/figure.png">');
+    const opened = await openOffline(context, pathToFileURL(probe).href);
+    expect(opened.log.refusedRequests).toEqual(['http://203.0.113.7/figure.png']);
+    await opened.page.close();
+  });
+
+  it('every figure is loaded: images decoded with a size, inline SVG with content', async () => {
+    const figures = await page.evaluate(() => ({
+      images: [...document.images].map((image) => ({ complete: image.complete, width: image.naturalWidth, height: image.naturalHeight, source: image.src.slice(0, 30) })),
+      svgs: [...document.querySelectorAll('svg')].map((svg) => svg.childElementCount),
+    }));
+    expect(figures.images.length + figures.svgs.length).toBeGreaterThanOrEqual(fitJson.lineages.length);
+    for (const image of figures.images) {
+      expect(image.complete).toBe(true);
+      expect(image.width).toBeGreaterThan(0);
+      expect(image.height).toBeGreaterThan(0);
+      expect(image.source.startsWith('data:image/')).toBe(true);
+    }
+    for (const count of figures.svgs) expect(count).toBeGreaterThan(0);
+  });
+
+  it('the model-support tables show exactly the numbers of fit.json', async () => {
+    const tables = await page.evaluate(() =>
+      [...document.querySelectorAll('section.lineage')].map((section) =>
+        [...section.querySelectorAll('table.support tbody tr')].map((row) => ({
+          model: (row as HTMLElement).dataset.model,
+          cells: Object.fromEntries([...row.querySelectorAll('td[data-field]')].map((cell) => [(cell as HTMLElement).dataset.field, { value: (cell as HTMLElement).dataset.value, text: cell.textContent ?? '' }])),
+        })),
+      ),
+    );
+    expect(tables.length).toBe(fitJson.lineages.length);
+    tables.forEach((rows, index) => {
+      const models = fitJson.lineages[index].models;
+      expect(rows.map((row) => row.model)).toEqual(models.map((model) => model.id));
+      rows.forEach((row, j) => {
+        for (const [field, decimals] of [['k', 0], ['logLik', 3], ['aicc', 3], ['delta_aicc', 3], ['weight', 3]] as const) {
+          const expected = models[j][field] as number | null;
+          const shown = row.cells[field];
+          if (expected === null) {
+            expect(shown.value).toBe('');
+            continue;
+          }
+          // The exact double, then the rounded text to half a unit of its last decimal.
+          expect(Number(shown.value)).toBe(expected);
+          expect(Math.abs(Number.parseFloat(shown.text.replace('−', '-')) - expected)).toBeLessThanOrEqual(0.5 * 10 ** -decimals + 1e-12);
+        }
+      });
+    });
+  });
+
+  it('the estimates tables show the estimates of fit.json', async () => {
+    const shown = await page.evaluate(() =>
+      [...document.querySelectorAll('section.lineage')].map((section) =>
+        [...section.querySelectorAll('table.estimates tr[data-parameter]')].map((row) => ({
+          model: (row as HTMLElement).dataset.model!,
+          parameter: (row as HTMLElement).dataset.parameter!,
+          value: (row.querySelector('td[data-field="estimate"]') as HTMLElement).dataset.value!,
+        })),
+      ),
+    );
+    shown.forEach((rows, index) => {
+      const models = fitJson.lineages[index].models as { id: string; params: Record<string, { estimate: number | null }>; derived: Record<string, { estimate: number | null }> }[];
+      const expected = models.flatMap((model) => [...Object.entries(model.params), ...Object.entries(model.derived)].map(([parameter, estimate]) => ({ model: model.id, parameter, value: estimate.estimate === null ? '' : String(estimate.estimate) })));
+      expect(rows).toEqual(expected);
+    });
+  });
+
+  it('a screenshot is not blank (and a blank page is recognised as blank)', async () => {
+    const shot = await page.screenshot({ fullPage: false });
+    const statistics = await pixelStatistics(context, shot);
+    const blankPage = await context.newPage();
+    await blankPage.setContent('<body style="background:#fff"></body>');
+    const blank = await pixelStatistics(context, await blankPage.screenshot());
+    await blankPage.close();
+    expect(blank.variance).toBeLessThan(1);
+    expect(statistics.variance).toBeGreaterThan(100);
+    expect(statistics.inked).toBeGreaterThan(0.01);
+    // The figure itself is drawn: screenshot of the first figure, inked pixels present.
+    const figure = await pixelStatistics(context, await page.locator('figure img').first().screenshot());
+    expect(figure.variance).toBeGreaterThan(100);
+  });
+
+  it('prints: a PDF in print media with the methods and references', async () => {
+    await page.emulateMedia({ media: 'print' });
+    const pdf = await page.pdf({ format: 'A4', printBackground: true });
+    expect(pdf.subarray(0, 5).toString('latin1')).toBe('%PDF-');
+    expect(pdf.length).toBeGreaterThan(20_000);
+    const contentsShown = await page.evaluate(() => getComputedStyle(document.querySelector('nav.contents')!).display);
+    expect(contentsShown).toBe('none');
+    await page.emulateMedia({ media: 'screen' });
+  });
+});
