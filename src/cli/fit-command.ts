@@ -22,6 +22,8 @@ export interface FitCommandOptions extends AgeModelOptions, SampleFileOptions {
   models?: string;
   intervals?: boolean;
   quiet?: boolean;
+  /** Also write the HTML report to this file (`stratotrend report`). */
+  report?: string;
   /** Worker threads for many lineages (1 = fit in the main thread); default: all cores when the batch is large enough. */
   threads?: number;
   /** Print (and add to the JSON, and draw with --out) the cross-lineage summary instead of one table per lineage. */
@@ -124,6 +126,11 @@ export async function fitCommand(file: string, options: FitCommandOptions): Prom
     if (options.out) process.stdout.write(`\nWrote models.csv${summary ? ', compilation.png' : ''} and fit.json to ${options.out}\n`);
   }
   if (ageText && !options.json && !options.quiet) process.stdout.write('\n' + ageText + '\n');
+  if (options.report) {
+    const { writeReportForRun } = await import('./report-command.js');
+    await writeReportForRun(run, options.report, [file]);
+    if (!options.quiet && !options.json) process.stdout.write(`Wrote the report to ${options.report}\n`);
+  }
   for (const warning of run.warnings.list()) {
     if (warning.category === 'at-bound' || warning.category === 'not-compared') continue;
     process.stderr.write(`warning (${warning.category}): ${warning.message}${warning.count > 1 ? ` (${warning.count} times)` : ''}\n`);

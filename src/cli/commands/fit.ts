@@ -18,6 +18,7 @@ export function defineFitCommand(program: Command): void {
     .option('--models <set>', 'model set: "classic" (the five models) or a comma-separated list of model ids', 'classic')
     .option('--no-intervals', 'skip the profile-likelihood intervals (faster)')
     .option('--quiet', 'print nothing but errors and warnings')
+    .option('--report <file>', 'also write one self-contained HTML report (as "stratotrend report" does)')
     .option('--summary', 'print the cross-lineage summary (wins per model, Akaike weights, drift) instead of one table per lineage; adds "compilation" to the JSON and compilation.png with --out')
     .option('--threads <count>', 'worker threads for many lineages (1 = no workers; default: every core when there are enough lineages to pay off)', parseThreads)
     .addHelpText('after', modelHelp())
