@@ -19,11 +19,21 @@ export async function main(argv: readonly string[]): Promise<void> {
     process.exitCode = reportError(error, debug);
   });
   const program = buildProgram();
+  // Node exits with code 0 when nothing is left to wait for, even if a
+  // command's promise never settled: make that a reported internal error.
+  let settled = false;
+  process.once('beforeExit', () => {
+    if (!settled) {
+      process.stderr.write('stratotrend: internal error: the command stopped before it finished (run again with --debug for details)\n');
+      process.exitCode = 70;
+    }
+  });
   try {
     await program.parseAsync(argv as string[]);
   } catch (error) {
     process.exitCode = reportError(error, debug);
   }
+  settled = true;
 }
 
 /** Turn an error into one stderr line and an exit code (1 bad data, 2 bad usage, 70 internal). */
