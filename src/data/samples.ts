@@ -106,7 +106,7 @@ export interface ColumnPlan {
 export function planColumns(header: readonly string[], file: string, rawHeader: readonly string[] = header): ColumnPlan {
   const seen = new Set<string>();
   for (const name of header) {
-    if (seen.has(name) && name !== '') throw new InputError(`column "${name}" appears twice in the header; keep one`, { file, line: 1 });
+    if (seen.has(name) && name !== '') throw new InputError(`appears twice in the header, got "${name}" twice; keep one`, { file, line: 1, column: name });
     seen.add(name);
   }
   const has = (name: string): boolean => header.includes(name);

@@ -139,10 +139,12 @@ export async function streamSampleFile(
     }
   };
 
+  let finishParser: () => void = () => undefined;
   const startParser = (): void => {
     const active = parse(csvOptions(delimiter));
     parser = active;
     parserDone = new Promise<void>((resolveDone) => {
+      finishParser = resolveDone;
       active.on('data', onRecord);
       active.on('error', (error) => {
         problems.parse ??= parseErrorOf(error, file, lastGoodLine);
@@ -151,6 +153,17 @@ export async function streamSampleFile(
       });
       active.on('end', () => resolveDone());
     });
+  };
+  /** Stop parsing after a problem that outranks anything the parser could still find. */
+  const stopParsing = (): void => {
+    parsing = false;
+    if (parser !== null) {
+      const active = parser as Parser;
+      active.removeAllListeners('data');
+      active.on('error', () => undefined);
+      active.destroy();
+      finishParser();
+    }
   };
 
   const feed = async (text: string): Promise<void> => {
@@ -178,10 +191,12 @@ export async function streamSampleFile(
         const done = (): void => {
           active.off('drain', done);
           active.off('error', done);
+          active.off('close', done);
           resolveDrain();
         };
         active.on('drain', done);
         active.on('error', done);
+        active.on('close', done);
       });
     }
   };
@@ -205,7 +220,7 @@ export async function streamSampleFile(
         text = lossy.decode(buffer, { stream: true });
         const at = text.indexOf('\uFFFD');
         problems.utf8 = new InputError(notUtf8Message, { file, line: lineNumber + countNewlines(text, 0, at < 0 ? text.length : at) });
-        parsing = false;
+        stopParsing();
       }
     } else {
       text = lossy.decode(buffer, { stream: true });
@@ -221,7 +236,7 @@ export async function streamSampleFile(
         lineLength = 0;
       } else if (++lineLength > longestLine && !problems.long) {
         problems.long = new InputError(longLineMessage, { file, line: lineNumber });
-        parsing = false;
+        stopParsing();
       }
     }
     await feed(text);
@@ -251,6 +266,7 @@ export async function streamSampleFile(
   if (parser !== null) {
     const active = parser as Parser;
     if (parsing) active.end();
+    else stopParsing();
     await parserDone;
   }
   sampleMemory();

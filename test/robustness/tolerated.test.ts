@@ -1,0 +1,53 @@
+/**
+ * Tolerated variations of one clean file (test/fixtures/malformed/tolerated,
+ * written by make_corpus.py): UTF-8 BOM with CRLF, quoted fields, trailing
+ * blank lines, surrounding spaces and upper-case names, shuffled rows,
+ * semicolon and tab delimiters, a decimal comma with --decimal-comma, and
+ * extra columns the tool does not read. Each must give the same fit as
+ * clean.csv (common practice: a data reader's output must not depend on
+ * the file's dialect) through the real CLI.
+ */
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { corpus, runCli } from './cli.js';
+import { nonFiniteText } from './finite.js';
+
+type Doc = { lineages: Array<Record<string, unknown> & { data: Record<string, unknown> }>; warnings: unknown[] };
+
+/** The parts of a fit document that must not depend on the file's dialect (input line numbers may). */
+function comparable(stdout: string): unknown {
+  const document = JSON.parse(stdout) as Doc;
+  return {
+    lineages: document.lineages.map((lineage) => ({ ...lineage, data: { ...lineage.data, line: undefined } })),
+    warnings: document.warnings,
+  };
+}
+
+describe('tolerated dialects give the same fit as the clean file', () => {
+  const clean = runCli(['fit', 'clean.csv', '--json']);
+
+  it('the clean file fits', () => {
+    expect(clean.status).toBe(0);
+    expect(clean.stderr).toBe('');
+    expect(clean.stdout).not.toMatch(nonFiniteText);
+  });
+
+  it.each([
+    ['bom-crlf.csv', []],
+    ['quoted-fields.csv', []],
+    ['trailing-blank-lines.csv', []],
+    ['surrounding-spaces.csv', []],
+    ['shuffled-rows.csv', []],
+    ['semicolon.csv', []],
+    ['tab.csv', []],
+    ['decimal-comma.csv', ['--decimal-comma']],
+    ['decimal-comma.csv', ['--decimal-comma', '--delimiter', ';']],
+    ['tab.csv', ['--delimiter', 'tab']],
+    ['extra-columns.csv', []],
+  ])('%s %s', (file, args) => {
+    const run = runCli(['fit', join('tolerated', file), '--json', ...args], corpus);
+    expect(run.stderr).toBe('');
+    expect(run.status).toBe(0);
+    expect(comparable(run.stdout)).toEqual(comparable(clean.stdout));
+  });
+});
