@@ -12,6 +12,7 @@ import type { Lineage } from '../lineage.js';
 import { fitLineages } from '../parallel/fit-lineages.js';
 import { fittingProgress } from './fit-progress.js';
 import type { AgeModelOptions } from './compare-command.js';
+import { intervalOptions } from '../fit/intervals.js';
 import { toolVersion } from './version.js';
 import { prepareOutputFolder, writeAtomically } from './write-output.js';
 
@@ -20,7 +21,8 @@ export interface FitCommandOptions extends AgeModelOptions, SampleFileOptions {
   json?: boolean;
   out?: string;
   models?: string;
-  intervals?: boolean;
+  /** false for --no-intervals, a method name for --intervals METHOD. */
+  intervals?: boolean | string;
   quiet?: boolean;
   /** Also write the HTML report to this file (`stratotrend report`). */
   report?: string;
@@ -71,7 +73,7 @@ export async function runFitStreamed(file: string, options: FitCommandOptions): 
   const { input, lineages } = await loadLineagesStreamed(file, options, warnings, extra, terminalProgress(file));
   // Many lineages are fitted on worker threads (same numbers, input order; see src/parallel/fit-lineages.ts).
   const { models } = resolveModels(options.models);
-  const fits = await fitLineages(lineages, models, { intervals: options.intervals !== false }, {
+  const fits = await fitLineages(lineages, models, intervalOptions(options.intervals), {
     threads: options.threads,
     onProgress: fittingProgress(lineages.length, options),
   });
@@ -81,7 +83,7 @@ export async function runFitStreamed(file: string, options: FitCommandOptions): 
 /** Fit read lineages and build the result document (no output). */
 export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lineage[], options: FitCommandOptions, warnings: WarningLog, fitted?: LineageFit[]): FitRun {
   const { name, models } = resolveModels(options.models);
-  const fits = fitted ?? lineages.map((lineage) => fitLineage(lineage, models, { intervals: options.intervals !== false }));
+  const fits = fitted ?? lineages.map((lineage) => fitLineage(lineage, models, intervalOptions(options.intervals)));
   for (const fit of fits) {
     for (const model of fit.models) {
       for (const flag of model.flags) warnings.add('at-bound', `${fit.lineage.section || 'lineage'}${fit.lineage.trait ? ' / ' + fit.lineage.trait : ''}, ${model.id}: ${flag}`);
@@ -97,7 +99,7 @@ export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lin
       pool: options.pool === true,
       time_unit: options.timeUnit ?? 'Myr',
       models: name,
-      intervals: options.intervals === false ? 'none' : 'profile',
+      intervals: options.intervals === false ? 'none' : intervalOptions(options.intervals).intervalMethod,
       likelihood: 'exact (joint) with known sampling variances, Kalman filter',
       criterion: 'AICc',
     },

@@ -3,6 +3,8 @@ import { InputError } from '../data/errors.js';
 import { defineCompareCommand } from './commands/compare.js';
 import { defineFitCommand } from './commands/fit.js';
 import { definePowerCommand } from './commands/power.js';
+import { defineBootstrapCommand } from './commands/bootstrap.js';
+import { defineSimulateCommand } from './commands/simulate.js';
 import { defineRedrawCommand } from './commands/render.js';
 import { defineReportCommand } from './commands/report.js';
 import { toolVersion } from './version.js';
@@ -63,6 +65,8 @@ export function buildProgram(): Command {
   defineCompareCommand(program);
   defineReportCommand(program);
   definePowerCommand(program);
+  defineSimulateCommand(program);
+  defineBootstrapCommand(program);
   defineRedrawCommand(program);
   return program;
 }

@@ -1,3 +1,4 @@
+import { usageError } from '../data/errors.js';
 import { profileOut, type ProfileResult } from '../engine/gls.js';
 import { foldRow, type WhitenedSums } from '../engine/kalman-filter.js';
 import type { Lineage } from '../lineage.js';
@@ -284,4 +285,21 @@ export function intervalsByProfile(
 /** Does an interval contain a value? An open end (null) contains everything beyond it. */
 export function covers(ends: IntervalEnds, value: number): boolean {
   return (ends.lower === null || value >= ends.lower) && (ends.upper === null || value <= ends.upper);
+}
+
+/**
+ * Fit options from the value of the CLI's `--intervals` / `--no-intervals`
+ * (commander gives true when neither is given, false for --no-intervals, or
+ * the method's name).
+ *
+ * @throws InputError (usage) for an unknown method name
+ * @example
+ * intervalOptions('bootstrap'); // { intervals: true, intervalMethod: 'bootstrap' }
+ */
+export function intervalOptions(value: boolean | string | undefined): { intervals: boolean; intervalMethod: IntervalMethod } {
+  if (value === false) return { intervals: false, intervalMethod: defaultIntervalMethod };
+  if (value === true || value === undefined) return { intervals: true, intervalMethod: defaultIntervalMethod };
+  const method = parseIntervalMethod(value);
+  if (method === null) throw usageError(`--intervals must be one of ${intervalMethods.join(', ')}, got "${value}"`);
+  return { intervals: true, intervalMethod: method };
 }

@@ -44,7 +44,10 @@ export function lineageTable(fit: LineageFit): string {
     ]);
   }
   lines.push(...alignColumns(rows));
-  lines.push(`  Estimates with 95% profile-likelihood intervals (time in ${unit}):`);
+  const methods = [...new Set(fit.models.filter((model) => model.converged).map((model) => model.intervalMethod))];
+  const intervalWords: Record<string, string> = { profile: 'profile-likelihood (asymptotic)', adjusted: 'restricted (REML-type) profile-likelihood', bootstrap: 'bootstrap-calibrated profile-likelihood' };
+  const described = methods.map((method) => intervalWords[method] ?? method).join(' / ');
+  lines.push(methods.includes('none') && methods.length === 1 ? `  Estimates (time in ${unit}):` : `  Estimates with 95% ${described || 'profile-likelihood'} intervals (time in ${unit}):`);
   for (const model of fit.models) {
     if (!model.converged) {
       lines.push(`    ${model.label}: ${model.message}`);

@@ -1,0 +1,21 @@
+import type { Command } from 'commander';
+import { addSampleOptions } from './shared.js';
+
+/** Define `stratotrend bootstrap`; the action loads the simulation code only when run. */
+export function defineBootstrapCommand(program: Command): void {
+  addSampleOptions(
+    program
+      .command('bootstrap')
+      .description('parametric-bootstrap tests for every lineage: directional vs random walk (likelihood ratio, with its chi-square p-value beside) and random walk vs stasis (AICc difference)')
+      .argument('<file>', 'samples CSV (as for fit)'),
+  )
+    .option('--replicates <R>', 'replicates drawn from each fitted null model', '200')
+    .option('--seed <s>', 'seed (same seed, same results on any number of threads)', '1')
+    .option('--threads <k>', 'worker threads (default: every core)')
+    .option('--json', 'print one JSON document instead of the text')
+    .option('--quiet', 'no text and no progress bar')
+    .action(async (file: string, options) => {
+      const { bootstrapCommand } = await import('../bootstrap-command.js');
+      await bootstrapCommand(file, options);
+    });
+}
