@@ -40,7 +40,9 @@ export interface DriftSummary {
   /** Lineages whose 95% drift interval lies wholly above 0 / wholly below 0. */
   readonly positive: number;
   readonly negative: number;
-  /** The same, among the lineages where the directional walk wins. */
+  /** Lineages with both ends of a drift interval (0 when fitted without intervals). */
+  readonly withInterval: number;
+  /** The drift estimates among the lineages where the directional walk wins. */
   readonly winnersEstimate: Distribution;
 }
 
@@ -136,8 +138,13 @@ export function summariseCompilation(fits: readonly LineageFit[], driftModel = '
       const value = parameterOf(fit);
       return value !== null && value.upper !== null && value.upper < 0;
     }).length;
+    const withInterval = fits.filter((fit) => {
+      const value = parameterOf(fit);
+      return value !== null && value.lower !== null && value.upper !== null;
+    }).length;
     drift = {
       model: driftModel,
+      withInterval,
       timeUnits: [...new Set(fits.map((fit) => fit.lineage.timeUnit.label))],
       estimate: distribution(estimates),
       estimates,

@@ -49,7 +49,11 @@ export function compilationTable(summary: CompilationSummary): string {
         ],
       ]),
     );
-    lines.push(`  95% interval wholly above 0 in ${drift.positive} lineage${drift.positive === 1 ? '' : 's'}, wholly below 0 in ${drift.negative}.`);
+    lines.push(
+      drift.withInterval === 0
+        ? '  (no drift intervals: fitted without intervals)'
+        : `  95% interval wholly above 0 in ${drift.positive} lineage${drift.positive === 1 ? '' : 's'}, wholly below 0 in ${drift.negative} (of ${drift.withInterval} with an interval).`,
+    );
   }
   lines.push('');
   lines.push(compilationCaution);
@@ -86,6 +90,7 @@ export function compilationDocument(summary: CompilationSummary): Record<string,
           where_best: distributionDocument(summary.drift.winnersEstimate),
           interval_above_zero: summary.drift.positive,
           interval_below_zero: summary.drift.negative,
+          with_interval: summary.drift.withInterval,
         }
       : null,
     per_lineage: summary.names.map((name, index) => ({
