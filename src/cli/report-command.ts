@@ -15,6 +15,12 @@ export interface ReportCommandOptions extends FitCommandOptions {
   figureFormat?: string;
   /** Saved results of other analyses (compare --json, power --json) to show in the report. */
   attach?: string[];
+  /** Figure layout: "stratigraphic" (default) or "horizontal". */
+  orientation?: string;
+  /** Model whose expected trajectory is drawn (default: each lineage's best). */
+  drawModel?: string;
+  /** Also draw the smoothed lineage mean with its band. */
+  smoothedBand?: boolean;
 }
 
 /** Default name of the report file. */
@@ -67,26 +73,84 @@ export function readFitJson(file: string): { document: FitDocumentView; sha256: 
   }
 }
 
-/**
- * Draw the trajectory figure of every lineage for the page. Uses the figure
- * module (chart.js) when it can be loaded; otherwise a plain SVG sketch
- * drawn from the document, and says so.
- */
-export async function reportFigures(document: FitDocumentView, format: 'svg' | 'png'): Promise<{ figures: ReportFigure[]; note?: string }> {
-  const figures: ReportFigure[] = [];
-  document.lineages.forEach((lineage, index) => {
+/** Figure choices of the report, passed on to the figure module. */
+export interface ReportFigureChoices {
+  readonly format: 'svg' | 'png';
+  readonly orientation?: string;
+  readonly drawModel?: string;
+  readonly smoothedBand?: boolean;
+}
+
+function sketchFigures(document: FitDocumentView): ReportFigure[] {
+  return document.lineages.map((lineage, index) => {
     const sketch = sketchTrajectory(lineage);
-    figures.push({
+    return {
       lineage: index,
       kind: 'trajectory',
-      caption: `${lineageTitle(lineage)}: horizon means with 95% sampling intervals (±1.96 √eᵢ)${lineage.smoothed ? ` and the lineage mean smoothed under the best-supported model with its 95% band` : ''}; time runs up the page, oldest horizon at the bottom.`,
+      caption: `${lineageTitle(lineage)}: horizon means with 95% sampling intervals (±1.96 √eᵢ)${lineage.smoothed ? ' and the lineage mean smoothed under the best-supported model with its 95% band' : ''}; time runs up the page, oldest horizon at the bottom.`,
       mime: 'image/svg+xml',
       bytes: new TextEncoder().encode(sketch.svg),
       width: sketch.width,
       height: sketch.height,
-    });
+    };
   });
-  return { figures, note: format === 'png' ? 'Figures are plain SVG sketches (the chart module is not available in this build).' : undefined };
+}
+
+function modelWords(lineage: FitDocumentView['lineages'][number], requested: string | undefined): string {
+  const id = requested ?? lineage.best_model;
+  const model = lineage.models.find((entry) => entry.id === id);
+  if (!model) return 'no model';
+  return requested ? model.label : `the best-supported model, ${model.label},`;
+}
+
+/**
+ * Draw the figures of the page with the figure module (src/render/figures:
+ * chart.js on @napi-rs/canvas, loaded only now): per lineage its trajectory
+ * with the chosen model's expected trajectory and 95% envelope, and per
+ * trait with two or more sections the sections-together figure. If the
+ * chart stack cannot be loaded, plain SVG sketches drawn from the document
+ * stand in, and the page says so.
+ */
+export async function reportFigures(document: FitDocumentView, choices: ReportFigureChoices): Promise<{ figures: ReportFigure[]; note?: string }> {
+  let figuresModule: typeof import('../render/figures/index.js');
+  try {
+    figuresModule = await import('../render/figures/index.js');
+  } catch (error) {
+    return { figures: sketchFigures(document), note: `Figures are plain sketches: the chart module could not be loaded (${(error as Error).message}).` };
+  }
+  const { renderTrajectory, renderSectionsTogether, figureJobs } = figuresModule;
+  const options = {
+    format: choices.format,
+    width: 'double' as const,
+    dpi: 200,
+    orientation: choices.orientation === 'horizontal' ? ('horizontal' as const) : ('stratigraphic' as const),
+    model: choices.drawModel,
+    smoothed: choices.smoothedBand === true,
+  };
+  const direction = options.orientation === 'horizontal' ? 'time runs left to right' : 'time runs up the page, oldest horizon at the bottom';
+  const figures: ReportFigure[] = [];
+  try {
+    for (const job of figureJobs(document.lineages, ['trajectory', 'sections'])) {
+      const lineages = job.lineages.map((index) => document.lineages[index]);
+      const drawn = job.kind === 'trajectory' ? renderTrajectory(lineages[0], options) : renderSectionsTogether(lineages, options);
+      const caption = job.kind === 'trajectory'
+        ? `${lineageTitle(lineages[0])}: horizon means with 95% sampling intervals (±1.96 √eᵢ), the expected trajectory of ${modelWords(lineages[0], choices.drawModel)} with its 95% envelope${options.smoothed ? ', and the smoothed lineage mean with its 95% band' : ''}; ${direction}.`
+        : `${lineages[0].trait || 'trait'}: ${lineages.map((lineage) => lineage.section || 'lineage').join(', ')} on one time axis, each with the expected trajectory of its ${choices.drawModel ? 'chosen' : 'best-supported'} model; ${direction}.`;
+      figures.push({
+        lineage: job.kind === 'trajectory' ? job.lineages[0] : null,
+        kind: job.kind,
+        caption,
+        mime: drawn.mime,
+        bytes: drawn.bytes,
+        width: drawn.width,
+        height: drawn.height,
+      });
+    }
+  } catch (error) {
+    if ((error as { name?: string }).name === 'InputError') throw error;
+    return { figures: sketchFigures(document), note: `Figures are plain sketches: the chart module failed (${(error as Error).message}).` };
+  }
+  return { figures };
 }
 
 function parseFormat(value: string | undefined): 'svg' | 'png' {
@@ -102,8 +166,13 @@ function parseFormat(value: string | undefined): 'svg' | 'png' {
 export async function buildReport(document: FitDocumentView, options: ReportCommandOptions, extra: { source?: { file: string; sha256: string } } = {}): Promise<string> {
   const format = parseFormat(options.figureFormat);
   const attachments = readAttachments(options.attach ?? []);
-  const { figures, note } = await reportFigures(document, format);
-  const reportOptions: Record<string, unknown> = { figure_format: format };
+  const { figures, note } = await reportFigures(document, { format, orientation: options.orientation, drawModel: options.drawModel, smoothedBand: options.smoothedBand });
+  const reportOptions: Record<string, unknown> = {
+    figure_format: format,
+    orientation: options.orientation ?? 'stratigraphic',
+    draw_model: options.drawModel ?? 'best supported',
+    smoothed_band: options.smoothedBand === true,
+  };
   if (extra.source) reportOptions.source = `${extra.source.file} (saved fit document, SHA-256 ${extra.source.sha256}; not refitted)`;
   attachments.files.forEach((entry, index) => {
     reportOptions[`attached_${index + 1}`] = `${entry.file} (${entry.kind}, SHA-256 ${entry.sha256})`;
@@ -126,9 +195,10 @@ export async function buildReport(document: FitDocumentView, options: ReportComm
 }
 
 /** Write a report for a finished fit (used by `fit --report FILE`). */
-export async function writeReportForRun(run: FitRun, path: string, inputs: readonly string[], options: ReportCommandOptions = {}): Promise<void> {
+export async function writeReportForRun(run: FitRun, path: string, inputs: readonly string[], fitOptions: { orientation?: string; drawModel?: string; smoothedBand?: boolean } = {}): Promise<void> {
   refuseInputPath(path, inputs);
-  const html = await buildReport(asFitDocument(run.document), options);
+  // Only the layout choices carry over from fit; fit's --figure-format names files, the page takes SVG.
+  const html = await buildReport(asFitDocument(run.document), { orientation: fitOptions.orientation, drawModel: fitOptions.drawModel, smoothedBand: fitOptions.smoothedBand });
   writeAtomically(path, html);
 }
 

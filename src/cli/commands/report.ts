@@ -16,6 +16,9 @@ export function defineReportCommand(program: Command): void {
     .option('--models <set>', 'model set: "classic" (the five models) or a comma-separated list of model ids', 'classic')
     .option('--no-intervals', 'skip the confidence intervals (faster)')
     .option('--figure-format <format>', 'figures inside the page: svg (vector, prints sharply) or png', 'svg')
+    .option('--orientation <layout>', 'figures: stratigraphic (time up the page, oldest at the bottom) or horizontal', 'stratigraphic')
+    .option('--draw-model <id>', "model whose expected trajectory and 95% envelope are drawn (default: each lineage's best-supported model)")
+    .option('--smoothed-band', 'also draw the smoothed lineage mean with its 95% band')
     .option('--attach <json...>', 'also show saved results of other analyses: a section comparison (compare --json) or power results (power --json)')
     .option('--quiet', 'print nothing but errors and warnings')
     .addHelpText('after', `

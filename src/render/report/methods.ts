@@ -1,5 +1,5 @@
 import type { FitDocumentView, LineageView, ModelView } from './document-view.js';
-import { modelReferenceKeys, referenceCatalogue, uniqueKeys, type Reference } from './references.js';
+import { findReference, modelReferenceKeys, uniqueKeys, type Reference } from './references.js';
 
 /**
  * One sentence of the methods text. `text` may cite inline with markers
@@ -222,14 +222,14 @@ export function methodsText(document: FitDocumentView, analyses: AnalysesRun = {
   }
   const cited = uniqueKeys(sentences.flatMap(sentenceKeys));
   // The reference list is alphabetical, as journals print it.
-  const references = cited.map((key) => referenceCatalogue[key]).sort((left, right) => left.entry.localeCompare(right.entry, 'en'));
+  const references = cited.map((key) => findReference(key)).sort((left, right) => left.entry.localeCompare(right.entry, 'en'));
   return { sentences, references };
 }
 
 /** The methods text as plain paragraphs with author–year citations, ready to paste. */
 export function methodsPlainText(methods: MethodsText): string {
   return methodsParagraphs(methods)
-    .map((sentences) => sentences.map((sentence) => renderSentence(sentence, (text) => text, (keys) => keys.map((key) => referenceCatalogue[key].cite).join('; '))).join(' '))
+    .map((sentences) => sentences.map((sentence) => renderSentence(sentence, (text) => text, (keys) => keys.map((key) => findReference(key).cite).join('; '))).join(' '))
     .join('\n\n');
 }
 

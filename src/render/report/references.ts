@@ -5,6 +5,7 @@
  * are given from memory and should be checked against the journal before a
  * paper goes out (the report says so in its reference list).
  */
+import { findModel } from '../../models/registry.js';
 
 /** One entry of the reference list. */
 export interface Reference {
@@ -93,6 +94,11 @@ export const referenceCatalogue: Readonly<Record<string, Reference>> = {
     cite: 'Voje, Starrfelt & Liow 2018',
     entry: 'Voje, K. L., Starrfelt, J. & Liow, L. H. (2018). Model adequacy and microevolutionary explanations for stasis in the fossil record. American Naturalist 191:509–523.',
   },
+  huntEtAl2010: {
+    key: 'huntEtAl2010',
+    cite: 'Hunt et al. 2010',
+    entry: 'Hunt, G., Wicaksono, S. A., Brown, J. E. & Macleod, K. G. (2010). Climate-driven body-size trends in the ostracod fauna of the deep Indian Ocean. Palaeontology 53:1255–1268.',
+  },
   efronTibshirani1993: {
     key: 'efronTibshirani1993',
     cite: 'Efron & Tibshirani 1993',
@@ -102,8 +108,9 @@ export const referenceCatalogue: Readonly<Record<string, Reference>> = {
 
 /**
  * The sources of each model by id. strict-stasis and ou follow the model
- * files' own citations (Hunt, Bell & Travis 2008); the shift models of the
- * extended set follow their issue (Hunt 2008; Hunt, Hopkins & Lidgard 2015).
+ * files' own citations (Hunt, Bell & Travis 2008); the extended models follow
+ * theirs (punctuated: Hunt 2008; mode shifts: Hunt, Hopkins & Lidgard 2015;
+ * covariate tracking: Hunt et al. 2010).
  */
 const modelSources: Readonly<Record<string, readonly string[]>> = {
   'strict-stasis': ['huntBellTravis2008'],
@@ -114,19 +121,40 @@ const modelSources: Readonly<Record<string, readonly string[]>> = {
 };
 
 /**
- * The reference keys for a model id. Models added later are matched by the
- * words of their id (shift/punctuated → Hunt 2008, mode shifts → Hunt, Hopkins
- * & Lidgard 2015) and otherwise cite Hunt 2006, the source of the framework.
+ * The reference keys for a model id. Families of the extended set are
+ * matched by id; any other model cites the `citation` of its model file,
+ * under the key `model:<id>` (see {@link findReference}).
  *
  * @example
  * modelReferenceKeys('ou'); // ['huntBellTravis2008']
+ * modelReferenceKeys('stasis-then-random-walk'); // ['huntHopkinsLidgard2015']
  */
 export function modelReferenceKeys(id: string): readonly string[] {
   const known = modelSources[id];
   if (known) return known;
-  if (/mode-shift|mode_shift|shift-(stasis|random|directional)|(stasis|walk)-to-/.test(id)) return ['huntHopkinsLidgard2015'];
-  if (/shift|punctuat|jump/.test(id)) return ['hunt2008'];
-  return ['hunt2006'];
+  if (/^punctuated-/.test(id)) return ['hunt2008'];
+  if (/-then-/.test(id)) return ['huntHopkinsLidgard2015'];
+  if (/^covariate-/.test(id)) return ['huntEtAl2010'];
+  return findModel(id) ? [`model:${id}`] : ['hunt2006'];
+}
+
+/**
+ * A reference by key: from the catalogue, or for `model:<id>` built from the
+ * model file's citation ("Authors (year). Title. Journal vol:pages."), cited
+ * by first author and year.
+ *
+ * @throws TypeError for a key that is neither
+ */
+export function findReference(key: string): Reference {
+  const known = referenceCatalogue[key];
+  if (known) return known;
+  const model = key.startsWith('model:') ? findModel(key.slice('model:'.length)) : undefined;
+  if (!model) throw new TypeError(`no reference "${key}"`);
+  const entry = model.citation.replace(/^After\s+/, '');
+  const match = entry.match(/^([^,(]+)[^(]*\((\d{4})\)/);
+  const several = (entry.split('(')[0].match(/&|,.*,/) ?? null) !== null;
+  const cite = match ? `${match[1].trim()}${several ? ' et al.' : ''} ${match[2]}` : model.label;
+  return { key, cite, entry };
 }
 
 /** Citation keys in the order they first appear, without repeats. */

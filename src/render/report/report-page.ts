@@ -4,7 +4,7 @@ import { escapeHtml, exactValue, slug } from './html.js';
 import { figureHtml, lineageSection, type ReportFigure } from './lineage-section.js';
 import { methodsParagraphs, methodsPlainText, methodsText, renderSentence, type AnalysesRun, type MethodsText } from './methods.js';
 import { comparisonBlock, jsonBlock, powerBlock } from './optional-blocks.js';
-import { referenceCatalogue } from './references.js';
+import { findReference } from './references.js';
 import { reportStyles } from './styles.js';
 import { supportCautions } from './cautions.js';
 
@@ -44,7 +44,7 @@ export interface ReportInput {
 const topKeys = new Set(['provenance', 'model_set', 'lineages', 'warnings', 'comparison', 'comparisons', 'power', 'adequacy']);
 
 function citationLinks(keys: readonly string[]): string {
-  return keys.map((key) => `<a href="#ref-${key}" class="cite">${escapeHtml(referenceCatalogue[key].cite)}</a>`).join('; ');
+  return keys.map((key) => `<a href="#ref-${slug(key)}" class="cite">${escapeHtml(findReference(key).cite)}</a>`).join('; ');
 }
 
 /** The methods text as HTML paragraphs, citations linked to the reference list. */
@@ -144,7 +144,7 @@ export function reportPage(input: ReportInput): string {
 <p class="note">Written from the options of this run; adapt it to your paper. Check every reference against the journal before submitting.</p>
 <details class="copy"><summary>Plain text for copying</summary><div class="plain-text" data-block="methods-plain">${escapeHtml(methodsPlainText(methods))}</div></details>
 <h3>References</h3>
-<ol class="references">${methods.references.map((reference) => `<li id="ref-${reference.key}">${escapeHtml(reference.entry)}</li>`).join('')}</ol>`,
+<ol class="references">${methods.references.map((reference) => `<li id="ref-${slug(reference.key)}">${escapeHtml(reference.entry)}</li>`).join('')}</ol>`,
   });
   blocks.push({ id: 'provenance', title: 'Provenance', html: provenanceBlock(document, run) });
 

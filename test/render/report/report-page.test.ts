@@ -3,6 +3,7 @@ import { runFit } from '../../../src/cli/fit-command.js';
 import { asFitDocument } from '../../../src/render/report/document-view.js';
 import { escapeHtml } from '../../../src/render/report/html.js';
 import { reportPage } from '../../../src/render/report/report-page.js';
+import { sketchTrajectory } from '../../../src/render/report/sketch-figure.js';
 
 // Structure of the page without a browser: self-contained (no scripts, no
 // external references), optional blocks only when their results are given,
@@ -60,5 +61,12 @@ describe('report page', () => {
     const page = reportPage({ document: tricky, run });
     expect(page).not.toContain('<b>Draw');
     expect(page).toContain('&lt;b&gt;Draw &amp; &quot;Co&quot;&lt;/b&gt;');
+  });
+
+  it('the stand-in sketch draws one marker and one interval per horizon', () => {
+    const lineage = document.lineages[0];
+    const { svg } = sketchTrajectory(lineage);
+    expect(svg.startsWith('<svg xmlns="http://www.w3.org/2000/svg"')).toBe(true);
+    expect(svg.match(/<circle /g)?.length).toBe(lineage.horizons);
   });
 });
