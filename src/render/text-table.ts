@@ -45,7 +45,7 @@ export function lineageTable(fit: LineageFit): string {
   }
   lines.push(...alignColumns(rows));
   const methods = [...new Set(fit.models.filter((model) => model.converged).map((model) => model.intervalMethod))];
-  const intervalWords: Record<string, string> = { profile: 'profile-likelihood (asymptotic)', adjusted: 'restricted (REML-type) profile-likelihood', bootstrap: 'bootstrap-calibrated profile-likelihood' };
+  const intervalWords: Record<string, string> = { profile: 'profile-likelihood (asymptotic)', adjusted: 'restricted (REML-type) profile-likelihood', bootstrap: 'bootstrap-calibrated profile-likelihood', integrated: 'integrated-likelihood' };
   const described = methods.map((method) => intervalWords[method] ?? method).join(' / ');
   lines.push(methods.includes('none') && methods.length === 1 ? `  Estimates (time in ${unit}):` : `  Estimates with 95% ${described || 'profile-likelihood'} intervals (time in ${unit}):`);
   for (const model of fit.models) {
@@ -65,6 +65,12 @@ export function lineageTable(fit: LineageFit): string {
     for (const [name, estimate] of Object.entries(model.derived)) {
       parts.push(`${name} ${formatNumber(estimate.estimate)} ${unit} [${formatNumber(estimate.lower)}, ${estimate.upper === null ? 'open' : formatNumber(estimate.upper)}]`);
     }
+    // Shift models: where each new segment starts (0-based horizon index, with its age or time).
+    const shifts = model.extra?.shifts as readonly Record<string, number>[] | undefined;
+    shifts?.forEach((shift, k) => {
+      const at = shift.age !== undefined ? `age ${formatNumber(shift.age)}` : `time ${formatNumber(shift.time)} ${unit}`;
+      parts.push(`shift ${k + 1} at horizon ${shift.index} (${at})`);
+    });
     lines.push(`    ${model.label}: ${parts.join('; ')}`);
   }
   for (const model of fit.models) {

@@ -1,0 +1,84 @@
+import type { AdequacyResult } from '../fit/adequacy.js';
+import type { LineageFit } from '../fit/fit-lineage.js';
+import { neutralAssumptions, neutralDivergenceRange, type LineageRates } from '../fit/rates.js';
+import { alignColumns } from './text-table.js';
+import { formatNumber } from './units.js';
+
+/** Wrap words to lines of at most `width` characters, each line indented. */
+export function wrapWords(text: string, indent: string, width = 100): string[] {
+  const lines: string[] = [];
+  let line = '';
+  for (const word of text.split(/\s+/)) {
+    if (line !== '' && indent.length + line.length + 1 + word.length > width) {
+      lines.push(indent + line);
+      line = word;
+    } else line = line === '' ? word : `${line} ${word}`;
+  }
+  if (line !== '') lines.push(indent + line);
+  return lines;
+}
+
+/** Models whose model-based rates are printed: the best and any with Akaike weight >= 0.05. */
+function shownModels(fit: LineageFit): Set<string> {
+  return new Set(fit.models.filter((model) => model.id === fit.best || (model.weight ?? 0) >= 0.05).map((model) => model.id));
+}
+
+/**
+ * Rates of one lineage as text: whole sequence and each interval in darwins
+ * and haldanes, model-based rates with Lynch's neutral range and its
+ * assumptions, and the caution about interval dependence.
+ */
+export function ratesText(fit: LineageFit, rates: LineageRates): string {
+  const lines: string[] = [];
+  const unit = rates.timeUnit;
+  lines.push(`  Rates (ln trait: ${rates.scale}; generation time ${rates.generationTime === null ? 'not given' : `${formatNumber(rates.generationTime)} yr`}):`);
+  const rows: string[][] = [['interval', `length (${unit})`, 'ln change', 'darwins', 'haldanes']];
+  const row = (name: string, rate: LineageRates['whole']): string[] => [
+    name,
+    formatNumber(rate.interval),
+    formatNumber(rate.lnChange),
+    formatNumber(rate.darwins),
+    formatNumber(rate.haldanes),
+  ];
+  rows.push(row(`whole sequence (horizons 0-${rates.whole.to})`, rates.whole));
+  for (const rate of rates.intervals) rows.push(row(`horizons ${rate.from}-${rate.to}`, rate));
+  lines.push(...alignColumns(rows, '    '));
+  const shown = shownModels(fit);
+  const modelRates = rates.model.filter((rate) => shown.has(rate.model));
+  if (modelRates.length > 0) {
+    lines.push('  Model-based rates (best model and models with Akaike weight >= 0.05):');
+    const modelRows: string[][] = [['model', 'parameter', `estimate (per ${unit})`, 'per Myr', 'per generation', 'neutral range']];
+    for (const rate of modelRates) {
+      modelRows.push([
+        rate.model,
+        rate.parameter,
+        formatNumber(rate.estimate),
+        rate.perMillionYears === null ? '—' : `${formatNumber(rate.perMillionYears)}${rate.kind === 'drift' ? ' darwins' : ''}`,
+        rate.perGeneration === null ? '—' : `${formatNumber(rate.perGeneration)}${rate.kind === 'drift' ? ' haldanes' : ' (Delta)'}`,
+        rate.neutral === null ? '' : `${rate.neutral} ${neutralDivergenceRange.lower} to ${neutralDivergenceRange.upper}`,
+      ]);
+    }
+    lines.push(...alignColumns(modelRows, '    '));
+    if (modelRates.some((rate) => rate.neutral !== null)) {
+      lines.push('    Delta = step variance per generation / pooled within-horizon variance, against the neutral range. Assumptions:');
+      for (const assumption of neutralAssumptions) lines.push(...wrapWords(`- ${assumption}`, '      '));
+      lines.push(...wrapWords('A rate below the neutral range is consistent with stabilising selection or constraint, one above it with selection; neither is shown by the rate alone.', '    '));
+    }
+  }
+  for (const note of rates.notes) lines.push(...wrapWords(`Note: ${note}`, '    '));
+  lines.push(...wrapWords(`Caution: ${rates.caution}`, '    '));
+  return lines.join('\n');
+}
+
+/** Adequacy of the best model as text: one line per check with its p-value and verdict. */
+export function adequacyText(result: AdequacyResult): string {
+  const lines: string[] = [`  Adequacy of ${result.model} (parametric bootstrap, ${result.draws} draws, seed ${result.seed}; not adequate when p < ${result.level}):`];
+  const rows: string[][] = [['check', 'statistic', 'p-value', 'verdict']];
+  for (const check of result.checks) rows.push([check.label, formatNumber(check.statistic), check.pValue.toFixed(3), check.adequate ? 'adequate' : 'NOT adequate']);
+  lines.push(...alignColumns(rows, '    '));
+  if (result.failedDraws > 0) lines.push(`    ${result.failedDraws} simulated data sets could not be refitted and were left out.`);
+  lines.push(`    Overall: ${result.adequate ? 'adequate on every check' : 'not adequate on at least one check'}. With four checks at 0.05, one failure by chance is not rare (about 1 in 5).`);
+  lines.push(...wrapWords(result.note, '    '));
+  lines.push(...wrapWords('Voje, Starrfelt & Liow (2018), Am. Nat. 191:509-523. Adequacy, like model support, depends on sampling, time-averaging and the age model; weigh it with specialist judgement.', '    '));
+  return lines.join('\n');
+}
