@@ -268,7 +268,10 @@ export async function compareCommand(file: string, options: CompareCommandOption
   const written: string[] = [];
   if (options.out) {
     const inputs = [file, ...(options.ageModel ? [options.ageModel] : [])];
-    const folder = prepareOutputFolder(options.out, inputs);
+    const drawFigures = options.figure !== false && result.run.comparisons.length > 0;
+    const figureNames = drawFigures ? result.run.comparisons.map((comparison, index) => `sections-${index + 1}-${slug(comparison.trait)}.png`) : [];
+    const names = ['compare.csv', 'compare-estimates.csv', 'compare.json', ...(result.composites.length > 0 ? ['composite-models.csv'] : []), ...figureNames];
+    const folder = prepareOutputFolder(options.out, inputs, names);
     writeAtomically(join(folder, 'compare.csv'), comparisonCsv(result.run.comparisons));
     writeAtomically(join(folder, 'compare-estimates.csv'), estimatesCsv(result.run.comparisons));
     writeAtomically(join(folder, 'compare.json'), JSON.stringify(result.document, null, 2) + '\n');
@@ -277,14 +280,13 @@ export async function compareCommand(file: string, options: CompareCommandOption
       writeAtomically(join(folder, 'composite-models.csv'), modelsCsv(result.composites));
       written.push('composite-models.csv');
     }
-    if (options.figure !== false && result.run.comparisons.length > 0) {
+    if (drawFigures) {
       const { renderSectionsTogether } = await import('../render/figures/index.js');
       const { models } = resolveModels(options.models);
       for (const [index, comparison] of result.run.comparisons.entries()) {
         const figure = renderSectionsTogether(sectionDocuments(comparison, models), { model: comparison.best?.model });
-        const name = `sections-${index + 1}-${slug(comparison.trait)}.png`;
-        writeAtomically(join(folder, name), figure.bytes);
-        written.push(name);
+        writeAtomically(join(folder, figureNames[index]), figure.bytes);
+        written.push(figureNames[index]);
       }
     }
   }

@@ -55,6 +55,8 @@ export function lineageDocument(fit: LineageFit): Record<string, unknown> {
     section: lineage.section,
     trait: lineage.trait,
     horizons: lineage.mean.length,
+    // Horizons whose age the age model extrapolated beyond its ties (also per horizon in data.extrapolated).
+    extrapolated_horizons: lineage.extrapolated.filter(Boolean).length,
     time_unit: lineage.timeUnit.label,
     position_kind: lineage.positionKind,
     transform: lineage.logTransformed ? 'ln' : 'none',
