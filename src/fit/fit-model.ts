@@ -151,9 +151,10 @@ export function fitModel(model: EvolutionModel, lineage: Lineage, options: FitOp
       : locationInterval(evaluator, model, lineage, spec.name, estimate, maximum.process, details, cutoff, options.gridPoints);
     parameters[spec.name] = { estimate, atBound, ...interval };
   }
-  const intervalMethod = wantIntervals ? (options.intervalMethod ?? 'profile') : 'none';
+  let intervalMethod: string = wantIntervals ? (options.intervalMethod ?? 'profile') : 'none';
   if (intervalMethod !== 'profile' && intervalMethod !== 'none') {
-    replaceIntervals(intervalMethod, evaluator, estimates, parameters, processInterval, options);
+    // The method actually used: 'integrated' falls back to 'adjusted' for models with several process parameters.
+    intervalMethod = replaceIntervals(intervalMethod as Exclude<IntervalMethod, 'profile'>, evaluator, estimates, parameters, processInterval, options);
   }
   const derived: Record<string, ParameterEstimate> = {};
   if (parameters.alpha && parameters.alpha.estimate === 0) {

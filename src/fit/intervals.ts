@@ -17,21 +17,26 @@ import { maximiseProcess } from './search.js';
  *   column of the parameter held fixed; all columns for a process parameter);
  * - `bootstrap`: plain profile, with the cut-off taken from the 95% quantile
  *   of the likelihood-ratio statistic over a parametric bootstrap of the
- *   fitted model.
+ *   fitted model;
+ * - `integrated`: equal-tailed 95% intervals of the integrated likelihood
+ *   (location parameters under flat priors, the one variance under a
+ *   uniform prior on its square root; `intervals-integrated.ts`), for models
+ *   with at most one process parameter; other models fall back to `adjusted`.
  */
-export type IntervalMethod = 'profile' | 'adjusted' | 'bootstrap';
+export type IntervalMethod = 'profile' | 'adjusted' | 'bootstrap' | 'integrated';
 
 /** Every interval method, in the order tables list them. */
-export const intervalMethods: readonly IntervalMethod[] = ['profile', 'adjusted', 'bootstrap'];
+export const intervalMethods: readonly IntervalMethod[] = ['profile', 'adjusted', 'bootstrap', 'integrated'];
 
 /** The method `fit` uses when `--intervals` is not given (see the README for its measured coverage). */
-export const defaultIntervalMethod: IntervalMethod = 'adjusted';
+export const defaultIntervalMethod: IntervalMethod = 'integrated';
 
 /** Label of each method for tables and JSON. */
 export const intervalMethodLabels: Record<IntervalMethod, string> = {
   profile: 'profile likelihood (asymptotic chi-square cut-off)',
   adjusted: 'restricted (REML-type) adjusted profile likelihood',
   bootstrap: 'profile likelihood with a parametric-bootstrap cut-off',
+  integrated: 'integrated likelihood (flat priors on locations, uniform on the standard deviation)',
 };
 
 /** Parse a method name, or return null. */

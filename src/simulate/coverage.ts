@@ -1,6 +1,7 @@
 import { fitModel, processInterval } from '../fit/fit-model.js';
 import { LikelihoodEvaluator } from '../fit/evaluator.js';
 import { bootstrapCutoffs } from '../fit/intervals-bootstrap.js';
+import { integratedIntervals } from '../fit/intervals-integrated.js';
 import { covers, intervalsByProfile, type IntervalEnds, type IntervalMethod } from '../fit/intervals.js';
 import { chiSquare1At95 } from '../fit/model-choice.js';
 import { findModel } from '../models/registry.js';
@@ -68,7 +69,8 @@ export function coverageReplicate(task: CoverageTask): CoverageResult {
         ratioCutoff = (name) => cutoffs.cutoff[name];
       }
     }
-    const found = intervalsByProfile(evaluator, task.names, { adjusted: method === 'adjusted', ratioCutoff }, ends);
+    const found = (method === 'integrated' ? integratedIntervals(evaluator, task.names) : null) ??
+      intervalsByProfile(evaluator, task.names, { adjusted: method === 'adjusted' || method === 'integrated', ratioCutoff }, ends);
     intervals[method] = Object.fromEntries(
       task.names.map((name) => [name, { lower: found[name].lower, upper: found[name].upper, covered: covers(found[name], task.parameters[name]) }]),
     );

@@ -17,7 +17,7 @@ export function defineFitCommand(program: Command): void {
     .option('--out <folder>', 'write models.csv and fit.json into this folder (created if needed)')
     .option('--models <set>', 'model set: "classic" (the five models) or a comma-separated list of model ids', 'classic')
     .option('--no-intervals', 'skip the profile-likelihood intervals (faster)')
-    .option('--intervals <method>', 'how the 95% intervals are made: adjusted (default: restricted profile likelihood, best calibrated of the fast methods), profile (plain profile likelihood, asymptotic) or bootstrap (profile with a parametric-bootstrap cut-off, slower)')
+    .option('--intervals <method>', 'how the 95% intervals are made: integrated (default: integrated likelihood, best calibrated; ou and shift models use adjusted), adjusted (restricted profile likelihood), profile (plain profile likelihood, asymptotic) or bootstrap (profile with a parametric-bootstrap cut-off, slower)')
     .option('--quiet', 'print nothing but errors and warnings')
     .option('--report <file>', 'also write one self-contained HTML report (as "stratotrend report" does)')
     .option('--summary', 'print the cross-lineage summary (wins per model, Akaike weights, drift) instead of one table per lineage; adds "compilation" to the JSON and compilation.png with --out')
