@@ -1,3 +1,4 @@
+import { createHash } from 'node:crypto';
 import { createRequire } from 'node:module';
 import type { Chart, ChartConfiguration, Plugin } from 'chart.js';
 import type { ResolvedFigureOptions } from './figure-options.js';
@@ -173,7 +174,8 @@ export function drawFigure(plan: FigurePlan, options: ResolvedFigureOptions): Re
     const chart = new chartStack.Chart(surface.getContext('2d') as unknown as CanvasRenderingContext2D, configuration);
     const content = surface.getContent().toString('utf8');
     chart.destroy();
-    const svg = content.replace(/<svg([^>]*?)\swidth="[^"]*"\s+height="[^"]*"/, `<svg$1 width="${widthPoints}pt" height="${heightPoints}pt" viewBox="0 0 ${widthPoints} ${heightPoints}"`);
+    const resized = content.replace(/<svg([^>]*?)\swidth="[^"]*"\s+height="[^"]*"/, `<svg$1 width="${widthPoints}pt" height="${heightPoints}pt" viewBox="0 0 ${widthPoints} ${heightPoints}"`);
+    const svg = stableIds(resized);
     return { bytes: new TextEncoder().encode(svg), mime: 'image/svg+xml', width: widthPoints, height: heightPoints, widthCm, frame: requireFrame(store) };
   }
   const { canvas } = chartStack;
@@ -201,6 +203,23 @@ export function drawFigure(plan: FigurePlan, options: ResolvedFigureOptions): Re
   target = canvas.createCanvas(1, 1).getContext('2d');
   chart.destroy();
   return { bytes: new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength), mime: 'application/pdf', width: widthPoints, height: heightPoints, widthCm, frame: requireFrame(store) };
+}
+
+/**
+ * Skia numbers SVG clip paths from a process-wide counter, so the same
+ * figure drawn twice would differ. Ids are renamed in order of appearance
+ * with a prefix from the figure's own content: the file is deterministic,
+ * and several figures embedded in one HTML page never share an id.
+ */
+function stableIds(svg: string): string {
+  const ids: string[] = [];
+  for (const match of svg.matchAll(/\sid="([^"]+)"/g)) if (!ids.includes(match[1])) ids.push(match[1]);
+  if (ids.length === 0) return svg;
+  const escape = (id: string) => id.replace(/[.*+?^${}()|[\]\\]/g, '\\$&');
+  const pattern = new RegExp(`(id="|url\\(#|href="#)(${ids.map(escape).join('|')})(?=[")])`, 'g');
+  const numbered = (prefix: string) => svg.replace(pattern, (_match, lead: string, id: string) => `${lead}${prefix}-${ids.indexOf(id) + 1}`);
+  const prefix = `st${createHash('sha256').update(numbered('id')).digest('hex').slice(0, 8)}`;
+  return numbered(prefix);
 }
 
 function requireFrame(store: { frame: FigureFrame | null }): FigureFrame {

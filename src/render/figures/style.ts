@@ -74,16 +74,19 @@ export interface SeriesStyle {
 }
 
 /**
- * Series styles for sections drawn together, darkest first. After the sixth
- * the cycle repeats with open markers.
+ * Series styles for sections drawn together. The first four step up in
+ * relative luminance (about 0.05, 0.18, 0.27, 0.36 by the WCAG 2 formula),
+ * so they stay apart in grayscale and for red–green colour-blind readers;
+ * all six differ in marker shape and dash pattern. After the sixth the
+ * cycle repeats with open markers.
  */
 export const seriesStyles: readonly SeriesStyle[] = [
-  { color: '#1d4e89', marker: 'circle', filled: true, dash: [] },
-  { color: '#cc6a1f', marker: 'triangle', filled: true, dash: [4.5, 2] },
-  { color: '#2f8f7c', marker: 'square', filled: true, dash: [1.2, 1.6] },
-  { color: '#7a4b9a', marker: 'diamond', filled: true, dash: [5, 1.8, 1.2, 1.8] },
-  { color: '#a33a4a', marker: 'triangle-down', filled: true, dash: [2.5, 2.5] },
-  { color: '#6b7280', marker: 'hexagon', filled: true, dash: [7, 2] },
+  { color: '#1d3f7a', marker: 'circle', filled: true, dash: [] },
+  { color: '#c8502a', marker: 'triangle', filled: true, dash: [4.5, 2] },
+  { color: '#3a9e8c', marker: 'square', filled: true, dash: [1.2, 1.6] },
+  { color: '#c99a2e', marker: 'diamond', filled: true, dash: [5, 1.8, 1.2, 1.8] },
+  { color: '#7b4f9d', marker: 'triangle-down', filled: true, dash: [2.5, 2.5] },
+  { color: '#8a8f98', marker: 'hexagon', filled: true, dash: [7, 2] },
 ];
 
 /** The style of the i-th section (0-based). */
