@@ -2,6 +2,7 @@ import type { Lineage } from '../lineage.js';
 import { bindConfiguration, defaultMinimumSegment, type Configuration, type EvolutionModel } from '../models/model.js';
 import { LikelihoodEvaluator } from './evaluator.js';
 import type { FitOptions, ModelFit, ParameterEstimate } from './fit-model.js';
+import { nelderMead } from './optimise.js';
 import { maximiseProcess } from './search.js';
 
 /** Progress of a configuration search, for a progress bar. */
@@ -58,13 +59,14 @@ export function fitOverConfigurations(model: EvolutionModel, lineage: Lineage, o
   } else {
     scores = new Float64Array(configurations.length);
     const step = Math.max(1, Math.floor(configurations.length / 100));
+    let previous: number[] | null = null;
     configurations.forEach((configuration, c) => {
       if (model.blocks) {
         scores[c] = fitAtConfiguration(model, lineage, configuration, quick, fitPlain).logLik;
       } else {
-        const bound = bindConfiguration(model, configuration);
-        const evaluator = new LikelihoodEvaluator(bound, lineage);
-        scores[c] = maximiseProcess((process) => evaluator.profile(process), bound.process, lineage, { points: 8 }).logLik;
+        const screened = screenConfiguration(model, lineage, configuration, c % warmRestartEvery === 0 ? null : previous);
+        scores[c] = screened.logLik;
+        previous = Number.isFinite(screened.logLik) ? screened.process : null;
       }
       if (c % step === 0) report('screen', c + 1, configurations.length);
     });
@@ -91,6 +93,37 @@ export function fitOverConfigurations(model: EvolutionModel, lineage: Lineage, o
       shift_search: { configurations: configurations.length, searched_in_full: candidates.length, minimum_segment: minimumSegment },
     },
   };
+}
+
+/** A warm-started screen restarts with the coarse nested search every this many configurations. */
+export const warmRestartEvery = 32;
+
+/**
+ * Screen score of one configuration of a non-separable model: the coarse
+ * nested search (8 grid points per axis, Brent refinement) from scratch, or,
+ * given the maximum of the neighbouring configuration (shift optima move
+ * little between neighbouring positions), a Nelder–Mead search on the log
+ * process values started there. Each likelihood evaluation is one O(N)
+ * filter pass. Only a ranking: the best configurations are searched in full.
+ */
+export function screenConfiguration(
+  model: EvolutionModel,
+  lineage: Lineage,
+  configuration: Configuration,
+  start: readonly number[] | null,
+): { logLik: number; process: number[] } {
+  const bound = bindConfiguration(model, configuration);
+  const evaluator = new LikelihoodEvaluator(bound, lineage);
+  const profile = (process: number[]): number => evaluator.profile(process);
+  if (start === null || bound.process.length === 0) {
+    const found = maximiseProcess(profile, bound.process, lineage, { points: 8 });
+    return { logLik: found.logLik, process: found.process };
+  }
+  const floors = bound.process.map((axis, level) => axis.range(lineage, start.slice(0, level))[0]);
+  const toLog = start.map((value, level) => Math.log(Math.max(value, floors[level])));
+  const found = nelderMead((logs) => -profile(logs.map(Math.exp)), toLog, { step: toLog.map(() => 1), tolerance: 1e-6, maxEvaluations: 60 * bound.process.length, restarts: 0 });
+  const process = found.at.map(Math.exp);
+  return { logLik: -found.value, process };
 }
 
 /** JSON records of shifts: 0-based index of the first horizon of the new segment and its age (or time, and height/depth when read). */
