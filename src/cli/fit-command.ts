@@ -2,10 +2,12 @@ import { join } from 'node:path';
 import { usageError } from '../data/errors.js';
 import { WarningLog } from '../data/warnings.js';
 import { fitLineage, type LineageFit } from '../fit/fit-lineage.js';
-import type { EvolutionModel } from '../models/model.js';
+import type { FitOptions } from '../fit/fit-model.js';
+import { defaultMinimumSegment, type EvolutionModel } from '../models/model.js';
 import { findModel, modelSets } from '../models/registry.js';
 import { fitDocument, type Provenance } from '../render/fit-document.js';
 import { modelsCsv } from '../render/models-csv.js';
+import { adequacyText, ratesText } from '../render/extensions-text.js';
 import { lineageTable } from '../render/text-table.js';
 import { loadLineages, loadLineagesStreamed, readInput, terminalProgress, type InputText, type SampleFileOptions } from './input.js';
 import type { Lineage } from '../lineage.js';
@@ -13,11 +15,12 @@ import { fitLineages } from '../parallel/fit-lineages.js';
 import { fittingProgress } from './fit-progress.js';
 import type { AgeModelOptions } from './compare-command.js';
 import { intervalOptions } from '../fit/intervals.js';
+import { attachCovariates, extensionSettings, extrasDocument, lineageExtras, modelsForLineage, searchProgress, type ExtensionOptions, type LineageExtras } from './fit-extensions.js';
 import { toolVersion } from './version.js';
 import { prepareOutputFolder, writeAtomically } from './write-output.js';
 
 /** Options of `stratotrend fit`. */
-export interface FitCommandOptions extends AgeModelOptions, SampleFileOptions {
+export interface FitCommandOptions extends AgeModelOptions, SampleFileOptions, ExtensionOptions {
   json?: boolean;
   out?: string;
   models?: string;
@@ -52,13 +55,16 @@ export interface FitRun {
   readonly fits: LineageFit[];
   readonly document: Record<string, unknown>;
   readonly warnings: WarningLog;
+  /** Rates, adequacy and left-out models per lineage (shift/covariate options), in `fits` order. */
+  readonly extras?: readonly LineageExtras[];
 }
 
 /** Read the file, fit every lineage, and build the result document (no output). */
 export function runFit(file: string, options: FitCommandOptions): FitRun {
   const warnings = new WarningLog();
   const input = readInput(file);
-  const lineages = loadLineages(input, options, warnings);
+  const read = loadLineages(input, options, warnings);
+  const lineages = options.covariateFile ? attachCovariates(read, options.covariateFile) : read;
   return fitLoaded(input, lineages, options, warnings);
 }
 
@@ -70,10 +76,11 @@ export async function runFitStreamed(file: string, options: FitCommandOptions): 
   const warnings = new WarningLog();
   const { ageModelHook } = await import('./compare-command.js');
   const { extra } = ageModelHook(file, options);
-  const { input, lineages } = await loadLineagesStreamed(file, options, warnings, extra, terminalProgress(file));
+  const { input, lineages: read } = await loadLineagesStreamed(file, options, warnings, extra, terminalProgress(file));
+  const lineages = options.covariateFile ? attachCovariates(read, options.covariateFile) : read;
   // Many lineages are fitted on worker threads (same numbers, input order; see src/parallel/fit-lineages.ts).
   const { models } = resolveModels(options.models);
-  const fits = await fitLineages(lineages, models, intervalOptions(options.intervals), {
+  const fits = await fitLineages(lineages, models, fitOptionsOf(options, lineages.length), {
     threads: options.threads,
     onProgress: fittingProgress(lineages.length, options),
   });
@@ -81,9 +88,13 @@ export async function runFitStreamed(file: string, options: FitCommandOptions): 
 }
 
 /** Fit read lineages and build the result document (no output). */
-export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lineage[], options: FitCommandOptions, warnings: WarningLog, fitted?: LineageFit[]): FitRun {
+export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lineage[], options: FitCommandOptions, warnings: WarningLog, given?: LineageFit[]): FitRun {
   const { name, models } = resolveModels(options.models);
-  const fits = fitted ?? lineages.map((lineage) => fitLineage(lineage, models, intervalOptions(options.intervals)));
+  const settings = extensionSettings(options);
+  const fitted = given ?? lineages.map((lineage) => fitLineage(lineage, models, fitOptionsOf(options, lineages.length)));
+  // A named set (e.g. extended) leaves out models a lineage does not allow (no covariate): their rows are not fitted and carry no weight.
+  const kept = fitted.map((fit) => modelsForLineage(fit.lineage, models, name));
+  const fits = fitted.map((fit, j) => (kept[j].leftOut.length === 0 ? fit : { ...fit, models: fit.models.filter((model) => !kept[j].leftOut.includes(model.id)) }));
   for (const fit of fits) {
     for (const model of fit.models) {
       for (const flag of model.flags) warnings.add('at-bound', `${fit.lineage.section || 'lineage'}${fit.lineage.trait ? ' / ' + fit.lineage.trait : ''}, ${model.id}: ${flag}`);
@@ -102,9 +113,26 @@ export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lin
       intervals: options.intervals === false ? 'none' : intervalOptions(options.intervals).intervalMethod,
       likelihood: 'exact (joint) with known sampling variances, Kalman filter',
       criterion: 'AICc',
+      min_segment: settings.minimumSegment ?? defaultMinimumSegment,
+      generation_time_years: settings.generationTime,
+      ...(options.covariateFile ? { covariate_file: options.covariateFile } : {}),
+      ...(settings.adequacy ? { adequacy_draws: settings.adequacyDraws, adequacy_seed: settings.adequacySeed } : {}),
     },
   };
-  return { fits, document: fitDocument(fits, provenance, warnings.list(), name), warnings };
+  const extras = fits.map((fit, j) => lineageExtras(fit, settings, kept[j].leftOut));
+  const document = fitDocument(fits, provenance, warnings.list(), name);
+  (document as { lineages: Record<string, unknown>[] }).lineages.forEach((lineage, j) => Object.assign(lineage, extrasDocument(extras[j])));
+  return { fits, document, warnings, extras };
+}
+
+/** Fit options from the command's options: interval method, minimum segment, and a search progress bar for a single lineage (fitted in this thread). */
+function fitOptionsOf(options: FitCommandOptions, lineageCount: number): FitOptions {
+  const settings = extensionSettings(options);
+  return {
+    ...intervalOptions(options.intervals),
+    minimumSegment: settings.minimumSegment,
+    ...(lineageCount === 1 ? { onProgress: searchProgress() } : {}),
+  };
 }
 
 /** `stratotrend fit FILE`: print the model table (or JSON) and write outputs with --out. */
@@ -124,7 +152,8 @@ export async function fitCommand(file: string, options: FitCommandOptions): Prom
   if (options.json) {
     process.stdout.write(JSON.stringify(run.document, null, 2) + '\n');
   } else if (!options.quiet) {
-    process.stdout.write((compilation && summary ? compilation.compilationText(summary) : run.fits.map(lineageTable).join('\n\n')) + '\n');
+    const tables = run.fits.map((fit, j) => [lineageTable(fit), ...extrasText(fit, run.extras?.[j])].join('\n'));
+    process.stdout.write(modelSetLine(options.models) + (compilation && summary ? compilation.compilationText(summary) : tables.join('\n\n')) + '\n');
     if (options.out) process.stdout.write(`\nWrote models.csv${summary ? ', compilation.png' : ''} and fit.json to ${options.out}\n`);
   }
   if (ageText && !options.json && !options.quiet) process.stdout.write('\n' + ageText + '\n');
@@ -137,4 +166,24 @@ export async function fitCommand(file: string, options: FitCommandOptions): Prom
     if (warning.category === 'at-bound' || warning.category === 'not-compared') continue;
     process.stderr.write(`warning (${warning.category}): ${warning.message}${warning.count > 1 ? ` (${warning.count} times)` : ''}\n`);
   }
+}
+
+/** The line naming the model set above the tables. */
+function modelSetLine(request: string | undefined): string {
+  const { name, models } = resolveModels(request);
+  const words: Record<string, string> = {
+    classic: 'the five classic models',
+    extended: 'classic plus shift, mode-shift and covariate models the data allow',
+  };
+  return `Model set: ${name} (${words[name] ?? models.map((model) => model.id).join(', ')})\n`;
+}
+
+/** Rates and adequacy text of one lineage, when asked for. */
+function extrasText(fit: LineageFit, extras: LineageExtras | undefined): string[] {
+  if (!extras) return [];
+  const parts: string[] = [];
+  if (extras.leftOut.length > 0) parts.push(`  Left out (the data do not allow them): ${extras.leftOut.join(', ')}.`);
+  if (extras.rates) parts.push(ratesText(fit, extras.rates));
+  if (extras.adequacy) parts.push(adequacyText(extras.adequacy));
+  return parts;
 }

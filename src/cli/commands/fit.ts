@@ -15,7 +15,14 @@ export function defineFitCommand(program: Command): void {
   ))
     .option('--json', 'print one JSON document to stdout instead of the table')
     .option('--out <folder>', 'write models.csv and fit.json into this folder (created if needed)')
-    .option('--models <set>', 'model set: "classic" (the five models) or a comma-separated list of model ids', 'classic')
+    .option('--models <set>', 'classic|extended|id,id,...: "classic" (the five models), "extended" (classic plus the shift, mode-shift and covariate models the data allow) or a comma-separated list of model ids', 'classic')
+    .option('--min-segment <n>', 'fewest horizons in a segment of a shift model (default 5; at least 3 where a segment has its own variance)')
+    .option('--covariate-file <file>', 'covariate per horizon for the covariate models: CSV with section (optional), age or time, covariate; matched by section and age (or time)')
+    .option('--rates', 'print rates: darwins and haldanes per interval and over the whole sequence, model-based rates, with the caution on interval dependence')
+    .option('--generation-time <years>', 'generation time in years, for haldanes and per-generation rates (implies --rates)')
+    .option('--adequacy', 'check the adequacy of the best-supported model (one-step prediction errors, parametric bootstrap)')
+    .option('--adequacy-draws <n>', 'simulated data sets for --adequacy (default 199)')
+    .option('--adequacy-seed <n>', 'seed of the --adequacy simulation (default 1)')
     .option('--no-intervals', 'skip the profile-likelihood intervals (faster)')
     .option('--intervals <method>', 'how the 95% intervals are made: integrated (default: integrated likelihood, best calibrated; ou and shift models use adjusted), adjusted (restricted profile likelihood), profile (plain profile likelihood, asymptotic) or bootstrap (profile with a parametric-bootstrap cut-off, slower)')
     .option('--quiet', 'print nothing but errors and warnings')
@@ -44,6 +51,25 @@ Models (ids as in --models and the JSON):
   directional-walk  random walk with drift per time unit (K = 3)
   ou                Ornstein–Uhlenbeck approach from ancestral_mean to optimum at rate alpha (K = 4)
 
+Extended set (--models extended adds these; segments are numbered from the oldest; every shift
+position is found by exhaustive search over positions leaving each segment >= --min-segment
+horizons, and each position counts 1 in K):
+  punctuated-1, punctuated-2
+                    1 or 2 shifts split the sequence into stasis segments with their own means
+                    (segment_K_mean) and one shared stasis_variance (K = 4, 6)
+  punctuated-1-separate, punctuated-2-separate
+                    the same with a stasis variance per segment (segment_K_variance) (K = 5, 8)
+  FIRST-then-SECOND mode shift: one shift between two different modes from stasis, random-walk,
+                    directional-walk (all 6 ordered pairs, e.g. stasis-then-random-walk). A stasis
+                    segment has its own mean and variance; a walk after the shift continues from
+                    the latent lineage mean at the last horizon before it; a walk first starts at
+                    ancestral_mean (K = its parameters + 1: 4 to 6)
+  covariate-stasis  mean = covariate_intercept + covariate_slope x covariate, independent
+                    stasis_variance about it (K = 3); needs a covariate column or --covariate-file
+  covariate-walk    random walk whose steps add covariate_slope x the change in the covariate
+                    to random steps with step_variance (K = 3)
+
 Input columns (names case-insensitive): section, trait (optional); one of age (before present,
-older = larger), time (elapsed); n, mean, and sd or var (summary form) or value (specimen form).`;
+older = larger), time (elapsed); n, mean, and sd or var (summary form) or value (specimen form);
+covariate (optional, for the covariate models).`;
 }
