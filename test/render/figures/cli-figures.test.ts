@@ -1,0 +1,89 @@
+import { execFileSync } from 'node:child_process';
+import { mkdtempSync, readFileSync, readdirSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join, resolve } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { pngInfo } from '../../../src/render/figures/index.js';
+import { decodePng, isBlank } from './figure-probes.js';
+import { svgText } from './figure-probes.js';
+
+const root = resolve(import.meta.dirname, '../../..');
+const cli = join(root, 'bin', 'stratotrend');
+
+function run(args: string[], extra: string[] = []): string {
+  return execFileSync(process.execPath, [...extra, cli, ...args], { cwd: root, encoding: 'utf8' });
+}
+
+describe('figures from the command line', () => {
+  it('fit --out writes a trajectory and a model-support PNG per lineage and the sections figure; redraw redraws without refitting', async () => {
+    const out = mkdtempSync(join(tmpdir(), 'stratotrend-figures-'));
+    const printed = run(['fit', 'sample-data/shell-length.csv', '--out', out]);
+    expect(printed).toMatch(/and 5 figure files to/);
+    const files = readdirSync(out).sort();
+    expect(files).toEqual(
+      expect.arrayContaining([
+        'fit.json',
+        'models.csv',
+        'shell-length.sections.png',
+        'tolloway-bluff_shell-length.model-support.png',
+        'tolloway-bluff_shell-length.trajectory.png',
+        'varnek-draw_shell-length.model-support.png',
+        'varnek-draw_shell-length.trajectory.png',
+      ]),
+    );
+    for (const name of files.filter((file) => file.endsWith('.png'))) {
+      const bytes = new Uint8Array(readFileSync(join(out, name)));
+      const info = pngInfo(bytes);
+      expect(info.width, name).toBeGreaterThanOrEqual(1600);
+      expect(info.dpiX, name).toBeCloseTo(23622 * 0.0254, 6);
+      // Clearly non-blank: at least 2% of a coarse sample of pixels carries ink.
+      const pixels = await decodePng(bytes);
+      let inked = 0;
+      let total = 0;
+      for (let y = 0; y < pixels.height; y += 7) for (let x = 0; x < pixels.width; x += 7, total++) if (!isBlank(pixels.at(x, y))) inked++;
+      expect(inked / total, name).toBeGreaterThan(0.02);
+    }
+
+    const fitJson = readFileSync(join(out, 'fit.json'), 'utf8');
+    const redrawn = run(['redraw', join(out, 'fit.json'), '--figure-format', 'svg,pdf', '--orientation', 'horizontal', '--only', 'trajectory', '--lineage', 'Varnek Draw', '--draw-model', 'random-walk']);
+    expect(redrawn.trim().split('\n')).toEqual([join(out, 'varnek-draw_shell-length.trajectory.svg'), join(out, 'varnek-draw_shell-length.trajectory.pdf')]);
+    const { text } = svgText(readFileSync(join(out, 'varnek-draw_shell-length.trajectory.svg'), 'utf8'));
+    expect(text).toContain('Expected trajectory, unbiased random walk');
+    expect(readFileSync(join(out, 'varnek-draw_shell-length.trajectory.pdf')).subarray(0, 5).toString()).toBe('%PDF-');
+    // Redrawing does not touch the fit.
+    expect(readFileSync(join(out, 'fit.json'), 'utf8')).toBe(fitJson);
+  });
+
+  it('fit --out --no-figures writes no figures; bad figure options are usage errors (exit 2)', () => {
+    const out = mkdtempSync(join(tmpdir(), 'stratotrend-figures-'));
+    run(['fit', 'sample-data/shell-length.csv', '--out', out, '--no-figures', '--quiet', '--no-intervals']);
+    expect(readdirSync(out).filter((file) => /\.(png|svg|pdf)$/.test(file))).toEqual([]);
+    let status = 0;
+    let stderr = '';
+    try {
+      execFileSync(process.execPath, [cli, 'redraw', join(out, 'fit.json'), '--dpi', 'many'], { cwd: root, encoding: 'utf8', stdio: 'pipe' });
+    } catch (error) {
+      status = (error as { status: number }).status;
+      stderr = String((error as { stderr: string }).stderr);
+    }
+    expect(status).toBe(2);
+    expect(stderr).toMatch(/--dpi: expected a number/);
+  });
+
+  it('--help and a fit without --out never load the chart stack', () => {
+    const folder = mkdtempSync(join(tmpdir(), 'stratotrend-lazy-'));
+    const preload = join(folder, 'watch.cjs');
+    writeFileSync(
+      preload,
+      `process.on('exit', () => { const loaded = Object.keys(require.cache).filter((key) => /node_modules[\\\\/](chart\\.js|chartjs-node-canvas|canvas|@napi-rs)[\\\\/]/.test(key)); require('fs').writeFileSync(${JSON.stringify(join(folder, 'loaded.json'))}, JSON.stringify(loaded)); });\n`,
+    );
+    run(['--help'], ['--require', preload]);
+    expect(JSON.parse(readFileSync(join(folder, 'loaded.json'), 'utf8'))).toEqual([]);
+    run(['fit', 'sample-data/shell-length.csv', '--quiet', '--no-intervals'], ['--require', preload]);
+    expect(JSON.parse(readFileSync(join(folder, 'loaded.json'), 'utf8'))).toEqual([]);
+    // The watch itself works: drawing loads the stack (chartjs-node-canvas drops chart.js itself from the cache after loading it).
+    const out = join(folder, 'out');
+    run(['fit', 'sample-data/shell-length.csv', '--quiet', '--no-intervals', '--out', out], ['--require', preload]);
+    expect(JSON.parse(readFileSync(join(folder, 'loaded.json'), 'utf8')).some((key: string) => key.includes('chartjs-node-canvas'))).toBe(true);
+  });
+});
