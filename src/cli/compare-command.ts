@@ -80,6 +80,12 @@ export function ageModelHook(file: string, options: AgeModelOptions & SampleFile
   return { ageModel: model, ageInput: input, extra: { ageOf: ageFunction(model, { extrapolate: options.extrapolate, samplesFile: file === '-' ? 'stdin' : file }) } };
 }
 
+/** An age model only places heights and depths: say so when the samples already give ages or times. */
+export function warnUnusedAgeModel(lineages: readonly Lineage[], model: AgeModel, warnings: { add(category: 'input', message: string): void }): void {
+  const kind = lineages[0]?.positionKind;
+  if (kind === 'age' || kind === 'time') warnings.add('input', `the samples give "${kind}", so the age model ${model.file} is not used (it places heights and depths only)`);
+}
+
 /** Extrapolated horizons of fitted lineages in words (empty when none). */
 export function extrapolatedLineageWords(lineages: readonly Lineage[]): string {
   const parts = lineages
@@ -104,6 +110,11 @@ export function fitAgeDraws(file: string, options: AgeModelOptions & SampleFileO
   if (provenance?.options) Object.assign(provenance.options, { age_model: options.ageModel, extrapolate: options.extrapolate === true, age_draws: draws, seed: draws > 0 ? seed : null });
   document.age_model = ageModelDocument(ageModel);
   const lines: string[] = [];
+  const kind = fits[0]?.lineage.positionKind;
+  if (kind === 'age' || kind === 'time') {
+    lines.push(`warning: the samples give "${kind}", so the age model ${ageModel.file} is not used (it places heights and depths only)`);
+    return lines.join('\n');
+  }
   const extrapolated = extrapolatedLineageWords(fits.map((fit) => fit.lineage));
   if (extrapolated) lines.push(extrapolated);
   if (draws === 0) return lines.join('\n');
@@ -195,6 +206,7 @@ export function runCompare(file: string, options: CompareCommandOptions): Compar
   const lineagesUnder = (model: AgeModel | null, log: WarningLog): Lineage[] =>
     loadLineages(input, options, log, model ? { ageOf: ageFunction(model, { extrapolate: options.extrapolate, samplesFile: input.name }) } : {});
   const lineages = lineagesUnder(age?.model ?? null, warnings);
+  if (age) warnUnusedAgeModel(lineages, age.model, warnings);
   const run = compareTraits(lineages, models, { intervals: options.intervals !== false });
   for (const skipped of run.skipped) warnings.add('input', `trait "${skipped.trait}": ${skipped.reason}`);
   const composites: LineageFit[] = [];
