@@ -22,13 +22,29 @@ export class InputError extends Error {
     detail: string,
     where: { file?: string; line?: number; column?: string; kind?: InputErrorKind } = {},
   ) {
-    super(formatLocation(where) + detail);
+    super(oneLine(formatLocation(where) + detail));
     this.name = 'InputError';
     this.kind = where.kind ?? 'data';
     this.file = where.file;
     this.line = where.line;
     this.column = where.column;
   }
+}
+
+/**
+ * Make a message one line whatever the offending value holds: line breaks,
+ * tabs and other control characters are written as escapes (\n, \t, \u0000).
+ *
+ * @example
+ * oneLine('got "a\nb"'); // 'got "a\\nb"'
+ */
+export function oneLine(text: string): string {
+  return text.replace(/[\u0000-\u001f\u007f\u2028\u2029]/g, (character) => {
+    if (character === '\n') return '\\n';
+    if (character === '\r') return '\\r';
+    if (character === '\t') return '\\t';
+    return `\\u${character.charCodeAt(0).toString(16).padStart(4, '0')}`;
+  });
 }
 
 function formatLocation(where: { file?: string; line?: number; column?: string }): string {

@@ -31,6 +31,8 @@ export const longestLine = 1_000_000;
 export function csvOptions(delimiter: string): Record<string, unknown> {
   return {
     delimiter,
+    // Mixed line endings (a file edited on two systems) and old CR-only files.
+    record_delimiter: ['\r\n', '\n', '\r'],
     info: true,
     relax_column_count: true,
     skip_empty_lines: true,
@@ -69,11 +71,43 @@ export function decodeText(bytes: Uint8Array, file: string): string {
 /** The message for text that is not UTF-8. */
 export const notUtf8Message = 'is not UTF-8 text (an invalid byte sequence on this line, e.g. a Latin-1 accented letter); save the file as "CSV UTF-8"';
 
-/** 1-based line number of a character offset in text. */
+/** 1-based line number of a character offset in text (CRLF, LF and CR each end a line). */
 export function lineOfOffset(text: string, offset: number): number {
-  let line = 1;
-  for (let i = 0; i < offset; i++) if (text.charCodeAt(i) === 10) line += 1;
-  return line;
+  const counter = new LineCounter();
+  counter.add(text.slice(0, offset));
+  return counter.line;
+}
+
+/**
+ * Counts physical lines of text fed in pieces (CRLF, LF and a lone CR each
+ * end one line, as csv-parse counts them) and notes the first line longer
+ * than {@link longestLine}.
+ */
+export class LineCounter {
+  /** The line the next character is on (1-based). */
+  line = 1;
+  /** First line longer than {@link longestLine}, or null. */
+  firstLongLine: number | null = null;
+  private length = 0;
+  private afterReturn = false;
+
+  add(text: string): void {
+    for (let i = 0; i < text.length; i++) {
+      const code = text.charCodeAt(i);
+      if (code === 10) {
+        if (!this.afterReturn) this.line += 1;
+        this.afterReturn = false;
+        this.length = 0;
+      } else if (code === 13) {
+        this.line += 1;
+        this.afterReturn = true;
+        this.length = 0;
+      } else {
+        this.afterReturn = false;
+        if (++this.length > longestLine && this.firstLongLine === null) this.firstLongLine = this.line;
+      }
+    }
+  }
 }
 
 /**
@@ -155,15 +189,9 @@ export function readTable(text: string, file: string, options: ReadTableOptions 
   if (text.includes('\u0000')) throw new InputError(binaryMessage, { file });
   const body = text.replace(/^\uFEFF/, '');
   if (body.trim() === '') throw new InputError(emptyMessage, { file });
-  let lineStart = 0;
-  let lineNumber = 1;
-  while (lineStart < body.length) {
-    let lineEnd = body.indexOf('\n', lineStart);
-    if (lineEnd < 0) lineEnd = body.length;
-    if (lineEnd - lineStart > longestLine) throw new InputError(longLineMessage, { file, line: lineNumber });
-    lineStart = lineEnd + 1;
-    lineNumber += 1;
-  }
+  const counter = new LineCounter();
+  counter.add(body);
+  if (counter.firstLongLine !== null) throw new InputError(longLineMessage, { file, line: counter.firstLongLine });
   const detected = options.delimiter === undefined;
   const delimiter = options.delimiter ?? detectDelimiter(body, file);
   let lastGoodLine = 0;
@@ -207,7 +235,7 @@ export const headerOnlyMessage = 'has a header but no data rows';
  * @throws InputError when the header is ambiguous.
  */
 export function detectDelimiter(text: string, file?: string): string {
-  const firstLine = (text.replace(/^\uFEFF/, '').split(/\r?\n/).find((line) => line.trim() !== '') ?? '').replace(/"[^"]*"/g, '');
+  const firstLine = (text.replace(/^\uFEFF/, '').split(/\r\n|\n|\r/).find((line) => line.trim() !== '') ?? '').replace(/"[^"]*"/g, '');
   const candidates = [',', ';', '\t'];
   let best = ',';
   let bestCount = 0;

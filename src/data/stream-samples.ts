@@ -9,7 +9,7 @@ import {
   detectDelimiter,
   emptyMessage,
   headerOnlyMessage,
-  longestLine,
+  LineCounter,
   longLineMessage,
   notUtf8Message,
   parseErrorOf,
@@ -86,8 +86,7 @@ export async function streamSampleFile(
   let bytes = 0;
   let first = true;
   let utf8Valid = true;
-  let lineNumber = 1;
-  let lineLength = 0;
+  const lines = new LineCounter();
   let sawText = false;
   let lastProgress = 0;
   let peakResident = 0;
@@ -219,7 +218,10 @@ export async function streamSampleFile(
         utf8Valid = false;
         text = lossy.decode(buffer, { stream: true });
         const at = text.indexOf('\uFFFD');
-        problems.utf8 = new InputError(notUtf8Message, { file, line: lineNumber + countNewlines(text, 0, at < 0 ? text.length : at) });
+        const before = new LineCounter();
+        before.line = lines.line;
+        before.add(text.slice(0, at < 0 ? text.length : at));
+        problems.utf8 = new InputError(notUtf8Message, { file, line: before.line });
         stopParsing();
       }
     } else {
@@ -230,14 +232,10 @@ export async function streamSampleFile(
       first = false;
     }
     if (!sawText && /\S/.test(text)) sawText = true;
-    for (let i = 0; i < text.length; i++) {
-      if (text.charCodeAt(i) === 10) {
-        lineNumber += 1;
-        lineLength = 0;
-      } else if (++lineLength > longestLine && !problems.long) {
-        problems.long = new InputError(longLineMessage, { file, line: lineNumber });
-        stopParsing();
-      }
+    lines.add(text);
+    if (lines.firstLongLine !== null && !problems.long) {
+      problems.long = new InputError(longLineMessage, { file, line: lines.firstLongLine });
+      stopParsing();
     }
     await feed(text);
     if (bytes - lastProgress >= 262144) {
@@ -298,22 +296,12 @@ function safeSize(path: string): number | null {
   }
 }
 
-function countNewlines(text: string, from: number, to: number): number {
-  let count = 0;
-  for (let i = from; i < to; i++) if (text.charCodeAt(i) === 10) count += 1;
-  return count;
-}
 
-/** The first non-blank line of text when it is complete (followed by a line break), else null. */
+/** The first non-blank line of text when it is complete (followed by a line break other than a final lone CR), else null. */
 function firstCompleteLine(text: string): string | null {
-  let start = 0;
-  for (;;) {
-    const end = text.indexOf('\n', start);
-    if (end < 0) return null;
-    const line = text.slice(start, end);
-    if (line.trim() !== '') return line;
-    start = end + 1;
-  }
+  const pieces = text.split(/\r\n|\n|\r(?!$)/);
+  for (let i = 0; i < pieces.length - 1; i++) if (pieces[i].trim() !== '') return pieces[i];
+  return null;
 }
 
 

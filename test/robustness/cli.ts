@@ -20,7 +20,9 @@ export interface CliRun {
  * `cwd`, with stdin from `input` when given.
  */
 export function runCli(args: readonly string[], cwd = corpus, input?: string | Buffer): CliRun {
-  const result = spawnSync(process.execPath, [join(root, 'bin', 'stratotrend'), ...args], {
+  // STRATOTREND_TEST_BIN points at another build of the same sources (a developer's private copy while others rebuild dist/).
+  const launcher = process.env.STRATOTREND_TEST_BIN ?? join(root, 'bin', 'stratotrend');
+  const result = spawnSync(process.execPath, [launcher, ...args], {
     cwd,
     input,
     encoding: 'utf8',
