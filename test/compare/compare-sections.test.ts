@@ -1,6 +1,8 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { compareSections } from '../../src/compare/compare-sections.js';
+import { offsetModel } from '../../src/compare/joint-models.js';
+import { mergeSections } from '../../src/compare/stack.js';
 import { chiSquareSurvival, likelihoodRatioTest } from '../../src/compare/likelihood-ratio.js';
 import { fitModel } from '../../src/fit/fit-model.js';
 import { lineageFromArrays, type Lineage } from '../../src/lineage.js';
@@ -74,6 +76,32 @@ describe('compare: separate, shared and shared-offset', () => {
       if (weightOf('shared') + weightOf('shared-offset') > weightOf('separate')) sharedWins += 1;
     }
     expect(sharedWins).toBeGreaterThanOrEqual(5);
+  });
+
+  // Seeded simulation from the shared-offset model itself (one path, offset +0.5 for the
+  // second section, step variance 0.4 so the shared wiggles show): shared-offset should be best and recover the offset within its 95% interval.
+  it('one lineage seen with an offset favours shared-offset and recovers the offset', () => {
+    const local = createRandom(79);
+    const design = [
+      simulatedSection(local, 'Orlen Gap', 15, 4, 12, common),
+      simulatedSection(local, 'Marrow Cut', 12, 3.3, 11.6, common),
+    ];
+    const joint = offsetModel(directionalWalk, design);
+    const truth = { ...common, step_variance: 0.4, 'offset[Marrow Cut]': 0.5 };
+    let recovered = 0;
+    for (let r = 0; r < 4; r++) {
+      const means = simulateMeans(joint.model, joint.lineage, truth, local);
+      // Put the simulated means back into the sections (merged rows -> section rows).
+      const sections = design.map((section) => ({ ...section, mean: new Float64Array(section.mean.length) }));
+      const counters = [0, 0];
+      const merged = mergeSections(design);
+      merged.sectionOf.forEach((s, i) => { sections[s].mean[counters[s]++] = means[i]; });
+      const result = compareSections(sections, [directionalWalk], { intervals: true });
+      expect(result.best).toEqual({ id: 'shared-offset', model: 'directional-walk' });
+      const offset = result.hypotheses.find((h) => h.id === 'shared-offset')!.parameters['offset[Marrow Cut]'];
+      if (offset.lower! <= 0.5 && 0.5 <= offset.upper!) recovered += 1;
+    }
+    expect(recovered).toBeGreaterThanOrEqual(3);
   });
 
   // Seeded simulation: drifts of +1 and -1 per Myr with little noise; separate should win clearly.

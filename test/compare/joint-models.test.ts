@@ -95,6 +95,21 @@ describe('joint models: filter against the dense reference', () => {
     }
   });
 
+  // Closed form: shared-offset with every offset 0 is the base model on the merged timeline.
+  it('shared-offset with zero offsets equals the base model on the merged timeline', () => {
+    const sections = designs[2];
+    for (const base of classicModels) {
+      const joint = offsetModel(base, sections);
+      const parameters = parametersFor(joint.model.parameters.map((spec) => spec.name), random, 0.4);
+      for (const spec of joint.model.parameters) if (spec.name.startsWith('offset[')) parameters[spec.name] = 0;
+      const merged = mergeSections(sections).lineage;
+      const { mean, covariance } = base.meanCovariance(merged, parameters);
+      const dense = denseLogLik(mean, covariance, merged.samplingVariance, merged.mean);
+      const filtered = new LikelihoodEvaluator(joint.model, joint.lineage).atParameters(parameters);
+      expect(Math.abs(filtered - dense)).toBeLessThan(1e-9 * Math.max(1, Math.abs(dense)));
+    }
+  });
+
   // Hand-computed merge: ages 10, 9 (A) and 10, 9.5 (B) → common times 0, 0, 0.5, 1.
   it('merges sections onto common time, pooling coeval horizons when asked', () => {
     const a = { ...lineageFromArrays({ time: [0, 1], mean: [1, 2], samplingVariance: [0.1, 0.1], count: [4, 4], section: 'A' }), firstAge: 10 };
