@@ -86,3 +86,24 @@ describe('age model: Monte Carlo redraws', () => {
     expect(drawn.sections.get('B')).toBe(model.sections.get('B'));
   });
 });
+
+describe('age model through buildLineages', () => {
+  // Hand-computed: core ties at depth 0 m (2.0 Ma) and 30 m (5.0 Ma): 0.1 Myr per metre.
+  // Samples at depths 25, 10, 4 and 33 m → ages 4.5, 3.0, 2.4 and 5.3 Ma (33 m extrapolated);
+  // oldest first: 5.3, 4.5, 3.0, 2.4 → elapsed times 0, 0.8, 2.3, 2.9.
+  it('places depth samples in time oldest first and flags the extrapolated horizon', async () => {
+    const { readSamples } = await import('../../src/data/samples.js');
+    const { buildLineages } = await import('../../src/lineage.js');
+    const { WarningLog } = await import('../../src/data/warnings.js');
+    const model = ties('section,depth,age\nCore 7,0,2.0\nCore 7,30,5.0\n');
+    const samples = readSamples(readTable('section,depth,n,mean,sd\nCore 7,25,10,1,0.2\nCore 7,10,10,1.2,0.2\nCore 7,4,10,1.3,0.2\nCore 7,33,10,0.9,0.2\n', 'core.csv'));
+    expect(() => buildLineages(samples, { ageOf: ageFunction(model, { samplesFile: 'core.csv' }) })).toThrow(/core\.csv line 5: depth 33 in section "Core 7" lies outside the age model's ties \(0 to 30\)/);
+    const warnings = new WarningLog();
+    const [lineage] = buildLineages(samples, { ageOf: ageFunction(model, { extrapolate: true }), warnings });
+    const expected = [0, 0.8, 2.3, 2.9];
+    Array.from(lineage.time).forEach((t, i) => expect(t).toBeCloseTo(expected[i], 12));
+    expect(lineage.firstAge).toBeCloseTo(5.3, 12);
+    expect(lineage.extrapolated).toEqual([true, false, false, false]);
+    expect(warnings.has('extrapolated-age')).toBe(true);
+  });
+});
