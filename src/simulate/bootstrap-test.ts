@@ -69,6 +69,7 @@ export async function bootstrapTests(
   seed: number,
   runner: ReplicateRunner,
   stage?: (label: string, total: number) => BatchProgress,
+  which: { nested?: boolean; nonNested?: boolean } = {},
 ): Promise<BootstrapTestReport> {
   const design = designOf(fit.lineage);
   const byId = new Map(fit.models.map((model) => [model.id, model]));
@@ -79,7 +80,7 @@ export async function bootstrapTests(
   const tasks = (generator: string, fitted: readonly string[], stream: number): FitReplicateTask[] =>
     Array.from({ length: replicates }, (_, index) => ({ design, generator, parameters: { ...byId.get(generator)!.estimates }, fit: fitted, seed, stream, index }));
   let nested: BootstrapTestReport['nested'] = null;
-  if (usable('random-walk') && usable('directional-walk')) {
+  if (which.nested !== false && usable('random-walk') && usable('directional-walk')) {
     const statistic = Math.max(0, 2 * (byId.get('directional-walk')!.logLik - byId.get('random-walk')!.logLik));
     const results = await runner.fits(tasks('random-walk', ['random-walk', 'directional-walk'], 21), stage?.('replicates from the fitted random walk', replicates));
     const values = results.map((result) => ratioStatistic(result, 'directional-walk', 'random-walk')).filter((value): value is number => value !== null);
@@ -95,7 +96,7 @@ export async function bootstrapTests(
     };
   }
   let nonNested: BootstrapTestReport['non_nested'] = null;
-  if (usable('random-walk') && usable('stasis')) {
+  if (which.nonNested !== false && usable('random-walk') && usable('stasis')) {
     const observed = byId.get('stasis')!.aicc! - byId.get('random-walk')!.aicc!;
     const difference = (result: { aicc: Record<string, number | null> }): number | null => {
       const stasisCriterion = result.aicc.stasis;
