@@ -57,6 +57,8 @@ export function lineageDocument(fit: LineageFit): Record<string, unknown> {
     horizons: lineage.mean.length,
     // Horizons whose age the age model extrapolated beyond its ties (also per horizon in data.extrapolated).
     extrapolated_horizons: lineage.extrapolated.filter(Boolean).length,
+    // Age before present of the oldest horizon (age_i = first_age - time_i): puts sections given by height on one timescale.
+    first_age: finiteOrNull(lineage.firstAge ?? null),
     time_unit: lineage.timeUnit.label,
     position_kind: lineage.positionKind,
     transform: lineage.logTransformed ? 'ln' : 'none',

@@ -70,6 +70,6 @@ horizons, and each position counts 1 in K):
                     to random steps with step_variance (K = 3)
 
 Input columns (names case-insensitive): section, trait (optional); one of age (before present,
-older = larger), time (elapsed); n, mean, and sd or var (summary form) or value (specimen form);
+older = larger), time (elapsed), or height / depth with --age-model FILE; n, mean, and sd or var (summary form) or value (specimen form);
 covariate (optional, for the covariate models).`;
 }
