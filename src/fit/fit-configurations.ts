@@ -85,8 +85,17 @@ export function fitOverConfigurations(model: EvolutionModel, lineage: Lineage, o
   const chosen = best as { configuration: Configuration; logLik: number } | null;
   if (chosen === null) return notFitted(model, lineage, 'not fitted: no shift position gave a converged fit');
   const final = fitAtConfiguration(model, lineage, chosen.configuration, options, fitPlain);
+  // The shift times go with the parameters (no interval: the positions are discrete), so that readers of the
+  // JSON params alone (figures) can rebuild the model's expectation.
+  const shiftParameters: Record<string, ParameterEstimate> = {};
+  for (const [name, value] of Object.entries(final.estimates)) {
+    if (/^shift_\d+_(previous_)?time$/.test(name)) {
+      shiftParameters[name] = { estimate: value, lower: null, upper: null, atBound: null, lowerAtBound: false, upperAtBound: false };
+    }
+  }
   return {
     ...final,
+    parameters: { ...final.parameters, ...shiftParameters },
     extra: {
       ...(final.extra ?? {}),
       shifts: shiftRecords(lineage, chosen.configuration.shifts),

@@ -68,11 +68,9 @@ export const covariateStasis: EvolutionModel = {
       covariance: buildCovariance(covariate.length, (i, j) => (i === j ? parameters.stasis_variance : 0)),
     };
   },
-  expectation(parameters, time) {
-    // Without the covariate at arbitrary times the expectation is the mean at covariate 0; figures use the fitted horizons.
-    return {
-      mean: Float64Array.from(time, () => parameters.covariate_intercept),
-      variance: Float64Array.from(time, () => parameters.stasis_variance),
-    };
+  expectation(_parameters, time) {
+    // The expected trajectory follows the covariate, which is known only at the horizons, not at arbitrary
+    // times: not a number, so a figure draws no model curve rather than a wrong one.
+    return { mean: new Float64Array(time.length).fill(Number.NaN), variance: new Float64Array(time.length).fill(Number.NaN) };
   },
 };

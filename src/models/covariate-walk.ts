@@ -58,10 +58,9 @@ export const covariateWalk: EvolutionModel = {
       covariance: buildCovariance(time.length, (i, j) => parameters.step_variance * Math.min(time[i], time[j])),
     };
   },
-  expectation(parameters, time) {
-    return {
-      mean: Float64Array.from(time, () => parameters.ancestral_mean),
-      variance: Float64Array.from(time, (t) => parameters.step_variance * t),
-    };
+  expectation(_parameters, time) {
+    // The expected trajectory follows the covariate, which is known only at the horizons, not at arbitrary
+    // times: not a number, so a figure draws no model curve rather than a wrong one.
+    return { mean: new Float64Array(time.length).fill(Number.NaN), variance: new Float64Array(time.length).fill(Number.NaN) };
   },
 };

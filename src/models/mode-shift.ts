@@ -180,14 +180,17 @@ export function modeShift(first: SegmentMode, second: SegmentMode): EvolutionMod
       const previousTime = parameters.shift_1_previous_time;
       const v1 = parameters[varianceNames[0]];
       const v2 = parameters[varianceNames[1]];
+      // In continuous time a walk after the shift starts at t_p (the last horizon before it); a stasis segment after
+      // the shift is drawn from the first horizon of the new segment.
+      const firstAt = (t: number): boolean => (secondIsWalk ? t <= previousTime : t < shiftTime);
       const varianceAt = (t: number): number => {
-        const inFirst = t < shiftTime;
+        const inFirst = firstAt(t);
         if (first === 'stasis') return inFirst ? v1 : v1 + v2 * (t - previousTime);
         if (!secondIsWalk) return inFirst ? v1 * t : v2;
         return v1 * Math.min(t, previousTime) + v2 * Math.max(0, t - previousTime);
       };
       return {
-        mean: Float64Array.from(time, (t) => meanAt(parameters, t, t < shiftTime, previousTime)),
+        mean: Float64Array.from(time, (t) => meanAt(parameters, t, firstAt(t), previousTime)),
         variance: Float64Array.from(time, varianceAt),
       };
     },

@@ -1,0 +1,14 @@
+import { describe, expect, it } from 'vitest';
+import { allModels, classicModels, findModel, modelSets } from '../../src/models/registry.js';
+
+describe('the extended model set', () => {
+  it('is the classic five plus 4 punctuated, 6 mode-shift and 2 covariate models, each found by id', () => {
+    const extended = modelSets.extended();
+    expect(extended.slice(0, 5)).toEqual([...classicModels]);
+    expect(extended.length).toBe(5 + 4 + 6 + 2);
+    expect(new Set(extended.map((model) => model.id)).size).toBe(extended.length);
+    for (const model of extended) expect(findModel(model.id)).toBe(model);
+    // allModels() keeps listing the classic (and explicitly registered) models only, as before.
+    expect(allModels().map((model) => model.id)).toEqual(classicModels.map((model) => model.id));
+  });
+});
