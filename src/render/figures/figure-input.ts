@@ -23,6 +23,8 @@ export interface FigureLineage {
   readonly position: readonly number[];
   readonly mean: readonly number[];
   readonly samplingVariance: readonly number[];
+  /** Horizons whose age the age model extrapolated beyond its ties (drawn open). */
+  readonly extrapolated: readonly boolean[];
   readonly smoothed: { readonly model: string; readonly mean: readonly number[]; readonly standardError: readonly number[] } | null;
 }
 
@@ -129,6 +131,7 @@ export function readFigureLineage(document: unknown, where = 'lineage'): FigureL
     position,
     mean,
     samplingVariance,
+    extrapolated: Array.isArray(data.extrapolated) && data.extrapolated.length === time.length ? data.extrapolated.map((flag) => flag === true) : time.map(() => false),
     smoothed,
   };
 }

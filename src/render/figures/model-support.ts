@@ -100,7 +100,7 @@ export function modelSupportPlan(lineage: FigureLineage, options: ResolvedFigure
 
   const title = figureLineageName(lineage);
   const subtitle = wrapText(
-    `Model support: AICc with Akaike weights, N = ${lineage.time.length} horizons; ${bestMark} best supported (lowest AICc).`,
+    `Model support by AICc, N = ${lineage.time.length} horizons. ${bestMark} best supported.`,
     inner,
     (text) => measureText(font(typeSize.subtitle), text),
   );

@@ -140,8 +140,12 @@ export function trajectoryPlan(lineages: readonly FigureLineage[], options: Reso
         });
       }
     }
-    const timeScale = scaleOptions(axis.title, axis.reverse);
-    const traitScale = scaleOptions(traitTitle, false);
+    const xs = extent.map((point) => point.x);
+    const ys = extent.map((point) => point.y);
+    const timeValues = stratigraphic ? ys : xs;
+    const traitValues = stratigraphic ? xs : ys;
+    const timeScale = scaleOptions(axis.title, axis.reverse, padded(timeValues), stratigraphic ? 7 : 6);
+    const traitScale = scaleOptions(traitTitle, false, padded(traitValues), 5);
     return {
       type: 'scatter',
       data: { datasets },
@@ -166,13 +170,54 @@ function capitalised(text: string): string {
   return text.charAt(0).toUpperCase() + text.slice(1);
 }
 
-function scaleOptions(title: string, reverse: boolean): ScaleOptionsByType<'linear'> {
+/**
+ * Axis limits: the data's extent widened by 4% at each end (a flat extent by
+ * 5% of its value, or 1), so no mark sits on the frame and no axis runs on
+ * to the next round number with nothing in it.
+ */
+function padded(values: readonly number[]): { min: number; max: number } {
+  let low = Math.min(...values);
+  let high = Math.max(...values);
+  if (!(high > low)) {
+    const half = Math.abs(low) * 0.05 || 1;
+    low -= half;
+    high += half;
+  }
+  const pad = (high - low) * 0.04;
+  return { min: low - pad, max: high + pad };
+}
+
+/**
+ * A round tick step (1, 2, 2.5 or 5 × 10^k) giving close to `target` ticks
+ * over the span, never fewer than 3.
+ */
+export function tickStep(span: number, target: number): number {
+  const exponent = Math.floor(Math.log10(span / target));
+  let best = 10 ** exponent;
+  let bestMiss = Number.POSITIVE_INFINITY;
+  for (let k = exponent - 1; k <= exponent + 1; k++) {
+    for (const multiple of [1, 2, 2.5, 5]) {
+      const step = multiple * 10 ** k;
+      const count = Math.floor(span / step) + 1;
+      const miss = count < 3 ? Number.POSITIVE_INFINITY : Math.abs(count - target);
+      if (miss < bestMiss) {
+        best = step;
+        bestMiss = miss;
+      }
+    }
+  }
+  return best;
+}
+
+function scaleOptions(title: string, reverse: boolean, limits: { min: number; max: number }, ticks: number): ScaleOptionsByType<'linear'> {
   return {
     type: 'linear',
     reverse,
-    grace: '3%',
+    min: limits.min,
+    max: limits.max,
     title: { display: true, text: title, color: ink.text, font: { size: typeSize.axisTitle }, padding: { top: 2, bottom: 1 } },
-    ticks: { color: ink.text, font: { size: typeSize.tick }, maxTicksLimit: 8, padding: 2 },
+    // Ticks at round values inside the limits only (chart.js would otherwise label the limits themselves).
+    ticks: { color: ink.text, font: { size: typeSize.tick }, stepSize: tickStep(limits.max - limits.min, ticks), padding: 2, includeBounds: false },
     grid: { color: ink.grid, lineWidth: lineWidth.grid, tickLength: 3, tickColor: ink.axis, tickWidth: lineWidth.axis },
     border: { color: ink.axis, width: lineWidth.axis },
   } as unknown as ScaleOptionsByType<'linear'>;
@@ -195,7 +240,9 @@ function subtitleText(series: readonly Series[], together: boolean, options: Res
 
 function legendEntries(series: readonly Series[], together: boolean): LegendEntry[] {
   if (together) {
-    return series.map((item) => {
+    const extrapolated = series.some((item) => item.lineage.extrapolated.some((flag) => flag));
+    const open: LegendEntry[] = extrapolated ? [{ key: { marker: { shape: 'circle', color: ink.text, filled: false } }, text: 'Open marker: age extrapolated' }] : [];
+    return [...series.map((item) => {
       const style = item.style!;
       const name = item.lineage.section || 'lineage';
       return {
@@ -205,12 +252,15 @@ function legendEntries(series: readonly Series[], together: boolean): LegendEntr
         },
         text: item.curve ? `${name}: ${shortModelLabel(item.curve.label)}` : name,
       };
-    });
+    }), ...open];
   }
   const item = series[0];
   const entries: LegendEntry[] = [
     { key: { interval: { color: ink.text }, marker: { shape: 'circle', color: ink.text } }, text: 'Horizon mean with 95% sampling interval' },
   ];
+  if (item.lineage.extrapolated.some((flag) => flag)) {
+    entries.push({ key: { marker: { shape: 'circle', color: ink.text, filled: false } }, text: 'Age extrapolated beyond the age model' });
+  }
   if (item.curve) {
     entries.push({ key: { line: { color: modelInk.line, width: lineWidth.model } }, text: `Expected trajectory, ${shortModelLabel(item.curve.label)}` });
     if (item.curve.hasEnvelope) entries.push({ key: { band: { fill: modelInk.band, edge: modelInk.bandEdge } }, text: '95% envelope of the model' });
@@ -279,10 +329,11 @@ function marksPlugin(series: readonly Series[], stratigraphic: boolean, together
       }
       for (const item of series) {
         const style = item.style;
-        for (const mark of item.marks) {
+        item.marks.forEach((mark, i) => {
           const centre = pixel(chart, mark.time, mark.mean);
-          drawMarker(chart.ctx, style ? style.marker : 'circle', centre.x, centre.y, style ? style.color : ink.text, style ? style.filled : true);
-        }
+          const filled = (style ? style.filled : true) && !item.lineage.extrapolated[i];
+          drawMarker(chart.ctx, style ? style.marker : 'circle', centre.x, centre.y, style ? style.color : ink.text, filled);
+        });
       }
       chart.ctx.restore();
     },
