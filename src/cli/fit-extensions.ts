@@ -202,7 +202,7 @@ export function extrasDocument(extras: LineageExtras): Record<string, unknown> {
       seed: result.seed,
       level: result.level,
       adequate: result.adequate,
-      checks: result.checks.map((check) => ({ name: check.name, label: check.label, statistic: finiteOrNull(check.statistic), p_value: check.pValue, adequate: check.adequate })),
+      checks: result.checks.map((check) => ({ name: check.name, label: check.label, statistic: finiteOrNull(check.statistic), p_value: finiteOrNull(check.pValue), adequate: check.adequate })),
       note: result.note,
     };
   }

@@ -183,6 +183,14 @@ export function checkAdequacy(model: EvolutionModel, fit: ModelFit, lineage: Lin
     }
     simulated.push(adequacyStatistics(smoothUnder(model, refitted, data).standardizedInnovations, data.time));
   }
+  if (simulated.length < Math.min(draws, 19)) {
+    // Too few usable simulations (e.g. an estimate at a limit the simulator cannot draw from): say so, never pass by default.
+    const checks = (Object.keys(labels) as (keyof AdequacyStatistics)[]).map((name): AdequacyCheck => ({ name, label: labels[name], statistic: observed[name], pValue: Number.NaN, adequate: false }));
+    return {
+      model: model.id, draws, failedDraws, seed, level, checks, adequate: false,
+      note: `Not checked: only ${simulated.length} of ${draws} data sets simulated from the fitted model could be refitted, too few for bootstrap p-values.`,
+    };
+  }
   const checks = (Object.keys(labels) as (keyof AdequacyStatistics)[]).map((name): AdequacyCheck => {
     const pValue = bootstrapPValue(observed[name], simulated.map((statistics) => statistics[name]), name === 'normality' ? 'lower' : 'two-sided');
     return { name, label: labels[name], statistic: observed[name], pValue, adequate: pValue >= level };

@@ -74,10 +74,11 @@ export function ratesText(fit: LineageFit, rates: LineageRates): string {
 export function adequacyText(result: AdequacyResult): string {
   const lines: string[] = [`  Adequacy of ${result.model} (parametric bootstrap, ${result.draws} draws, seed ${result.seed}; not adequate when p < ${result.level}):`];
   const rows: string[][] = [['check', 'statistic', 'p-value', 'verdict']];
-  for (const check of result.checks) rows.push([check.label, formatNumber(check.statistic), check.pValue.toFixed(3), check.adequate ? 'adequate' : 'NOT adequate']);
+  for (const check of result.checks) rows.push([check.label, formatNumber(check.statistic), Number.isFinite(check.pValue) ? check.pValue.toFixed(3) : '—', Number.isFinite(check.pValue) ? (check.adequate ? 'adequate' : 'NOT adequate') : 'not checked']);
   lines.push(...alignColumns(rows, '    '));
   if (result.failedDraws > 0) lines.push(`    ${result.failedDraws} simulated data sets could not be refitted and were left out.`);
-  lines.push(`    Overall: ${result.adequate ? 'adequate on every check' : 'not adequate on at least one check'}. With four checks at 0.05, one failure by chance is not rare (about 1 in 5).`);
+  const checked = result.checks.every((check) => Number.isFinite(check.pValue));
+  if (checked) lines.push(`    Overall: ${result.adequate ? 'adequate on every check' : 'not adequate on at least one check'}. With four checks at 0.05, one failure by chance is not rare (about 1 in 5).`);
   lines.push(...wrapWords(result.note, '    '));
   lines.push(...wrapWords('Voje, Starrfelt & Liow (2018), Am. Nat. 191:509-523. Adequacy, like model support, depends on sampling, time-averaging and the age model; weigh it with specialist judgement.', '    '));
   return lines.join('\n');

@@ -75,6 +75,17 @@ describe('adequacy checks', () => {
     expect(runs).toBeGreaterThanOrEqual(9);
   });
 
+  it('never passes by default: a model that cannot be simulated from is reported as not checked', () => {
+    const lineage = design(12);
+    const data = withMeans(lineage, Float64Array.from(lineage.time, (_, i) => 1 + 0.1 * Math.sin(i)));
+    const fit = fitModel(stasis, data, { intervals: false });
+    const broken = { ...fit, estimates: { stasis_mean: Number.NaN, stasis_variance: 0.1 } };
+    const result = checkAdequacy(stasis, broken, data, { draws: 19, seed: 1 });
+    expect(result.adequate).toBe(false);
+    expect(result.checks.every((check) => Number.isNaN(check.pValue) && !check.adequate)).toBe(true);
+    expect(result.note).toMatch(/^Not checked/);
+  });
+
   it('is seeded (same seed, same p-values) and refits shift models at their fitted shift positions', () => {
     const random = createRandom(43);
     const lineage = design(24);
