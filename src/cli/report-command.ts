@@ -4,7 +4,7 @@ import { InputError, usageError } from '../data/errors.js';
 import { asFitDocument, lineageTitle, type FitDocumentView } from '../render/report/document-view.js';
 import { reportPage, type ReportFigure, type ReportInput } from '../render/report/report-page.js';
 import { sketchTrajectory } from '../render/report/sketch-figure.js';
-import { runFit, type FitCommandOptions, type FitRun } from './fit-command.js';
+import { runFitStreamed, type FitCommandOptions, type FitRun } from './fit-command.js';
 import { refuseInputPath, writeAtomically } from './write-output.js';
 
 /** Options of `stratotrend report` (the fit options plus where and how to write the page). */
@@ -21,6 +21,17 @@ export interface ReportCommandOptions extends FitCommandOptions {
   drawModel?: string;
   /** Also draw the smoothed lineage mean with its band. */
   smoothedBand?: boolean;
+  /** Also compare the sections of every trait measured in two or more (as `compare`). */
+  compare?: boolean;
+  /** Also run the power analysis on every lineage's design (as `power`). */
+  power?: boolean;
+  /** Replicates per drift value for --power (commander hands a string). */
+  powerReplicates?: string;
+  /** Seed of the simulations (--power). */
+  seed?: string;
+  /** Age model (tie points) for height/depth samples. */
+  ageModel?: string;
+  extrapolate?: boolean;
 }
 
 /** Default name of the report file. */
@@ -29,13 +40,13 @@ export const defaultReportFile = 'stratotrend-report.html';
 /** Results of another analysis read from a saved JSON file, sorted into the report's blocks by their layout. */
 interface Attachments {
   comparison?: unknown;
-  power?: unknown;
+  power: unknown[];
   adequacy?: unknown;
   files: { file: string; sha256: string; kind: string }[];
 }
 
 function readAttachments(files: readonly string[]): Attachments {
-  const attachments: Attachments = { files: [] };
+  const attachments: Attachments = { power: [], files: [] };
   for (const file of files) {
     let buffer: Buffer;
     try {
@@ -52,7 +63,9 @@ function readAttachments(files: readonly string[]): Attachments {
     const record = (value ?? {}) as Record<string, unknown>;
     const kind = Array.isArray(record.traits) ? 'comparison' : Array.isArray(record.grid) ? 'power' : record.adequacy !== undefined || /adequa/i.test(file) ? 'adequacy' : null;
     if (!kind) throw new InputError('is neither a section comparison (compare --json: "traits") nor a power result (power --json: "grid") nor adequacy checks', { file });
-    attachments[kind as 'comparison' | 'power' | 'adequacy'] = kind === 'adequacy' && record.adequacy !== undefined ? record.adequacy : value;
+    if (kind === 'power') attachments.power.push(value);
+    else if (kind === 'comparison') attachments.comparison = value;
+    else attachments.adequacy = record.adequacy !== undefined ? record.adequacy : value;
     attachments.files.push({ file, sha256: createHash('sha256').update(buffer).digest('hex'), kind });
   }
   return attachments;
@@ -153,6 +166,66 @@ export async function reportFigures(document: FitDocumentView, choices: ReportFi
   return { figures };
 }
 
+/** The power-curve figure of each power result, drawn by the figure module from the `power --json` layout. */
+async function powerFigures(powers: readonly unknown[], format: 'svg' | 'png'): Promise<ReportFigure[]> {
+  if (powers.length === 0) return [];
+  const { renderPowerCurve } = await import('../render/figures/power-curve.js');
+  const figures: ReportFigure[] = [];
+  for (const [index, power] of powers.entries()) {
+    const doc = power as { grid: never[]; input?: { lineage?: string }; settings?: Record<string, number | string>; smallest_drift?: { power?: number }; lrt?: { level?: number } };
+    const settings = doc.settings ?? {};
+    try {
+      const drawn = renderPowerCurve({
+        grid: doc.grid,
+        lineage: doc.input?.lineage ?? 'lineage',
+        horizons: Number(settings.horizons),
+        replicates: Number(settings.replicates),
+        timeUnit: String(settings.time_unit ?? ''),
+        weightThreshold: Number(settings.weight_threshold),
+        targetPower: doc.smallest_drift?.power ?? 0.8,
+        level: doc.lrt?.level ?? 0.05,
+        withinSd: Number(settings.pooled_within_sd),
+      }, { format, width: 'double', dpi: 200 });
+      figures.push({
+        lineage: null,
+        place: `power:${index}`,
+        kind: 'power-curve',
+        caption: `${doc.input?.lineage ?? 'lineage'}: probability of each decision rule against the true drift, from simulations on this design.`,
+        mime: drawn.mime,
+        bytes: drawn.bytes,
+        width: drawn.width,
+        height: drawn.height,
+      });
+    } catch (error) {
+      if ((error as { name?: string }).name === 'InputError') throw error;
+      // A power result without a drawable grid keeps its table; the figure is left out.
+    }
+  }
+  return figures;
+}
+
+/** Run the optional analyses asked for on the samples file: section comparison and power. */
+async function runAnalyses(file: string, document: FitDocumentView, options: ReportCommandOptions): Promise<{ comparison?: unknown; power: unknown[]; seeds: Record<string, unknown> }> {
+  const sampleOptions = { log: options.log, pool: options.pool, timeUnit: options.timeUnit, delimiter: options.delimiter, decimalComma: options.decimalComma };
+  const seeds: Record<string, unknown> = {};
+  let comparison: unknown;
+  if (options.compare) {
+    const { runCompare } = await import('./compare-command.js');
+    comparison = runCompare(file, { ...sampleOptions, models: options.models, intervals: options.intervals !== false, ageModel: options.ageModel, extrapolate: options.extrapolate }).document;
+  }
+  const power: unknown[] = [];
+  if (options.power) {
+    const { runPower } = await import('./power-command.js');
+    const seed = options.seed ?? '1';
+    seeds.power = seed;
+    for (const lineage of document.lineages) {
+      const result = await runPower(file, { ...sampleOptions, lineage: lineageTitle(lineage), replicates: options.powerReplicates, seed, coverage: false });
+      power.push(result.document);
+    }
+  }
+  return { comparison, power, seeds };
+}
+
 function parseFormat(value: string | undefined): 'svg' | 'png' {
   const format = (value ?? 'svg').toLowerCase();
   if (format !== 'svg' && format !== 'png') throw usageError(`--figure-format: expected "svg" or "png", got "${value}"`);
@@ -163,31 +236,42 @@ function parseFormat(value: string | undefined): 'svg' | 'png' {
  * Build the report page of a document: figures, attached analyses and the
  * run record (date, command, runtime, report options). Nothing is written.
  */
-export async function buildReport(document: FitDocumentView, options: ReportCommandOptions, extra: { source?: { file: string; sha256: string } } = {}): Promise<string> {
+export async function buildReport(
+  document: FitDocumentView,
+  options: ReportCommandOptions,
+  extra: { source?: { file: string; sha256: string }; analyses?: { comparison?: unknown; power: unknown[]; seeds: Record<string, unknown> } } = {},
+): Promise<string> {
   const format = parseFormat(options.figureFormat);
   const attachments = readAttachments(options.attach ?? []);
   const { figures, note } = await reportFigures(document, { format, orientation: options.orientation, drawModel: options.drawModel, smoothedBand: options.smoothedBand });
+  const power = [...(extra.analyses?.power ?? []), ...attachments.power];
+  figures.push(...(await powerFigures(power, format)));
   const reportOptions: Record<string, unknown> = {
     figure_format: format,
     orientation: options.orientation ?? 'stratigraphic',
     draw_model: options.drawModel ?? 'best supported',
     smoothed_band: options.smoothedBand === true,
+    compare: options.compare === true,
+    power: options.power === true ? `every lineage, ${options.powerReplicates ?? '200'} replicates per drift value` : false,
   };
   if (extra.source) reportOptions.source = `${extra.source.file} (saved fit document, SHA-256 ${extra.source.sha256}; not refitted)`;
   attachments.files.forEach((entry, index) => {
     reportOptions[`attached_${index + 1}`] = `${entry.file} (${entry.kind}, SHA-256 ${entry.sha256})`;
   });
+  const seeds: Record<string, unknown> = { ...(extra.analyses?.seeds ?? {}) };
+  for (const [key, value] of Object.entries(document.provenance.options)) if (/seed/.test(key) && value !== null && value !== undefined) seeds[key] = value;
   const input: ReportInput = {
     document,
     figures,
-    comparison: attachments.comparison,
-    power: attachments.power,
+    comparison: extra.analyses?.comparison ?? attachments.comparison,
+    power: power.length > 0 ? power : undefined,
     adequacy: attachments.adequacy,
     run: {
       date: new Date().toISOString(),
       command: ['stratotrend', ...process.argv.slice(2)].map((part) => (/^[\w@%+=:,./-]+$/.test(part) ? part : `'${part.replace(/'/g, "'\\''")}'`)).join(' '),
       runtime: `Node.js ${process.version} on ${process.platform} ${process.arch}`,
       reportOptions,
+      seeds,
       figureNote: note,
     },
   };
@@ -216,8 +300,11 @@ export async function reportCommand(file: string, options: ReportCommandOptions)
     const saved = readFitJson(file);
     html = await buildReport(saved.document, options, { source: { file, sha256: saved.sha256 } });
   } else {
-    const run = runFit(file, options);
-    html = await buildReport(asFitDocument(run.document), options);
+    if (file === '-' && (options.compare || options.power)) throw usageError('--compare and --power read the samples file again; give a file name, not "-"');
+    const run = await runFitStreamed(file, { log: options.log, pool: options.pool, timeUnit: options.timeUnit, delimiter: options.delimiter, decimalComma: options.decimalComma, models: options.models, intervals: options.intervals, ageModel: options.ageModel, extrapolate: options.extrapolate, quiet: true });
+    const document = asFitDocument(run.document);
+    const analyses = await runAnalyses(file, document, options);
+    html = await buildReport(document, options, { analyses });
     warningLines = run.warnings.list()
       .filter((warning) => warning.category !== 'at-bound' && warning.category !== 'not-compared')
       .map((warning) => `warning (${warning.category}): ${warning.message}${warning.count > 1 ? ` (${warning.count} times)` : ''}`);

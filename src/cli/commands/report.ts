@@ -19,12 +19,20 @@ export function defineReportCommand(program: Command): void {
     .option('--orientation <layout>', 'figures: stratigraphic (time up the page, oldest at the bottom) or horizontal', 'stratigraphic')
     .option('--draw-model <id>', "model whose expected trajectory and 95% envelope are drawn (default: each lineage's best-supported model)")
     .option('--smoothed-band', 'also draw the smoothed lineage mean with its 95% band')
+    .option('--age-model <file>', 'tie points (section, height or depth, age, optional age_sd) that turn sample heights/depths into ages')
+    .option('--extrapolate', 'allow ages beyond the outermost ties; such horizons are flagged in the report')
+    .option('--compare', 'also compare the sections of every trait measured in two or more (shared against separate processes, as "compare" does)')
+    .option('--power', 'also estimate the power of every lineage\'s design to detect a trend (simulations, as "power" does; takes a while)')
+    .option('--power-replicates <R>', 'simulated lineages per drift value for --power', '200')
+    .option('--seed <integer>', 'seed of the --power simulations (same seed, same report numbers)', '1')
     .option('--attach <json...>', 'also show saved results of other analyses: a section comparison (compare --json) or power results (power --json)')
     .option('--quiet', 'print nothing but errors and warnings')
     .addHelpText('after', `
 The page needs no network and no other file: styles and figures are inside it.
 It opens in any browser and prints on paper (one lineage per page).
-Its methods text is written from the options of the run; adapt it for the paper.`)
+Its methods text is written from the options of the run; adapt it for the paper.
+Every option of "fit" (extended models, rates, adequacy checks, interval methods, …) is
+available through "stratotrend fit FILE --report FILE.html", which writes the same page.`)
     .action(async (file: string, options) => {
       const { reportCommand } = await import('../report-command.js');
       await reportCommand(file, options);

@@ -3,7 +3,7 @@ import { boundCaution, closeSupportCaution, directionalCaution, stasisCaution, s
 import { summariseData, type DataSummary } from './data-summary.js';
 import { lineageTitle, type FitDocumentView, type LineageView } from './document-view.js';
 import { escapeHtml, exactValue, slug } from './html.js';
-import { jsonBlock } from './optional-blocks.js';
+import { adequacyBlock, jsonBlock, ratesBlock } from './optional-blocks.js';
 import { estimatesTable, supportTable } from './support-table.js';
 
 /** One figure ready for the page: already-rendered bytes of an image. */
@@ -18,10 +18,12 @@ export interface ReportFigure {
   readonly bytes: Uint8Array;
   readonly width: number;
   readonly height: number;
+  /** Block of the page the figure belongs to when it is not a lineage's ("power", "comparison"); default the lineage or the sections block. */
+  readonly place?: string;
 }
 
 /** Lineage-document keys the report shows in its own blocks; anything else appears under "further results". */
-const shownKeys = new Set(['section', 'trait', 'horizons', 'time_unit', 'position_kind', 'transform', 'sampling_variance', 'best_model', 'models', 'data', 'smoothed']);
+const shownKeys = new Set(['section', 'trait', 'horizons', 'time_unit', 'position_kind', 'transform', 'sampling_variance', 'best_model', 'models', 'data', 'smoothed', 'adequacy', 'rates', 'models_left_out']);
 
 /** An image element holding the figure's bytes as a data URL (no file or network access when opened). */
 export function figureHtml(figure: ReportFigure): string {
@@ -117,7 +119,8 @@ export function lineageSection(lineage: LineageView, index: number, document: Fi
     fact('net change / standard error', summary.changeToError === null ? '—' : formatNumber(summary.changeToError, 3), 'change_to_error', summary.changeToError),
     fact('treatment', `${lineage.transform === 'ln' ? 'natural-log trait' : 'untransformed trait'}, ${lineage.sampling_variance === 'pooled' ? 'pooled within-horizon variance' : 'per-horizon sampling variance'}`),
   ];
-  const own = figures.filter((figure) => figure.lineage === index);
+  const own = figures.filter((figure) => figure.lineage === index && figure.place === undefined);
+  const leftOut = Array.isArray(lineage.models_left_out) ? (lineage.models_left_out as string[]) : [];
   const further = Object.entries(lineage).filter(([key]) => !shownKeys.has(key));
   const anchor = `lineage-${index + 1}-${slug(title)}`;
   return `<section class="lineage" id="${anchor}" data-lineage="${index}">
@@ -128,10 +131,13 @@ export function lineageSection(lineage: LineageView, index: number, document: Fi
 ${warnings.length > 0 ? `<div class="warnings" role="note"><strong>Warnings</strong><ul>${warnings.map((warning) => `<li>${escapeHtml(warning)}</li>`).join('')}</ul></div>` : ''}
 <h3>Model support</h3>
 ${supportTable(lineage)}
+${leftOut.length > 0 ? `<p class="note">Not fitted to this lineage (its data do not allow them): ${escapeHtml(leftOut.join(', '))}.</p>` : ''}
 ${conclusion(lineage)}
 ${own.length > 0 ? `<h3>Figures</h3>\n${own.map(figureHtml).join('\n')}` : ''}
 <h3>Estimates</h3>
 ${estimatesTable(lineage)}
+${lineage.adequacy !== undefined && lineage.adequacy !== null ? `<h3>Adequacy of the best-supported model</h3>\n${adequacyBlock(lineage.adequacy)}` : ''}
+${lineage.rates !== undefined && lineage.rates !== null ? `<h3>Rates</h3>\n${ratesBlock(lineage.rates)}` : ''}
 ${further.map(([key, value]) => `<h3>${escapeHtml(key.replace(/_/g, ' '))}</h3>\n${jsonBlock(value)}`).join('\n')}
 </section>`;
 }

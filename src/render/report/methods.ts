@@ -45,6 +45,10 @@ export interface MethodsText {
 /** Which optional analyses the report shows, so the methods text can describe them. */
 export interface AnalysesRun {
   readonly comparison?: boolean;
+  /** Likelihood-ratio tests of shared against separate were reported with the comparison. */
+  readonly comparisonTests?: boolean;
+  /** Rates in darwins and haldanes were reported. */
+  readonly rates?: boolean;
   readonly power?: { readonly replicates?: number; readonly seed?: number | string } | null;
   readonly adequacy?: { readonly replicates?: number; readonly seed?: number | string } | null;
 }
@@ -103,6 +107,11 @@ function intervalSentence(document: FitDocumentView): MethodsSentence | null {
       parts.push({
         text: 'Approximate 95% confidence intervals are profile-likelihood intervals whose cut-off is the 95% quantile of the likelihood-ratio statistic over a parametric bootstrap of the fitted model',
         cites: ['venzonMoolgavkar1988', 'efronTibshirani1993'],
+      });
+    } else if (method === 'integrated') {
+      parts.push({
+        text: 'Approximate 95% confidence intervals are equal-tailed intervals of the integrated likelihood, with the location parameters integrated out under flat priors and the variance under a uniform prior on its square root (for models with at most one variance or rate parameter; models with more use the restricted adjusted profile)',
+        cites: ['bergerLiseoWolpert1999'],
       });
     } else {
       parts.push({ text: `Confidence intervals were made by the method "${method}"`, cites: [] });
@@ -176,10 +185,27 @@ export function methodsText(document: FitDocumentView, analyses: AnalysesRun = {
   const modelParts = models.map((model) => `${model.label} (K = ${model.k}; [[${modelReferenceKeys(model.id).join(';')}]])`);
   const setWords = document.model_set === 'classic' ? ' (the classic set)' : document.model_set === 'custom' ? ' (a set chosen by the user)' : ` (the "${document.model_set}" set)`;
   sentences.push({
-    text: `${capitalised(countWords(models.length))} ${models.length === 1 ? 'model' : 'models'} of phyletic evolution${setWords} were fitted to every lineage by maximum likelihood: ${listInWords(modelParts)}.`,
+    text: `${capitalised(countWords(models.length))} ${models.length === 1 ? 'model' : 'models'} of phyletic evolution${setWords} ${models.length === 1 ? 'was' : 'were'} fitted to every lineage by maximum likelihood: ${listInWords(modelParts)}.`,
     cites: [],
     paragraph: 'models',
   });
+  const ids = models.map((model) => model.id);
+  if (ids.some((id) => /^punctuated-|-then-/.test(id))) {
+    const segment = provenance.options.min_segment;
+    sentences.push({
+      text: `For the models with shifts, every admissible shift position was tried (exhaustive search${typeof segment === 'number' ? `, at least ${segment} horizons per segment` : ''}), and each shift position counts as one parameter in K.`,
+      cites: [],
+      paragraph: 'models',
+    });
+  }
+  if (ids.some((id) => /^covariate-/.test(id))) {
+    const file = provenance.options.covariate_file;
+    sentences.push({
+      text: `In the covariate-tracking models the expected trait mean is a linear function of an environmental covariate measured at each horizon${typeof file === 'string' ? ` (from ${file})` : ''}.`,
+      cites: [],
+      paragraph: 'models',
+    });
+  }
   sentences.push({
     text: 'The likelihood is the exact joint multivariate-normal density of all horizon means, with the model\'s process covariance plus the sampling variances on the diagonal; it was computed in a number of steps proportional to the number of horizons by a Kalman filter on the state-space form of each model, with the parameters that enter the mean linearly estimated exactly by generalised least squares through the augmented filter.',
     cites: ['kalman1960', 'deJong1991'], paragraph: 'models',
@@ -204,6 +230,18 @@ export function methodsText(document: FitDocumentView, analyses: AnalysesRun = {
     sentences.push({
       text: 'Where a trait was measured in two or more sections, hypotheses that the sections share one evolutionary process or each follow their own were fitted to all horizons together and ranked by AICc and Akaike weights in the same way.',
       cites: ['hurvichTsai1989', 'burnhamAnderson2002'], paragraph: 'choice',
+    });
+    if (analyses.comparisonTests) {
+      sentences.push({
+        text: 'Nested shared and separate hypotheses of the same model were also compared by likelihood-ratio tests with the χ² reference distribution, which is approximate when a variance lies on its bound of zero.',
+        cites: ['wilks1938'], paragraph: 'choice',
+      });
+    }
+  }
+  if (analyses.rates) {
+    sentences.push({
+      text: 'Rates of change were expressed in darwins (change in the natural logarithm of the trait per million years) and in haldanes (change in within-sample standard deviations per generation), and model-based rates were set against the range expected under neutral drift.',
+      cites: ['haldane1949', 'gingerich1993', 'lynch1990'], paragraph: 'choice',
     });
   }
   if (analyses.power) {

@@ -58,33 +58,121 @@ export function jsonBlock(value: Json, depth = 0): string {
   return facts + nested.map(([key, entry]) => `<${heading}><strong>${escapeHtml(key.replace(/_/g, ' '))}</strong></${heading}>${jsonBlock(entry, depth + 1)}`).join('');
 }
 
-/**
- * The comparison of sections, from the `compare --json` layout
- * (`{traits: [{trait, hypotheses: [{id, model, k, logLik, aicc, weight}]}]}`);
- * other layouts fall back to {@link jsonBlock}.
- */
-export function comparisonBlock(comparison: Json): string {
-  if (!isRecord(comparison) || !Array.isArray(comparison.traits)) return jsonBlock(comparison);
-  const parts = (comparison.traits as Json[]).map((entry) => {
-    if (!isRecord(entry) || !Array.isArray(entry.hypotheses)) return jsonBlock(entry);
-    const hypotheses = (entry.hypotheses as Json[]).filter(isRecord);
-    const best = hypotheses.reduce<Record<string, Json> | null>((winner, hypothesis) => (typeof hypothesis.aicc === 'number' && (winner === null || (hypothesis.aicc as number) < (winner.aicc as number)) ? hypothesis : winner), null);
-    const { hypotheses: _, ...rest } = entry;
-    return `<h3>${escapeHtml(String(entry.trait ?? 'trait'))}</h3>`
-      + (Object.keys(rest).length > 1 ? jsonBlock(rest) : '')
-      + recordsTable(hypotheses, 'section comparison')
-      + (best ? `<p>Lowest AICc: <strong>${escapeHtml(String(best.id ?? ''))}</strong>${best.model ? ` ${escapeHtml(String(best.model))}` : ''}${typeof best.weight === 'number' ? ` (Akaike weight ${(best.weight as number).toFixed(3)})` : ''}.</p>` : '');
-  });
-  const { traits: _, ...rest } = comparison;
-  return (Object.keys(rest).length > 0 ? jsonBlock(rest) : '') + parts.join('\n');
+function percent(value: unknown): string {
+  return typeof value === 'number' ? `${formatNumber(value * 100, 3)}%` : '—';
 }
 
 /**
- * Power results, from the `power --json` layout (`{grid: [{drift, p_best,
- * p_weight, p_lrt}], …}`); other layouts fall back to {@link jsonBlock}.
+ * Adequacy checks of one lineage's best model, from the lineage document's
+ * `adequacy` (`fit --adequacy`): one row per check with its statistic,
+ * bootstrap p-value and verdict.
  */
-export function powerBlock(power: Json): string {
+export function adequacyBlock(adequacy: Json): string {
+  if (!isRecord(adequacy) || !Array.isArray(adequacy.checks)) return jsonBlock(adequacy);
+  const checks = (adequacy.checks as Json[]).filter(isRecord);
+  const rows = checks.map((check) => `<tr data-check="${escapeHtml(String(check.name ?? ''))}"><td>${escapeHtml(String(check.label ?? check.name ?? ''))}</td>${cell(check.statistic, 'statistic')}${cell(check.p_value, 'p_value')}<td>${check.adequate === true ? 'adequate' : check.adequate === false ? '<strong>not adequate</strong>' : '—'}</td></tr>`);
+  const verdict = adequacy.adequate === true ? 'passes every check' : adequacy.adequate === false ? '<strong>fails at least one check</strong>' : 'was checked';
+  return `<p>The best-supported model (<code>${escapeHtml(String(adequacy.model ?? ''))}</code>) ${verdict} at level ${escapeHtml(scalarText(adequacy.level))} (${escapeHtml(scalarText(adequacy.draws))} simulated data sets, seed ${escapeHtml(scalarText(adequacy.seed))}${typeof adequacy.failed_draws === 'number' && adequacy.failed_draws > 0 ? `, ${adequacy.failed_draws} refits failed and were left out` : ''}).</p>
+<table aria-label="adequacy"><thead><tr><th>check on the one-step prediction errors</th><th class="number">statistic</th><th class="number">bootstrap p</th><th>verdict</th></tr></thead><tbody>
+${rows.join('\n')}
+</tbody></table>
+${typeof adequacy.note === 'string' && adequacy.note !== '' ? `<p class="note">${escapeHtml(adequacy.note)}</p>` : ''}
+<div class="cautions"><ul><li>${escapeHtml('Passing these checks means the data give no clear sign against the model; with few horizons the checks have little power, so "adequate" is weak evidence that the model is right.')}</li></ul></div>`;
+}
+
+/**
+ * Rates of one lineage, from the lineage document's `rates` (`fit --rates`):
+ * the whole sequence, the model-based rates, and the interval rates folded
+ * away, with the caution about the time-scale dependence of rates.
+ */
+export function ratesBlock(rates: Json): string {
+  if (!isRecord(rates)) return jsonBlock(rates);
+  const parts: string[] = [];
+  if (isRecord(rates.whole_sequence)) parts.push(`<p><strong>Whole sequence</strong></p>${jsonBlock(rates.whole_sequence)}`);
+  if (Array.isArray(rates.model_based) && rates.model_based.length > 0) parts.push(`<p><strong>From the fitted models</strong></p>${recordsTable((rates.model_based as Json[]).filter(isRecord), 'model-based rates')}`);
+  if (Array.isArray(rates.intervals) && rates.intervals.length > 0) parts.push(`<details><summary>Between consecutive horizons (${rates.intervals.length} intervals)</summary>${recordsTable((rates.intervals as Json[]).filter(isRecord), 'interval rates')}</details>`);
+  const facts = Object.fromEntries(Object.entries(rates).filter(([key, value]) => isScalar(value) && key !== 'caution' && key !== 'notes'));
+  if (Object.keys(facts).length > 0) parts.unshift(jsonBlock(facts));
+  if (Array.isArray(rates.notes) && rates.notes.length > 0) parts.push(`<ul class="note">${(rates.notes as Json[]).map((note) => `<li>${escapeHtml(scalarText(note))}</li>`).join('')}</ul>`);
+  if (typeof rates.caution === 'string') parts.push(`<div class="cautions"><ul><li>${escapeHtml(rates.caution)}</li></ul></div>`);
+  return parts.join('\n');
+}
+
+/** Lineage documents (composites, per-section fits) inside another analysis's result, shown by a caller-given renderer. */
+export type LineageRenderer = (lineage: Record<string, unknown>) => string;
+
+/**
+ * The comparison of sections as `compare --json` writes it: per trait the
+ * sections, the hypotheses × models ranked by AICc (N = all horizons) with
+ * Akaike weights, the likelihood-ratio tests of shared against separate,
+ * and the comparison's own caution. Other layouts fall back to
+ * {@link jsonBlock}.
+ */
+export function comparisonDocumentBlock(comparison: Json, renderLineage?: LineageRenderer): string {
+  if (!isRecord(comparison) || !Array.isArray(comparison.traits)) return jsonBlock(comparison);
+  const parts: string[] = [];
+  for (const entry of (comparison.traits as Json[]).filter(isRecord)) {
+    const hypotheses = Array.isArray(entry.hypotheses) ? (entry.hypotheses as Json[]).filter(isRecord) : [];
+    const best = isRecord(entry.best) ? entry.best : null;
+    const sections = Array.isArray(entry.sections) ? (entry.sections as Json[]).filter(isRecord) : [];
+    parts.push(`<h3>${escapeHtml(String(entry.trait || 'trait'))}</h3>`);
+    parts.push(`<p>${escapeHtml(`${sections.length} sections (${sections.map((section) => `${section.section}: ${section.horizons} horizons${typeof section.first_age === 'number' ? ` from age ${formatNumber(section.first_age)}` : ''}`).join('; ')}), ${scalarText(entry.horizons)} horizons in all, time in ${scalarText(entry.time_unit)}.`)}</p>`);
+    const rows = hypotheses.map((hypothesis) => {
+      const isBest = best !== null && best.id === hypothesis.id && best.model === hypothesis.model;
+      return `<tr data-hypothesis="${escapeHtml(String(hypothesis.id))}" data-model="${escapeHtml(String(hypothesis.model))}" class="${isBest ? 'best' : hypothesis.compared === false ? 'not-compared' : ''}">`
+        + `<td>${escapeHtml(String(hypothesis.description ?? hypothesis.id))}</td><td>${escapeHtml(String(hypothesis.label ?? hypothesis.model))}</td>`
+        + cell(hypothesis.k, 'k')
+        + `<td class="number" data-field="logLik" data-value="${exactValue(hypothesis.logLik as number | null)}">${escapeHtml(typeof hypothesis.logLik === 'number' ? hypothesis.logLik.toFixed(3) : '—')}</td>`
+        + `<td class="number" data-field="aicc" data-value="${exactValue(hypothesis.aicc as number | null)}">${escapeHtml(typeof hypothesis.aicc === 'number' ? hypothesis.aicc.toFixed(3) : '—')}</td>`
+        + `<td class="number" data-field="delta_aicc" data-value="${exactValue(hypothesis.delta_aicc as number | null)}">${escapeHtml(typeof hypothesis.delta_aicc === 'number' ? hypothesis.delta_aicc.toFixed(3) : '—')}</td>`
+        + `<td class="number" data-field="weight" data-value="${exactValue(hypothesis.weight as number | null)}">${escapeHtml(typeof hypothesis.weight === 'number' ? hypothesis.weight.toFixed(3) : '—')}</td>`
+        + `<td>${isBest ? '<strong>best supported</strong>' : hypothesis.compared === false ? escapeHtml(String(hypothesis.message ?? 'not compared')) : ''}</td></tr>`;
+    });
+    parts.push(`<table class="comparison" aria-label="section comparison"><thead><tr><th>hypothesis</th><th>model</th><th class="number">K</th><th class="number">logL</th><th class="number">AICc</th><th class="number">ΔAICc</th><th class="number">Akaike weight</th><th></th></tr></thead><tbody>\n${rows.join('\n')}\n</tbody></table>`);
+    if (best) {
+      const winner = hypotheses.find((hypothesis) => hypothesis.id === best.id && hypothesis.model === best.model);
+      if (winner) parts.push(`<div class="conclusion"><p><strong>Best supported:</strong> ${escapeHtml(String(winner.description ?? winner.id))}, ${escapeHtml(String(winner.label ?? winner.model))} (Akaike weight ${typeof winner.weight === 'number' ? winner.weight.toFixed(3) : '—'}).</p></div>`);
+    }
+    if (Array.isArray(entry.tests) && entry.tests.length > 0) {
+      const tests = (entry.tests as Json[]).filter(isRecord);
+      parts.push(`<p><strong>Likelihood-ratio tests of a shared against a separate process</strong> (χ² reference distribution)</p>
+<table aria-label="likelihood-ratio tests"><thead><tr><th>model</th><th>restricted</th><th>full</th><th class="number">statistic</th><th class="number">df</th><th class="number">p-value</th></tr></thead><tbody>
+${tests.map((test) => `<tr><td>${escapeHtml(String(test.model))}</td><td>${escapeHtml(String(test.restricted))}</td><td>${escapeHtml(String(test.full))}</td>${cell(test.statistic, 'statistic')}${cell(test.df, 'df')}${cell(test.p_value, 'p_value')}</tr>`).join('\n')}
+</tbody></table>`);
+    }
+    if (entry.age_uncertainty !== null && entry.age_uncertainty !== undefined) parts.push(`<p><strong>Dating uncertainty</strong></p>${jsonBlock(entry.age_uncertainty)}`);
+  }
+  if (Array.isArray(comparison.skipped) && comparison.skipped.length > 0) parts.push(`<p><strong>Not compared</strong></p>${jsonBlock(comparison.skipped)}`);
+  if (Array.isArray(comparison.composite) && comparison.composite.length > 0 && renderLineage) {
+    parts.push(`<h3>Composite lineages (sections merged on one timeline)</h3>${(comparison.composite as Json[]).filter(isRecord).map(renderLineage).join('\n')}`);
+  }
+  if (isRecord(comparison.age_model)) parts.push(`<details><summary>Age model</summary>${jsonBlock(comparison.age_model)}</details>`);
+  if (typeof comparison.caution === 'string') parts.push(`<div class="cautions"><ul><li>${escapeHtml(comparison.caution.replace(/^Caution:\s*(.)/, (_, first: string) => first.toUpperCase()))}</li></ul></div>`);
+  return parts.join('\n');
+}
+
+/**
+ * One power analysis as `power --json` writes it: the design and the
+ * simulated generator, the power grid, the false-trend rate, the smallest
+ * drift reaching the target power, interval coverage on the design, notes
+ * and the analysis's own caution.
+ */
+export function powerDocumentBlock(power: Json): string {
   if (!isRecord(power) || !Array.isArray(power.grid)) return jsonBlock(power);
-  const { grid, ...rest } = power;
-  return (Object.keys(rest).length > 0 ? jsonBlock(rest) : '') + recordsTable((grid as Json[]).filter(isRecord), 'power');
+  const input = isRecord(power.input) ? power.input : {};
+  const settings = isRecord(power.settings) ? power.settings : {};
+  const generator = isRecord(power.generator) ? power.generator : {};
+  const parts: string[] = [];
+  parts.push(`<h3>${escapeHtml(String(input.lineage ?? 'lineage'))}</h3>`);
+  parts.push(`<p>${escapeHtml(`${scalarText(settings.replicates)} simulated directional walks per drift value on this lineage's own design (${scalarText(settings.horizons)} horizons over ${scalarText(settings.span)} ${scalarText(settings.time_unit)}; its times, sample sizes and within-horizon variances), step variance ${scalarText(generator.step_variance)} (${scalarText(generator.step_variance_source)}), seed ${scalarText(settings.seed)}. Fitted drift ${scalarText(generator.fitted_drift)} ± ${scalarText(generator.drift_standard_error)} (standard error) per ${scalarText(settings.time_unit)}.`)}</p>`);
+  const rows = (power.grid as Json[]).filter(isRecord).map((row) => `<tr>${cell(row.drift, 'drift')}${cell(row.drift_sd, 'drift_sd')}<td class="number" data-field="p_best" data-value="${exactValue(row.p_best as number)}">${percent(row.p_best)}</td><td class="number" data-field="p_weight" data-value="${exactValue(row.p_weight as number)}">${percent(row.p_weight)}</td><td class="number" data-field="p_lrt" data-value="${exactValue(row.p_lrt as number)}">${percent(row.p_lrt)}</td></tr>`);
+  parts.push(`<table class="power" aria-label="power"><thead><tr><th class="number">drift per ${escapeHtml(scalarText(settings.time_unit))}</th><th class="number">in within-horizon sd</th><th class="number">directional walk best</th><th class="number">its weight &gt; ${escapeHtml(scalarText(settings.weight_threshold))}</th><th class="number">bootstrap LRT rejects the random walk</th></tr></thead><tbody>\n${rows.join('\n')}\n</tbody></table>`);
+  if (isRecord(power.false_trend)) parts.push(`<p><strong>False-trend rate</strong> (drift 0): directional walk best in ${percent(power.false_trend.p_best)}, weight above threshold in ${percent(power.false_trend.p_weight)}, bootstrap test rejecting in ${percent(power.false_trend.p_lrt)} of replicates.</p>`);
+  if (isRecord(power.smallest_drift)) parts.push(`<p><strong>Smallest drift reaching ${percent(power.smallest_drift.power)} power</strong>: ${escapeHtml(`${scalarText(power.smallest_drift.p_best)} (directional walk best), ${scalarText(power.smallest_drift.p_weight)} (weight rule), ${scalarText(power.smallest_drift.p_lrt)} (bootstrap test)`)} per ${escapeHtml(scalarText(settings.time_unit))}.</p>`);
+  if (power.horizons_needed !== null && power.horizons_needed !== undefined) parts.push(`<p><strong>Horizons needed</strong></p>${jsonBlock(power.horizons_needed)}`);
+  if (power.coverage !== null && power.coverage !== undefined) parts.push(`<details><summary>Coverage of the 95% intervals on this design</summary>${jsonBlock(power.coverage)}</details>`);
+  if (isRecord(power.lrt)) parts.push(`<details><summary>Bootstrap likelihood-ratio test</summary>${jsonBlock(power.lrt)}</details>`);
+  if (Array.isArray(power.notes) && power.notes.length > 0) parts.push(`<ul class="note">${(power.notes as Json[]).map((note) => `<li>${escapeHtml(scalarText(note))}</li>`).join('')}</ul>`);
+  if (typeof power.caution === 'string') parts.push(`<div class="cautions"><ul><li>${escapeHtml(power.caution)}</li></ul></div>`);
+  return parts.join('\n');
 }

@@ -99,6 +99,16 @@ export const referenceCatalogue: Readonly<Record<string, Reference>> = {
     cite: 'Hunt et al. 2010',
     entry: 'Hunt, G., Wicaksono, S. A., Brown, J. E. & Macleod, K. G. (2010). Climate-driven body-size trends in the ostracod fauna of the deep Indian Ocean. Palaeontology 53:1255–1268.',
   },
+  bergerLiseoWolpert1999: {
+    key: 'bergerLiseoWolpert1999',
+    cite: 'Berger, Liseo & Wolpert 1999',
+    entry: 'Berger, J. O., Liseo, B. & Wolpert, R. L. (1999). Integrated likelihood methods for eliminating nuisance parameters. Statistical Science 14:1–28.',
+  },
+  wilks1938: {
+    key: 'wilks1938',
+    cite: 'Wilks 1938',
+    entry: 'Wilks, S. S. (1938). The large-sample distribution of the likelihood ratio for testing composite hypotheses. Annals of Mathematical Statistics 9:60–62.',
+  },
   efronTibshirani1993: {
     key: 'efronTibshirani1993',
     cite: 'Efron & Tibshirani 1993',

@@ -3,7 +3,9 @@ import { lineageTitle, type FitDocumentView } from './document-view.js';
 import { escapeHtml, exactValue, slug } from './html.js';
 import { figureHtml, lineageSection, type ReportFigure } from './lineage-section.js';
 import { methodsParagraphs, methodsPlainText, methodsText, renderSentence, type AnalysesRun, type MethodsText } from './methods.js';
-import { comparisonBlock, jsonBlock, powerBlock } from './optional-blocks.js';
+import { comparisonDocumentBlock, jsonBlock, powerDocumentBlock } from './optional-blocks.js';
+import { supportTable } from './support-table.js';
+import type { LineageView } from './document-view.js';
 import { findReference } from './references.js';
 import { reportStyles } from './styles.js';
 import { supportCautions } from './cautions.js';
@@ -32,7 +34,7 @@ export interface ReportInput {
   readonly figures?: readonly ReportFigure[];
   /** `compare --json` result. */
   readonly comparison?: unknown;
-  /** `power --json` result. */
+  /** `power --json` result, or one per lineage. */
   readonly power?: unknown;
   /** Adequacy checks of the whole run (per-lineage checks may also sit in each lineage document). */
   readonly adequacy?: unknown;
@@ -106,14 +108,21 @@ export function reportPage(input: ReportInput): string {
   const power = input.power ?? document.power;
   const adequacy = input.adequacy ?? document.adequacy;
   const lineageAdequacy = document.lineages.some((lineage) => lineage.adequacy !== undefined);
+  const powerList = power === undefined ? [] : Array.isArray(power) ? power : [power];
+  const firstPower = (powerList[0] ?? {}) as { settings?: { replicates?: number; seed?: number } };
+  const adequacyOf = document.lineages.map((lineage) => lineage.adequacy as { draws?: number; seed?: number } | undefined).find((entry) => entry);
+  const hasTests = (comparison as { traits?: { tests?: unknown[] }[] } | undefined)?.traits?.some((trait) => (trait.tests ?? []).length > 0) ?? false;
   const analyses: AnalysesRun = {
     comparison: comparison !== undefined,
-    power: power !== undefined ? (input.analyses?.power ?? {}) : null,
-    adequacy: adequacy !== undefined || lineageAdequacy ? (input.analyses?.adequacy ?? {}) : null,
+    comparisonTests: hasTests,
+    power: power !== undefined ? (input.analyses?.power ?? { replicates: firstPower.settings?.replicates, seed: firstPower.settings?.seed }) : null,
+    adequacy: adequacy !== undefined || lineageAdequacy ? (input.analyses?.adequacy ?? { replicates: adequacyOf?.draws, seed: adequacyOf?.seed }) : null,
+    rates: document.lineages.some((lineage) => lineage.rates !== undefined && lineage.rates !== null),
   };
   const methods = methodsText(document, analyses);
   const inputNames = document.provenance.inputs.map((entry) => entry.file.split(/[\\/]/).pop() ?? entry.file).join(', ');
-  const shared = figures.filter((figure) => figure.lineage === null);
+  const shared = figures.filter((figure) => figure.lineage === null && figure.place === undefined);
+  const placed = (place: string): string => figures.filter((figure) => figure.place === place).map(figureHtml).join('\n');
   const further = Object.entries(document).filter(([key]) => !topKeys.has(key));
 
   const blocks: { id: string; title: string; html: string }[] = [];
@@ -123,10 +132,11 @@ export function reportPage(input: ReportInput): string {
   });
   if (shared.length > 0) blocks.push({ id: 'figures-by-trait', title: 'Sections together', html: shared.map(figureHtml).join('\n') });
   if (comparison !== undefined) {
-    blocks.push({ id: 'comparison', title: 'Comparison of sections', html: `${comparisonBlock(comparison)}<div class="cautions"><ul><li>${escapeHtml('Shared-versus-separate support depends on how well each section is dated; a common process fitted to sections on different age models inherits the errors of both.')}</li></ul></div>` });
+    const composite = (lineage: Record<string, unknown>): string => `<p><strong>${escapeHtml(lineageTitle(lineage as unknown as LineageView))}</strong></p>${supportTable(lineage as unknown as LineageView)}`;
+    blocks.push({ id: 'comparison', title: 'Comparison of sections', html: `${comparisonDocumentBlock(comparison, composite)}\n${placed('comparison')}` });
   }
-  if (power !== undefined) {
-    blocks.push({ id: 'power', title: 'Power of this design', html: `${powerBlock(power)}<div class="cautions"><ul><li>${escapeHtml('Power is computed for the models and parameter values simulated; it holds for this design only, under the assumption that the simulated model is right.')}</li></ul></div>` });
+  if (powerList.length > 0) {
+    blocks.push({ id: 'power', title: 'Power of this design', html: powerList.map((entry, index) => `${powerDocumentBlock(entry)}\n${placed(`power:${index}`)}`).join('\n') });
   }
   if (adequacy !== undefined) blocks.push({ id: 'adequacy', title: 'Adequacy checks', html: jsonBlock(adequacy) });
   for (const [key, value] of further) blocks.push({ id: slug(key), title: key.replace(/_/g, ' '), html: jsonBlock(value) });

@@ -19,10 +19,12 @@ p { margin: 0.5rem 0; }
 nav.contents { background: var(--tint); padding: 0.75rem 1rem; border-radius: 6px; }
 nav.contents ol { margin: 0.25rem 0 0; padding-left: 1.25rem; }
 a { color: var(--accent); }
-table { border-collapse: collapse; margin: 0.5rem 0 1rem; font-variant-numeric: tabular-nums; }
+table { border-collapse: collapse; margin: 0.5rem 0 1rem; font-variant-numeric: tabular-nums; max-width: 100%; }
 th, td { padding: 0.3rem 0.6rem; border-bottom: 1px solid var(--rule); text-align: left; vertical-align: top; }
 th { font-weight: 600; border-bottom: 2px solid var(--ink); }
-td.number, th.number { text-align: right; white-space: nowrap; }
+td.number, th.number { text-align: right; }
+td.number { white-space: nowrap; }
+th.number { white-space: normal; }
 tr.best td { font-weight: 600; background: #eaf1fa; }
 tr.not-compared td { color: var(--muted); font-style: italic; }
 .bar-track { display: inline-block; position: relative; width: 6rem; height: 0.8rem; background: var(--tint); border: 1px solid var(--rule); vertical-align: middle; margin-left: 0.4rem; }

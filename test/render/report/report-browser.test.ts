@@ -209,3 +209,71 @@ describe.skipIf(!executable)('HTML report in headless Chromium, offline', () => 
     await page.emulateMedia({ media: 'screen' });
   });
 });
+
+describe.skipIf(!executable)('HTML report with the optional analyses (section comparison, power), offline', () => {
+  let folder: string;
+  let browser: Browser;
+  let page: Page;
+  let log: PageLog;
+  let comparison: { traits: { hypotheses: Record<string, unknown>[] }[] };
+  let power: { grid: Record<string, number>[] };
+
+  beforeAll(async () => {
+    const { chromium } = await import('playwright-core');
+    const { runCompare } = await import('../../../src/cli/compare-command.js');
+    const { runPower } = await import('../../../src/cli/power-command.js');
+    folder = mkdtempSync(join(tmpdir(), 'stratotrend-report-analyses-'));
+    const run = runFit('sample-data/shell-length.csv', { intervals: false });
+    // Round trips through JSON text, as saved files would be.
+    comparison = JSON.parse(JSON.stringify(runCompare('sample-data/shell-length.csv', { intervals: false }).document));
+    power = JSON.parse(JSON.stringify((await runPower('sample-data/shell-length.csv', { replicates: '20', seed: '3', coverage: false })).document));
+    const html = await buildReport(asFitDocument(run.document), {}, { analyses: { comparison, power: [power], seeds: { power: '3' } } });
+    writeFileSync(join(folder, 'report.html'), html);
+    browser = await chromium.launch({ executablePath: executable!, args: chromiumArgs });
+    const context = await browser.newContext({ viewport: { width: 1280, height: 900 }, offline: true });
+    ({ page, log } = await openOffline(context, pathToFileURL(join(folder, 'report.html')).href));
+  });
+
+  afterAll(async () => {
+    await browser?.close();
+    if (folder) rmSync(folder, { recursive: true, force: true });
+  });
+
+  it('loads cleanly, with the power curve among the loaded figures', async () => {
+    expect(log.consoleErrors).toEqual([]);
+    expect(log.failedRequests).toEqual([]);
+    expect(log.refusedRequests).toEqual([]);
+    const curves = await page.evaluate(() => [...document.querySelectorAll('#power figure img')].map((image) => (image as HTMLImageElement).naturalWidth));
+    expect(curves.length).toBe(1);
+    expect(curves[0]).toBeGreaterThan(0);
+  });
+
+  it('the comparison table shows the numbers of the comparison document', async () => {
+    const rows = await page.evaluate(() =>
+      [...document.querySelectorAll('#comparison table.comparison tbody tr')].map((row) => ({
+        id: (row as HTMLElement).dataset.hypothesis,
+        model: (row as HTMLElement).dataset.model,
+        values: Object.fromEntries([...row.querySelectorAll('td[data-field]')].map((cell) => [(cell as HTMLElement).dataset.field, (cell as HTMLElement).dataset.value])),
+      })),
+    );
+    const expected = comparison.traits[0].hypotheses;
+    expect(rows.length).toBe(expected.length);
+    rows.forEach((row, index) => {
+      expect(row.id).toBe(expected[index].id);
+      expect(row.model).toBe(expected[index].model);
+      for (const field of ['k', 'logLik', 'aicc', 'delta_aicc', 'weight']) {
+        const value = expected[index][field] as number | null;
+        expect(row.values[field]).toBe(value === null ? '' : String(value));
+      }
+    });
+  });
+
+  it('the power table shows the grid of the power document, and the seed is in the provenance', async () => {
+    const rows = await page.evaluate(() =>
+      [...document.querySelectorAll('#power table.power tbody tr')].map((row) => Object.fromEntries([...row.querySelectorAll('td[data-field]')].map((cell) => [(cell as HTMLElement).dataset.field, Number((cell as HTMLElement).dataset.value)]))),
+    );
+    expect(rows).toEqual(power.grid.map((row) => ({ drift: row.drift, drift_sd: row.drift_sd, p_best: row.p_best, p_weight: row.p_weight, p_lrt: row.p_lrt })));
+    expect(await page.locator('#provenance').innerText()).toContain('power: 3');
+    expect(await page.locator('#methods').innerText()).toContain('power of this sampling design');
+  });
+});

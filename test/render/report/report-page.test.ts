@@ -43,11 +43,11 @@ describe('report page', () => {
     expect(html).not.toContain('id="comparison"');
     expect(html).not.toContain('id="power"');
     expect(html).not.toContain('id="adequacy"');
-    const comparison = { traits: [{ trait: 'shell length', hypotheses: [{ id: 'separate', model: 'directional-walk', k: 6, logLik: 31.2, aicc: -48.1, weight: 0.7 }, { id: 'shared', model: 'directional-walk', k: 4, logLik: 29.0, aicc: -48.9, weight: 0.3 }] }] };
+    const comparison = { traits: [{ trait: 'shell length', best: { id: 'shared', model: 'directional-walk' }, hypotheses: [{ id: 'separate', model: 'directional-walk', k: 6, logLik: 31.2, aicc: -48.1, weight: 0.7 }, { id: 'shared', model: 'directional-walk', k: 4, logLik: 29.0, aicc: -48.9, weight: 0.3 }] }] };
     const power = { grid: [{ drift: 0, p_best: 0.04, p_weight: 0.02, p_lrt: 0.05 }, { drift: 0.2, p_best: 0.6, p_weight: 0.5, p_lrt: 0.7 }], seed: 5 };
     const full = reportPage({ document, run, comparison, power, analyses: { power: { seed: 5, replicates: 100 } } });
     expect(full).toContain('id="comparison"');
-    expect(full).toContain('Lowest AICc: <strong>shared</strong>');
+    expect(full).toContain('data-hypothesis="shared" data-model="directional-walk" class="best"');
     expect(full).toContain('id="power"');
     expect(full).toContain('data-field="p_best" data-value="0.6"');
     expect(full).toContain('power of this sampling design');
