@@ -147,6 +147,7 @@ export function buildLineages(samples: SampleSet, options: LineageOptions = {}):
       }
     }
     const samplingVariance = Float64Array.from(withinVariance, (variance, i) => variance / count[i]);
+    refuseUnboundedLikelihood(name, placed.map((entry) => entry.record), samplingVariance, samples, options.pool === true);
     const firstAge = placed[0].age;
     const time = Float64Array.from(placed, (entry) => firstAge - entry.age);
     const hasCovariate = placed.some((entry) => entry.record.covariate !== undefined);
@@ -178,6 +179,43 @@ export function buildLineages(samples: SampleSet, options: LineageOptions = {}):
     });
   }
   return lineages;
+}
+
+/**
+ * Refuse sampling variances for which no model has a maximum-likelihood fit.
+ * A horizon with zero sampling variance among horizons with positive ones
+ * lets every model with a process variance fit that horizon exactly as the
+ * variance goes to 0, so the likelihood grows without bound (and strict
+ * stasis is singular); zero everywhere with identical means leaves nothing to
+ * fit. (Zero everywhere with different means is legal: stasis is then an
+ * ordinary normal sample, and the walks are reported as not fitted.)
+ *
+ * @throws InputError naming the first zero-variance horizon.
+ */
+export function refuseUnboundedLikelihood(
+  name: string,
+  records: readonly HorizonRecord[],
+  samplingVariance: Float64Array,
+  samples: Pick<SampleSet, 'file' | 'timeKind' | 'form'> & { spreadColumn?: string },
+  pooled: boolean,
+): void {
+  const zero = records.findIndex((_, i) => samplingVariance[i] === 0);
+  if (zero < 0) return;
+  const column = samples.form === 'specimen' ? 'value' : samples.spreadColumn;
+  const where = { file: samples.file, line: records[zero].line, ...(column ? { column } : {}) };
+  const allZero = records.every((_, i) => samplingVariance[i] === 0);
+  if (!allZero) {
+    throw new InputError(
+      `lineage "${name}": the horizon at ${samples.timeKind} ${records[zero].position} has zero within-horizon variance (its ${records[zero].n} specimens are all equal) while other horizons do not, got variance 0; no model's likelihood has a maximum then (it grows without bound as the model fits that horizon exactly). ${pooled ? 'Check the values of this horizon' : 'Use --pool to pool the within-horizon variance over the lineage, or check the values'}`,
+      where,
+    );
+  }
+  if (records.every((record) => record.mean === records[0].mean)) {
+    throw new InputError(
+      `lineage "${name}": every horizon has the same mean (${records[0].mean}) and zero within-horizon variance, got variance 0 throughout; there is no variation to model`,
+      where,
+    );
+  }
 }
 
 /**

@@ -28,6 +28,8 @@ export interface SampleSet {
   readonly timeKind: TimeKind;
   readonly records: readonly HorizonRecord[];
   readonly logTransformed: boolean;
+  /** The spread column of a summary-form file ("sd" or "var"), for messages. */
+  readonly spreadColumn?: string;
 }
 
 /** How to turn table rows into horizons. */
@@ -273,7 +275,7 @@ export class HorizonCollector {
         throw new InputError('the specimens of this horizon have a variance too large to compute with; rescale the values', { file: plan.file, line: record.line, column: 'value' });
       }
     }
-    return { file: plan.file, form: plan.form, timeKind: plan.timeKind, records, logTransformed: options.log === true };
+    return { file: plan.file, form: plan.form, timeKind: plan.timeKind, records, logTransformed: options.log === true, ...(plan.spread ? { spreadColumn: plan.spread } : {}) };
   }
 }
 

@@ -1,0 +1,204 @@
+/**
+ * Degenerate but legal data and the invariances every fit must respect, run
+ * through runFit (what `stratotrend fit` calls).
+ *
+ * Invariances (closed forms of the models in MODELS.md, common practice for
+ * location-scale families): the likelihood of every model depends on the
+ * data only through the sorted horizons, is unchanged by adding a constant c
+ * to the trait (location parameters move by c, the rest stay), and is
+ * unchanged by measuring time in units k times smaller (rates per unit time
+ * — step_variance, drift, alpha — divide by k; half-life multiplies by k).
+ * Each holds here to 1e-8 relative.
+ */
+import { mkdtempSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { InputError } from '../../src/data/errors.js';
+import { runFit, type FitCommandOptions } from '../../src/cli/fit-command.js';
+import { lineageTable } from '../../src/render/text-table.js';
+import { modelsCsv } from '../../src/render/models-csv.js';
+import { nonFinitePaths, nonFiniteText } from './finite.js';
+
+const folder = mkdtempSync(join(tmpdir(), 'stratotrend-numbers-'));
+let counter = 0;
+
+const ages = [9.8, 9.35, 9.1, 8.6, 8.25, 7.9, 7.2, 6.85];
+const means = [14.2, 14.65, 14.4, 15.1, 15.55, 15.3, 16.05, 16.4];
+const sds = [1.1, 1.3, 0.9, 1.2, 1.0, 1.15, 1.25, 1.05];
+const counts = [12, 15, 11, 14, 10, 13, 16, 12];
+
+function write(rows: ReadonlyArray<readonly (string | number)[]>, header = 'age,n,mean,sd'): string {
+  const path = join(folder, `numbers-${counter++}.csv`);
+  writeFileSync(path, `${header}\n${rows.map((row) => row.join(',')).join('\n')}\n`);
+  return path;
+}
+
+function table(transform: { age?: (a: number) => number; mean?: (m: number) => number; sd?: (s: number) => number } = {}, order = ages.map((_, i) => i)) {
+  return order.map((i) => [
+    (transform.age ?? ((a) => a))(ages[i]),
+    counts[i],
+    (transform.mean ?? ((m) => m))(means[i]),
+    (transform.sd ?? ((s) => s))(sds[i]),
+  ]);
+}
+
+type ModelDoc = {
+  id: string;
+  logLik: number | null;
+  aicc: number | null;
+  weight: number | null;
+  converged: boolean;
+  not_compared_reason: string | null;
+  params: Record<string, { estimate: number | null; lower: number | null; upper: number | null }>;
+  derived: Record<string, { estimate: number | null; lower: number | null; upper: number | null }>;
+};
+type LineageDoc = { models: ModelDoc[]; best_model: string | null };
+
+function fitDocument(path: string, options: FitCommandOptions = {}): LineageDoc[] {
+  const run = runFit(path, { models: 'classic', ...options });
+  expect(nonFinitePaths(run.document)).toEqual([]);
+  expect(run.fits.map(lineageTable).join('\n')).not.toMatch(nonFiniteText);
+  expect(modelsCsv(run.fits)).not.toMatch(nonFiniteText);
+  return (run.document as { lineages: LineageDoc[] }).lineages;
+}
+
+/** |a - b| <= 1e-8 max(|a|, |b|), or both null; a small absolute floor for values that are 0 in exact arithmetic. */
+function expectClose(actual: number | null, expected: number | null, label: string, floor = 1e-12): void {
+  if (expected === null || actual === null) {
+    expect(actual, label).toBe(expected);
+    return;
+  }
+  const scale = Math.max(Math.abs(actual), Math.abs(expected));
+  expect(Math.abs(actual - expected), `${label}: ${actual} vs ${expected}`).toBeLessThanOrEqual(1e-8 * scale + floor);
+}
+
+const locationParameters = new Set(['stasis_mean', 'ancestral_mean', 'optimum']);
+const ratePower: Record<string, number> = { step_variance: -1, drift: -1, alpha: -1, half_life: 1, limit_drift: -1 };
+
+/** Compare two fits model by model, with per-parameter maps (shift for locations, scale for rates). */
+function expectSameFit(
+  actual: LineageDoc[],
+  expected: LineageDoc[],
+  map: { shift?: number; timeFactor?: number; processTolerance?: number } = {},
+): void {
+  expect(actual.length).toBe(expected.length);
+  actual.forEach((lineage, l) => {
+    expect(lineage.best_model).toBe(expected[l].best_model);
+    lineage.models.forEach((model, m) => {
+      const reference = expected[l].models[m];
+      expect(model.id).toBe(reference.id);
+      expect(model.converged).toBe(reference.converged);
+      expectClose(model.logLik, reference.logLik, `${model.id} logLik`);
+      expectClose(model.aicc, reference.aicc, `${model.id} aicc`);
+      expectClose(model.weight, reference.weight, `${model.id} weight`, 1e-10);
+      for (const group of ['params', 'derived'] as const) {
+        for (const [name, estimate] of Object.entries(reference[group])) {
+          const got = model[group][name];
+          const transform = (value: number | null): number | null => {
+            if (value === null) return null;
+            if (locationParameters.has(name)) return value + (map.shift ?? 0);
+            const power = ratePower[name] ?? 0;
+            return value * (map.timeFactor ?? 1) ** -power;
+          };
+          for (const end of ['estimate', 'lower', 'upper'] as const) {
+            const wanted = transform(estimate[end]);
+            if (map.processTolerance !== undefined && !locationParameters.has(name) && wanted !== null && got[end] !== null) {
+              const scale = Math.max(Math.abs(wanted), Math.abs(got[end] as number));
+              expect(Math.abs((got[end] as number) - wanted), `${model.id} ${name} ${end}`).toBeLessThanOrEqual(map.processTolerance * scale + 1e-9);
+            } else {
+              expectClose(got[end], wanted, `${model.id} ${name} ${end}`, 1e-9);
+            }
+          }
+        }
+      }
+    });
+  });
+}
+
+describe('invariances (1e-8 relative)', () => {
+  const reference = fitDocument(write(table()));
+
+  it('row order does not matter', () => {
+    expectSameFit(fitDocument(write(table({}, [5, 2, 7, 0, 3, 6, 1, 4]))), reference);
+  });
+
+  it('adding a constant to the trait moves the location parameters only', () => {
+    // logL, AICc, weights and the location parameters to 1e-8. The shifted data differ from the
+    // originals by rounding (ulp of 1000 ~ 1e-13), so process parameters (variances, alpha), which
+    // are located by a derivative-free search, agree only to the precision with which a maximum can
+    // be located from function values, about sqrt(machine epsilon) ~ 1e-8 of the value, here
+    // checked at 1e-6 (Press et al., Numerical Recipes, 3rd ed. 2007, section 10.1; from memory).
+    const shift = 1000;
+    expectSameFit(fitDocument(write(table({ mean: (m) => m + shift }))), reference, { shift, processTolerance: 1e-6 });
+  });
+
+  it('time in units 1000 times smaller scales every rate by 1000 (Ma with Myr → ka with kyr)', () => {
+    const shifted = fitDocument(write(table({ age: (a) => Math.round(a * 1000) })), { timeUnit: 'ka' });
+    // A rate per Myr is 1000 times a rate per kyr: value_kyr = value_Myr / 1000 for per-time parameters.
+    expectSameFit(shifted, reference, { timeFactor: 1 / 1000 });
+  });
+});
+
+describe('degenerate but legal data: finite results or one clear message', () => {
+  const cases: Array<[string, ReadonlyArray<readonly (string | number)[]>, FitCommandOptions]> = [
+    ['all means identical', table({ mean: () => 5 }), {}],
+    ['zero within-horizon variance everywhere, means differ', table({ sd: () => 0 }), {}],
+    ['a single enormous outlier', table({ mean: (m) => (m === means[4] ? 1e9 : m) }), {}],
+    ['trait scale 1e-6', table({ mean: (m) => m * 1e-6, sd: (s) => s * 1e-6 }), {}],
+    ['trait scale 1e6', table({ mean: (m) => m * 1e6, sd: (s) => s * 1e6 }), {}],
+    ['ages in years', table({ age: (a) => a * 1e6 }), { timeUnit: 'yr' }],
+    ['ages in Ma', table(), { timeUnit: 'Ma' }],
+    ['very unequal spacing', table({ age: (a) => [100, 99.9999, 99.9998, 50, 10, 9.9999, 1, 0.0001][ages.indexOf(a)] }), {}],
+    ['horizons a millionth of a Myr apart', table({ age: (a) => 5 + ages.indexOf(a) * 1e-6 }), {}],
+    ['natural log of the trait', table(), { log: true }],
+    ['pooled variance', table(), { pool: true }],
+  ];
+
+  it.each(cases)('%s', (_, rows, options) => {
+    const lineages = fitDocument(write(rows), { ...options, intervals: false });
+    for (const lineage of lineages) {
+      expect(lineage.models.length).toBe(5);
+      for (const model of lineage.models) {
+        if (model.converged) expect(model.logLik).not.toBeNull();
+        else expect(model.not_compared_reason).toMatch(/\S/);
+      }
+    }
+  });
+
+  it('a model that cannot be fitted is reported as such without hiding the others', () => {
+    const [lineage] = fitDocument(write(table({ sd: () => 0 })), { intervals: false });
+    const stasis = lineage.models.find((model) => model.id === 'stasis');
+    expect(stasis?.converged).toBe(true);
+    expect(lineage.best_model).toBe('stasis');
+    const others = lineage.models.filter((model) => model.id !== 'stasis');
+    expect(others.length).toBe(4);
+    for (const model of others) {
+      expect(model.converged).toBe(false);
+      expect(model.weight).toBeNull();
+      expect(model.not_compared_reason).toMatch(/not fitted/);
+    }
+  });
+
+  it('stasis on zero-variance horizons equals the closed-form normal fit (ML variance with divisor N)', () => {
+    // Closed form (common practice): iid normal sample, mean = average, variance = sum of squared deviations / N.
+    const [lineage] = fitDocument(write(table({ sd: () => 0 })), { intervals: false });
+    const stasis = lineage.models.find((model) => model.id === 'stasis') as ModelDoc;
+    const average = means.reduce((sum, m) => sum + m, 0) / means.length;
+    const variance = means.reduce((sum, m) => sum + (m - average) ** 2, 0) / means.length;
+    expectClose(stasis.params.stasis_mean.estimate, average, 'stasis_mean');
+    expect(Math.abs((stasis.params.stasis_variance.estimate as number) - variance) / variance).toBeLessThan(1e-6);
+    const logLik = -0.5 * means.length * (Math.log(2 * Math.PI * variance) + 1);
+    expectClose(stasis.logLik, logLik, 'logLik', 1e-9);
+  });
+
+  const refusals: Array<[string, ReadonlyArray<readonly (string | number)[]>, RegExp]> = [
+    ['one zero-variance horizon among positive ones', table({ sd: (s) => (s === sds[3] ? 0 : s) }), /the horizon at age 8\.6 has zero within-horizon variance .*Use --pool/],
+    ['identical means with zero variance everywhere', table({ mean: () => 5, sd: () => 0 }), /every horizon has the same mean \(5\) and zero within-horizon variance/],
+  ];
+
+  it.each(refusals)('%s is refused with a message', (_, rows, message) => {
+    expect(() => runFit(write(rows), { intervals: false })).toThrow(InputError);
+    expect(() => runFit(write(rows), { intervals: false })).toThrow(message);
+  });
+});
