@@ -234,7 +234,8 @@ function subtitleText(series: readonly Series[], together: boolean, options: Res
   const curve = item.curve;
   const support = curve.weight === null ? '' : `, Akaike weight ${formatWeight(curve.weight)}`;
   const best = curve.isBest ? 'best-supported model' : `model drawn (best supported: ${shortModelLabel(item.lineage.models.find((m) => m.id === item.lineage.bestModel)?.label ?? 'none')})`;
-  const flat = curve.hasEnvelope || curve.id === 'strict-stasis' ? '' : ' Its envelope has no width: the variance is estimated at 0.';
+  const spans = item.lineage.time[item.lineage.time.length - 1] > 0;
+  const flat = curve.hasEnvelope || curve.id === 'strict-stasis' || !spans ? '' : ' Its envelope has no width: the variance is estimated at 0.';
   return `${capitalised(curve.label)}: ${best}${support}.${flat}`;
 }
 
