@@ -16,11 +16,12 @@ import { fittingProgress } from './fit-progress.js';
 import type { AgeModelOptions } from './compare-command.js';
 import { intervalOptions } from '../fit/intervals.js';
 import { attachCovariates, extensionSettings, extrasDocument, lineageExtras, modelsForLineage, searchProgress, type ExtensionOptions, type LineageExtras } from './fit-extensions.js';
+import type { FigureCommandOptions } from './render-command.js';
 import { toolVersion } from './version.js';
 import { prepareOutputFolder, writeAtomically } from './write-output.js';
 
 /** Options of `stratotrend fit`. */
-export interface FitCommandOptions extends AgeModelOptions, SampleFileOptions, ExtensionOptions {
+export interface FitCommandOptions extends AgeModelOptions, SampleFileOptions, FigureCommandOptions, ExtensionOptions {
   json?: boolean;
   out?: string;
   models?: string;
@@ -143,18 +144,23 @@ export async function fitCommand(file: string, options: FitCommandOptions): Prom
   const ageText = fitAgeDraws(file, options, run.fits, run.document);
   const compilation = options.summary ? await import('./compilation-output.js') : null;
   const summary = compilation ? compilation.addCompilation(run) : null;
+  // Figures load their module (and, when drawing, the chart stack) only with --out.
+  const figures = options.out && options.figures !== false ? await import('./render-command.js') : null;
+  const lineageDocuments = (run.document as { lineages: unknown[] }).lineages;
+  const figurePlan = figures ? figures.planFigureFiles(lineageDocuments, options) : null;
   if (options.out) {
-    const folder = prepareOutputFolder(options.out, [file], ['models.csv', 'fit.json', ...(summary ? ['compilation.png'] : [])]);
+    const folder = prepareOutputFolder(options.out, [file], ['models.csv', 'fit.json', ...(summary ? ['compilation.png'] : []), ...(figurePlan?.names ?? [])]);
     writeAtomically(join(folder, 'models.csv'), modelsCsv(run.fits));
     writeAtomically(join(folder, 'fit.json'), JSON.stringify(run.document, null, 2) + '\n');
     if (compilation && summary) await compilation.writeCompilationFigure(summary, folder);
+    if (figures && figurePlan) figures.writeFigureFiles(lineageDocuments, figurePlan, folder);
   }
   if (options.json) {
     process.stdout.write(JSON.stringify(run.document, null, 2) + '\n');
   } else if (!options.quiet) {
     const tables = run.fits.map((fit, j) => [lineageTable(fit), ...extrasText(fit, run.extras?.[j])].join('\n'));
     process.stdout.write(modelSetLine(options.models) + (compilation && summary ? compilation.compilationText(summary) : tables.join('\n\n')) + '\n');
-    if (options.out) process.stdout.write(`\nWrote models.csv${summary ? ', compilation.png' : ''} and fit.json to ${options.out}\n`);
+    if (options.out) process.stdout.write(`\nWrote models.csv${summary ? ', compilation.png' : ''} and fit.json${figurePlan ? ` and ${figurePlan.names.length} figure files` : ''} to ${options.out}\n`);
   }
   if (ageText && !options.json && !options.quiet) process.stdout.write('\n' + ageText + '\n');
   if (options.report) {

@@ -1,5 +1,6 @@
 import { InvalidArgumentError, type Command } from 'commander';
 import { addAgeModelOptions } from './compare.js';
+import { addFigureOptions } from './render.js';
 import { addSampleOptions } from './shared.js';
 
 /**
@@ -7,12 +8,12 @@ import { addSampleOptions } from './shared.js';
  * the command runs, so defining commands stays cheap.
  */
 export function defineFitCommand(program: Command): void {
-  addAgeModelOptions(addSampleOptions(
+  addFigureOptions(addAgeModelOptions(addSampleOptions(
     program
       .command('fit')
       .description('fit every model to every lineage (section × trait) of a samples CSV and rank them by AICc')
       .argument('<file>', 'samples CSV (summary form: n, mean, sd or var per horizon; specimen form: value per specimen); "-" reads stdin'),
-  ))
+  )))
     .option('--json', 'print one JSON document to stdout instead of the table')
     .option('--out <folder>', 'write models.csv and fit.json into this folder (created if needed)')
     .option('--models <set>', 'classic|extended|id,id,...: "classic" (the five models), "extended" (classic plus the shift, mode-shift and covariate models the data allow) or a comma-separated list of model ids', 'classic')
@@ -26,6 +27,7 @@ export function defineFitCommand(program: Command): void {
     .option('--no-intervals', 'skip the profile-likelihood intervals (faster)')
     .option('--intervals <method>', 'how the 95% intervals are made: integrated (default: integrated likelihood, best calibrated; ou and shift models use adjusted), adjusted (restricted profile likelihood), profile (plain profile likelihood, asymptotic) or bootstrap (profile with a parametric-bootstrap cut-off, slower)')
     .option('--quiet', 'print nothing but errors and warnings')
+    .option('--no-figures', 'with --out, write no figure files (by default each lineage gets a trajectory and a model-support figure, each trait with several sections a sections figure)')
     .option('--report <file>', 'also write one self-contained HTML report (as "stratotrend report" does)')
     .option('--summary', 'print the cross-lineage summary (wins per model, Akaike weights, drift) instead of one table per lineage; adds "compilation" to the JSON and compilation.png with --out')
     .option('--threads <count>', 'worker threads for many lineages (1 = no workers; default: every core when there are enough lineages to pay off)', parseThreads)
