@@ -161,6 +161,21 @@ describe('trajectory figure (PNG)', () => {
     expect(result.envelope).toBeGreaterThan(20);
   });
 
+  it('draws horizons with extrapolated ages as open markers (white centre, inked ring)', async () => {
+    const document = ridgeDocument();
+    document.data.extrapolated = document.data.extrapolated.map((_, i) => i === 11);
+    const figure = renderTrajectory(document, { dpi: 300 });
+    const pixels = await decodePng(figure.bytes);
+    const x = scalePixel(figure.frame, 'x', document.data.mean[11]);
+    const y = scalePixel(figure.frame, 'y', document.data.position[11]);
+    // Marker radius 2.3 pt at 300 dpi ≈ 9.6 px: the centre is paper, the ring at about 9 px is ink.
+    expect(luma(pixels.at(x, y))).toBeGreaterThan(200);
+    const ring = Math.min(...[0, 1, 2, 3, 4, 5, 6, 7].map((k) => darkestNear(pixels, x + 9 * Math.cos((k * Math.PI) / 4), y + 9 * Math.sin((k * Math.PI) / 4), 1)));
+    expect(ring).toBeLessThan(120);
+    // A horizon whose age is not extrapolated stays filled.
+    expect(darkestNear(pixels, scalePixel(figure.frame, 'x', document.data.mean[5]), scalePixel(figure.frame, 'y', document.data.position[5]), 0)).toBeLessThan(90);
+  });
+
   it('renders deterministically: the same document and options give the same bytes', () => {
     const document = ridgeDocument();
     const first = renderTrajectory(document, { dpi: 150, smoothed: true });
