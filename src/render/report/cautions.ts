@@ -5,13 +5,21 @@
  * holds.
  */
 
-/** Cautions shown with every model-support conclusion. */
+/**
+ * Cautions shown with every model-support conclusion: the points of the
+ * README's "Reading the results: cautions", in short.
+ */
 export const supportCautions: readonly string[] = [
-  'Akaike weights rank the fitted models against each other only; the best-supported model may still describe the data poorly, and a model that was not fitted cannot win.',
-  'Model support depends on the sampling: few horizons, small samples, time-averaging within horizons and the age model (spacing of the horizons) all change which model is favoured. Treat a weight as a statement about this data set, not about the lineage.',
-  'A good fit to a random walk says nothing by itself about drift versus selection: an unbiased random walk is also what fluctuating or shifting selection produces at this time scale.',
-  'Directional change in one section may reflect immigration, ecophenotypic response or a change of environment rather than evolution in place; the specialist\'s knowledge of the section and the organisms comes first.',
+  'Model support is not mechanism: a good fit to a random walk says nothing by itself about drift versus selection (fluctuating selection, many small directional episodes and genetic drift all produce random-walk-like sequences), and stasis describes the net pattern, not constraint or stabilising selection as such.',
+  'Support depends on sampling: short sequences, few specimens per horizon and large sampling error favour the simpler models; the absence of support for a trend is not evidence of no trend unless the design could have detected one.',
+  'Time-averaging within horizons and errors in the age model change the apparent tempo and mode; rates are per the time unit of the input and inherit its uncertainty.',
+  'Akaike weights are relative to the models fitted: they say which of these descriptions the data favour, not that any of them is true.',
+  'These numbers are a tool for the specialist; the interpretation of the lineage\'s history rests with the paleontologist\'s judgement of the material, the sections and their dating.',
 ];
+
+/** Caution shown with the estimates: what the interval method promises. */
+export const intervalCaution =
+  'Intervals are approximate: with few horizons, and especially when a variance estimate sits at 0, a nominal 95% interval can cover the true value less often than 95% of the time.';
 
 /** Extra caution when the best-supported model is a directional walk. */
 export const directionalCaution =

@@ -243,6 +243,10 @@ export function methodsText(document: FitDocumentView, analyses: AnalysesRun = {
       text: 'Rates of change were expressed in darwins (change in the natural logarithm of the trait per million years) and in haldanes (change in within-sample standard deviations per generation), and model-based rates were set against the range expected under neutral drift.',
       cites: ['haldane1949', 'gingerich1993', 'lynch1990'], paragraph: 'choice',
     });
+    sentences.push({
+      text: 'Measured rates depend on the interval over which they are measured, so they are compared only over similar intervals.',
+      cites: ['gingerich1983', 'hunt2012'], paragraph: 'choice',
+    });
   }
   if (analyses.power) {
     const details = [analyses.power.replicates ? `${analyses.power.replicates} replicates per drift value` : null, analyses.power.seed !== undefined ? `random seed ${analyses.power.seed}` : null].filter(Boolean).join(', ');

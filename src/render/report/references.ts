@@ -84,6 +84,16 @@ export const referenceCatalogue: Readonly<Record<string, Reference>> = {
     cite: 'Gingerich 1993',
     entry: 'Gingerich, P. D. (1993). Quantification and comparison of evolutionary rates. American Journal of Science 293-A:453–478.',
   },
+  gingerich1983: {
+    key: 'gingerich1983',
+    cite: 'Gingerich 1983',
+    entry: 'Gingerich, P. D. (1983). Rates of evolution: effects of time and temporal scaling. Science 222:159–161.',
+  },
+  hunt2012: {
+    key: 'hunt2012',
+    cite: 'Hunt 2012',
+    entry: 'Hunt, G. (2012). Measuring rates of phenotypic evolution and the inseparability of tempo and mode. Paleobiology 38:351–373.',
+  },
   lynch1990: {
     key: 'lynch1990',
     cite: 'Lynch 1990',

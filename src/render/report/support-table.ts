@@ -1,6 +1,7 @@
 import { findModel } from '../../models/registry.js';
 import { formatFixed, formatNumber, unitLabel } from '../units.js';
 import type { EstimateView, LineageView, ModelView } from './document-view.js';
+import { intervalCaution } from './cautions.js';
 import { escapeHtml, exactValue } from './html.js';
 
 function numberCell(field: string, value: number | null, text: string): string {
@@ -87,5 +88,5 @@ export function estimatesTable(lineage: LineageView): string {
 <tbody>
 ${rows.join('\n')}
 </tbody></table>
-<p class="note">Intervals: ${escapeHtml(methods.join(', ') || 'none')}; "open" means the interval reaches a bound or limit of the parameter at that end.</p>`;
+<p class="note">Intervals: ${escapeHtml(methods.join(', ') || 'none')}; "open" means the interval reaches a bound or limit of the parameter at that end. ${escapeHtml(intervalCaution)}</p>`;
 }
