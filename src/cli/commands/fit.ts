@@ -15,7 +15,7 @@ export function defineFitCommand(program: Command): void {
       .argument('<file>', 'samples CSV (summary form: n, mean, sd or var per horizon; specimen form: value per specimen); "-" reads stdin'),
   )))
     .option('--json', 'print one JSON document to stdout instead of the table')
-    .option('--out <folder>', 'write models.csv and fit.json into this folder (created if needed)')
+    .option('--out <folder>', 'write models.csv, fit.json and the figures (see the figure options; redraw them later with "stratotrend redraw") into this folder (created if needed)')
     .option('--models <set>', 'classic|extended|id,id,...: "classic" (the five models), "extended" (classic plus the shift, mode-shift and covariate models the data allow) or a comma-separated list of model ids', 'classic')
     .option('--min-segment <n>', 'fewest horizons in a segment of a shift model (default 5; at least 3 where a segment has its own variance)')
     .option('--covariate-file <file>', 'covariate per horizon for the covariate models: CSV with section (optional), age or time, covariate; matched by section and age (or time)')
