@@ -69,8 +69,12 @@ export function coverageReplicate(task: CoverageTask): CoverageResult {
         ratioCutoff = (name) => cutoffs.cutoff[name];
       }
     }
-    const found = (method === 'integrated' ? integratedIntervals(evaluator, task.names) : null) ??
-      intervalsByProfile(evaluator, task.names, { adjusted: method === 'adjusted' || method === 'integrated', ratioCutoff }, ends);
+    const integrated = method === 'integrated' ? integratedIntervals(evaluator, task.names) : null;
+    if (integrated) {
+      // As in fitModel: a variance whose estimate is 0 keeps 0 in its integrated interval.
+      for (const name of task.names) if (fit.parameters[name]?.atBound === 'zero') integrated[name] = { ...integrated[name], lower: 0, lowerAtBound: true };
+    }
+    const found = integrated ?? intervalsByProfile(evaluator, task.names, { adjusted: method === 'adjusted' || method === 'integrated', ratioCutoff }, ends);
     intervals[method] = Object.fromEntries(
       task.names.map((name) => [name, { lower: found[name].lower, upper: found[name].upper, covered: covers(found[name], task.parameters[name]) }]),
     );
