@@ -13,6 +13,8 @@ export interface FigureLineage {
   readonly timeUnit: string;
   /** What the position column was: age (before present), time, height or depth. */
   readonly positionKind: string;
+  /** Age before present of the oldest horizon (from an age model for heights and depths), or null. */
+  readonly firstAge: number | null;
   /** 'ln' when the trait was log-transformed. */
   readonly transform: string;
   readonly bestModel: string | null;
@@ -124,6 +126,7 @@ export function readFigureLineage(document: unknown, where = 'lineage'): FigureL
     trait: text(doc.trait),
     timeUnit: text(doc.time_unit, 'Myr'),
     positionKind: text(doc.position_kind, 'time'),
+    firstAge: nullableNumber(doc.first_age),
     transform: text(doc.transform, 'none'),
     bestModel: typeof doc.best_model === 'string' ? doc.best_model : null,
     models,

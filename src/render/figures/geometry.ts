@@ -35,19 +35,22 @@ export function ageUnitLabel(timeUnit: string): string {
 
 /**
  * The time axis shared by one or several lineages. Ages are drawn as read
- * (so horizons of different sections line up by age); height or depth
- * positions are drawn as elapsed time, because the document holds the age
- * model's times but not the ages of the positions in between.
+ * (so horizons of different sections line up by age); heights and depths
+ * are drawn at the ages their age model gave them (`first_age` − t) when the
+ * document carries `first_age`, and as time since the oldest horizon
+ * otherwise.
  */
 export function timeAxisFor(lineages: readonly FigureLineage[]): TimeAxis {
   const unit = lineages[0]?.timeUnit ?? 'Myr';
   const kinds = new Set(lineages.map((lineage) => lineage.positionKind));
-  if (kinds.size === 1 && kinds.has('age')) {
+  const aged = lineages.every((lineage) => lineage.positionKind === 'age' || ((lineage.positionKind === 'height' || lineage.positionKind === 'depth') && lineage.firstAge !== null));
+  if (aged) {
     return {
       kind: 'age',
       title: `Age (${ageUnitLabel(unit)})`,
       reverse: true,
-      toAxis: (lineage, elapsed) => lineage.position[0] - elapsed,
+      // Heights and depths are placed by the age model: age_i = first_age - t_i.
+      toAxis: (lineage, elapsed) => (lineage.positionKind === 'age' ? lineage.position[0] : (lineage.firstAge as number)) - elapsed,
     };
   }
   if (kinds.size === 1 && kinds.has('time')) {

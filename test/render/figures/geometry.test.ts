@@ -61,6 +61,17 @@ describe('figure geometry', () => {
     expect(timeAxisFor([elapsed]).reverse).toBe(false);
   });
 
+  it('places heights on the age model\'s ages when the document has first_age (age_i = first_age - t_i)', () => {
+    const document = ridgeDocument();
+    const heights = readFigureLineage({ ...document, position_kind: 'height', position: undefined, first_age: 9.25, data: { ...document.data, position: document.data.time.map((t) => 2 + 10 * t) } });
+    const axis = timeAxisFor([heights]);
+    expect(axis.title).toBe('Age (Ma)');
+    expect(axis.reverse).toBe(true);
+    const marks = horizonMarks(heights, axis);
+    expect(marks[0].time).toBeCloseTo(9.25, 12);
+    expect(marks[11].time).toBeCloseTo(9.25 - 4, 12);
+  });
+
   it('names the missing field of a broken document', () => {
     const document = ridgeDocument();
     expect(() => readFigureLineage({ ...document, data: { ...document.data, mean: document.data.mean.slice(1) } }, 'fit.json lineages[0]')).toThrow(
