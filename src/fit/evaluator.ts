@@ -22,8 +22,10 @@ export class LikelihoodEvaluator {
   private readonly data: Float64Array;
   private readonly sums: WhitenedSums;
   private readonly work: Float64Array;
-  /** Number of filter passes so far. */
+  /** Number of filter passes so far (repeated process values answered from the cache are not counted). */
   evaluations = 0;
+  /** Filter results by process values: see {@link LikelihoodEvaluator.whiten}. */
+  private readonly cache: WhitenCache;
 
   constructor(model: EvolutionModel, lineage: Lineage) {
     this.model = model;
@@ -37,13 +39,29 @@ export class LikelihoodEvaluator {
     this.space = allocateStateSpace(size, width, lineage.samplingVariance);
     this.sums = allocateSums(size, width);
     this.work = new Float64Array(workSize(width));
+    this.cache = new WhitenCache(model.process.length, width);
   }
 
-  /** Filter at these process values; returns the (reused) sums. */
+  /**
+   * Filter at these process values; returns the (reused) sums.
+   *
+   * The searches visit the same process values again and again: every
+   * profile-likelihood step of a location parameter re-runs the same grid
+   * (the whitening does not depend on the location value held fixed), and
+   * the restricted profiles repeat the main search's grid. So the sums of
+   * each filter pass are kept (at most {@link whitenCacheSize} entries, then
+   * the cache starts afresh) and a repeat is answered by copying them back,
+   * bit for bit what the pass would give. `space` holds the state space of
+   * the last pass actually run; call `model.fillSpace` before reading it.
+   */
   whiten(process: ArrayLike<number>): WhitenedSums {
+    const sums = this.sums;
+    if (this.cache.restore(process, sums)) return sums;
     this.model.fillSpace(this.lineage, process, this.space);
     this.evaluations += 1;
-    return whiten(this.space, this.data, this.sums, this.work);
+    whiten(this.space, this.data, sums, this.work);
+    this.cache.keep(process, sums);
+    return sums;
   }
 
   /** Profile log-likelihood at these process values (location parameters at their GLS estimate). */
@@ -73,5 +91,121 @@ export class LikelihoodEvaluator {
     const constant = this.model.constantCoefficients(process, this.lineage);
     const centred = coefficients.map((value, j) => value - this.centre * constant[j]);
     return logLikAt(this.whiten(process), centred);
+  }
+}
+
+/** Most filter results one evaluator keeps (each is a few dozen numbers); then the cache starts afresh. */
+export const whitenCacheSize = 1 << 14;
+
+/**
+ * Open-addressing hash table from process values (compared exactly, as
+ * doubles) to the variable part of the whitened sums: ln det V, residual,
+ * singular, R, z. Typed arrays only, so a lookup allocates nothing; it
+ * starts small and doubles up to {@link whitenCacheSize} slots at half load.
+ */
+class WhitenCache {
+  private readonly keyWidth: number;
+  private readonly valueWidth: number;
+  private capacity = 0;
+  private count = 0;
+  private keys = new Float64Array(0);
+  private values = new Float64Array(0);
+  private used = new Uint8Array(0);
+  private readonly bits = new Float64Array(1);
+  private readonly words = new Uint32Array(this.bits.buffer);
+
+  constructor(keyWidth: number, designWidth: number) {
+    this.keyWidth = keyWidth;
+    this.valueWidth = 3 + designWidth * designWidth + designWidth;
+  }
+
+  private hash(process: ArrayLike<number>): number {
+    let hash = 0x811c9dc5;
+    for (let i = 0; i < this.keyWidth; i++) {
+      this.bits[0] = process[i];
+      hash = Math.imul(hash ^ this.words[0], 0x01000193);
+      hash = Math.imul(hash ^ this.words[1], 0x01000193);
+    }
+    return (hash ^ (hash >>> 15)) >>> 0;
+  }
+
+  private find(process: ArrayLike<number>): number {
+    const mask = this.capacity - 1;
+    let slot = this.hash(process) & mask;
+    for (;;) {
+      if (this.used[slot] === 0) return -1 - slot;
+      let same = true;
+      const base = slot * this.keyWidth;
+      for (let i = 0; i < this.keyWidth; i++) {
+        if (this.keys[base + i] !== process[i]) {
+          same = false;
+          break;
+        }
+      }
+      if (same) return slot;
+      slot = (slot + 1) & mask;
+    }
+  }
+
+  /** Copy kept sums for these process values into `sums`; false when not kept. */
+  restore(process: ArrayLike<number>, sums: WhitenedSums): boolean {
+    if (this.capacity === 0 || process.length !== this.keyWidth) return false;
+    const slot = this.find(process);
+    if (slot < 0) return false;
+    const values = this.values;
+    const base = slot * this.valueWidth;
+    sums.sumLogVariance = values[base];
+    sums.residual = values[base + 1];
+    sums.singular = values[base + 2] === 1;
+    const triangle = sums.triangle;
+    const projected = sums.projected;
+    for (let j = 0; j < triangle.length; j++) triangle[j] = values[base + 3 + j];
+    for (let j = 0; j < projected.length; j++) projected[j] = values[base + 3 + triangle.length + j];
+    return true;
+  }
+
+  /** Keep the sums of a filter pass at these process values. */
+  keep(process: ArrayLike<number>, sums: WhitenedSums): void {
+    if (process.length !== this.keyWidth || this.keyWidth === 0) return;
+    for (let i = 0; i < this.keyWidth; i++) if (Number.isNaN(process[i])) return;
+    if (2 * (this.count + 1) > this.capacity) {
+      if (this.capacity >= whitenCacheSize) this.reset(this.capacity);
+      else this.grow();
+    }
+    const found = this.find(process);
+    const slot = found < 0 ? -1 - found : found;
+    if (found < 0) this.count += 1;
+    this.used[slot] = 1;
+    for (let i = 0; i < this.keyWidth; i++) this.keys[slot * this.keyWidth + i] = process[i];
+    const values = this.values;
+    const base = slot * this.valueWidth;
+    values[base] = sums.sumLogVariance;
+    values[base + 1] = sums.residual;
+    values[base + 2] = sums.singular ? 1 : 0;
+    for (let j = 0; j < sums.triangle.length; j++) values[base + 3 + j] = sums.triangle[j];
+    for (let j = 0; j < sums.projected.length; j++) values[base + 3 + sums.triangle.length + j] = sums.projected[j];
+  }
+
+  private reset(capacity: number): void {
+    this.capacity = capacity;
+    this.count = 0;
+    this.keys = new Float64Array(capacity * this.keyWidth);
+    this.values = new Float64Array(capacity * this.valueWidth);
+    this.used = new Uint8Array(capacity);
+  }
+
+  private grow(): void {
+    const { capacity, keys, values, used, keyWidth, valueWidth } = this;
+    this.reset(capacity === 0 ? 256 : capacity * 2);
+    const key = new Float64Array(keyWidth);
+    for (let slot = 0; slot < capacity; slot++) {
+      if (used[slot] === 0) continue;
+      for (let i = 0; i < keyWidth; i++) key[i] = keys[slot * keyWidth + i];
+      const target = -1 - this.find(key);
+      this.used[target] = 1;
+      this.count += 1;
+      this.keys.set(key, target * keyWidth);
+      this.values.set(values.subarray(slot * valueWidth, (slot + 1) * valueWidth), target * valueWidth);
+    }
   }
 }

@@ -300,10 +300,14 @@ function locationInterval(
   cutoff: number,
   gridPoints: number | undefined,
 ): IntervalEnds {
+  // Warm start from the previous trial value's maximum (search.ts: grid, mostly kept by the evaluator, + simplex polish).
+  let previous: readonly number[] = best;
   const profileAt = (value: number): number => {
     const evaluate = (process: number[]): number => evaluator.profileWithLocation(name, value, process);
     if (model.process.length === 0) return evaluate([]);
-    return maximiseProcess(evaluate, model.process, lineage, { points: Math.min(gridPoints ?? 12, 12) }).logLik;
+    const found = maximiseProcess(evaluate, model.process, lineage, { points: Math.min(gridPoints ?? 12, 12), start: previous });
+    previous = found.process;
+    return found.logLik;
   };
   const index = model.fixLocation(name, estimate, best, lineage).index;
   const width = Math.sqrt(details.coefficientCovariance.length);

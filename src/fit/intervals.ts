@@ -194,6 +194,7 @@ export function profileFunction(evaluator: LikelihoodEvaluator, name: string, ad
       return maximiseProcess(evaluate, model.process, lineage, { fixed: new Map([[axisIndex, value]]), points }).logLik;
     };
   }
+  let previous: number[] | null = null;
   return (value: number): number => {
     const evaluate = (process: number[]): number => {
       const { index, coefficient } = model.fixLocation(name, value, process, lineage);
@@ -201,7 +202,10 @@ export function profileFunction(evaluator: LikelihoodEvaluator, name: string, ad
       return fixedCoefficientLogLik(evaluator.whiten(process), index, coefficient - evaluator.centre * constant[index], adjusted);
     };
     if (model.process.length === 0) return evaluate([]);
-    return maximiseProcess(evaluate, model.process, lineage, { points }).logLik;
+    // Warm start from the previous trial value's maximum: grid (mostly kept by the evaluator) + simplex polish.
+    const found = maximiseProcess(evaluate, model.process, lineage, { points, start: previous ?? undefined });
+    previous = found.process;
+    return found.logLik;
   };
 }
 
