@@ -165,7 +165,7 @@ export async function fitCommand(file: string, options: FitCommandOptions): Prom
   if (ageText && !options.json && !options.quiet) process.stdout.write('\n' + ageText + '\n');
   if (options.report) {
     const { writeReportForRun } = await import('./report-command.js');
-    await writeReportForRun(run, options.report, [file]);
+    await writeReportForRun(run, options.report, [file], options as { orientation?: string; drawModel?: string; smoothedBand?: boolean });
     if (!options.quiet && !options.json) process.stdout.write(`Wrote the report to ${options.report}\n`);
   }
   for (const warning of run.warnings.list()) {

@@ -219,8 +219,14 @@ async function runAnalyses(file: string, document: FitDocumentView, options: Rep
     const seed = options.seed ?? '1';
     seeds.power = seed;
     for (const lineage of document.lineages) {
-      const result = await runPower(file, { ...sampleOptions, lineage: lineageTitle(lineage), replicates: options.powerReplicates, seed, coverage: false });
-      power.push(result.document);
+      try {
+        const result = await runPower(file, { ...sampleOptions, lineage: lineageTitle(lineage), replicates: options.powerReplicates, seed, coverage: false, quiet: true });
+        power.push(result.document);
+      } catch (error) {
+        // A lineage whose design cannot be simulated (e.g. the directional walk does not fit) keeps the rest of the report.
+        if (!(error instanceof InputError)) throw error;
+        power.push({ lineage: lineageTitle(lineage), power_not_run: error.message });
+      }
     }
   }
   return { comparison, power, seeds };
@@ -301,6 +307,12 @@ export async function reportCommand(file: string, options: ReportCommandOptions)
     html = await buildReport(saved.document, options, { source: { file, sha256: saved.sha256 } });
   } else {
     if (file === '-' && (options.compare || options.power)) throw usageError('--compare and --power read the samples file again; give a file name, not "-"');
+    if (options.power) {
+      // Checked before the fit, so a bad value fails at once and names the report's own option.
+      const { wholeOption, seedOption } = await import('./power-command.js');
+      wholeOption(options.powerReplicates, '--power-replicates', 200, 20, 100000);
+      seedOption(options.seed);
+    }
     const run = await runFitStreamed(file, { log: options.log, pool: options.pool, timeUnit: options.timeUnit, delimiter: options.delimiter, decimalComma: options.decimalComma, models: options.models, intervals: options.intervals, ageModel: options.ageModel, extrapolate: options.extrapolate, quiet: true });
     const document = asFitDocument(run.document);
     const analyses = await runAnalyses(file, document, options);

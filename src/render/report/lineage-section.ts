@@ -23,7 +23,7 @@ export interface ReportFigure {
 }
 
 /** Lineage-document keys the report shows in its own blocks; anything else appears under "further results". */
-const shownKeys = new Set(['section', 'trait', 'horizons', 'time_unit', 'position_kind', 'transform', 'sampling_variance', 'best_model', 'models', 'data', 'smoothed', 'adequacy', 'rates', 'models_left_out']);
+const shownKeys = new Set(['section', 'trait', 'horizons', 'time_unit', 'position_kind', 'transform', 'sampling_variance', 'best_model', 'models', 'data', 'smoothed', 'adequacy', 'rates', 'models_left_out', 'extrapolated_horizons', 'first_age']);
 
 /** An image element holding the figure's bytes as a data URL (no file or network access when opened). */
 export function figureHtml(figure: ReportFigure): string {
@@ -122,6 +122,9 @@ export function lineageSection(lineage: LineageView, index: number, document: Fi
   const own = figures.filter((figure) => figure.lineage === index && figure.place === undefined);
   const leftOut = Array.isArray(lineage.models_left_out) ? (lineage.models_left_out as string[]) : [];
   const further = Object.entries(lineage).filter(([key]) => !shownKeys.has(key));
+  const isObject = (value: unknown): boolean => value !== null && typeof value === 'object' && !(Array.isArray(value) && value.every((entry) => entry === null || typeof entry !== 'object'));
+  const furtherFacts = further.filter(([, value]) => !isObject(value));
+  const furtherBlocks = further.filter(([, value]) => isObject(value));
   const anchor = `lineage-${index + 1}-${slug(title)}`;
   return `<section class="lineage" id="${anchor}" data-lineage="${index}">
 <h2>${escapeHtml(title)}</h2>
@@ -138,6 +141,7 @@ ${own.length > 0 ? `<h3>Figures</h3>\n${own.map(figureHtml).join('\n')}` : ''}
 ${estimatesTable(lineage)}
 ${lineage.adequacy !== undefined && lineage.adequacy !== null ? `<h3>Adequacy of the best-supported model</h3>\n${adequacyBlock(lineage.adequacy)}` : ''}
 ${lineage.rates !== undefined && lineage.rates !== null ? `<h3>Rates</h3>\n${ratesBlock(lineage.rates)}` : ''}
-${further.map(([key, value]) => `<h3>${escapeHtml(key.replace(/_/g, ' '))}</h3>\n${jsonBlock(value)}`).join('\n')}
+${furtherFacts.length > 0 ? `<h3>Further results</h3>\n${jsonBlock(Object.fromEntries(furtherFacts))}` : ''}
+${furtherBlocks.map(([key, value]) => `<h3>${escapeHtml(key.replace(/_/g, ' '))}</h3>\n${jsonBlock(value)}`).join('\n')}
 </section>`;
 }

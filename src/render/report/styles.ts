@@ -51,7 +51,7 @@ code { font-family: ui-monospace, "SFMono-Regular", Menlo, Consolas, monospace; 
   html { font-size: 11pt; }
   main { max-width: none; padding: 0; }
   nav.contents, details.copy { display: none; }
-  h2 { page-break-after: avoid; break-after: avoid; }
+  h2, h3 { page-break-after: avoid; break-after: avoid; }
   table, figure, .conclusion, .cautions, dl.facts { page-break-inside: avoid; break-inside: avoid; }
   section.lineage { break-before: page; }
   a { color: inherit; text-decoration: none; }
