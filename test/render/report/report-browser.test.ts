@@ -7,7 +7,7 @@ import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { runFit } from '../../../src/cli/fit-command.js';
 import { buildReport } from '../../../src/cli/report-command.js';
 import { asFitDocument } from '../../../src/render/report/document-view.js';
-import { chromiumArgs, findChromium, onCi } from './browser.js';
+import { browserDecision, chromiumArgs, findChromium, onCi } from './browser.js';
 
 // The report opened in a real browser (system Chromium driven by
 // playwright-core), from a file:// URL with every non-file request refused.
@@ -16,11 +16,22 @@ import { chromiumArgs, findChromium, onCi } from './browser.js';
 // the same doubles (data-value attributes) and their rounded forms.
 
 const executable = findChromium();
-if (!executable) {
-  const message = 'report browser test: no Chromium found (install the Debian package "chromium": apt-get install -y chromium)';
-  if (onCi) throw new Error(`${message}; CI=true, so this is a failure, not a skip`);
-  console.warn(`\n!!!!!!!!\n!!! SKIPPED: ${message}\n!!!!!!!!\n`);
-}
+const decision = browserDecision(executable, onCi);
+const missing = 'report browser test: no Chromium found (install the Debian package "chromium": apt-get install -y chromium)';
+if (decision === 'skip') console.warn(`\n!!!!!!!!\n!!! SKIPPED: ${missing}\n!!!!!!!!\n`);
+
+describe('browser availability', () => {
+  it('finds no browser where there is none, and then skips outside CI but fails on CI', () => {
+    expect(findChromium(['/nonexistent/chromium'], '/nonexistent')).toBeNull();
+    expect(browserDecision(null, false)).toBe('skip');
+    expect(browserDecision(null, true)).toBe('fail');
+    expect(browserDecision('/usr/bin/chromium', true)).toBe('run');
+  });
+
+  it.runIf(decision === 'fail')('Chromium is installed on CI', () => {
+    throw new Error(`${missing}; CI=true, so this is a failure, not a skip`);
+  });
+});
 
 interface PageLog {
   consoleErrors: string[];
