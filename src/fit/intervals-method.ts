@@ -2,7 +2,7 @@ import type { LikelihoodEvaluator } from './evaluator.js';
 import type { ParameterEstimate } from './fit-model.js';
 import { bootstrapCutoffs } from './intervals-bootstrap.js';
 import { integratedIntervals } from './intervals-integrated.js';
-import { intervalsByProfile, type IntervalEnds, type IntervalMethod } from './intervals.js';
+import { intervalsByProfile, restrictedEstimates, type IntervalEnds, type IntervalMethod } from './intervals.js';
 import { chiSquare1At95 } from './model-choice.js';
 
 export type { IntervalMethod } from './intervals.js';
@@ -50,7 +50,9 @@ export function replaceIntervals(
     processEnds(evaluate, evaluator.model, evaluator.lineage, best, axisIndex, cutoff);
   let ratioCutoff = (_name: string): number => chiSquare1At95;
   if (method === 'bootstrap') {
-    const cutoffs = bootstrapCutoffs(evaluator.model, evaluator.lineage, estimates, names, {
+    // Draw from the restricted (REML) fit: an ML variance at 0 would simulate a world without that variance.
+    const generator = { ...estimates, ...restrictedEstimates(evaluator) };
+    const cutoffs = bootstrapCutoffs(evaluator.model, evaluator.lineage, generator, names, {
       replicates: options.bootstrapReplicates,
       seed: options.bootstrapSeed,
     });

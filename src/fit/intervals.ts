@@ -16,8 +16,8 @@ import { maximiseProcess } from './search.js';
  *   adds -0.5 ln det(X_r' V^-1 X_r) to the profile (X_r the design without the
  *   column of the parameter held fixed; all columns for a process parameter);
  * - `bootstrap`: plain profile, with the cut-off taken from the 95% quantile
- *   of the likelihood-ratio statistic over a parametric bootstrap of the
- *   fitted model;
+ *   of the likelihood-ratio statistic over a parametric bootstrap from the
+ *   restricted (REML) fit of the model;
  * - `integrated`: equal-tailed 95% intervals of the integrated likelihood
  *   (location parameters under flat priors, the one variance under a
  *   uniform prior on its square root; `intervals-integrated.ts`), for models
@@ -311,4 +311,16 @@ export function intervalOptions(value: boolean | string | undefined): { interval
   const method = parseIntervalMethod(value);
   if (method === null) throw usageError(`--intervals must be one of ${intervalMethods.join(', ')}, got "${value}"`);
   return { intervals: true, intervalMethod: method };
+}
+
+/**
+ * Natural parameters at the maximum of the restricted likelihood (process
+ * parameters by REML, location parameters by GLS at those values): the fit
+ * a parametric bootstrap draws from, because unlike the ML fit it rarely
+ * puts a variance at exactly 0 (Patterson & Thompson 1971).
+ */
+export function restrictedEstimates(evaluator: LikelihoodEvaluator): Record<string, number> {
+  const evaluate = (process: number[]): number => restrictedLogLik(evaluator.whiten(process));
+  const best = maximiseProcess(evaluate, evaluator.model.process, evaluator.lineage, { points: 24 });
+  return evaluator.model.toParameters(evaluator.details(best.process).coefficients, best.process, evaluator.lineage);
 }

@@ -2,7 +2,7 @@ import { fitModel, processInterval } from '../fit/fit-model.js';
 import { LikelihoodEvaluator } from '../fit/evaluator.js';
 import { bootstrapCutoffs } from '../fit/intervals-bootstrap.js';
 import { integratedIntervals } from '../fit/intervals-integrated.js';
-import { covers, intervalsByProfile, type IntervalEnds, type IntervalMethod } from '../fit/intervals.js';
+import { covers, intervalsByProfile, restrictedEstimates, type IntervalEnds, type IntervalMethod } from '../fit/intervals.js';
 import { chiSquare1At95 } from '../fit/model-choice.js';
 import { findModel } from '../models/registry.js';
 import { designLineage, type Design } from './design.js';
@@ -62,7 +62,9 @@ export function coverageReplicate(task: CoverageTask): CoverageResult {
       const fixed = task.bootstrapCutoff;
       if (fixed) ratioCutoff = (name) => fixed[name] ?? chiSquare1At95;
       else {
-        const cutoffs = bootstrapCutoffs(model, lineage, fit.estimates, task.names, {
+        // Drawn from the restricted (REML) fit, as `fit --intervals bootstrap` does.
+        const generator = { ...fit.estimates, ...restrictedEstimates(evaluator) };
+        const cutoffs = bootstrapCutoffs(model, lineage, generator, task.names, {
           replicates: task.bootstrapReplicates ?? 99,
           seed: replicateSeed(task.seed, 13, task.index),
         });
