@@ -44,7 +44,8 @@ interface TableSetting {
 
 interface Cell {
   readonly lines: readonly string[];
-  readonly gloss: string | null;
+  /** The gloss in parentheses, on lines of its own in smaller type (kept whenever two models share a name). */
+  readonly glossLines: readonly string[];
 }
 
 function splitLabel(label: string): { name: string; gloss: string | null } {
@@ -53,7 +54,7 @@ function splitLabel(label: string): { name: string; gloss: string | null } {
 }
 
 /** Plan the model-support figure of one lineage. */
-export function modelSupportPlan(lineage: FigureLineage, options: ResolvedFigureOptions): FigurePlan {
+export function modelSupportPlan(lineage: FigureLineage, options: ResolvedFigureOptions): FigurePlan & { readonly rowCentres: readonly number[] } {
   const rows = supportRows(lineage);
   const widthPoints = options.widthCm * pointsPerCm;
   const inner = widthPoints - 2 * margin;
@@ -78,12 +79,16 @@ export function modelSupportPlan(lineage: FigureLineage, options: ResolvedFigure
     const measureNumber = (text: string) => measureText(font(setting.size), text);
     const longestWord = Math.max(...rows.flatMap((model) => splitLabel(model.label).name.split(/[\s]+|(?<=–)/).map(measureName)));
     const nameWidth0 = setting.wrapNames ? Math.max(longestWord, inner * 0.27) : Math.max(...rows.map((model) => measureName(splitLabel(model.label).name)), measureName('Model'));
-    const cells: Cell[] = rows.map((model) => {
+    const names = rows.map((model) => splitLabel(model.label).name);
+    const measureGloss = (text: string) => measureText(font(setting.size - 1), text);
+    const cells: Cell[] = rows.map((model, i) => {
       const { name, gloss } = splitLabel(model.label);
       const lines = setting.wrapNames ? wrapText(name.replace(/–/g, '– '), nameWidth0, measureName).map((line) => line.replace(/– /g, '–')) : [name];
-      return { lines, gloss: setting.glosses ? gloss : null };
+      const keepGloss = gloss !== null && (setting.glosses || names.filter((other) => other === names[i]).length > 1);
+      const glossLines = !keepGloss ? [] : setting.wrapNames ? wrapText(gloss, nameWidth0, measureGloss) : [gloss];
+      return { lines, glossLines };
     });
-    const glossWidth = setting.glosses ? Math.max(0, ...cells.map((cell) => (cell.gloss ? measureText(font(setting.size - 1), cell.gloss) : 0))) : 0;
+    const glossWidth = Math.max(0, ...cells.flatMap((cell) => cell.glossLines.map(measureGloss)));
     const nameWidth = Math.max(nameWidth0, glossWidth);
     const table = numbers(setting);
     const numberWidths = headers.map((header, c) => Math.max(measureNumber(header), ...table.map((row) => measureNumber(row[c]))));
@@ -95,8 +100,14 @@ export function modelSupportPlan(lineage: FigureLineage, options: ResolvedFigure
   const table = numbers(setting);
   const lineHeight = setting.size * 1.22;
   const glossSize = setting.size - 1;
-  const rowLines = Math.max(...cells.map((cell) => cell.lines.length + (cell.gloss ? 1 : 0)));
-  const rowHeight = rowLines * lineHeight + 5;
+  // Rows are as tall as their own text, so one long model name does not space out the whole table.
+  const rowHeights = cells.map((cell) => (cell.lines.length + cell.glossLines.length) * lineHeight + 5);
+  const centres: number[] = [];
+  rowHeights.reduce((top, height) => {
+    centres.push(top + height / 2);
+    return top + height;
+  }, 0);
+  const rowsHeight = rowHeights.reduce((sum, height) => sum + height, 0);
 
   const title = figureLineageName(lineage);
   const subtitle = wrapText(
@@ -118,7 +129,7 @@ export function modelSupportPlan(lineage: FigureLineage, options: ResolvedFigure
   const top = margin + titleHeight + subtitleHeight + 4 + headerHeight;
   const axisHeight = typeSize.tick * 1.3 + 6;
   const notesHeight = noteLines.length * typeSize.note * 1.3 + 6;
-  const heightPoints = Math.round(top + rows.length * rowHeight + axisHeight + notesHeight + margin);
+  const heightPoints = Math.round(top + rowsHeight + axisHeight + notesHeight + margin);
   const barLeft = margin + tableWidth + 4;
 
   const plugin: Plugin<'bar'> = {
@@ -128,11 +139,12 @@ export function modelSupportPlan(lineage: FigureLineage, options: ResolvedFigure
       const area = chart.chartArea;
       const y = chart.scales.y;
       context.save();
+      const stretch = (area.bottom - area.top) / rowsHeight;
       rows.forEach((model, i) => {
-        const centre = y.getPixelForValue(i);
+        const centre = y.getPixelForValue(centres[i]);
         if (model.id === lineage.bestModel) {
           context.fillStyle = '#f1f4f8';
-          context.fillRect(margin, centre - rowHeight / 2, area.right - margin, rowHeight);
+          context.fillRect(margin, centre - (rowHeights[i] * stretch) / 2, area.right - margin, rowHeights[i] * stretch);
         }
         context.fillStyle = supportInk.track;
         context.fillRect(area.left, centre - 3, area.right - area.left, 6);
@@ -188,11 +200,11 @@ export function modelSupportPlan(lineage: FigureLineage, options: ResolvedFigure
     context.textAlign = 'center';
     context.fillText('Akaike weight', (area.left + area.right) / 2, headerBaseline);
     rows.forEach((model, i) => {
-      const centre = y.getPixelForValue(i);
+      const centre = y.getPixelForValue(centres[i]);
       const compared = model.compared && model.aicc !== null;
       const best = model.id === lineage.bestModel;
       const cell = cells[i];
-      const lines = cell.lines.length + (cell.gloss ? 1 : 0);
+      const lines = cell.lines.length + cell.glossLines.length;
       const firstBaseline = centre - (lines * lineHeight) / 2 + setting.size * 0.92;
       context.fillStyle = compared ? ink.text : ink.muted;
       context.textAlign = 'left';
@@ -202,11 +214,9 @@ export function modelSupportPlan(lineage: FigureLineage, options: ResolvedFigure
       }
       context.font = font(setting.size, best ? 'bold' : 'normal', compared ? 'normal' : 'italic');
       cell.lines.forEach((line, k) => context.fillText(k === cell.lines.length - 1 && !compared ? `${line} ${dagger}` : line, margin + markerColumn, firstBaseline + k * lineHeight));
-      if (cell.gloss) {
-        context.font = font(glossSize);
-        context.fillStyle = ink.muted;
-        context.fillText(cell.gloss, margin + markerColumn, firstBaseline + cell.lines.length * lineHeight);
-      }
+      context.font = font(glossSize);
+      context.fillStyle = ink.muted;
+      cell.glossLines.forEach((line, k) => context.fillText(line, margin + markerColumn, firstBaseline + (cell.lines.length + k) * lineHeight));
       context.fillStyle = compared ? ink.text : ink.muted;
       context.font = font(setting.size, best ? 'bold' : 'normal');
       context.textAlign = 'right';
@@ -237,14 +247,13 @@ export function modelSupportPlan(lineage: FigureLineage, options: ResolvedFigure
   const configuration = (): ChartConfiguration => ({
     type: 'bar',
     data: {
-      labels: rows.map((model) => model.id),
       datasets: [
         {
           label: 'Akaike weight',
-          data: rows.map((model) => (model.compared && model.aicc !== null ? (model.weight ?? 0) : null)),
+          data: rows.map((model, i) => ({ x: model.compared && model.aicc !== null ? (model.weight ?? 0) : Number.NaN, y: centres[i] })),
           backgroundColor: rows.map((model) => (model.id === lineage.bestModel ? supportInk.bestBar : supportInk.bar)),
           borderWidth: 0,
-          barThickness: Math.min(9, rowHeight * 0.5),
+          barThickness: Math.min(9, lineHeight * 0.9),
         },
       ],
     },
@@ -261,11 +270,12 @@ export function modelSupportPlan(lineage: FigureLineage, options: ResolvedFigure
           grid: { color: ink.grid, lineWidth: lineWidth.grid, tickLength: 3, tickColor: ink.axis },
           border: { display: false },
         },
-        y: { type: 'category', display: false, offset: true, grid: { display: false } },
+        // Rows sit at their centres in points from the top of the table (first row at the top).
+        y: { type: 'linear', display: false, reverse: true, min: 0, max: rowsHeight, offset: false, grid: { display: false } },
       },
       plugins: { legend: { display: false }, tooltip: { enabled: false }, title: { display: false } },
     },
     plugins: [plugin as Plugin],
   });
-  return { widthPoints, heightPoints, title: `${title}: model support`, configuration };
+  return { widthPoints, heightPoints, title: `${title}: model support`, configuration, rowCentres: centres };
 }

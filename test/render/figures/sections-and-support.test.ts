@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { renderModelSupport, renderSectionsTogether } from '../../../src/render/figures/index.js';
-import { supportRows, tableNumber } from '../../../src/render/figures/model-support.js';
+import { modelSupportPlan, supportRows, tableNumber } from '../../../src/render/figures/model-support.js';
+import { resolveFigureOptions } from '../../../src/render/figures/figure-options.js';
 import { readFigureLineage } from '../../../src/render/figures/figure-input.js';
 import { seriesStyles } from '../../../src/render/figures/style.js';
 import { ridgeDocument } from './documents.js';
@@ -75,10 +76,12 @@ describe('model-support figure', () => {
     expect(figure.width).toBe(2126);
     const pixels = await decodePng(figure.bytes);
     const rows = supportRows(readFigureLineage(document));
+    // Row centres in the table's own units (points from its top), placed on the page by the chart's y scale.
+    const centres = modelSupportPlan(readFigureLineage(document), resolveFigureOptions()).rowCentres;
     const failures: string[] = [];
     const right = figure.frame.plotArea.right;
     rows.forEach((row, i) => {
-      const y = scalePixel(figure.frame, 'y', i);
+      const y = scalePixel(figure.frame, 'y', centres[i]);
       const empty = pixels.at(right - 12, y);
       if (luma(empty) < 200) failures.push(`row ${row.id}: the far end of the weight scale is inked`);
       if (row.weight === null || row.weight < 0.1) return;
