@@ -223,12 +223,15 @@ function gridAndPolish(
       free.forEach((level, j) => (process[level] = Math.exp(logs[j])));
       return clamp(process);
     };
-    const found = nelderMead((logs) => -evaluate(at(logs)), free.map((level) => Math.log(base[level])), {
-      step: free.map(() => 0.3),
-      tolerance: 1e-11,
-      restarts: 1,
-      maxEvaluations: 300 * free.length,
-    });
+    // One free axis: Brent alone does it; more: a simplex first.
+    const found = free.length === 1
+      ? { at: [Math.log(base[free[0]])] }
+      : nelderMead((logs) => -evaluate(at(logs)), free.map((level) => Math.log(base[level])), {
+          step: free.map(() => 0.3),
+          tolerance: 1e-10,
+          restarts: 1,
+          maxEvaluations: 300 * free.length,
+        });
     // Then one Brent pass along each axis (the simplex can stall on a ridge that runs into a range end).
     const logs = found.at.slice();
     for (let j = 0; j < free.length; j++) {
@@ -241,11 +244,14 @@ function gridAndPolish(
       };
       logs[j] = warmSearch(along, Math.min(Math.log(upper), Math.max(Math.log(lower), logs[j])), Math.log(lower), Math.log(upper));
     }
-    const polished = at(found.at);
-    offer(polished, evaluate(polished.slice()));
+    if (free.length > 1) {
+      const polished = at(found.at);
+      offer(polished, evaluate(polished.slice()));
+    }
     const process = at(logs);
     offer(process, evaluate(process.slice()));
   };
+  // Polish from both: the start tracks the neighbouring maximum, the grid point guards against a jump to another basin.
   const gridBest = best as number[] | null;
   if (gridBest !== null) polish(gridBest);
   if (start.length === depth && start.every((value) => Number.isFinite(value) && value >= 0)) polish(start);
