@@ -313,7 +313,9 @@ export async function reportCommand(file: string, options: ReportCommandOptions)
       wholeOption(options.powerReplicates, '--power-replicates', 200, 20, 100000);
       seedOption(options.seed);
     }
-    const run = await runFitStreamed(file, { log: options.log, pool: options.pool, timeUnit: options.timeUnit, delimiter: options.delimiter, decimalComma: options.decimalComma, models: options.models, intervals: options.intervals, ageModel: options.ageModel, extrapolate: options.extrapolate, quiet: true });
+    // The fit options pass through unchanged, so the page shows exactly what `fit` with the same options computes.
+    const { out: _out, figureFormat: _format, attach: _attach, compare: _compare, power: _power, powerReplicates: _replicates, seed: _seed, ...fitOptions } = options;
+    const run = await runFitStreamed(file, { ...fitOptions, quiet: true });
     const document = asFitDocument(run.document);
     const analyses = await runAnalyses(file, document, options);
     html = await buildReport(document, options, { analyses });

@@ -15,6 +15,14 @@ export function defineReportCommand(program: Command): void {
     .option('--out <file>', 'the HTML file to write', 'stratotrend-report.html')
     .option('--models <set>', 'model set: "classic" (the five models) or a comma-separated list of model ids', 'classic')
     .option('--no-intervals', 'skip the confidence intervals (faster)')
+    .option('--intervals <method>', 'how the 95% intervals are made, as for "fit": integrated (default), adjusted, profile or bootstrap')
+    .option('--min-segment <n>', 'fewest horizons in a segment of a shift model (as for "fit")')
+    .option('--covariate-file <file>', 'covariate per horizon for the covariate models (as for "fit")')
+    .option('--rates', 'also report rates (darwins, haldanes, model-based rates)')
+    .option('--generation-time <years>', 'generation time in years, for haldanes and per-generation rates (implies --rates)')
+    .option('--adequacy', 'also check the adequacy of each lineage\'s best-supported model (parametric bootstrap)')
+    .option('--adequacy-draws <n>', 'simulated data sets for --adequacy (default 199)')
+    .option('--adequacy-seed <n>', 'seed of the --adequacy simulation (default 1)')
     .option('--figure-format <format>', 'figures inside the page: svg (vector, prints sharply) or png', 'svg')
     .option('--orientation <layout>', 'figures: stratigraphic (time up the page, oldest at the bottom) or horizontal', 'stratigraphic')
     .option('--draw-model <id>', "model whose expected trajectory and 95% envelope are drawn (default: each lineage's best-supported model)")
@@ -31,8 +39,8 @@ export function defineReportCommand(program: Command): void {
 The page needs no network and no other file: styles and figures are inside it.
 It opens in any browser and prints on paper (one lineage per page).
 Its methods text is written from the options of the run; adapt it for the paper.
-Every option of "fit" (extended models, rates, adequacy checks, interval methods, …) is
-available through "stratotrend fit FILE --report FILE.html", which writes the same page.`)
+Everything else "fit" can do (age draws, threads, summary, …) goes through
+"stratotrend fit FILE --report FILE.html", which writes the same page.`)
     .action(async (file: string, options) => {
       const { reportCommand } = await import('../report-command.js');
       await reportCommand(file, options);

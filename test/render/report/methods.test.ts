@@ -3,6 +3,7 @@ import { runFit, type FitCommandOptions } from '../../../src/cli/fit-command.js'
 import { classicModels, extendedModels } from '../../../src/models/registry.js';
 import { asFitDocument, type FitDocumentView } from '../../../src/render/report/document-view.js';
 import { methodsPlainText, methodsText, sentenceKeys } from '../../../src/render/report/methods.js';
+import { reportPage } from '../../../src/render/report/report-page.js';
 import { findReference, modelReferenceKeys, referenceCatalogue } from '../../../src/render/report/references.js';
 
 // The methods text is written from what was run: these tests change one
@@ -66,6 +67,19 @@ describe('methods text follows the options of the run', () => {
     const kyr = documentFor({ timeUnit: 'kyr' });
     expect(text(kyr)).toContain('in kyr; every rate is per kyr');
     expect(text(plain)).toContain(`stratotrend ${plain.provenance.version}`);
+  });
+
+  it('adequacy checks and rates computed by fit are described, with their draws, seed and sources', () => {
+    const checked = documentFor({ models: 'random-walk,directional-walk', adequacy: true, adequacyDraws: '19', adequacySeed: '7', rates: true } as FitCommandOptions);
+    // Through the page itself, which infers the analyses from the lineage documents.
+    const html = reportPage({ document: checked, run: { date: '2026-01-01T00:00:00Z' } });
+    const page = html.slice(html.indexOf('data-block="methods-plain"'));
+    expect(page).toContain('19 replicates, random seed 7');
+    expect(page).toContain('Voje, Starrfelt &amp; Liow 2018');
+    expect(page).toContain('darwins');
+    expect(page).toContain('Haldane 1949');
+    expect(text(plain)).not.toContain('adequacy');
+    expect(text(plain)).not.toContain('darwins');
   });
 
   it('optional analyses add their sentences only when they were run', () => {
