@@ -261,9 +261,10 @@ export async function buildReport(
     power: options.power === true ? `every lineage, ${options.powerReplicates ?? '200'} replicates per drift value` : false,
   };
   if (extra.source) reportOptions.source = `${extra.source.file} (saved fit document, SHA-256 ${extra.source.sha256}; not refitted)`;
-  attachments.files.forEach((entry, index) => {
-    reportOptions[`attached_${index + 1}`] = `${entry.file} (${entry.kind}, SHA-256 ${entry.sha256})`;
-  });
+  const extraInputs = attachments.files.map((entry) => ({ role: `attached ${entry.kind}`, file: entry.file, sha256: entry.sha256 }));
+  for (const [role, file] of [['age model', options.ageModel], ['covariate file', options.covariateFile]] as const) {
+    if (file) extraInputs.push({ role, file, sha256: createHash('sha256').update(readFileSync(file)).digest('hex') });
+  }
   const seeds: Record<string, unknown> = { ...(extra.analyses?.seeds ?? {}) };
   for (const [key, value] of Object.entries(document.provenance.options)) if (/seed/.test(key) && value !== null && value !== undefined) seeds[key] = value;
   const input: ReportInput = {
@@ -278,6 +279,7 @@ export async function buildReport(
       runtime: `Node.js ${process.version} on ${process.platform} ${process.arch}`,
       reportOptions,
       seeds,
+      extraInputs,
       figureNote: note,
     },
   };
@@ -285,10 +287,16 @@ export async function buildReport(
 }
 
 /** Write a report for a finished fit (used by `fit --report FILE`). */
-export async function writeReportForRun(run: FitRun, path: string, inputs: readonly string[], fitOptions: { orientation?: string; drawModel?: string; smoothedBand?: boolean } = {}): Promise<void> {
+export async function writeReportForRun(
+  run: FitRun,
+  path: string,
+  inputs: readonly string[],
+  fitOptions: { orientation?: string; drawModel?: string; smoothedBand?: boolean; ageModel?: string; covariateFile?: string } = {},
+): Promise<void> {
   refuseInputPath(path, inputs);
-  // Only the layout choices carry over from fit; fit's --figure-format names files, the page takes SVG.
-  const html = await buildReport(asFitDocument(run.document), { orientation: fitOptions.orientation, drawModel: fitOptions.drawModel, smoothedBand: fitOptions.smoothedBand });
+  // The layout choices and the extra input files carry over from fit; fit's --figure-format names files, the page takes SVG.
+  const { orientation, drawModel, smoothedBand, ageModel, covariateFile } = fitOptions;
+  const html = await buildReport(asFitDocument(run.document), { orientation, drawModel, smoothedBand, ageModel, covariateFile });
   writeAtomically(path, html);
 }
 

@@ -24,6 +24,8 @@ export interface RunRecord {
   readonly reportOptions?: Readonly<Record<string, unknown>>;
   /** Random seeds used by any part of the run, by analysis. */
   readonly seeds?: Readonly<Record<string, unknown>>;
+  /** Further input files of the run (age model, covariate file, attached results) with their SHA-256. */
+  readonly extraInputs?: readonly { readonly role: string; readonly file: string; readonly sha256: string }[];
   /** A sentence about the figures when some could not be drawn. */
   readonly figureNote?: string;
 }
@@ -77,6 +79,7 @@ function provenanceBlock(document: FitDocumentView, run: RunRecord): string {
   const rows: [string, string][] = [
     ['tool', `${provenance.tool} ${provenance.version}`],
     ...provenance.inputs.map((input, index): [string, string] => [`input ${index + 1}`, `${input.file} — SHA-256 ${input.sha256}`]),
+    ...(run.extraInputs ?? []).filter((extra) => !provenance.inputs.some((input) => input.file === extra.file)).map((extra): [string, string] => [extra.role, `${extra.file} — SHA-256 ${extra.sha256}`]),
     ...Object.entries(provenance.options).map(([key, value]): [string, string] => [`fit option: ${key}`, typeof value === 'string' ? value : JSON.stringify(value)]),
     ['model set', document.model_set],
     ...Object.entries(run.reportOptions ?? {}).map(([key, value]): [string, string] => [`report option: ${key}`, typeof value === 'string' ? value : JSON.stringify(value)]),
