@@ -284,7 +284,7 @@ export async function compareCommand(file: string, options: CompareCommandOption
     const figureNames = drawFigures ? result.run.comparisons.map((comparison, index) => `sections-${index + 1}-${slug(comparison.trait)}.png`) : [];
     const names = ['compare.csv', 'compare-estimates.csv', 'compare.json', ...(result.composites.length > 0 ? ['composite-models.csv'] : []), ...figureNames];
     const folder = prepareOutputFolder(options.out, inputs, names);
-    writeAtomically(join(folder, 'compare.csv'), comparisonCsv(result.run.comparisons));
+    writeAtomically(join(folder, 'compare.csv'), comparisonCsv(result.run.comparisons, result.spreads));
     writeAtomically(join(folder, 'compare-estimates.csv'), estimatesCsv(result.run.comparisons));
     writeAtomically(join(folder, 'compare.json'), JSON.stringify(result.document, null, 2) + '\n');
     written.push('compare.csv', 'compare-estimates.csv', 'compare.json');

@@ -205,10 +205,14 @@ export function comparisonDocument(comparison: TraitComparison, spreads: readonl
 
 /**
  * Tidy CSV of the comparison: one row per trait × hypothesis × model family,
- * with the likelihood-ratio test on the family's shared row.
+ * with the likelihood-ratio test on the family's shared row and, after
+ * `--age-draws`, the median and 2.5–97.5% range of the weight over the draws
+ * and the fraction of draws in which the row was best.
  */
-export function comparisonCsv(comparisons: readonly TraitComparison[]): string {
-  const header = ['trait', 'hypothesis', 'model', 'k', 'horizons', 'logLik', 'aicc', 'delta_aicc', 'weight', 'best', 'compared', 'lrt_statistic', 'lrt_df', 'lrt_p_value', 'extrapolated_horizons', 'message'];
+export function comparisonCsv(comparisons: readonly TraitComparison[], spreads: ReadonlyMap<string, readonly CandidateSpread[]> | null = null): string {
+  const withDraws = spreads !== null && spreads.size > 0;
+  const header = ['trait', 'hypothesis', 'model', 'k', 'horizons', 'logLik', 'aicc', 'delta_aicc', 'weight', 'best', 'compared', 'lrt_statistic', 'lrt_df', 'lrt_p_value', 'extrapolated_horizons', 'message',
+    ...(withDraws ? ['draws_weight_median', 'draws_weight_lower', 'draws_weight_upper', 'draws_best_fraction'] : [])];
   const rows = [header.join(',')];
   for (const comparison of comparisons) {
     const extrapolated = comparison.sections.reduce((sum, section) => sum + section.extrapolated.filter(Boolean).length, 0);
@@ -219,10 +223,16 @@ export function comparisonCsv(comparisons: readonly TraitComparison[]): string {
         comparison.trait, h.id, h.model, h.k, h.horizons, finiteOrNull(h.logLik), finiteOrNull(h.aicc), finiteOrNull(h.deltaAicc), finiteOrNull(h.weight),
         best, h.aicc !== null, test ? finiteOrNull(test.statistic) : null, test ? test.degreesOfFreedom : null, test ? finiteOrNull(test.pValue) : null,
         extrapolated, h.message,
+        ...(withDraws ? drawColumns(spreads.get(comparison.trait)?.find((spread) => spread.key === candidateKey(h))) : []),
       ].map(csvField).join(','));
     }
   }
   return rows.join('\n') + '\n';
+}
+
+function drawColumns(spread: CandidateSpread | undefined): (number | null)[] {
+  if (!spread) return [null, null, null, null];
+  return [finiteOrNull(spread.weight.median), finiteOrNull(spread.weight.lower), finiteOrNull(spread.weight.upper), spread.bestFraction];
 }
 
 /** Tidy CSV of the estimates: one row per trait × hypothesis × model × parameter. */
