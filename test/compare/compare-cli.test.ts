@@ -3,7 +3,8 @@ import { mkdtempSync, readFileSync, writeFileSync, existsSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { runCompare } from '../../src/cli/compare-command.js';
+import { runCompare, sectionDocuments } from '../../src/cli/compare-command.js';
+import { directionalWalk } from '../../src/models/directional-walk.js';
 
 const heights = new URL('../../sample-data/locality-heights.csv', import.meta.url).pathname;
 const ties = new URL('../../sample-data/locality-ties.csv', import.meta.url).pathname;
@@ -69,6 +70,21 @@ describe('stratotrend compare', () => {
     const help = spawnSync(process.execPath, [launcher, 'compare', '--help'], { encoding: 'utf8' });
     expect(help.stdout).toMatch(/shared-offset/);
     expect(help.stdout).toMatch(/--age-model <file>/);
+  });
+
+  // Hand-checkable from the ties: Quarrel Hollow's lowest horizon at 1.0 m lies between (0 m, 9.00 Ma) and
+  // (35 m, 8.10 Ma): 9.00 - 1.0 * 0.90 / 35 = 8.974285714... Ma. The figure documents carry these ages.
+  it('sections figure documents put every section on the common age axis', () => {
+    const comparison = run.run.comparisons[0];
+    const documents = sectionDocuments(comparison, [directionalWalk]);
+    expect(documents.map((d) => d.position_kind)).toEqual(['age', 'age', 'age']);
+    const first = (documents[0].data as Json).position as number[];
+    expect(first[0]).toBeCloseTo(9 - 0.9 / 35, 12);
+    documents.forEach((document, s) => {
+      const section = comparison.sections[s];
+      const positions = (document.data as Json).position as number[];
+      positions.forEach((age, i) => expect(age).toBeCloseTo(section.firstAge! - section.time[i], 12));
+    });
   });
 
   it('composite: one lineage per trait on the common timescale, coeval horizons merged when asked', () => {
