@@ -1,9 +1,9 @@
-import { orderQuantile } from '../fit/intervals-bootstrap.js';
+import { bootstrapCutoffs, orderQuantile } from '../fit/intervals-bootstrap.js';
 import { intervalMethods, type IntervalMethod } from '../fit/intervals.js';
 import { chiSquare1At95 } from '../fit/model-choice.js';
-import { classicModels } from '../models/registry.js';
+import { classicModels, findModel } from '../models/registry.js';
 import { summariseCoverage, type CoverageSummary, type CoverageTask } from './coverage.js';
-import { extendDesign, pooledWithinSd, type Design } from './design.js';
+import { designLineage, extendDesign, pooledWithinSd, type Design } from './design.js';
 import type { FitReplicateResult, FitReplicateTask } from './replicates.js';
 import { ratioStatistic } from './replicates.js';
 import type { BatchProgress, ReplicateRunner } from './run-replicates.js';
@@ -288,9 +288,6 @@ async function horizonsFor(plan: PowerPlan, drift: number, target: number, level
  * bootstrap; its per-lineage version can only do worse).
  */
 async function coverageCheck(plan: PowerPlan, truth: Record<string, number>, runner: ReplicateRunner, progress?: PowerProgress): Promise<NonNullable<PowerReport['coverage']>> {
-  const { bootstrapCutoffs } = await import('../fit/intervals-bootstrap.js');
-  const { designLineage } = await import('./design.js');
-  const { findModel } = await import('../models/registry.js');
   const names = ['drift', 'step_variance'];
   const methods: IntervalMethod[] = [...intervalMethods];
   const model = findModel('directional-walk');
