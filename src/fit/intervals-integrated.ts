@@ -81,6 +81,11 @@ export function integratedIntervals(
   const tail = (1 - level) / 2;
   const result: Record<string, IntervalEnds> = {};
   const locationNames = names.filter((name) => !model.process.some((axis) => axis.name === name));
+  // The mixture below needs each location parameter to be a design coefficient itself (as in every one-variance model here).
+  const probe = model.process.map((axis) => Math.sqrt(axis.range(lineage, [])[0] * axis.range(lineage, [])[1]));
+  for (const name of locationNames) {
+    if (model.fixLocation(name, 0, probe, lineage).coefficient !== 0 || model.fixLocation(name, 1, probe, lineage).coefficient !== 1) return null;
+  }
   if (model.process.length === 0) {
     // Nothing to integrate: the location parameters are exactly Gaussian about their GLS estimate.
     const point = gridPoint(evaluator, [], locationNames, 0);
