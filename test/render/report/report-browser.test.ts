@@ -59,6 +59,25 @@ async function openOffline(context: BrowserContext, url: string): Promise<{ page
   return { page, log };
 }
 
+/**
+ * A screenshot of the page brought to the front. Headless Chromium on a
+ * loaded machine can refuse a capture of a page that is not composited yet
+ * ("Unable to capture screenshot"); that is retried, never the assertions.
+ */
+async function capture(target: Page, locator?: string): Promise<Buffer> {
+  let lastError: unknown;
+  for (let attempt = 0; attempt < 3; attempt++) {
+    try {
+      await target.bringToFront();
+      return locator ? await target.locator(locator).first().screenshot() : await target.screenshot({ fullPage: false });
+    } catch (error) {
+      lastError = error;
+      await new Promise((resolve) => setTimeout(resolve, 500));
+    }
+  }
+  throw lastError;
+}
+
 /** Pixel variance of a PNG, decoded by the browser itself on a blank page (no image library needed). */
 async function pixelStatistics(context: BrowserContext, png: Buffer): Promise<{ variance: number; inked: number }> {
   const page = await context.newPage();
@@ -196,17 +215,17 @@ describe.skipIf(!executable)('HTML report in headless Chromium, offline', () => 
   });
 
   it('a screenshot is not blank (and a blank page is recognised as blank)', async () => {
-    const shot = await page.screenshot({ fullPage: false });
+    const shot = await capture(page);
     const statistics = await pixelStatistics(context, shot);
     const blankPage = await context.newPage();
     await blankPage.setContent('<body style="background:#fff"></body>');
-    const blank = await pixelStatistics(context, await blankPage.screenshot());
+    const blank = await pixelStatistics(context, await capture(blankPage));
     await blankPage.close();
     expect(blank.variance).toBeLessThan(1);
     expect(statistics.variance).toBeGreaterThan(100);
     expect(statistics.inked).toBeGreaterThan(0.01);
     // The figure itself is drawn: screenshot of the first figure, inked pixels present.
-    const figure = await pixelStatistics(context, await page.locator('figure img').first().screenshot());
+    const figure = await pixelStatistics(context, await capture(page, 'figure img'));
     expect(figure.variance).toBeGreaterThan(100);
   });
 
