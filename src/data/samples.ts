@@ -174,7 +174,9 @@ function likelyColumn(name: string, candidates: ReadonlySet<string>): string | n
   let bestDistance = Number.POSITIVE_INFINITY;
   for (const known of candidates) {
     if (known.length < 2) continue;
-    const allowed = known.length >= 5 ? 2 : 1;
+    // Optional columns are suggested only for a single slip, so a real extra column ("sector", "trial") is not refused.
+    const optional = known === 'section' || known === 'trait' || known === 'covariate';
+    const allowed = known.length >= 5 && !optional ? 2 : 1;
     const distance = editDistance(plain, known, true);
     if (distance <= allowed && distance < bestDistance) {
       best = known;
