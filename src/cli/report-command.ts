@@ -152,7 +152,7 @@ export async function reportFigures(document: FitDocumentView, choices: ReportFi
       figures.push({
         lineage: job.kind === 'trajectory' ? job.lineages[0] : null,
         kind: job.kind,
-        caption,
+        caption: caption.charAt(0).toUpperCase() + caption.slice(1),
         mime: drawn.mime,
         bytes: drawn.bytes,
         width: drawn.width,
