@@ -36,12 +36,15 @@ export function fitsDigest(fits: readonly LineageFit[]): string {
 function fitCase(args: { horizons: number; intervals: boolean; seed?: number }): Record<string, unknown> {
   const lineage = benchLineage(args.horizons, args.seed ?? 20260, 4);
   const started = performance.now();
+  const cpu = process.cpuUsage();
   const fit = fitLineage(lineage, classicModels, { intervals: args.intervals });
   const milliseconds = performance.now() - started;
+  const used = process.cpuUsage(cpu);
   return {
     horizons: args.horizons,
     intervals: args.intervals,
     milliseconds,
+    cpuMilliseconds: (used.user + used.system) / 1000,
     evaluations: fit.models.reduce((sum, model) => sum + model.evaluations, 0),
     best: fit.best,
     peakMemoryMiB: peakMemoryMiB(),
@@ -55,10 +58,14 @@ async function batchCase(args: { lineages: number; horizons: number; threads: nu
     const file = join(folder, 'batch.csv');
     writeFileSync(file, batchCsv(args.lineages, args.horizons));
     const started = performance.now();
+    const cpu = process.cpuUsage();
     const lineages = loadLineages(readInput(file), { timeUnit: 'Myr' }, new WarningLog());
     const fits = await fitLineages(lineages, classicModels, { intervals: args.intervals }, { threads: args.threads });
     const seconds = (performance.now() - started) / 1000;
+    // process.cpuUsage counts every thread of the process, workers included.
+    const used = process.cpuUsage(cpu);
     return {
+      cpuSeconds: (used.user + used.system) / 1e6,
       lineages: lineages.length,
       horizons: args.horizons,
       threads: args.threads,
