@@ -58,6 +58,12 @@ export function figureRequest(options: FigureCommandOptions): FigureRequest {
   };
   // Range checks (width, dpi) live with the figures; run them now so a bad option fails before any file is written.
   for (const format of formats) resolveFigureOptions({ ...figureOptions, format: format as FigureFormat });
+  if (formats.includes('png')) {
+    // The tallest figures are about 1.4 times as tall as wide; refuse before fitting output is written, not midway.
+    const { widthCm } = resolveFigureOptions(figureOptions);
+    const across = (widthCm / 2.54) * dpi;
+    if (across * across * 1.4 > 100e6) throw usageError(`--dpi ${dpiText} at ${widthCm} cm makes PNG figures of over 100 million pixels; lower --dpi or --figure-width, or use --figure-format svg or pdf`);
+  }
   return { formats: [...new Set(formats)] as FigureFormat[], options: figureOptions };
 }
 

@@ -5,7 +5,7 @@ export function addFigureOptions(command: Command): Command {
   return command
     .option('--figure-format <list>', 'figure files: png, svg, pdf, or a comma-separated list such as png,pdf', 'png')
     .option('--figure-width <width>', 'single (one journal column, 9 cm), double (18 cm) or a width in cm such as 12cm', 'single')
-    .option('--dpi <dots>', 'resolution of PNG figures in dots per inch (72 to 2400)', '600')
+    .option('--dpi <dots>', 'resolution of PNG figures in dots per inch (72 to 1200)', '600')
     .option('--orientation <layout>', 'stratigraphic (time up the page, oldest at the bottom) or horizontal (time left to right)', 'stratigraphic')
     .option('--draw-model <id>', "model whose expected trajectory and 95% envelope are drawn (default: each lineage's best-supported model)")
     .option('--smoothed-band', 'also draw the smoothed lineage mean (Kalman smoother under the best model) with its 95% band');

@@ -1,6 +1,7 @@
 import { createHash } from 'node:crypto';
 import { createRequire } from 'node:module';
 import type { Chart, ChartConfiguration, Plugin } from 'chart.js';
+import { usageError } from '../../data/errors.js';
 import type { ResolvedFigureOptions } from './figure-options.js';
 import { withPngMetadata } from './png-metadata.js';
 import { fontFamily, ink } from './style.js';
@@ -17,6 +18,9 @@ import { fontFamily, ink } from './style.js';
  */
 
 type ChartClass = typeof Chart;
+
+/** Largest PNG drawn, in pixels (about 400 MB of canvas memory). */
+const maximumPixels = 100e6;
 
 interface NodeCanvasRenderer {
   renderToBufferSync(configuration: ChartConfiguration, mime?: string): Buffer;
@@ -157,6 +161,10 @@ export function drawFigure(plan: FigurePlan, options: ResolvedFigureOptions): Re
     const pixelWidth = Math.round((widthCm / 2.54) * options.dpi);
     // A quarter pixel over, so chart.js's floor(width × ratio) lands on pixelWidth exactly.
     const ratio = (pixelWidth + 0.25) / widthPoints;
+    const pixels = pixelWidth * Math.floor(heightPoints * ratio);
+    if (pixels > maximumPixels) {
+      throw usageError(`a ${options.widthCm} cm figure at ${options.dpi} dpi would have ${Math.round(pixels / 1e6)} million pixels (at most ${maximumPixels / 1e6} million); lower --dpi or --figure-width, or use --figure-format svg or pdf`);
+    }
     const configuration = prepared(sized, ratio, true, store);
     const buffer = chartStack.renderer(widthPoints, heightPoints).renderToBufferSync(configuration, 'image/png');
     const bytes = withPngMetadata(new Uint8Array(buffer.buffer, buffer.byteOffset, buffer.byteLength), options.dpi, {

@@ -12,7 +12,7 @@ export interface FigureOptions {
   readonly format?: FigureFormat;
   /** 'single' journal column (9 cm, default), 'double' (18 cm), or a width in centimetres. */
   readonly width?: 'single' | 'double' | number;
-  /** Resolution of PNG output in dots per inch (default 600; 72–2400). Vector output ignores it. */
+  /** Resolution of PNG output in dots per inch (default 600; 72–1200). Vector output ignores it. */
   readonly dpi?: number;
   /** 'stratigraphic' (default: time up the page, oldest at the bottom) or 'horizontal'. */
   readonly orientation?: FigureOrientation;
@@ -45,7 +45,7 @@ export const pointsPerCm = 72 / 2.54;
 /**
  * Apply defaults and check ranges.
  *
- * @throws InputError (usage) for an unknown format, orientation or width, or a dpi outside 72–2400
+ * @throws InputError (usage) for an unknown format, orientation or width, or a dpi outside 72–1200
  * @example
  * resolveFigureOptions({ width: 'double' }).widthCm; // 18
  */
@@ -62,7 +62,7 @@ export function resolveFigureOptions(options: FigureOptions = {}): ResolvedFigur
     throw usageError(`figure width must be single, double or a width in cm from 4 to 50, got "${String(width)}"`);
   }
   const dpi = options.dpi ?? defaultDpi;
-  if (!Number.isFinite(dpi) || dpi < 72 || dpi > 2400) throw usageError(`figure dpi must be a number from 72 to 2400, got "${String(dpi)}"`);
+  if (!Number.isFinite(dpi) || dpi < 72 || dpi > 1200) throw usageError(`figure dpi must be a number from 72 to 1200 (journals ask for 300–1200), got "${String(dpi)}"`);
   return { format, widthCm, dpi, orientation, model: options.model ?? null, smoothed: options.smoothed === true };
 }
 
