@@ -86,6 +86,9 @@ export function readFitJson(file: string): { document: FitDocumentView; sha256: 
   }
 }
 
+/** Most figures one page embeds (each SVG is a few hundred kB); a note says when more were left out. */
+export const maximumFigures = 60;
+
 /** Figure choices of the report, passed on to the figure module. */
 export interface ReportFigureChoices {
   readonly format: 'svg' | 'png';
@@ -143,7 +146,8 @@ export async function reportFigures(document: FitDocumentView, choices: ReportFi
   const direction = options.orientation === 'horizontal' ? 'time runs left to right' : 'time runs up the page, oldest horizon at the bottom';
   const figures: ReportFigure[] = [];
   try {
-    for (const job of figureJobs(document.lineages, ['trajectory', 'sections'])) {
+    const jobs = figureJobs(document.lineages, ['trajectory', 'sections']);
+    for (const job of jobs.slice(0, maximumFigures)) {
       const lineages = job.lineages.map((index) => document.lineages[index]);
       const drawn = job.kind === 'trajectory' ? renderTrajectory(lineages[0], options) : renderSectionsTogether(lineages, options);
       const caption = job.kind === 'trajectory'
@@ -163,7 +167,8 @@ export async function reportFigures(document: FitDocumentView, choices: ReportFi
     if ((error as { name?: string }).name === 'InputError') throw error;
     return { figures: sketchFigures(document), note: `Figures are plain sketches: the chart module failed (${(error as Error).message}).` };
   }
-  return { figures };
+  const left = Math.max(0, figureJobs(document.lineages, ['trajectory', 'sections']).length - maximumFigures);
+  return { figures, note: left > 0 ? `The first ${maximumFigures} figures are drawn; ${left} more are left out to keep the page small (draw them all with "stratotrend fit … --out DIR" or "stratotrend redraw").` : undefined };
 }
 
 /** The power-curve figure of each power result, drawn by the figure module from the `power --json` layout. */
