@@ -54,8 +54,9 @@ export function foldRow(sums: WhitenedSums, row: Float64Array, offset: number): 
     if (b === 0) continue;
     const a = triangle[k * width + k];
     const radius = Math.sqrt(a * a + b * b);
-    const cosine = a / radius;
-    const sine = b / radius;
+    const inverse = 1 / radius;
+    const cosine = a * inverse;
+    const sine = b * inverse;
     triangle[k * width + k] = radius;
     for (let l = k + 1; l < width; l++) {
       const upper = triangle[k * width + l];
@@ -92,7 +93,12 @@ export function whiten(space: StateSpace, data: Float64Array, sums: WhitenedSums
   sums.triangle.fill(0);
   sums.projected.fill(0);
   sums.residual = 0;
+  // ln det V: innovation variances are multiplied together and the logarithm
+  // taken only when the product leaves [1e-200, 1e200] (one log per many
+  // horizons instead of one per horizon; a factor outside [1e-100, 1e100] is
+  // logged on its own, so the product can never overflow or underflow).
   let sumLogVariance = 0;
+  let product = 1;
   let singular = false;
   // work[0] is the filtered latent deviation of the data, work[1 + j] that of
   // column j; work[width + 1 ..] holds this row's whitened values for foldRow.
@@ -111,7 +117,13 @@ export function whiten(space: StateSpace, data: Float64Array, sums: WhitenedSums
     }
     const gain = predictedVariance / innovationVariance;
     const scale = 1 / Math.sqrt(innovationVariance);
-    sumLogVariance += Math.log(innovationVariance);
+    if (innovationVariance > 1e-100 && innovationVariance < 1e100) {
+      product *= innovationVariance;
+      if (product < 1e-200 || product > 1e200) {
+        sumLogVariance += Math.log(product);
+        product = 1;
+      }
+    } else sumLogVariance += Math.log(innovationVariance);
     const predictedData = phi * work[0];
     const dataInnovation = data[i] - predictedData;
     work[0] = predictedData + gain * dataInnovation;
@@ -126,7 +138,7 @@ export function whiten(space: StateSpace, data: Float64Array, sums: WhitenedSums
     foldRow(sums, work, rowOffset);
     filteredVariance = (predictedVariance * observationVariance[i]) / innovationVariance;
   }
-  sums.sumLogVariance = sumLogVariance;
+  sums.sumLogVariance = sumLogVariance + Math.log(product);
   sums.singular = singular;
   return sums;
 }
