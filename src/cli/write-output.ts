@@ -32,6 +32,10 @@ export function writeAtomically(path: string, contents: string | Uint8Array): vo
 }
 
 function writeError(path: string, error: unknown): InputError {
+  return new InputError(`cannot write "${path}": ${failureReason(error)}; nothing was changed there`);
+}
+
+function failureReason(error: unknown): string {
   const code = (error as NodeJS.ErrnoException).code;
   const reasons: Record<string, string> = {
     EACCES: 'permission denied',
@@ -42,8 +46,7 @@ function writeError(path: string, error: unknown): InputError {
     EISDIR: 'a folder of that name exists',
     ENOTDIR: 'part of the path is a file, not a folder',
   };
-  const reason = (code && reasons[code]) ?? String((error as Error)?.message ?? error);
-  return new InputError(`cannot write "${path}": ${reason}; nothing was changed there`);
+  return (code && reasons[code]) ?? String((error as Error)?.message ?? error);
 }
 
 /**
@@ -101,15 +104,34 @@ export function prepareOutputFolder(folder: string, inputs: readonly string[], n
     }
   }
   try {
-    mkdirSync(target, { recursive: true });
+    makeFolder(target);
   } catch (error) {
-    throw writeError(folder, error);
+    throw new InputError(`cannot create the output folder "${folder}": ${failureReason(error) === 'its folder does not exist' ? 'a folder above it cannot be made here' : failureReason(error)}`);
   }
   const union = [...new Set([...listed, ...names])].sort();
   if (names.length > 0 && union.length !== listed.size) {
     writeAtomically(join(target, ownFilesList), `# files written here by stratotrend; it overwrites only these\n${union.join('\n')}\n`);
   }
   return target;
+}
+
+/**
+ * Create a folder and any missing parents, one level at a time. (Node 20's
+ * `mkdirSync(path, { recursive: true })` can spin forever on some special
+ * file systems, e.g. under /proc, instead of failing.)
+ *
+ * @throws the file-system error of the first level that cannot be made.
+ */
+export function makeFolder(path: string): void {
+  const missing: string[] = [];
+  let current = resolve(path);
+  while (!existsSync(current)) {
+    missing.push(current);
+    const parent = dirname(current);
+    if (parent === current) break;
+    current = parent;
+  }
+  for (const folder of missing.reverse()) mkdirSync(folder);
 }
 
 /** The names listed in a folder's {@link ownFilesList} (empty when there is none). */

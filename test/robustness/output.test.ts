@@ -62,6 +62,13 @@ describe('prepareOutputFolder', () => {
     expect(readFileSync(join(folder, 'notes.txt'), 'utf8')).toBe('notes');
   });
 
+  it.runIf(existsSync('/proc/self'))('fails with a message, not a hang, where a folder cannot be made (/proc)', () => {
+    // Node 20's recursive mkdirSync spins forever here; the folder is made one level at a time instead.
+    expect(() => prepareOutputFolder('/proc/stratotrend-nope/out', [], ['fit.json'])).toThrow(
+      'cannot create the output folder "/proc/stratotrend-nope/out": a folder above it cannot be made here',
+    );
+  });
+
   it('refuses an output file that is an input, and an input file as the folder', () => {
     const folder = freshFolder();
     const input = join(folder, 'models.csv');
