@@ -43,6 +43,18 @@ export function delimiterOption(value: string | undefined): string | undefined {
   throw new InputError(`--delimiter must be one character, "tab", "comma" or "semicolon", got "${value}"`, { kind: 'usage' });
 }
 
+/**
+ * The `--time-unit` value as a unit (default Myr).
+ *
+ * @throws InputError (usage) for an empty label.
+ */
+export function timeUnitOption(value: string | undefined): ReturnType<typeof timeUnit> {
+  if (value !== undefined && value.trim() === '') {
+    throw new InputError('--time-unit must name a unit (Ma, ka, yr or any label), got ""', { kind: 'usage' });
+  }
+  return timeUnit(value ?? 'Myr');
+}
+
 /** Options shared by every command that reads samples. */
 export interface SampleFileOptions {
   log?: boolean;
@@ -65,7 +77,7 @@ export function loadLineages(
   const samples = readSamples(table, sampleOptions);
   return buildLineages(samples, {
     pool: options.pool,
-    timeUnit: timeUnit(options.timeUnit ?? 'Myr'),
+    timeUnit: timeUnitOption(options.timeUnit),
     warnings,
     ...extra,
   });
@@ -98,7 +110,7 @@ export async function loadLineagesStreamed(
   }
   const lineages = buildLineages(streamed.samples, {
     pool: options.pool,
-    timeUnit: timeUnit(options.timeUnit ?? 'Myr'),
+    timeUnit: timeUnitOption(options.timeUnit),
     warnings,
     ...extra,
   });

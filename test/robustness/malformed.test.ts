@@ -65,6 +65,7 @@ const cases: Array<[string, string[], number, string]> = [
   ['specimen-single-specimens.csv', [], 1, 'specimen-single-specimens.csv line 2, column "value": n = 1 gives no within-horizon variance; use --pool to pool variances over the lineage'],
   ['missing-file.csv', [], 1, 'missing-file.csv: no such file'],
   ['clean.csv', ['--delimiter', 'xx'], 2, '--delimiter must be one character, "tab", "comma" or "semicolon", got "xx"'],
+  ['clean.csv', ['--time-unit', ' '], 2, '--time-unit must name a unit (Ma, ka, yr or any label), got ""'],
 ];
 
 /** Options as the CLI would pass them for these flags. */
@@ -75,6 +76,7 @@ function optionsOf(args: readonly string[]): SampleFileOptions {
     if (args[i] === '--pool') options.pool = true;
     if (args[i] === '--decimal-comma') options.decimalComma = true;
     if (args[i] === '--delimiter') options.delimiter = args[++i];
+    if (args[i] === '--time-unit') options.timeUnit = args[++i];
   }
   return options;
 }
