@@ -116,6 +116,9 @@ export function buildLineages(samples: SampleSet, options: LineageOptions = {}):
         }
         const signed = samples.timeKind === 'depth' ? -record.position : record.position;
         const { age, extrapolated } = options.ageOf(section, signed, record.line);
+        if (!Number.isFinite(age)) {
+          throw new InputError(`the age model gives no finite age for ${samples.timeKind} ${record.position}, got ${age}; check the age model's ties`, { file: samples.file, line: record.line, column: samples.timeKind });
+        }
         return { record, age, extrapolated };
       }
       return { record, age: samples.timeKind === 'age' ? record.position : -record.position, extrapolated: false };

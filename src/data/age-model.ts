@@ -73,7 +73,9 @@ export function readAgeModel(table: Table, options: { decimalComma?: boolean } =
     const text = options.decimalComma ? raw.replace(',', '.') : raw;
     if (raw === '') throw new InputError('is empty, expected a number', { file, line, column: name });
     if (!numberPattern.test(text)) throw new InputError(`must be a finite number, got "${raw}"`, { file, line, column: name });
-    return Number(text);
+    const value = Number(text);
+    if (!Number.isFinite(value)) throw new InputError(`must be a finite number, got "${raw}"`, { file, line, column: name });
+    return value;
   };
   const grouped = new Map<string, TiePoint[]>();
   for (const { line, cells } of table.rows) {
