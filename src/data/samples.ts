@@ -140,7 +140,16 @@ export function planColumns(header: readonly string[], file: string, rawHeader: 
     throw new InputError(`more than one time column (${timeColumns.join(', ')}): keep exactly one`, { file, line: 1 });
   }
   const timeKind = timeColumns[0];
-  if (specimenForm) return { file, header, form: 'specimen', timeKind, spread: null };
+  if (specimenForm) {
+    const summaryColumns = ['n', 'sd', 'var'].filter(has);
+    if (summaryColumns.length > 0) {
+      throw new InputError(
+        `has "value" (one row per specimen) and also ${summaryColumns.map((name) => `"${name}"`).join(', ')} (one row per horizon), got both forms; if each row summarises a horizon, rename "value" to "mean", otherwise remove ${summaryColumns.length === 1 ? 'that column' : 'those columns'}`,
+        { file, line: 1, column: summaryColumns[0] },
+      );
+    }
+    return { file, header, form: 'specimen', timeKind, spread: null };
+  }
   for (const required of ['n', 'mean']) {
     if (!has(required)) {
       throw new InputError(`missing required column "${required}" (summary form needs n, mean and sd or var; specimen form needs value)`, { file, line: 1 });

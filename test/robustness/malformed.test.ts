@@ -63,6 +63,7 @@ const cases: Array<[string, string[], number, string]> = [
   ['latin1.csv', [], 1, 'latin1.csv line 5: is not UTF-8 text (an invalid byte sequence on this line, e.g. a Latin-1 accented letter); save the file as "CSV UTF-8"'],
   ['specimen-covariate-differs.csv', [], 1, 'specimen-covariate-differs.csv line 5, column "covariate": differs within the horizon at age 2 (line 4 has "6"), got "7"; give one covariate value per horizon'],
   ['specimen-single-specimens.csv', [], 1, 'specimen-single-specimens.csv line 2, column "value": n = 1 gives no within-horizon variance; use --pool to pool variances over the lineage'],
+  ['mixed-forms.csv', [], 1, 'mixed-forms.csv line 1, column "n": has "value" (one row per specimen) and also "n" (one row per horizon), got both forms; if each row summarises a horizon, rename "value" to "mean", otherwise remove that column'],
   ['missing-file.csv', [], 1, 'missing-file.csv: no such file'],
   ['clean.csv', ['--delimiter', 'xx'], 2, '--delimiter must be one character, "tab", "comma" or "semicolon", got "xx"'],
   ['clean.csv', ['--time-unit', ' '], 2, '--time-unit must name a unit (Ma, ka, yr or any label), got ""'],
