@@ -54,9 +54,8 @@ export function foldRow(sums: WhitenedSums, row: Float64Array, offset: number): 
     if (b === 0) continue;
     const a = triangle[k * width + k];
     const radius = Math.sqrt(a * a + b * b);
-    const inverse = 1 / radius;
-    const cosine = a * inverse;
-    const sine = b * inverse;
+    const cosine = a / radius;
+    const sine = b / radius;
     triangle[k * width + k] = radius;
     for (let l = k + 1; l < width; l++) {
       const upper = triangle[k * width + l];
