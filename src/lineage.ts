@@ -153,6 +153,11 @@ export function buildLineages(samples: SampleSet, options: LineageOptions = {}):
     refuseUnboundedLikelihood(name, placed.map((entry) => entry.record), samplingVariance, samples, options.pool === true);
     const firstAge = placed[0].age;
     const time = Float64Array.from(placed, (entry) => firstAge - entry.age);
+    const spanYears = unit.years === null ? 0 : (time[time.length - 1] ?? 0) * unit.years;
+    if (spanYears > 4.6e9) {
+      // Older than the Earth (about 4.5 Gyr, common knowledge): almost surely ages in years or ka read as Ma.
+      options.warnings?.add('input', `${name}: the horizons span ${time[time.length - 1]} ${unit.label}, more than the age of the Earth; if the ${samples.timeKind} column is in years or thousands of years, give --time-unit yr or ka (rates are per ${unit.label})`);
+    }
     const hasCovariate = placed.some((entry) => entry.record.covariate !== undefined);
     for (let i = 0; i < placed.length; i++) {
       if (samplingVariance[i] === 0) {

@@ -166,6 +166,16 @@ describe('degenerate but legal data: finite results or one clear message', () =>
     }
   });
 
+  it('ages in years read as Ma (the default unit) raise an input warning', () => {
+    // A span beyond the age of the Earth (about 4.5 Gyr, common knowledge) means the unit is wrong.
+    const path = write(table({ age: (a) => a * 1e6 }));
+    const asMa = runFit(path, { intervals: false });
+    expect(asMa.warnings.list().filter((warning) => warning.category === 'input').map((warning) => warning.message)).toEqual([
+      'lineage: the horizons span 2950000 Myr, more than the age of the Earth; if the age column is in years or thousands of years, give --time-unit yr or ka (rates are per Myr)',
+    ]);
+    expect(runFit(path, { intervals: false, timeUnit: 'yr' }).warnings.has('input')).toBe(false);
+  });
+
   it('a model that cannot be fitted is reported as such without hiding the others', () => {
     const [lineage] = fitDocument(write(table({ sd: () => 0 })), { intervals: false });
     const stasis = lineage.models.find((model) => model.id === 'stasis');
