@@ -9,9 +9,11 @@ import { runTasks } from './pool.js';
 /**
  * Fewest lineages for which worker threads pay off. Measured with
  * `npm run bench` on a 2-core machine: starting two workers and loading the
- * fitting code in each costs about 0.1 s, while one 30-horizon lineage takes
- * about 5-15 ms for the five classic models with intervals, so below a few
- * dozen lineages the threads save less than they cost.
+ * fitting code in each costs about 0.1 s (12 lineages without intervals took
+ * 0.12 s in one thread and 0.2 s on two), while one 30-horizon lineage takes
+ * about 45 ms for the five classic models with the default intervals and
+ * about 15 ms without, so below a couple of dozen lineages the threads save
+ * less than they cost.
  */
 export const parallelThreshold = 24;
 
