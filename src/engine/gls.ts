@@ -83,24 +83,24 @@ export function logLikAt(sums: WhitenedSums, coefficients: ArrayLike<number>): n
 }
 
 /**
- * Profile log-likelihood with design coefficient `index` held at `value` and
- * the others profiled out by GLS: least squares of R_{-index} b = z - value R_index
- * (a width × (width - 1) problem, solved by its own Givens QR), plus the
- * residual of the full fit.
+ * GLS with design coefficient `index` held at `value`: the QR factor of the
+ * reduced problem is rebuilt from the full factor R (its rows, column
+ * `index` moved into the data), so its `logDetInformation` is
+ * ln det(X_r' V^-1 X_r) without forming cross-products.
  */
-export function profileWithFixedCoefficient(sums: WhitenedSums, index: number, value: number): number {
-  if (sums.singular) return Number.NEGATIVE_INFINITY;
+export function reducedProfile(sums: WhitenedSums, index: number, value: number): ProfileResult {
   const width = sums.width;
   const reducedWidth = width - 1;
-  const reduced = {
+  const reduced: WhitenedSums = {
     size: sums.size,
     width: reducedWidth,
     sumLogVariance: sums.sumLogVariance,
     triangle: new Float64Array(reducedWidth * reducedWidth),
     projected: new Float64Array(reducedWidth),
     residual: sums.residual,
-    singular: false,
+    singular: sums.singular,
   };
+  if (sums.singular) return profileOut(reduced);
   const row = new Float64Array(reducedWidth + 1);
   for (let i = 0; i < width; i++) {
     let column = 0;
@@ -112,5 +112,13 @@ export function profileWithFixedCoefficient(sums: WhitenedSums, index: number, v
     row[reducedWidth] = sums.projected[i] - value * (index >= i ? sums.triangle[i * width + index] : 0);
     foldRow(reduced, row, 0);
   }
-  return profileOut(reduced).logLik;
+  return profileOut(reduced);
+}
+
+/**
+ * Profile log-likelihood with design coefficient `index` held at `value` and
+ * the others profiled out by GLS ({@link reducedProfile}).
+ */
+export function profileWithFixedCoefficient(sums: WhitenedSums, index: number, value: number): number {
+  return reducedProfile(sums, index, value).logLik;
 }

@@ -1,7 +1,7 @@
 import type { Lineage } from '../lineage.js';
 import { bindConfiguration, defaultMinimumSegment, type Configuration, type EvolutionModel } from '../models/model.js';
 import { LikelihoodEvaluator } from './evaluator.js';
-import type { FitOptions, ModelFit, ParameterEstimate } from './fit-model.js';
+import { unfittedFit, type FitOptions, type ModelFit, type ParameterEstimate } from './fit-model.js';
 import { nelderMead } from './optimise.js';
 import { maximiseProcess } from './search.js';
 
@@ -43,7 +43,7 @@ export function fitOverConfigurations(model: EvolutionModel, lineage: Lineage, o
   const configurations = model.configurations?.(lineage, { minimumSegment: options.minimumSegment }) ?? [];
   const minimumSegment = options.minimumSegment ?? defaultMinimumSegment;
   if (configurations.length === 0) {
-    return notFitted(
+    return unfittedFit(
       model,
       lineage,
       `not fitted: ${lineage.mean.length} horizons leave no admissible shift position with segments of at least ${minimumSegment} horizons (--min-segment)`,
@@ -73,7 +73,7 @@ export function fitOverConfigurations(model: EvolutionModel, lineage: Lineage, o
     report('screen', configurations.length, configurations.length);
   }
   const order = Array.from(scores.keys()).filter((c) => Number.isFinite(scores[c])).sort((left, right) => scores[right] - scores[left] || left - right);
-  if (order.length === 0) return notFitted(model, lineage, 'not fitted: the likelihood is not finite at any shift position');
+  if (order.length === 0) return unfittedFit(model, lineage, 'not fitted: the likelihood is not finite at any shift position');
   const bestScore = scores[order[0]];
   const candidates = order.filter((c, rank) => rank < refineAtLeast || scores[c] >= bestScore - refineMargin).slice(0, refineAtMost);
   let best: { configuration: Configuration; logLik: number } | null = null;
@@ -83,7 +83,7 @@ export function fitOverConfigurations(model: EvolutionModel, lineage: Lineage, o
     report('refine', done + 1, candidates.length);
   });
   const chosen = best as { configuration: Configuration; logLik: number } | null;
-  if (chosen === null) return notFitted(model, lineage, 'not fitted: no shift position gave a converged fit');
+  if (chosen === null) return unfittedFit(model, lineage, 'not fitted: no shift position gave a converged fit');
   const final = fitAtConfiguration(model, lineage, chosen.configuration, options, fitPlain);
   // The shift times go with the parameters (no interval: the positions are discrete), so that readers of the
   // JSON params alone (figures) can rebuild the model's expectation.
@@ -169,7 +169,7 @@ export function fitAtConfiguration(
   const blocks = model.blocks(lineage, configuration);
   const fits = blocks.map((block) => fitPlain(block.model, block.lineage, options));
   const failed = fits.findIndex((fit) => !fit.converged);
-  if (failed >= 0) return notFitted(model, lineage, `segment ${failed + 1}: ${fits[failed].message ?? 'not fitted'}`);
+  if (failed >= 0) return unfittedFit(model, lineage, `segment ${failed + 1}: ${fits[failed].message ?? 'not fitted'}`);
   const parameters: Record<string, ParameterEstimate> = {};
   const derived: Record<string, ParameterEstimate> = {};
   const flags: string[] = [];
@@ -204,21 +204,3 @@ export function fitAtConfiguration(
   };
 }
 
-function notFitted(model: EvolutionModel, lineage: Lineage, message: string): ModelFit {
-  return {
-    id: model.id,
-    label: model.label,
-    k: model.parameterCount(lineage),
-    horizons: lineage.mean.length,
-    logLik: Number.NEGATIVE_INFINITY,
-    converged: false,
-    message,
-    parameters: {},
-    derived: {},
-    process: [],
-    estimates: {},
-    flags: [],
-    intervalMethod: 'profile',
-    evaluations: 0,
-  };
-}

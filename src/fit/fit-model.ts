@@ -3,6 +3,7 @@ import type { EvolutionModel } from '../models/model.js';
 import { LikelihoodEvaluator } from './evaluator.js';
 import { fitOverConfigurations, type SearchProgress } from './fit-configurations.js';
 import { replaceIntervals, type IntervalMethod } from './intervals-method.js';
+import { locationEnds } from './intervals.js';
 import { chiSquare1At95 } from './model-choice.js';
 import { findRoot } from './optimise.js';
 import { maximiseProcess, type AxisPosition } from './search.js';
@@ -69,7 +70,8 @@ export interface FitOptions {
 /** Half the 95% chi-square(1) quantile: the profile drop that defines a 95% interval. */
 export const profileDrop = chiSquare1At95 / 2;
 
-const unfitted = (model: EvolutionModel, lineage: Lineage, message: string): ModelFit => ({
+/** A model that could not be fitted to this lineage, with the reason in words. */
+export const unfittedFit = (model: EvolutionModel, lineage: Lineage, message: string): ModelFit => ({
   id: model.id,
   label: model.label,
   k: model.parameterCount(lineage),
@@ -98,10 +100,10 @@ const unfitted = (model: EvolutionModel, lineage: Lineage, message: string): Mod
 export function fitModel(model: EvolutionModel, lineage: Lineage, options: FitOptions = {}): ModelFit {
   const size = lineage.mean.length;
   if (size < model.minimumHorizons) {
-    return unfitted(model, lineage, `needs at least ${model.minimumHorizons} horizons, has ${size}`);
+    return unfittedFit(model, lineage, `needs at least ${model.minimumHorizons} horizons, has ${size}`);
   }
   const unavailable = model.unavailable?.(lineage);
-  if (unavailable) return unfitted(model, lineage, unavailable);
+  if (unavailable) return unfittedFit(model, lineage, unavailable);
   // Models with discrete configurations (shift positions): exhaustive loop over them (fit-configurations.ts).
   if (model.configurations) return fitOverConfigurations(model, lineage, options, fitModel);
   const evaluator = new LikelihoodEvaluator(model, lineage);
@@ -114,7 +116,7 @@ export function fitModel(model: EvolutionModel, lineage: Lineage, options: FitOp
       return Math.sqrt(lower * upper);
     });
     const singular = evaluator.whiten(probe).singular;
-    return unfitted(
+    return unfittedFit(
       model,
       lineage,
       singular
@@ -314,22 +316,5 @@ function locationInterval(
   let scale = Math.sqrt(Math.max(0, details.coefficientCovariance[index * width + index]));
   if (name === 'optimum' && best[0] > 0) scale /= best[0];
   if (!(scale > 0) || !Number.isFinite(scale)) scale = Math.max(1e-8, Math.abs(estimate) * 1e-3);
-  const gap = (value: number): number => profileAt(value) - cutoff;
-  const end = (direction: 1 | -1): number | null => {
-    let inside = estimate;
-    let step = scale;
-    for (let attempt = 0; attempt < 60; attempt++) {
-      const outside = estimate + direction * step;
-      if (gap(outside) < 0) {
-        const root = findRoot(gap, Math.min(inside, outside), Math.max(inside, outside), 1e-12);
-        return Number.isFinite(root) ? root : null;
-      }
-      inside = outside;
-      step *= 2;
-    }
-    return null;
-  };
-  const lower = end(-1);
-  const upper = end(1);
-  return { lower, upper, lowerAtBound: lower === null, upperAtBound: upper === null };
+  return locationEnds(profileAt, estimate, scale, cutoff);
 }

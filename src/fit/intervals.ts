@@ -1,6 +1,6 @@
 import { usageError } from '../data/errors.js';
-import { profileOut, type ProfileResult } from '../engine/gls.js';
-import { foldRow, type WhitenedSums } from '../engine/kalman-filter.js';
+import { profileOut, reducedProfile } from '../engine/gls.js';
+import type { WhitenedSums } from '../engine/kalman-filter.js';
 import type { Lineage } from '../lineage.js';
 import type { EvolutionModel } from '../models/model.js';
 import type { LikelihoodEvaluator } from './evaluator.js';
@@ -85,38 +85,6 @@ export function fixedCoefficientLogLik(sums: WhitenedSums, index: number, value:
   return result.logLik - 0.5 * result.logDetInformation;
 }
 
-/**
- * GLS with design coefficient `index` held at `value`: the QR factor of the
- * reduced problem is rebuilt from the full factor R (its rows, column
- * `index` moved into the data), so its `logDetInformation` is
- * ln det(X_r' V^-1 X_r) without forming cross-products.
- */
-export function reducedProfile(sums: WhitenedSums, index: number, value: number): ProfileResult {
-  const width = sums.width;
-  const reducedWidth = width - 1;
-  const reduced: WhitenedSums = {
-    size: sums.size,
-    width: reducedWidth,
-    sumLogVariance: sums.sumLogVariance,
-    triangle: new Float64Array(reducedWidth * reducedWidth),
-    projected: new Float64Array(reducedWidth),
-    residual: sums.residual,
-    singular: sums.singular,
-  };
-  if (sums.singular) return profileOut(reduced);
-  const row = new Float64Array(reducedWidth + 1);
-  for (let i = 0; i < width; i++) {
-    let column = 0;
-    for (let k = 0; k < width; k++) {
-      if (k === index) continue;
-      row[column] = k >= i ? sums.triangle[i * width + k] : 0;
-      column += 1;
-    }
-    row[reducedWidth] = sums.projected[i] - value * (index >= i ? sums.triangle[i * width + index] : 0);
-    foldRow(reduced, row, 0);
-  }
-  return profileOut(reduced);
-}
 
 /**
  * The profile log-likelihood of one parameter as a function of its value,
