@@ -22,26 +22,10 @@
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { generator } from './demo-random.mjs';
 
 const seed = 4402;
 
-// mulberry32 (small 32-bit generator) with Box–Muller normals; enough for demo data.
-function generator(state) {
-  let a = state >>> 0;
-  const uniform = () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-  const normal = () => {
-    let u = 0;
-    while (u === 0) u = uniform();
-    return Math.sqrt(-2 * Math.log(u)) * Math.cos(2 * Math.PI * uniform());
-  };
-  return { uniform, normal };
-}
 const random = generator(seed);
 
 const sections = [

@@ -13,27 +13,11 @@
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { generator } from './demo-random.mjs';
 
 const seed = 20261202;
 const truth = { before: 8.0, after: 9.1, shiftIndex: 18, stasisVariance: 0.02, withinSd: 0.6, horizons: 40 };
 
-// mulberry32 with Box-Muller normals: small and deterministic; enough for demo data.
-function generator(state) {
-  let a = state >>> 0;
-  const uniform = () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-  const normal = () => {
-    let u = 0;
-    while (u === 0) u = uniform();
-    return Math.sqrt(-2 * Math.log(u)) * Math.cos(2 * Math.PI * uniform());
-  };
-  return { uniform, normal };
-}
 
 const random = generator(seed);
 const samples = ['section,trait,age,n,mean,sd'];
