@@ -56,7 +56,7 @@ export function buildProgram(): Command {
   const program = new Command();
   program
     .name('stratotrend')
-    .description('Fit models of phyletic evolution (stasis, random walks, directional change, approach to an optimum)\nto trait means measured through stratigraphic sections, with sampling error, compared by AICc.')
+    .description('Fit models of phyletic evolution (stasis, random walks, directional change, approach to an optimum) to trait means measured through stratigraphic sections, with sampling error, compared by AICc.')
     .version(toolVersion())
     .exitOverride()
     .configureOutput({ writeErr: (text) => process.stderr.write(text) });
