@@ -10,8 +10,9 @@
  * that each one's peak memory is its own.
  */
 import { execFileSync, spawnSync } from 'node:child_process';
-import { existsSync, writeFileSync } from 'node:fs';
-import { availableParallelism, cpus, loadavg, totalmem } from 'node:os';
+import { existsSync, mkdtempSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { availableParallelism, cpus, loadavg, tmpdir, totalmem } from 'node:os';
+import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { denseLogLik } from '../src/engine/dense.js';
 import { logLikAt, profileOut } from '../src/engine/gls.js';
@@ -318,6 +319,34 @@ function table(rows: readonly (readonly string[])[]): string {
   return rows.map((row) => '  ' + row.map((cell, column) => (column === 0 ? cell.padEnd(widths[column]) : cell.padStart(widths[column]))).join('  ')).join('\n');
 }
 
+/**
+ * Stream a large invented specimen-form file (issue 6: a million rows in
+ * bounded memory) in a child process, so its peak resident memory is its own
+ * and not the benchmark's.
+ */
+function measureStreaming(rows: number): { rows: number; megabytes: number; seconds: number; peakResidentMiB: number } {
+  const folder = mkdtempSync(join(tmpdir(), 'stratotrend-bench-stream-'));
+  const file = join(folder, 'specimens.csv');
+  const lines = ['section,trait,age,value'];
+  const horizons = 200;
+  for (let k = 0; k < rows; k++) {
+    const horizon = k % horizons;
+    lines.push(`Bench Gully,length,${(20 - horizon * 0.05).toFixed(2)},${(5 + 0.01 * horizon + ((k * 7919) % 1000) / 2000).toFixed(4)}`);
+  }
+  writeFileSync(file, lines.join('\n') + '\n');
+  const megabytes = statSync(file).size / 2 ** 20;
+  const script = `import(${JSON.stringify(new URL('../src/data/stream-samples.js', import.meta.url).href)}).then(async ({ streamSampleFile }) => {
+    const started = process.hrtime.bigint();
+    const result = await streamSampleFile(${JSON.stringify(file)}, 'specimens.csv');
+    const seconds = Number(process.hrtime.bigint() - started) / 1e9;
+    process.stdout.write(JSON.stringify({ rows: result.rows, seconds, maxRss: process.resourceUsage().maxRSS * 1024 }));
+  });`;
+  const output = execFileSync(process.execPath, ['--input-type=module', '-e', script], { encoding: 'utf8' });
+  rmSync(folder, { recursive: true, force: true });
+  const measured = JSON.parse(output) as { rows: number; seconds: number; maxRss: number };
+  return { rows: measured.rows, megabytes, seconds: measured.seconds, peakResidentMiB: measured.maxRss / 2 ** 20 };
+}
+
 async function main(): Promise<void> {
   const cores = availableParallelism();
   const machine = {
@@ -338,6 +367,8 @@ async function main(): Promise<void> {
   process.stderr.write('  figures...\n');
   const figures = await measureFigures();
   const calibration = await measureCalibration();
+  process.stderr.write('  streaming a large specimen file...\n');
+  const streaming = measureStreaming(smoke ? 20_000 : 1_000_000);
 
   const at1000 = likelihood.filter((row) => row.horizons === (smoke ? 200 : 1000));
   const worstRatio = Math.min(...at1000.map((row) => row.ratio ?? Number.POSITIVE_INFINITY));
@@ -358,7 +389,7 @@ async function main(): Promise<void> {
     { name: `batch speedup on ${batch.rows[1].threads} threads`, target: '>= 1.6', measured: batch.speedup, met: batch.speedup >= 1.6 },
     { name: '`stratotrend --help` / `node -e 0`', target: '<= 2', measured: startup.ratio, met: startup.ratio <= 2 },
   ];
-  const results = { mode: smoke ? 'smoke' : 'full', date: new Date().toISOString(), machine, likelihood, fits, batch, startup, figures, calibration, targets };
+  const results = { mode: smoke ? 'smoke' : 'full', date: new Date().toISOString(), machine, likelihood, fits, batch, startup, figures, streaming, calibration, targets };
   if (outFile) writeFileSync(outFile, JSON.stringify(results, null, 2) + '\n');
 
   const lines: string[] = [];
@@ -394,6 +425,7 @@ async function main(): Promise<void> {
   ]));
   const memory = [...fits.filter((row) => row.horizons >= 20_000 || smoke), ...batch.rows];
   lines.push('', `Peak memory of the largest runs: ${memory.map((row) => `${'lineages' in row ? `batch ${row.threads} thread(s)` : `fit N = ${row.horizons}${row.intervals ? ' + intervals' : ''}`} ${format(row.peakMemoryMiB)} MiB`).join('; ')}`);
+  lines.push('', `Streaming a specimen-form file (issue 6): ${streaming.rows} rows, ${format(streaming.megabytes)} MB, read and summarised in ${format(streaming.seconds)} s, peak resident memory ${format(streaming.peakResidentMiB)} MiB (own process)`);
   if (!smoke) lines.push('', `Calibration: ${JSON.stringify(calibration).slice(0, 200)}`);
   lines.push('', 'Targets (issue 7)');
   lines.push(table([
