@@ -5,7 +5,7 @@ import { classicModels } from '../models/registry.js';
 import { formatNumber } from '../render/units.js';
 import { bootstrapTests, type BootstrapTestReport } from '../simulate/bootstrap-test.js';
 import { poolRunner } from '../simulate/run-replicates.js';
-import { loadLineages, readInput, type SampleFileOptions } from './input.js';
+import { loadLineagesStreamed, type SampleFileOptions } from './input.js';
 import { progressReporter, seedOption, wholeOption } from './power-command.js';
 import { toolVersion } from './version.js';
 
@@ -43,8 +43,8 @@ export function bootstrapTable(name: string, report: BootstrapTestReport): strin
 
 /** `stratotrend bootstrap FILE`: parametric-bootstrap tests for every lineage. */
 export async function bootstrapCommand(file: string, options: BootstrapCommandOptions): Promise<void> {
-  const input = readInput(file);
-  const lineages = loadLineages(input, options, new WarningLog());
+  // Streamed: a specimen file of millions of rows is read in bounded memory.
+  const { input, lineages } = await loadLineagesStreamed(file, options, new WarningLog());
   const replicates = wholeOption(options.replicates, '--replicates', 200, 19, 100000);
   const seed = seedOption(options.seed);
   const threads = options.threads === undefined ? undefined : wholeOption(options.threads, '--threads', 1, 1, 256);

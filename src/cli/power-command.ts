@@ -10,7 +10,7 @@ import { designOf, pooledWithinSd } from '../simulate/design.js';
 import { defaultDrifts, powerAnalysis, type PowerProgress, type PowerReport } from '../simulate/power.js';
 import { poolRunner } from '../simulate/run-replicates.js';
 import { parseSeed } from '../simulate/seeds.js';
-import { loadLineages, readInput, type SampleFileOptions } from './input.js';
+import { loadLineagesStreamed, type SampleFileOptions } from './input.js';
 import { toolVersion } from './version.js';
 import { refuseInputPath, writeAtomically } from './write-output.js';
 
@@ -120,8 +120,8 @@ export interface PowerRun {
 /** Read the file, fit the directional walk, and run the power analysis on the chosen lineage's design. */
 export async function runPower(file: string, options: PowerCommandOptions, progress?: PowerProgress): Promise<PowerRun> {
   const warnings = new WarningLog();
-  const input = readInput(file);
-  const lineages = loadLineages(input, options, warnings);
+  // Streamed: a specimen file of millions of rows is read in bounded memory.
+  const { input, lineages } = await loadLineagesStreamed(file, options, warnings);
   const { lineage, note } = chooseLineage(lineages, options.lineage, input.name);
   const notes: string[] = note ? [note] : [];
   const replicates = wholeOption(options.replicates, '--replicates', 200, 20, 100000);
