@@ -164,6 +164,16 @@ function lineageMatches(document: unknown, wanted: readonly string[]): boolean {
   return wanted.some((name) => names.includes(name.trim().toLowerCase()));
 }
 
+/** Run `work`; a data error from the figure input (which knows no file) is re-raised naming the fit document. */
+function namingFile<T>(file: string, work: () => T): T {
+  try {
+    return work();
+  } catch (error) {
+    if (error instanceof InputError && error.kind === 'data' && error.file === undefined) throw new InputError(error.message, { file });
+    throw error;
+  }
+}
+
 /** `stratotrend redraw FIT_JSON`: draw the figures of a saved fit again, without refitting. */
 export function redrawCommand(file: string, options: RedrawCommandOptions): void {
   const all = readFitDocument(file);
@@ -172,10 +182,10 @@ export function redrawCommand(file: string, options: RedrawCommandOptions): void
   if (lineages.length === 0) {
     throw usageError(`--lineage: no lineage of ${file} is called ${wanted.map((name) => `"${name}"`).join(' or ')}`);
   }
-  const plan = planFigureFiles(lineages, options, parseKinds(options.only ?? figureKinds.join(',')));
+  const plan = namingFile(file, () => planFigureFiles(lineages, options, parseKinds(options.only ?? figureKinds.join(','))));
   if (plan.jobs.length === 0) throw usageError('nothing to draw (a sections figure needs a trait measured in two or more sections)');
   const out = options.out ?? dirname(file);
   const folder = prepareOutputFolder(out, [file], plan.names);
-  const written = writeFigureFiles(lineages, plan, folder);
+  const written = namingFile(file, () => writeFigureFiles(lineages, plan, folder));
   if (!options.quiet) process.stdout.write(written.map((name) => join(out, name)).join('\n') + '\n');
 }

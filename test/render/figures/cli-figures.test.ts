@@ -70,6 +70,25 @@ describe('figures from the command line', () => {
     expect(stderr).toMatch(/--dpi: expected a number/);
   });
 
+  it('a damaged fit.json is a data error (exit 1) whose one line names the file and the bad field', () => {
+    const out = mkdtempSync(join(tmpdir(), 'stratotrend-figures-'));
+    run(['fit', 'sample-data/shell-length.csv', '--out', out, '--no-figures', '--quiet', '--no-intervals']);
+    const document = JSON.parse(readFileSync(join(out, 'fit.json'), 'utf8'));
+    document.lineages[0].data.time = 'x';
+    const damaged = join(out, 'damaged.json');
+    writeFileSync(damaged, JSON.stringify(document));
+    let status = 0;
+    let stderr = '';
+    try {
+      execFileSync(process.execPath, [cli, 'redraw', damaged], { cwd: root, encoding: 'utf8', stdio: 'pipe' });
+    } catch (error) {
+      status = (error as { status: number }).status;
+      stderr = String((error as { stderr: string }).stderr);
+    }
+    expect(status).toBe(1);
+    expect(stderr.trim()).toBe(`stratotrend: ${damaged}: lineage.data.time: must be a list of numbers, got "x"`);
+  });
+
   it('--help and a fit without --out never load the chart stack', () => {
     const folder = mkdtempSync(join(tmpdir(), 'stratotrend-lazy-'));
     const preload = join(folder, 'watch.cjs');
