@@ -1,4 +1,4 @@
-import { usageError } from '../data/errors.js';
+import { InputError, usageError } from '../data/errors.js';
 import { WarningLog } from '../data/warnings.js';
 import { LikelihoodEvaluator } from '../fit/evaluator.js';
 import { fitModel } from '../fit/fit-model.js';
@@ -130,7 +130,8 @@ export async function runPower(file: string, options: PowerCommandOptions, progr
   const threshold = numberOption(options.weightThreshold, '--weight-threshold') ?? 0.5;
   if (!(threshold > 0 && threshold < 1)) throw usageError(`--weight-threshold must lie between 0 and 1, got "${options.weightThreshold}"`);
   const fit = fitModel(directionalWalk, lineage, { intervals: false });
-  if (!fit.converged) throw usageError(`the directional walk could not be fitted to "${lineageName(lineage)}": ${fit.message}`);
+  // The data, not the options, are at fault here: a data error (exit 1).
+  if (!fit.converged) throw new InputError(`the directional walk could not be fitted to "${lineageName(lineage)}": ${fit.message}`, { file: input.name });
   const given = numberOption(options.stepVariance, '--step-variance');
   if (given !== undefined && !(given >= 0)) throw usageError(`--step-variance must be 0 or more, got "${options.stepVariance}"`);
   const stepVariance = given ?? fit.estimates.step_variance;

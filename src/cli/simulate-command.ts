@@ -1,4 +1,4 @@
-import { usageError } from '../data/errors.js';
+import { InputError, usageError } from '../data/errors.js';
 import { WarningLog } from '../data/warnings.js';
 import { fitModel } from '../fit/fit-model.js';
 import { lineageName, type Lineage } from '../lineage.js';
@@ -79,7 +79,7 @@ export function simulateCommand(file: string | undefined, options: SimulateComma
     if (file === undefined) throw usageError(`--parameters: give ${missing.join(', ')} (or a FILE, whose fitted values fill in what is not given)`);
     const fit = fitModel(model, design, { intervals: false });
     if (!fit.converged || missing.some((name) => !Number.isFinite(fit.estimates[name]))) {
-      throw usageError(`${model.id} could not be fitted to "${lineageName(design)}" to fill in ${missing.join(', ')}; give them with --parameters`);
+      throw new InputError(`${model.id} could not be fitted to "${lineageName(design)}" to fill in ${missing.join(', ')}; give them with --parameters`, { file });
     }
     return { ...fit.estimates, ...given };
   });
