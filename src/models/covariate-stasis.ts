@@ -1,4 +1,4 @@
-import { buildCovariance, varianceScale, type EvolutionModel } from './model.js';
+import { buildCovariance, type EvolutionModel, stasisVarianceRange } from './model.js';
 import { covariateIsConstant, covariateProblem } from './covariate-shared.js';
 
 /**
@@ -31,10 +31,7 @@ export const covariateStasis: EvolutionModel = {
     {
       name: 'stasis_variance',
       allowZero: true,
-      range: (lineage) => {
-        const scale = varianceScale(lineage);
-        return [1e-9 * scale, 1e3 * scale];
-      },
+      range: (lineage) => stasisVarianceRange(lineage),
     },
   ],
   minimumHorizons: 4,

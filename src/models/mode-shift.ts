@@ -1,4 +1,4 @@
-import { buildCovariance, sliceLineage, varianceScale, type EvolutionModel, type LikelihoodBlock, type ParameterSpec } from './model.js';
+import { buildCovariance, sliceLineage, stasisVarianceRange, type EvolutionModel, type LikelihoodBlock, type ParameterSpec } from './model.js';
 import { directionalWalk } from './directional-walk.js';
 import { minimumSegmentOf, shiftEstimates, shiftIndicesFrom, shiftPlacements, shiftsOf } from './punctuated-shifts.js';
 import { randomWalk } from './random-walk.js';
@@ -105,9 +105,7 @@ export function modeShift(first: SegmentMode, second: SegmentMode): EvolutionMod
       name: spec.name,
       allowZero: true,
       range: (lineage) => {
-        if (spec.unit.time === -1) return stepVarianceRange(lineage);
-        const scale = varianceScale(lineage);
-        return [1e-9 * scale, 1e3 * scale] as const;
+        return spec.unit.time === -1 ? stepVarianceRange(lineage) : stasisVarianceRange(lineage);
       },
     })),
     minimumHorizons: 6,

@@ -217,6 +217,15 @@ export function varianceScale(lineage: Lineage): number {
   return magnitude > 0 ? (magnitude * 1e-8) ** 2 : 1;
 }
 
+/**
+ * Search range for a stasis (or segment) variance, in trait^2: from far below
+ * anything the data could resolve to far above the spread of the means.
+ */
+export function stasisVarianceRange(lineage: Lineage): readonly [number, number] {
+  const scale = varianceScale(lineage);
+  return [1e-9 * scale, 1e3 * scale];
+}
+
 /** Total time span t_m and the shortest interval between horizons. */
 export function timeSpan(lineage: Lineage): { span: number; shortest: number } {
   const time = lineage.time;

@@ -1,4 +1,4 @@
-import { buildCovariance, sliceLineage, varianceScale, type EvolutionModel, type ParameterSpec } from './model.js';
+import { buildCovariance, sliceLineage, stasisVarianceRange, type EvolutionModel, type ParameterSpec } from './model.js';
 import {
   minimumSegmentOf,
   screenSeparateVariances,
@@ -47,10 +47,7 @@ export function punctuatedSeparateVariances(shiftCount: number): EvolutionModel 
     process: Array.from({ length: segments }, (_, k) => ({
       name: varianceName(k),
       allowZero: true,
-      range: (lineage) => {
-        const scale = varianceScale(lineage);
-        return [1e-9 * scale, 1e3 * scale] as const;
-      },
+      range: (lineage) => stasisVarianceRange(lineage),
     })),
     minimumHorizons: stasis.minimumHorizons * segments,
     width: () => segments,

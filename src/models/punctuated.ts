@@ -1,4 +1,4 @@
-import { buildCovariance, varianceScale, type EvolutionModel, type ParameterSpec } from './model.js';
+import { buildCovariance, type EvolutionModel, type ParameterSpec, stasisVarianceRange } from './model.js';
 import {
   minimumSegmentOf,
   screenSharedVariance,
@@ -53,10 +53,7 @@ export function punctuatedSharedVariance(shiftCount: number): EvolutionModel {
       {
         name: 'stasis_variance',
         allowZero: true,
-        range: (lineage) => {
-          const scale = varianceScale(lineage);
-          return [1e-9 * scale, 1e3 * scale];
-        },
+        range: (lineage) => stasisVarianceRange(lineage),
       },
     ],
     minimumHorizons: 2 * segments,

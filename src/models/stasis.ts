@@ -1,4 +1,4 @@
-import { buildCovariance, varianceScale, type EvolutionModel } from './model.js';
+import { buildCovariance, type EvolutionModel, stasisVarianceRange } from './model.js';
 
 /**
  * Stasis: independent fluctuation about a constant mean, mu_i = theta,
@@ -23,10 +23,7 @@ export const stasis: EvolutionModel = {
     {
       name: 'stasis_variance',
       allowZero: true,
-      range: (lineage) => {
-        const scale = varianceScale(lineage);
-        return [1e-9 * scale, 1e3 * scale];
-      },
+      range: (lineage) => stasisVarianceRange(lineage),
     },
   ],
   minimumHorizons: 3,
