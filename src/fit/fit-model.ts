@@ -108,7 +108,7 @@ export function fitModel(model: EvolutionModel, lineage: Lineage, options: FitOp
   if (model.configurations) return fitOverConfigurations(model, lineage, options, fitModel);
   const evaluator = new LikelihoodEvaluator(model, lineage);
   const evaluate = (process: number[]): number => evaluator.profile(process);
-  const maximum = maximiseProcess(evaluate, model.process, lineage, { points: options.gridPoints });
+  const maximum = maximiseProcess(evaluate, model.process, lineage, { points: options.gridPoints, polish: true });
   if (!Number.isFinite(maximum.logLik)) {
     // Probe at an interior point to tell a singular covariance from a likelihood that is merely not finite.
     const probe = model.process.map((axis) => {

@@ -1,6 +1,7 @@
 import type { Lineage } from '../lineage.js';
 import type { ProcessAxis } from '../models/model.js';
 import { brentMaximize, nelderMead } from './optimise.js';
+import { polishMaximum } from './polish.js';
 
 /** Where the nested search found the maximum of one axis. */
 export type AxisPosition = 'interior' | 'zero' | 'range-lower' | 'range-upper';
@@ -29,6 +30,13 @@ export interface SearchOptions {
    * at grid resolution.
    */
   start?: readonly number[];
+  /**
+   * Finish with a finite-difference Newton polish of the interior axes
+   * (`polish.ts`), so that the estimate is located to rounding rather than
+   * to the ~1e-8 a value-only search can reach. For the reported estimate;
+   * profile searches, which need only the maximum's value, go without.
+   */
+  polish?: boolean;
 }
 
 interface Found {
@@ -144,6 +152,11 @@ export function maximiseProcess(
   };
   if (options.start !== undefined) return gridAndPolish(evaluate, axes, lineage, points, fixed, options.start);
   const result = recurse(0, null);
+  if (options.polish) {
+    const free = result.positions.flatMap((position, level) => (position === 'interior' && !fixed.has(level) ? [level] : []));
+    const polished = polishMaximum(evaluate, axes, lineage, result, free);
+    return { process: polished.process, logLik: polished.logLik, positions: result.positions };
+  }
   return { process: result.process, logLik: result.logLik, positions: result.positions };
 }
 
