@@ -319,19 +319,30 @@ function table(rows: readonly (readonly string[])[]): string {
   return rows.map((row) => '  ' + row.map((cell, column) => (column === 0 ? cell.padEnd(widths[column]) : cell.padStart(widths[column]))).join('  ')).join('\n');
 }
 
+/** One command run on the large specimen file, in its own process. */
+interface StreamedCommand {
+  command: string;
+  seconds: number;
+  peakResidentMiB: number;
+}
+
 /**
  * Stream a large invented specimen-form file (issue 6: a million rows in
- * bounded memory) in a child process, so its peak resident memory is its own
- * and not the benchmark's.
+ * bounded memory) in child processes, so each peak resident memory is its
+ * own and not the benchmark's: the reader alone, then every command that
+ * reads a samples file (fit, compare, simulate, power, bootstrap, report), each
+ * through the CLI's `main` with the lightest options that still read it all.
+ * Two invented sections of 100 horizons each, so that `compare` compares.
  */
-function measureStreaming(rows: number): { rows: number; megabytes: number; seconds: number; peakResidentMiB: number } {
+function measureStreaming(rows: number): { rows: number; megabytes: number; seconds: number; peakResidentMiB: number; commands: StreamedCommand[] } {
   const folder = mkdtempSync(join(tmpdir(), 'stratotrend-bench-stream-'));
   const file = join(folder, 'specimens.csv');
   const lines = ['section,trait,age,value'];
   const horizons = 200;
   for (let k = 0; k < rows; k++) {
     const horizon = k % horizons;
-    lines.push(`Bench Gully,length,${(20 - horizon * 0.05).toFixed(2)},${(5 + 0.01 * horizon + ((k * 7919) % 1000) / 2000).toFixed(4)}`);
+    const section = horizon < horizons / 2 ? 'Bench Gully' : 'Bench Scar';
+    lines.push(`${section},length,${(20 - (horizon % (horizons / 2)) * 0.1).toFixed(2)},${(5 + 0.01 * horizon + ((k * 7919) % 1000) / 2000).toFixed(4)}`);
   }
   writeFileSync(file, lines.join('\n') + '\n');
   const megabytes = statSync(file).size / 2 ** 20;
@@ -342,9 +353,32 @@ function measureStreaming(rows: number): { rows: number; megabytes: number; seco
     process.stdout.write(JSON.stringify({ rows: result.rows, seconds, maxRss: process.resourceUsage().maxRSS * 1024 }));
   });`;
   const output = execFileSync(process.execPath, ['--input-type=module', '-e', script], { encoding: 'utf8' });
-  rmSync(folder, { recursive: true, force: true });
   const measured = JSON.parse(output) as { rows: number; seconds: number; maxRss: number };
-  return { rows: measured.rows, megabytes, seconds: measured.seconds, peakResidentMiB: measured.maxRss / 2 ** 20 };
+  const mainUrl = new URL('../src/cli/main.js', import.meta.url).href;
+  const runCommand = (args: string[]): StreamedCommand => {
+    const child = `import(${JSON.stringify(mainUrl)}).then(async ({ main }) => {
+      const started = process.hrtime.bigint();
+      await main(['node', 'stratotrend', ...${JSON.stringify(args)}]);
+      const seconds = Number(process.hrtime.bigint() - started) / 1e9;
+      process.stderr.write('\\nbench-result ' + JSON.stringify({ seconds, maxRss: process.resourceUsage().maxRSS * 1024, code: process.exitCode ?? 0 }) + '\\n');
+    });`;
+    const result = spawnSync(process.execPath, ['--input-type=module', '-e', child], { encoding: 'utf8', maxBuffer: 1 << 28 });
+    const line = result.stderr.split('\n').find((entry) => entry.startsWith('bench-result '));
+    if (!line) throw new Error(`bench: stratotrend ${args.join(' ')} printed no result: ${result.stderr.slice(-400)}`);
+    const found = JSON.parse(line.slice('bench-result '.length)) as { seconds: number; maxRss: number; code: number };
+    if (found.code !== 0) throw new Error(`bench: stratotrend ${args.join(' ')} exited with ${found.code}: ${result.stderr.slice(-400)}`);
+    return { command: `stratotrend ${args.map((arg) => (arg === file ? 'FILE' : arg.startsWith(folder) ? arg.slice(folder.length + 1) : arg)).join(' ')}`, seconds: found.seconds, peakResidentMiB: found.maxRss / 2 ** 20 };
+  };
+  const commands = [
+    runCommand(['fit', file, '--no-intervals', '--quiet']),
+    runCommand(['compare', file, '--no-intervals', '--quiet']),
+    runCommand(['simulate', file, '--model', 'random-walk', '--out', join(folder, 'simulated.csv')]),
+    runCommand(['power', file, '--lineage', 'Bench Gully / length', '--replicates', '20', '--drifts', '0,0.1', '--no-coverage', '--threads', '1', '--quiet']),
+    runCommand(['bootstrap', file, '--replicates', '20', '--threads', '1', '--quiet']),
+    runCommand(['report', file, '--no-intervals', '--compare', '--out', join(folder, 'report.html')]),
+  ];
+  rmSync(folder, { recursive: true, force: true });
+  return { rows: measured.rows, megabytes, seconds: measured.seconds, peakResidentMiB: measured.maxRss / 2 ** 20, commands };
 }
 
 async function main(): Promise<void> {
@@ -426,6 +460,8 @@ async function main(): Promise<void> {
   const memory = [...fits.filter((row) => row.horizons >= 20_000 || smoke), ...batch.rows];
   lines.push('', `Peak memory of the largest runs: ${memory.map((row) => `${'lineages' in row ? `batch ${row.threads} thread(s)` : `fit N = ${row.horizons}${row.intervals ? ' + intervals' : ''}`} ${format(row.peakMemoryMiB)} MiB`).join('; ')}`);
   lines.push('', `Streaming a specimen-form file (issue 6): ${streaming.rows} rows, ${format(streaming.megabytes)} MB, read and summarised in ${format(streaming.seconds)} s, peak resident memory ${format(streaming.peakResidentMiB)} MiB (own process)`);
+  lines.push('Every command that reads the samples file, on the same file (each in its own process):');
+  lines.push(table([['command', 'seconds', 'peak resident MiB'], ...streaming.commands.map((row) => [row.command, format(row.seconds), format(row.peakResidentMiB)])]));
   if (!smoke) lines.push('', `Calibration: ${JSON.stringify(calibration).slice(0, 200)}`);
   lines.push('', 'Targets (issue 7)');
   lines.push(table([

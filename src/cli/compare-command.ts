@@ -2,6 +2,7 @@ import { join } from 'node:path';
 import { ageFunction, hasAgeUncertainty, readAgeModel, sedimentationRates, type AgeModel } from '../data/age-model.js';
 import { usageError } from '../data/errors.js';
 import { readTable } from '../data/read-table.js';
+import type { SampleSet } from '../data/samples.js';
 import { WarningLog } from '../data/warnings.js';
 import { ageMonteCarlo, summariseDraws, type CandidateSpread, type RankedCandidate } from '../compare/age-uncertainty.js';
 import { compareTraits, lineagesByTrait, type ComparisonRun, type TraitComparison } from '../compare/compare-sections.js';
@@ -14,7 +15,7 @@ import { modelsCsv } from '../render/models-csv.js';
 import { alignColumns, lineageTable } from '../render/text-table.js';
 import { formatNumber } from '../render/units.js';
 import { resolveModels } from './fit-command.js';
-import { loadLineages, readInput, type InputText, type SampleFileOptions } from './input.js';
+import { lineagesOf, loadSamplesStreamed, readInput, terminalProgress, type InputText, type SampleFileOptions, type StreamedInput } from './input.js';
 import { toolVersion } from './version.js';
 import { prepareOutputFolder, writeAtomically } from './write-output.js';
 
@@ -101,7 +102,13 @@ export function extrapolatedLineageWords(lineages: readonly Lineage[]): string {
  * point estimates move. Adds `age_model` and `age_uncertainty` to the fit
  * document and returns the text block for the terminal (empty without draws).
  */
-export function fitAgeDraws(file: string, options: AgeModelOptions & SampleFileOptions & { models?: string }, fits: readonly LineageFit[], document: Record<string, unknown>): string {
+export function fitAgeDraws(
+  file: string,
+  options: AgeModelOptions & SampleFileOptions & { models?: string },
+  fits: readonly LineageFit[],
+  document: Record<string, unknown>,
+  samples: SampleSet,
+): string {
   const { draws, seed } = parseDrawOptions(options);
   const { ageModel, ageInput } = options.ageModel ? ageModelHook(file, options) : { ageModel: null, ageInput: null };
   if (!ageModel || !ageInput) return '';
@@ -118,11 +125,11 @@ export function fitAgeDraws(file: string, options: AgeModelOptions & SampleFileO
   const extrapolated = extrapolatedLineageWords(fits.map((fit) => fit.lineage));
   if (extrapolated) lines.push(extrapolated);
   if (draws === 0) return lines.join('\n');
-  if (file === '-') throw usageError('--age-draws needs the samples in a file (stdin cannot be read again for each draw)');
-  const input = readInput(file);
+  // The horizons were read once (streamed); each draw only places them again.
+  const samplesFile = file === '-' ? 'stdin' : file;
   const { models } = resolveModels(options.models);
   const perDraw = ageMonteCarlo(ageModel, draws, seed, (drawn) =>
-    loadLineages(input, options, new WarningLog(), { ageOf: ageFunction(drawn, { extrapolate: options.extrapolate, samplesFile: input.name }) })
+    lineagesOf(samples, options, new WarningLog(), { ageOf: ageFunction(drawn, { extrapolate: options.extrapolate, samplesFile }) })
       .map((lineage) => fitLineage(lineage, models, { intervals: false })));
   const summaries = fits.map((fit) => {
     const name = lineageName(fit.lineage);
@@ -195,16 +202,24 @@ function candidates(comparison: TraitComparison): RankedCandidate[] {
   }));
 }
 
-/** Read the files, compare the sections of every trait, and build the document (no output). */
-export function runCompare(file: string, options: CompareCommandOptions): CompareRun {
+/**
+ * Read the files, compare the sections of every trait, and build the
+ * document (no output). The samples file is read once, as a stream (bounded
+ * memory for specimen files of millions of rows; "-" reads stdin); the
+ * lineages are assembled from its horizons again for every age-model draw.
+ *
+ * @param read the samples file already read (the report's fit read it), so it is not read again
+ */
+export async function runCompare(file: string, options: CompareCommandOptions, read?: StreamedInput): Promise<CompareRun> {
   const warnings = new WarningLog();
-  const input = readInput(file);
-  const hook = ageModelHook(file, options);
-  const age = hook.ageModel && hook.ageInput ? { model: hook.ageModel, input: hook.ageInput } : null;
+  // Usage first (no point reading a large file for a mistyped option), then the samples, then the age model.
   const { draws, seed } = parseDrawOptions(options);
   const { name: modelSet, models } = resolveModels(options.models);
+  const { input, samples } = read ?? (await loadSamplesStreamed(file, options, terminalProgress(file)));
+  const hook = ageModelHook(file, options);
+  const age = hook.ageModel && hook.ageInput ? { model: hook.ageModel, input: hook.ageInput } : null;
   const lineagesUnder = (model: AgeModel | null, log: WarningLog): Lineage[] =>
-    loadLineages(input, options, log, model ? { ageOf: ageFunction(model, { extrapolate: options.extrapolate, samplesFile: input.name }) } : {});
+    lineagesOf(samples, options, log, model ? { ageOf: ageFunction(model, { extrapolate: options.extrapolate, samplesFile: input.name }) } : {});
   const lineages = lineagesUnder(age?.model ?? null, warnings);
   if (age) warnUnusedAgeModel(lineages, age.model, warnings);
   const run = compareTraits(lineages, models, { intervals: options.intervals !== false });
@@ -276,7 +291,7 @@ export function sectionDocuments(comparison: TraitComparison, models: ReturnType
 
 /** `stratotrend compare FILE`: print the comparison tables (or JSON) and write outputs with --out. */
 export async function compareCommand(file: string, options: CompareCommandOptions): Promise<void> {
-  const result = runCompare(file, options);
+  const result = await runCompare(file, options);
   const written: string[] = [];
   if (options.out) {
     const inputs = [file, ...(options.ageModel ? [options.ageModel] : [])];

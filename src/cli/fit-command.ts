@@ -9,7 +9,7 @@ import { fitDocument, type Provenance } from '../render/fit-document.js';
 import { modelsCsv } from '../render/models-csv.js';
 import { adequacyText, ratesText } from '../render/extensions-text.js';
 import { lineageTable } from '../render/text-table.js';
-import { loadLineages, loadLineagesStreamed, readInput, terminalProgress, type InputText, type SampleFileOptions } from './input.js';
+import { loadLineages, loadLineagesStreamed, readInput, terminalProgress, type InputText, type SampleFileOptions, type StreamedInput } from './input.js';
 import type { Lineage } from '../lineage.js';
 import { fitLineages } from '../parallel/fit-lineages.js';
 import { fittingProgress } from './fit-progress.js';
@@ -58,6 +58,12 @@ export interface FitRun {
   readonly warnings: WarningLog;
   /** Rates, adequacy and left-out models per lineage (shift/covariate options), in `fits` order. */
   readonly extras?: readonly LineageExtras[];
+  /**
+   * The samples file as read (its horizons before the age model places them),
+   * set by {@link runFitStreamed}: `--age-draws` and the report's comparison
+   * and power analyses reuse it instead of reading the file (or stdin) again.
+   */
+  readonly read?: StreamedInput;
 }
 
 /** Read the file, fit every lineage, and build the result document (no output). */
@@ -77,7 +83,7 @@ export async function runFitStreamed(file: string, options: FitCommandOptions): 
   const warnings = new WarningLog();
   const { ageModelHook } = await import('./compare-command.js');
   const { extra } = ageModelHook(file, options);
-  const { input, lineages: read } = await loadLineagesStreamed(file, options, warnings, extra, terminalProgress(file));
+  const { input, samples, lineages: read } = await loadLineagesStreamed(file, options, warnings, extra, terminalProgress(file));
   const lineages = options.covariateFile ? attachCovariates(read, options.covariateFile) : read;
   // Many lineages are fitted on worker threads (same numbers, input order; see src/parallel/fit-lineages.ts).
   const { models } = resolveModels(options.models);
@@ -85,7 +91,7 @@ export async function runFitStreamed(file: string, options: FitCommandOptions): 
     threads: options.threads,
     onProgress: fittingProgress(lineages.length, options),
   });
-  return fitLoaded(input, lineages, options, warnings, fits);
+  return { ...fitLoaded(input, lineages, options, warnings, fits), read: { input, samples } };
 }
 
 /** Fit read lineages and build the result document (no output). */
@@ -141,7 +147,7 @@ export async function fitCommand(file: string, options: FitCommandOptions): Prom
   const run = await runFitStreamed(file, options);
   // Age model: extrapolated horizons in words, and the Monte Carlo over tie ages (--age-draws).
   const { fitAgeDraws } = await import('./compare-command.js');
-  const ageText = fitAgeDraws(file, options, run.fits, run.document);
+  const ageText = run.read ? fitAgeDraws(file, options, run.fits, run.document, run.read.samples) : '';
   const compilation = options.summary ? await import('./compilation-output.js') : null;
   const summary = compilation ? compilation.addCompilation(run) : null;
   // Figures load their module (and, when drawing, the chart stack) only with --out.

@@ -1,7 +1,7 @@
 import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import { InputError } from '../data/errors.js';
-import { readSamples, type SampleOptions } from '../data/samples.js';
+import { readSamples, type SampleOptions, type SampleSet } from '../data/samples.js';
 import { decodeText, readTable } from '../data/read-table.js';
 import { streamSampleFile, type StreamProgress } from '../data/stream-samples.js';
 import type { WarningLog } from '../data/warnings.js';
@@ -74,28 +74,23 @@ export function loadLineages(
   const delimiter = delimiterOption(options.delimiter);
   const table = readTable(input.text, input.name, { delimiter });
   const sampleOptions: SampleOptions = { log: options.log, decimalComma: options.decimalComma };
-  const samples = readSamples(table, sampleOptions);
-  return buildLineages(samples, {
-    pool: options.pool,
-    timeUnit: timeUnitOption(options.timeUnit),
-    warnings,
-    ...extra,
-  });
+  return lineagesOf(readSamples(table, sampleOptions), options, warnings, extra);
+}
+
+/** A samples file read as a stream: its name and checksum, and the horizons (no text kept). */
+export interface StreamedInput {
+  readonly input: Omit<InputText, 'text'>;
+  readonly samples: SampleSet;
 }
 
 /**
  * Read a samples file as a stream (bounded memory for specimen files of
- * millions of rows; see `streamSampleFile`) and assemble its lineages. Gives
- * the same lineages, messages and line numbers as {@link readInput} +
- * {@link loadLineages}; "-" reads stdin.
+ * millions of rows; see `streamSampleFile`): the horizons it gives, which
+ * {@link lineagesOf} assembles into lineages as often as needed (once per
+ * age-model draw in `compare` and `fit --age-draws`). Same messages and line
+ * numbers as {@link readInput} + {@link loadLineages}; "-" reads stdin.
  */
-export async function loadLineagesStreamed(
-  path: string,
-  options: SampleFileOptions,
-  warnings: WarningLog,
-  extra: Pick<LineageOptions, 'ageOf'> = {},
-  onProgress?: (progress: StreamProgress) => void,
-): Promise<{ input: Omit<InputText, 'text'>; lineages: Lineage[] }> {
+export async function loadSamplesStreamed(path: string, options: SampleFileOptions, onProgress?: (progress: StreamProgress) => void): Promise<StreamedInput> {
   const name = path === '-' ? 'stdin' : path;
   const delimiter = delimiterOption(options.delimiter);
   let streamed;
@@ -108,13 +103,29 @@ export async function loadLineagesStreamed(
     if (code === 'EACCES') throw new InputError('cannot be read (permission denied)', { file: path });
     throw error;
   }
-  const lineages = buildLineages(streamed.samples, {
+  return { input: { name, sha256: streamed.sha256 }, samples: streamed.samples };
+}
+
+/** Assemble the lineages of read samples (pooling, time unit, the age model's `ageOf`). */
+export function lineagesOf(samples: SampleSet, options: SampleFileOptions, warnings: WarningLog, extra: Pick<LineageOptions, 'ageOf'> = {}): Lineage[] {
+  return buildLineages(samples, {
     pool: options.pool,
     timeUnit: timeUnitOption(options.timeUnit),
     warnings,
     ...extra,
   });
-  return { input: { name, sha256: streamed.sha256 }, lineages };
+}
+
+/** {@link loadSamplesStreamed} then {@link lineagesOf}. */
+export async function loadLineagesStreamed(
+  path: string,
+  options: SampleFileOptions,
+  warnings: WarningLog,
+  extra: Pick<LineageOptions, 'ageOf'> = {},
+  onProgress?: (progress: StreamProgress) => void,
+): Promise<StreamedInput & { lineages: Lineage[] }> {
+  const streamed = await loadSamplesStreamed(path, options, onProgress);
+  return { ...streamed, lineages: lineagesOf(streamed.samples, options, warnings, extra) };
 }
 
 /**

@@ -10,7 +10,7 @@ import { designOf, pooledWithinSd } from '../simulate/design.js';
 import { defaultDrifts, powerAnalysis, type PowerProgress, type PowerReport } from '../simulate/power.js';
 import { poolRunner } from '../simulate/run-replicates.js';
 import { parseSeed } from '../simulate/seeds.js';
-import { loadLineagesStreamed, type SampleFileOptions } from './input.js';
+import { lineagesOf, loadLineagesStreamed, type SampleFileOptions, type StreamedInput } from './input.js';
 import { toolVersion } from './version.js';
 import { refuseInputPath, writeAtomically } from './write-output.js';
 
@@ -117,11 +117,15 @@ export interface PowerRun {
   readonly notes: string[];
 }
 
-/** Read the file, fit the directional walk, and run the power analysis on the chosen lineage's design. */
-export async function runPower(file: string, options: PowerCommandOptions, progress?: PowerProgress): Promise<PowerRun> {
+/**
+ * Read the file, fit the directional walk, and run the power analysis on the chosen lineage's design.
+ *
+ * @param read the samples file already read (the report's fit read it), so it is not read again
+ */
+export async function runPower(file: string, options: PowerCommandOptions, progress?: PowerProgress, read?: StreamedInput): Promise<PowerRun> {
   const warnings = new WarningLog();
-  // Streamed: a specimen file of millions of rows is read in bounded memory.
-  const { input, lineages } = await loadLineagesStreamed(file, options, warnings);
+  // Streamed: a specimen file of millions of rows is read in bounded memory (or already read, by the report's fit).
+  const { input, lineages } = read ? { input: read.input, lineages: lineagesOf(read.samples, options, warnings) } : await loadLineagesStreamed(file, options, warnings);
   const { lineage, note } = chooseLineage(lineages, options.lineage, input.name);
   const notes: string[] = note ? [note] : [];
   const replicates = wholeOption(options.replicates, '--replicates', 200, 20, 100000);

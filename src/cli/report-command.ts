@@ -5,6 +5,7 @@ import { asFitDocument, lineageTitle, type FitDocumentView } from '../render/rep
 import { reportPage, type ReportFigure, type ReportInput } from '../render/report/report-page.js';
 import { sketchTrajectory } from '../render/report/sketch-figure.js';
 import { runFitStreamed, type FitCommandOptions, type FitRun } from './fit-command.js';
+import type { StreamedInput } from './input.js';
 import { refuseInputPath, writeAtomically } from './write-output.js';
 
 /** Options of `stratotrend report` (the fit options plus where and how to write the page). */
@@ -210,13 +211,18 @@ async function powerFigures(powers: readonly unknown[], format: 'svg' | 'png'): 
 }
 
 /** Run the optional analyses asked for on the samples file: section comparison and power. */
-async function runAnalyses(file: string, document: FitDocumentView, options: ReportCommandOptions): Promise<{ comparison?: unknown; power: unknown[]; seeds: Record<string, unknown> }> {
+async function runAnalyses(
+  file: string,
+  document: FitDocumentView,
+  options: ReportCommandOptions,
+  read?: StreamedInput,
+): Promise<{ comparison?: unknown; power: unknown[]; seeds: Record<string, unknown> }> {
   const sampleOptions = { log: options.log, pool: options.pool, timeUnit: options.timeUnit, delimiter: options.delimiter, decimalComma: options.decimalComma };
   const seeds: Record<string, unknown> = {};
   let comparison: unknown;
   if (options.compare) {
     const { runCompare } = await import('./compare-command.js');
-    comparison = runCompare(file, { ...sampleOptions, models: options.models, intervals: options.intervals !== false, ageModel: options.ageModel, extrapolate: options.extrapolate }).document;
+    comparison = (await runCompare(file, { ...sampleOptions, models: options.models, intervals: options.intervals !== false, ageModel: options.ageModel, extrapolate: options.extrapolate }, read)).document;
   }
   const power: unknown[] = [];
   if (options.power) {
@@ -225,7 +231,7 @@ async function runAnalyses(file: string, document: FitDocumentView, options: Rep
     seeds.power = seed;
     for (const lineage of document.lineages) {
       try {
-        const result = await runPower(file, { ...sampleOptions, lineage: lineageTitle(lineage), replicates: options.powerReplicates, seed, coverage: false, quiet: true });
+        const result = await runPower(file, { ...sampleOptions, lineage: lineageTitle(lineage), replicates: options.powerReplicates, seed, coverage: false, quiet: true }, undefined, read);
         power.push(result.document);
       } catch (error) {
         // A lineage whose design cannot be simulated (e.g. the directional walk does not fit) keeps the rest of the report.
@@ -319,7 +325,6 @@ export async function reportCommand(file: string, options: ReportCommandOptions)
     const saved = readFitJson(file);
     html = await buildReport(saved.document, options, { source: { file, sha256: saved.sha256 } });
   } else {
-    if (file === '-' && (options.compare || options.power)) throw usageError('--compare and --power read the samples file again; give a file name, not "-"');
     if (options.power) {
       // Checked before the fit, so a bad value fails at once and names the report's own option.
       const { wholeOption, seedOption } = await import('./power-command.js');
@@ -330,7 +335,8 @@ export async function reportCommand(file: string, options: ReportCommandOptions)
     const { out: _out, figureFormat: _format, attach: _attach, compare: _compare, power: _power, powerReplicates: _replicates, seed: _seed, ...fitOptions } = options;
     const run = await runFitStreamed(file, { ...fitOptions, quiet: true });
     const document = asFitDocument(run.document);
-    const analyses = await runAnalyses(file, document, options);
+    // The comparison and power analyses reuse the horizons the fit read (the file, or stdin, is read once).
+    const analyses = await runAnalyses(file, document, options, run.read);
     html = await buildReport(document, options, { analyses });
     warningLines = run.warnings.list()
       .filter((warning) => warning.category !== 'at-bound' && warning.category !== 'not-compared')

@@ -5,7 +5,7 @@ import { lineageName, type Lineage } from '../lineage.js';
 import { findModel } from '../models/registry.js';
 import { designFromOptions, designLineage } from '../simulate/design.js';
 import { simulatedTable } from '../simulate/sample-table.js';
-import { loadLineages, readInput, type SampleFileOptions } from './input.js';
+import { loadLineagesStreamed, terminalProgress, type SampleFileOptions } from './input.js';
 import { numberOption, seedOption, wholeOption } from './power-command.js';
 import { refuseInputPath, writeAtomically } from './write-output.js';
 
@@ -45,7 +45,7 @@ export function parseParameters(text: string | undefined, known: readonly string
  * options, written as a samples CSV the tool reads back. Parameters not given
  * are taken from the model fitted to each lineage of FILE.
  */
-export function simulateCommand(file: string | undefined, options: SimulateCommandOptions): void {
+export async function simulateCommand(file: string | undefined, options: SimulateCommandOptions): Promise<void> {
   const model = findModel(options.model ?? 'directional-walk');
   if (!model) throw usageError(`--model: unknown model "${options.model}"`);
   const names = model.parameters.map((spec) => spec.name);
@@ -62,7 +62,8 @@ export function simulateCommand(file: string | undefined, options: SimulateComma
   const designOptionsGiven = [options.horizons, options.spacing, options.n, options.withinVariance].some((value) => value !== undefined);
   if (file !== undefined) {
     if (designOptionsGiven) throw usageError('give a FILE or the design options (--horizons, --spacing, --n, --within-variance), not both');
-    designs = loadLineages(readInput(file), options, new WarningLog());
+    // Read as a stream: only the design (times, n, within variances) is needed, in bounded memory.
+    designs = (await loadLineagesStreamed(file, options, new WarningLog(), {}, terminalProgress(file))).lineages;
   } else {
     const design = designFromOptions({
       horizons: wholeOption(options.horizons, '--horizons', 25, 3, 100000),

@@ -2,8 +2,8 @@ import { spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, writeFileSync, existsSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { describe, expect, it } from 'vitest';
-import { runCompare, sectionDocuments } from '../../src/cli/compare-command.js';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { runCompare, sectionDocuments, type CompareRun } from '../../src/cli/compare-command.js';
 import { directionalWalk } from '../../src/models/directional-walk.js';
 
 const heights = new URL('../../sample-data/locality-heights.csv', import.meta.url).pathname;
@@ -13,8 +13,12 @@ const folder = mkdtempSync(join(tmpdir(), 'stratotrend-compare-'));
 type Json = Record<string, any>;
 
 describe('stratotrend compare', () => {
-  const run = runCompare(heights, { ageModel: ties, intervals: false });
-  const document = run.document as Json;
+  let run: CompareRun;
+  let document: Json;
+  beforeAll(async () => {
+    run = await runCompare(heights, { ageModel: ties, intervals: false });
+    document = run.document as Json;
+  });
 
   // The fields the issue names: {"traits": [{"trait", "hypotheses": [{"id", "model", "k", "logLik", "aicc", "weight"}]}]}.
   it('writes the JSON fields the checks read', () => {
@@ -47,13 +51,13 @@ describe('stratotrend compare', () => {
     expect(summed('separate')).toBeGreaterThan(0.9);
   });
 
-  it('refuses heights outside the ties without --extrapolate, and flags them with it', () => {
+  it('refuses heights outside the ties without --extrapolate, and flags them with it', async () => {
     const shortTies = join(folder, 'short-ties.csv');
     writeFileSync(shortTies, readFileSync(ties, 'utf8').replace('Quarrel Hollow,120,5.60,0.04\n', ''));
     const refused = spawnSync(process.execPath, [launcher, 'compare', heights, '--age-model', shortTies, '--no-intervals'], { encoding: 'utf8' });
     expect(refused.status).toBe(1);
     expect(refused.stderr).toMatch(/locality-heights\.csv line \d+: height \S+ in section "Quarrel Hollow" lies outside the age model's ties \(0 to 80\).*--extrapolate/);
-    const allowed = runCompare(heights, { ageModel: shortTies, extrapolate: true, intervals: false, models: 'random-walk' });
+    const allowed = await runCompare(heights, { ageModel: shortTies, extrapolate: true, intervals: false, models: 'random-walk' });
     const section = (allowed.document as Json).traits[0].sections[0];
     expect(section.extrapolated_horizons).toBeGreaterThan(0);
     expect(allowed.warnings.has('extrapolated-age')).toBe(true);
@@ -87,8 +91,8 @@ describe('stratotrend compare', () => {
     });
   });
 
-  it('composite: one lineage per trait on the common timescale, coeval horizons merged when asked', () => {
-    const composite = runCompare(heights, { ageModel: ties, intervals: false, composite: true, models: 'random-walk' });
+  it('composite: one lineage per trait on the common timescale, coeval horizons merged when asked', async () => {
+    const composite = await runCompare(heights, { ageModel: ties, intervals: false, composite: true, models: 'random-walk' });
     const lineages = (composite.document as Json).composite;
     expect(lineages).toHaveLength(2);
     expect(lineages[0].horizons).toBe(38);

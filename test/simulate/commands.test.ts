@@ -14,9 +14,9 @@ describe('simulate and power commands', () => {
 
   it('simulate writes a file that power reads, and the same seed writes the same bytes', async () => {
     const options = { parameters: 'ancestral_mean=5,drift=0.3,step_variance=0.02', horizons: '14', spacing: '0.25', n: '12', withinVariance: '0.3', seed: '9', out: file };
-    simulateCommand(undefined, options);
+    await simulateCommand(undefined, options);
     const first = readFileSync(file, 'utf8');
-    simulateCommand(undefined, options);
+    await simulateCommand(undefined, options);
     expect(readFileSync(file, 'utf8')).toBe(first);
     expect(first.split('\n')[0]).toBe('section,trait,time,n,mean,sd');
     const run = await runPower(file, { replicates: '20', drifts: '0,0.5', coverage: false, threads: '1', seed: '3' });
@@ -31,8 +31,8 @@ describe('simulate and power commands', () => {
     expect(document.false_trend).toEqual({ p_best: document.grid[0].p_best, p_weight: document.grid[0].p_weight, p_lrt: document.grid[0].p_lrt });
   });
 
-  it('refuses unknown parameter names and missing parameters with usage errors', () => {
+  it('refuses unknown parameter names and missing parameters with usage errors', async () => {
     expect(() => parseParameters('drift=1,speed=2', ['ancestral_mean', 'drift', 'step_variance'])).toThrow(InputError);
-    expect(() => simulateCommand(undefined, { parameters: 'drift=1' })).toThrow(/give ancestral_mean, step_variance/);
+    await expect(simulateCommand(undefined, { parameters: 'drift=1' })).rejects.toThrow(/give ancestral_mean, step_variance/);
   });
 });

@@ -21,6 +21,6 @@ export function defineSimulateCommand(program: Command): void {
     .option('--out <file>', 'write the CSV here instead of stdout')
     .action(async (file: string | undefined, options) => {
       const { simulateCommand } = await import('../simulate-command.js');
-      simulateCommand(file, options);
+      await simulateCommand(file, options);
     });
 }

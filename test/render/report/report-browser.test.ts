@@ -255,7 +255,7 @@ describe.skipIf(!executable)('HTML report with the optional analyses (section co
     folder = mkdtempSync(join(tmpdir(), 'stratotrend-report-analyses-'));
     const run = runFit('sample-data/shell-length.csv', { intervals: false });
     // Round trips through JSON text, as saved files would be.
-    comparison = JSON.parse(JSON.stringify(runCompare('sample-data/shell-length.csv', { intervals: false }).document));
+    comparison = JSON.parse(JSON.stringify((await runCompare('sample-data/shell-length.csv', { intervals: false })).document));
     power = JSON.parse(JSON.stringify((await runPower('sample-data/shell-length.csv', { replicates: '20', seed: '3', coverage: false })).document));
     const html = await buildReport(asFitDocument(run.document), {}, { analyses: { comparison, power: [power], seeds: { power: '3' } } });
     writeFileSync(join(folder, 'report.html'), html);

@@ -1,0 +1,131 @@
+/**
+ * Every command that reads a samples file reads it once, as a stream (issue
+ * 6: specimen files of a million rows in bounded memory): never whole with
+ * readFileSync, and never a second time for age-model draws or the report's
+ * analyses, so standard input works everywhere. The peak memory itself is
+ * measured by the benchmark (`npm run bench`), not here.
+ */
+import { mkdtempSync, readFileSync as realReadFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join, resolve } from 'node:path';
+import { afterEach, describe, expect, it, vi } from 'vitest';
+import { runCli, root } from '../robustness/cli.js';
+
+// Record every whole-file read and every streamed read (the modules under test import these names).
+const reads = vi.hoisted(() => ({ whole: [] as string[], streamed: [] as string[] }));
+vi.mock('node:fs', async (importOriginal) => {
+  const actual = await importOriginal<typeof import('node:fs')>();
+  const readFileSync = ((path: Parameters<typeof actual.readFileSync>[0], ...rest: unknown[]) => {
+    if (typeof path === 'string') reads.whole.push(resolve(path));
+    return (actual.readFileSync as (...args: unknown[]) => unknown)(path, ...rest);
+  }) as typeof actual.readFileSync;
+  return { ...actual, readFileSync, default: { ...actual, readFileSync } };
+});
+vi.mock('../../src/data/stream-samples.js', async (importOriginal) => {
+  const actual = await importOriginal<typeof import('../../src/data/stream-samples.js')>();
+  return {
+    ...actual,
+    streamSampleFile: (source: Parameters<typeof actual.streamSampleFile>[0], ...rest: [string, Parameters<typeof actual.streamSampleFile>[2]]) => {
+      reads.streamed.push(typeof source === 'string' ? resolve(source) : 'stream');
+      return actual.streamSampleFile(source, ...rest);
+    },
+  };
+});
+
+const { runCompare } = await import('../../src/cli/compare-command.js');
+const { simulateCommand } = await import('../../src/cli/simulate-command.js');
+const { reportCommand } = await import('../../src/cli/report-command.js');
+const { fitCommand } = await import('../../src/cli/fit-command.js');
+const { loadSamplesStreamed } = await import('../../src/cli/input.js');
+
+const shellLength = join(root, 'sample-data', 'shell-length.csv');
+const heights = join(root, 'sample-data', 'locality-heights.csv');
+const ties = join(root, 'sample-data', 'locality-ties.csv');
+const folder = mkdtempSync(join(tmpdir(), 'stratotrend-streamed-'));
+
+afterEach(() => {
+  reads.whole.length = 0;
+  reads.streamed.length = 0;
+});
+
+describe('samples files are streamed once by every command', () => {
+  it('compare streams the samples once, even with age-model draws, and reads only the small age model whole', async () => {
+    const run = await runCompare(heights, { ageModel: ties, ageDraws: '3', intervals: false, models: 'random-walk' });
+    expect(run.document).toHaveProperty('traits');
+    expect(reads.streamed).toEqual([heights]);
+    expect(reads.whole).not.toContain(heights);
+    expect(reads.whole).toContain(ties);
+  });
+
+  it('compare given the samples already read does not open the samples file at all', async () => {
+    const read = await loadSamplesStreamed(shellLength, {});
+    reads.streamed.length = 0;
+    const given = await runCompare(join(folder, 'no-such-file.csv'), { intervals: false }, read);
+    const own = await runCompare(shellLength, { intervals: false });
+    expect(JSON.stringify(given.document)).toBe(JSON.stringify(own.document));
+    expect(reads.streamed).toEqual([shellLength]);
+  });
+
+  it('simulate streams the design file', async () => {
+    await simulateCommand(shellLength, { model: 'random-walk', out: join(folder, 'simulated.csv') });
+    expect(reads.streamed).toEqual([shellLength]);
+    expect(reads.whole).not.toContain(shellLength);
+  });
+
+  it('report with --compare and --power streams the samples once for the fit and both analyses', async () => {
+    const out = join(folder, 'report.html');
+    const write = vi.spyOn(process.stdout, 'write').mockImplementation(() => true);
+    try {
+      await reportCommand(shellLength, { intervals: false, compare: true, power: true, powerReplicates: '20', out });
+    } finally {
+      write.mockRestore();
+    }
+    expect(reads.streamed).toEqual([shellLength]);
+    expect(reads.whole).not.toContain(shellLength);
+    expect(realReadFileSync(out, 'utf8')).toMatch(/<html/i);
+  });
+
+  it('fit --age-draws streams the samples once (the draws place the same horizons again)', async () => {
+    const write = vi.spyOn(process.stdout, 'write').mockImplementation(() => true);
+    try {
+      await fitCommand(heights, { ageModel: ties, ageDraws: '3', intervals: false, models: 'random-walk', json: true });
+    } finally {
+      write.mockRestore();
+    }
+    expect(reads.streamed).toEqual([heights]);
+    expect(reads.whole).not.toContain(heights);
+  });
+});
+
+describe('standard input ("-") works wherever a samples file does', () => {
+  const json = (text: string): Record<string, any> => JSON.parse(text);
+  const withoutInputs = (document: Record<string, any>): string => JSON.stringify({ ...document, provenance: { ...document.provenance, inputs: null } });
+
+  it('fit --age-draws from stdin gives the same age-uncertainty summary as from the file', () => {
+    const args = ['--age-model', ties, '--age-draws', '4', '--no-intervals', '--json'];
+    const fromFile = runCli(['fit', heights, ...args], root);
+    const fromStdin = runCli(['fit', '-', ...args], root, realReadFileSync(heights));
+    expect(fromStdin.stderr).toBe(fromFile.stderr);
+    expect(fromStdin.status).toBe(0);
+    expect(json(fromStdin.stdout).age_uncertainty).toEqual(json(fromFile.stdout).age_uncertainty);
+  });
+
+  it('compare and simulate read stdin like a file', () => {
+    const compareFile = runCli(['compare', heights, '--age-model', ties, '--no-intervals', '--json'], root);
+    const compareStdin = runCli(['compare', '-', '--age-model', ties, '--no-intervals', '--json'], root, realReadFileSync(heights));
+    expect(compareStdin.status).toBe(0);
+    expect(withoutInputs(json(compareStdin.stdout))).toBe(withoutInputs(json(compareFile.stdout)));
+    const simulateFile = runCli(['simulate', shellLength, '--model', 'random-walk', '--seed', '5'], root);
+    const simulateStdin = runCli(['simulate', '-', '--model', 'random-walk', '--seed', '5'], root, realReadFileSync(shellLength));
+    expect(simulateStdin.status).toBe(0);
+    expect(simulateStdin.stdout).toBe(simulateFile.stdout);
+  });
+
+  it('report - --compare --power reads stdin once and writes the page', () => {
+    const out = join(folder, 'stdin-report.html');
+    const run = runCli(['report', '-', '--no-intervals', '--compare', '--power', '--power-replicates', '20', '--out', out], root, realReadFileSync(shellLength));
+    expect(run.stderr).toBe('');
+    expect(run.status).toBe(0);
+    expect(realReadFileSync(out, 'utf8')).toMatch(/Comparison of sections|compare/i);
+  });
+});
