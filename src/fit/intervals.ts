@@ -289,6 +289,7 @@ export function intervalOptions(value: boolean | string | undefined): { interval
  */
 export function restrictedEstimates(evaluator: LikelihoodEvaluator): Record<string, number> {
   const evaluate = (process: number[]): number => restrictedLogLik(evaluator.whiten(process));
-  const best = maximiseProcess(evaluate, evaluator.model.process, evaluator.lineage, { points: 24 });
+  // Polished like the reported estimates: a bootstrap drawn from it is then invariant to rounding-level changes of the data.
+  const best = maximiseProcess(evaluate, evaluator.model.process, evaluator.lineage, { points: 24, polish: true });
   return evaluator.model.toParameters(evaluator.details(best.process).coefficients, best.process, evaluator.lineage);
 }

@@ -3,13 +3,16 @@ import type { ProcessAxis } from '../models/model.js';
 
 /**
  * Step, in ln units of each process parameter, of the finite-difference
- * stencils. Large enough that rounding noise in the log-likelihood (about
- * 1e-15 of its terms) gives a gradient noise near 1e-13; the five-point
- * gradient's truncation error is of order step^4 ≈ 1e-8 times the fifth
- * derivative, and it is the same function of the surface for any two data
- * sets that differ only by rounding, so it moves the root identically.
+ * stencils. Rounding noise in the log-likelihood (about 1e-15 of its terms;
+ * the evaluator centres the trait) gives a gradient noise near 1e-12 / step
+ * ≈ 5e-13; the five-point gradient's truncation error, step^4 / 30 times the
+ * fifth derivative, moves the root by about 5e-13 relative (for stasis with
+ * e = 0, exactly step^4 / 30 of the variance: 3e-10 at step 1e-2, which the
+ * closed-form test in test/fit/closed-forms.test.ts would catch). It is also
+ * the same function of the surface for any two data sets that differ only by
+ * rounding, so it does not break the invariances.
  */
-const stencilStep = 1e-2;
+const stencilStep = 2e-3;
 /** Largest Newton step (ln units) accepted: the value-only search is already within ~1e-7 of the root. */
 const largestStep = 1e-3;
 /** Newton iterations at most; two normally reach the root to rounding. */

@@ -151,13 +151,74 @@ export function maximiseProcess(
     return { logLik: result.logLik, process: result.process, positions: [position, ...result.positions] };
   };
   if (options.start !== undefined) return gridAndPolish(evaluate, axes, lineage, points, fixed, options.start);
-  const result = recurse(0, null);
+  const result = preferEnds(evaluate, axes, lineage, fixed, recurse(0, null));
   if (options.polish) {
     const free = result.positions.flatMap((position, level) => (position === 'interior' && !fixed.has(level) ? [level] : []));
     const polished = polishMaximum(evaluate, axes, lineage, result, free);
     return { process: polished.process, logLik: polished.logLik, positions: result.positions };
   }
   return { process: result.process, logLik: result.logLik, positions: result.positions };
+}
+
+/**
+ * Log-likelihood differences smaller than this (relative to |logL|, at least
+ * this absolute) are rounding: the data cannot tell the two points apart.
+ */
+const flatTolerance = 1e-10;
+
+/**
+ * Move an interior maximum to a bound or limit of an axis when the
+ * likelihood there, the other axes unchanged, is the same to rounding
+ * ({@link flatTolerance}): a variance indistinguishable from 0 is reported
+ * as 0, and an ou alpha on the plateau where e^(−alpha·Δt) has underflowed
+ * (ou indistinguishable from stasis; the other axes maximised again at the
+ * limit, since it is approached along a ridge) is reported at its alpha → ∞ limit,
+ * instead of an arbitrary point of the plateau. Without this the reported
+ * value on a plateau depends on the search's path, so it would change with
+ * the unit of time or a constant added to the trait (issue 6 invariances).
+ */
+function preferEnds(
+  evaluate: (process: number[]) => number,
+  axes: readonly ProcessAxis[],
+  lineage: Lineage,
+  fixed: ReadonlyMap<number, number>,
+  found: Found,
+): Found {
+  if (!Number.isFinite(found.logLik)) return found;
+  let result = found;
+  const tolerance = flatTolerance * Math.max(1, Math.abs(found.logLik));
+  for (let level = 0; level < axes.length; level++) {
+    if (fixed.has(level) || result.positions[level] !== 'interior') continue;
+    const axis = axes[level];
+    const [lower, upper] = axis.range(lineage, result.process.slice(0, level));
+    const ends: Array<[number, AxisPosition]> = [];
+    if (axis.allowZero) ends.push([0, 'zero']);
+    else if (axis.limitNames?.[0]) ends.push([lower, 'range-lower']);
+    if (axis.limitNames?.[1]) ends.push([upper, 'range-upper']);
+    const othersFree = axes.some((_, other) => other !== level && !fixed.has(other));
+    for (const [value, position] of ends) {
+      let process = result.process.slice();
+      process[level] = value;
+      let logLik = evaluate(process);
+      let positions = result.positions.slice();
+      positions[level] = position;
+      if (!(logLik >= found.logLik - tolerance) && othersFree && position !== 'zero' && axis.limitNames?.[position === 'range-upper' ? 1 : 0]) {
+        // A limit can be approached along a ridge (ou: alpha and step_variance growing together, the
+        // stationary variance fixed), so there the other axes are maximised again. (A bound 0 allowed
+        // on the axis was already searched over the other axes by the nested search.)
+        const ridge = maximiseProcess(evaluate, axes, lineage, { fixed: new Map([...fixed, [level, value]]), points: 12 });
+        process = ridge.process;
+        logLik = ridge.logLik;
+        positions = ridge.positions.slice();
+        positions[level] = position;
+      }
+      if (Number.isFinite(logLik) && logLik >= found.logLik - tolerance) {
+        result = { process, logLik, positions };
+        break;
+      }
+    }
+  }
+  return result;
 }
 
 /**

@@ -19,6 +19,7 @@ import { runFit, type FitCommandOptions } from '../../src/cli/fit-command.js';
 import { lineageTable } from '../../src/render/text-table.js';
 import { modelsCsv } from '../../src/render/models-csv.js';
 import { nonFinitePaths, nonFiniteText } from './finite.js';
+import { createRandom } from '../../src/simulate/random.js';
 
 const folder = mkdtempSync(join(tmpdir(), 'stratotrend-numbers-'));
 let counter = 0;
@@ -149,6 +150,45 @@ describe('invariances (1e-8 relative)', () => {
     const shifted = fitDocument(write(table({ age: (a) => Math.round(a * 1000) })), { timeUnit: 'ka' });
     // A rate per Myr is 1000 times a rate per kyr: value_kyr = value_Myr / 1000 for per-time parameters.
     expectSameFit(shifted, reference, { timeFactor: 1 / 1000 });
+  });
+});
+
+describe('invariances on seeded random lineages (1e-8 relative, every interval method)', () => {
+  // Four kinds of lineage (stasis, random walk, trend, approach to an optimum), 10-39 horizons,
+  // uneven spacing, sample sizes and spreads drawn from a seeded generator: each fitted as given,
+  // with 1000 added to the trait, with time in units 2.5 times smaller, and in reverse row order.
+  const lineageRows = (seed: number): number[][] => {
+    const random = createRandom(seed);
+    const kind = seed % 4;
+    const size = 10 + Math.floor(random.uniform() * 30);
+    let value = 10;
+    let age = 20;
+    const rows: number[][] = [];
+    for (let i = 0; i < size; i++) {
+      age -= 0.1 + random.uniform() * 0.5;
+      value += kind === 0 ? 0 : kind === 1 ? 0.3 * random.normal() : kind === 2 ? 0.1 + 0.2 * random.normal() : 0.3 * (12 - value) + 0.2 * random.normal();
+      const n = 5 + Math.floor(random.uniform() * 20);
+      const sd = 0.5 + random.uniform();
+      const mean = (kind === 0 ? 10 + 0.2 * random.normal() : value) + (sd / Math.sqrt(n)) * random.normal();
+      rows.push([Number(age.toFixed(3)), n, Number(mean.toFixed(4)), Number(sd.toFixed(3))]);
+    }
+    return rows;
+  };
+  const methods: Array<[string, number[], FitCommandOptions]> = [
+    ['integrated (the default)', [1, 2, 3, 4, 5, 6, 7, 8], {}],
+    ['profile', [9, 10, 11, 12], { intervals: 'profile' }],
+    ['adjusted', [13, 14, 15, 16], { intervals: 'adjusted' }],
+    ['bootstrap', [17, 18], { intervals: 'bootstrap' }],
+    ['extended models', [19, 22], { models: 'extended', intervals: 'profile' }],
+  ];
+  it.each(methods)('%s', (_, seeds, options) => {
+    for (const seed of seeds) {
+      const rows = lineageRows(seed);
+      const original = fitDocument(write(rows), options);
+      expectSameFit(fitDocument(write(rows.map(([age, n, mean, sd]) => [age, n, mean + 1000, sd])), options), original, { shift: 1000 });
+      expectSameFit(fitDocument(write(rows.map(([age, n, mean, sd]) => [age * 2.5, n, mean, sd])), { ...options, timeUnit: 'u' }), original, { timeFactor: 1 / 2.5 });
+      expectSameFit(fitDocument(write([...rows].reverse()), options), original);
+    }
   });
 });
 
