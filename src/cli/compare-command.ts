@@ -17,7 +17,7 @@ import { formatNumber } from '../render/units.js';
 import { resolveModels } from './fit-command.js';
 import { lineagesOf, loadSamplesStreamed, readInput, terminalProgress, type InputText, type SampleFileOptions, type StreamedInput } from './input.js';
 import { toolVersion } from './version.js';
-import { prepareOutputFolder, writeAtomically } from './write-output.js';
+import { inputPaths, prepareOutputFolder, writeAtomically } from './write-output.js';
 
 /** Options of the age model, shared by `fit` and `compare`. */
 export interface AgeModelOptions {
@@ -294,7 +294,7 @@ export async function compareCommand(file: string, options: CompareCommandOption
   const result = await runCompare(file, options);
   const written: string[] = [];
   if (options.out) {
-    const inputs = [file, ...(options.ageModel ? [options.ageModel] : [])];
+    const inputs = inputPaths(file, options);
     const drawFigures = options.figure !== false && result.run.comparisons.length > 0;
     const figureNames = drawFigures ? result.run.comparisons.map((comparison, index) => `sections-${index + 1}-${slug(comparison.trait)}.png`) : [];
     const names = ['compare.csv', 'compare-estimates.csv', 'compare.json', ...(result.composites.length > 0 ? ['composite-models.csv'] : []), ...figureNames];

@@ -18,7 +18,7 @@ import { intervalOptions } from '../fit/intervals.js';
 import { attachCovariates, extensionSettings, extrasDocument, lineageExtras, modelsForLineage, searchProgress, type ExtensionOptions, type LineageExtras } from './fit-extensions.js';
 import type { FigureCommandOptions } from './render-command.js';
 import { toolVersion } from './version.js';
-import { prepareOutputFolder, writeAtomically } from './write-output.js';
+import { inputPaths, prepareOutputFolder, writeAtomically } from './write-output.js';
 
 /** Options of `stratotrend fit`. */
 export interface FitCommandOptions extends AgeModelOptions, SampleFileOptions, FigureCommandOptions, ExtensionOptions {
@@ -155,7 +155,7 @@ export async function fitCommand(file: string, options: FitCommandOptions): Prom
   const lineageDocuments = (run.document as { lineages: unknown[] }).lineages;
   const figurePlan = figures ? figures.planFigureFiles(lineageDocuments, options) : null;
   if (options.out) {
-    const folder = prepareOutputFolder(options.out, [file], ['models.csv', 'fit.json', ...(summary ? ['compilation.png'] : []), ...(figurePlan?.names ?? [])]);
+    const folder = prepareOutputFolder(options.out, inputPaths(file, options), ['models.csv', 'fit.json', ...(summary ? ['compilation.png'] : []), ...(figurePlan?.names ?? [])]);
     writeAtomically(join(folder, 'models.csv'), modelsCsv(run.fits));
     writeAtomically(join(folder, 'fit.json'), JSON.stringify(run.document, null, 2) + '\n');
     if (compilation && summary) await compilation.writeCompilationFigure(summary, folder);
@@ -171,7 +171,7 @@ export async function fitCommand(file: string, options: FitCommandOptions): Prom
   if (ageText && !options.json && !options.quiet) process.stdout.write('\n' + ageText + '\n');
   if (options.report) {
     const { writeReportForRun } = await import('./report-command.js');
-    await writeReportForRun(run, options.report, [file], options as { orientation?: string; drawModel?: string; smoothedBand?: boolean });
+    await writeReportForRun(run, options.report, inputPaths(file, options), options as { orientation?: string; drawModel?: string; smoothedBand?: boolean });
     if (!options.quiet && !options.json) process.stdout.write(`Wrote the report to ${options.report}\n`);
   }
   for (const warning of run.warnings.list()) {

@@ -6,7 +6,7 @@ import { reportPage, type ReportFigure, type ReportInput } from '../render/repor
 import { sketchTrajectory } from '../render/report/sketch-figure.js';
 import { runFitStreamed, type FitCommandOptions, type FitRun } from './fit-command.js';
 import type { StreamedInput } from './input.js';
-import { refuseInputPath, writeAtomically } from './write-output.js';
+import { inputPaths, refuseInputPath, writeAtomically } from './write-output.js';
 
 /** Options of `stratotrend report` (the fit options plus where and how to write the page). */
 export interface ReportCommandOptions extends FitCommandOptions {
@@ -318,7 +318,7 @@ export async function writeReportForRun(
 export async function reportCommand(file: string, options: ReportCommandOptions): Promise<void> {
   const path = options.out ?? defaultReportFile;
   if (!/\.html?$/i.test(path)) throw usageError(`--out: the report is one HTML file; give a name ending in .html, got "${path}"`);
-  refuseInputPath(path, [file, ...(options.attach ?? [])]);
+  refuseInputPath(path, inputPaths(file, options));
   let html: string;
   let warningLines: string[] = [];
   if (/\.json$/i.test(file)) {

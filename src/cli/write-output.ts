@@ -144,6 +144,14 @@ export function readOwnFiles(folder: string): Set<string> {
   }
 }
 
+/**
+ * Every file a command reads: the samples file and, when given, the age
+ * model and the covariate file, which outputs must never overwrite.
+ */
+export function inputPaths(file: string, options: { ageModel?: string; covariateFile?: string; attach?: readonly string[] } = {}): string[] {
+  return [file, options.ageModel, options.covariateFile, ...(options.attach ?? [])].filter((path): path is string => typeof path === 'string' && path !== '');
+}
+
 /** Refuse to write an output file over one of the inputs. */
 export function refuseInputPath(path: string, inputs: readonly string[]): void {
   for (const input of inputs) {

@@ -117,6 +117,27 @@ describe('fit through the real CLI', () => {
     expect(readFileSync(join(folder, 'results', 'fit.json'), 'utf8')).toBe('precious');
   });
 
+  it('never overwrites the age model or covariate file, even in a folder it wrote before (exit 2)', () => {
+    // The folder was written by stratotrend (models.csv and fit.json are its own names there), then the
+    // user put an input under one of those names: the input wins, whichever command would write it.
+    const folder = freshFolder();
+    const samples = join(process.cwd(), 'sample-data');
+    expect(runCli(['fit', join(samples, 'locality-heights.csv'), '--age-model', join(samples, 'locality-ties.csv'), '--out', 'results', '--no-intervals', '--quiet'], folder).status).toBe(0);
+    const cases: Array<[string, string, string[]]> = [
+      ['models.csv', 'locality-ties.csv', ['fit', join(samples, 'locality-heights.csv'), '--age-model', 'results/models.csv', '--out', 'results']],
+      ['fit.json', 'pulsed-width-proxy.csv', ['fit', join(samples, 'pulsed-width.csv'), '--models', 'extended', '--covariate-file', 'results/fit.json', '--out', 'results']],
+      ['models.html', 'pulsed-width-proxy.csv', ['report', join(samples, 'pulsed-width.csv'), '--covariate-file', 'results/models.html', '--out', 'results/models.html']],
+    ];
+    for (const [name, source, args] of cases) {
+      copyFileSync(join(samples, source), join(folder, 'results', name));
+      const before = sha(join(folder, 'results', name));
+      const run = runCli([...args, '--no-intervals', '--quiet'], folder);
+      expect(run.stderr, args.join(' ')).toMatch(new RegExp(`^stratotrend: refusing to write "results/${name.replace('.', '\\.')}": it is an input file`));
+      expect(run.status).toBe(2);
+      expect(sha(join(folder, 'results', name))).toBe(before);
+    }
+  });
+
   it('JSON on stdout is byte-identical across runs', () => {
     const first = runCli(['fit', 'clean.csv', '--json']);
     const second = runCli(['fit', 'clean.csv', '--json']);
