@@ -1,5 +1,5 @@
 /**
- * One benchmark case run in a process of its own, so its peak memory (maxRSS)
+ * One benchmark case run in a process of its own, so its peak memory (VmHWM)
  * is its own: `node dist/bench/case.js <case> '<json arguments>'` prints one
  * JSON line with the measurements. Run by bench/run.ts.
  */
@@ -12,11 +12,12 @@ import { WarningLog } from '../src/data/warnings.js';
 import { fitLineage, type LineageFit } from '../src/fit/fit-lineage.js';
 import { classicModels } from '../src/models/registry.js';
 import { fitLineages } from '../src/parallel/fit-lineages.js';
+import { peakResidentBytes } from './memory.js';
 import { batchCsv, benchLineage } from './workload.js';
 
-/** Peak resident memory of this process so far, in MiB. */
+/** Peak resident memory of this process so far, in MiB (see memory.ts). */
 export function peakMemoryMiB(): number {
-  return process.resourceUsage().maxRSS / 1024;
+  return peakResidentBytes() / 2 ** 20;
 }
 
 /** A digest of fits (logL and every estimate and interval end), to show threaded output equals sequential. */

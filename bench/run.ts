@@ -319,6 +319,9 @@ function table(rows: readonly (readonly string[])[]): string {
   return rows.map((row) => '  ' + row.map((cell, column) => (column === 0 ? cell.padEnd(widths[column]) : cell.padStart(widths[column]))).join('  ')).join('\n');
 }
 
+/** Expression (inside a child's async script) for its own peak resident memory in bytes (bench/memory.ts). */
+const peakResidentSource = `(await import(${JSON.stringify(new URL('./memory.js', import.meta.url).href)})).peakResidentBytes()`;
+
 /** One command run on the large specimen file, in its own process. */
 interface StreamedCommand {
   command: string;
@@ -350,7 +353,7 @@ function measureStreaming(rows: number): { rows: number; megabytes: number; seco
     const started = process.hrtime.bigint();
     const result = await streamSampleFile(${JSON.stringify(file)}, 'specimens.csv');
     const seconds = Number(process.hrtime.bigint() - started) / 1e9;
-    process.stdout.write(JSON.stringify({ rows: result.rows, seconds, maxRss: process.resourceUsage().maxRSS * 1024 }));
+    process.stdout.write(JSON.stringify({ rows: result.rows, seconds, maxRss: ${peakResidentSource} }));
   });`;
   const output = execFileSync(process.execPath, ['--input-type=module', '-e', script], { encoding: 'utf8' });
   const measured = JSON.parse(output) as { rows: number; seconds: number; maxRss: number };
@@ -360,7 +363,7 @@ function measureStreaming(rows: number): { rows: number; megabytes: number; seco
       const started = process.hrtime.bigint();
       await main(['node', 'stratotrend', ...${JSON.stringify(args)}]);
       const seconds = Number(process.hrtime.bigint() - started) / 1e9;
-      process.stderr.write('\\nbench-result ' + JSON.stringify({ seconds, maxRss: process.resourceUsage().maxRSS * 1024, code: process.exitCode ?? 0 }) + '\\n');
+      process.stderr.write('\\nbench-result ' + JSON.stringify({ seconds, maxRss: ${peakResidentSource}, code: process.exitCode ?? 0 }) + '\\n');
     });`;
     const result = spawnSync(process.execPath, ['--input-type=module', '-e', child], { encoding: 'utf8', maxBuffer: 1 << 28 });
     const line = result.stderr.split('\n').find((entry) => entry.startsWith('bench-result '));

@@ -15,8 +15,10 @@ import type { ProcessAxis } from '../models/model.js';
 const stencilStep = 2e-3;
 /** Largest Newton step (ln units) accepted: the value-only search is already within ~1e-7 of the root. */
 const largestStep = 1e-3;
-/** Newton iterations at most; two normally reach the root to rounding. */
+/** Newton iterations at most; one normally reaches the root to rounding. */
 const iterations = 4;
+/** A Newton step (ln units) after which the error is of order its square: the polish stops. */
+const quadraticEnough = 1e-6;
 
 /** A polished maximum: process values and the log-likelihood there. */
 export interface PolishedMaximum {
@@ -109,7 +111,8 @@ export function polishMaximum(
     const value = at(logs);
     if (!Number.isFinite(value)) return unchanged;
     centreValue = value;
-    if (step.every((value, j) => Math.abs(value) <= 1e-13 * Math.max(1, Math.abs(logs[j])))) break;
+    // Newton converges quadratically: after a step this small the next would be below rounding.
+    if (step.every((value) => Math.abs(value) <= quadraticEnough)) break;
   }
   if (centreValue < start.logLik - 1e-12 * (1 + Math.abs(start.logLik))) return unchanged;
   const process = start.process.slice();
