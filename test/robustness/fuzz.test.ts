@@ -8,7 +8,7 @@
  * through the real command line. Fitting is limited to files of at most ten
  * horizons, without intervals for most runs, so the file runs in seconds.
  */
-import { mkdtempSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Readable } from 'node:stream';
@@ -19,6 +19,9 @@ import { decodeText, readTable } from '../../src/data/read-table.js';
 import { readSamples, type SampleSet } from '../../src/data/samples.js';
 import { streamSampleFile } from '../../src/data/stream-samples.js';
 import { runFit, type FitCommandOptions } from '../../src/cli/fit-command.js';
+import { runCompare } from '../../src/cli/compare-command.js';
+import { simulateCommand } from '../../src/cli/simulate-command.js';
+import { comparisonCsv, comparisonTable } from '../../src/compare/output.js';
 import { lineageTable } from '../../src/render/text-table.js';
 import { modelsCsv } from '../../src/render/models-csv.js';
 import { runCli } from './cli.js';
@@ -234,6 +237,44 @@ describe('fuzzing: mutated files end in a finite result or one InputError', () =
       }),
       { numRuns: 1500, seed: 99 },
     );
+  });
+
+  it('in-process through runCompare and simulate (150 mutated files; they share the reader with fit, not the rest)', async () => {
+    // Mostly the two-section file, so that compare has sections to compare.
+    const compareCases = fc.record({ base: fc.constantFrom(2, 2, 2, 0), mutations: fc.array(mutation, { minLength: 1, maxLength: 3 }), flags: optionFlags });
+    const outcomes = { compared: 0, simulated: 0, refused: 0 };
+    const refusedOrThrow = (error: unknown): void => {
+      if (!(error instanceof InputError)) throw error;
+      expect(error.message).not.toMatch(/\n/);
+      outcomes.refused += 1;
+    };
+    await fc.assert(
+      fc.asyncProperty(compareCases, async ({ base, mutations, flags }) => {
+        const { text, options } = bases[base];
+        const path = writeCase(mutate(text, mutations));
+        try {
+          const run = await runCompare(path, { ...options, ...flags, intervals: false });
+          expect(nonFinitePaths(run.document)).toEqual([]);
+          expect(comparisonCsv(run.run.comparisons, run.spreads)).not.toMatch(nonFiniteText);
+          for (const comparison of run.run.comparisons) expect(comparisonTable(comparison, null)).not.toMatch(nonFiniteText);
+          outcomes.compared += 1;
+        } catch (error) {
+          refusedOrThrow(error);
+        }
+        try {
+          const out = `${path}.simulated.csv`;
+          await simulateCommand(path, { ...options, ...flags, model: 'random-walk', out });
+          expect(readFileSync(out, 'utf8')).not.toMatch(nonFiniteText);
+          outcomes.simulated += 1;
+        } catch (error) {
+          refusedOrThrow(error);
+        }
+      }),
+      { numRuns: 150, seed: 4242 },
+    );
+    expect(outcomes.compared).toBeGreaterThan(20);
+    expect(outcomes.simulated).toBeGreaterThan(20);
+    expect(outcomes.refused).toBeGreaterThan(20);
   });
 
   it('through the real command line (12 mutated files)', () => {
