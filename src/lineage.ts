@@ -62,6 +62,12 @@ export interface Lineage {
    */
   readonly firstAge?: number;
   readonly timeUnit: TimeUnit;
+  /**
+   * Unit of the trait as measured, e.g. "mm" (`--trait-unit`): a label only,
+   * never converted; absent or null when none was given. With
+   * `logTransformed` the means are ln values of the trait in this unit.
+   */
+  readonly traitUnit?: string | null;
   readonly pooled: boolean;
   readonly logTransformed: boolean;
 }
@@ -72,6 +78,8 @@ export interface LineageOptions {
   pool?: boolean;
   /** Unit of the input's time column (default Myr for ages in Ma). */
   timeUnit?: TimeUnit;
+  /** Unit label of the trait as measured (`--trait-unit`, e.g. "mm"); carried into every output, never converted. */
+  traitUnit?: string | null;
   /** Fewest horizons accepted for a lineage (default 3). */
   minimumHorizons?: number;
   warnings?: WarningLog;
@@ -182,6 +190,7 @@ export function buildLineages(samples: SampleSet, options: LineageOptions = {}):
       extrapolated: placed.map((entry) => entry.extrapolated),
       firstAge,
       timeUnit: unit,
+      traitUnit: options.traitUnit ?? null,
       pooled: options.pool === true,
       logTransformed: samples.logTransformed,
     });
@@ -303,6 +312,7 @@ export function lineageFromArrays(input: {
   section?: string;
   trait?: string;
   timeUnit?: TimeUnit;
+  traitUnit?: string | null;
   covariate?: ArrayLike<number>;
 }): Lineage {
   const n = input.time.length;
@@ -323,6 +333,7 @@ export function lineageFromArrays(input: {
     lines: Array.from({ length: n }, (_, i) => i + 2),
     extrapolated: new Array<boolean>(n).fill(false),
     timeUnit: input.timeUnit ?? timeUnit('Myr'),
+    traitUnit: input.traitUnit ?? null,
     pooled: false,
     logTransformed: false,
   };

@@ -55,11 +55,30 @@ export function timeUnitOption(value: string | undefined): ReturnType<typeof tim
   return timeUnit(value ?? 'Myr');
 }
 
+/**
+ * The `--trait-unit` value: the label as given (trimmed), or null when the
+ * option is absent. A label only — the tool converts nothing.
+ *
+ * @throws InputError (usage) for an empty label or one with control characters.
+ * @example
+ * traitUnitOption(' mm '); // "mm"
+ * traitUnitOption(undefined); // null
+ */
+export function traitUnitOption(value: string | undefined): string | null {
+  if (value === undefined) return null;
+  const label = value.trim();
+  if (label === '') throw new InputError('--trait-unit must name a unit (e.g. mm or µm²), got ""', { kind: 'usage' });
+  if (/[\u0000-\u001f\u007f]/.test(label)) throw new InputError(`--trait-unit must be one line of text without control characters, got ${JSON.stringify(value)}`, { kind: 'usage' });
+  return label;
+}
+
 /** Options shared by every command that reads samples. */
 export interface SampleFileOptions {
   log?: boolean;
   pool?: boolean;
   timeUnit?: string;
+  /** `--trait-unit`: unit label of the trait (absent: outputs say "trait units" as before). */
+  traitUnit?: string;
   delimiter?: string;
   decimalComma?: boolean;
 }
@@ -106,11 +125,12 @@ export async function loadSamplesStreamed(path: string, options: SampleFileOptio
   return { input: { name, sha256: streamed.sha256 }, samples: streamed.samples };
 }
 
-/** Assemble the lineages of read samples (pooling, time unit, the age model's `ageOf`). */
+/** Assemble the lineages of read samples (pooling, time unit, trait unit, the age model's `ageOf`). */
 export function lineagesOf(samples: SampleSet, options: SampleFileOptions, warnings: WarningLog, extra: Pick<LineageOptions, 'ageOf'> = {}): Lineage[] {
   return buildLineages(samples, {
     pool: options.pool,
     timeUnit: timeUnitOption(options.timeUnit),
+    traitUnit: traitUnitOption(options.traitUnit),
     warnings,
     ...extra,
   });

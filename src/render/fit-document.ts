@@ -60,6 +60,8 @@ export function lineageDocument(fit: LineageFit): Record<string, unknown> {
     // Age before present of the oldest horizon (age_i = first_age - time_i): puts sections given by height on one timescale.
     first_age: finiteOrNull(lineage.firstAge ?? null),
     time_unit: lineage.timeUnit.label,
+    // The --trait-unit label as given (null when none): redraw and report read it back for axes and units.
+    trait_unit: lineage.traitUnit ?? null,
     position_kind: lineage.positionKind,
     transform: lineage.logTransformed ? 'ln' : 'none',
     sampling_variance: lineage.pooled ? 'pooled' : 'per-horizon',

@@ -1,7 +1,7 @@
 import type { LineageFit } from '../fit/fit-lineage.js';
 import { lineageName } from '../lineage.js';
 import { findModel } from '../models/registry.js';
-import { formatFixed, formatNumber, unitLabel } from './units.js';
+import { formatFixed, formatNumber, traitUnitLabel, unitLabel } from './units.js';
 
 /** Pad a row of cells to column widths (first column left-aligned, the rest right-aligned). */
 export function alignColumns(rows: readonly (readonly string[])[], indent = '  '): string[] {
@@ -17,7 +17,9 @@ export function treatmentWords(fit: LineageFit): string {
   const { lineage } = fit;
   const variance = lineage.pooled ? 'pooled within-horizon variance' : 'per-horizon sampling variance';
   const transform = lineage.logTransformed ? 'natural-log trait' : 'untransformed trait';
-  return `${variance}, ${transform}`;
+  // With --trait-unit: "untransformed trait in mm" / "natural-log trait in ln mm"; without, today's words.
+  const measured = lineage.traitUnit ? ` in ${traitUnitLabel(lineage.traitUnit, lineage.logTransformed, '')}` : '';
+  return `${variance}, ${transform}${measured}`;
 }
 
 /**
@@ -28,6 +30,8 @@ export function treatmentWords(fit: LineageFit): string {
 export function lineageTable(fit: LineageFit): string {
   const { lineage } = fit;
   const unit = lineage.timeUnit.label;
+  // "trait units" when no --trait-unit was given (the wording before the option existed).
+  const traitLabel = traitUnitLabel(lineage.traitUnit, lineage.logTransformed, 'trait units');
   const span = lineage.time[lineage.time.length - 1];
   const lines: string[] = [];
   lines.push(`Lineage "${lineageName(lineage)}": ${lineage.mean.length} horizons over ${formatNumber(span)} ${unit} (${treatmentWords(fit)})`);
@@ -57,13 +61,17 @@ export function lineageTable(fit: LineageFit): string {
     const parts = specs.map((spec) => {
       const estimate = model.parameters[spec.name];
       if (!estimate) return `${spec.name} —`;
-      const unitText = unitLabel(spec.unit, unit);
+      const unitText = unitLabel(spec.unit, unit, traitLabel);
       const interval = `[${estimate.lowerAtBound && estimate.lower === null ? 'open' : formatNumber(estimate.lower)}, ${estimate.upperAtBound && estimate.upper === null ? 'open' : formatNumber(estimate.upper)}]`;
       const bound = estimate.atBound ? (estimate.atBound === 'zero' ? ' (at bound 0)' : ` (at the ${estimate.atBound} limit)`) : '';
-      return `${spec.name} ${formatNumber(estimate.estimate)}${unitText && spec.unit.time !== 0 ? ' ' + unitText : ''} ${interval}${bound}`;
+      // Without a trait unit, means and variances stay bare (the words "trait units" add nothing there).
+      const shown = unitText !== '' && (spec.unit.time !== 0 || Boolean(lineage.traitUnit));
+      return `${spec.name} ${formatNumber(estimate.estimate)}${shown ? ' ' + unitText : ''} ${interval}${bound}`;
     });
     for (const [name, estimate] of Object.entries(model.derived)) {
-      parts.push(`${name} ${formatNumber(estimate.estimate)} ${unit} [${formatNumber(estimate.lower)}, ${estimate.upper === null ? 'open' : formatNumber(estimate.upper)}]`);
+      // half_life is a time; limit_drift (ou at the alpha-zero limit) is a drift, trait per time.
+      const derivedUnit = name === 'limit_drift' ? unitLabel({ trait: 1, time: -1 }, unit, traitLabel) : unit;
+      parts.push(`${name} ${formatNumber(estimate.estimate)} ${derivedUnit} [${formatNumber(estimate.lower)}, ${estimate.upper === null ? 'open' : formatNumber(estimate.upper)}]`);
     }
     // Shift models: where each new segment starts (0-based horizon index, with its age or time).
     const shifts = model.extra?.shifts as readonly Record<string, number>[] | undefined;

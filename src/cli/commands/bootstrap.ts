@@ -8,6 +8,7 @@ export function defineBootstrapCommand(program: Command): void {
       .command('bootstrap')
       .description('parametric-bootstrap tests for every lineage: directional vs random walk (likelihood ratio, with its chi-square p-value beside) and random walk vs stasis (AICc difference)')
       .argument('<file>', 'samples CSV (as for fit)'),
+    { traitUnit: false },
   )
     .option('--replicates <R>', 'replicates drawn from each fitted null model', '200')
     .option('--seed <s>', 'seed (same seed, same results on any number of threads)', '1')

@@ -1,11 +1,20 @@
 import { Option, type Command } from 'commander';
 
-/** Options every sample-reading command shares. */
-export function addSampleOptions(command: Command): Command {
-  return command
+/**
+ * Options every sample-reading command shares. `traitUnit: false` leaves out
+ * `--trait-unit` for commands that print no trait quantities (bootstrap's
+ * likelihood ratios and AICc differences have no unit; simulate writes a
+ * samples CSV, which has no unit column).
+ */
+export function addSampleOptions(command: Command, { traitUnit = true }: { traitUnit?: boolean } = {}): Command {
+  command
     .option('--log', 'natural-log transform: specimens logged one by one, summaries by the delta method')
     .option('--pool', 'pool the within-horizon variance over each lineage (needed when some horizons have n = 1)')
-    .option('--time-unit <unit>', 'unit of the age/time column: Ma/Myr, ka/kyr, yr, or any label', 'Myr')
+    .option('--time-unit <unit>', 'unit of the age/time column: Ma/Myr, ka/kyr, yr, or any label', 'Myr');
+  if (traitUnit) {
+    command.option('--trait-unit <label>', 'unit of the trait values, e.g. mm or µm², printed with estimates and on figure axes (a label only: nothing is converted; with --log it reads "ln mm")');
+  }
+  return command
     .addOption(new Option('--delimiter <char>', 'field delimiter (default: detected from the header: comma, semicolon or tab)'))
     .option('--decimal-comma', 'read "1,5" as 1.5 (use with a semicolon or tab delimiter)')
     .option('--debug', 'show stack traces for errors');

@@ -11,6 +11,8 @@ export interface FigureLineage {
   readonly trait: string;
   /** Unit label of elapsed time, e.g. "Myr". */
   readonly timeUnit: string;
+  /** Unit label of the trait (`trait_unit`, from `--trait-unit`), or null when none was given or the document predates it. */
+  readonly traitUnit: string | null;
   /** What the position column was: age (before present), time, height or depth. */
   readonly positionKind: string;
   /** Age before present of the oldest horizon (from an age model for heights and depths), or null. */
@@ -125,6 +127,7 @@ export function readFigureLineage(document: unknown, where = 'lineage'): FigureL
     section: text(doc.section),
     trait: text(doc.trait),
     timeUnit: text(doc.time_unit, 'Myr'),
+    traitUnit: typeof doc.trait_unit === 'string' && doc.trait_unit.trim() !== '' ? doc.trait_unit : null,
     positionKind: text(doc.position_kind, 'time'),
     firstAge: nullableNumber(doc.first_age),
     transform: text(doc.transform, 'none'),

@@ -1,5 +1,6 @@
 import { findModel } from '../../models/registry.js';
 import type { FigureLineage, FigureModel } from './figure-input.js';
+import { traitUnitLabel } from '../units.js';
 
 /**
  * Two-sided 95% quantile of the standard normal distribution, 1.959964
@@ -69,11 +70,20 @@ export function timeAxisFor(lineages: readonly FigureLineage[]): TimeAxis {
   };
 }
 
-/** Trait axis title: the trait's name (or "trait"), marked when on the natural-log scale. */
-export function traitAxisTitle(lineage: FigureLineage): string {
+/**
+ * Trait axis title: the trait's name (or "trait"), marked when on the
+ * natural-log scale, with the trait unit when the document has one.
+ *
+ * @example
+ * // trait "shell length", no unit: "Shell length (mean per horizon)"
+ * // trait unit "mm": "Shell length (mm, mean per horizon)"; with --log: "ln shell length (ln mm, mean per horizon)"
+ */
+export function traitAxisTitle(lineage: Pick<FigureLineage, 'trait' | 'transform'> & { readonly traitUnit?: string | null }): string {
   const name = lineage.trait === '' ? 'trait' : lineage.trait;
   const capital = name.charAt(0).toUpperCase() + name.slice(1);
-  return lineage.transform === 'ln' ? `ln ${name} (mean per horizon)` : `${capital} (mean per horizon)`;
+  const logged = lineage.transform === 'ln';
+  const unit = lineage.traitUnit ? `${traitUnitLabel(lineage.traitUnit, logged, '')}, ` : '';
+  return logged ? `ln ${name} (${unit}mean per horizon)` : `${capital} (${unit}mean per horizon)`;
 }
 
 /** Each horizon: its axis time, mean and 95% sampling interval mean ± 1.96 √e_i. */
