@@ -5,7 +5,7 @@ import { fitModel } from '../fit/fit-model.js';
 import { intervalMethodLabels } from '../fit/intervals.js';
 import { lineageName, type Lineage } from '../lineage.js';
 import { directionalWalk } from '../models/directional-walk.js';
-import { formatNumber } from '../render/units.js';
+import { formatNumber, squaredLabel, traitUnitLabel } from '../render/units.js';
 import { designOf, pooledWithinSd } from '../simulate/design.js';
 import { defaultDrifts, powerAnalysis, type PowerProgress, type PowerReport } from '../simulate/power.js';
 import { poolRunner } from '../simulate/run-replicates.js';
@@ -109,6 +109,11 @@ export async function progressReporter(quiet: boolean | undefined): Promise<{ pr
   return { progress, stop };
 }
 
+/** The lineage's trait unit as power prints it ("mm"; "ln mm" with --log), or null without --trait-unit. */
+export function traitUnitOf(lineage: Lineage): string | null {
+  return lineage.traitUnit ? traitUnitLabel(lineage.traitUnit, lineage.logTransformed, '') : null;
+}
+
 /** Everything `power` computed, before printing. */
 export interface PowerRun {
   readonly lineage: Lineage;
@@ -171,7 +176,8 @@ export async function runPower(file: string, options: PowerCommandOptions, progr
     tool: 'stratotrend',
     version: toolVersion(),
     command: 'power',
-    input: { file: input.name, sha256: input.sha256, lineage: lineageName(lineage) },
+    // trait_unit and transform as in fit.json: the --trait-unit label as given (null when none), 'ln' with --log (values in ln mm).
+    input: { file: input.name, sha256: input.sha256, lineage: lineageName(lineage), trait_unit: lineage.traitUnit ?? null, transform: lineage.logTransformed ? 'ln' : 'none' },
     generator: {
       model: 'directional-walk',
       step_variance: stepVariance,
@@ -194,13 +200,16 @@ const caution =
 export function powerTable(run: PowerRun): string {
   const { report, lineage } = run;
   const unit = lineage.timeUnit.label;
+  // Without --trait-unit the wording is as before the option: "(trait units)²", "per Myr".
+  const traitUnit = traitUnitOf(lineage);
+  const perUnit = traitUnit ? `${traitUnit} per ${unit}` : `per ${unit}`;
   const settings = report.settings;
   const lines: string[] = [];
   lines.push(`Power to detect a directional trend: "${lineageName(lineage)}", ${settings.horizons} horizons over ${formatNumber(settings.span)} ${unit}`);
-  lines.push(`  ${settings.replicates} replicates per drift from the directional walk, step variance ${formatNumber(settings.step_variance)} (trait units)² per ${unit}, seed ${settings.seed}`);
+  lines.push(`  ${settings.replicates} replicates per drift from the directional walk, step variance ${formatNumber(settings.step_variance)} ${squaredLabel(traitUnit ?? 'trait units')} per ${unit}, seed ${settings.seed}`);
   lines.push(`  likelihood-ratio test (directional vs random walk) at ${report.lrt.level}: bootstrap critical value ${formatNumber(report.lrt.critical_value)} (chi-square(1): ${formatNumber(report.lrt.chi_square_critical_value)})`);
   lines.push('');
-  const header = ['drift', `sd per ${unit}`, 'P(best)', `P(weight > ${settings.weight_threshold})`, 'P(LRT)'];
+  const header = [traitUnit ? `drift (${perUnit})` : 'drift', `sd per ${unit}`, 'P(best)', `P(weight > ${settings.weight_threshold})`, 'P(LRT)'];
   const rows = report.grid.map((point) => [formatNumber(point.drift), formatNumber(point.drift_sd), point.p_best.toFixed(3), point.p_weight.toFixed(3), point.p_lrt.toFixed(3)]);
   const widths = header.map((title, c) => Math.max(title.length, ...rows.map((row) => row[c].length)));
   lines.push('  ' + header.map((title, c) => title.padStart(widths[c])).join('  '));
@@ -209,14 +218,14 @@ export function powerTable(run: PowerRun): string {
   const f = report.false_trend;
   lines.push(`  False-trend rate (true drift 0): best ${f.p_best.toFixed(3)}, weight ${f.p_weight.toFixed(3)}, LRT ${f.p_lrt.toFixed(3)}`);
   const s = report.smallest_drift;
-  const at = (value: number | null): string => (value === null ? 'not reached on the grid' : `${formatNumber(value)} per ${unit}`);
+  const at = (value: number | null): string => (value === null ? 'not reached on the grid' : `${formatNumber(value)} ${perUnit}`);
   lines.push(`  Smallest drift with ${s.power * 100}% power: LRT ${at(s.p_lrt)}; best ${at(s.p_best)}; weight ${at(s.p_weight)}`);
   const needed = report.horizons_needed;
   if (needed) {
     lines.push(
       needed.horizons === null
-        ? `  Drift ${formatNumber(needed.drift)} per ${unit}: LRT power ${needed.power_now.toFixed(3)} now; ${needed.power * 100}% not reached within ${needed.searched_up_to} horizons`
-        : `  Drift ${formatNumber(needed.drift)} per ${unit}: LRT power ${needed.power_now.toFixed(3)} now; about ${needed.horizons} horizons at the same spacing and sample sizes reach ${needed.power * 100}% (power ${needed.power_at_answer?.toFixed(3)})`,
+        ? `  Drift ${formatNumber(needed.drift)} ${perUnit}: LRT power ${needed.power_now.toFixed(3)} now; ${needed.power * 100}% not reached within ${needed.searched_up_to} horizons`
+        : `  Drift ${formatNumber(needed.drift)} ${perUnit}: LRT power ${needed.power_now.toFixed(3)} now; about ${needed.horizons} horizons at the same spacing and sample sizes reach ${needed.power * 100}% (power ${needed.power_at_answer?.toFixed(3)})`,
     );
   }
   if (report.coverage) {
@@ -264,6 +273,7 @@ export async function powerCommand(file: string, options: PowerCommandOptions): 
       horizons: run.report.settings.horizons,
       replicates: run.report.settings.replicates,
       timeUnit: run.lineage.timeUnit.label,
+      traitUnit: traitUnitOf(run.lineage),
       weightThreshold: run.report.settings.weight_threshold,
       targetPower: run.report.smallest_drift.power,
       level: run.report.lrt.level,

@@ -3,6 +3,7 @@ import { drawFigure, measureText, type FigurePlan, type RenderedFigure } from '.
 import { pointsPerCm, resolveFigureOptions, type FigureOptions } from './figure-options.js';
 import { font, wrapText } from './marks.js';
 import { ink, lineWidth, seriesStyles, typeSize } from './style.js';
+import { traitUnitLabel } from '../units.js';
 
 /** What the power-curve figure needs: the grid of `power --json` and a few words about the design. */
 export interface PowerCurveInput {
@@ -12,6 +13,11 @@ export interface PowerCurveInput {
   readonly horizons: number;
   readonly replicates: number;
   readonly timeUnit: string;
+  /**
+   * Unit of the trait (`--trait-unit`, the power document's `input.trait_unit`),
+   * already "ln mm" style when the trait was logged; null or absent: "trait units".
+   */
+  readonly traitUnit?: string | null;
   readonly weightThreshold: number;
   readonly targetPower: number;
   readonly level: number;
@@ -34,9 +40,10 @@ export function powerCurvePlan(input: PowerCurveInput, options: FigureOptions = 
   const heightPoints = widthPoints * 1.05;
   const inner = widthPoints - 2 * margin;
   const title = `Power to detect a trend: ${input.lineage}`;
+  const traitUnits = traitUnitLabel(input.traitUnit, false, 'trait units');
   const subtitle = wrapText(
     `${input.replicates} simulated directional walks per drift on this design (N = ${input.horizons} horizons, its own times and sampling variances). ` +
-      `1 within-horizon sd per ${input.timeUnit} = ${Number(input.withinSd.toPrecision(3))} trait units per ${input.timeUnit}. Dashed: ${Math.round(input.targetPower * 100)}% power; dotted: the ${Math.round(input.level * 100)}% level.`,
+      `1 within-horizon sd per ${input.timeUnit} = ${Number(input.withinSd.toPrecision(3))} ${traitUnits} per ${input.timeUnit}. Dashed: ${Math.round(input.targetPower * 100)}% power; dotted: the ${Math.round(input.level * 100)}% level.`,
     inner,
     (text) => measureText(font(typeSize.subtitle), text),
   );
@@ -110,7 +117,7 @@ export function powerCurvePlan(input: PowerCurveInput, options: FigureOptions = 
           type: 'linear',
           min: minimumDrift,
           max: maximumDrift,
-          title: { display: true, text: `true drift (trait units per ${input.timeUnit})`, color: ink.text, font: { size: typeSize.axisTitle } },
+          title: { display: true, text: `true drift (${traitUnits} per ${input.timeUnit})`, color: ink.text, font: { size: typeSize.axisTitle } },
           ticks: { color: ink.text, font: { size: typeSize.tick }, maxTicksLimit: 8 },
           grid: { color: ink.grid, lineWidth: lineWidth.grid, tickLength: 3, tickColor: ink.axis },
           border: { color: ink.axis, width: lineWidth.axis },
