@@ -1,4 +1,4 @@
-import type { Chart, ChartConfiguration, ChartDataset, Plugin, ScaleOptionsByType } from 'chart.js';
+import type { Chart, ChartConfiguration, ChartDataset, Plugin, Scale, ScaleOptionsByType } from 'chart.js';
 import { measureText, type FigurePlan } from './chart-backend.js';
 import { figureLineageName, type FigureLineage } from './figure-input.js';
 import type { ResolvedFigureOptions } from './figure-options.js';
@@ -62,7 +62,6 @@ export function trajectoryPlan(lineages: readonly FigureLineage[], options: Reso
   const innerWidth = widthPoints - 2 * margin;
   const legendMeasure = (text: string) => measureText(font(typeSize.legend), text);
   const legend = layoutLegend(legendEntries(series, together), innerWidth, legendMeasure);
-  const heightPoints = Math.round(widthPoints * aspect(options) + legend.height + 6);
   const title = together
     ? `${capitalised(lineages[0].trait || 'trait')}: ${lineages.length} sections`
     : figureLineageName(lineages[0]);
@@ -70,6 +69,12 @@ export function trajectoryPlan(lineages: readonly FigureLineage[], options: Reso
   const subtitle = wrapText(subtitleText(series, together, options), innerWidth, subtitleMeasure);
   const stratigraphic = options.orientation === 'stratigraphic';
   const traitTitle = traitAxisTitle(lineages[0]);
+  // The aspect allows for one subtitle line; each further line (narrow figures wrap it) adds its own height, so the plot is not squeezed.
+  const extraSubtitle = Math.max(0, subtitle.length - 1) * typeSize.subtitle * 1.2;
+  // Narrow figures: the plot stays at least as tall as the vertical axis title is long (about 60 pt of title, subtitle and horizontal axis go above and below it).
+  const verticalTitle = measureText(font(typeSize.axisTitle), stratigraphic ? axis.title : traitTitle);
+  const chartPart = Math.max(widthPoints * aspect(options), verticalTitle + 60);
+  const heightPoints = Math.round(chartPart + extraSubtitle + legend.height + 6);
 
   const configuration = (): ChartConfiguration => {
     const datasets: ChartDataset<'scatter'>[] = [];
@@ -187,18 +192,36 @@ function padded(values: readonly number[]): { min: number; max: number } {
   return { min: low - pad, max: high + pad };
 }
 
-/**
- * A round tick step (1, 2, 2.5 or 5 × 10^k) giving close to `target` ticks
- * over the span, never fewer than 3.
- */
-export function tickStep(span: number, target: number): number {
+/** A round tick step, multiple × 10^exponent, kept as its parts so that ticks k × step carry no binary drift. */
+interface RoundStep {
+  readonly multiple: 1 | 2 | 5;
+  readonly exponent: number;
+}
+
+/** 10^exponent, exact for |exponent| ≤ 22 (parsed from decimal text, not computed by pow). */
+function powerOfTen(exponent: number): number {
+  return Number(`1e${exponent}`);
+}
+
+function stepValue(step: RoundStep): number {
+  return step.exponent >= 0 ? step.multiple * powerOfTen(step.exponent) : step.multiple / powerOfTen(-step.exponent);
+}
+
+/** The next coarser step on the 1–2–5 ladder: 1 → 2 → 5 → 10. */
+function coarser(step: RoundStep): RoundStep {
+  if (step.multiple === 1) return { multiple: 2, exponent: step.exponent };
+  if (step.multiple === 2) return { multiple: 5, exponent: step.exponent };
+  return { multiple: 1, exponent: step.exponent + 1 };
+}
+
+function roundStep(span: number, target: number): RoundStep {
   const exponent = Math.floor(Math.log10(span / target));
-  let best = 10 ** exponent;
+  let best: RoundStep = { multiple: 1, exponent };
   let bestMiss = Number.POSITIVE_INFINITY;
   for (let k = exponent - 1; k <= exponent + 1; k++) {
-    for (const multiple of [1, 2, 2.5, 5]) {
-      const step = multiple * 10 ** k;
-      const count = Math.floor(span / step) + 1;
+    for (const multiple of [1, 2, 5] as const) {
+      const step = { multiple, exponent: k };
+      const count = Math.floor(span / stepValue(step)) + 1;
       const miss = count < 3 ? Number.POSITIVE_INFINITY : Math.abs(count - target);
       if (miss < bestMiss) {
         best = step;
@@ -209,15 +232,94 @@ export function tickStep(span: number, target: number): number {
   return best;
 }
 
+/**
+ * A round tick step (1, 2 or 5 × 10^k, common practice for axis labelling)
+ * giving close to `target` ticks over the span, never fewer than 3.
+ *
+ * @example
+ * tickStep(1.08e6, 5); // 200000
+ */
+export function tickStep(span: number, target: number): number {
+  return stepValue(roundStep(span, target));
+}
+
+/**
+ * Every integer multiple k × step inside [min, max], ascending. Each value is
+ * computed from the integer k × multiple and an exact power of ten, so 0.3
+ * is the double nearest 0.3 rather than 3 × 0.1.
+ */
+function roundTicks(min: number, max: number, step: RoundStep): number[] {
+  const size = stepValue(step);
+  const first = Math.ceil(min / size - 1e-9);
+  const last = Math.floor(max / size + 1e-9);
+  const values: number[] = [];
+  for (let k = first; k <= last; k++) {
+    const whole = k * step.multiple;
+    // + 0 turns -0 into 0, so no tick is labelled "-0".
+    values.push((step.exponent >= 0 ? whole * powerOfTen(step.exponent) : whole / powerOfTen(-step.exponent)) + 0);
+  }
+  return values;
+}
+
+/** A tick label: en-US digit grouping and as many decimals as the step has ("4.5", "1,000,000"). */
+function tickLabel(value: number, step: RoundStep): string {
+  const decimals = Math.min(20, Math.max(0, -step.exponent));
+  return new Intl.NumberFormat('en-US', { minimumFractionDigits: decimals, maximumFractionDigits: decimals }).format(value + 0);
+}
+
+/**
+ * The ticks of one axis: start from `tickStep`'s step and move up the
+ * 1–2–5 ladder until neighbouring labels no longer collide over the axis
+ * length (points), keeping at least two ticks. `extent` is the room one
+ * label needs along the axis, gap included.
+ */
+function fittedTicks(limits: { min: number; max: number }, target: number, length: number, extent: (label: string) => number): { step: RoundStep; values: number[] } {
+  const span = limits.max - limits.min;
+  let step = roundStep(span, target);
+  let values = roundTicks(limits.min, limits.max, step);
+  for (let guard = 0; guard < 64; guard++) {
+    const spacing = (length * stepValue(step)) / span;
+    const needed = Math.max(...values.map((value) => extent(tickLabel(value, step))));
+    if (spacing >= needed) break;
+    const next = coarser(step);
+    const nextValues = roundTicks(limits.min, limits.max, next);
+    if (nextValues.length < 2) break;
+    step = next;
+    values = nextValues;
+  }
+  return { step, values };
+}
+
+/**
+ * One linear axis. Its ticks are set here, after chart.js has built its own
+ * (`afterBuildTicks`), because chart.js does not keep to a given step: with
+ * both limits and a step set it treats (max − min) / step as a whole number
+ * whenever it is within step / 1000 of one, which for steps of 500 and more
+ * is always, and then spaces ticks (max − min) / count apart from min
+ * (labels such as −536,282.0); and its label skipping keeps every other
+ * tick (2.5, 3.5 … on a step of 0.5). So chart.js neither chooses, skips
+ * nor rotates ticks: every tick is a multiple of a 1, 2 or 5 × 10^k step
+ * coarse enough that the labels fit.
+ */
 function scaleOptions(title: string, reverse: boolean, limits: { min: number; max: number }, ticks: number): ScaleOptionsByType<'linear'> {
+  let chosen: RoundStep = roundStep(limits.max - limits.min, ticks);
+  const tickFont = font(typeSize.tick);
   return {
     type: 'linear',
     reverse,
     min: limits.min,
     max: limits.max,
     title: { display: true, text: title, color: ink.text, font: { size: typeSize.axisTitle }, padding: { top: 2, bottom: 1 } },
-    // Ticks at round values inside the limits only (chart.js would otherwise label the limits themselves).
-    ticks: { color: ink.text, font: { size: typeSize.tick }, stepSize: tickStep(limits.max - limits.min, ticks), padding: 2, includeBounds: false },
+    afterBuildTicks(scale: Scale) {
+      const horizontal = scale.isHorizontal();
+      // Along a horizontal axis a label needs its width and a gap of about two thirds of the type size; up a vertical one, a line of type and 3 pt.
+      const extent = horizontal ? (label: string) => measureText(tickFont, label) + 0.6 * typeSize.tick : () => 1.2 * typeSize.tick + 3;
+      const fitted = fittedTicks(limits, ticks, horizontal ? scale.width : scale.height, extent);
+      chosen = fitted.step;
+      const values = reverse ? [...fitted.values].reverse() : fitted.values;
+      scale.ticks = values.map((value) => ({ value }));
+    },
+    ticks: { color: ink.text, font: { size: typeSize.tick }, padding: 2, autoSkip: false, maxRotation: 0, callback: (value: number | string) => tickLabel(Number(value), chosen) },
     grid: { color: ink.grid, lineWidth: lineWidth.grid, tickLength: 3, tickColor: ink.axis, tickWidth: lineWidth.axis },
     border: { color: ink.axis, width: lineWidth.axis },
   } as unknown as ScaleOptionsByType<'linear'>;
