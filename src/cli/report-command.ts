@@ -4,6 +4,7 @@ import { InputError, usageError } from '../data/errors.js';
 import { asFitDocument, lineageTitle, type FitDocumentView } from '../render/report/document-view.js';
 import { reportPage, type ReportFigure, type ReportInput } from '../render/report/report-page.js';
 import { sketchTrajectory } from '../render/report/sketch-figure.js';
+import { traitUnitLabel } from '../render/units.js';
 import { runFitStreamed, type FitCommandOptions, type FitRun } from './fit-command.js';
 import type { StreamedInput } from './input.js';
 import { inputPaths, refuseInputPath, writeAtomically } from './write-output.js';
@@ -178,7 +179,7 @@ async function powerFigures(powers: readonly unknown[], format: 'svg' | 'png'): 
   const { renderPowerCurve } = await import('../render/figures/power-curve.js');
   const figures: ReportFigure[] = [];
   for (const [index, power] of powers.entries()) {
-    const doc = power as { grid: never[]; input?: { lineage?: string }; settings?: Record<string, number | string>; smallest_drift?: { power?: number }; lrt?: { level?: number } };
+    const doc = power as { grid: never[]; input?: { lineage?: string; trait_unit?: string | null; transform?: string }; settings?: Record<string, number | string>; smallest_drift?: { power?: number }; lrt?: { level?: number } };
     const settings = doc.settings ?? {};
     try {
       const drawn = renderPowerCurve({
@@ -187,6 +188,7 @@ async function powerFigures(powers: readonly unknown[], format: 'svg' | 'png'): 
         horizons: Number(settings.horizons),
         replicates: Number(settings.replicates),
         timeUnit: String(settings.time_unit ?? ''),
+        traitUnit: typeof doc.input?.trait_unit === 'string' ? traitUnitLabel(doc.input.trait_unit, doc.input.transform === 'ln', '') : null,
         weightThreshold: Number(settings.weight_threshold),
         targetPower: doc.smallest_drift?.power ?? 0.8,
         level: doc.lrt?.level ?? 0.05,
@@ -217,7 +219,7 @@ async function runAnalyses(
   options: ReportCommandOptions,
   read?: StreamedInput,
 ): Promise<{ comparison?: unknown; power: unknown[]; seeds: Record<string, unknown> }> {
-  const sampleOptions = { log: options.log, pool: options.pool, timeUnit: options.timeUnit, delimiter: options.delimiter, decimalComma: options.decimalComma };
+  const sampleOptions = { log: options.log, pool: options.pool, timeUnit: options.timeUnit, traitUnit: options.traitUnit, delimiter: options.delimiter, decimalComma: options.decimalComma };
   const seeds: Record<string, unknown> = {};
   let comparison: unknown;
   if (options.compare) {
@@ -322,6 +324,8 @@ export async function reportCommand(file: string, options: ReportCommandOptions)
   let html: string;
   let warningLines: string[] = [];
   if (/\.json$/i.test(file)) {
+    // The units are those the fit was made with (fit.json trait_unit); a label here would contradict the saved numbers.
+    if (options.traitUnit !== undefined) throw usageError('--trait-unit applies to a samples file; a fit.json keeps the unit it was fitted with (its "trait_unit"); give --trait-unit to "fit" instead');
     const saved = readFitJson(file);
     html = await buildReport(saved.document, options, { source: { file, sha256: saved.sha256 } });
   } else {

@@ -40,6 +40,8 @@ export interface LineageView {
   readonly trait: string;
   readonly horizons: number;
   readonly time_unit: string;
+  /** The `--trait-unit` label as given, null when none (absent in a fit.json written before the option). */
+  readonly trait_unit?: string | null;
   readonly position_kind: string;
   readonly transform: string;
   readonly sampling_variance: string;

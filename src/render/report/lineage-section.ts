@@ -1,4 +1,4 @@
-import { formatNumber } from '../units.js';
+import { formatNumber, traitUnitLabel } from '../units.js';
 import { boundCaution, closeSupportCaution, directionalCaution, stasisCaution, supportCautions } from './cautions.js';
 import { summariseData, type DataSummary } from './data-summary.js';
 import { lineageTitle, type FitDocumentView, type LineageView } from './document-view.js';
@@ -23,7 +23,7 @@ export interface ReportFigure {
 }
 
 /** Lineage-document keys the report shows in its own blocks; anything else appears under "further results". */
-const shownKeys = new Set(['section', 'trait', 'horizons', 'time_unit', 'position_kind', 'transform', 'sampling_variance', 'best_model', 'models', 'data', 'smoothed', 'adequacy', 'rates', 'models_left_out', 'extrapolated_horizons', 'first_age']);
+const shownKeys = new Set(['section', 'trait', 'horizons', 'time_unit', 'position_kind', 'transform', 'sampling_variance', 'best_model', 'models', 'data', 'smoothed', 'trait_unit', 'adequacy', 'rates', 'models_left_out', 'extrapolated_horizons', 'first_age']);
 
 /** An image element holding the figure's bytes as a data URL (no file or network access when opened). */
 export function figureHtml(figure: ReportFigure): string {
@@ -107,7 +107,8 @@ export function lineageSection(lineage: LineageView, index: number, document: Fi
   const summary = summariseData(lineage);
   const title = lineageTitle(lineage);
   const unit = lineage.time_unit;
-  const scale = lineage.transform === 'ln' ? ' (ln units)' : '';
+  // With a trait unit the changes read "0.82 mm" ("0.17 ln mm" with --log); without, as before.
+  const scale = lineage.trait_unit ? ` ${traitUnitLabel(lineage.trait_unit, lineage.transform === 'ln', '')}` : lineage.transform === 'ln' ? ' (ln units)' : '';
   const warnings = lineageWarnings(lineage, summary, document);
   const facts = [
     fact('horizons', String(summary.horizons), 'horizons', summary.horizons),
@@ -117,7 +118,7 @@ export function lineageSection(lineage: LineageView, index: number, document: Fi
     fact('net change, oldest to youngest', `${formatNumber(summary.netChange)}${scale}`, 'net_change', summary.netChange),
     fact('typical standard error of a mean', `${formatNumber(summary.typicalStandardError)}${scale} (root of the average sampling variance)`, 'typical_standard_error', summary.typicalStandardError),
     fact('net change / standard error', summary.changeToError === null ? '—' : formatNumber(summary.changeToError, 3), 'change_to_error', summary.changeToError),
-    fact('treatment', `${lineage.transform === 'ln' ? 'natural-log trait' : 'untransformed trait'}, ${lineage.sampling_variance === 'pooled' ? 'pooled within-horizon variance' : 'per-horizon sampling variance'}`),
+    fact('treatment', `${lineage.transform === 'ln' ? 'natural-log trait' : 'untransformed trait'}${lineage.trait_unit ? ` in ${traitUnitLabel(lineage.trait_unit, lineage.transform === 'ln', '')}` : ''}, ${lineage.sampling_variance === 'pooled' ? 'pooled within-horizon variance' : 'per-horizon sampling variance'}`),
   ];
   const own = figures.filter((figure) => figure.lineage === index && figure.place === undefined);
   const leftOut = Array.isArray(lineage.models_left_out) ? (lineage.models_left_out as string[]) : [];

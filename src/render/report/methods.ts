@@ -156,6 +156,17 @@ export function methodsText(document: FitDocumentView, analyses: AnalysesRun = {
     sentences.push({ text: 'The trait was analysed on its original scale (no transform).', cites: [], paragraph: 'data' });
   }
 
+  // Only with --trait-unit (fit.json trait_unit): without it the text is as before the option.
+  const traitUnits = distinct(lineages, (lineage) => lineage.trait_unit).filter((unit): unit is string => typeof unit === 'string' && unit !== '');
+  if (traitUnits.length > 0) {
+    const logged = transforms.includes('ln');
+    const unitWords = listInWords(traitUnits);
+    sentences.push({
+      text: `Trait values were measured in ${unitWords}${logged ? `, so the log-scale means and their estimates are in ${listInWords(traitUnits.map((unit) => `ln ${unit}`))}` : ''}; the unit is as recorded with the data and no values were converted.`,
+      cites: [], paragraph: 'data',
+    });
+  }
+
   const treatments = distinct(lineages, (lineage) => lineage.sampling_variance);
   if (treatments.includes('pooled') || provenance.options.pool === true) {
     sentences.push({

@@ -1,4 +1,4 @@
-import { formatNumber } from '../units.js';
+import { formatNumber, traitUnitLabel } from '../units.js';
 import { lineageTitle, type LineageView } from './document-view.js';
 import { escapeHtml } from './html.js';
 
@@ -69,7 +69,8 @@ export function sketchTrajectory(lineage: LineageView): { svg: string; width: nu
     parts.push(`<line x1="${f(x(value - halfWidth[i]))}" y1="${f(y(time[i]))}" x2="${f(x(value + halfWidth[i]))}" y2="${f(y(time[i]))}" stroke="#1d2430" stroke-width="1.2"/>`);
     parts.push(`<circle cx="${f(x(value))}" cy="${f(y(time[i]))}" r="3.5" fill="#b55d00" stroke="#1d2430" stroke-width="0.8"/>`);
   });
-  const traitName = `${lineage.trait || 'trait'}${lineage.transform === 'ln' ? ' (natural log)' : ''}`;
+  const unit = lineage.trait_unit ? `, ${traitUnitLabel(lineage.trait_unit, lineage.transform === 'ln', '')}` : '';
+  const traitName = `${lineage.trait || 'trait'}${lineage.transform === 'ln' ? ` (natural log${unit})` : unit ? ` (${unit.slice(2)})` : ''}`;
   parts.push(`<text x="${margin.left + plotWidth / 2}" y="${height - 14}" text-anchor="middle" font-size="13">${escapeHtml(traitName)}</text>`);
   parts.push(`<text transform="translate(20 ${margin.top + plotHeight / 2}) rotate(-90)" text-anchor="middle" font-size="13">${escapeHtml(`time since oldest horizon (${lineage.time_unit})`)}</text>`);
   const svg = `<svg xmlns="http://www.w3.org/2000/svg" width="${width}" height="${height}" viewBox="0 0 ${width} ${height}" font-family="system-ui, sans-serif" fill="#1d2430">${parts.join('')}</svg>`;

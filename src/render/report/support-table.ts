@@ -1,5 +1,5 @@
 import { findModel } from '../../models/registry.js';
-import { formatFixed, formatNumber, unitLabel } from '../units.js';
+import { formatFixed, formatNumber, traitUnitLabel, unitLabel } from '../units.js';
 import type { EstimateView, LineageView, ModelView } from './document-view.js';
 import { intervalCaution } from './cautions.js';
 import { escapeHtml, exactValue } from './html.js';
@@ -50,7 +50,9 @@ function boundText(estimate: EstimateView): string {
 
 function unitOf(modelId: string, name: string, lineage: LineageView): string {
   const spec = findModel(modelId)?.parameters.find((parameter) => parameter.name === name);
-  const traitLabel = lineage.transform === 'ln' ? 'ln units' : 'trait units';
+  const logged = lineage.transform === 'ln';
+  // Without a trait unit: "ln units" / "trait units", as before --trait-unit existed.
+  const traitLabel = traitUnitLabel(lineage.trait_unit, logged, logged ? 'ln units' : 'trait units');
   if (!spec) return name === 'half_life' ? lineage.time_unit : '';
   return unitLabel(spec.unit, lineage.time_unit, traitLabel);
 }
