@@ -34,6 +34,11 @@ export interface DriftSummary {
   readonly model: string;
   /** Time units of the lineages (drift is in trait units per this unit); more than one means the values are not on one scale. */
   readonly timeUnits: readonly string[];
+  /**
+   * Trait units of the lineages as printed ("mm", "ln mm" with --log; null
+   * for a lineage without --trait-unit); optional so summaries built elsewhere need not give it.
+   */
+  readonly traitUnits?: readonly (string | null)[];
   readonly estimate: Distribution;
   /** Estimates per lineage in input order (null where not fitted). */
   readonly estimates: readonly (number | null)[];
@@ -146,6 +151,7 @@ export function summariseCompilation(fits: readonly LineageFit[], driftModel = '
       model: driftModel,
       withInterval,
       timeUnits: [...new Set(fits.map((fit) => fit.lineage.timeUnit.label))],
+      traitUnits: [...new Set(fits.map((fit) => (fit.lineage.traitUnit ? `${fit.lineage.logTransformed ? 'ln ' : ''}${fit.lineage.traitUnit}` : null)))],
       estimate: distribution(estimates),
       estimates,
       positive,

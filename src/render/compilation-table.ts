@@ -34,7 +34,11 @@ export function compilationTable(summary: CompilationSummary): string {
   );
   const drift = summary.drift;
   if (drift && drift.estimate.count > 0) {
-    const unit = drift.timeUnits.length === 1 ? `trait units per ${drift.timeUnits[0]}` : `trait units per time unit (mixed units: ${drift.timeUnits.join(', ')})`;
+    // One --trait-unit for every lineage: "mm per Myr"; none given (or mixed): "trait units" as before the option.
+    const traitUnits = drift.traitUnits ?? [null];
+    const trait = traitUnits.length === 1 && traitUnits[0] !== null ? traitUnits[0] : 'trait units';
+    const mixedTraits = traitUnits.length > 1 ? ` (mixed trait units: ${traitUnits.map((unit) => unit ?? 'none given').join(', ')})` : '';
+    const unit = (drift.timeUnits.length === 1 ? `${trait} per ${drift.timeUnits[0]}` : `${trait} per time unit (mixed units: ${drift.timeUnits.join(', ')})`) + mixedTraits;
     lines.push('');
     lines.push(`Drift of the ${drift.model} model (${unit}), over ${drift.estimate.count} lineages:`);
     lines.push(
