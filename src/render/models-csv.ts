@@ -12,7 +12,9 @@ export function csvField(value: string | number | boolean | null): string {
  * Tidy model table: one row per lineage × model, one column per quantity;
  * parameters as `NAME_estimate`, `NAME_lower`, `NAME_upper` over the union
  * of parameter names, empty where a model lacks a parameter. Numbers are
- * written in full precision.
+ * written in full precision. `extrapolated_horizons` counts the lineage's
+ * horizons whose age an age model extrapolated beyond its outermost ties
+ * (0 when none; fit.json's `extrapolated_horizons`).
  */
 export function modelsCsv(fits: readonly LineageFit[]): string {
   const parameterNames: string[] = [];
@@ -24,7 +26,7 @@ export function modelsCsv(fits: readonly LineageFit[]): string {
     }
   }
   const header = [
-    'section', 'trait', 'horizons', 'time_unit', 'model', 'k', 'logLik', 'aicc', 'delta_aicc', 'weight', 'best', 'compared', 'flags',
+    'section', 'trait', 'horizons', 'extrapolated_horizons', 'time_unit', 'model', 'k', 'logLik', 'aicc', 'delta_aicc', 'weight', 'best', 'compared', 'flags',
     ...parameterNames.flatMap((name) => [`${name}_estimate`, `${name}_lower`, `${name}_upper`]),
   ];
   const rows = [header.join(',')];
@@ -32,7 +34,7 @@ export function modelsCsv(fits: readonly LineageFit[]): string {
     for (const model of fit.models) {
       const estimates = { ...model.parameters, ...model.derived };
       rows.push([
-        fit.lineage.section, fit.lineage.trait, fit.lineage.mean.length, fit.lineage.timeUnit.label, model.id, model.k,
+        fit.lineage.section, fit.lineage.trait, fit.lineage.mean.length, fit.lineage.extrapolated.filter(Boolean).length, fit.lineage.timeUnit.label, model.id, model.k,
         finiteOrNull(model.logLik), finiteOrNull(model.aicc), finiteOrNull(model.deltaAicc), finiteOrNull(model.weight),
         model.id === fit.best, model.aicc !== null, model.flags.join('; '),
         ...parameterNames.flatMap((name) => {

@@ -120,7 +120,9 @@ describe('stratotrend fit: the command line', () => {
     expect(readFileSync(join(out, 'fit.json'), 'utf8')).toBe(printed);
     const csv = readFileSync(join(out, 'models.csv'), 'utf8').trim().split('\n');
     expect(csv).toHaveLength(1 + 2 * 5);
-    expect(csv[0].split(',').slice(0, 10)).toEqual(['section', 'trait', 'horizons', 'time_unit', 'model', 'k', 'logLik', 'aicc', 'delta_aicc', 'weight']);
+    expect(csv[0].split(',').slice(0, 11)).toEqual(['section', 'trait', 'horizons', 'extrapolated_horizons', 'time_unit', 'model', 'k', 'logLik', 'aicc', 'delta_aicc', 'weight']);
+    // No age model here: no horizon's age is extrapolated.
+    expect(csv.slice(1).every((row) => row.split(',')[3] === '0')).toBe(true);
   });
 
   it('prints the table with the best model marked in words', () => {
