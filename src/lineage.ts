@@ -78,8 +78,11 @@ export interface LineageOptions {
   pool?: boolean;
   /** Unit of the input's time column (default Myr for ages in Ma). */
   timeUnit?: TimeUnit;
-  /** Unit label of the trait as measured (`--trait-unit`, e.g. "mm"); carried into every output, never converted. */
-  traitUnit?: string | null;
+  /**
+   * Unit label of the trait as measured (`--trait-unit`, e.g. "mm"), or a
+   * function giving each trait's label by name; carried into every output, never converted.
+   */
+  traitUnit?: string | null | ((trait: string) => string | null);
   /** Fewest horizons accepted for a lineage (default 3). */
   minimumHorizons?: number;
   warnings?: WarningLog;
@@ -190,7 +193,7 @@ export function buildLineages(samples: SampleSet, options: LineageOptions = {}):
       extrapolated: placed.map((entry) => entry.extrapolated),
       firstAge,
       timeUnit: unit,
-      traitUnit: options.traitUnit ?? null,
+      traitUnit: typeof options.traitUnit === 'function' ? options.traitUnit(trait) : options.traitUnit ?? null,
       pooled: options.pool === true,
       logTransformed: samples.logTransformed,
     });

@@ -56,20 +56,57 @@ export function timeUnitOption(value: string | undefined): ReturnType<typeof tim
 }
 
 /**
- * The `--trait-unit` value: the label as given (trimmed), or null when the
- * option is absent. A label only — the tool converts nothing.
- *
- * @throws InputError (usage) for an empty label or one with control characters.
- * @example
- * traitUnitOption(' mm '); // "mm"
- * traitUnitOption(undefined); // null
+ * The `--trait-unit` values: one plain label for every trait ("mm") and/or
+ * `TRAIT=LABEL` entries for single traits ("rib density=ribs per cm"; trait
+ * names compared without case and surrounding spaces), the option repeated
+ * for several. A label only — the tool converts nothing.
  */
-export function traitUnitOption(value: string | undefined): string | null {
-  if (value === undefined) return null;
-  const label = value.trim();
-  if (label === '') throw new InputError('--trait-unit must name a unit (e.g. mm or µm²), got ""', { kind: 'usage' });
-  if (/[\u0000-\u001f\u007f]/.test(label)) throw new InputError(`--trait-unit must be one line of text without control characters, got ${JSON.stringify(value)}`, { kind: 'usage' });
-  return label;
+export interface TraitUnits {
+  /** Label of every trait not named in `byTrait`, or null. */
+  readonly all: string | null;
+  /** Labels of named traits, keyed by the trimmed, lower-case trait name. */
+  readonly byTrait: ReadonlyMap<string, { readonly trait: string; readonly label: string }>;
+}
+
+function unitLabelText(label: string, given: string): string {
+  const trimmed = label.trim();
+  if (trimmed === '') throw new InputError(`--trait-unit must name a unit (e.g. mm, µm² or "whorl width=mm"), got ${JSON.stringify(given)}`, { kind: 'usage' });
+  if (/[\u0000-\u001f\u007f]/.test(trimmed)) throw new InputError(`--trait-unit must be one line of text without control characters, got ${JSON.stringify(given)}`, { kind: 'usage' });
+  return trimmed;
+}
+
+/**
+ * Parse the `--trait-unit` values (absent: no unit anywhere).
+ *
+ * @throws InputError (usage) for an empty label or trait name, control characters, two plain labels, or one trait named twice.
+ * @example
+ * traitUnitOption(['mm', 'rib density=ribs per cm']).byTrait.get('rib density')?.label; // "ribs per cm"
+ * traitUnitOption(' mm ').all; // "mm"
+ */
+export function traitUnitOption(value: string | readonly string[] | undefined): TraitUnits {
+  const values = value === undefined ? [] : typeof value === 'string' ? [value] : value;
+  let all: string | null = null;
+  const byTrait = new Map<string, { trait: string; label: string }>();
+  for (const given of values) {
+    const equals = given.indexOf('=');
+    if (equals < 0) {
+      if (all !== null) throw new InputError(`--trait-unit: give one label for all traits, or TRAIT=LABEL per trait; got both "${all}" and "${given.trim()}"`, { kind: 'usage' });
+      all = unitLabelText(given, given);
+      continue;
+    }
+    const trait = given.slice(0, equals).trim();
+    if (trait === '') throw new InputError(`--trait-unit: name the trait before "=", got ${JSON.stringify(given)}`, { kind: 'usage' });
+    const label = unitLabelText(given.slice(equals + 1), given);
+    const key = trait.toLowerCase();
+    if (byTrait.has(key)) throw new InputError(`--trait-unit: trait "${trait}" is given a unit twice`, { kind: 'usage' });
+    byTrait.set(key, { trait, label });
+  }
+  return { all, byTrait };
+}
+
+/** The unit of one trait under parsed `--trait-unit` values: its own entry, else the label for all, else null. */
+export function traitUnitFor(units: TraitUnits, trait: string): string | null {
+  return units.byTrait.get(trait.trim().toLowerCase())?.label ?? units.all;
 }
 
 /** Options shared by every command that reads samples. */
@@ -77,8 +114,11 @@ export interface SampleFileOptions {
   log?: boolean;
   pool?: boolean;
   timeUnit?: string;
-  /** `--trait-unit`: unit label of the trait (absent: outputs say "trait units" as before). */
-  traitUnit?: string;
+  /**
+   * `--trait-unit`: one label for every trait and/or TRAIT=LABEL entries (the
+   * option repeated; commander collects an array). Absent: outputs say "trait units" as before.
+   */
+  traitUnit?: string | string[];
   delimiter?: string;
   decimalComma?: boolean;
 }
@@ -127,13 +167,23 @@ export async function loadSamplesStreamed(path: string, options: SampleFileOptio
 
 /** Assemble the lineages of read samples (pooling, time unit, trait unit, the age model's `ageOf`). */
 export function lineagesOf(samples: SampleSet, options: SampleFileOptions, warnings: WarningLog, extra: Pick<LineageOptions, 'ageOf'> = {}): Lineage[] {
-  return buildLineages(samples, {
+  const units = traitUnitOption(options.traitUnit);
+  const lineages = buildLineages(samples, {
     pool: options.pool,
     timeUnit: timeUnitOption(options.timeUnit),
-    traitUnit: traitUnitOption(options.traitUnit),
+    traitUnit: (trait) => traitUnitFor(units, trait),
     warnings,
     ...extra,
   });
+  // A misspelt trait name would silently leave that trait without its unit.
+  const traits = new Set(lineages.map((lineage) => lineage.trait.trim().toLowerCase()));
+  for (const [key, { trait }] of units.byTrait) {
+    if (!traits.has(key)) {
+      const names = [...new Set(lineages.map((lineage) => lineage.trait))].filter((name) => name !== '');
+      throw new InputError(`--trait-unit: no trait "${trait}" in ${samples.file}; its traits are ${names.length > 0 ? names.map((name) => `"${name}"`).join(', ') : 'unnamed (no trait column: give the unit alone, e.g. --trait-unit mm)'}`, { kind: 'usage' });
+    }
+  }
+  return lineages;
 }
 
 /** {@link loadSamplesStreamed} then {@link lineagesOf}. */

@@ -60,7 +60,10 @@ export function comparisonTable(comparison: TraitComparison, ageDraws: { draws: 
   const unit = comparison.sections[0].timeUnit.label;
   const lines: string[] = [];
   const sectionList = comparison.sections.map((section) => `${section.section} (${section.mean.length})`).join(', ');
-  lines.push(`Trait "${comparison.trait || 'trait'}": ${comparison.sections.length} sections — ${sectionList} — ${comparison.horizons} horizons; AICc with N = ${comparison.horizons}, time in ${unit}`);
+  // With --trait-unit: ", trait in mm" ("ln mm" with --log); without, the heading is as before the option.
+  const traitUnit = comparison.sections[0].traitUnit;
+  const traitWords = traitUnit ? `, trait in ${comparison.sections[0].logTransformed ? 'ln ' : ''}${traitUnit}` : '';
+  lines.push(`Trait "${comparison.trait || 'trait'}": ${comparison.sections.length} sections — ${sectionList} — ${comparison.horizons} horizons; AICc with N = ${comparison.horizons}, time in ${unit}${traitWords}`);
   const extrapolated = extrapolatedWords(comparison);
   if (extrapolated) lines.push(`  ${extrapolated}`);
   const ranked = [...comparison.hypotheses].sort((a, b) => (a.aicc ?? Infinity) - (b.aicc ?? Infinity));
@@ -162,6 +165,8 @@ export function comparisonDocument(comparison: TraitComparison, spreads: readonl
     trait: comparison.trait,
     horizons: comparison.horizons,
     time_unit: comparison.sections[0].timeUnit.label,
+    // The --trait-unit label as given (null when none), as in fit.json.
+    trait_unit: comparison.sections[0].traitUnit ?? null,
     common_time_origin_age: origin,
     sections: comparison.sections.map((section, s) => ({
       section: section.section,

@@ -12,7 +12,11 @@ export function addSampleOptions(command: Command, { traitUnit = true }: { trait
     .option('--pool', 'pool the within-horizon variance over each lineage (needed when some horizons have n = 1)')
     .option('--time-unit <unit>', 'unit of the age/time column: Ma/Myr, ka/kyr, yr, or any label', 'Myr');
   if (traitUnit) {
-    command.option('--trait-unit <label>', 'unit of the trait values, e.g. mm or µm², printed with estimates and on figure axes (a label only: nothing is converted; with --log it reads "ln mm")');
+    command.option(
+      '--trait-unit <label>',
+      'unit of the trait values, e.g. mm or µm², printed with estimates and on figure axes; TRAIT=LABEL gives one trait its own unit (repeat the option, e.g. --trait-unit "whorl width=mm" --trait-unit "rib density=ribs per cm"). A label only: nothing is converted; with --log it reads "ln mm"',
+      (value: string, previous: string[] | undefined) => [...(previous ?? []), value],
+    );
   }
   return command
     .addOption(new Option('--delimiter <char>', 'field delimiter (default: detected from the header: comma, semicolon or tab)'))
