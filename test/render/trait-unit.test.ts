@@ -15,7 +15,7 @@ import { powerCurvePlan, type PowerCurveInput } from '../../src/render/figures/p
 import { asFitDocument, type LineageView } from '../../src/render/report/document-view.js';
 import { lineageSection } from '../../src/render/report/lineage-section.js';
 import { methodsText } from '../../src/render/report/methods.js';
-import { powerDocumentBlock } from '../../src/render/report/optional-blocks.js';
+import { comparisonDocumentBlock, powerDocumentBlock } from '../../src/render/report/optional-blocks.js';
 import { estimatesTable } from '../../src/render/report/support-table.js';
 import { lineageTable } from '../../src/render/text-table.js';
 import { squaredLabel, traitUnitLabel, unitLabel } from '../../src/render/units.js';
@@ -228,6 +228,14 @@ describe('report', () => {
     expect(section).toContain('untransformed trait in mm, per-horizon sampling variance');
     const methods = methodsText(document).sentences.map((sentence) => sentence.text).join(' ');
     expect(methods).toContain('Trait values were measured in mm; the unit is as recorded with the data and no values were converted.');
+  });
+
+  it('the comparison block reads the unit of each trait from the compare document', () => {
+    const trait = (traitUnit: string | null) => ({ trait: 'rib density', horizons: 38, time_unit: 'Myr', trait_unit: traitUnit, sections: [], hypotheses: [], tests: [] });
+    const block = (log: boolean, traitUnit: string | null) => comparisonDocumentBlock({ provenance: { options: { log } }, traits: [trait(traitUnit)] });
+    expect(block(false, 'ribs per cm')).toContain('horizons in all, time in Myr, trait in ribs per cm.');
+    expect(block(true, 'mm')).toContain('time in Myr, trait in ln mm.');
+    expect(block(false, null)).toContain('horizons in all, time in Myr.');
   });
 
   it('the power block reads the unit from the power document', () => {

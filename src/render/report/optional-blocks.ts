@@ -111,12 +111,16 @@ export type LineageRenderer = (lineage: Record<string, unknown>) => string;
 export function comparisonDocumentBlock(comparison: Json, renderLineage?: LineageRenderer): string {
   if (!isRecord(comparison) || !Array.isArray(comparison.traits)) return jsonBlock(comparison);
   const parts: string[] = [];
+  // compare --trait-unit: ", trait in mm" ("ln mm" when the comparison was run with --log); nothing without a unit.
+  const options = isRecord(comparison.provenance) && isRecord(comparison.provenance.options) ? comparison.provenance.options : {};
+  const traitWords = (entry: Record<string, Json>): string =>
+    typeof entry.trait_unit === 'string' && entry.trait_unit !== '' ? `, trait in ${traitUnitLabel(entry.trait_unit, options.log === true, '')}` : '';
   for (const entry of (comparison.traits as Json[]).filter(isRecord)) {
     const hypotheses = Array.isArray(entry.hypotheses) ? (entry.hypotheses as Json[]).filter(isRecord) : [];
     const best = isRecord(entry.best) ? entry.best : null;
     const sections = Array.isArray(entry.sections) ? (entry.sections as Json[]).filter(isRecord) : [];
     parts.push(`<h3>${escapeHtml(String(entry.trait || 'trait'))}</h3>`);
-    parts.push(`<p>${escapeHtml(`${sections.length} sections (${sections.map((section) => `${section.section}: ${section.horizons} horizons${typeof section.first_age === 'number' ? ` from age ${formatNumber(section.first_age)}` : ''}`).join('; ')}), ${scalarText(entry.horizons)} horizons in all, time in ${scalarText(entry.time_unit)}.`)}</p>`);
+    parts.push(`<p>${escapeHtml(`${sections.length} sections (${sections.map((section) => `${section.section}: ${section.horizons} horizons${typeof section.first_age === 'number' ? ` from age ${formatNumber(section.first_age)}` : ''}`).join('; ')}), ${scalarText(entry.horizons)} horizons in all, time in ${scalarText(entry.time_unit)}${traitWords(entry)}.`)}</p>`);
     const rows = hypotheses.map((hypothesis) => {
       const isBest = best !== null && best.id === hypothesis.id && best.model === hypothesis.model;
       return `<tr data-hypothesis="${escapeHtml(String(hypothesis.id))}" data-model="${escapeHtml(String(hypothesis.model))}" class="${isBest ? 'best' : hypothesis.compared === false ? 'not-compared' : ''}">`
