@@ -3,7 +3,7 @@ import type { EvolutionModel } from '../models/model.js';
 import { LikelihoodEvaluator } from './evaluator.js';
 import { fitOverConfigurations, type SearchProgress } from './fit-configurations.js';
 import { replaceIntervals, type IntervalMethod } from './intervals-method.js';
-import { locationEnds } from './intervals.js';
+import { locationEnds, openTowardTrendLimit } from './intervals.js';
 import { chiSquare1At95 } from './model-choice.js';
 import { findRoot } from './optimise.js';
 import { maximiseProcess, type AxisPosition } from './search.js';
@@ -316,5 +316,5 @@ function locationInterval(
   let scale = Math.sqrt(Math.max(0, details.coefficientCovariance[index * width + index]));
   if (name === 'optimum' && best[0] > 0) scale /= best[0];
   if (!(scale > 0) || !Number.isFinite(scale)) scale = Math.max(1e-8, Math.abs(estimate) * 1e-3);
-  return locationEnds(profileAt, estimate, scale, cutoff);
+  return openTowardTrendLimit(evaluator, name, locationEnds(profileAt, estimate, scale, cutoff), cutoff, false);
 }

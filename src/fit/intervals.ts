@@ -127,19 +127,50 @@ export function parameterProfile(
     const best = maximiseProcess(evaluate, model.process, lineage, { points: Math.max(points, 24) });
     return { at, maximum: best.logLik, maximiser: best.process[axisIndex], process: best.process };
   }
-  // Location parameter: at given process values the maximum over the parameter is at its GLS value,
-  // where the restricted adjustment is the log-determinant without its column.
-  const whole = (process: number[]): number => {
-    const sums = evaluator.whiten(process);
-    const result = profileOut(sums);
-    if (!adjusted || !Number.isFinite(result.logLik)) return result.logLik;
-    const { index } = model.fixLocation(name, 0, process, lineage);
-    const logDet = reducedProfile(sums, index, 0).logDetInformation;
-    return Number.isFinite(logDet) ? result.logLik - 0.5 * logDet : Number.NEGATIVE_INFINITY;
-  };
+  const whole = locationSupremum(evaluator, name, adjusted);
   const best = maximiseProcess(whole, model.process, lineage, { points: Math.max(points, 24) });
   const estimates = model.toParameters(evaluator.details(best.process).coefficients, best.process, lineage);
   return { at, maximum: best.logLik, maximiser: estimates[name], process: best.process };
+}
+
+/**
+ * The (plain or adjusted) profile of location parameter `name` maximised
+ * over that parameter, at given process values: its GLS value, where the
+ * restricted adjustment is the log-determinant without its column.
+ */
+function locationSupremum(evaluator: LikelihoodEvaluator, name: string, adjusted: boolean): (process: number[]) => number {
+  const model = evaluator.model;
+  return (process: number[]): number => {
+    const sums = evaluator.whiten(process);
+    const result = profileOut(sums);
+    if (!adjusted || !Number.isFinite(result.logLik)) return result.logLik;
+    const { index } = model.fixLocation(name, 0, process, evaluator.lineage);
+    const logDet = reducedProfile(sums, index, 0).logDetInformation;
+    return Number.isFinite(logDet) ? result.logLik - 0.5 * logDet : Number.NEGATIVE_INFINITY;
+  };
+}
+
+/**
+ * ou's optimum as it runs off to ±∞ on the side of the trend: its profile
+ * tends to the alpha → 0 limit with the drift (optimum − a)·alpha free, the
+ * directional walk. Far out the profile computed with alpha held inside its
+ * search range falls off only because alpha cannot get small enough (an
+ * artefact: the sample data's ou gave an upper end of 125,000 that way), so
+ * when the limit stays above the cut-off the interval is open on the side of
+ * the limit's drift. Other parameters and models: the ends unchanged.
+ *
+ * @param cutoff the profile value that defines the interval
+ */
+export function openTowardTrendLimit(evaluator: LikelihoodEvaluator, name: string, ends: IntervalEnds, cutoff: number, adjusted: boolean): IntervalEnds {
+  const model = evaluator.model;
+  if (name !== 'optimum' || model.process[0]?.limitNames?.[0] !== 'alpha-zero' || !model.process[0].allowZero) return ends;
+  const limit = maximiseProcess(locationSupremum(evaluator, name, adjusted), model.process, evaluator.lineage, { fixed: new Map([[0, 0]]), points: 24 });
+  if (!(limit.logLik >= cutoff)) return ends;
+  // At alpha = 0 the second coefficient of ou's mean is the drift (optimum − a)·alpha.
+  const drift = evaluator.details(limit.process).coefficients[1];
+  if (drift > 0) return { ...ends, upper: null, upperAtBound: true };
+  if (drift < 0) return { ...ends, lower: null, lowerAtBound: true };
+  return ends;
 }
 
 /**
@@ -254,7 +285,7 @@ export function intervalsByProfile(
     }
     const profile = parameterProfile(evaluator, name, request.adjusted);
     const scale = locationScale(evaluator, name, profile.process, profile.maximiser);
-    result[name] = locationEnds(profile.at, profile.maximiser, scale, profile.maximum - drop);
+    result[name] = openTowardTrendLimit(evaluator, name, locationEnds(profile.at, profile.maximiser, scale, profile.maximum - drop), profile.maximum - drop, request.adjusted);
   }
   return result;
 }

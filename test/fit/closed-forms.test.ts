@@ -94,4 +94,27 @@ describe('closed-form maximum-likelihood estimates', () => {
     const stationary = fit.estimates.step_variance / (2 * fit.estimates.alpha);
     expect(Math.abs(stationary / stasisLater.estimates.stasis_variance - 1)).toBeLessThan(1e-8);
   });
+
+  it('ou optimum: open on the side of the trend when the directional walk (its alpha → 0 limit, optimum → ∞) is within the cut-off, finite when it is not', () => {
+    // As optimum → ∞ with (optimum − a)·alpha fixed, ou tends to the directional walk (MODELS.md), so the
+    // profile of the optimum tends to the directional walk's maximum; when that stays within 1.92 of
+    // ou's maximum the 95% profile interval cannot close on that side. Checked for every interval method.
+    const times = Array.from({ length: 16 }, (_, i) => 0.6 * i + 0.2 * (i % 3));
+    const error = times.map(() => 0.01);
+    const straight = lineageFromArrays({ time: times, mean: times.map((t, i) => 3 + 0.4 * t + 0.08 * Math.sin(2.1 * i)), samplingVariance: error });
+    const bending = lineageFromArrays({ time: times, mean: times.map((t, i) => 8 - 5 * Math.exp(-0.8 * t) + 0.03 * Math.sin(2.1 * i)), samplingVariance: error });
+    for (const intervalMethod of ['profile', 'adjusted'] as const) {
+      const walk = fitModel(directionalWalk, straight, { intervals: false });
+      const near = fitModel(ornsteinUhlenbeck, straight, { intervalMethod });
+      expect(near.logLik - walk.logLik).toBeLessThan(1.92);
+      expect(walk.estimates.drift).toBeGreaterThan(0);
+      expect(near.parameters.optimum.upper).toBeNull();
+      expect(near.parameters.optimum.upperAtBound).toBe(true);
+      const far = fitModel(ornsteinUhlenbeck, bending, { intervalMethod });
+      expect(far.logLik - fitModel(directionalWalk, bending, { intervals: false }).logLik).toBeGreaterThan(10);
+      expect(far.parameters.optimum.upper).not.toBeNull();
+      expect(far.parameters.optimum.lower as number).toBeLessThan(far.estimates.optimum);
+      expect(far.parameters.optimum.upper as number).toBeGreaterThan(far.estimates.optimum);
+    }
+  });
 });
