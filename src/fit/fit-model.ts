@@ -138,12 +138,14 @@ export function fitModel(model: EvolutionModel, lineage: Lineage, options: FitOp
   }
   const parameters: Record<string, ParameterEstimate> = {};
   const wantIntervals = options.intervals ?? true;
+  // Another interval method replaces every end below (replaceIntervals), so plain profile ends are only made when asked for.
+  const plainEnds = wantIntervals && (options.intervalMethod ?? 'profile') === 'profile';
   const cutoff = maximum.logLik - profileDrop;
   for (const spec of model.parameters) {
     const estimate = estimates[spec.name];
     const atBound = boundOf(spec.name);
     const finite = Number.isFinite(estimate);
-    if (!wantIntervals || !finite) {
+    if (!plainEnds || !finite) {
       parameters[spec.name] = { estimate: finite ? estimate : null, lower: null, upper: null, atBound, lowerAtBound: false, upperAtBound: false };
       continue;
     }
