@@ -24,6 +24,22 @@ const quadraticEnough = 1e-6;
 export interface PolishedMaximum {
   readonly process: number[];
   readonly logLik: number;
+  /** The last Newton step was below {@link quadraticEnough}: the point is a stationary point to rounding. */
+  readonly converged: boolean;
+}
+
+/** Options of {@link polishMaximum}. */
+export interface PolishOptions {
+  /** Largest Newton step (ln units) taken; a larger one refuses the polish (default {@link largestStep}). */
+  readonly largestStep?: number;
+  /**
+   * Halve a step that lowers the log-likelihood (up to 20 times) instead of
+   * refusing: for starts further from the maximum (a warm start from a
+   * neighbouring profile point).
+   */
+  readonly backtrack?: boolean;
+  /** Newton iterations at most (default {@link iterations}). */
+  readonly iterations?: number;
 }
 
 /**
@@ -61,8 +77,11 @@ export function polishMaximum(
   lineage: Lineage,
   start: { readonly process: readonly number[]; readonly logLik: number },
   free: readonly number[],
+  options: PolishOptions = {},
 ): PolishedMaximum {
-  const unchanged = { process: start.process.slice(), logLik: start.logLik };
+  const unchanged = { process: start.process.slice(), logLik: start.logLik, converged: false };
+  const stepLimit = options.largestStep ?? largestStep;
+  let converged = false;
   if (free.length === 0 || !Number.isFinite(start.logLik)) return unchanged;
   const dimension = free.length;
   const h = stencilStep;
@@ -80,7 +99,7 @@ export function polishMaximum(
     return Number.isFinite(value) ? value : Number.NaN;
   };
   let centreValue = start.logLik;
-  for (let iteration = 0; iteration < iterations; iteration++) {
+  for (let iteration = 0; iteration < (options.iterations ?? iterations); iteration++) {
     const gradient = new Array<number>(dimension);
     const hessian: number[][] = Array.from({ length: dimension }, () => new Array<number>(dimension).fill(0));
     const shifted = (offsets: ReadonlyArray<readonly [number, number]>): number => {
@@ -105,19 +124,30 @@ export function polishMaximum(
       }
     }
     if (!gradient.every(Number.isFinite) || !hessian.every((row) => row.every(Number.isFinite))) return unchanged;
-    const step = newtonStep(hessian, gradient);
-    if (step === null || step.some((value) => Math.abs(value) > largestStep)) return unchanged;
-    logs = logs.map((value, j) => value + step[j]);
-    const value = at(logs);
+    let step = newtonStep(hessian, gradient);
+    if (step === null || step.some((value) => Math.abs(value) > stepLimit)) return unchanged;
+    let trial = logs.map((value, j) => value + (step as number[])[j]);
+    let value = at(trial);
+    // Tiny steps are taken as they are (their value differs by rounding only); larger ones must not go downhill.
+    let halvings = 0;
+    for (; options.backtrack && halvings < 20 && step.some((entry) => Math.abs(entry) > quadraticEnough) && !(value >= centreValue); halvings++) {
+      step = step.map((entry) => entry / 2);
+      trial = logs.map((entry, j) => entry + (step as number[])[j]);
+      value = at(trial);
+    }
     if (!Number.isFinite(value)) return unchanged;
+    logs = trial;
     centreValue = value;
     // Newton converges quadratically: after a step this small the next would be below rounding.
-    if (step.every((value) => Math.abs(value) <= quadraticEnough)) break;
+    if (halvings === 0 && step.every((entry) => Math.abs(entry) <= quadraticEnough)) {
+      converged = true;
+      break;
+    }
   }
   if (centreValue < start.logLik - 1e-12 * (1 + Math.abs(start.logLik))) return unchanged;
   const process = start.process.slice();
   free.forEach((level, j) => (process[level] = Math.exp(logs[j])));
-  return { process, logLik: centreValue };
+  return { process, logLik: centreValue, converged };
 }
 
 /**

@@ -47,6 +47,11 @@ interface Found {
 
 /** Half-width, in ln units, of the first bracket of a warm-started axis (a factor e^1.5 ≈ 4.5 each way). */
 const warmHalfWidth = 1.5;
+/**
+ * A warm-started search polishes its best grid point too unless that point's
+ * log-likelihood is more than this below the maximum reached from the start.
+ */
+const gridBasinMargin = 1;
 /** Relative x-tolerance of Brent's method on the ln scale. */
 const brentTolerance = 1e-9;
 
@@ -297,6 +302,15 @@ function gridAndPolish(
       free.forEach((level, j) => (process[level] = Math.exp(logs[j])));
       return clamp(process);
     };
+    // Two or more free axes: Newton on finite differences from here (a warm start is near the maximum),
+    // which needs a few dozen evaluations; when it does not converge, a simplex and Brent passes instead.
+    if (free.length > 1) {
+      const newton = polishMaximum(evaluate, axes, lineage, { process: base, logLik: evaluate(base.slice()) }, free, { largestStep: 2, backtrack: true, iterations: 8 });
+      if (newton.converged) {
+        offer(newton.process, newton.logLik);
+        return;
+      }
+    }
     // One free axis: Brent alone does it; more: a simplex first.
     const found = free.length === 1
       ? { at: [Math.log(base[free[0]])] }
@@ -325,10 +339,14 @@ function gridAndPolish(
     const process = at(logs);
     offer(process, evaluate(process.slice()));
   };
-  // Polish from both: the start tracks the neighbouring maximum, the grid point guards against a jump to another basin.
+  // Polish from both: the start tracks the neighbouring maximum, the grid point guards against a jump to
+  // another basin. The start first; the grid point only when it is not already well below what the
+  // start reached (a grid point more than gridBasinMargin below is in the same basin or a lower one).
   const gridBest = best as number[] | null;
-  if (gridBest !== null) polish(gridBest);
-  if (start.length === depth && start.every((value) => Number.isFinite(value) && value >= 0)) polish(start);
+  const gridValue = bestValue;
+  const startUsable = start.length === depth && start.every((value) => Number.isFinite(value) && value >= 0);
+  if (startUsable) polish(start);
+  if (gridBest !== null && (!startUsable || gridValue > bestValue - gridBasinMargin)) polish(gridBest);
   const result = (best ?? clamp(start.slice())) as number[];
   const logLik = best === null ? Number.NEGATIVE_INFINITY : bestValue;
   const positions: AxisPosition[] = result.map((value, level) => {

@@ -41,17 +41,29 @@ describe('polishMaximum', () => {
   it('refuses a minimum, a stencil outside the range and a large step (returns the start unchanged)', () => {
     const bowl = ([p]: number[]): number => Math.log(p) ** 2;
     const atOne = { process: [1.0001], logLik: bowl([1.0001]) };
-    expect(polishMaximum(bowl, [axis('variance')], lineage, atOne, [0])).toEqual(atOne);
+    expect(polishMaximum(bowl, [axis('variance')], lineage, atOne, [0])).toEqual({ ...atOne, converged: false });
     const hill = ([p]: number[]): number => -(Math.log(p) ** 2);
     const nearEnd = { process: [1.0001], logLik: hill([1.0001]) };
-    expect(polishMaximum(hill, [axis('variance', 1e-6, 1.001)], lineage, nearEnd, [0])).toEqual(nearEnd);
+    expect(polishMaximum(hill, [axis('variance', 1e-6, 1.001)], lineage, nearEnd, [0])).toEqual({ ...nearEnd, converged: false });
     const far = { process: [Math.exp(0.1)], logLik: hill([Math.exp(0.1)]) };
-    expect(polishMaximum(hill, [axis('variance')], lineage, far, [0])).toEqual(far);
+    expect(polishMaximum(hill, [axis('variance')], lineage, far, [0])).toEqual({ ...far, converged: false });
   });
 
   it('does nothing when no axis is free', () => {
     const f = ([p]: number[]): number => -((p - 2) ** 2);
     const start = { process: [0], logLik: f([0]) };
-    expect(polishMaximum(f, [axis('variance')], lineage, start, [])).toEqual(start);
+    expect(polishMaximum(f, [axis('variance')], lineage, start, [])).toEqual({ ...start, converged: false });
+  });
+
+  it('with backtracking, reaches the maximum from a start where a full Newton step overshoots', () => {
+    // f = -ln cosh(u), u = ln p: Newton's step is -sinh(2u)/2, which from u = 1.2 jumps to u = -1.56 and
+    // diverges (a classic example, common practice); halving the step keeps every step uphill.
+    const f = ([p]: number[]): number => -Math.log(Math.cosh(Math.log(p)));
+    const start = { process: [Math.exp(1.2)], logLik: f([Math.exp(1.2)]) };
+    const plain = polishMaximum(f, [axis('variance')], lineage, start, [0], { largestStep: 5 });
+    expect(plain.converged).toBe(false);
+    const careful = polishMaximum(f, [axis('variance')], lineage, start, [0], { largestStep: 5, backtrack: true, iterations: 12 });
+    expect(careful.converged).toBe(true);
+    expect(Math.abs(Math.log(careful.process[0]))).toBeLessThan(1e-9);
   });
 });
