@@ -116,6 +116,8 @@ export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lin
       log: options.log === true,
       pool: options.pool === true,
       time_unit: options.timeUnit ?? 'Myr',
+      // As given (a label, or TRAIT=LABEL entries); each lineage's own unit is its trait_unit.
+      trait_unit: options.traitUnit === undefined ? null : options.traitUnit,
       models: name,
       intervals: options.intervals === false ? 'none' : intervalOptions(options.intervals).intervalMethod,
       likelihood: 'exact (joint) with known sampling variances, Kalman filter',

@@ -73,6 +73,7 @@ describe('fit --trait-unit, fit.json, redraw and report', () => {
     expect(printed.stdout).toMatch(/drift [\d.]+ mm per Myr/);
     expect(printed.stdout).toMatch(/step_variance [\d.e-]+ mm² per Myr/);
     expect(document.lineages.map((lineage: Json) => lineage.trait_unit)).toEqual(['mm', 'mm']);
+    expect(document.provenance.options.trait_unit).toEqual(['mm']);
   });
 
   it('the figures written at once carry the unit on the trait axis', () => {
@@ -103,7 +104,9 @@ describe('fit --trait-unit, fit.json, redraw and report', () => {
     const withUnit = JSON.parse(runCli(['fit', shellLength, '--trait-unit', 'mm', '--no-intervals', '--json'], root).stdout) as Json;
     const without = JSON.parse(runCli(['fit', shellLength, '--no-intervals', '--json'], root).stdout) as Json;
     expect(without.lineages.map((lineage: Json) => lineage.trait_unit)).toEqual([null, null]);
+    expect(without.provenance.options.trait_unit).toBeNull();
     for (const lineage of [...withUnit.lineages, ...without.lineages]) delete lineage.trait_unit;
+    for (const run of [withUnit, without]) delete run.provenance.options.trait_unit;
     expect(withUnit).toEqual(without);
   });
 });
