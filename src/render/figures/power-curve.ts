@@ -1,8 +1,9 @@
-import type { ChartConfiguration, Plugin } from 'chart.js';
+import type { ChartConfiguration, Plugin, Scale } from 'chart.js';
 import { drawFigure, measureText, type FigurePlan, type RenderedFigure } from './chart-backend.js';
 import { pointsPerCm, resolveFigureOptions, type FigureOptions } from './figure-options.js';
 import { font, wrapText } from './marks.js';
 import { ink, lineWidth, seriesStyles, typeSize } from './style.js';
+import { fittedTicks, tickLabel, type RoundStep } from './ticks.js';
 import { traitUnitLabel } from '../units.js';
 
 /** What the power-curve figure needs: the grid of `power --json` and a few words about the design. */
@@ -26,6 +27,39 @@ export interface PowerCurveInput {
 }
 
 const margin = 6;
+
+/**
+ * Tick options of one linear axis of the power curve: chart.js's own ticks
+ * are replaced after it builds them (`afterBuildTicks`) by the multiples of
+ * a 1, 2 or 5 × 10^k step inside the axis (`fittedTicks`, common practice
+ * for axis labelling), coarsened until the labels fit the axis length, and
+ * labelled with the step's decimals. Left to itself chart.js labels the
+ * axis ends, so a drift grid ending at 0.1237 showed "0.1237" (the same
+ * cure as the trajectory figure's `scaleOptions`).
+ */
+function roundTickOptions(limits: { min: number; max: number }, target: number): Record<string, unknown> {
+  let chosen: RoundStep | null = null;
+  const tickFont = font(typeSize.tick);
+  return {
+    afterBuildTicks(scale: Scale) {
+      // A flat or undefined axis has no round ticks to give: keep chart.js's.
+      if (!(limits.max > limits.min) || !Number.isFinite(limits.max - limits.min)) return;
+      const horizontal = scale.isHorizontal();
+      // Along a horizontal axis a label needs its width and a gap of about two thirds of the type size; up a vertical one, a line of type and 3 pt.
+      const extent = horizontal ? (label: string) => measureText(tickFont, label) + 0.6 * typeSize.tick : () => 1.2 * typeSize.tick + 3;
+      const fitted = fittedTicks(limits, target, horizontal ? scale.width : scale.height, extent);
+      chosen = fitted.step;
+      scale.ticks = fitted.values.map((value) => ({ value }));
+    },
+    ticks: {
+      color: ink.text,
+      font: { size: typeSize.tick },
+      autoSkip: false,
+      maxRotation: 0,
+      callback: (value: number | string) => (chosen === null ? String(value) : tickLabel(Number(value), chosen)),
+    },
+  };
+}
 
 /**
  * The power curve of a design: the probability of each decision rule
@@ -118,7 +152,7 @@ export function powerCurvePlan(input: PowerCurveInput, options: FigureOptions = 
           min: minimumDrift,
           max: maximumDrift,
           title: { display: true, text: `true drift (${traitUnits} per ${input.timeUnit})`, color: ink.text, font: { size: typeSize.axisTitle } },
-          ticks: { color: ink.text, font: { size: typeSize.tick }, maxTicksLimit: 8 },
+          ...roundTickOptions({ min: minimumDrift, max: maximumDrift }, 6),
           grid: { color: ink.grid, lineWidth: lineWidth.grid, tickLength: 3, tickColor: ink.axis },
           border: { color: ink.axis, width: lineWidth.axis },
         },
@@ -127,7 +161,7 @@ export function powerCurvePlan(input: PowerCurveInput, options: FigureOptions = 
           min: 0,
           max: 1,
           title: { display: true, text: 'probability', color: ink.text, font: { size: typeSize.axisTitle } },
-          ticks: { color: ink.text, font: { size: typeSize.tick }, stepSize: 0.2 },
+          ...roundTickOptions({ min: 0, max: 1 }, 6),
           grid: { color: ink.grid, lineWidth: lineWidth.grid, tickLength: 3, tickColor: ink.axis },
           border: { color: ink.axis, width: lineWidth.axis },
         },
