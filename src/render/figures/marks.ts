@@ -120,10 +120,30 @@ export function fillBetween(context: Context, lower: readonly { x: number; y: nu
   context.restore();
 }
 
+/**
+ * A colour given as #rrggbb at the given opacity, as a CSS rgba() string
+ * (for fills that must let what lies under them show through).
+ *
+ * @param hex - colour as "#rrggbb"
+ * @param opacity - 0 (transparent) to 1 (opaque)
+ * @throws Error when the colour is not written as #rrggbb
+ *
+ * @example
+ * withOpacity('#1d3f7a', 0.15); // "rgba(29, 63, 122, 0.15)"
+ */
+export function withOpacity(hex: string, opacity: number): string {
+  const match = /^#([0-9a-f]{2})([0-9a-f]{2})([0-9a-f]{2})$/i.exec(hex);
+  if (!match) throw new Error(`withOpacity needs a colour written as #rrggbb, got "${hex}"`);
+  const [red, green, blue] = match.slice(1).map((part) => parseInt(part, 16));
+  return `rgba(${red}, ${green}, ${blue}, ${opacity})`;
+}
+
 /** What a legend entry shows in its key (any combination). */
 export interface LegendKey {
   readonly line?: { readonly color: string; readonly width: number; readonly dash?: readonly number[] };
   readonly band?: { readonly fill: string; readonly edge?: string };
+  /** A band split into side-by-side strips, one per fill: one key for bands drawn in several colours. */
+  readonly swatches?: readonly string[];
   readonly marker?: { readonly shape: MarkerShape; readonly color: string; readonly filled?: boolean };
   /** An interval through the key, drawn along the horizontal. */
   readonly interval?: { readonly color: string };
@@ -137,37 +157,62 @@ export interface LegendEntry {
 
 /** Width of a legend key in points. */
 export const legendKeyWidth = 16;
-const legendGap = 4;
+/** Space between a legend key and its text, in points. */
+export const legendGap = 4;
+/** Space between two entries on one legend row, in points. */
+const legendEntryGap = 10;
 const legendRowHeight = typeSize.legend * 1.45;
+/** Distance between the lines of one wrapped legend entry. */
+const legendLineHeight = typeSize.legend * 1.2;
 
-/** Legend entries placed in rows: each row's entries with their x offsets. */
+/** A legend entry placed on a row: its x offset (points from the legend's left edge) and its text broken into lines. */
+export interface PlacedLegendEntry {
+  readonly entry: LegendEntry;
+  readonly x: number;
+  /** The entry's text as drawn, one line after another (one line unless it was wrapped). */
+  readonly lines: readonly string[];
+}
+
+/** Legend entries placed in rows; a row is as tall as its longest wrapped entry. */
 export interface LegendLayout {
-  readonly rows: readonly { readonly entries: readonly { readonly entry: LegendEntry; readonly x: number }[] }[];
+  readonly rows: readonly { readonly entries: readonly PlacedLegendEntry[]; readonly lines: number }[];
   readonly height: number;
 }
 
 /**
  * Place legend entries left to right, wrapping to a new row when the next
- * entry would pass `width`.
+ * entry would pass `width`. An entry whose text is too long for a row of
+ * its own is broken into lines under its text column (at spaces, and inside
+ * a word only when the word alone is too long), so no text runs past
+ * `width`; such an entry has its row to itself.
  *
+ * @param width - room for the legend in points
  * @param measure - text width in points for the legend font
  */
 export function layoutLegend(entries: readonly LegendEntry[], width: number, measure: (text: string) => number): LegendLayout {
-  const rows: { entries: { entry: LegendEntry; x: number }[] }[] = [];
-  let current: { entry: LegendEntry; x: number }[] = [];
+  const rows: { entries: PlacedLegendEntry[]; lines: number }[] = [];
+  let current: PlacedLegendEntry[] = [];
   let x = 0;
+  const textRoom = Math.max(1, width - legendKeyWidth - legendGap);
+  const closeRow = () => {
+    if (current.length > 0) rows.push({ entries: current, lines: Math.max(...current.map((placed) => placed.lines.length)) });
+    current = [];
+    x = 0;
+  };
   for (const entry of entries) {
     const entryWidth = legendKeyWidth + legendGap + measure(entry.text);
-    if (current.length > 0 && x + entryWidth > width) {
-      rows.push({ entries: current });
-      current = [];
-      x = 0;
+    if (current.length > 0 && x + entryWidth > width) closeRow();
+    if (entryWidth > width) {
+      current.push({ entry, x: 0, lines: wrapText(entry.text, textRoom, measure, { breakWords: true }) });
+      closeRow();
+      continue;
     }
-    current.push({ entry, x });
-    x += entryWidth + 10;
+    current.push({ entry, x, lines: [entry.text] });
+    x += entryWidth + legendEntryGap;
   }
-  if (current.length > 0) rows.push({ entries: current });
-  return { rows, height: rows.length * legendRowHeight };
+  closeRow();
+  const height = rows.reduce((sum, row) => sum + legendRowHeight + (row.lines - 1) * legendLineHeight, 0);
+  return { rows, height };
 }
 
 /** Draw a legend laid out by `layoutLegend` with its top-left corner at (left, top). */
@@ -176,9 +221,10 @@ export function drawLegend(context: Context, layout: LegendLayout, left: number,
   context.font = font(typeSize.legend);
   context.textBaseline = 'middle';
   context.textAlign = 'left';
-  layout.rows.forEach((row, r) => {
-    const y = top + legendRowHeight * (r + 0.5);
-    for (const { entry, x } of row.entries) {
+  let rowTop = top;
+  for (const row of layout.rows) {
+    const y = rowTop + legendRowHeight / 2;
+    for (const { entry, x, lines } of row.entries) {
       const kx = left + x;
       const { key } = entry;
       if (key.band) {
@@ -190,6 +236,13 @@ export function drawLegend(context: Context, layout: LegendLayout, left: number,
           context.setLineDash([]);
           context.strokeRect(kx, y - 3.2, legendKeyWidth, 6.4);
         }
+      }
+      if (key.swatches && key.swatches.length > 0) {
+        const strip = legendKeyWidth / key.swatches.length;
+        key.swatches.forEach((fill, i) => {
+          context.fillStyle = fill;
+          context.fillRect(kx + i * strip, y - 3.2, strip, 6.4);
+        });
       }
       if (key.line) {
         context.strokeStyle = key.line.color;
@@ -204,18 +257,30 @@ export function drawLegend(context: Context, layout: LegendLayout, left: number,
       if (key.interval) drawInterval(context, kx + 2, y, kx + legendKeyWidth - 2, y, key.interval.color);
       if (key.marker) drawMarker(context, key.marker.shape, kx + legendKeyWidth / 2, y, key.marker.color, key.marker.filled ?? true);
       context.fillStyle = ink.text;
-      context.fillText(entry.text, kx + legendKeyWidth + legendGap, y);
+      lines.forEach((line, k) => context.fillText(line, kx + legendKeyWidth + legendGap, y + k * legendLineHeight));
     }
-  });
+    rowTop += legendRowHeight + (row.lines - 1) * legendLineHeight;
+  }
   context.restore();
 }
 
-/** Break text into lines no wider than `width` (at spaces). */
-export function wrapText(text: string, width: number, measure: (text: string) => number): string[] {
+/**
+ * Break text into lines no wider than `width` (at spaces). A word wider
+ * than `width` stays whole on a line of its own, unless `breakWords` is set:
+ * then it is cut between characters into pieces that fit (at least one
+ * character a piece).
+ *
+ * @param measure - text width in points for the font the text is drawn in
+ *
+ * @example
+ * wrapText('Horizon mean with interval', 60, measure); // ["Horizon mean", "with interval"] (depending on the font)
+ */
+export function wrapText(text: string, width: number, measure: (text: string) => number, options: { readonly breakWords?: boolean } = {}): string[] {
   const words = text.split(/\s+/).filter((word) => word !== '');
+  const pieces = options.breakWords ? words.flatMap((word) => (measure(word) > width ? cutWord(word, width, measure) : [word])) : words;
   const lines: string[] = [];
   let line = '';
-  for (const word of words) {
+  for (const word of pieces) {
     const candidate = line === '' ? word : `${line} ${word}`;
     if (line !== '' && measure(candidate) > width) {
       lines.push(line);
@@ -226,4 +291,21 @@ export function wrapText(text: string, width: number, measure: (text: string) =>
   }
   if (line !== '') lines.push(line);
   return lines;
+}
+
+/** Cut one word into the longest leading pieces that fit `width` (whole characters, never an empty piece). */
+function cutWord(word: string, width: number, measure: (text: string) => number): string[] {
+  const characters = [...word];
+  const pieces: string[] = [];
+  let piece = '';
+  for (const character of characters) {
+    if (piece !== '' && measure(piece + character) > width) {
+      pieces.push(piece);
+      piece = character;
+    } else {
+      piece += character;
+    }
+  }
+  if (piece !== '') pieces.push(piece);
+  return pieces;
 }

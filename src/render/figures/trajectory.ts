@@ -4,7 +4,7 @@ import { figureLineageName, type FigureLineage } from './figure-input.js';
 import type { ResolvedFigureOptions } from './figure-options.js';
 import { pointsPerCm } from './figure-options.js';
 import { horizonMarks, modelCurve, smoothedBand, timeAxisFor, traitAxisTitle, type HorizonMark, type ModelCurve } from './geometry.js';
-import { drawInterval, drawLegend, drawMarker, fillBetween, font, layoutLegend, wrapText, type LegendEntry } from './marks.js';
+import { drawInterval, drawLegend, drawMarker, fillBetween, font, layoutLegend, withOpacity, wrapText, type LegendEntry, type LegendLayout } from './marks.js';
 import { ink, lineWidth, modelInk, seriesStyle, smoothedInk, typeSize, type SeriesStyle } from './style.js';
 
 /** The first part of a model label, before any gloss in parentheses: "directional walk (random walk with drift)" → "directional walk". */
@@ -38,14 +38,49 @@ function aspect(options: ResolvedFigureOptions): number {
   return wide ? 0.5 : 0.74;
 }
 
-const margin = 6;
+/** Space around the figure's content, in points; the legend starts this far from the left edge. */
+export const trajectoryMargin = 6;
+const margin = trajectoryMargin;
+
+/** Opacity of a section's envelope when several sections share a figure: light enough that two overlapping envelopes and the marks under them stay readable. */
+const sectionEnvelopeOpacity = 0.13;
+/** Opacity of the hairline edge of a section's envelope. */
+const sectionEnvelopeEdgeOpacity = 0.3;
+
+/** A trajectory figure's plan, with the legend as laid out (its lines are what is drawn). */
+export interface TrajectoryPlan extends FigurePlan {
+  readonly legend: LegendLayout;
+}
+
+/**
+ * The dataset labels of a model's 95% envelope: its lower and upper bound,
+ * each a list of points on the chart's axes (x, y as the orientation puts
+ * trait and time). `section` is given when several sections share the
+ * figure. The envelope is filled between the two, in the order drawn.
+ *
+ * @example
+ * envelopeLabels('Varnek Draw'); // { lower: "envelope lower: Varnek Draw", upper: "envelope upper: Varnek Draw" }
+ */
+export function envelopeLabels(section?: string): { lower: string; upper: string } {
+  const suffix = section === undefined ? '' : `: ${section}`;
+  return { lower: `envelope lower${suffix}`, upper: `envelope upper${suffix}` };
+}
+
+/** An envelope to fill: the indices of its lower and upper datasets, and its look. */
+interface EnvelopeFill {
+  readonly lower: number;
+  readonly upper: number;
+  readonly fill: string;
+  readonly edge: { readonly color: string; readonly width: number };
+}
 
 /**
  * Plan a trajectory figure for one lineage (`together` false) or for several
  * sections of one trait on a shared time axis (`together` true: each section
- * by colour, marker shape and dash pattern).
+ * by colour, marker shape and dash pattern, its model's 95% envelope lightly
+ * shaded in its colour).
  */
-export function trajectoryPlan(lineages: readonly FigureLineage[], options: ResolvedFigureOptions, together: boolean): FigurePlan {
+export function trajectoryPlan(lineages: readonly FigureLineage[], options: ResolvedFigureOptions, together: boolean): TrajectoryPlan {
   const axis = timeAxisFor(lineages);
   const series: Series[] = lineages.map((lineage, index) => {
     const { curve, reason } = modelCurve(lineage, axis, options.model);
@@ -83,17 +118,41 @@ export function trajectoryPlan(lineages: readonly FigureLineage[], options: Reso
     const extent: { x: number; y: number }[] = [];
     for (const item of series) {
       for (const mark of item.marks) extent.push(at(mark.time, mark.lower), at(mark.time, mark.upper));
-      if (item.curve && (!together || item.curve)) {
+      if (item.curve) {
         const curve = item.curve;
-        const envelope = !together && curve.hasEnvelope;
         curve.time.forEach((time, i) => {
-          extent.push(at(time, envelope ? curve.lower[i] : curve.mean[i]));
-          if (envelope) extent.push(at(time, curve.upper[i]));
+          extent.push(at(time, curve.hasEnvelope ? curve.lower[i] : curve.mean[i]));
+          if (curve.hasEnvelope) extent.push(at(time, curve.upper[i]));
         });
       }
       if (item.smoothed) item.smoothed.time.forEach((time, i) => extent.push(at(time, item.smoothed!.lower[i]), at(time, item.smoothed!.upper[i])));
     }
     datasets.push({ label: 'extent', order: 100, data: extent, pointRadius: 0, pointHoverRadius: 0, pointStyle: false, showLine: false });
+    // Envelopes are carried as two invisible datasets each (lower and upper bound, in chart coordinates); the plugin fills between them behind everything else.
+    const envelopes: EnvelopeFill[] = [];
+    for (const item of series) {
+      const curve = item.curve;
+      // No width (a variance at 0, or strict stasis): nothing to shade, as for one lineage.
+      if (!curve || !curve.hasEnvelope) continue;
+      const labels = envelopeLabels(together ? item.lineage.section || 'lineage' : undefined);
+      const bound = (label: string, values: readonly number[]): ChartDataset<'scatter'> => ({
+        label,
+        order: 90,
+        data: curve.time.map((time, i) => at(time, values[i])),
+        pointRadius: 0,
+        pointHoverRadius: 0,
+        pointStyle: false,
+        showLine: false,
+      });
+      datasets.push(bound(labels.lower, curve.lower), bound(labels.upper, curve.upper));
+      const style = item.style;
+      envelopes.push({
+        lower: datasets.length - 2,
+        upper: datasets.length - 1,
+        fill: style ? withOpacity(style.color, sectionEnvelopeOpacity) : modelInk.band,
+        edge: style ? { color: withOpacity(style.color, sectionEnvelopeEdgeOpacity), width: lineWidth.bandEdge } : { color: modelInk.bandEdge, width: lineWidth.bandEdge },
+      });
+    }
     for (const item of series) {
       if (!together) {
         datasets.push({
@@ -165,10 +224,10 @@ export function trajectoryPlan(lineages: readonly FigureLineage[], options: Reso
           subtitle: { display: subtitle.length > 0, text: subtitle, align: 'start', color: ink.muted, font: { size: typeSize.subtitle }, padding: { top: 0, bottom: 6 } },
         },
       },
-      plugins: [marksPlugin(series, stratigraphic, together, legend)],
+      plugins: [marksPlugin(series, stratigraphic, envelopes, legend)],
     };
   };
-  return { widthPoints, heightPoints, title, configuration };
+  return { widthPoints, heightPoints, title, configuration, legend };
 }
 
 function capitalised(text: string): string {
@@ -329,7 +388,11 @@ function subtitleText(series: readonly Series[], together: boolean, options: Res
   if (together) {
     const which = options.model ? `the ${shortModelLabel(series.find((s) => s.curve)?.curve?.label ?? options.model)} model fitted to each section` : "each section's best-supported model";
     const missing = series.filter((s) => !s.curve).map((s) => s.lineage.section || 'lineage');
-    return `Bars: 95% sampling intervals of the horizon means. Lines: expected trajectory of ${which}.${missing.length > 0 ? ` No line for ${missing.join(', ')}.` : ''}`;
+    const drawn = series.filter((s) => s.curve);
+    const flat = drawn.filter((s) => !s.curve!.hasEnvelope).map((s) => s.lineage.section || 'lineage');
+    const shading = flat.length === drawn.length ? '' : '; shading: its 95% envelope';
+    const noEnvelope = drawn.length === 0 || flat.length === 0 ? '' : flat.length === drawn.length ? ' No envelopes: every model drawn has its variance at 0.' : ` No envelope for ${flat.join(', ')} (variance at 0).`;
+    return `Bars: 95% sampling intervals of the horizon means. Lines: expected trajectory of ${which}${shading}.${noEnvelope}${missing.length > 0 ? ` No line for ${missing.join(', ')}.` : ''}`;
   }
   const item = series[0];
   if (!item.curve) return `No model trajectory drawn: ${item.curveReason}.`;
@@ -345,6 +408,9 @@ function legendEntries(series: readonly Series[], together: boolean): LegendEntr
   if (together) {
     const extrapolated = series.some((item) => item.lineage.extrapolated.some((flag) => flag));
     const open: LegendEntry[] = extrapolated ? [{ key: { marker: { shape: 'circle', color: ink.text, filled: false } }, text: 'Open marker: age extrapolated' }] : [];
+    // One entry for every shaded band (a strip of each section's tint), not one per section.
+    const shaded = series.filter((item) => item.curve?.hasEnvelope).map((item) => withOpacity(item.style!.color, 2 * sectionEnvelopeOpacity));
+    const bands: LegendEntry[] = shaded.length > 0 ? [{ key: { swatches: shaded }, text: shaded.length > 1 ? "Shading: 95% envelope of each section's model" : "Shading: 95% envelope of the model" }] : [];
     return [...series.map((item) => {
       const style = item.style!;
       const name = item.lineage.section || 'lineage';
@@ -355,7 +421,7 @@ function legendEntries(series: readonly Series[], together: boolean): LegendEntr
         },
         text: item.curve ? `${name}: ${shortModelLabel(item.curve.label)}` : name,
       };
-    }), ...open];
+    }), ...bands, ...open];
   }
   const item = series[0];
   const entries: LegendEntry[] = [
@@ -379,7 +445,7 @@ function legendEntries(series: readonly Series[], together: boolean): LegendEntr
   return entries;
 }
 
-function marksPlugin(series: readonly Series[], stratigraphic: boolean, together: boolean, legend: ReturnType<typeof layoutLegend>): Plugin<'scatter'> {
+function marksPlugin(series: readonly Series[], stratigraphic: boolean, envelopes: readonly EnvelopeFill[], legend: LegendLayout): Plugin<'scatter'> {
   const pixel = (chart: Chart, time: number, value: number) => {
     const x = chart.scales.x.getPixelForValue(stratigraphic ? value : time);
     const y = chart.scales.y.getPixelForValue(stratigraphic ? time : value);
@@ -396,17 +462,10 @@ function marksPlugin(series: readonly Series[], stratigraphic: boolean, together
     id: 'stratotrendTrajectory',
     beforeDatasetsDraw(chart) {
       clip(chart);
+      // Drawn from the envelope datasets themselves, so what is shaded is what the configuration carries.
+      const points = (index: number) => (chart.data.datasets[index].data as { x: number; y: number }[]).map((point) => ({ x: chart.scales.x.getPixelForValue(point.x), y: chart.scales.y.getPixelForValue(point.y) }));
+      for (const envelope of envelopes) fillBetween(chart.ctx, points(envelope.lower), points(envelope.upper), envelope.fill, envelope.edge);
       for (const item of series) {
-        if (item.curve && item.curve.hasEnvelope && !together) {
-          const curve = item.curve;
-          fillBetween(
-            chart.ctx,
-            curve.time.map((t, i) => pixel(chart, t, curve.lower[i])),
-            curve.time.map((t, i) => pixel(chart, t, curve.upper[i])),
-            modelInk.band,
-            { color: modelInk.bandEdge, width: lineWidth.bandEdge },
-          );
-        }
         if (item.smoothed) {
           const band = item.smoothed;
           fillBetween(
