@@ -2,7 +2,7 @@ import type { AdequacyResult } from '../fit/adequacy.js';
 import type { LineageFit } from '../fit/fit-lineage.js';
 import { neutralAssumptions, neutralDivergenceRange, type LineageRates } from '../fit/rates.js';
 import { alignColumns } from './text-table.js';
-import { formatNumber } from './units.js';
+import { formatNumber, squaredLabel, traitUnitLabel, unitLabel } from './units.js';
 
 /** Wrap words to lines of at most `width` characters, each line indented. */
 export function wrapWords(text: string, indent: string, width = 100): string[] {
@@ -27,10 +27,25 @@ function shownModels(fit: LineageFit): Set<string> {
  * Rates of one lineage as text: whole sequence and each interval in darwins
  * and haldanes, model-based rates with Lynch's neutral range and its
  * assumptions, and the caution about interval dependence.
+ *
+ * With a trait unit on the lineage (`--trait-unit`, `Lineage.traitUnit`) the
+ * model-based estimates carry it ("0.32 mm per Myr", "0.087 mm² per Myr";
+ * "ln mm" with `--log`) and a step variance per Myr on the ln scale reads
+ * "(ln mm)²"; darwins, haldanes and Delta are unit-free by definition
+ * (Haldane 1949, Evolution 3:51-56; Gingerich 1993, Am. J. Sci.
+ * 293-A:453-478; Lynch 1990, Am. Nat. 136:727-741) and stay as they are.
+ * Without a unit the text is what it was before the option existed.
  */
 export function ratesText(fit: LineageFit, rates: LineageRates): string {
   const lines: string[] = [];
   const unit = rates.timeUnit;
+  const traitUnit = fit.lineage.traitUnit || null;
+  const traitLabel = traitUnitLabel(traitUnit, fit.lineage.logTransformed, '');
+  // A model-based estimate in the trait unit: drift is trait per time, a step variance trait² per time.
+  const estimateCell = (rate: LineageRates['model'][number]): string =>
+    traitUnit === null ? formatNumber(rate.estimate) : `${formatNumber(rate.estimate)} ${unitLabel({ trait: rate.kind === 'drift' ? 1 : 2, time: -1 }, unit, traitLabel)}`;
+  const perMillionYearsSuffix = (rate: LineageRates['model'][number]): string =>
+    rate.kind === 'drift' ? ' darwins' : traitUnit === null ? '' : ` ${squaredLabel(traitLabel)}`;
   lines.push(`  Rates (ln trait: ${rates.scale}; generation time ${rates.generationTime === null ? 'not given' : `${formatNumber(rates.generationTime)} yr`}):`);
   const rows: string[][] = [['interval', `length (${unit})`, 'ln change', 'darwins', 'haldanes']];
   const row = (name: string, rate: LineageRates['whole']): string[] => [
@@ -47,13 +62,13 @@ export function ratesText(fit: LineageFit, rates: LineageRates): string {
   const modelRates = rates.model.filter((rate) => shown.has(rate.model));
   if (modelRates.length > 0) {
     lines.push('  Model-based rates (best model and models with Akaike weight >= 0.05):');
-    const modelRows: string[][] = [['model', 'parameter', `estimate (per ${unit})`, 'per Myr', 'per generation', 'neutral range']];
+    const modelRows: string[][] = [['model', 'parameter', traitUnit === null ? `estimate (per ${unit})` : 'estimate', 'per Myr', 'per generation', 'neutral range']];
     for (const rate of modelRates) {
       modelRows.push([
         rate.model,
         rate.parameter,
-        formatNumber(rate.estimate),
-        rate.perMillionYears === null ? '—' : `${formatNumber(rate.perMillionYears)}${rate.kind === 'drift' ? ' darwins' : ''}`,
+        estimateCell(rate),
+        rate.perMillionYears === null ? '—' : `${formatNumber(rate.perMillionYears)}${perMillionYearsSuffix(rate)}`,
         rate.perGeneration === null ? '—' : `${formatNumber(rate.perGeneration)}${rate.kind === 'drift' ? ' haldanes' : ' (Delta)'}`,
         rate.neutral === null ? '' : `${rate.neutral} ${neutralDivergenceRange.lower} to ${neutralDivergenceRange.upper}`,
       ]);
