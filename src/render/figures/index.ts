@@ -54,8 +54,9 @@ export function renderTrajectory(lineageDocument: unknown, options: FigureOption
 /**
  * Several sections of one trait on a shared time axis (ages line up across
  * sections). Each section's horizons and its model's expected trajectory
- * (best-supported by default) are drawn; envelopes and smoothed bands are
- * left to the one-lineage figures so the sections stay legible.
+ * (best-supported by default) are drawn, with the model's 95% envelope
+ * lightly shaded in the section's colour (none where its variance is 0);
+ * smoothed bands are left to the one-lineage figures so the sections stay legible.
  *
  * @param lineageDocuments - the lineage documents of the sections, in legend order
  */

@@ -107,7 +107,7 @@ export function svgText(svg: string): { root: Record<string, string>; text: stri
     const [, closing, name, attributes, selfClosing, textNode] = match;
     if (textNode !== undefined) {
       if (stack[stack.length - 1] === 'text' || stack[stack.length - 1] === 'tspan') {
-        const decoded = textNode.replace(/&lt;/g, '<').replace(/&gt;/g, '>').replace(/&quot;/g, '"').replace(/&#(\d+);/g, (_m, code) => String.fromCodePoint(Number(code))).replace(/&#x([0-9a-f]+);/gi, (_m, code) => String.fromCodePoint(parseInt(code, 16))).replace(/&amp;/g, '&');
+        const decoded = textNode.replace(/&lt;/g, '<').replace(/&gt;/g, '>').replace(/&quot;/g, '"').replace(/&apos;/g, "'").replace(/&#(\d+);/g, (_m, code) => String.fromCodePoint(Number(code))).replace(/&#x([0-9a-f]+);/gi, (_m, code) => String.fromCodePoint(parseInt(code, 16))).replace(/&amp;/g, '&');
         if (decoded.trim() !== '') words.push(decoded.trim());
       } else if (textNode.trim() !== '') {
         throw new Error(`stray text outside elements: ${textNode.slice(0, 40)}`);
