@@ -104,8 +104,12 @@ export function trajectoryPlan(lineages: readonly FigureLineage[], options: Reso
   const subtitle = wrapText(subtitleText(series, together, options), innerWidth, subtitleMeasure);
   const stratigraphic = options.orientation === 'stratigraphic';
   const traitTitle = traitAxisTitle(lineages[0]);
-  // The aspect allows for one subtitle line; each further line (narrow figures wrap it) adds its own height, so the plot is not squeezed.
-  const extraSubtitle = Math.max(0, subtitle.length - 1) * typeSize.subtitle * 1.2;
+  // chart.js squeezes a title wider than its box (it draws with maxWidth), so narrow figures wrap the title and the horizontal axis title instead.
+  const titleLines = wrapText(title, innerWidth, (text) => measureText(font(typeSize.title, 'bold'), text), { breakWords: true });
+  // A horizontal axis title gets the plot's width: the figure less the vertical axis (about 40 pt of tick labels and title).
+  const horizontalTitle = wrapText(stratigraphic ? traitTitle : axis.title, Math.max(40, innerWidth - 40), (text) => measureText(font(typeSize.axisTitle), text), { breakWords: true });
+  // The aspect allows for one line of title, subtitle and horizontal axis title; each further line (narrow figures wrap them) adds its own height, so the plot is not squeezed.
+  const extraSubtitle = Math.max(0, subtitle.length - 1) * typeSize.subtitle * 1.2 + (titleLines.length - 1) * typeSize.title * 1.2 + (horizontalTitle.length - 1) * typeSize.axisTitle * 1.2;
   // Narrow figures: the plot stays at least as tall as the vertical axis title is long (about 60 pt of title, subtitle and horizontal axis go above and below it).
   const verticalTitle = measureText(font(typeSize.axisTitle), stratigraphic ? axis.title : traitTitle);
   const chartPart = Math.max(widthPoints * aspect(options), verticalTitle + 60);
@@ -208,8 +212,8 @@ export function trajectoryPlan(lineages: readonly FigureLineage[], options: Reso
     const ys = extent.map((point) => point.y);
     const timeValues = stratigraphic ? ys : xs;
     const traitValues = stratigraphic ? xs : ys;
-    const timeScale = scaleOptions(axis.title, axis.reverse, padded(timeValues), stratigraphic ? 7 : 6);
-    const traitScale = scaleOptions(traitTitle, false, padded(traitValues), 5);
+    const timeScale = scaleOptions(stratigraphic ? axis.title : horizontalTitle, axis.reverse, padded(timeValues), stratigraphic ? 7 : 6);
+    const traitScale = scaleOptions(stratigraphic ? horizontalTitle : traitTitle, false, padded(traitValues), 5);
     return {
       type: 'scatter',
       data: { datasets },
@@ -220,7 +224,7 @@ export function trajectoryPlan(lineages: readonly FigureLineage[], options: Reso
         plugins: {
           legend: { display: false },
           tooltip: { enabled: false },
-          title: { display: true, text: title, align: 'start', color: ink.text, font: { size: typeSize.title, weight: 'bold' }, padding: { top: 0, bottom: 2 } },
+          title: { display: true, text: titleLines.length > 1 ? titleLines : title, align: 'start', color: ink.text, font: { size: typeSize.title, weight: 'bold' }, padding: { top: 0, bottom: 2 } },
           subtitle: { display: subtitle.length > 0, text: subtitle, align: 'start', color: ink.muted, font: { size: typeSize.subtitle }, padding: { top: 0, bottom: 6 } },
         },
       },
@@ -360,7 +364,7 @@ function fittedTicks(limits: { min: number; max: number }, target: number, lengt
  * nor rotates ticks: every tick is a multiple of a 1, 2 or 5 × 10^k step
  * coarse enough that the labels fit.
  */
-function scaleOptions(title: string, reverse: boolean, limits: { min: number; max: number }, ticks: number): ScaleOptionsByType<'linear'> {
+function scaleOptions(title: string | readonly string[], reverse: boolean, limits: { min: number; max: number }, ticks: number): ScaleOptionsByType<'linear'> {
   let chosen: RoundStep = roundStep(limits.max - limits.min, ticks);
   const tickFont = font(typeSize.tick);
   return {
@@ -368,7 +372,7 @@ function scaleOptions(title: string, reverse: boolean, limits: { min: number; ma
     reverse,
     min: limits.min,
     max: limits.max,
-    title: { display: true, text: title, color: ink.text, font: { size: typeSize.axisTitle }, padding: { top: 2, bottom: 1 } },
+    title: { display: true, text: typeof title === 'string' ? title : title.length > 1 ? [...title] : title[0], color: ink.text, font: { size: typeSize.axisTitle }, padding: { top: 2, bottom: 1 } },
     afterBuildTicks(scale: Scale) {
       const horizontal = scale.isHorizontal();
       // Along a horizontal axis a label needs its width and a gap of about two thirds of the type size; up a vertical one, a line of type and 3 pt.

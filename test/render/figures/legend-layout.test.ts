@@ -75,6 +75,27 @@ describe('legend layout', () => {
     expect(plan.legend.rows.some((row) => row.lines > 1)).toBe(true);
   });
 
+  it('4 cm: the title and the horizontal axis title are wrapped to lines that fit (chart.js would squeeze them), 9 cm keeps them on one line', () => {
+    for (const widthCm of [4, 9]) {
+      for (const orientation of ['stratigraphic', 'horizontal'] as const) {
+        const lineages = longNamedSections().map((document, i) => readFigureLineage(document, `lineages[${i}]`));
+        const plan = trajectoryPlan(lineages, resolveFigureOptions({ width: widthCm, orientation }), true);
+        const configuration = plan.configuration() as unknown as {
+          options: { plugins: { title: { text: string | string[] } }; scales: { x: { title: { text: string | string[] } } } };
+        };
+        const title = [configuration.options.plugins.title.text].flat();
+        const axisTitle = [configuration.options.scales.x.title.text].flat();
+        const room = plan.widthPoints - 2 * trajectoryMargin;
+        for (const line of title) expect(measureText(font(typeSize.title, 'bold'), line), line).toBeLessThanOrEqual(room + 1e-9);
+        for (const line of axisTitle) expect(measureText(font(typeSize.axisTitle), line), line).toBeLessThanOrEqual(room - 40 + 1e-9);
+        // "Valve width (mean per horizon)" is longer than a 4 cm plot is wide; "Age (Ma)" is not.
+        if (widthCm === 4 && orientation === 'stratigraphic') expect(axisTitle.length).toBeGreaterThan(1);
+        else if (widthCm === 4) expect(axisTitle).toEqual(['Age (Ma)']);
+        else expect(title.length + axisTitle.length).toBe(2);
+      }
+    }
+  });
+
   it('wrapText cuts a word only when asked and only when the word alone is too wide', () => {
     const word = 'Kettlebrook-Whinmoor-Underscar-Gully';
     const width = legendMeasure(word) / 3;
