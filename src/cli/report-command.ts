@@ -154,7 +154,7 @@ export async function reportFigures(document: FitDocumentView, choices: ReportFi
       const drawn = job.kind === 'trajectory' ? renderTrajectory(lineages[0], options) : renderSectionsTogether(lineages, options);
       const caption = job.kind === 'trajectory'
         ? `${lineageTitle(lineages[0])}: horizon means with 95% sampling intervals (±1.96 √eᵢ), the expected trajectory of ${modelWords(lineages[0], choices.drawModel)} with its 95% envelope${options.smoothed ? ', and the smoothed lineage mean with its 95% band' : ''}; ${direction}.`
-        : `${lineages[0].trait || 'trait'}: ${lineages.map((lineage) => lineage.section || 'lineage').join(', ')} on one time axis, each with the expected trajectory of its ${choices.drawModel ? 'chosen' : 'best-supported'} model; ${direction}.`;
+        : `${lineages[0].trait || 'trait'}: ${lineages.map((lineage) => lineage.section || 'lineage').join(', ')} on one time axis, each with the expected trajectory of its ${choices.drawModel ? 'chosen' : 'best-supported'} model and its 95% envelope shaded (none where the model's variance is 0); ${direction}.`;
       figures.push({
         lineage: job.kind === 'trajectory' ? job.lineages[0] : null,
         kind: job.kind,

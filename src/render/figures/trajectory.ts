@@ -6,6 +6,7 @@ import { pointsPerCm } from './figure-options.js';
 import { horizonMarks, modelCurve, smoothedBand, timeAxisFor, traitAxisTitle, type HorizonMark, type ModelCurve } from './geometry.js';
 import { drawInterval, drawLegend, drawMarker, fillBetween, font, layoutLegend, withOpacity, wrapText, type LegendEntry, type LegendLayout } from './marks.js';
 import { ink, lineWidth, modelInk, seriesStyle, smoothedInk, typeSize, type SeriesStyle } from './style.js';
+import { fittedTicks, roundStep, tickLabel, type RoundStep } from './ticks.js';
 
 /** The first part of a model label, before any gloss in parentheses: "directional walk (random walk with drift)" → "directional walk". */
 export function shortModelLabel(label: string): string {
@@ -255,103 +256,8 @@ function padded(values: readonly number[]): { min: number; max: number } {
   return { min: low - pad, max: high + pad };
 }
 
-/** A round tick step, multiple × 10^exponent, kept as its parts so that ticks k × step carry no binary drift. */
-interface RoundStep {
-  readonly multiple: 1 | 2 | 5;
-  readonly exponent: number;
-}
-
-/** 10^exponent, exact for |exponent| ≤ 22 (parsed from decimal text, not computed by pow). */
-function powerOfTen(exponent: number): number {
-  return Number(`1e${exponent}`);
-}
-
-function stepValue(step: RoundStep): number {
-  return step.exponent >= 0 ? step.multiple * powerOfTen(step.exponent) : step.multiple / powerOfTen(-step.exponent);
-}
-
-/** The next coarser step on the 1–2–5 ladder: 1 → 2 → 5 → 10. */
-function coarser(step: RoundStep): RoundStep {
-  if (step.multiple === 1) return { multiple: 2, exponent: step.exponent };
-  if (step.multiple === 2) return { multiple: 5, exponent: step.exponent };
-  return { multiple: 1, exponent: step.exponent + 1 };
-}
-
-function roundStep(span: number, target: number): RoundStep {
-  const exponent = Math.floor(Math.log10(span / target));
-  let best: RoundStep = { multiple: 1, exponent };
-  let bestMiss = Number.POSITIVE_INFINITY;
-  for (let k = exponent - 1; k <= exponent + 1; k++) {
-    for (const multiple of [1, 2, 5] as const) {
-      const step = { multiple, exponent: k };
-      const count = Math.floor(span / stepValue(step)) + 1;
-      const miss = count < 3 ? Number.POSITIVE_INFINITY : Math.abs(count - target);
-      if (miss < bestMiss) {
-        best = step;
-        bestMiss = miss;
-      }
-    }
-  }
-  return best;
-}
-
-/**
- * A round tick step (1, 2 or 5 × 10^k, common practice for axis labelling)
- * giving close to `target` ticks over the span, never fewer than 3.
- *
- * @example
- * tickStep(1.08e6, 5); // 200000
- */
-export function tickStep(span: number, target: number): number {
-  return stepValue(roundStep(span, target));
-}
-
-/**
- * Every integer multiple k × step inside [min, max], ascending. Each value is
- * computed from the integer k × multiple and an exact power of ten, so 0.3
- * is the double nearest 0.3 rather than 3 × 0.1.
- */
-function roundTicks(min: number, max: number, step: RoundStep): number[] {
-  const size = stepValue(step);
-  const first = Math.ceil(min / size - 1e-9);
-  const last = Math.floor(max / size + 1e-9);
-  const values: number[] = [];
-  for (let k = first; k <= last; k++) {
-    const whole = k * step.multiple;
-    // + 0 turns -0 into 0, so no tick is labelled "-0".
-    values.push((step.exponent >= 0 ? whole * powerOfTen(step.exponent) : whole / powerOfTen(-step.exponent)) + 0);
-  }
-  return values;
-}
-
-/** A tick label: en-US digit grouping and as many decimals as the step has ("4.5", "1,000,000"). */
-function tickLabel(value: number, step: RoundStep): string {
-  const decimals = Math.min(20, Math.max(0, -step.exponent));
-  return new Intl.NumberFormat('en-US', { minimumFractionDigits: decimals, maximumFractionDigits: decimals }).format(value + 0);
-}
-
-/**
- * The ticks of one axis: start from `tickStep`'s step and move up the
- * 1–2–5 ladder until neighbouring labels no longer collide over the axis
- * length (points), keeping at least two ticks. `extent` is the room one
- * label needs along the axis, gap included.
- */
-function fittedTicks(limits: { min: number; max: number }, target: number, length: number, extent: (label: string) => number): { step: RoundStep; values: number[] } {
-  const span = limits.max - limits.min;
-  let step = roundStep(span, target);
-  let values = roundTicks(limits.min, limits.max, step);
-  for (let guard = 0; guard < 64; guard++) {
-    const spacing = (length * stepValue(step)) / span;
-    const needed = Math.max(...values.map((value) => extent(tickLabel(value, step))));
-    if (spacing >= needed) break;
-    const next = coarser(step);
-    const nextValues = roundTicks(limits.min, limits.max, next);
-    if (nextValues.length < 2) break;
-    step = next;
-    values = nextValues;
-  }
-  return { step, values };
-}
+// The round-tick helpers (1–2–5 × 10^k steps, labels that fit) live in ticks.ts, shared with the power curve.
+export { tickStep } from './ticks.js';
 
 /**
  * One linear axis. Its ticks are set here, after chart.js has built its own
