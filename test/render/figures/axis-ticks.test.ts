@@ -5,90 +5,26 @@
  * (common practice for axis labelling): the step between ticks is 1, 2 or
  * 5 × 10^k and every tick is an integer multiple of that step.
  */
-import type { Chart, Plugin } from 'chart.js';
 import { describe, expect, it } from 'vitest';
+import { recordDrawnTicks, roundAxisFailures, type DrawnScale } from './drawn-ticks.js';
 import { fitLineage } from '../../../src/fit/fit-lineage.js';
 import { lineageFromArrays } from '../../../src/lineage.js';
 import { classicModels } from '../../../src/models/registry.js';
 import { lineageDocument } from '../../../src/render/fit-document.js';
-import { drawFigure } from '../../../src/render/figures/chart-backend.js';
 import { readFigureLineage } from '../../../src/render/figures/figure-input.js';
 import { resolveFigureOptions, type FigureOptions } from '../../../src/render/figures/figure-options.js';
 import { tickStep, trajectoryPlan } from '../../../src/render/figures/trajectory.js';
 import { ridgeDocument } from './documents.js';
 
-interface DrawnScale {
-  readonly min: number;
-  readonly max: number;
-  readonly horizontal: boolean;
-  readonly values: number[];
-  readonly labels: string[];
-  /** Pixel distance between neighbouring ticks (chart units, points) and the widest label. */
-  readonly spacing: number;
-  readonly widestLabel: number;
-}
 
 /** Draw the trajectory figure of each document and record every scale's ticks as chart.js laid them out. */
 function drawnTicks(documents: readonly unknown[], options: FigureOptions): Record<string, DrawnScale> {
   const resolved = resolveFigureOptions(options);
   const lineages = documents.map((document, i) => readFigureLineage(document, `document ${i}`));
   const plan = trajectoryPlan(lineages, resolved, lineages.length > 1);
-  const recorded: Record<string, DrawnScale> = {};
-  const recorder: Plugin = {
-    id: 'tickRecorder',
-    afterDraw(chart: Chart) {
-      for (const [id, scale] of Object.entries(chart.scales)) {
-        const values = scale.ticks.map((tick) => tick.value);
-        const pixels = values.map((value) => scale.getPixelForValue(value)).sort((a, b) => a - b);
-        const gaps = pixels.slice(1).map((pixel, i) => pixel - pixels[i]);
-        const labels = scale.ticks.map((tick) => String(tick.label));
-        recorded[id] = {
-          min: scale.min,
-          max: scale.max,
-          horizontal: scale.isHorizontal(),
-          values,
-          labels,
-          spacing: gaps.length > 0 ? Math.min(...gaps) : Number.POSITIVE_INFINITY,
-          // chart.js's own measure of its labels (the sizes it lays the axis out with).
-          widestLabel: scale.isHorizontal() ? (scale as unknown as { _getLabelSizes(): { widest: { width: number } } })._getLabelSizes().widest.width : (scale as unknown as { _getLabelSizes(): { highest: { height: number } } })._getLabelSizes().highest.height,
-        };
-      }
-    },
-  };
-  const configuration = () => {
-    const base = plan.configuration();
-    return { ...base, plugins: [...(base.plugins ?? []), recorder] };
-  };
-  drawFigure({ ...plan, configuration }, resolved);
-  return recorded;
+  return recordDrawnTicks(plan, resolved);
 }
 
-/**
- * What is wrong with a set of ticks under the closed form of a round axis
- * (common practice): empty when every tick is an integer multiple of one
- * step, that step is 1, 2 or 5 × 10^k, the ticks are evenly spaced by it,
- * lie inside the axis, and each label reads back as its value.
- */
-function roundAxisFailures(scale: DrawnScale): string[] {
-  const failures: string[] = [];
-  const values = [...scale.values].sort((a, b) => a - b);
-  if (values.length < 2) return [`${values.length} tick(s): ${values.join(', ')}`];
-  const step = values[1] - values[0];
-  const exponent = Math.floor(Math.log10(step));
-  const mantissa = step / 10 ** exponent;
-  if (![1, 2, 5, 10].some((round) => Math.abs(mantissa - round) < 1e-9 * round)) failures.push(`step ${step} is not 1, 2 or 5 × 10^k`);
-  values.forEach((value, i) => {
-    const multiple = value / step;
-    if (Math.abs(multiple - Math.round(multiple)) > 1e-9 * Math.max(1, Math.abs(multiple))) failures.push(`tick ${value} is not a multiple of ${step}`);
-    if (i > 0 && Math.abs(value - values[i - 1] - step) > 1e-9 * step) failures.push(`ticks ${values[i - 1]} and ${value} are not one step (${step}) apart`);
-    if (value < scale.min - 1e-9 * step || value > scale.max + 1e-9 * step) failures.push(`tick ${value} outside the axis ${scale.min}…${scale.max}`);
-  });
-  scale.values.forEach((value, i) => {
-    const read = Number(scale.labels[i].replace(/,/g, '').replace(/\u2212/g, '-'));
-    if (!(Math.abs(read - value) <= 1e-9 * step)) failures.push(`label "${scale.labels[i]}" does not read as ${value}`);
-  });
-  return failures;
-}
 
 /**
  * A real fit (fitLineage + lineageDocument, the fit.json contract) of an

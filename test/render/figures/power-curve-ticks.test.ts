@@ -7,21 +7,11 @@
  * with awkward ends (0 to 0.1237, 0 to 37.3) are the cases in which chart.js
  * labelled the axis end itself ("0.1237").
  */
-import type { Chart, Plugin } from 'chart.js';
 import { describe, expect, it } from 'vitest';
-import { drawFigure } from '../../../src/render/figures/chart-backend.js';
+import { recordDrawnTicks, roundAxisFailures, type DrawnScale } from './drawn-ticks.js';
 import { powerCurvePlan, type PowerCurveInput } from '../../../src/render/figures/power-curve.js';
 import { fittedTicks, roundTicks, tickLabel, tickStep } from '../../../src/render/figures/ticks.js';
 
-interface DrawnScale {
-  readonly min: number;
-  readonly max: number;
-  readonly values: number[];
-  readonly labels: string[];
-  /** Smallest distance between neighbouring ticks (points) and the widest label (chart.js's own measure). */
-  readonly spacing: number;
-  readonly widestLabel: number;
-}
 
 /** An invented design's power grid: `count` drifts evenly from 0 to `maximumDrift`, power rising with drift. */
 function powerInput(maximumDrift: number, count = 11): PowerCurveInput {
@@ -36,59 +26,9 @@ function powerInput(maximumDrift: number, count = 11): PowerCurveInput {
 /** Draw the power curve and record each scale's ticks as chart.js laid them out. */
 function drawnTicks(input: PowerCurveInput, width: number): Record<string, DrawnScale> {
   const { plan, resolved } = powerCurvePlan(input, { width, dpi: 72 });
-  const recorded: Record<string, DrawnScale> = {};
-  const recorder: Plugin = {
-    id: 'tickRecorder',
-    afterDraw(chart: Chart) {
-      for (const [id, scale] of Object.entries(chart.scales)) {
-        const values = scale.ticks.map((tick) => tick.value);
-        const pixels = values.map((value) => scale.getPixelForValue(value)).sort((a, b) => a - b);
-        const gaps = pixels.slice(1).map((pixel, i) => pixel - pixels[i]);
-        const sizes = (scale as unknown as { _getLabelSizes(): { widest: { width: number }; highest: { height: number } } })._getLabelSizes();
-        recorded[id] = {
-          min: scale.min,
-          max: scale.max,
-          values,
-          labels: scale.ticks.map((tick) => String(tick.label)),
-          spacing: gaps.length > 0 ? Math.min(...gaps) : Number.POSITIVE_INFINITY,
-          widestLabel: scale.isHorizontal() ? sizes.widest.width : sizes.highest.height,
-        };
-      }
-    },
-  };
-  const configuration = () => {
-    const base = plan.configuration();
-    return { ...base, plugins: [...(base.plugins ?? []), recorder] };
-  };
-  drawFigure({ ...plan, configuration }, resolved);
-  return recorded;
+  return recordDrawnTicks(plan, resolved);
 }
 
-/**
- * What is wrong with a set of ticks under the closed form of a round axis
- * (common practice): empty when the step is 1, 2 or 5 × 10^k, every tick is
- * an integer multiple of it, neighbours are one step apart, the ticks lie on
- * the axis and each label reads back as its value.
- */
-function roundAxisFailures(scale: DrawnScale): string[] {
-  const failures: string[] = [];
-  const values = [...scale.values].sort((a, b) => a - b);
-  if (values.length < 2) return [`${values.length} tick(s): ${values.join(', ')}`];
-  const step = values[1] - values[0];
-  const mantissa = step / 10 ** Math.floor(Math.log10(step));
-  if (![1, 2, 5, 10].some((round) => Math.abs(mantissa - round) < 1e-9 * round)) failures.push(`step ${step} is not 1, 2 or 5 × 10^k`);
-  values.forEach((value, i) => {
-    const multiple = value / step;
-    if (Math.abs(multiple - Math.round(multiple)) > 1e-9 * Math.max(1, Math.abs(multiple))) failures.push(`tick ${value} is not a multiple of ${step}`);
-    if (i > 0 && Math.abs(value - values[i - 1] - step) > 1e-9 * step) failures.push(`ticks ${values[i - 1]} and ${value} are not one step (${step}) apart`);
-    if (value < scale.min - 1e-9 * step || value > scale.max + 1e-9 * step) failures.push(`tick ${value} outside the axis ${scale.min}…${scale.max}`);
-  });
-  scale.values.forEach((value, i) => {
-    const read = Number(scale.labels[i].replace(/,/g, ''));
-    if (!(Math.abs(read - value) <= 1e-9 * step)) failures.push(`label "${scale.labels[i]}" does not read as ${value}`);
-  });
-  return failures;
-}
 
 describe('power-curve axis ticks (closed form: integer multiples of a 1, 2 or 5 × 10^k step)', () => {
   for (const maximumDrift of [0.1237, 37.3, 0.09029, 2.5e-4, 1234.5]) {
