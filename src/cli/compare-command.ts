@@ -15,7 +15,7 @@ import { modelsCsv } from '../render/models-csv.js';
 import { alignColumns, lineageTable } from '../render/text-table.js';
 import { formatNumber } from '../render/units.js';
 import { resolveModels } from './fit-command.js';
-import { lineagesOf, loadSamplesStreamed, readInput, terminalProgress, type InputText, type SampleFileOptions, type StreamedInput } from './input.js';
+import { delimiterOption, lineagesOf, loadSamplesStreamed, readInput, terminalProgress, type InputText, type SampleFileOptions, type StreamedInput } from './input.js';
 import { toolVersion } from './version.js';
 import { inputPaths, prepareOutputFolder, writeAtomically } from './write-output.js';
 
@@ -42,8 +42,7 @@ export interface CompareCommandOptions extends SampleFileOptions, AgeModelOption
 /** Read and validate an age-model file (tie points). */
 export function loadAgeModel(path: string, options: SampleFileOptions): { input: InputText; model: AgeModel } {
   const input = readInput(path);
-  const delimiter = options.delimiter === 'tab' || options.delimiter === '\\t' ? '\t' : options.delimiter;
-  const model = readAgeModel(readTable(input.text, input.name, { delimiter }), { decimalComma: options.decimalComma });
+  const model = readAgeModel(readTable(input.text, input.name, { delimiter: delimiterOption(options.delimiter) }), { decimalComma: options.decimalComma });
   return { input, model };
 }
 
@@ -66,6 +65,12 @@ export function ageModelWords(model: AgeModel, unit: string): string {
     lines.push(`  ${section || 'every section'}: ${ties.length} ties, sedimentation rates ${rates.join(', ')}${uncertain > 0 ? `; ${uncertain} with age_sd` : ''}`);
   }
   return lines.join('\n');
+}
+
+/** An age-model file as read: its text record (name, checksum) and the validated ties. */
+export interface LoadedAgeModel {
+  readonly model: AgeModel;
+  readonly input: InputText;
 }
 
 /**
@@ -108,10 +113,11 @@ export function fitAgeDraws(
   fits: readonly LineageFit[],
   document: Record<string, unknown>,
   samples: SampleSet,
+  age: LoadedAgeModel | null,
 ): string {
   const { draws, seed } = parseDrawOptions(options);
-  const { ageModel, ageInput } = options.ageModel ? ageModelHook(file, options) : { ageModel: null, ageInput: null };
-  if (!ageModel || !ageInput) return '';
+  if (!age) return '';
+  const { model: ageModel, input: ageInput } = age;
   const provenance = document.provenance as { inputs?: { file: string; sha256: string }[]; options?: Record<string, unknown> } | undefined;
   provenance?.inputs?.push({ file: ageInput.name, sha256: ageInput.sha256 });
   if (provenance?.options) Object.assign(provenance.options, { age_model: options.ageModel, extrapolate: options.extrapolate === true, age_draws: draws, seed: draws > 0 ? seed : null });

@@ -13,7 +13,7 @@ import { loadLineages, loadLineagesStreamed, readInput, terminalProgress, type I
 import type { Lineage } from '../lineage.js';
 import { fitLineages } from '../parallel/fit-lineages.js';
 import { fittingProgress } from './fit-progress.js';
-import type { AgeModelOptions } from './compare-command.js';
+import type { AgeModelOptions, LoadedAgeModel } from './compare-command.js';
 import { intervalOptions } from '../fit/intervals.js';
 import { attachCovariates, extensionSettings, extrasDocument, lineageExtras, modelsForLineage, searchProgress, type ExtensionOptions, type LineageExtras } from './fit-extensions.js';
 import type { FigureCommandOptions } from './render-command.js';
@@ -64,6 +64,8 @@ export interface FitRun {
    * and power analyses reuse it instead of reading the file (or stdin) again.
    */
   readonly read?: StreamedInput;
+  /** The `--age-model` file as read by {@link runFitStreamed} (null without one), for `--age-draws`. */
+  readonly age?: LoadedAgeModel | null;
 }
 
 /** Read the file, fit every lineage, and build the result document (no output). */
@@ -82,7 +84,7 @@ export function runFit(file: string, options: FitCommandOptions): FitRun {
 export async function runFitStreamed(file: string, options: FitCommandOptions): Promise<FitRun> {
   const warnings = new WarningLog();
   const { ageModelHook } = await import('./compare-command.js');
-  const { extra } = ageModelHook(file, options);
+  const { extra, ageModel, ageInput } = ageModelHook(file, options);
   const { input, samples, lineages: read } = await loadLineagesStreamed(file, options, warnings, extra, terminalProgress(file));
   const lineages = options.covariateFile ? attachCovariates(read, options.covariateFile) : read;
   // Many lineages are fitted on worker threads (same numbers, input order; see src/parallel/fit-lineages.ts).
@@ -91,7 +93,8 @@ export async function runFitStreamed(file: string, options: FitCommandOptions): 
     threads: options.threads,
     onProgress: fittingProgress(lineages.length, options),
   });
-  return { ...fitLoaded(input, lineages, options, warnings, fits), read: { input, samples } };
+  const age = ageModel && ageInput ? { model: ageModel, input: ageInput } : null;
+  return { ...fitLoaded(input, lineages, options, warnings, fits), read: { input, samples }, age };
 }
 
 /** Fit read lineages and build the result document (no output). */
@@ -149,7 +152,7 @@ export async function fitCommand(file: string, options: FitCommandOptions): Prom
   const run = await runFitStreamed(file, options);
   // Age model: extrapolated horizons in words, and the Monte Carlo over tie ages (--age-draws).
   const { fitAgeDraws } = await import('./compare-command.js');
-  const ageText = run.read ? fitAgeDraws(file, options, run.fits, run.document, run.read.samples) : '';
+  const ageText = run.read ? fitAgeDraws(file, options, run.fits, run.document, run.read.samples, run.age ?? null) : '';
   const compilation = options.summary ? await import('./compilation-output.js') : null;
   const summary = compilation ? compilation.addCompilation(run) : null;
   // Figures load their module (and, when drawing, the chart stack) only with --out.
