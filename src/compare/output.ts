@@ -3,7 +3,7 @@
  * Pure: reads the plain result objects of `compareSections`, prints nothing.
  */
 import type { ParameterEstimate } from '../fit/fit-model.js';
-import { finiteOrNull } from '../render/fit-document.js';
+import { estimateEndsDocument, finiteOrNull } from '../render/fit-document.js';
 import { csvField } from '../render/models-csv.js';
 import { alignColumns } from '../render/text-table.js';
 import { formatFixed, formatNumber } from '../render/units.js';
@@ -132,15 +132,6 @@ export function pValueText(value: number | null): string {
   return value < 1e-4 ? value.toExponential(2) : value.toFixed(4);
 }
 
-function estimateDocument(estimate: ParameterEstimate): Record<string, unknown> {
-  return {
-    estimate: finiteOrNull(estimate.estimate),
-    lower: finiteOrNull(estimate.lower),
-    upper: finiteOrNull(estimate.upper),
-    at_bound: estimate.atBound,
-  };
-}
-
 function spreadDocument(spread: Spread): Record<string, unknown> {
   return { median: finiteOrNull(spread.median), lower: finiteOrNull(spread.lower), upper: finiteOrNull(spread.upper), draws: spread.count };
 }
@@ -192,7 +183,7 @@ export function comparisonDocument(comparison: TraitComparison, spreads: readonl
       converged: hypothesis.converged,
       compared: hypothesis.aicc !== null,
       message: hypothesis.message,
-      params: Object.fromEntries(Object.entries(hypothesis.parameters).map(([name, estimate]) => [name, estimateDocument(estimate)])),
+      params: Object.fromEntries(Object.entries(hypothesis.parameters).map(([name, estimate]) => [name, estimateEndsDocument(estimate)])),
       flags: hypothesis.flags,
     })),
     tests: comparison.tests.map((test) => ({

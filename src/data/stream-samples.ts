@@ -165,21 +165,26 @@ export async function streamSampleFile(
     }
   };
 
+  /** The delimiter from the header when none was given; false (parsing stopped, the problem kept) when it cannot be told. */
+  const settleDelimiter = (): boolean => {
+    if (options.delimiter !== undefined) return true;
+    try {
+      delimiter = detectDelimiter(pending, file);
+      return true;
+    } catch (error) {
+      problems.delimiter = asInputError(error);
+      parsing = false;
+      return false;
+    }
+  };
+
   const feed = async (text: string): Promise<void> => {
     if (!parsing) return;
     if (parser === null) {
       pending += text;
       const firstLine = firstCompleteLine(pending);
       if (firstLine === null) return;
-      if (options.delimiter === undefined) {
-        try {
-          delimiter = detectDelimiter(pending, file);
-        } catch (error) {
-          problems.delimiter = asInputError(error);
-          parsing = false;
-          return;
-        }
-      }
+      if (!settleDelimiter()) return;
       startParser();
       text = pending;
       pending = '';
@@ -248,15 +253,7 @@ export async function streamSampleFile(
   if (tail !== '') await feed(tail);
   if (parsing && parser === null && pending !== '') {
     // The whole file is one line without a line break.
-    if (options.delimiter === undefined) {
-      try {
-        delimiter = detectDelimiter(pending, file);
-      } catch (error) {
-        problems.delimiter = asInputError(error);
-        parsing = false;
-      }
-    }
-    if (parsing) {
+    if (settleDelimiter()) {
       startParser();
       (parser as unknown as Parser).write(pending);
     }

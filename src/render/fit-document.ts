@@ -15,12 +15,19 @@ export function finiteOrNull(value: number | null | undefined): number | null {
   return value === null || value === undefined || !Number.isFinite(value) ? null : value;
 }
 
-function estimateDocument(estimate: ParameterEstimate): Record<string, unknown> {
+/** An estimate and its interval ends as JSON (null for what is not finite), with where it sits at a bound. */
+export function estimateEndsDocument(estimate: ParameterEstimate): Record<string, unknown> {
   return {
     estimate: finiteOrNull(estimate.estimate),
     lower: finiteOrNull(estimate.lower),
     upper: finiteOrNull(estimate.upper),
     at_bound: estimate.atBound,
+  };
+}
+
+function estimateDocument(estimate: ParameterEstimate): Record<string, unknown> {
+  return {
+    ...estimateEndsDocument(estimate),
     lower_at_bound: estimate.lowerAtBound,
     upper_at_bound: estimate.upperAtBound,
   };
