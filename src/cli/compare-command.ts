@@ -40,7 +40,7 @@ export interface CompareCommandOptions extends SampleFileOptions, AgeModelOption
 }
 
 /** Read and validate an age-model file (tie points). */
-export function loadAgeModel(path: string, options: SampleFileOptions): { input: InputText; model: AgeModel } {
+export function loadAgeModel(path: string, options: SampleFileOptions): LoadedAgeModel {
   const input = readInput(path);
   const model = readAgeModel(readTable(input.text, input.name, { delimiter: delimiterOption(options.delimiter) }), { decimalComma: options.decimalComma });
   return { input, model };
@@ -77,13 +77,13 @@ export interface LoadedAgeModel {
  * The `ageOf` hook for `loadLineages` when `--age-model` is given (and the
  * age model itself), or nothing.
  */
-export function ageModelHook(file: string, options: AgeModelOptions & SampleFileOptions): { ageModel: AgeModel | null; ageInput: InputText | null; extra: Pick<LineageOptions, 'ageOf'> } {
+export function ageModelHook(file: string, options: AgeModelOptions & SampleFileOptions): { age: LoadedAgeModel | null; extra: Pick<LineageOptions, 'ageOf'> } {
   if (!options.ageModel) {
     if (options.extrapolate) throw usageError('--extrapolate extends an age model: give one with --age-model FILE');
-    return { ageModel: null, ageInput: null, extra: {} };
+    return { age: null, extra: {} };
   }
-  const { input, model } = loadAgeModel(options.ageModel, options);
-  return { ageModel: model, ageInput: input, extra: { ageOf: ageFunction(model, { extrapolate: options.extrapolate, samplesFile: file === '-' ? 'stdin' : file }) } };
+  const age = loadAgeModel(options.ageModel, options);
+  return { age, extra: { ageOf: ageFunction(age.model, { extrapolate: options.extrapolate, samplesFile: file === '-' ? 'stdin' : file }) } };
 }
 
 /** An age model only places heights and depths: say so when the samples already give ages or times. */
@@ -222,8 +222,7 @@ export async function runCompare(file: string, options: CompareCommandOptions, r
   const { draws, seed } = parseDrawOptions(options);
   const { name: modelSet, models } = resolveModels(options.models);
   const { input, samples } = read ?? (await loadSamplesStreamed(file, options, terminalProgress(file)));
-  const hook = ageModelHook(file, options);
-  const age = hook.ageModel && hook.ageInput ? { model: hook.ageModel, input: hook.ageInput } : null;
+  const { age } = ageModelHook(file, options);
   const lineagesUnder = (model: AgeModel | null, log: WarningLog): Lineage[] =>
     lineagesOf(samples, options, log, model ? { ageOf: ageFunction(model, { extrapolate: options.extrapolate, samplesFile: input.name }) } : {});
   const lineages = lineagesUnder(age?.model ?? null, warnings);

@@ -84,7 +84,7 @@ export function runFit(file: string, options: FitCommandOptions): FitRun {
 export async function runFitStreamed(file: string, options: FitCommandOptions): Promise<FitRun> {
   const warnings = new WarningLog();
   const { ageModelHook } = await import('./compare-command.js');
-  const { extra, ageModel, ageInput } = ageModelHook(file, options);
+  const { extra, age } = ageModelHook(file, options);
   const { input, samples, lineages: read } = await loadLineagesStreamed(file, options, warnings, extra, terminalProgress(file));
   const lineages = options.covariateFile ? attachCovariates(read, options.covariateFile) : read;
   // Many lineages are fitted on worker threads (same numbers, input order; see src/parallel/fit-lineages.ts).
@@ -93,7 +93,6 @@ export async function runFitStreamed(file: string, options: FitCommandOptions): 
     threads: options.threads,
     onProgress: fittingProgress(lineages.length, options),
   });
-  const age = ageModel && ageInput ? { model: ageModel, input: ageInput } : null;
   return { ...fitLoaded(input, lineages, options, warnings, fits), read: { input, samples }, age };
 }
 
