@@ -11,9 +11,14 @@
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import fc from 'fast-check';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { checkComparisonDocument, checkFitDocument, checkPowerDocument } from '../../src/data/documents.js';
 import { InputError } from '../../src/data/errors.js';
+import { figureJobs, readFigureLineage } from '../../src/render/figures/index.js';
+import { asFitDocument } from '../../src/render/report/document-view.js';
+import { reportPage } from '../../src/render/report/report-page.js';
+import { sketchTrajectory } from '../../src/render/report/sketch-figure.js';
 import { root, runCli } from '../robustness/cli.js';
 
 const folder = mkdtempSync(join(tmpdir(), 'stratotrend-documents-'));
@@ -126,6 +131,78 @@ describe('a hand-edited fit.json: one message naming the file and the field path
     expect(messageOf(checkFitDocument, [1, 2], 'fit.json')).toBe('fit.json: the document: expected an object, got [1,2]');
     // ["xxx…"] of 104 characters: the first 59 and an ellipsis.
     expect(messageOf(checkFitDocument, damaged(fit, (d) => { d.provenance.tool = ['x'.repeat(100)]; }), 'fit.json')).toBe(`fit.json: provenance.tool: expected text, got ["${'x'.repeat(57)}…`);
+  });
+});
+
+/** Every path into a document (lists cut to their first three entries), as key lists from the root. */
+function pathsOf(value: unknown, prefix: (string | number)[] = []): (string | number)[][] {
+  const paths: (string | number)[][] = prefix.length > 0 ? [prefix] : [];
+  if (Array.isArray(value)) value.slice(0, 3).forEach((entry, index) => paths.push(...pathsOf(entry, [...prefix, index])));
+  else if (value !== null && typeof value === 'object') for (const [key, entry] of Object.entries(value)) paths.push(...pathsOf(entry, [...prefix, key]));
+  return paths;
+}
+
+// What a hand edit leaves: text for a number, null, out-of-range and fractional numbers, a list or object for a scalar, a deleted field, an escape sequence.
+const replacements: unknown[] = ['bad', null, -1, 0.5, 2.5, 1e6, [], {}, true, undefined, '\u001b[31m', [1, 'x']];
+
+/**
+ * Replace one field of `document` at a time (fast-check, seeded) and require
+ * that `check` refuses the result with an InputError naming a field, or that
+ * `read` (the readers of the page and figures) runs to the end without any error.
+ */
+function fuzzOneField(document: Json, check: (value: unknown, file: string) => void, read: (value: Json) => void, seed: number): number {
+  const paths = pathsOf(document);
+  let refused = 0;
+  fc.assert(
+    fc.property(fc.nat(paths.length - 1), fc.nat(replacements.length - 1), (pathIndex, replacementIndex) => {
+      const edited = damaged(document, (copy) => {
+        const path = paths[pathIndex];
+        let parent: any = copy; // eslint-disable-line @typescript-eslint/no-explicit-any
+        for (const key of path.slice(0, -1)) parent = parent[key];
+        const last = path[path.length - 1];
+        if (replacements[replacementIndex] === undefined && !Array.isArray(parent)) delete parent[last];
+        else parent[last] = structuredClone(replacements[replacementIndex]);
+      });
+      try {
+        check(edited, 'edited.json');
+      } catch (error) {
+        if (!(error instanceof InputError)) throw error;
+        expect(error.message).toMatch(/^edited\.json: [^:]+: expected /);
+        refused += 1;
+        return;
+      }
+      read(edited);
+    }),
+    { numRuns: 400, seed },
+  );
+  return refused;
+}
+
+describe('fuzz: one field replaced by a value of another kind', () => {
+  it('fit.json: refused naming the field, or the report page, the figure input and the sketches read it to the end', () => {
+    const refused = fuzzOneField(fit, checkFitDocument, (edited) => {
+      const view = asFitDocument(edited);
+      reportPage({ document: view, run: { date: '2026-01-01T00:00:00Z' } });
+      view.lineages.forEach((lineage, index) => {
+        readFigureLineage(lineage, `lineages[${index}]`);
+        sketchTrajectory(lineage);
+      });
+      figureJobs(view.lineages);
+    }, 20261204);
+    // Most single edits break the layout; the rest (a label edited to other text, a weight moved within 0..1) are accepted.
+    expect(refused).toBeGreaterThan(200);
+  });
+
+  it('compare.json and power JSON attached to a report: refused naming the field, or shown to the end', () => {
+    const view = asFitDocument(fit);
+    const comparisonRefused = fuzzOneField(comparison, checkComparisonDocument, (edited) => {
+      reportPage({ document: view, comparison: edited, run: { date: '2026-01-01T00:00:00Z' } });
+    }, 11);
+    const powerRefused = fuzzOneField(power, checkPowerDocument, (edited) => {
+      reportPage({ document: view, power: [edited], run: { date: '2026-01-01T00:00:00Z' } });
+    }, 12);
+    expect(comparisonRefused).toBeGreaterThan(0);
+    expect(powerRefused).toBeGreaterThan(0);
   });
 });
 
