@@ -286,6 +286,11 @@ function checked(check: Check, value: unknown, file: string): void {
  *   `fit.json: lineages[0].models[0].params: expected an object, got nothing (the field is missing)`
  */
 export function checkFitDocument(value: unknown, file: string): void {
+  if (isObject(value) && value.lineages === undefined) {
+    // The other documents the tool writes: say which one it is rather than which field it lacks.
+    if (Array.isArray(value.traits)) throw new InputError('is the JSON of "compare" (it has "traits"), not a fit.json; show it in a report with --attach', { file });
+    if (Array.isArray(value.grid)) throw new InputError('is the JSON of "power" (it has "grid"), not a fit.json; show it in a report with --attach', { file });
+  }
   checked(fitDocument, value, file);
 }
 

@@ -127,6 +127,11 @@ describe('a hand-edited fit.json: one message naming the file and the field path
     expect(messageOf(checkFitDocument, damaged(fit, damage), 'fit.json')).toBe(`fit.json: ${message}`);
   });
 
+  it('a compare.json or power JSON given as a fit.json is named for what it is', () => {
+    expect(messageOf(checkFitDocument, comparison, 'compare.json')).toBe('compare.json: is the JSON of "compare" (it has "traits"), not a fit.json; show it in a report with --attach');
+    expect(messageOf(checkFitDocument, power, 'power.json')).toBe('power.json: is the JSON of "power" (it has "grid"), not a fit.json; show it in a report with --attach');
+  });
+
   it('the whole document not an object; a long value is cut at 60 characters', () => {
     expect(messageOf(checkFitDocument, [1, 2], 'fit.json')).toBe('fit.json: the document: expected an object, got [1,2]');
     // ["xxx…"] of 104 characters: the first 59 and an ellipsis.
