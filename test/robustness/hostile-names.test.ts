@@ -3,8 +3,8 @@
  *
  * Control characters: the Unicode Standard's general category Cc is
  * U+0000–U+001F, U+007F and U+0080–U+009F (C0, DEL, C1); ESC (U+001B) starts
- * an ANSI/ECMA-48 control sequence and U+009B is the one-character C1 form of
- * CSI (ECMA-48, 5th ed., 1991, section 5.3). A name holding one is refused
+ * an ECMA-48 (ANSI) control sequence and U+009B is the one-character C1 form of
+ * CSI (ECMA-48; the code points are from memory, common practice). A name holding one is refused
  * with file, line and column, and no control character reaches stdout or
  * stderr.
  *
