@@ -1,6 +1,7 @@
 import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import { InputError } from '../data/errors.js';
+import { firstControlCharacter } from '../data/names.js';
 import { readSamples, type SampleOptions, type SampleSet } from '../data/samples.js';
 import { decodeText, readTable } from '../data/read-table.js';
 import { streamSampleFile, type StreamProgress } from '../data/stream-samples.js';
@@ -46,11 +47,14 @@ export function delimiterOption(value: string | undefined): string | undefined {
 /**
  * The `--time-unit` value as a unit (default Myr).
  *
- * @throws InputError (usage) for an empty label.
+ * @throws InputError (usage) for an empty label or one holding a control character (it is printed with every rate).
  */
 export function timeUnitOption(value: string | undefined): ReturnType<typeof timeUnit> {
   if (value !== undefined && value.trim() === '') {
     throw new InputError('--time-unit must name a unit (Ma, ka, yr or any label), got ""', { kind: 'usage' });
+  }
+  if (value !== undefined && firstControlCharacter(value) !== null) {
+    throw new InputError(`--time-unit must be one line of text without control characters, got ${JSON.stringify(value)}`, { kind: 'usage' });
   }
   return timeUnit(value ?? 'Myr');
 }
@@ -71,7 +75,7 @@ export interface TraitUnits {
 function unitLabelText(label: string, given: string): string {
   const trimmed = label.trim();
   if (trimmed === '') throw new InputError(`--trait-unit must name a unit (e.g. mm, µm² or "whorl width=mm"), got ${JSON.stringify(given)}`, { kind: 'usage' });
-  if (/[\u0000-\u001f\u007f]/.test(trimmed)) throw new InputError(`--trait-unit must be one line of text without control characters, got ${JSON.stringify(given)}`, { kind: 'usage' });
+  if (firstControlCharacter(trimmed) !== null) throw new InputError(`--trait-unit must be one line of text without control characters, got ${JSON.stringify(given)}`, { kind: 'usage' });
   return trimmed;
 }
 

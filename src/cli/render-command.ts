@@ -1,5 +1,5 @@
-import { readFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
+import { checkFitDocument, readJsonFile } from '../data/documents.js';
 import { InputError, usageError } from '../data/errors.js';
 import {
   figureJobs,
@@ -126,24 +126,11 @@ export interface RedrawCommandOptions extends FigureCommandOptions {
   quiet?: boolean;
 }
 
+/** The lineages of a saved fit.json, after checking the whole document (one message naming the file and the field). */
 function readFitDocument(file: string): unknown[] {
-  let text: string;
-  try {
-    text = readFileSync(file, 'utf8');
-  } catch (error) {
-    const code = (error as NodeJS.ErrnoException).code;
-    throw new InputError(code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'is a folder, expected a fit.json file' : String((error as Error).message), { file });
-  }
-  let document: unknown;
-  try {
-    document = JSON.parse(text);
-  } catch (error) {
-    throw new InputError(`not JSON (${(error as Error).message}); expected the fit.json written by "fit --out"`, { file });
-  }
-  const lineages = (document as { lineages?: unknown })?.lineages;
-  if (!Array.isArray(lineages)) throw new InputError('has no "lineages" list; expected the fit.json written by "fit --out"', { file });
-  if (lineages.length === 0) throw new InputError('"lineages" is empty: nothing to draw', { file });
-  return lineages;
+  const { value } = readJsonFile(file, 'the fit.json written by "fit --out"');
+  checkFitDocument(value, file);
+  return (value as { lineages: unknown[] }).lineages;
 }
 
 function parseKinds(text: string): FigureKind[] {

@@ -1,5 +1,6 @@
 import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
+import { checkComparisonDocument, checkFitDocument, checkPowerDocument, readJsonFile } from '../data/documents.js';
 import { InputError, usageError } from '../data/errors.js';
 import { asFitDocument, lineageTitle, type FitDocumentView } from '../render/report/document-view.js';
 import { reportPage, type ReportFigure, type ReportInput } from '../render/report/report-page.js';
@@ -50,42 +51,31 @@ interface Attachments {
 function readAttachments(files: readonly string[]): Attachments {
   const attachments: Attachments = { power: [], files: [] };
   for (const file of files) {
-    let buffer: Buffer;
-    try {
-      buffer = readFileSync(file);
-    } catch {
-      throw new InputError('no such file (given with --attach)', { file, kind: 'usage' });
-    }
-    let value: unknown;
-    try {
-      value = JSON.parse(buffer.toString('utf8'));
-    } catch (error) {
-      throw new InputError(`not JSON: ${(error as Error).message}`, { file });
-    }
+    const { value, sha256 } = readJsonFile(file, 'the JSON of "compare --json", "power --json" or adequacy checks', { role: 'given with --attach', missingKind: 'usage' });
     const record = (value ?? {}) as Record<string, unknown>;
     const kind = Array.isArray(record.traits) ? 'comparison' : Array.isArray(record.grid) ? 'power' : record.adequacy !== undefined || /adequa/i.test(file) ? 'adequacy' : null;
     if (!kind) throw new InputError('is neither a section comparison (compare --json: "traits") nor a power result (power --json: "grid") nor adequacy checks', { file });
+    // Checked on reading, so a hand-edited field is one message naming it, not an internal error or a wrong page.
+    if (kind === 'power') checkPowerDocument(value, file);
+    if (kind === 'comparison') checkComparisonDocument(value, file);
     if (kind === 'power') attachments.power.push(value);
     else if (kind === 'comparison') attachments.comparison = value;
     else attachments.adequacy = record.adequacy !== undefined ? record.adequacy : value;
-    attachments.files.push({ file, sha256: createHash('sha256').update(buffer).digest('hex'), kind });
+    attachments.files.push({ file, sha256, kind });
   }
   return attachments;
 }
 
-/** Read a saved fit.json as the document to report on (no refitting). */
+/**
+ * Read a saved fit.json as the document to report on (no refitting), checked
+ * field by field first.
+ *
+ * @throws InputError naming the file and the first field that does not fit (e.g. `lineages[0].models[0].weight: expected a number or null, got "bad"`)
+ */
 export function readFitJson(file: string): { document: FitDocumentView; sha256: string } {
-  let buffer: Buffer;
-  try {
-    buffer = readFileSync(file);
-  } catch {
-    throw new InputError('no such file', { file });
-  }
-  try {
-    return { document: asFitDocument(JSON.parse(buffer.toString('utf8')) as Record<string, unknown>), sha256: createHash('sha256').update(buffer).digest('hex') };
-  } catch (error) {
-    throw new InputError(`is not a stratotrend fit.json: ${(error as Error).message}`, { file });
-  }
+  const { value, sha256 } = readJsonFile(file, 'the fit.json written by "fit --out"');
+  checkFitDocument(value, file);
+  return { document: asFitDocument(value as Record<string, unknown>), sha256 };
 }
 
 /** Most figures one page embeds (each SVG is a few hundred kB); a note says when more were left out. */

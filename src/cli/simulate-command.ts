@@ -5,7 +5,7 @@ import { lineageName, type Lineage } from '../lineage.js';
 import { findModel } from '../models/registry.js';
 import { designFromOptions, designLineage } from '../simulate/design.js';
 import { simulatedTable } from '../simulate/sample-table.js';
-import { loadLineagesStreamed, terminalProgress, type SampleFileOptions } from './input.js';
+import { loadLineagesStreamed, terminalProgress, timeUnitOption, type SampleFileOptions } from './input.js';
 import { numberOption, seedOption, wholeOption } from './power-command.js';
 import { refuseInputPath, writeAtomically } from './write-output.js';
 
@@ -65,6 +65,7 @@ export async function simulateCommand(file: string | undefined, options: Simulat
     // Read as a stream: only the design (times, n, within variances) is needed, in bounded memory.
     designs = (await loadLineagesStreamed(file, options, new WarningLog(), {}, terminalProgress(file))).lineages;
   } else {
+    timeUnitOption(options.timeUnit); // the label is printed and written: refuse an empty one or control characters
     const design = designFromOptions({
       horizons: wholeOption(options.horizons, '--horizons', 25, 3, 100000),
       spacing: numberOption(options.spacing, '--spacing', true) ?? 0.1,

@@ -1,4 +1,5 @@
 import { InputError } from './errors.js';
+import { checkName } from './names.js';
 import type { Table } from './read-table.js';
 import type { RandomSource } from '../simulate/random.js';
 
@@ -79,7 +80,7 @@ export function readAgeModel(table: Table, options: { decimalComma?: boolean } =
   };
   const grouped = new Map<string, TiePoint[]>();
   for (const { line, cells } of table.rows) {
-    const section = column('section') >= 0 ? cells[column('section')] : '';
+    const section = column('section') >= 0 ? checkName(cells[column('section')], { file, line, column: 'section' }) : '';
     const position = number(cells, line, positionKind);
     const age = number(cells, line, 'age');
     let ageSd = 0;

@@ -33,13 +33,15 @@ export class InputError extends Error {
 
 /**
  * Make a message one line whatever the offending value holds: line breaks,
- * tabs and other control characters are written as escapes (\n, \t, \u0000).
+ * tabs and other control characters (C0, DEL and C1, and the Unicode line and
+ * paragraph separators) are written as escapes (\n, \t, \u001b, \u009b), so
+ * nothing a file holds reaches the terminal as a control character.
  *
  * @example
  * oneLine('got "a\nb"'); // 'got "a\\nb"'
  */
 export function oneLine(text: string): string {
-  return text.replace(/[\u0000-\u001f\u007f\u2028\u2029]/g, (character) => {
+  return text.replace(/[\u0000-\u001f\u007f-\u009f\u2028\u2029]/g, (character) => {
     if (character === '\n') return '\\n';
     if (character === '\r') return '\\r';
     if (character === '\t') return '\\t';

@@ -1,4 +1,5 @@
 import { InputError } from './errors.js';
+import { checkName } from './names.js';
 import type { Table } from './read-table.js';
 import { RunningMoments } from './summarise.js';
 
@@ -215,9 +216,10 @@ export class HorizonCollector {
     return numberCell(cells[this.index(name)], { file: this.plan.file, line, column: name }, this.options.decimalComma === true);
   }
 
-  private label(cells: readonly string[], name: string): string {
+  /** A name cell (section, trait): refused with line and column when it holds a control character. */
+  private label(cells: readonly string[], line: number, name: string): string {
     const at = this.index(name);
-    return at >= 0 ? cells[at] : '';
+    return at >= 0 ? checkName(cells[at], { file: this.plan.file, line, column: name }) : '';
   }
 
   /** Validate and take one data row (cells in header order). */
@@ -226,8 +228,8 @@ export class HorizonCollector {
     const file = plan.file;
     const position = this.number(cells, line, plan.timeKind);
     const covariate = this.index('covariate') >= 0 ? this.number(cells, line, 'covariate') : undefined;
-    const section = this.label(cells, 'section');
-    const trait = this.label(cells, 'trait');
+    const section = this.label(cells, line, 'section');
+    const trait = this.label(cells, line, 'trait');
     if (plan.form === 'specimen') {
       let value = this.number(cells, line, 'value');
       if (options.log) {

@@ -1,10 +1,15 @@
 import type { LineageFit } from '../fit/fit-lineage.js';
+import { neutraliseFormula } from '../data/names.js';
 import { finiteOrNull } from './fit-document.js';
 
-/** Quote a CSV field when it needs it (RFC 4180). */
+/**
+ * One CSV field: numbers and booleans as written by `String`, null as an
+ * empty field, text neutralised against formulas ({@link neutraliseFormula}),
+ * then quoted when it needs it (RFC 4180).
+ */
 export function csvField(value: string | number | boolean | null): string {
   if (value === null) return '';
-  const text = String(value);
+  const text = typeof value === 'string' ? neutraliseFormula(value) : String(value);
   return /[",\r\n]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
 }
 

@@ -1,5 +1,6 @@
 import type { Lineage } from '../lineage.js';
 import type { EvolutionModel } from '../models/model.js';
+import { neutraliseFormula } from '../data/names.js';
 import { createRandom } from './random.js';
 import { replicateSeed } from './seeds.js';
 import { simulateMeans } from './simulate-lineage.js';
@@ -22,8 +23,10 @@ export function formatValue(value: number): string {
   return String(Number(value.toPrecision(10)));
 }
 
+/** A name cell: neutralised against spreadsheet formulas like every text cell the tool writes, then quoted when needed. */
 function quoteCell(text: string): string {
-  return /[",\n\r]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
+  const safe = neutraliseFormula(text);
+  return /[",\n\r]/.test(safe) ? `"${safe.replace(/"/g, '""')}"` : safe;
 }
 
 /**

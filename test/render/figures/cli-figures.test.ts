@@ -86,7 +86,8 @@ describe('figures from the command line', () => {
       stderr = String((error as { stderr: string }).stderr);
     }
     expect(status).toBe(1);
-    expect(stderr.trim()).toBe(`stratotrend: ${damaged}: lineage.data.time: must be a list of numbers, got "x"`);
+    // The document is checked on reading (src/data/documents.ts): the path counts from the document's root.
+    expect(stderr.trim()).toBe(`stratotrend: ${damaged}: lineages[0].data.time: expected a list, got "x"`);
   });
 
   it('--help and a fit without --out never load the chart stack', () => {
