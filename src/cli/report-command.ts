@@ -224,7 +224,7 @@ async function runAnalyses(
   let comparison: unknown;
   if (options.compare) {
     const { runCompare } = await import('./compare-command.js');
-    comparison = (await runCompare(file, { ...sampleOptions, models: options.models, intervals: options.intervals !== false, ageModel: options.ageModel, extrapolate: options.extrapolate }, read)).document;
+    comparison = (await runCompare(file, { ...sampleOptions, models: options.models, intervals: options.intervals, ageModel: options.ageModel, extrapolate: options.extrapolate }, read)).document;
   }
   const power: unknown[] = [];
   if (options.power) {

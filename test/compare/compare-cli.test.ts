@@ -68,7 +68,7 @@ describe('stratotrend compare', () => {
     const result = spawnSync(process.execPath, [launcher, 'compare', heights, '--age-model', ties, '--no-intervals', '--models', 'random-walk,directional-walk', '--out', out], { encoding: 'utf8' });
     expect(result.status).toBe(0);
     const csv = readFileSync(join(out, 'compare.csv'), 'utf8').trim().split('\n');
-    expect(csv[0]).toBe('trait,hypothesis,model,k,horizons,logLik,aicc,delta_aicc,weight,best,compared,lrt_statistic,lrt_df,lrt_p_value,extrapolated_horizons,message');
+    expect(csv[0]).toBe('trait,hypothesis,model,k,horizons,logLik,aicc,delta_aicc,weight,best,compared,lrt_statistic,lrt_df,lrt_p_value,extrapolated_horizons,message,same_fit_as');
     expect(csv).toHaveLength(1 + 2 * 6);
     expect(existsSync(join(out, 'sections-1-whorl-width.png'))).toBe(true);
     const help = spawnSync(process.execPath, [launcher, 'compare', '--help'], { encoding: 'utf8' });
