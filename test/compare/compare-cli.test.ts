@@ -74,6 +74,9 @@ describe('stratotrend compare', () => {
     const help = spawnSync(process.execPath, [launcher, 'compare', '--help'], { encoding: 'utf8' });
     expect(help.stdout).toMatch(/shared-offset/);
     expect(help.stdout).toMatch(/--age-model <file>/);
+    // Issue 20: the help documents the model sets compare accepts and what extended leaves out.
+    expect(help.stdout).toMatch(/Model sets \(--models\):\n  classic .*\n  extended /);
+    expect(help.stdout).toMatch(/--intervals <method>/);
   });
 
   // Hand-checkable from the ties: Quarrel Hollow's lowest horizon at 1.0 m lies between (0 m, 9.00 Ma) and
