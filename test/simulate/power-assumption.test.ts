@@ -17,6 +17,7 @@ import { WarningLog } from '../../src/data/warnings.js';
 import { directionalWalk } from '../../src/models/directional-walk.js';
 import { assumedVarianceWords, powerAssumptionCaption, powerCurvePlan } from '../../src/render/figures/power-curve.js';
 import { vacuousBoundWords } from '../../src/simulate/power.js';
+import { formatNumber } from '../../src/render/units.js';
 
 type Json = Record<string, any>;
 const shells = new URL('../../sample-data/shell-length.csv', import.meta.url).pathname;
@@ -90,6 +91,13 @@ describe('power under the step variance the data allow', () => {
       });
     });
     expect(run.notes.join('\n')).toMatch(/fitted step variance 0 is at its bound 0: power is shown under it and under 0\.05\d*, the upper end of its 95% interval/);
+    // The comparing note quotes the two analyses' own numbers.
+    const [low, high] = run.assumptions.map((entry) => entry.report);
+    const at = (value: number | null): string => (value === null ? 'beyond the grid' : formatNumber(value));
+    expect(run.notes).toContain(
+      `under step variance 0 (fitted estimate) the false-trend rate is ${low.false_trend.p_best.toFixed(3)} (AICc best) and ${low.false_trend.p_lrt.toFixed(3)} (test), ` +
+        `and 80% test power is reached at drift ${at(low.smallest_drift.p_lrt)}; under ${formatNumber(run.assumptions[1].stepVariance)} (upper end of its 95% interval) at ${at(high.smallest_drift.p_lrt)}`,
+    );
   });
 
   it('the figure prints the assumed step variances and draws three curves for each', () => {
