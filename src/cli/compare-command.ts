@@ -260,13 +260,13 @@ export async function runCompare(file: string, options: CompareCommandOptions, r
   // Usage first (no point reading a large file for a mistyped option), then the samples, then the age model.
   const { draws, seed } = parseDrawOptions(options);
   const { name: modelSet, models } = resolveModels(options.models);
+  const intervals = intervalOptions(options.intervals);
   const { input, samples } = read ?? (await loadSamplesStreamed(file, options, terminalProgress(file)));
   const { age } = ageModelHook(file, options);
   const lineagesUnder = (model: AgeModel | null, log: WarningLog): Lineage[] =>
     lineagesOf(samples, options, log, model ? { ageOf: ageFunction(model, { extrapolate: options.extrapolate, samplesFile: input.name }) } : {});
   const lineages = lineagesUnder(age?.model ?? null, warnings);
   if (age) warnUnusedAgeModel(lineages, age.model, warnings);
-  const intervals = intervalOptions(options.intervals);
   const run = compareTraits(lineages, models, intervals);
   for (const skipped of run.skipped) warnings.add('input', `trait "${skipped.trait}": ${skipped.reason}`);
   const composites: LineageFit[] = [];

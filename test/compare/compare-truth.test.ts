@@ -251,6 +251,10 @@ describe('compare uses the calibrated default interval method (issue 18 item 3)'
     expect(separate.parameters['step_variance[Brisk Fen Cut]'].upper).toBe(single.parameters.step_variance.upper);
   });
 
+  it('an unknown --intervals method is a usage error before any file is read', async () => {
+    await expect(runCompare(join(folder, 'no-such-file.csv'), { intervals: 'bogus' })).rejects.toThrow(/--intervals must be one of profile, adjusted, bootstrap, integrated, got "bogus"/);
+  });
+
   it('--intervals profile still gives the plain profile, labelled as asymptotic', async () => {
     const profile = await runCompare(heights, { ageModel: ties, models: 'random-walk', intervals: 'profile' });
     const comparison = profile.run.comparisons[0];
