@@ -63,6 +63,7 @@ export interface TraitComparison {
   readonly trait: string;
   readonly sections: readonly Lineage[];
   readonly horizons: number;
+  /** The fitted hypotheses (every one converged; those that could not be fitted are in `leftOut`). */
   readonly hypotheses: readonly HypothesisFit[];
   /** The lowest-AICc hypothesis, or null when none was compared. */
   readonly best: { id: HypothesisId; model: string } | null;
@@ -213,7 +214,7 @@ export const offsetCovariateReason = 'not fitted: the common timeline of all sec
 export function compareSections(sections: readonly Lineage[], models: readonly EvolutionModel[], options: CompareOptions = {}): TraitComparison {
   if (sections.length < 2) throw new Error('compareSections needs two or more sections');
   const horizons = sections.reduce((sum, section) => sum + section.mean.length, 0);
-  const fits: Omit<HypothesisFit, 'aicc' | 'deltaAicc' | 'weight'>[] = [];
+  let fits: Omit<HypothesisFit, 'aicc' | 'deltaAicc' | 'weight'>[] = [];
   const fitOptions: FitOptions = { intervals: options.intervals, intervalMethod: options.intervalMethod, gridPoints: options.gridPoints, minimumSegment: options.minimumSegment };
   const leftOut: LeftOutHypothesis[] = [];
   for (const base of models) {
@@ -234,6 +235,9 @@ export function compareSections(sections: readonly Lineage[], models: readonly E
     if (base.unavailable) leftOut.push({ id: 'shared-offset', model: base.id, reason: offsetCovariateReason });
     else fits.push(jointFit(offsetModel(base, sections), horizons, fitOptions));
   }
+  // A hypothesis whose likelihood could not be maximised (e.g. a singular covariance) is left out with its reason, not listed as a row.
+  for (const fit of fits) if (!fit.converged) leftOut.push({ id: fit.id, model: fit.model, reason: fit.message ?? 'not fitted' });
+  fits = fits.filter((fit) => fit.converged);
   const criteria = fits.map((fit) => (fit.converged ? aicc(fit.logLik, fit.k, horizons) : null));
   const { delta, weight } = akaikeWeights(criteria);
   const hypotheses: HypothesisFit[] = fits.map((fit, j) => ({

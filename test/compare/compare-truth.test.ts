@@ -21,6 +21,7 @@ import { formatNumber } from '../../src/render/units.js';
 import { lineageFromArrays, type Lineage } from '../../src/lineage.js';
 import { directionalWalk } from '../../src/models/directional-walk.js';
 import { randomWalk } from '../../src/models/random-walk.js';
+import { stasis } from '../../src/models/stasis.js';
 import { createRandom } from '../../src/simulate/random.js';
 import { simulateMeans, withMeans } from '../../src/simulate/simulate-lineage.js';
 
@@ -99,6 +100,23 @@ describe('compare --models extended lists only what the data support', () => {
     expect(table).not.toMatch(/not compared/);
     expect(table).toMatch(/Left out, never ranked — shared and shared-offset of punctuated-1, .*: not fitted: a shift shared by several sections/);
     expect(table).toMatch(/every hypothesis of covariate-stasis, covariate-walk: not fitted: Quarrel Hollow: no covariate/);
+  });
+});
+
+describe('hypotheses that cannot be fitted are left out with the reason, not listed', () => {
+  // Section A has zero sampling variance everywhere: under a walk its first horizon is known exactly and the
+  // joint density does not exist (DEVELOPERS.md, "singular for the data"); stasis still has a variance there.
+  const a = { ...lineageFromArrays({ time: [0, 1, 2, 3, 4, 5], mean: [1, 1.2, 1.1, 1.5, 1.4, 1.7], samplingVariance: [0, 0, 0, 0, 0, 0], count: [5, 5, 5, 5, 5, 5], section: 'A', trait: 'x' }), firstAge: 10 };
+  const b = { ...lineageFromArrays({ time: [0, 1, 2, 3, 4, 5], mean: [1, 1.3, 1.2, 1.4, 1.6, 1.5], samplingVariance: [0.01, 0.01, 0.01, 0.01, 0.01, 0.01], count: [5, 5, 5, 5, 5, 5], section: 'B', trait: 'x' }), firstAge: 9.5 };
+  const comparison = compareSections([a, b], [stasis, randomWalk], { intervals: false });
+
+  it('lists only fitted hypotheses; the walk is left out for every hypothesis with the singular-covariance reason', () => {
+    expect(comparison.hypotheses.every((h) => h.converged)).toBe(true);
+    expect(comparison.hypotheses.map((h) => h.model)).toEqual(['stasis', 'stasis', 'stasis']);
+    const walk = comparison.leftOut.filter((entry) => entry.model === 'random-walk');
+    expect(walk.map((entry) => entry.id)).toEqual(['separate', 'shared', 'shared-offset']);
+    expect(walk[0].reason).toMatch(/^A: not fitted: the covariance is singular/);
+    expect(comparisonTable(comparison)).toMatch(/Left out, never ranked — separate of random-walk: A: not fitted: the covariance is singular/);
   });
 });
 
