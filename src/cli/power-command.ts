@@ -164,7 +164,7 @@ export function assumedStepVariances(lineage: Lineage, estimate: number, given: 
   ];
 }
 
-/** Short words for an assumption's source ("fitted estimate", "95% upper end", "given"). */
+/** Short words for an assumption's source: "fitted estimate", "upper end of its 95% interval" or "given". */
 function sourceWords(source: string): string {
   return source.startsWith('upper end') ? 'upper end of its 95% interval' : source;
 }
@@ -230,7 +230,8 @@ export async function runPower(file: string, options: PowerCommandOptions, progr
     assumptions.push({ ...assumption, driftStandardError: driftErrorAt(assumption.stepVariance), report });
   }
   const primary = assumptions[assumptions.length - 1];
-  if (given === undefined && primary.stepVariance === 0) {
+  // (Not again when the open upper end was the reason: that note already says so.)
+  if (given === undefined && primary.stepVariance === 0 && !notes.some((text) => text.includes('95% interval is open'))) {
     notes.push('the fitted step variance is 0 (at its bound) and no larger value could be assumed from its interval: replicates have no random-walk component, only sampling error; give --step-variance to assume one');
   }
   for (const other of assumptions.slice(0, -1)) {
