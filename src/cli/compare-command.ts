@@ -5,7 +5,10 @@ import { readTable } from '../data/read-table.js';
 import type { SampleSet } from '../data/samples.js';
 import { WarningLog } from '../data/warnings.js';
 import { ageMonteCarlo, summariseDraws, type CandidateSpread, type RankedCandidate } from '../compare/age-uncertainty.js';
-import { compareTraits, lineagesByTrait, type ComparisonRun, type TraitComparison } from '../compare/compare-sections.js';
+import { compareTraits, type ComparisonRun, type TraitComparison } from '../compare/compare-sections.js';
+import { perSectionName } from '../compare/joint-models.js';
+import { intervalOptions } from '../fit/intervals.js';
+import { modelsForLineage } from './fit-extensions.js';
 import { candidateKey, comparisonCaution, comparisonCsv, comparisonDocument, comparisonTable, estimatesCsv, spreadsDocument } from '../compare/output.js';
 import { mergeSections, toleratingCoeval } from '../compare/stack.js';
 import { fitLineage, type LineageFit } from '../fit/fit-lineage.js';
@@ -32,7 +35,8 @@ export interface CompareCommandOptions extends SampleFileOptions, AgeModelOption
   json?: boolean;
   out?: string;
   models?: string;
-  intervals?: boolean;
+  /** false for --no-intervals, a method name for --intervals METHOD (default: the calibrated default, as in `fit`). */
+  intervals?: boolean | string;
   composite?: boolean;
   mergeCoeval?: boolean;
   figure?: boolean;
@@ -192,6 +196,10 @@ export function ageModelDocument(model: AgeModel): Record<string, unknown> {
 export interface CompareRun {
   readonly run: ComparisonRun;
   readonly composites: readonly LineageFit[];
+  /** Per composite (same order): how the sections' offsets were removed before merging, in words. */
+  readonly compositeNotes: readonly string[];
+  /** Per trait: draws whose best was a tie of identical fits. */
+  readonly tiedDraws: ReadonlyMap<string, number>;
   readonly spreads: ReadonlyMap<string, readonly CandidateSpread[]>;
   readonly draws: { draws: number; seed: number } | null;
   readonly ageModel: AgeModel | null;
@@ -199,13 +207,44 @@ export interface CompareRun {
   readonly warnings: WarningLog;
 }
 
-function candidates(comparison: TraitComparison): RankedCandidate[] {
+/** One draw's hypotheses as age-draw candidates; every member of a tied best (identical fits) counts as best. */
+export function candidates(comparison: TraitComparison): RankedCandidate[] {
   return comparison.hypotheses.map((hypothesis) => ({
     key: candidateKey(hypothesis),
     weight: hypothesis.weight,
-    best: comparison.best !== null && comparison.best.id === hypothesis.id && comparison.best.model === hypothesis.model,
+    best: comparison.bestGroup.some((entry) => entry.id === hypothesis.id && entry.model === hypothesis.model),
     estimates: hypothesis.estimates,
   }));
+}
+
+/** The sections' offsets as `compare` estimated them: from the best-supported (lowest AICc) shared-offset fit, or null when none was fitted. */
+export interface EstimatedOffsets {
+  readonly model: string;
+  /** Offset of each section from the first (0 for the first), in section order. */
+  readonly offsets: readonly number[];
+}
+
+/** The offsets of the lowest-AICc shared-offset hypothesis of a comparison, or null when no shared-offset hypothesis was compared. */
+export function estimatedOffsets(comparison: TraitComparison): EstimatedOffsets | null {
+  let chosen: TraitComparison['hypotheses'][number] | null = null;
+  for (const hypothesis of comparison.hypotheses) {
+    if (hypothesis.id !== 'shared-offset' || hypothesis.aicc === null) continue;
+    if (chosen === null || hypothesis.aicc < chosen.aicc!) chosen = hypothesis;
+  }
+  if (chosen === null) return null;
+  const offsets = comparison.sections.map((section, s) => (s === 0 ? 0 : chosen!.estimates[perSectionName('offset', section.section || `section ${s + 1}`)]));
+  if (!offsets.every(Number.isFinite)) return null;
+  return { model: chosen.model, offsets };
+}
+
+/**
+ * The sections of a trait with their estimated offsets removed (section s's
+ * means minus c_s, so every section sits at the first section's level):
+ * what `--composite` merges. The offsets are taken as known, so the
+ * composite's intervals leave out their uncertainty.
+ */
+export function withoutOffsets(sections: readonly Lineage[], offsets: EstimatedOffsets): Lineage[] {
+  return sections.map((section, s) => (offsets.offsets[s] === 0 ? section : { ...section, mean: section.mean.map((value) => value - offsets.offsets[s]) }));
 }
 
 /**
@@ -221,31 +260,54 @@ export async function runCompare(file: string, options: CompareCommandOptions, r
   // Usage first (no point reading a large file for a mistyped option), then the samples, then the age model.
   const { draws, seed } = parseDrawOptions(options);
   const { name: modelSet, models } = resolveModels(options.models);
+  const intervals = intervalOptions(options.intervals);
   const { input, samples } = read ?? (await loadSamplesStreamed(file, options, terminalProgress(file)));
   const { age } = ageModelHook(file, options);
   const lineagesUnder = (model: AgeModel | null, log: WarningLog): Lineage[] =>
     lineagesOf(samples, options, log, model ? { ageOf: ageFunction(model, { extrapolate: options.extrapolate, samplesFile: input.name }) } : {});
   const lineages = lineagesUnder(age?.model ?? null, warnings);
   if (age) warnUnusedAgeModel(lineages, age.model, warnings);
-  const run = compareTraits(lineages, models, { intervals: options.intervals !== false });
+  const run = compareTraits(lineages, models, intervals);
   for (const skipped of run.skipped) warnings.add('input', `trait "${skipped.trait}": ${skipped.reason}`);
   const composites: LineageFit[] = [];
+  const compositeNotes: string[] = [];
+  const compositeOffsets: Record<string, unknown>[] = [];
   if (options.composite) {
     const tolerant = models.map(toleratingCoeval);
-    for (const [, sections] of lineagesByTrait(lineages)) {
-      if (sections.length < 2) continue;
-      composites.push(fitLineage(mergeSections(sections, { mergeCoeval: options.mergeCoeval }).lineage, tolerant, { intervals: options.intervals !== false }));
+    for (const comparison of run.comparisons) {
+      // The composite is one lineage: merging sections that sit at different levels would read their offset as evolution.
+      const offsets = estimatedOffsets(comparison);
+      if (offsets === null) {
+        warnings.add('input', `--composite: trait "${comparison.trait}" is not merged: no shared-offset hypothesis was fitted, so the sections' offsets are unknown (choose models other than strict-stasis)`);
+        continue;
+      }
+      const merged = mergeSections(withoutOffsets(comparison.sections, offsets), { mergeCoeval: options.mergeCoeval }).lineage;
+      const lineage = { ...merged, section: `${merged.section}, offsets removed` };
+      const kept = modelsForLineage(lineage, tolerant, modelSet).models;
+      composites.push(fitLineage(lineage, kept, intervals));
+      const parts = comparison.sections.slice(1).map((section, s) => `${section.section} ${formatNumber(-offsets.offsets[s + 1])}`);
+      compositeNotes.push(
+        `Composite of "${comparison.trait}": the offsets estimated under shared-offset ${offsets.model} (the best-supported shared-offset hypothesis) were removed before merging — added to each section's means: ${parts.join(', ')}; ` +
+          `every section then sits at the level of ${comparison.sections[0].section}. The offsets are taken as known, so the composite's intervals leave out their uncertainty; ` +
+          `the shared-offset hypotheses carry Akaike weight ${comparison.hypotheses.filter((h) => h.id === 'shared-offset').reduce((sum, h) => sum + (h.weight ?? 0), 0).toFixed(3)} in the comparison above.`,
+      );
+      compositeOffsets.push({
+        trait: comparison.trait,
+        model: offsets.model,
+        reference_section: comparison.sections[0].section,
+        offsets_removed: Object.fromEntries(comparison.sections.map((section, s) => [section.section, offsets.offsets[s]])),
+      });
     }
   }
   const spreads = new Map<string, readonly CandidateSpread[]>();
+  const tiedDraws = new Map<string, number>();
   if (draws > 0 && age) {
     if (!hasAgeUncertainty(age.model)) warnings.add('input', `--age-draws: every age_sd in ${age.model.file} is 0, so every draw repeats the plain fit`);
     const perDraw = ageMonteCarlo(age.model, draws, seed, (drawn) => compareTraits(lineagesUnder(drawn, new WarningLog()), models, { intervals: false }));
     for (const comparison of run.comparisons) {
-      spreads.set(comparison.trait, summariseDraws(perDraw.map((result) => {
-        const match = result.comparisons.find((entry) => entry.trait === comparison.trait);
-        return match ? candidates(match) : [];
-      })));
+      const matches = perDraw.map((result) => result.comparisons.find((entry) => entry.trait === comparison.trait));
+      spreads.set(comparison.trait, summariseDraws(matches.map((match) => (match ? candidates(match) : []))));
+      tiedDraws.set(comparison.trait, matches.filter((match) => match !== undefined && match.bestGroup.length > 1).length);
     }
   }
   const provenance: Provenance = {
@@ -258,7 +320,7 @@ export async function runCompare(file: string, options: CompareCommandOptions, r
       pool: options.pool === true,
       time_unit: options.timeUnit ?? 'Myr',
       models: modelSet,
-      intervals: options.intervals === false ? 'none' : 'profile',
+      intervals: intervals.intervals ? intervals.intervalMethod : 'none',
       age_model: options.ageModel ?? null,
       extrapolate: options.extrapolate === true,
       age_draws: draws,
@@ -270,14 +332,15 @@ export async function runCompare(file: string, options: CompareCommandOptions, r
   };
   const document = {
     provenance,
-    traits: run.comparisons.map((comparison) => comparisonDocument(comparison, spreads.get(comparison.trait) ?? null)),
+    traits: run.comparisons.map((comparison) => comparisonDocument(comparison, spreads.get(comparison.trait) ?? null, tiedDraws.get(comparison.trait) ?? 0)),
     skipped: run.skipped,
     age_model: age ? ageModelDocument(age.model) : null,
     composite: composites.map(lineageDocument),
+    composite_offsets: compositeOffsets,
     caution: comparisonCaution,
     warnings: warnings.list().map((warning) => ({ category: warning.category, message: warning.message, count: warning.count })),
   };
-  return { run, composites, spreads, draws: draws > 0 ? { draws, seed } : null, ageModel: age?.model ?? null, document, warnings };
+  return { run, composites, compositeNotes, tiedDraws, spreads, draws: draws > 0 ? { draws, seed } : null, ageModel: age?.model ?? null, document, warnings };
 }
 
 /**
@@ -329,9 +392,9 @@ export async function compareCommand(file: string, options: CompareCommandOption
     const parts: string[] = [];
     if (result.ageModel) parts.push(ageModelWords(result.ageModel, unit));
     for (const comparison of result.run.comparisons) {
-      parts.push(comparisonTable(comparison, result.draws ? { ...result.draws, spreads: result.spreads.get(comparison.trait) ?? [] } : null));
+      parts.push(comparisonTable(comparison, result.draws ? { ...result.draws, spreads: result.spreads.get(comparison.trait) ?? [], tiedDraws: result.tiedDraws.get(comparison.trait) ?? 0 } : null));
     }
-    for (const composite of result.composites) parts.push(lineageTable(composite));
+    result.composites.forEach((composite, index) => parts.push(`${result.compositeNotes[index]}\n${lineageTable(composite)}`));
     if (result.run.comparisons.length === 0) parts.push('No trait is measured in two or more sections: nothing to compare.');
     process.stdout.write(parts.join('\n\n') + '\n');
     if (written.length > 0) process.stdout.write(`\nWrote ${written.join(', ')} to ${options.out}\n`);

@@ -30,6 +30,8 @@ export interface ReportCommandOptions extends FitCommandOptions {
   power?: boolean;
   /** Replicates per drift value for --power (commander hands a string). */
   powerReplicates?: string;
+  /** Step variance(s) the power simulations assume (comma-separated), as `power --step-variance`. */
+  powerStepVariance?: string;
   /** Seed of the simulations (--power). */
   seed?: string;
   /** Age model (tie points) for height/depth samples. */
@@ -166,10 +168,10 @@ export async function reportFigures(document: FitDocumentView, choices: ReportFi
 /** The power-curve figure of each power result, drawn by the figure module from the `power --json` layout. */
 async function powerFigures(powers: readonly unknown[], format: 'svg' | 'png'): Promise<ReportFigure[]> {
   if (powers.length === 0) return [];
-  const { renderPowerCurve } = await import('../render/figures/power-curve.js');
+  const { renderPowerCurve, powerCurveAssumptions, powerAssumptionCaption } = await import('../render/figures/power-curve.js');
   const figures: ReportFigure[] = [];
   for (const [index, power] of powers.entries()) {
-    const doc = power as { grid: never[]; input?: { lineage?: string; trait_unit?: string | null; transform?: string }; settings?: Record<string, number | string>; smallest_drift?: { power?: number }; lrt?: { level?: number } };
+    const doc = power as { grid: never[]; input?: { lineage?: string; trait_unit?: string | null; transform?: string }; settings?: Record<string, number | string>; smallest_drift?: { power?: number }; lrt?: { level?: number }; assumptions?: unknown };
     const settings = doc.settings ?? {};
     try {
       const drawn = renderPowerCurve({
@@ -183,12 +185,14 @@ async function powerFigures(powers: readonly unknown[], format: 'svg' | 'png'): 
         targetPower: doc.smallest_drift?.power ?? 0.8,
         level: doc.lrt?.level ?? 0.05,
         withinSd: Number(settings.pooled_within_sd),
+        stepVariance: typeof settings.step_variance === 'number' ? settings.step_variance : undefined,
+        assumptions: powerCurveAssumptions(doc),
       }, { format, width: 'double', dpi: 200 });
       figures.push({
         lineage: null,
         place: `power:${index}`,
         kind: 'power-curve',
-        caption: `${doc.input?.lineage ?? 'lineage'}: probability of each decision rule against the true drift, from simulations on this design.`,
+        caption: `${doc.input?.lineage ?? 'lineage'}: probability of each decision rule against the true drift, from simulations on this design. ${powerAssumptionCaption(doc)}`.trimEnd(),
         mime: drawn.mime,
         bytes: drawn.bytes,
         width: drawn.width,
@@ -214,7 +218,7 @@ async function runAnalyses(
   let comparison: unknown;
   if (options.compare) {
     const { runCompare } = await import('./compare-command.js');
-    comparison = (await runCompare(file, { ...sampleOptions, models: options.models, intervals: options.intervals !== false, ageModel: options.ageModel, extrapolate: options.extrapolate }, read)).document;
+    comparison = (await runCompare(file, { ...sampleOptions, models: options.models, intervals: options.intervals, ageModel: options.ageModel, extrapolate: options.extrapolate }, read)).document;
   }
   const power: unknown[] = [];
   if (options.power) {
@@ -223,7 +227,7 @@ async function runAnalyses(
     seeds.power = seed;
     for (const lineage of document.lineages) {
       try {
-        const result = await runPower(file, { ...sampleOptions, lineage: lineageTitle(lineage), replicates: options.powerReplicates, seed, coverage: false, quiet: true }, undefined, read);
+        const result = await runPower(file, { ...sampleOptions, lineage: lineageTitle(lineage), replicates: options.powerReplicates, stepVariance: options.powerStepVariance, seed, coverage: false, quiet: true }, undefined, read);
         power.push(result.document);
       } catch (error) {
         // A lineage whose design cannot be simulated (e.g. the directional walk does not fit) keeps the rest of the report.
@@ -261,7 +265,7 @@ export async function buildReport(
     draw_model: options.drawModel ?? 'best supported',
     smoothed_band: options.smoothedBand === true,
     compare: options.compare === true,
-    power: options.power === true ? `every lineage, ${options.powerReplicates ?? '200'} replicates per drift value` : false,
+    power: options.power === true ? `every lineage, ${options.powerReplicates ?? '200'} replicates per drift value${options.powerStepVariance ? `, step variance ${options.powerStepVariance}` : ''}` : false,
   };
   if (extra.source) reportOptions.source = `${extra.source.file} (saved fit document, SHA-256 ${extra.source.sha256}; not refitted)`;
   const extraInputs = attachments.files.map((entry) => ({ role: `attached ${entry.kind}`, file: entry.file, sha256: entry.sha256 }));

@@ -1,7 +1,7 @@
 import { fitModel, type FitOptions, type ModelFit, type ParameterEstimate } from '../fit/fit-model.js';
 import { aicc, akaikeWeights } from '../fit/model-choice.js';
 import type { Lineage } from '../lineage.js';
-import type { EvolutionModel } from '../models/model.js';
+import { defaultMinimumSegment, type EvolutionModel } from '../models/model.js';
 import { offsetModel, perSectionName, sharedModel, type HypothesisId, type JointModel } from './joint-models.js';
 import { likelihoodRatioTest, type LikelihoodRatioTest } from './likelihood-ratio.js';
 
@@ -33,6 +33,22 @@ export interface HypothesisFit {
   readonly joint: JointModel | null;
   /** The underlying fit of the joint model (process values etc.). */
   readonly fit: ModelFit | null;
+  /** How the 95% intervals were made ("none" without intervals; for separate, the sections' methods joined by " / "). */
+  readonly intervalMethod: string;
+  /**
+   * Candidate keys (`candidateKey`) of the other compared hypotheses that are
+   * the same fit at the estimates: equal K and logL equal to {@link sameFitTolerance}.
+   * The data cannot tell these apart; their AICc and weights are equal.
+   */
+  readonly sameFitAs: readonly string[];
+}
+
+/** A hypothesis × model family that is not fitted at all, with the reason (never ranked, never listed as a row). */
+export interface LeftOutHypothesis {
+  /** The hypotheses left out: one id, or every hypothesis of the family. */
+  readonly id: HypothesisId | 'every';
+  readonly model: string;
+  readonly reason: string;
 }
 
 /** Shared against separate for one model family. */
@@ -47,10 +63,19 @@ export interface TraitComparison {
   readonly trait: string;
   readonly sections: readonly Lineage[];
   readonly horizons: number;
+  /** The fitted hypotheses (every one converged; those that could not be fitted are in `leftOut`). */
   readonly hypotheses: readonly HypothesisFit[];
   /** The lowest-AICc hypothesis, or null when none was compared. */
   readonly best: { id: HypothesisId; model: string } | null;
+  /**
+   * The best and every hypothesis that is the same fit as it (see
+   * `HypothesisFit.sameFitAs`); more than one entry means the best cannot be
+   * told apart from the others here. Empty when none was compared.
+   */
+  readonly bestGroup: readonly { id: HypothesisId; model: string }[];
   readonly tests: readonly FamilyTest[];
+  /** Hypotheses not fitted because the model set or the data do not allow them, with the reason. */
+  readonly leftOut: readonly LeftOutHypothesis[];
 }
 
 /** Options of {@link compareSections}. */
@@ -58,6 +83,33 @@ export interface CompareOptions extends FitOptions {
   /** Also fit shared-offset (default true). */
   offsets?: boolean;
 }
+
+/**
+ * Two hypotheses with the same K are the same fit when their maximised logL
+ * differ by at most this much (absolute, or relative to |logL| above 1):
+ * the optimiser's and the filter's rounding, far below the 0.001 that the
+ * tables print. Example: with the step variance at 0, the shared and
+ * shared-offset directional walks are the same linear model (each section's
+ * start is the common start plus its offset) and their logL differ only in
+ * the last digits.
+ */
+export const sameFitTolerance = 1e-6;
+
+/** Whether two maximised fits are identical at their estimates (equal K, logL equal to {@link sameFitTolerance}). */
+export function sameFit(a: { k: number; logLik: number }, b: { k: number; logLik: number }): boolean {
+  if (a.k !== b.k || !Number.isFinite(a.logLik) || !Number.isFinite(b.logLik)) return false;
+  return Math.abs(a.logLik - b.logLik) <= sameFitTolerance * Math.max(1, Math.abs(a.logLik), Math.abs(b.logLik));
+}
+
+/**
+ * Why a family's shared and shared-offset hypotheses are not fitted when the
+ * model has a shift (a discrete position searched per lineage): a shift
+ * "shared" by sections could mean one age on the common timescale or one
+ * process with each section's own position, and the joint models here
+ * define neither, so they are left out rather than fitted as something else.
+ */
+export const sharedShiftReason =
+  'not fitted: a shift shared by several sections (one shift age on the common timescale, or each section its own shift position) is not defined here; only separate is fitted for shift models';
 
 /**
  * Whether shared-offset is a distinct hypothesis for a family: with no
@@ -101,6 +153,8 @@ function separateFit(base: EvolutionModel, sections: readonly Lineage[], horizon
     sectionFits: fits,
     joint: null,
     fit: null,
+    intervalMethod: [...new Set(fits.map((fit) => fit.intervalMethod))].join(' / '),
+    sameFitAs: [],
   };
 }
 
@@ -121,8 +175,26 @@ function jointFit(joint: JointModel, horizons: number, options: FitOptions): Omi
     sectionFits: null,
     joint,
     fit,
+    intervalMethod: fit.intervalMethod,
+    sameFitAs: [],
   };
 }
+
+/** The first section's reason why a model cannot be fitted to it at all (no covariate; no admissible shift position), or null. */
+function sectionRefusal(base: EvolutionModel, sections: readonly Lineage[], minimumSegment: number | undefined): string | null {
+  for (const [s, section] of sections.entries()) {
+    const name = section.section || `section ${s + 1}`;
+    const unavailable = base.unavailable?.(section) ?? null;
+    if (unavailable) return `${name}: ${unavailable.replace(/^not fitted: /, '')}`;
+    if (base.configurations && base.configurations(section, { minimumSegment }).length === 0) {
+      return `${name}: ${section.mean.length} horizons leave no admissible shift position with segments of at least ${minimumSegment ?? defaultMinimumSegment} horizons`;
+    }
+  }
+  return null;
+}
+
+/** Why shared-offset is not fitted for a covariate model: the merged timeline of all sections carries no covariate. */
+export const offsetCovariateReason = 'not fitted: the common timeline of all sections carries no covariate here; shared-offset is defined for models without one';
 
 /**
  * Fit, for each model family, the hypotheses that the sections record
@@ -142,13 +214,30 @@ function jointFit(joint: JointModel, horizons: number, options: FitOptions): Omi
 export function compareSections(sections: readonly Lineage[], models: readonly EvolutionModel[], options: CompareOptions = {}): TraitComparison {
   if (sections.length < 2) throw new Error('compareSections needs two or more sections');
   const horizons = sections.reduce((sum, section) => sum + section.mean.length, 0);
-  const fits: Omit<HypothesisFit, 'aicc' | 'deltaAicc' | 'weight'>[] = [];
-  const fitOptions: FitOptions = { intervals: options.intervals, gridPoints: options.gridPoints };
+  let fits: Omit<HypothesisFit, 'aicc' | 'deltaAicc' | 'weight'>[] = [];
+  const fitOptions: FitOptions = { intervals: options.intervals, intervalMethod: options.intervalMethod, gridPoints: options.gridPoints, minimumSegment: options.minimumSegment };
+  const leftOut: LeftOutHypothesis[] = [];
   for (const base of models) {
+    const refusal = sectionRefusal(base, sections, options.minimumSegment);
+    if (refusal !== null) {
+      // As `fit` leaves out what a lineage does not allow; a joint model would otherwise fit something else (a covariate of 0).
+      leftOut.push({ id: 'every', model: base.id, reason: `not fitted: ${refusal}` });
+      continue;
+    }
     fits.push(separateFit(base, sections, horizons, fitOptions));
+    if (base.configurations) {
+      leftOut.push({ id: 'shared', model: base.id, reason: sharedShiftReason });
+      if ((options.offsets ?? true) && offsetApplies(base)) leftOut.push({ id: 'shared-offset', model: base.id, reason: sharedShiftReason });
+      continue;
+    }
     fits.push(jointFit(sharedModel(base, sections), horizons, fitOptions));
-    if ((options.offsets ?? true) && offsetApplies(base)) fits.push(jointFit(offsetModel(base, sections), horizons, fitOptions));
+    if (!(options.offsets ?? true) || !offsetApplies(base)) continue;
+    if (base.unavailable) leftOut.push({ id: 'shared-offset', model: base.id, reason: offsetCovariateReason });
+    else fits.push(jointFit(offsetModel(base, sections), horizons, fitOptions));
   }
+  // A hypothesis whose likelihood could not be maximised (e.g. a singular covariance) is left out with its reason, not listed as a row.
+  for (const fit of fits) if (!fit.converged) leftOut.push({ id: fit.id, model: fit.model, reason: fit.message ?? 'not fitted' });
+  fits = fits.filter((fit) => fit.converged);
   const criteria = fits.map((fit) => (fit.converged ? aicc(fit.logLik, fit.k, horizons) : null));
   const { delta, weight } = akaikeWeights(criteria);
   const hypotheses: HypothesisFit[] = fits.map((fit, j) => ({
@@ -157,6 +246,7 @@ export function compareSections(sections: readonly Lineage[], models: readonly E
     deltaAicc: delta[j],
     weight: weight[j],
     message: fit.message ?? (criteria[j] === null ? `not compared: N - K - 1 = ${horizons - fit.k - 1} <= 0` : null),
+    sameFitAs: criteria[j] === null ? [] : fits.filter((other, k) => k !== j && criteria[k] !== null && sameFit(fit, other)).map(candidateKey),
   }));
   let best: TraitComparison['best'] = null;
   let lowest = Number.POSITIVE_INFINITY;
@@ -166,6 +256,8 @@ export function compareSections(sections: readonly Lineage[], models: readonly E
       best = { id: hypothesis.id, model: hypothesis.model };
     }
   }
+  const bestFit = best === null ? undefined : hypotheses.find((h) => h.id === best!.id && h.model === best!.model);
+  const bestGroup = bestFit ? hypotheses.filter((h) => h === bestFit || bestFit.sameFitAs.includes(candidateKey(h))).map((h) => ({ id: h.id, model: h.model })) : [];
   const tests: FamilyTest[] = [];
   for (const base of models) {
     const shared = hypotheses.find((h) => h.model === base.id && h.id === 'shared');
@@ -173,7 +265,12 @@ export function compareSections(sections: readonly Lineage[], models: readonly E
     if (!shared || !separate || !shared.converged || !separate.converged) continue;
     tests.push({ model: base.id, restricted: 'shared', full: 'separate', ...likelihoodRatioTest(shared.logLik, shared.k, separate.logLik, separate.k) });
   }
-  return { trait: sections[0].trait, sections, horizons, hypotheses, best, tests };
+  return { trait: sections[0].trait, sections, horizons, hypotheses, best, bestGroup, tests, leftOut };
+}
+
+/** "hypothesis model", the key of a hypothesis in age-draw summaries and `sameFitAs`. */
+export function candidateKey(hypothesis: Pick<HypothesisFit, 'id' | 'model'>): string {
+  return `${hypothesis.id} ${hypothesis.model}`;
 }
 
 /** The traits that can be compared, and why others were skipped. */

@@ -5,10 +5,10 @@
 import type { ParameterEstimate } from '../fit/fit-model.js';
 import { estimateEndsDocument, finiteOrNull } from '../render/fit-document.js';
 import { csvField } from '../render/models-csv.js';
-import { alignColumns } from '../render/text-table.js';
+import { alignColumns, intervalMethodWords } from '../render/text-table.js';
 import { formatFixed, formatNumber } from '../render/units.js';
 import type { CandidateSpread, Spread } from './age-uncertainty.js';
-import type { HypothesisFit, TraitComparison } from './compare-sections.js';
+import { candidateKey, type HypothesisFit, type LeftOutHypothesis, type TraitComparison } from './compare-sections.js';
 import { commonTime } from './stack.js';
 
 /** Words for each hypothesis id. */
@@ -25,10 +25,7 @@ export const comparisonCaution =
   'A shared process does not by itself show that the localities exchanged migrants, nor a separate one that they were isolated; ' +
   'the likelihood-ratio p-value is approximate when a variance sits at its bound 0. Weigh these results with the specialist\'s knowledge of the sections.';
 
-/** Key for age-draw summaries: "hypothesis model". */
-export function candidateKey(hypothesis: Pick<HypothesisFit, 'id' | 'model'>): string {
-  return `${hypothesis.id} ${hypothesis.model}`;
-}
+export { candidateKey } from './compare-sections.js';
 
 function estimateText(name: string, estimate: ParameterEstimate): string {
   const interval = estimate.lower === null && estimate.upper === null ? '' : ` [${estimate.lower === null ? 'open' : formatNumber(estimate.lower)}, ${estimate.upper === null ? 'open' : formatNumber(estimate.upper)}]`;
@@ -56,7 +53,7 @@ export function extrapolatedWords(comparison: TraitComparison): string {
  * AICc (K, logL, AICc, ΔAICc, weight), the likelihood-ratio tests of shared
  * against separate, the estimates of the best-supported hypothesis, and the caution.
  */
-export function comparisonTable(comparison: TraitComparison, ageDraws: { draws: number; seed: number; spreads: readonly CandidateSpread[] } | null = null): string {
+export function comparisonTable(comparison: TraitComparison, ageDraws: { draws: number; seed: number; spreads: readonly CandidateSpread[]; tiedDraws?: number } | null = null): string {
   const unit = comparison.sections[0].timeUnit.label;
   const lines: string[] = [];
   const sectionList = comparison.sections.map((section) => `${section.section} (${section.mean.length})`).join(', ');
@@ -68,8 +65,15 @@ export function comparisonTable(comparison: TraitComparison, ageDraws: { draws: 
   if (extrapolated) lines.push(`  ${extrapolated}`);
   const ranked = [...comparison.hypotheses].sort((a, b) => (a.aicc ?? Infinity) - (b.aicc ?? Infinity));
   const rows: string[][] = [['hypothesis     model', 'K', 'logL', 'AICc', 'ΔAICc', 'weight', '']];
+  const tiedBest = comparison.bestGroup.length > 1;
+  const inBestGroup = (hypothesis: HypothesisFit): boolean => comparison.bestGroup.some((entry) => entry.id === hypothesis.id && entry.model === hypothesis.model);
   for (const hypothesis of ranked) {
     const isBest = comparison.best !== null && comparison.best.id === hypothesis.id && comparison.best.model === hypothesis.model;
+    const marker = tiedBest && inBestGroup(hypothesis)
+      ? '<- best supported, tied (same fit)'
+      : isBest ? '<- best supported'
+        : hypothesis.aicc === null ? 'not compared'
+          : hypothesis.sameFitAs.length > 0 ? `same fit as ${hypothesis.sameFitAs.join(', ')}` : '';
     rows.push([
       `${hypothesis.id.padEnd(15)}${hypothesis.model}`,
       String(hypothesis.k),
@@ -77,7 +81,7 @@ export function comparisonTable(comparison: TraitComparison, ageDraws: { draws: 
       formatFixed(hypothesis.aicc, 3),
       formatFixed(hypothesis.deltaAicc, 3),
       hypothesis.weight === null ? '—' : hypothesis.weight.toFixed(3),
-      isBest ? '<- best supported' : hypothesis.aicc === null ? 'not compared' : '',
+      marker,
     ]);
   }
   lines.push(...alignColumns(rows));
@@ -86,6 +90,7 @@ export function comparisonTable(comparison: TraitComparison, ageDraws: { draws: 
   for (const hypothesis of comparison.hypotheses) {
     if (hypothesis.message) lines.push(`  ${hypothesis.id} ${hypothesis.model}: ${hypothesis.message}`);
   }
+  lines.push(...leftOutWords(comparison.leftOut).map((line) => `  ${line}`));
   if (comparison.tests.length > 0) {
     lines.push('  Shared against separate (likelihood-ratio test; chi-square p-value):');
     const testRows = [['model', 'G', 'df', 'p']];
@@ -95,10 +100,16 @@ export function comparisonTable(comparison: TraitComparison, ageDraws: { draws: 
     lines.push(...alignColumns(testRows, '    '));
   }
   const best = comparison.hypotheses.find((h) => comparison.best && h.id === comparison.best.id && h.model === comparison.best.model);
-  if (best) {
+  if (best && tiedBest) {
+    const group = comparison.hypotheses.filter(inBestGroup);
+    const combined = group.reduce((sum, h) => sum + (h.weight ?? 0), 0);
+    lines.push(`  Best supported: cannot be told apart here — ${listWords(group.map((h) => `${h.id} ${h.model}`))} are the same fit at their estimates (K = ${best.k}, logL ${formatFixed(best.logLik, 3)} in each), so the data do not favour one over the other; together they carry Akaike weight ${combined.toFixed(3)}.`);
+    const estimates = Object.entries(best.parameters).map(([name, estimate]) => estimateText(name, estimate));
+    if (estimates.length > 0) lines.push(`  Estimates of ${best.id} ${best.model} (${intervalWords(best.intervalMethod)}): ${estimates.join('; ')}`);
+  } else if (best) {
     lines.push(`  Best supported: ${best.id} ${best.label} — ${hypothesisWords[best.id]} (Akaike weight ${best.weight?.toFixed(3)}).`);
     const estimates = Object.entries(best.parameters).map(([name, estimate]) => estimateText(name, estimate));
-    if (estimates.length > 0) lines.push(`  Its estimates (95% profile intervals where computed): ${estimates.join('; ')}`);
+    if (estimates.length > 0) lines.push(`  Its estimates (${intervalWords(best.intervalMethod)}): ${estimates.join('; ')}`);
   } else {
     lines.push('  No hypothesis could be compared.');
   }
@@ -115,6 +126,10 @@ export function comparisonTable(comparison: TraitComparison, ageDraws: { draws: 
     }
     lines.push(...alignColumns(drawRows, '    '));
     if (negligible > 0) lines.push(`    (${negligible} other${negligible === 1 ? '' : 's'}: weight below 0.001 in 97.5% of the draws, never best)`);
+    const tied = ageDraws.tiedDraws ?? 0;
+    if (tied > 0) {
+      lines.push(`    In ${tied} of ${ageDraws.draws} draws the best was a tie of identical fits (equal K and logL): each tied row counts that draw as best, so "best in" can add up to more than 100%.`);
+    }
     const bestSpread = best ? ageDraws.spreads.find((spread) => spread.key === candidateKey(best)) : undefined;
     if (bestSpread) {
       const parts = Object.entries(bestSpread.estimates).filter(([, spread]) => spread.median !== null).map(([name, spread]) => `${name} ${spreadText(spread, 4)}`);
@@ -123,6 +138,32 @@ export function comparisonTable(comparison: TraitComparison, ageDraws: { draws: 
   }
   lines.push(`  ${comparisonCaution}`);
   return lines.join('\n');
+}
+
+/** "95% integrated-likelihood intervals where computed", or "no intervals" for a fit without them. */
+export function intervalWords(method: string): string {
+  if (method === 'none' || method === '') return 'no intervals';
+  const described = method.split(' / ').map((part) => intervalMethodWords[part] ?? part).join(' / ');
+  return `95% ${described} intervals where computed`;
+}
+
+function listWords(items: readonly string[]): string {
+  return items.length <= 2 ? items.join(' and ') : `${items.slice(0, -1).join(', ')} and ${items[items.length - 1]}`;
+}
+
+/** The left-out hypotheses in words, one line per reason: "Left out, never ranked — shared and shared-offset of a, b: reason". */
+export function leftOutWords(leftOut: readonly LeftOutHypothesis[]): string[] {
+  const byReason = new Map<string, Map<string, string[]>>();
+  for (const entry of leftOut) {
+    const ids = leftOut.filter((other) => other.model === entry.model && other.reason === entry.reason).map((other) => (other.id === 'every' ? 'every hypothesis' : other.id));
+    const idWords = listWords(ids);
+    const groups = byReason.get(entry.reason) ?? new Map<string, string[]>();
+    byReason.set(entry.reason, groups);
+    const models = groups.get(idWords) ?? [];
+    groups.set(idWords, models);
+    if (!models.includes(entry.model)) models.push(entry.model);
+  }
+  return [...byReason].map(([reason, groups]) => `Left out, never ranked — ${[...groups].map(([ids, models]) => `${ids} of ${models.join(', ')}`).join('; ')}: ${reason}`);
 }
 
 /** A p-value for tables: 4 decimals, exponent form below 1e-4, "< 1e-15" below what the chi-square tail resolves. */
@@ -150,7 +191,7 @@ export function spreadsDocument(spreads: readonly CandidateSpread[]): Record<str
  * The JSON document of one trait's comparison:
  * `{trait, sections, horizons, best, hypotheses: [{id, model, label, k, logLik, aicc, delta_aicc, weight, ...}], tests}`.
  */
-export function comparisonDocument(comparison: TraitComparison, spreads: readonly CandidateSpread[] | null = null): Record<string, unknown> {
+export function comparisonDocument(comparison: TraitComparison, spreads: readonly CandidateSpread[] | null = null, tiedDraws = 0): Record<string, unknown> {
   const { origin, starts } = commonTime(comparison.sections);
   return {
     trait: comparison.trait,
@@ -169,6 +210,9 @@ export function comparisonDocument(comparison: TraitComparison, spreads: readonl
       line: section.lines,
     })),
     best: comparison.best,
+    // More than one entry: the best cannot be told apart from the others here (the same fit at the estimates).
+    best_tied: comparison.bestGroup,
+    left_out: comparison.leftOut,
     hypotheses: comparison.hypotheses.map((hypothesis) => ({
       id: hypothesis.id,
       model: hypothesis.model,
@@ -183,6 +227,8 @@ export function comparisonDocument(comparison: TraitComparison, spreads: readonl
       converged: hypothesis.converged,
       compared: hypothesis.aicc !== null,
       message: hypothesis.message,
+      same_fit_as: hypothesis.sameFitAs,
+      interval_method: hypothesis.intervalMethod,
       params: Object.fromEntries(Object.entries(hypothesis.parameters).map(([name, estimate]) => [name, estimateEndsDocument(estimate)])),
       flags: hypothesis.flags,
     })),
@@ -196,6 +242,8 @@ export function comparisonDocument(comparison: TraitComparison, spreads: readonl
       distribution: 'chi-square (@stdlib/stats-base-dists-chisquare-cdf)',
     })),
     age_uncertainty: spreads ? spreadsDocument(spreads) : null,
+    // Draws whose best was a tie of identical fits; every tied candidate counts such a draw in its best_fraction.
+    age_draws_best_tied: spreads ? tiedDraws : null,
   };
 }
 
@@ -207,7 +255,7 @@ export function comparisonDocument(comparison: TraitComparison, spreads: readonl
  */
 export function comparisonCsv(comparisons: readonly TraitComparison[], spreads: ReadonlyMap<string, readonly CandidateSpread[]> | null = null): string {
   const withDraws = spreads !== null && spreads.size > 0;
-  const header = ['trait', 'hypothesis', 'model', 'k', 'horizons', 'logLik', 'aicc', 'delta_aicc', 'weight', 'best', 'compared', 'lrt_statistic', 'lrt_df', 'lrt_p_value', 'extrapolated_horizons', 'message',
+  const header = ['trait', 'hypothesis', 'model', 'k', 'horizons', 'logLik', 'aicc', 'delta_aicc', 'weight', 'best', 'compared', 'lrt_statistic', 'lrt_df', 'lrt_p_value', 'extrapolated_horizons', 'message', 'same_fit_as',
     ...(withDraws ? ['draws_weight_median', 'draws_weight_lower', 'draws_weight_upper', 'draws_best_fraction'] : [])];
   const rows = [header.join(',')];
   for (const comparison of comparisons) {
@@ -218,7 +266,7 @@ export function comparisonCsv(comparisons: readonly TraitComparison[], spreads: 
       rows.push([
         comparison.trait, h.id, h.model, h.k, h.horizons, finiteOrNull(h.logLik), finiteOrNull(h.aicc), finiteOrNull(h.deltaAicc), finiteOrNull(h.weight),
         best, h.aicc !== null, test ? finiteOrNull(test.statistic) : null, test ? test.degreesOfFreedom : null, test ? finiteOrNull(test.pValue) : null,
-        extrapolated, h.message,
+        extrapolated, h.message, h.sameFitAs.join('; '),
         ...(withDraws ? drawColumns(spreads.get(comparison.trait)?.find((spread) => spread.key === candidateKey(h))) : []),
       ].map(csvField).join(','));
     }

@@ -3,6 +3,14 @@ import { lineageName } from '../lineage.js';
 import { findModel } from '../models/registry.js';
 import { formatFixed, formatNumber, traitUnitLabel, unitLabel } from './units.js';
 
+/** Each interval method (`ModelFit.intervalMethod`) as the tables name it: "95% <words> intervals". */
+export const intervalMethodWords: Readonly<Record<string, string>> = {
+  profile: 'profile-likelihood (asymptotic)',
+  adjusted: 'restricted (REML-type) profile-likelihood',
+  bootstrap: 'bootstrap-calibrated profile-likelihood',
+  integrated: 'integrated-likelihood',
+};
+
 /** Pad a row of cells to column widths (first column left-aligned, the rest right-aligned). */
 export function alignColumns(rows: readonly (readonly string[])[], indent = '  '): string[] {
   const widths = rows[0].map((_, column) => Math.max(...rows.map((row) => [...row[column]].length)));
@@ -49,8 +57,7 @@ export function lineageTable(fit: LineageFit): string {
   }
   lines.push(...alignColumns(rows));
   const methods = [...new Set(fit.models.filter((model) => model.converged).map((model) => model.intervalMethod))];
-  const intervalWords: Record<string, string> = { profile: 'profile-likelihood (asymptotic)', adjusted: 'restricted (REML-type) profile-likelihood', bootstrap: 'bootstrap-calibrated profile-likelihood', integrated: 'integrated-likelihood' };
-  const described = methods.map((method) => intervalWords[method] ?? method).join(' / ');
+  const described = methods.map((method) => intervalMethodWords[method] ?? method).join(' / ');
   lines.push(methods.includes('none') && methods.length === 1 ? `  Estimates (time in ${unit}):` : `  Estimates with 95% ${described || 'profile-likelihood'} intervals (time in ${unit}):`);
   for (const model of fit.models) {
     if (!model.converged) {

@@ -60,7 +60,7 @@ export interface PowerReport {
   /** Smallest drift on the grid (linearly interpolated) reaching the target power, per rule; null when the grid never reaches it. */
   readonly smallest_drift: { readonly power: number; readonly p_best: number | null; readonly p_weight: number | null; readonly p_lrt: number | null };
   readonly horizons_needed: HorizonsNeeded | null;
-  readonly coverage: (CoverageSummary & { readonly model: string; readonly nominal: number; readonly parameters: Record<string, number>; readonly bootstrap_cutoff: Record<string, number> }) | null;
+  readonly coverage: PowerCoverage | null;
   readonly settings: {
     readonly replicates: number;
     readonly seed: number;
@@ -75,6 +75,25 @@ export interface PowerReport {
 }
 
 /** The answer to "how many horizons for this drift". */
+/**
+ * The coverage check on the design. A parameter whose true value sits on its
+ * bound (a step variance of 0) is covered by every interval that reaches the
+ * bound, so its share is 1 by construction: it is reported as null in
+ * `coverage` with the reason in `vacuous`, never as 1.000.
+ */
+export interface PowerCoverage extends Omit<CoverageSummary, 'coverage'> {
+  readonly coverage: Record<string, Record<string, number | null>>;
+  /** Parameters whose coverage says nothing here, with the reason. */
+  readonly vacuous: Record<string, string>;
+  readonly model: string;
+  readonly nominal: number;
+  readonly parameters: Record<string, number>;
+  readonly bootstrap_cutoff: Record<string, number>;
+}
+
+/** Why the coverage of a step variance whose true value is 0 is not a check (user-facing). */
+export const vacuousBoundWords = 'the true step variance is 0, its lower bound: every interval that reaches the bound contains it, so coverage is 1 by construction and says nothing about calibration';
+
 export interface HorizonsNeeded {
   readonly drift: number;
   readonly power: number;
@@ -305,5 +324,11 @@ async function coverageCheck(plan: PowerPlan, truth: Record<string, number>, run
     bootstrapCutoff: cutoffs.cutoff,
   }));
   const results = await runner.coverage(tasks, progress?.stage('interval coverage', tasks.length));
-  return { model: 'directional-walk', nominal: 0.95, parameters: truth, bootstrap_cutoff: { ...cutoffs.cutoff }, ...summariseCoverage(results, methods, names) };
+  const summary = summariseCoverage(results, methods, names);
+  const vacuous: Record<string, string> = truth.step_variance === 0 ? { step_variance: vacuousBoundWords } : {};
+  const coverage = Object.fromEntries(Object.entries(summary.coverage).map(([method, values]) => [
+    method,
+    Object.fromEntries(Object.entries(values).map(([name, value]) => [name, name in vacuous ? null : value])),
+  ]));
+  return { model: 'directional-walk', nominal: 0.95, parameters: truth, bootstrap_cutoff: { ...cutoffs.cutoff }, ...summary, coverage, vacuous };
 }

@@ -68,12 +68,15 @@ describe('stratotrend compare', () => {
     const result = spawnSync(process.execPath, [launcher, 'compare', heights, '--age-model', ties, '--no-intervals', '--models', 'random-walk,directional-walk', '--out', out], { encoding: 'utf8' });
     expect(result.status).toBe(0);
     const csv = readFileSync(join(out, 'compare.csv'), 'utf8').trim().split('\n');
-    expect(csv[0]).toBe('trait,hypothesis,model,k,horizons,logLik,aicc,delta_aicc,weight,best,compared,lrt_statistic,lrt_df,lrt_p_value,extrapolated_horizons,message');
+    expect(csv[0]).toBe('trait,hypothesis,model,k,horizons,logLik,aicc,delta_aicc,weight,best,compared,lrt_statistic,lrt_df,lrt_p_value,extrapolated_horizons,message,same_fit_as');
     expect(csv).toHaveLength(1 + 2 * 6);
     expect(existsSync(join(out, 'sections-1-whorl-width.png'))).toBe(true);
     const help = spawnSync(process.execPath, [launcher, 'compare', '--help'], { encoding: 'utf8' });
     expect(help.stdout).toMatch(/shared-offset/);
     expect(help.stdout).toMatch(/--age-model <file>/);
+    // Issue 20: the help documents the model sets compare accepts and what extended leaves out.
+    expect(help.stdout).toMatch(/Model sets \(--models\):\n  classic .*\n  extended /);
+    expect(help.stdout).toMatch(/--intervals <method>/);
   });
 
   // Hand-checkable from the ties: Quarrel Hollow's lowest horizon at 1.0 m lies between (0 m, 9.00 Ma) and

@@ -1,10 +1,10 @@
 import type { ChartConfiguration, Plugin, Scale } from 'chart.js';
 import { drawFigure, measureText, type FigurePlan, type RenderedFigure } from './chart-backend.js';
 import { pointsPerCm, resolveFigureOptions, type FigureOptions } from './figure-options.js';
-import { font, wrapText } from './marks.js';
+import { font, withOpacity, wrapText } from './marks.js';
 import { ink, lineWidth, seriesStyles, typeSize } from './style.js';
 import { fittedTicks, tickLabel, type RoundStep } from './ticks.js';
-import { traitUnitLabel } from '../units.js';
+import { squaredLabel, traitUnitLabel } from '../units.js';
 
 /** What the power-curve figure needs: the grid of `power --json` and a few words about the design. */
 export interface PowerCurveInput {
@@ -24,6 +24,54 @@ export interface PowerCurveInput {
   readonly level: number;
   /** Pooled within-horizon sd, to state the drift in sd per time unit. */
   readonly withinSd: number;
+  /**
+   * The step variance the replicates were simulated with, printed on the
+   * figure (`settings.step_variance` of the power document); absent for a
+   * document from before it was printed.
+   */
+  readonly stepVariance?: number;
+  /**
+   * Several assumed step variances (increasing, the power document's
+   * `assumptions`): each gets its three curves, the largest drawn solid and
+   * the smaller ones faded; `grid` is then the largest's. Absent or one
+   * entry: one set of curves.
+   */
+  readonly assumptions?: readonly { readonly stepVariance: number; readonly source: string; readonly grid: PowerCurveInput['grid'] }[];
+}
+
+/**
+ * The assumed step variances of a `power --json` document for the figure
+ * (`assumptions`: step variance, why it was assumed, its grid), or undefined
+ * for a document written before they were recorded.
+ */
+export function powerCurveAssumptions(document: { assumptions?: unknown }): PowerCurveInput['assumptions'] {
+  if (!Array.isArray(document.assumptions)) return undefined;
+  return (document.assumptions as { step_variance: number; source: string; grid: PowerCurveInput['grid'] }[]).map((entry) => ({
+    stepVariance: entry.step_variance,
+    source: entry.source.startsWith('upper end') ? 'upper end of its 95% interval' : entry.source,
+    grid: entry.grid,
+  }));
+}
+
+/** The assumed step variance(s) of a power document in words, for its figure caption (empty for a document without them). */
+export function powerAssumptionCaption(document: { settings?: Record<string, unknown>; assumptions?: unknown }): string {
+  const assumptions = powerCurveAssumptions(document);
+  const show = (value: number): string => String(Number(value.toPrecision(4)));
+  if (assumptions && assumptions.length > 1) return `Assumed step variance ${assumptions.map((entry) => `${show(entry.stepVariance)} (${entry.source})`).join(' and ')}; the smaller's curves are faded.`;
+  const value = assumptions?.[0]?.stepVariance ?? document.settings?.step_variance;
+  return typeof value === 'number' ? `Assumed step variance ${show(value)}.` : '';
+}
+
+/** The assumed step variance(s) in words for the figure: "Assumed step variance 0.05 (trait units)² per Myr." */
+export function assumedVarianceWords(input: PowerCurveInput): string {
+  const unit = `${squaredLabel(traitUnitLabel(input.traitUnit, false, 'trait units'))} per ${input.timeUnit}`;
+  const show = (value: number): string => String(Number(value.toPrecision(4)));
+  if (input.assumptions && input.assumptions.length > 1) {
+    const parts = input.assumptions.map((entry, index) => `${show(entry.stepVariance)} (${entry.source}${index < input.assumptions!.length - 1 ? '; faded curves' : '; solid curves'})`);
+    return `Assumed step variance ${parts.join(' and ')} ${unit}.`;
+  }
+  const value = input.assumptions?.[0]?.stepVariance ?? input.stepVariance;
+  return value === undefined ? '' : `Assumed step variance ${show(value)} ${unit}.`;
 }
 
 const margin = 6;
@@ -71,13 +119,14 @@ function roundTickOptions(limits: { min: number; max: number }, target: number):
 export function powerCurvePlan(input: PowerCurveInput, options: FigureOptions = {}): { plan: FigurePlan; resolved: ReturnType<typeof resolveFigureOptions> } {
   const resolved = resolveFigureOptions(options);
   const widthPoints = resolved.widthCm * pointsPerCm;
-  const heightPoints = widthPoints * 1.05;
+  // Several assumed step variances double the legend: the figure grows so the plot keeps its height.
+  const heightPoints = widthPoints * (input.assumptions && input.assumptions.length > 1 ? 1.45 : 1.05);
   const inner = widthPoints - 2 * margin;
   const title = `Power to detect a trend: ${input.lineage}`;
   const traitUnits = traitUnitLabel(input.traitUnit, false, 'trait units');
   const subtitle = wrapText(
     `${input.replicates} simulated directional walks per drift on this design (N = ${input.horizons} horizons, its own times and sampling variances). ` +
-      `1 within-horizon sd per ${input.timeUnit} = ${Number(input.withinSd.toPrecision(3))} ${traitUnits} per ${input.timeUnit}. Dashed: ${Math.round(input.targetPower * 100)}% power; dotted: the ${Math.round(input.level * 100)}% level.`,
+      `1 within-horizon sd per ${input.timeUnit} = ${Number(input.withinSd.toPrecision(3))} ${traitUnits} per ${input.timeUnit}. ${assumedVarianceWords(input)}${assumedVarianceWords(input) ? ' ' : ''}Dashed: ${Math.round(input.targetPower * 100)}% power; dotted: the ${Math.round(input.level * 100)}% level.`,
     inner,
     (text) => measureText(font(typeSize.subtitle), text),
   );
@@ -91,8 +140,12 @@ export function powerCurvePlan(input: PowerCurveInput, options: FigureOptions = 
     { key: 'p_best' as const, label: 'directional walk best by AICc', style: seriesStyles[1], point: 'triangle' },
     { key: 'p_weight' as const, label: `Akaike weight > ${input.weightThreshold}`, style: seriesStyles[2], point: 'rect' },
   ];
-  const maximumDrift = Math.max(...input.grid.map((point) => point.drift));
-  const minimumDrift = Math.min(0, ...input.grid.map((point) => point.drift));
+  // Every assumption's curves; the last (largest step variance) solid, the others faded.
+  const curves = input.assumptions && input.assumptions.length > 1 ? input.assumptions : [{ stepVariance: input.stepVariance ?? Number.NaN, source: '', grid: input.grid }];
+  const several = curves.length > 1;
+  const allPoints = curves.flatMap((curve) => curve.grid);
+  const maximumDrift = Math.max(...allPoints.map((point) => point.drift));
+  const minimumDrift = Math.min(0, ...allPoints.map((point) => point.drift));
   const notePlugin: Plugin = {
     id: 'stratotrendPowerNote',
     afterDraw(chart) {
@@ -109,18 +162,22 @@ export function powerCurvePlan(input: PowerCurveInput, options: FigureOptions = 
     type: 'scatter',
     data: {
       datasets: [
-        ...series.map((item) => ({
-          label: item.label,
-          data: input.grid.map((point) => ({ x: point.drift, y: point[item.key] })),
-          showLine: true,
-          borderColor: item.style.color,
-          backgroundColor: item.style.color,
-          borderWidth: lineWidth.model,
-          borderDash: [...item.style.dash],
-          pointStyle: item.point,
-          pointRadius: 2.4,
-          tension: 1e-6,
-        })),
+        ...curves.flatMap((curve, index) => {
+          const faded = index < curves.length - 1;
+          const color = (hex: string): string => (faded ? withOpacity(hex, 0.4) : hex);
+          return series.map((item) => ({
+            label: several ? `${item.label}, step variance ${Number(curve.stepVariance.toPrecision(4))}` : item.label,
+            data: curve.grid.map((point) => ({ x: point.drift, y: point[item.key] })),
+            showLine: true,
+            borderColor: color(item.style.color),
+            backgroundColor: color(item.style.color),
+            borderWidth: faded ? lineWidth.model * 0.7 : lineWidth.model,
+            borderDash: [...item.style.dash],
+            pointStyle: item.point,
+            pointRadius: faded ? 1.8 : 2.4,
+            tension: 1e-6,
+          }));
+        }),
         {
           label: `target power ${input.targetPower}`,
           data: [{ x: minimumDrift, y: input.targetPower }, { x: maximumDrift, y: input.targetPower }],
