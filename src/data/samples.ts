@@ -19,6 +19,13 @@ export interface HorizonRecord {
   readonly line: number;
   /** Optional environmental covariate value at this horizon. */
   readonly covariate?: number;
+  /**
+   * The summary row left its spread cell empty, which is accepted only where
+   * n = 1 (one specimen has no standard deviation); `variance` is then 0, a
+   * value that enters nothing because every use of it is weighted by n - 1.
+   * Without pooling, `buildLineages` refuses it naming the spread column.
+   */
+  readonly spreadMissing?: boolean;
 }
 
 /** The horizons of a file with what kind of input they came from. */
@@ -252,7 +259,9 @@ export class HorizonCollector {
     if (!Number.isInteger(n) || n < 1) throw new InputError(`must be a whole number of specimens of at least 1, got "${cells[this.index('n')]}"`, { file, line, column: 'n' });
     let mean = this.number(cells, line, 'mean');
     const spreadName = plan.spread ?? 'sd';
-    const spread = this.number(cells, line, spreadName);
+    // One specimen has no spread and a spreadsheet leaves its cell empty: accepted where n = 1 (variance 0, weight n - 1 = 0 in any pooling; buildLineages refuses it without --pool).
+    const spreadMissing = n === 1 && cells[this.index(spreadName)] === '';
+    const spread = spreadMissing ? 0 : this.number(cells, line, spreadName);
     if (spread < 0) throw new InputError(`must be zero or positive, got "${cells[this.index(spreadName)]}"`, { file, line, column: spreadName });
     let variance = spreadName === 'sd' ? spread * spread : spread;
     if (options.log) {
@@ -262,6 +271,10 @@ export class HorizonCollector {
       if (!Number.isFinite(variance)) {
         throw new InputError(`gives a log-scale variance (${spreadName} relative to the mean) too large to compute with, got "${cells[this.index(spreadName)]}"`, { file, line, column: spreadName });
       }
+    }
+    if (spreadMissing) {
+      this.summaries.push({ section, trait, position, n, mean, variance, line, covariate, spreadMissing });
+      return;
     }
     this.summaries.push({ section, trait, position, n, mean, variance, line, covariate });
   }

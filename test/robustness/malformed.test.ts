@@ -53,6 +53,8 @@ const cases: Array<[string, string[], number, string]> = [
   ['n-zero.csv', [], 1, 'n-zero.csv line 8, column "n": must be a whole number of specimens of at least 1, got "0"'],
   ['n-fraction.csv', [], 1, 'n-fraction.csv line 8, column "n": must be a whole number of specimens of at least 1, got "2.5"'],
   ['n-one-without-pool.csv', [], 1, 'n-one-without-pool.csv line 8, column "n": n = 1 gives no within-horizon variance; use --pool to pool variances over the lineage'],
+  // Issue 18: an empty sd where n = 1 is what a spreadsheet leaves; the message says --pool handles it.
+  ['n-one-empty-sd-without-pool.csv', [], 1, 'n-one-empty-sd-without-pool.csv line 8, column "sd": is empty where n = 1 (one specimen has no standard deviation), got ""; --pool handles this: it pools the within-horizon variance over the lineage, to which such a horizon adds nothing'],
   ['too-few-horizons.csv', [], 1, 'too-few-horizons.csv line 2: lineage "Korrin Gap / rib count" has 2 horizons; at least 3 are needed to fit any model'],
   ['exact-copy-row.csv', [], 1, 'exact-copy-row.csv line 5, column "age": lineage "Korrin Gap / rib count": this row repeats line 4 exactly (same age, n, mean and spread), got age "9.1"; remove the copy'],
   ['empty-cell.csv', [], 1, 'empty-cell.csv line 5, column "n": is empty, expected a number'],
