@@ -22,6 +22,8 @@ import { lineageFromArrays, type Lineage } from '../../src/lineage.js';
 import { ornsteinUhlenbeck } from '../../src/models/ou.js';
 import { directionalWalk } from '../../src/models/directional-walk.js';
 import { root } from '../robustness/cli.js';
+import { fitLineage } from '../../src/fit/fit-lineage.js';
+import { lineageTable } from '../../src/render/text-table.js';
 import { classicModels, findModel } from '../../src/models/registry.js';
 import { createRandom } from '../../src/simulate/random.js';
 import { simulateMeans, withMeans } from '../../src/simulate/simulate-lineage.js';
@@ -127,6 +129,19 @@ describe('the Brindle-2 core of issue 18: ou at the alpha -> 0 limit', () => {
       expect(fit.parameters[name].upper).toBe(profile.parameters[name].upper);
     }
     expect(outside(fit)).toEqual([]);
+  });
+});
+
+describe('the table says "open" only where an interval reaches a limit', () => {
+  it('ou on the Brindle-2 core: limit_drift has no interval ([—, —]), half_life is open toward alpha -> 0', () => {
+    const input = readInput(join(root, 'test', 'fixtures', 'brindle', 'brindle.csv'));
+    const lineage = loadLineages(input, { pool: true, decimalComma: true }, new WarningLog(), {
+      ageOf: (_section, signed) => ({ age: 1 + (-signed * 3.4) / 70, extrapolated: false }),
+    })[0];
+    const text = lineageTable(fitLineage(lineage, [ornsteinUhlenbeck], { intervalMethod: 'integrated' }));
+    // Before: "limit_drift -7.267 trait units per Myr [—, open]", an end that was never computed printed as open.
+    expect(text).toMatch(/limit_drift -7\.267 trait units per Myr \[—, —\]/);
+    expect(text).toMatch(/half_life — Myr \[[0-9.]+, open\]/);
   });
 });
 
