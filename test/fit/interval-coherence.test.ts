@@ -24,7 +24,7 @@ import { directionalWalk } from '../../src/models/directional-walk.js';
 import { root } from '../robustness/cli.js';
 import { fitLineage } from '../../src/fit/fit-lineage.js';
 import { lineageTable } from '../../src/render/text-table.js';
-import { classicModels, findModel } from '../../src/models/registry.js';
+import { classicModels, extendedModels, findModel } from '../../src/models/registry.js';
 import { createRandom } from '../../src/simulate/random.js';
 import { simulateMeans, withMeans } from '../../src/simulate/simulate-lineage.js';
 
@@ -73,6 +73,24 @@ describe('every interval contains its estimate or reaches its bound (issue 18)',
   it.each(scenarios)('simulated %s lineages of 14 horizons, profile / adjusted / integrated', (generator, parameters) => {
     const problems: string[] = [];
     for (const seed of [0, 2]) problems.push(...checkAll(simulated(generator, parameters, seed), ['profile', 'adjusted', 'integrated'], 0));
+    expect(problems).toEqual([]);
+  });
+
+  it('the extended models (shift and mode-shift; the covariate models need a covariate) on a simulated random walk, integrated and adjusted', () => {
+    const time = Array.from({ length: 16 }, (_, k) => k * 0.7);
+    const design = lineageFromArrays({ time, mean: time.map(() => 0), samplingVariance: time.map(() => 0.05), count: time.map(() => 20) });
+    const lineage = withMeans(design, simulateMeans(findModel('random-walk')!, design, { ancestral_mean: 10, step_variance: 0.05 }, createRandom(0)));
+    const problems: string[] = [];
+    let fitted = 0;
+    for (const model of extendedModels.filter((candidate) => !classicModels.includes(candidate))) {
+      for (const method of ['integrated', 'adjusted'] as const) {
+        const fit = fitModel(model, lineage, { intervalMethod: method });
+        if (!fit.converged) continue;
+        fitted += 1;
+        problems.push(...outside(fit));
+      }
+    }
+    expect(fitted).toBeGreaterThanOrEqual(20);
     expect(problems).toEqual([]);
   });
 
