@@ -1,5 +1,5 @@
 import { pathToFileURL } from 'node:url';
-import { intervalMethods, type IntervalMethod } from '../src/fit/intervals.js';
+import { defaultIntervalMethod, intervalMethods, type IntervalMethod } from '../src/fit/intervals.js';
 import { summariseCoverage, type CoverageTask } from '../src/simulate/coverage.js';
 import type { Design } from '../src/simulate/design.js';
 import { createRandom } from '../src/simulate/random.js';
@@ -18,6 +18,10 @@ export interface CalibrationOptions {
   readonly seed?: number;
   /** Worker threads (default every core; results do not depend on it). */
   readonly threads?: number;
+  /** Interval methods of the ou scenario (default the default method and profile; [] skips it). */
+  readonly ouMethods?: readonly IntervalMethod[];
+  /** Simulated ou lineages per size (default `lineages`). */
+  readonly ouLineages?: number;
   /** Where lines of the printed table go (default console.log; pass () => {} for silence). */
   readonly print?: (line: string) => void;
 }
@@ -30,6 +34,21 @@ export interface CalibrationRow {
   /** Share of nominal 95% intervals that covered the true drift and the true step variance. */
   readonly drift: number;
   readonly step_variance: number;
+  readonly seconds: number;
+}
+
+/** One cell of the ou calibration table. */
+export interface OuCalibrationRow {
+  readonly horizons: number;
+  /** The method asked for (each fit says in `interval_method` what it used). */
+  readonly method: IntervalMethod;
+  readonly lineages: number;
+  /** Share of nominal 95% intervals that covered the true alpha, optimum and step variance. */
+  readonly alpha: number;
+  readonly optimum: number;
+  readonly step_variance: number;
+  /** Share of fits whose intervals fell back to the plain profile (estimate outside the method's interval, issue 18). */
+  readonly fallback: number;
   readonly seconds: number;
 }
 
@@ -47,7 +66,7 @@ export interface CalibrationRow {
  * const rows = await runCalibration({ sizes: [25], lineages: 300 });
  * // rows: one per (size, method), e.g. { horizons: 25, method: 'integrated', drift: 0.95, ... }
  */
-export async function runCalibration(options: CalibrationOptions = {}): Promise<CalibrationRow[]> {
+export async function runCalibration(options: CalibrationOptions = {}): Promise<{ rows: CalibrationRow[]; ou: OuCalibrationRow[] }> {
   const sizes = options.sizes ?? [15, 25, 50, 100];
   const lineages = options.lineages ?? 300;
   const methods = options.methods ?? intervalMethods;
@@ -89,13 +108,76 @@ export async function runCalibration(options: CalibrationOptions = {}): Promise<
       print(`${String(size).padStart(8)}  ${method.padEnd(11)} ${row.drift.toFixed(3).padStart(6)}  ${row.step_variance.toFixed(3).padStart(13)}  ${row.seconds.toFixed(1).padStart(7)}`);
     }
   }
+  const ou = await runOuCalibration(options, runner, print);
+  return { rows, ou };
+}
+
+/**
+ * Coverage of ou's nominal 95% intervals for alpha, the optimum and the step
+ * variance over seeded simulated ou lineages, on the designs of
+ * {@link runCalibration}: the trait starts 1 unit (about 4.5 standard errors
+ * of a mean) below its optimum, the half-life is a quarter of the span, and
+ * the step variance is the directional scenario's. Each fit uses the method's
+ * intervals with its fallbacks (the share of fits that fell back to the
+ * plain profile is reported).
+ */
+async function runOuCalibration(options: CalibrationOptions, runner: ReturnType<typeof poolRunner>, print: (line: string) => void): Promise<OuCalibrationRow[]> {
+  const sizes = options.sizes ?? [15, 25, 50, 100];
+  const methods = options.ouMethods ?? [defaultIntervalMethod, 'profile'];
+  const lineages = options.ouLineages ?? options.lineages ?? 300;
+  const seed = options.seed ?? 2026;
+  const rows: OuCalibrationRow[] = [];
+  if (methods.length === 0) return rows;
+  print(`Coverage of ou's nominal 95% intervals, ${lineages} simulated ou lineages per size (seed ${seed})`);
+  print('horizons  method       alpha  optimum  step_variance  fallback  seconds');
+  const names = ['alpha', 'optimum', 'step_variance'];
+  for (const size of sizes) {
+    const shape = createRandom(seed + size);
+    const time = [0];
+    for (let i = 1; i < size; i++) time.push(time[i - 1] + 0.5 + shape.uniform());
+    const design: Design = { time, count: time.map(() => 20), withinVariance: time.map(() => 1), timeUnit: 'Myr' };
+    const span = time[size - 1];
+    const parameters = { ancestral_mean: 10, optimum: 11, alpha: Math.LN2 / (span / 4), step_variance: 1 / 20 / (span / (size - 1)) };
+    for (const method of methods) {
+      const started = Date.now();
+      const tasks: CoverageTask[] = Array.from({ length: lineages }, (_, index) => ({
+        design,
+        model: 'ou',
+        parameters,
+        names,
+        methods: [method],
+        seed,
+        index,
+        bootstrapReplicates: options.bootstrapReplicates ?? 99,
+      }));
+      const summary = summariseCoverage(await runner.coverage(tasks), [method], names);
+      const row: OuCalibrationRow = {
+        horizons: size,
+        method,
+        lineages: summary.converged,
+        alpha: summary.coverage[method].alpha,
+        optimum: summary.coverage[method].optimum,
+        step_variance: summary.coverage[method].step_variance,
+        fallback: summary.fallback[method],
+        seconds: (Date.now() - started) / 1000,
+      };
+      rows.push(row);
+      print(`${String(size).padStart(8)}  ${method.padEnd(11)} ${row.alpha.toFixed(3).padStart(6)}  ${row.optimum.toFixed(3).padStart(7)}  ${row.step_variance.toFixed(3).padStart(13)}  ${row.fallback.toFixed(3).padStart(8)}  ${row.seconds.toFixed(1).padStart(7)}`);
+    }
+  }
   return rows;
 }
 
 // Runnable entry: `node dist/bench/calibration.js [lineages]` after `npm run build`.
 if (process.argv[1] && import.meta.url === pathToFileURL(process.argv[1]).href) {
+  // node dist/bench/calibration.js [lineages] [sizes, e.g. 15,25] [methods, e.g. integrated,profile or none] [ou methods] [threads]
   const lineages = process.argv[2] ? Number(process.argv[2]) : undefined;
-  runCalibration({ lineages }).catch((error: unknown) => {
+  const list = (text: string | undefined): string[] | undefined => (text === undefined ? undefined : text === 'none' ? [] : text.split(','));
+  const sizes = list(process.argv[3])?.map(Number);
+  const methods = list(process.argv[4]) as IntervalMethod[] | undefined;
+  const ouMethods = list(process.argv[5]) as IntervalMethod[] | undefined;
+  const threads = process.argv[6] ? Number(process.argv[6]) : undefined;
+  runCalibration({ lineages, sizes, methods, ouMethods, threads }).catch((error: unknown) => {
     console.error(error);
     process.exitCode = 1;
   });

@@ -155,6 +155,12 @@ export function buildLineages(samples: SampleSet, options: LineageOptions = {}):
       withinVariance = new Float64Array(placed.length).fill(weighted / degrees);
     } else {
       for (const { record } of placed) {
+        if (record.spreadMissing) {
+          throw new InputError(
+            `is empty where n = 1 (one specimen has no standard deviation), got ""; --pool handles this: it pools the within-horizon variance over the lineage, to which such a horizon adds nothing`,
+            { file: samples.file, line: record.line, column: samples.spreadColumn ?? 'sd' },
+          );
+        }
         if (record.n === 1) {
           throw new InputError(`n = 1 gives no within-horizon variance; use --pool to pool variances over the lineage`, { file: samples.file, line: record.line, column: samples.form === 'summary' ? 'n' : 'value' });
         }
@@ -297,7 +303,7 @@ export function mergeSameAge<T extends { record: HorizonRecord; age: number; ext
       'duplicate-time',
       `${name}: ${group.length} rows at ${samples.timeKind} ${first.position} (lines ${lines.join(', ')}) merged into one horizon (n = ${n}; mean weighted by n; variance of the combined specimens)`,
     );
-    merged.push({ ...group[0], record: { ...first, n, mean, variance }, extrapolated: group.some((entry) => entry.extrapolated) });
+    merged.push({ ...group[0], record: { ...first, n, mean, variance, spreadMissing: false }, extrapolated: group.some((entry) => entry.extrapolated) });
     start = end;
   }
   return merged;

@@ -2,7 +2,7 @@ import { join } from 'node:path';
 import { usageError } from '../data/errors.js';
 import { WarningLog } from '../data/warnings.js';
 import { fitLineage, type LineageFit } from '../fit/fit-lineage.js';
-import type { FitOptions } from '../fit/fit-model.js';
+import { intervalFallbackPrefix, type FitOptions } from '../fit/fit-model.js';
 import { defaultMinimumSegment, type EvolutionModel } from '../models/model.js';
 import { findModel, modelSets } from '../models/registry.js';
 import { fitDocument, type Provenance } from '../render/fit-document.js';
@@ -106,7 +106,7 @@ export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lin
   const fits = fitted.map((fit, j) => (kept[j].leftOut.length === 0 ? fit : { ...fit, models: fit.models.filter((model) => !kept[j].leftOut.includes(model.id)) }));
   for (const fit of fits) {
     for (const model of fit.models) {
-      for (const flag of model.flags) warnings.add('at-bound', `${fit.lineage.section || 'lineage'}${fit.lineage.trait ? ' / ' + fit.lineage.trait : ''}, ${model.id}: ${flag}`);
+      for (const flag of model.flags) warnings.add(flag.startsWith(intervalFallbackPrefix) ? 'interval-fallback' : 'at-bound', `${fit.lineage.section || 'lineage'}${fit.lineage.trait ? ' / ' + fit.lineage.trait : ''}, ${model.id}: ${flag}`);
       if (model.notCompared) warnings.add('not-compared', `${fit.lineage.section || 'lineage'}${fit.lineage.trait ? ' / ' + fit.lineage.trait : ''}, ${model.id}: ${model.notCompared}`);
     }
   }

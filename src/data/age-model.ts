@@ -1,6 +1,7 @@
 import { InputError } from './errors.js';
 import { checkName } from './names.js';
 import type { Table } from './read-table.js';
+import { sectionColumnOf } from './samples.js';
 import type { RandomSource } from '../simulate/random.js';
 
 /** One tie point: a stratigraphic height in a section with a known age. */
@@ -43,7 +44,8 @@ export interface SedimentationSegment {
 const numberPattern = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
 
 /**
- * Read a tie-point table: columns `section` (optional), `height` or `depth`
+ * Read a tie-point table: columns `section` (optional; or another name of
+ * `sectionColumnNames`, as in the samples file), `height` or `depth`
  * (one of them; a depth d below the datum is read as height -d, so deeper is
  * lower and older), `age` (before present, older = larger) and optional
  * `age_sd` (>= 0). Each section needs at least two ties.
@@ -64,11 +66,12 @@ export function readAgeModel(table: Table, options: { decimalComma?: boolean } =
   }
   if (column('age') < 0) throw new InputError('an age model needs an "age" column (before present, older = larger)', { file, line: 1 });
   for (const name of header) {
-    if (!['section', 'height', 'depth', 'age', 'age_sd', ''].includes(name)) {
-      throw new InputError(`unknown column "${name}" in an age model (expected section, height or depth, age, age_sd)`, { file, line: 1 });
+    if (![sectionColumnOf(header, file, table.rawHeader) ?? 'section', 'height', 'depth', 'age', 'age_sd', ''].includes(name)) {
+      throw new InputError(`unknown column "${name}" in an age model (expected section — or core, site, hole, borehole, locality, outcrop — height or depth, age, age_sd)`, { file, line: 1 });
     }
   }
   const positionKind = hasHeight ? 'height' : 'depth';
+  const sectionColumn = sectionColumnOf(header, file, table.rawHeader) ?? 'section';
   const number = (cells: readonly string[], line: number, name: string): number => {
     const raw = cells[column(name)];
     const text = options.decimalComma ? raw.replace(',', '.') : raw;
@@ -80,7 +83,7 @@ export function readAgeModel(table: Table, options: { decimalComma?: boolean } =
   };
   const grouped = new Map<string, TiePoint[]>();
   for (const { line, cells } of table.rows) {
-    const section = column('section') >= 0 ? checkName(cells[column('section')], { file, line, column: 'section' }) : '';
+    const section = column(sectionColumn) >= 0 ? checkName(cells[column(sectionColumn)], { file, line, column: sectionColumn }) : '';
     const position = number(cells, line, positionKind);
     const age = number(cells, line, 'age');
     let ageSd = 0;

@@ -20,6 +20,13 @@ export interface HorizonRecord {
   readonly line: number;
   /** Optional environmental covariate value at this horizon. */
   readonly covariate?: number;
+  /**
+   * The summary row left its spread cell empty, which is accepted only where
+   * n = 1 (one specimen has no standard deviation); `variance` is then 0, a
+   * value that enters nothing because every use of it is weighted by n - 1.
+   * Without pooling, `buildLineages` refuses it naming the spread column.
+   */
+  readonly spreadMissing?: boolean;
 }
 
 /** The horizons of a file with what kind of input they came from. */
@@ -45,6 +52,37 @@ export interface SampleOptions {
 export const knownColumns = [
   'section', 'trait', 'age', 'time', 'height', 'depth', 'n', 'mean', 'sd', 'var', 'value', 'covariate',
 ] as const;
+
+/**
+ * Names the trade gives the section column, all read as `section`: field
+ * workers speak of a section, locality or outcrop; deep-sea and borehole
+ * workers of a core, site, hole or borehole (common practice). A file uses
+ * one of them; `section` wins when it is there.
+ */
+export const sectionColumnNames = ['section', 'core', 'site', 'hole', 'borehole', 'locality', 'outcrop'] as const;
+
+/**
+ * The column of a (lower-cased) header that names the section: `section`
+ * when present, otherwise the one other name of {@link sectionColumnNames}
+ * it has, or null when it has none.
+ *
+ * @param rawHeader the header as written, for messages.
+ * @throws InputError when the header has two or more of the other names and no `section` (which is the section is a guess).
+ * @example
+ * sectionColumnOf(['core', 'trait', 'age', 'n', 'mean', 'sd'], 'a.csv'); // 'core'
+ */
+export function sectionColumnOf(header: readonly string[], file: string, rawHeader: readonly string[] = header): string | null {
+  if (header.includes('section')) return 'section';
+  const found = sectionColumnNames.filter((name) => header.includes(name));
+  if (found.length > 1) {
+    const written = found.map((name) => `"${rawHeader[header.indexOf(name)] ?? name}"`);
+    throw new InputError(
+      `has ${written.length} columns that could name the section and no "section" column, got ${written.join(' and ')}; rename the one whose values tell sections apart to "section" (the others are then left unread)`,
+      { file, line: 1, column: rawHeader[header.indexOf(found[1])] ?? found[1] },
+    );
+  }
+  return found[0] ?? null;
+}
 
 /**
  * Largest magnitude accepted in a numeric cell. Squares and sums of squares of
@@ -94,6 +132,8 @@ export interface ColumnPlan {
   readonly timeKind: TimeKind;
   /** Which spread column a summary-form file has. */
   readonly spread: 'sd' | 'var' | null;
+  /** The column read as the section (`section` or another name of {@link sectionColumnNames}), or null. */
+  readonly section?: string | null;
 }
 
 /**
@@ -113,10 +153,12 @@ export function planColumns(header: readonly string[], file: string, rawHeader: 
     seen.add(name);
   }
   const has = (name: string): boolean => header.includes(name);
+  const section = sectionColumnOf(header, file, rawHeader);
   const timeNames = ['age', 'time', 'height', 'depth'] as const;
   const timeColumns = timeNames.filter(has);
   const specimenForm = has('value') && !has('mean');
-  const missing = new Set<string>(['section', 'trait', 'covariate'].filter((name) => !has(name)));
+  const missing = new Set<string>(['trait', 'covariate'].filter((name) => !has(name)));
+  if (section === null) missing.add('section');
   if (timeColumns.length === 0) timeNames.forEach((name) => missing.add(name));
   if (!specimenForm) {
     for (const name of ['n', 'mean']) if (!has(name)) missing.add(name);
@@ -124,7 +166,7 @@ export function planColumns(header: readonly string[], file: string, rawHeader: 
     if (!has('mean') && !has('value')) missing.add('value');
   }
   header.forEach((name, index) => {
-    if (name === '' || (knownColumns as readonly string[]).includes(name)) return;
+    if (name === '' || (knownColumns as readonly string[]).includes(name) || (sectionColumnNames as readonly string[]).includes(name)) return;
     const written = rawHeader[index] ?? name;
     if (missing.has('sd') && /^(se|sem|s\.?e\.?m?|std ?err(or)?|standard error)$/.test(name)) {
       throw new InputError(`column "${written}" looks like a standard error of the mean; the tool needs the within-horizon standard deviation "sd" (sd = se × √n) or variance "var"`, { file, line: 1, column: written });
@@ -149,7 +191,7 @@ export function planColumns(header: readonly string[], file: string, rawHeader: 
         { file, line: 1, column: summaryColumns[0] },
       );
     }
-    return { file, header, form: 'specimen', timeKind, spread: null };
+    return { file, header, form: 'specimen', timeKind, spread: null, section };
   }
   for (const required of ['n', 'mean']) {
     if (!has(required)) {
@@ -158,7 +200,7 @@ export function planColumns(header: readonly string[], file: string, rawHeader: 
   }
   if (!has('sd') && !has('var')) throw new InputError('missing required column "sd" or "var"', { file, line: 1 });
   if (has('sd') && has('var')) throw new InputError('has both "sd" and "var": keep one', { file, line: 1 });
-  return { file, header, form: 'summary', timeKind, spread: has('sd') ? 'sd' : 'var' };
+  return { file, header, form: 'summary', timeKind, spread: has('sd') ? 'sd' : 'var', section };
 }
 
 /** Other names people give the columns (normalised: lower case, units and punctuation removed). */
@@ -196,6 +238,28 @@ function likelyColumn(name: string, candidates: ReadonlySet<string>): string | n
   return best;
 }
 
+/** Most distinct values an unread column may take and still be watched for hidden sections. */
+const watchedValues = 64;
+
+/** Where the rows with one value of an unread column sit in time (per trait). */
+interface GroupSpan {
+  readonly value: string;
+  readonly trait: string;
+  /** Line of the first row with this value. */
+  readonly line: number;
+  earliest: number;
+  latest: number;
+  /** Up to three distinct positions (enough to call the group a lineage). */
+  readonly distinct: number[];
+}
+
+/** An unread column being watched; `groups` null once it has too many values to be a section column. */
+interface UnreadColumn {
+  readonly written: string;
+  readonly at: number;
+  groups: Map<string, GroupSpan> | null;
+}
+
 /**
  * Turns table rows into horizon records one row at a time, so the whole-file
  * reader ({@link readSamples}) and the streaming reader
@@ -205,11 +269,65 @@ function likelyColumn(name: string, candidates: ReadonlySet<string>): string | n
  */
 export class HorizonCollector {
   private readonly index: (name: string) => number;
+  /** Columns the tool does not read, watched (when the file has no section column) for groups of rows that overlap in time. */
+  private readonly unread: UnreadColumn[];
   private readonly groups = new Map<string, { section: string; trait: string; position: number; line: number; moments: RunningMoments; covariate?: number; covariateText?: string }>();
   private readonly summaries: HorizonRecord[] = [];
 
-  constructor(readonly plan: ColumnPlan, private readonly options: SampleOptions = {}) {
+  constructor(readonly plan: ColumnPlan, private readonly options: SampleOptions = {}, rawHeader: readonly string[] = plan.header) {
     this.index = (name) => plan.header.indexOf(name);
+    const read = new Set<string>([...knownColumns, plan.section ?? 'section', '']);
+    this.unread = plan.section === null || plan.section === undefined
+      ? plan.header.flatMap((name, at) => (read.has(name) ? [] : [{ written: rawHeader[at] ?? name, at, groups: new Map<string, GroupSpan>() }]))
+      : [];
+  }
+
+  /** Note where this row's value of each unread column sits in time. */
+  private watch(line: number, cells: readonly string[], trait: string, position: number): void {
+    for (const column of this.unread) {
+      if (column.groups === null) continue;
+      const value = cells[column.at];
+      const key = `${trait}\u0000${value}`;
+      let span = column.groups.get(key);
+      if (!span) {
+        // A column with many values (identifiers, measurements, notes) is not a hidden section column.
+        if (column.groups.size >= watchedValues) {
+          column.groups = null;
+          continue;
+        }
+        span = { value, trait, line, earliest: position, latest: position, distinct: [position] };
+        column.groups.set(key, span);
+      }
+      span.earliest = Math.min(span.earliest, position);
+      span.latest = Math.max(span.latest, position);
+      if (span.distinct.length < 3 && !span.distinct.includes(position)) span.distinct.push(position);
+    }
+  }
+
+  /**
+   * Refuse a file without a section column in which an unread column splits
+   * one trait's rows into groups of at least 3 horizons each whose spans
+   * overlap in time: they are very likely sections (two cores merged into one
+   * lineage otherwise, issue 18). Groups that only touch do not overlap.
+   */
+  private refuseHiddenSections(): void {
+    for (const column of this.unread) {
+      if (column.groups === null) continue;
+      const spans = [...column.groups.values()].filter((span) => span.distinct.length >= 3);
+      for (let a = 0; a < spans.length; a++) {
+        for (let b = a + 1; b < spans.length; b++) {
+          const first = spans[a];
+          const second = spans[b];
+          if (first.trait !== second.trait || !(first.earliest < second.latest && second.earliest < first.latest)) continue;
+          const kind = this.plan.timeKind;
+          const of = first.trait === '' ? 'the rows' : `the rows of trait "${first.trait}"`;
+          throw new InputError(
+            `splits ${of} into groups that overlap in time ("${first.value}" at ${kind} ${first.earliest} to ${first.latest}, "${second.value}" at ${kind} ${second.earliest} to ${second.latest}), got "${second.value}"; the file has no section column, so they would be fitted as one lineage. If they are sections, rename "${column.written}" to "section" (or core, site, hole, borehole, locality, outcrop); if the file is one section, add a "section" column`,
+            { file: this.plan.file, line: second.line, column: column.written },
+          );
+        }
+      }
+    }
   }
 
   private number(cells: readonly string[], line: number, name: string): number {
@@ -228,8 +346,9 @@ export class HorizonCollector {
     const file = plan.file;
     const position = this.number(cells, line, plan.timeKind);
     const covariate = this.index('covariate') >= 0 ? this.number(cells, line, 'covariate') : undefined;
-    const section = this.label(cells, line, 'section');
+    const section = this.label(cells, line, plan.section ?? 'section');
     const trait = this.label(cells, line, 'trait');
+    if (this.unread.length > 0) this.watch(line, cells, trait, position);
     if (plan.form === 'specimen') {
       let value = this.number(cells, line, 'value');
       if (options.log) {
@@ -254,7 +373,9 @@ export class HorizonCollector {
     if (!Number.isInteger(n) || n < 1) throw new InputError(`must be a whole number of specimens of at least 1, got "${cells[this.index('n')]}"`, { file, line, column: 'n' });
     let mean = this.number(cells, line, 'mean');
     const spreadName = plan.spread ?? 'sd';
-    const spread = this.number(cells, line, spreadName);
+    // One specimen has no spread and a spreadsheet leaves its cell empty: accepted where n = 1 (variance 0, weight n - 1 = 0 in any pooling; buildLineages refuses it without --pool).
+    const spreadMissing = n === 1 && cells[this.index(spreadName)] === '';
+    const spread = spreadMissing ? 0 : this.number(cells, line, spreadName);
     if (spread < 0) throw new InputError(`must be zero or positive, got "${cells[this.index(spreadName)]}"`, { file, line, column: spreadName });
     let variance = spreadName === 'sd' ? spread * spread : spread;
     if (options.log) {
@@ -265,12 +386,17 @@ export class HorizonCollector {
         throw new InputError(`gives a log-scale variance (${spreadName} relative to the mean) too large to compute with, got "${cells[this.index(spreadName)]}"`, { file, line, column: spreadName });
       }
     }
+    if (spreadMissing) {
+      this.summaries.push({ section, trait, position, n, mean, variance, line, covariate, spreadMissing });
+      return;
+    }
     this.summaries.push({ section, trait, position, n, mean, variance, line, covariate });
   }
 
   /** The horizons collected so far, in order of first appearance. */
   finish(): SampleSet {
     const { plan, options } = this;
+    this.refuseHiddenSections();
     const records = plan.form === 'summary'
       ? this.summaries
       : [...this.groups.values()].map((group) => ({
@@ -303,7 +429,7 @@ export class HorizonCollector {
  */
 export function readSamples(table: Table, options: SampleOptions = {}): SampleSet {
   const plan = planColumns(table.header, table.file, table.rawHeader);
-  const collector = new HorizonCollector(plan, options);
+  const collector = new HorizonCollector(plan, options, table.rawHeader);
   for (const { line, cells } of table.rows) collector.add(line, cells);
   return collector.finish();
 }

@@ -119,7 +119,7 @@ export async function streamSampleFile(
       header = rawHeader.map((name) => name.toLowerCase());
       headerLine = info.lines;
       try {
-        collector = new HorizonCollector(planColumns(header, file, rawHeader), options);
+        collector = new HorizonCollector(planColumns(header, file, rawHeader), options, rawHeader);
       } catch (error) {
         problems.samples ??= asInputError(error);
       }

@@ -6,6 +6,7 @@
 export type WarningCategory =
   | 'at-bound'
   | 'at-limit'
+  | 'interval-fallback'
   | 'weak-identifiability'
   | 'extrapolated-age'
   | 'zero-sampling-variance'

@@ -63,9 +63,14 @@ export interface FitOptions {
   bootstrapSeed?: number;
   /** Fewest horizons per segment of a shift model (default `defaultMinimumSegment`, 5). */
   minimumSegment?: number;
+  /** Only these parameters get intervals (default all); the others keep their estimate with no ends. For coverage studies. */
+  intervalParameters?: readonly string[];
   /** Called during the configuration search of shift models (screen, then refine). */
   onProgress?: (progress: SearchProgress) => void;
 }
+
+/** How a flag saying that a model's intervals fell back to another method starts (the CLI prints these as `interval-fallback` warnings). */
+export const intervalFallbackPrefix = 'intervals by the plain profile likelihood';
 
 /** Half the 95% chi-square(1) quantile: the profile drop that defines a 95% interval. */
 export const profileDrop = chiSquare1At95 / 2;
@@ -138,27 +143,42 @@ export function fitModel(model: EvolutionModel, lineage: Lineage, options: FitOp
   }
   const parameters: Record<string, ParameterEstimate> = {};
   const wantIntervals = options.intervals ?? true;
-  // Another interval method replaces every end below (replaceIntervals), so plain profile ends are only made when asked for.
-  const plainEnds = wantIntervals && (options.intervalMethod ?? 'profile') === 'profile';
+  const requested = wantIntervals ? (options.intervalMethod ?? 'profile') : 'none';
   const cutoff = maximum.logLik - profileDrop;
-  for (const spec of model.parameters) {
-    const estimate = estimates[spec.name];
-    const atBound = boundOf(spec.name);
-    const finite = Number.isFinite(estimate);
-    if (!plainEnds || !finite) {
-      parameters[spec.name] = { estimate: finite ? estimate : null, lower: null, upper: null, atBound, lowerAtBound: false, upperAtBound: false };
-      continue;
+  /** Every parameter with plain profile ends (`withEnds`) or with none yet. */
+  const plainIntervals = (withEnds: boolean): void => {
+    for (const spec of model.parameters) {
+      const estimate = estimates[spec.name];
+      const atBound = boundOf(spec.name);
+      const finite = Number.isFinite(estimate);
+      const wanted = !options.intervalParameters || options.intervalParameters.includes(spec.name);
+      if (!withEnds || !finite || !wanted) {
+        parameters[spec.name] = { estimate: finite ? estimate : null, lower: null, upper: null, atBound, lowerAtBound: false, upperAtBound: false };
+        continue;
+      }
+      const axisIndex = model.process.findIndex((axis) => axis.name === spec.name);
+      const interval = axisIndex >= 0
+        ? processInterval(evaluate, model, lineage, maximum.process, axisIndex, cutoff)
+        : locationInterval(evaluator, model, lineage, spec.name, estimate, maximum.process, details, cutoff, options.gridPoints);
+      parameters[spec.name] = { estimate, atBound, ...interval };
     }
-    const axisIndex = model.process.findIndex((axis) => axis.name === spec.name);
-    const interval = axisIndex >= 0
-      ? processInterval(evaluate, model, lineage, maximum.process, axisIndex, cutoff)
-      : locationInterval(evaluator, model, lineage, spec.name, estimate, maximum.process, details, cutoff, options.gridPoints);
-    parameters[spec.name] = { estimate, atBound, ...interval };
-  }
-  let intervalMethod: string = wantIntervals ? (options.intervalMethod ?? 'profile') : 'none';
+  };
+  // Another interval method replaces every end (replaceIntervals), so plain profile ends are only made when asked for.
+  plainIntervals(requested === 'profile');
+  let intervalMethod: string = requested;
   if (intervalMethod !== 'profile' && intervalMethod !== 'none') {
     // The method actually used: 'integrated' falls back to 'adjusted' for models with several process parameters.
-    intervalMethod = replaceIntervals(intervalMethod as Exclude<IntervalMethod, 'profile'>, evaluator, estimates, parameters, processInterval, options);
+    const replaced = replaceIntervals(intervalMethod as Exclude<IntervalMethod, 'profile'>, evaluator, estimates, parameters, processInterval, options);
+    intervalMethod = replaced.method;
+    let fallback = replaced.fallback;
+    const stray = fallback === null ? strayIntervals(parameters) : [];
+    // Intervals that leave out their own estimate describe another fit (ou's restricted maximum at the opposite limit, issue 18): the plain profile describes this one.
+    if (stray.length > 0) fallback = `the ${intervalMethod} intervals left out the estimate of ${stray.join(', ')}`;
+    if (fallback !== null) {
+      flags.push(`${intervalFallbackPrefix}: ${fallback}`);
+      plainIntervals(true);
+      intervalMethod = 'profile';
+    }
   }
   const derived: Record<string, ParameterEstimate> = {};
   if (parameters.alpha && parameters.alpha.estimate === 0) {
@@ -193,6 +213,25 @@ export function fitModel(model: EvolutionModel, lineage: Lineage, options: FitOp
     intervalMethod,
     evaluations: evaluator.evaluations,
   };
+}
+
+/**
+ * Names of the parameters whose interval leaves out their own finite
+ * estimate. An estimate at a bound or limit is inside when the interval
+ * reaches it (an end equal to it, or open on that side); ends are compared
+ * with a relative tolerance of 1e-9 (root-finder precision).
+ *
+ * @example
+ * strayIntervals({ alpha: { estimate: 0, lower: 1206, upper: null, atBound: 'alpha-zero', lowerAtBound: false, upperAtBound: true } }); // ['alpha']
+ */
+export function strayIntervals(parameters: Readonly<Record<string, ParameterEstimate>>): string[] {
+  const stray: string[] = [];
+  for (const [name, { estimate, lower, upper }] of Object.entries(parameters)) {
+    if (estimate === null) continue;
+    const slack = (end: number): number => 1e-9 * Math.max(Math.abs(end), Math.abs(estimate));
+    if ((lower !== null && estimate < lower - slack(lower)) || (upper !== null && estimate > upper + slack(upper))) stray.push(name);
+  }
+  return stray;
 }
 
 function positionName(model: EvolutionModel, axisIndex: number, position: AxisPosition): string | null {

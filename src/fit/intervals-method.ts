@@ -17,12 +17,38 @@ export type ProcessEnds = (
   cutoff: number,
 ) => IntervalEnds;
 
+/** What {@link replaceIntervals} did: the method used, or why the fit must fall back to the plain profile. */
+export interface ReplacedIntervals {
+  /** The method whose intervals are now in `parameters` ('integrated' may become 'adjusted'). */
+  readonly method: IntervalMethod;
+  /** Non-null when the method cannot serve this fit (the words say why); `parameters` is then left as it was. */
+  readonly fallback: string | null;
+}
+
+/**
+ * Smallest bootstrap cut-off (on 2 × the profile drop) taken as a real
+ * quantile. Below it at least 95% of the replicates gave a likelihood-ratio
+ * statistic of 0, which happens when their fits sit on the same bound as
+ * the truth they were drawn from: the interval would shrink to the estimate.
+ */
+export const degenerateCutoff = 0.01;
+
 /**
  * Replace the plain profile intervals of a fit (in `parameters`, in place)
  * by those of another method: `adjusted` (restricted profile, chi-square
  * cut-off), `bootstrap` (plain profile, parametric-bootstrap cut-off) or
  * `integrated` (integrated likelihood; `adjusted` for models with several
  * process parameters). Returns the method actually used.
+ *
+ * The bootstrap cannot calibrate anything when the fit it draws from (the
+ * restricted one) has a process parameter at its bound 0 or at a limit:
+ * every replicate then describes a lineage without that variance (its fits
+ * sit at the bound too, their statistics are 0, and the interval collapses
+ * onto the estimate, e.g. step_variance 0 [0, 7.1e-6] where the profile gives
+ * [0, 101.7], issue 20), and the other cut-offs come from a world without
+ * process noise. Such fits, and cut-offs below {@link degenerateCutoff} or
+ * made from fewer than 19 replicates, come back with a `fallback` reason and
+ * `parameters` untouched.
  * Parameters without a finite estimate keep what they have. Called by
  * `fitModel` only.
  */
@@ -32,9 +58,9 @@ export function replaceIntervals(
   estimates: Readonly<Record<string, number>>,
   parameters: Record<string, ParameterEstimate>,
   processEnds: ProcessEnds,
-  options: { bootstrapReplicates?: number; bootstrapSeed?: number },
-): IntervalMethod {
-  const names = Object.keys(parameters).filter((name) => parameters[name].estimate !== null);
+  options: { bootstrapReplicates?: number; bootstrapSeed?: number; intervalParameters?: readonly string[] },
+): ReplacedIntervals {
+  const names = Object.keys(parameters).filter((name) => parameters[name].estimate !== null && (!options.intervalParameters || options.intervalParameters.includes(name)));
   if (method === 'integrated') {
     const integrated = integratedIntervals(evaluator, names);
     if (integrated) {
@@ -43,7 +69,7 @@ export function replaceIntervals(
         const atZero = parameters[name].atBound === 'zero';
         parameters[name] = { ...parameters[name], ...integrated[name], ...(atZero ? { lower: 0, lowerAtBound: true } : {}) };
       }
-      return 'integrated';
+      return { method: 'integrated', fallback: null };
     }
   }
   const ends = (evaluate: (process: number[]) => number, best: readonly number[], axisIndex: number, cutoff: number): IntervalEnds =>
@@ -51,15 +77,25 @@ export function replaceIntervals(
   let ratioCutoff = (_name: string): number => chiSquare1At95;
   if (method === 'bootstrap') {
     // Draw from the restricted (REML) fit: an ML variance at 0 would simulate a world without that variance.
-    const generator = { ...estimates, ...restrictedEstimates(evaluator) };
+    const restricted = restrictedEstimates(evaluator);
+    const onBound = evaluator.model.process.find((axis) => axis.allowZero && restricted[axis.name] === 0);
+    if (onBound) {
+      const where = onBound.limitNames?.[0] ? `the ${onBound.limitNames[0]} limit` : 'its bound 0';
+      return { method, fallback: `the bootstrap would draw from a fit with ${onBound.name} at ${where}, whose replicates cannot calibrate values away from it` };
+    }
+    const generator = { ...estimates, ...restricted };
     const cutoffs = bootstrapCutoffs(evaluator.model, evaluator.lineage, generator, names, {
       replicates: options.bootstrapReplicates,
       seed: options.bootstrapSeed,
     });
+    const few = names.find((name) => cutoffs.used[name] < 19);
+    if (few) return { method, fallback: `only ${cutoffs.used[few]} bootstrap replicates gave a statistic for ${few} (at least 19 are needed)` };
+    const collapsed = names.find((name) => cutoffs.cutoff[name] < degenerateCutoff);
+    if (collapsed) return { method, fallback: `the bootstrap cut-off of ${collapsed} is ${cutoffs.cutoff[collapsed].toPrecision(3)} (95% of its replicates sit at a bound), which would shrink the interval onto the estimate` };
     ratioCutoff = (name) => cutoffs.cutoff[name];
   }
   const adjusted = method === 'adjusted' || method === 'integrated';
   const replaced = intervalsByProfile(evaluator, names, { adjusted, ratioCutoff }, ends);
   for (const name of names) parameters[name] = { ...parameters[name], ...replaced[name] };
-  return adjusted ? 'adjusted' : method;
+  return { method: adjusted ? 'adjusted' : method, fallback: null };
 }

@@ -78,7 +78,8 @@ export function lineageTable(fit: LineageFit): string {
     for (const [name, estimate] of Object.entries(model.derived)) {
       // half_life is a time; limit_drift (ou at the alpha-zero limit) is a drift, trait per time.
       const derivedUnit = name === 'limit_drift' ? unitLabel({ trait: 1, time: -1 }, unit, traitLabel) : unit;
-      parts.push(`${name} ${formatNumber(estimate.estimate)} ${derivedUnit} [${formatNumber(estimate.lower)}, ${estimate.upper === null ? 'open' : formatNumber(estimate.upper)}]`);
+      // "open" only where the interval reaches a limit (half_life as alpha -> 0); limit_drift has no interval at all.
+      parts.push(`${name} ${formatNumber(estimate.estimate)} ${derivedUnit} [${formatNumber(estimate.lower)}, ${estimate.upper === null && estimate.upperAtBound ? 'open' : formatNumber(estimate.upper)}]`);
     }
     // Shift models: where each new segment starts (0-based horizon index, with its age or time).
     const shifts = model.extra?.shifts as readonly Record<string, number>[] | undefined;

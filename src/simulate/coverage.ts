@@ -1,8 +1,6 @@
 import { fitModel, processInterval } from '../fit/fit-model.js';
 import { LikelihoodEvaluator } from '../fit/evaluator.js';
-import { bootstrapCutoffs } from '../fit/intervals-bootstrap.js';
-import { integratedIntervals } from '../fit/intervals-integrated.js';
-import { covers, intervalsByProfile, restrictedEstimates, type IntervalEnds, type IntervalMethod } from '../fit/intervals.js';
+import { covers, intervalsByProfile, type IntervalEnds, type IntervalMethod } from '../fit/intervals.js';
 import { chiSquare1At95 } from '../fit/model-choice.js';
 import { findModel } from '../models/registry.js';
 import { designLineage, type Design } from './design.js';
@@ -37,6 +35,8 @@ export interface CoverageResult {
   readonly index: number;
   readonly converged: boolean;
   readonly intervals: Record<string, Record<string, { lower: number | null; upper: number | null; covered: boolean }>>;
+  /** Per method: whether the fit fell back to the plain profile (see `fitModel`). */
+  readonly fallbacks?: Record<string, boolean>;
 }
 
 /**
@@ -52,36 +52,39 @@ export function coverageReplicate(task: CoverageTask): CoverageResult {
   const lineage = withMeans(design, means);
   const fit = fitModel(model, lineage, { intervals: false });
   const intervals: CoverageResult['intervals'] = {};
-  if (!fit.converged) return { index: task.index, converged: false, intervals };
+  const fallbacks: Record<string, boolean> = {};
+  if (!fit.converged) return { index: task.index, converged: false, intervals, fallbacks };
   const evaluator = new LikelihoodEvaluator(model, lineage);
   const ends = (evaluate: (process: number[]) => number, best: readonly number[], axisIndex: number, cutoff: number): IntervalEnds =>
     processInterval(evaluate, model, lineage, best, axisIndex, cutoff);
   for (const method of task.methods) {
-    let ratioCutoff = (_name: string): number => chiSquare1At95;
-    if (method === 'bootstrap') {
-      const fixed = task.bootstrapCutoff;
-      if (fixed) ratioCutoff = (name) => fixed[name] ?? chiSquare1At95;
-      else {
-        // Drawn from the restricted (REML) fit, as `fit --intervals bootstrap` does.
-        const generator = { ...fit.estimates, ...restrictedEstimates(evaluator) };
-        const cutoffs = bootstrapCutoffs(model, lineage, generator, task.names, {
-          replicates: task.bootstrapReplicates ?? 99,
-          seed: replicateSeed(task.seed, 13, task.index),
-        });
-        ratioCutoff = (name) => cutoffs.cutoff[name];
-      }
+    const fixed = method === 'bootstrap' ? task.bootstrapCutoff : undefined;
+    if (fixed) {
+      // The ideal bootstrap: one cut-off per parameter, calibrated at the truth.
+      const found = intervalsByProfile(evaluator, task.names, { adjusted: false, ratioCutoff: (name) => fixed[name] ?? chiSquare1At95 }, ends);
+      intervals[method] = Object.fromEntries(
+        task.names.map((name) => [name, { lower: found[name].lower, upper: found[name].upper, covered: covers(found[name], task.parameters[name]) }]),
+      );
+      continue;
     }
-    const integrated = method === 'integrated' ? integratedIntervals(evaluator, task.names) : null;
-    if (integrated) {
-      // As in fitModel: a variance whose estimate is 0 keeps 0 in its integrated interval.
-      for (const name of task.names) if (fit.parameters[name]?.atBound === 'zero') integrated[name] = { ...integrated[name], lower: 0, lowerAtBound: true };
-    }
-    const found = integrated ?? intervalsByProfile(evaluator, task.names, { adjusted: method === 'adjusted' || method === 'integrated', ratioCutoff }, ends);
+    // The intervals `fit --intervals METHOD` reports, fallbacks included (bootstrap drawn from the restricted fit, seeded per replicate).
+    const methodFit = fitModel(model, lineage, {
+      intervalMethod: method,
+      intervalParameters: task.names,
+      bootstrapReplicates: task.bootstrapReplicates ?? 99,
+      bootstrapSeed: replicateSeed(task.seed, 13, task.index),
+    });
     intervals[method] = Object.fromEntries(
-      task.names.map((name) => [name, { lower: found[name].lower, upper: found[name].upper, covered: covers(found[name], task.parameters[name]) }]),
+      task.names.map((name) => {
+        const found = methodFit.parameters[name];
+        // A parameter without a finite estimate (ou's optimum at the alpha -> 0 limit) has no interval: open both ways.
+        const interval: IntervalEnds = found && found.estimate !== null ? found : { lower: null, upper: null, lowerAtBound: true, upperAtBound: true };
+        return [name, { lower: interval.lower, upper: interval.upper, covered: covers(interval, task.parameters[name]) }];
+      }),
     );
+    fallbacks[method] = methodFit.intervalMethod !== method && !(method === 'integrated' && methodFit.intervalMethod === 'adjusted');
   }
-  return { index: task.index, converged: true, intervals };
+  return { index: task.index, converged: true, intervals, fallbacks };
 }
 
 /** Coverage of each method and parameter over replicates. */
@@ -90,18 +93,22 @@ export interface CoverageSummary {
   readonly converged: number;
   /** coverage[method][name]: fraction of converged replicates whose interval covered the truth. */
   readonly coverage: Record<string, Record<string, number>>;
+  /** fallback[method]: fraction of converged replicates whose fit fell back to the plain profile. */
+  readonly fallback: Record<string, number>;
 }
 
 /** Fractions of covering intervals over replicate results. */
 export function summariseCoverage(results: readonly CoverageResult[], methods: readonly string[], names: readonly string[]): CoverageSummary {
   const converged = results.filter((result) => result.converged);
   const coverage: Record<string, Record<string, number>> = {};
+  const fallback: Record<string, number> = {};
   for (const method of methods) {
+    fallback[method] = converged.length > 0 ? converged.filter((result) => result.fallbacks?.[method]).length / converged.length : Number.NaN;
     coverage[method] = {};
     for (const name of names) {
       const hits = converged.filter((result) => result.intervals[method]?.[name]?.covered).length;
       coverage[method][name] = converged.length > 0 ? hits / converged.length : Number.NaN;
     }
   }
-  return { replicates: results.length, converged: converged.length, coverage };
+  return { replicates: results.length, converged: converged.length, coverage, fallback };
 }

@@ -81,7 +81,7 @@ export interface PowerReport {
  * bound, so its share is 1 by construction: it is reported as null in
  * `coverage` with the reason in `vacuous`, never as 1.000.
  */
-export interface PowerCoverage extends Omit<CoverageSummary, 'coverage'> {
+export interface PowerCoverage extends Omit<CoverageSummary, 'coverage' | 'fallback'> {
   readonly coverage: Record<string, Record<string, number | null>>;
   /** Parameters whose coverage says nothing here, with the reason. */
   readonly vacuous: Record<string, string>;
@@ -324,7 +324,8 @@ async function coverageCheck(plan: PowerPlan, truth: Record<string, number>, run
     bootstrapCutoff: cutoffs.cutoff,
   }));
   const results = await runner.coverage(tasks, progress?.stage('interval coverage', tasks.length));
-  const summary = summariseCoverage(results, methods, names);
+  // The fallback shares are the calibration benchmark's; power's document keeps its own keys.
+  const { fallback: _fallback, ...summary } = summariseCoverage(results, methods, names);
   const vacuous: Record<string, string> = truth.step_variance === 0 ? { step_variance: vacuousBoundWords } : {};
   const coverage = Object.fromEntries(Object.entries(summary.coverage).map(([method, values]) => [
     method,

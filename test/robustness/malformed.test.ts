@@ -53,6 +53,11 @@ const cases: Array<[string, string[], number, string]> = [
   ['n-zero.csv', [], 1, 'n-zero.csv line 8, column "n": must be a whole number of specimens of at least 1, got "0"'],
   ['n-fraction.csv', [], 1, 'n-fraction.csv line 8, column "n": must be a whole number of specimens of at least 1, got "2.5"'],
   ['n-one-without-pool.csv', [], 1, 'n-one-without-pool.csv line 8, column "n": n = 1 gives no within-horizon variance; use --pool to pool variances over the lineage'],
+  // Issue 18: an empty sd where n = 1 is what a spreadsheet leaves; the message says --pool handles it.
+  ['n-one-empty-sd-without-pool.csv', [], 1, 'n-one-empty-sd-without-pool.csv line 8, column "sd": is empty where n = 1 (one specimen has no standard deviation), got ""; --pool handles this: it pools the within-horizon variance over the lineage, to which such a horizon adds nothing'],
+  // Issue 18 item 1: an unread column that splits the rows into groups overlapping in time, and two candidate section columns.
+  ['hidden-sections.csv', [], 1, 'hidden-sections.csv line 6, column "station": splits the rows of trait "x" into groups that overlap in time ("A" at age 7 to 10, "B" at age 7.5 to 9.5), got "B"; the file has no section column, so they would be fitted as one lineage. If they are sections, rename "station" to "section" (or core, site, hole, borehole, locality, outcrop); if the file is one section, add a "section" column'],
+  ['two-section-names.csv', [], 1, 'two-section-names.csv line 1, column "hole": has 2 columns that could name the section and no "section" column, got "site" and "hole"; rename the one whose values tell sections apart to "section" (the others are then left unread)'],
   ['too-few-horizons.csv', [], 1, 'too-few-horizons.csv line 2: lineage "Korrin Gap / rib count" has 2 horizons; at least 3 are needed to fit any model'],
   ['exact-copy-row.csv', [], 1, 'exact-copy-row.csv line 5, column "age": lineage "Korrin Gap / rib count": this row repeats line 4 exactly (same age, n, mean and spread), got age "9.1"; remove the copy'],
   ['empty-cell.csv', [], 1, 'empty-cell.csv line 5, column "n": is empty, expected a number'],

@@ -44,6 +44,7 @@ describe('tolerated dialects give the same fit as the clean file', () => {
     ['decimal-comma.csv', ['--decimal-comma', '--delimiter', ';']],
     ['tab.csv', ['--delimiter', 'tab']],
     ['extra-columns.csv', []],
+    ...['core', 'site', 'hole', 'borehole', 'locality', 'outcrop'].map((name): [string, string[]] => [`section-named-${name}.csv`, []]),
   ])('%s %s', (file, args) => {
     const run = runCli(['fit', join('tolerated', file), '--json', ...args], corpus);
     expect(run.stderr).toBe('');

@@ -25,7 +25,7 @@ export function defineFitCommand(program: Command): void {
     .option('--adequacy-draws <n>', 'simulated data sets for --adequacy (default 199)')
     .option('--adequacy-seed <n>', 'seed of the --adequacy simulation (default 1)')
     .option('--no-intervals', 'skip the profile-likelihood intervals (faster)')
-    .option('--intervals <method>', 'how the 95% intervals are made: integrated (default: integrated likelihood, best calibrated; ou and shift models use adjusted), adjusted (restricted profile likelihood), profile (plain profile likelihood, asymptotic) or bootstrap (profile with a parametric-bootstrap cut-off, slower)')
+    .option('--intervals <method>', 'how the 95% intervals are made: integrated (default: integrated likelihood, best calibrated; ou and shift models use adjusted, or profile where adjusted would leave out the estimate), adjusted (restricted profile likelihood), profile (plain profile likelihood, asymptotic) or bootstrap (profile with a parametric-bootstrap cut-off, slower; profile where the bootstrap cannot calibrate). A fit whose intervals fell back says so in interval_method and a warning')
     .option('--quiet', 'print nothing but errors and warnings')
     .option('--no-figures', 'with --out, write no figure files (by default each lineage gets a trajectory and a model-support figure, each trait with several sections a sections figure)')
     .option('--report <file>', 'also write one self-contained HTML report (as "stratotrend report" does)')

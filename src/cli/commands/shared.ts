@@ -9,7 +9,7 @@ import { Option, type Command } from 'commander';
 export function addSampleOptions(command: Command, { traitUnit = true }: { traitUnit?: boolean } = {}): Command {
   command
     .option('--log', 'natural-log transform: specimens logged one by one, summaries by the delta method')
-    .option('--pool', 'pool the within-horizon variance over each lineage (needed when some horizons have n = 1)')
+    .option('--pool', 'pool the within-horizon variance over each lineage (needed when some horizons have n = 1; it accepts an empty sd or var there)')
     .option('--time-unit <unit>', 'unit of the age/time column: Ma/Myr, ka/kyr, yr, or any label', 'Myr');
   if (traitUnit) {
     command.option(
