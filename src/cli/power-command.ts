@@ -10,12 +10,13 @@ import { designOf, pooledWithinSd } from '../simulate/design.js';
 import { defaultDrifts, powerAnalysis, type PowerProgress, type PowerReport } from '../simulate/power.js';
 import { poolRunner } from '../simulate/run-replicates.js';
 import { parseSeed } from '../simulate/seeds.js';
-import { lineagesOf, loadLineagesStreamed, type SampleFileOptions, type StreamedInput } from './input.js';
+import { lineagesWithAgeModel, type AgeModelOptions } from './age-model-options.js';
+import { loadSamplesStreamed, terminalProgress, type SampleFileOptions, type StreamedInput } from './input.js';
 import { toolVersion } from './version.js';
 import { refuseInputPath, writeAtomically } from './write-output.js';
 
 /** Options of `stratotrend power`. */
-export interface PowerCommandOptions extends SampleFileOptions {
+export interface PowerCommandOptions extends SampleFileOptions, AgeModelOptions {
   lineage?: string;
   replicates?: string;
   seed?: string;
@@ -130,9 +131,12 @@ export interface PowerRun {
 export async function runPower(file: string, options: PowerCommandOptions, progress?: PowerProgress, read?: StreamedInput): Promise<PowerRun> {
   const warnings = new WarningLog();
   // Streamed: a specimen file of millions of rows is read in bounded memory (or already read, by the report's fit).
-  const { input, lineages } = read ? { input: read.input, lineages: lineagesOf(read.samples, options, warnings) } : await loadLineagesStreamed(file, options, warnings);
+  const { input, samples } = read ?? (await loadSamplesStreamed(file, options, terminalProgress(file)));
+  // Heights and depths become ages through the same age-model options as fit (--age-model, --extrapolate).
+  const { lineages } = lineagesWithAgeModel(file, samples, options, warnings);
   const { lineage, note } = chooseLineage(lineages, options.lineage, input.name);
   const notes: string[] = note ? [note] : [];
+  for (const warning of warnings.list()) if (warning.category === 'time-axis' || warning.category === 'input') notes.push(warning.message);
   const replicates = wholeOption(options.replicates, '--replicates', 200, 20, 100000);
   const seed = seedOption(options.seed);
   const threads = options.threads === undefined ? undefined : wholeOption(options.threads, '--threads', 1, 1, 256);

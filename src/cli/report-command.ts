@@ -233,7 +233,8 @@ async function runAnalyses(
     seeds.power = seed;
     for (const lineage of document.lineages) {
       try {
-        const result = await runPower(file, { ...sampleOptions, lineage: lineageTitle(lineage), replicates: options.powerReplicates, seed, coverage: false, quiet: true }, undefined, read);
+        // The same age-model options as the fit, so lineages given by height or depth are placed in time as in the fit.
+        const result = await runPower(file, { ...sampleOptions, ageModel: options.ageModel, extrapolate: options.extrapolate, lineage: lineageTitle(lineage), replicates: options.powerReplicates, seed, coverage: false, quiet: true }, undefined, read);
         power.push(result.document);
       } catch (error) {
         // A lineage whose design cannot be simulated (e.g. the directional walk does not fit) keeps the rest of the report.

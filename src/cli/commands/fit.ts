@@ -1,7 +1,6 @@
 import { InvalidArgumentError, type Command } from 'commander';
-import { addAgeModelOptions } from './compare.js';
 import { addFigureOptions } from './render.js';
-import { addSampleOptions } from './shared.js';
+import { addAgeModelOptions, addSampleOptions } from './shared.js';
 
 /**
  * Define `stratotrend fit`. The action imports the fitting code only when
