@@ -246,6 +246,14 @@ async function runAnalyses(
   return { comparison, power, seeds };
 }
 
+/** The provenance entry of --power: on which lineages it ran (and which it could not), with the replicates. */
+function powerOptionWords(results: readonly unknown[], replicates: string | undefined): string {
+  const failed = results.filter((entry) => (entry as { power_not_run?: unknown }).power_not_run !== undefined).length;
+  const ran = results.length - failed;
+  const where = failed === 0 ? 'every lineage' : `${ran} of ${results.length} lineages (not run on ${failed}; see the power block)`;
+  return `${where}, ${replicates ?? '200'} replicates per drift value`;
+}
+
 function parseFormat(value: string | undefined): 'svg' | 'png' {
   const format = (value ?? 'svg').toLowerCase();
   if (format !== 'svg' && format !== 'png') throw usageError(`--figure-format: expected "svg" or "png", got "${value}"`);
@@ -272,7 +280,7 @@ export async function buildReport(
     draw_model: options.drawModel ?? 'best supported',
     smoothed_band: options.smoothedBand === true,
     compare: options.compare === true,
-    power: options.power === true ? `every lineage, ${options.powerReplicates ?? '200'} replicates per drift value` : false,
+    power: options.power === true ? powerOptionWords(extra.analyses?.power ?? [], options.powerReplicates) : false,
   };
   if (extra.source) reportOptions.source = `${extra.source.file} (saved fit document, SHA-256 ${extra.source.sha256}; not refitted)`;
   const extraInputs = attachments.files.map((entry) => ({ role: `attached ${entry.kind}`, file: entry.file, sha256: entry.sha256 }));
@@ -284,6 +292,8 @@ export async function buildReport(
   const input: ReportInput = {
     document,
     figures,
+    // The methods text describes the smoothed mean only when the figures draw it.
+    analyses: { smoothedBand: options.smoothedBand === true && figures.some((figure) => figure.kind === 'trajectory') },
     comparison: extra.analyses?.comparison ?? attachments.comparison,
     power: power.length > 0 ? power : undefined,
     adequacy: attachments.adequacy,
