@@ -7,6 +7,7 @@ import { readTable } from '../../src/data/read-table.js';
 import { WarningLog } from '../../src/data/warnings.js';
 import { warnImplausibleRates } from '../../src/cli/age-model-options.js';
 import { runPower } from '../../src/cli/power-command.js';
+import { runFitStreamed } from '../../src/cli/fit-command.js';
 import { root, runCli } from '../robustness/cli.js';
 
 // Issue 19: every command that reads samples takes the age-model options
@@ -134,6 +135,15 @@ describe('plausibility of the time axis (thresholds: common practice, see README
 });
 
 describe('fit with an age model', () => {
+  it('fit.json data carries each horizon\'s age (age = 1 + depth/100, closed form) and the age model with its tie file in the provenance', async () => {
+    const run = await runFitStreamed(depthSamples, { ageModel: depthTies, intervals: false, quiet: true, models: 'random-walk' });
+    const lineage = (run.document.lineages as { data: { age: number[]; position: number[] } }[])[0];
+    expect(lineage.data.position).toEqual([60, 50, 40, 30, 20, 10]);
+    lineage.data.age.forEach((age, i) => expect(age).toBeCloseTo(1 + lineage.data.position[i] / 100, 12));
+    expect((run.document.age_model as { position_kind: string }).position_kind).toBe('depth');
+    expect((run.document.provenance as { inputs: { file: string }[] }).inputs.map((input) => input.file)).toEqual([depthSamples, depthTies]);
+  });
+
   it('prints the sedimentation rates of every section (hand-computed: 35 m over 0.9 Myr = 38.9 m/Myr)', () => {
     const run = runCli(['fit', heights, '--age-model', ties, '--no-intervals'], folder);
     expect(run.status, run.stderr).toBe(0);
