@@ -3,7 +3,7 @@ import { lineageTitle, type FitDocumentView } from './document-view.js';
 import { escapeHtml, exactValue, slug } from './html.js';
 import { figureHtml, lineageSection, type ReportFigure } from './lineage-section.js';
 import { methodsParagraphs, methodsPlainText, methodsText, renderSentence, type AnalysesRun, type MethodsText, type PowerRun } from './methods.js';
-import { comparisonDocumentBlock, jsonBlock, powerDocumentBlock } from './optional-blocks.js';
+import { ageModelBlock, comparisonDocumentBlock, jsonBlock, powerDocumentBlock } from './optional-blocks.js';
 import { supportTable } from './support-table.js';
 import type { LineageView } from './document-view.js';
 import { findReference } from './references.js';
@@ -45,7 +45,7 @@ export interface ReportInput {
 }
 
 /** Top-level document keys the report shows in blocks of their own. */
-const topKeys = new Set(['provenance', 'model_set', 'lineages', 'warnings', 'comparison', 'comparisons', 'power', 'adequacy']);
+const topKeys = new Set(['provenance', 'model_set', 'lineages', 'warnings', 'comparison', 'comparisons', 'power', 'adequacy', 'age_model']);
 
 function citationLinks(keys: readonly string[]): string {
   return keys.map((key) => `<a href="#ref-${slug(key)}" class="cite">${escapeHtml(findReference(key).cite)}</a>`).join('; ');
@@ -158,6 +158,9 @@ export function reportPage(input: ReportInput): string {
 
   const blocks: { id: string; title: string; html: string }[] = [];
   blocks.push({ id: 'overview', title: 'Overview', html: overview(document) });
+  if (document.age_model !== undefined && document.age_model !== null) {
+    blocks.push({ id: 'age-model', title: 'Age model', html: ageModelBlock(document.age_model, document.lineages[0]?.time_unit ?? 'Myr') });
+  }
   document.lineages.forEach((lineage, index) => {
     blocks.push({ id: `lineage-${index + 1}-${slug(lineageTitle(lineage))}`, title: lineageTitle(lineage), html: lineageSection(lineage, index, document, figures) });
   });
