@@ -16,6 +16,7 @@ import { resolveModels } from './fit-command.js';
 import { ageModelHook, parseDrawOptions, warnUnusedAgeModel, type AgeModelOptions } from './age-model-options.js';
 import { lineagesOf, loadSamplesStreamed, terminalProgress, type SampleFileOptions, type StreamedInput } from './input.js';
 import { toolVersion } from './version.js';
+import type { PowerProgress } from '../simulate/power.js';
 import { inputPaths, prepareOutputFolder, writeAtomically } from './write-output.js';
 
 // The age-model options moved to age-model-options.ts (shared by every samples-reading command); re-exported for callers of this module.
@@ -67,6 +68,7 @@ export function fitAgeDraws(
   document: Record<string, unknown>,
   samples: SampleSet,
   age: LoadedAgeModel | null,
+  progress?: PowerProgress,
 ): string {
   const { draws, seed } = parseDrawOptions(options);
   if (!age) return '';
@@ -88,7 +90,7 @@ export function fitAgeDraws(
   const { models } = resolveModels(options.models);
   const perDraw = ageMonteCarlo(ageModel, draws, seed, (drawn) =>
     lineagesOf(samples, options, new WarningLog(), { ageOf: ageFunction(drawn, { extrapolate: options.extrapolate, samplesFile }) })
-      .map((lineage) => fitLineage(lineage, models, { intervals: false })));
+      .map((lineage) => fitLineage(lineage, models, { intervals: false })), progress?.stage('age draws: refitting every lineage', draws));
   const summaries = fits.map((fit) => {
     const name = lineageName(fit.lineage);
     const spreads = summariseDraws(perDraw.map((drawFits) => {
@@ -167,8 +169,9 @@ function candidates(comparison: TraitComparison): RankedCandidate[] {
  * lineages are assembled from its horizons again for every age-model draw.
  *
  * @param read the samples file already read (the report's fit read it), so it is not read again
+ * @param progress progress bar of the age draws (terminal only; changes nothing)
  */
-export async function runCompare(file: string, options: CompareCommandOptions, read?: StreamedInput): Promise<CompareRun> {
+export async function runCompare(file: string, options: CompareCommandOptions, read?: StreamedInput, progress?: PowerProgress): Promise<CompareRun> {
   const warnings = new WarningLog();
   // Usage first (no point reading a large file for a mistyped option), then the samples, then the age model.
   const { draws, seed } = parseDrawOptions(options);
@@ -192,7 +195,7 @@ export async function runCompare(file: string, options: CompareCommandOptions, r
   const spreads = new Map<string, readonly CandidateSpread[]>();
   if (draws > 0 && age) {
     if (!hasAgeUncertainty(age.model)) warnings.add('input', `--age-draws: every age_sd in ${age.model.file} is 0, so every draw repeats the plain fit`);
-    const perDraw = ageMonteCarlo(age.model, draws, seed, (drawn) => compareTraits(lineagesUnder(drawn, new WarningLog()), models, { intervals: false }));
+    const perDraw = ageMonteCarlo(age.model, draws, seed, (drawn) => compareTraits(lineagesUnder(drawn, new WarningLog()), models, { intervals: false }), progress?.stage('age draws: comparing again', draws));
     for (const comparison of run.comparisons) {
       spreads.set(comparison.trait, summariseDraws(perDraw.map((result) => {
         const match = result.comparisons.find((entry) => entry.trait === comparison.trait);
@@ -248,7 +251,15 @@ export function sectionDocuments(comparison: TraitComparison, models: ReturnType
 
 /** `stratotrend compare FILE`: print the comparison tables (or JSON) and write outputs with --out. */
 export async function compareCommand(file: string, options: CompareCommandOptions): Promise<void> {
-  const result = await runCompare(file, options);
+  // A progress bar for the age draws, on a terminal only (stderr), not with --quiet.
+  const { progressReporter } = await import('./power-command.js');
+  const reporter = await progressReporter(options.quiet);
+  let result: CompareRun;
+  try {
+    result = await runCompare(file, options, undefined, reporter.progress);
+  } finally {
+    reporter.stop();
+  }
   const written: string[] = [];
   if (options.out) {
     const inputs = inputPaths(file, options);

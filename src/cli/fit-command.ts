@@ -164,7 +164,14 @@ export async function fitCommand(file: string, options: FitCommandOptions): Prom
   const run = await runFitStreamed(file, options);
   // Age model: extrapolated horizons in words, and the Monte Carlo over tie ages (--age-draws).
   const { fitAgeDraws } = await import('./compare-command.js');
-  const ageText = run.read ? fitAgeDraws(file, options, run.fits, run.document, run.read.samples, run.age ?? null) : '';
+  // A progress bar for the age draws (stderr, terminal only, not with --quiet).
+  const reporter = options.ageDraws !== undefined ? await (await import('./power-command.js')).progressReporter(options.quiet) : null;
+  let ageText: string;
+  try {
+    ageText = run.read ? fitAgeDraws(file, options, run.fits, run.document, run.read.samples, run.age ?? null, reporter?.progress) : '';
+  } finally {
+    reporter?.stop();
+  }
   const compilation = options.summary ? await import('./compilation-output.js') : null;
   const summary = compilation ? compilation.addCompilation(run) : null;
   // Figures load their module (and, when drawing, the chart stack) only with --out.

@@ -228,19 +228,28 @@ async function runAnalyses(
   }
   const power: unknown[] = [];
   if (options.power) {
-    const { runPower } = await import('./power-command.js');
+    const { runPower, progressReporter } = await import('./power-command.js');
     const seed = options.seed ?? '1';
     seeds.power = seed;
-    for (const lineage of document.lineages) {
+    // One progress bar per stage and lineage (stderr, terminal only, not with --quiet): the power runs take a while.
+    const reporter = await progressReporter(options.quiet);
+    try {
+    for (const [index, lineage] of document.lineages.entries()) {
+      const progress = reporter.progress
+        ? { stage: (label: string, total: number) => reporter.progress!.stage(`power ${index + 1}/${document.lineages.length}: ${label}`.slice(0, 40), total) }
+        : undefined;
       try {
         // The same age-model options as the fit, so lineages given by height or depth are placed in time as in the fit.
-        const result = await runPower(file, { ...sampleOptions, ageModel: options.ageModel, extrapolate: options.extrapolate, lineage: lineageTitle(lineage), replicates: options.powerReplicates, seed, coverage: false, quiet: true }, undefined, read);
+        const result = await runPower(file, { ...sampleOptions, ageModel: options.ageModel, extrapolate: options.extrapolate, lineage: lineageTitle(lineage), replicates: options.powerReplicates, seed, coverage: false, quiet: true }, progress, read);
         power.push(result.document);
       } catch (error) {
         // A lineage whose design cannot be simulated (e.g. the directional walk does not fit) keeps the rest of the report.
         if (!(error instanceof InputError)) throw error;
         power.push({ lineage: lineageTitle(lineage), power_not_run: error.message });
       }
+    }
+    } finally {
+      reporter.stop();
     }
   }
   return { comparison, power, seeds };

@@ -151,3 +151,26 @@ describe('fit with an age model', () => {
     expect(run.stdout).toContain('Quarrel Hollow: 4 ties, sedimentation rates 38.9, 37.5, 30.8');
   });
 });
+
+describe('progress of long jobs (drawn on a terminal only; here a recorder stands in for the bar)', () => {
+  const recorder = () => {
+    const stages: { label: string; total: number; ticks: number[] }[] = [];
+    return { stages, progress: { stage(label: string, total: number) { const entry = { label, total, ticks: [] as number[] }; stages.push(entry); return (done: number) => { entry.ticks.push(done); }; } } };
+  };
+
+  it('fit --age-draws ticks once per draw up to the number of draws', async () => {
+    const { fitAgeDraws } = await import('../../src/cli/compare-command.js');
+    const options = { ageModel: ties, ageDraws: '4', seed: '3', models: 'random-walk', intervals: false as const, quiet: true };
+    const run = await runFitStreamed(heights, options);
+    const { stages, progress } = recorder();
+    fitAgeDraws(heights, options, run.fits, run.document, run.read!.samples, run.age ?? null, progress);
+    expect(stages.map((stage) => [stage.total, stage.ticks])).toEqual([[4, [1, 2, 3, 4]]]);
+  });
+
+  it('compare --age-draws ticks once per draw', async () => {
+    const { runCompare } = await import('../../src/cli/compare-command.js');
+    const { stages, progress } = recorder();
+    await runCompare(heights, { ageModel: ties, ageDraws: '3', models: 'random-walk', intervals: false }, undefined, progress);
+    expect(stages.map((stage) => [stage.total, stage.ticks])).toEqual([[3, [1, 2, 3]]]);
+  });
+});
