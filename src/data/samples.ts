@@ -252,7 +252,9 @@ export class HorizonCollector {
     if (!Number.isInteger(n) || n < 1) throw new InputError(`must be a whole number of specimens of at least 1, got "${cells[this.index('n')]}"`, { file, line, column: 'n' });
     let mean = this.number(cells, line, 'mean');
     const spreadName = plan.spread ?? 'sd';
-    const spread = this.number(cells, line, spreadName);
+    // A sample of one specimen has no sd: its cell may be left empty (read as 0; such a horizon needs --pool, which
+    // gives it the pooled variance, as buildLineages says). simulate writes n = 1 rows the same way.
+    const spread = n === 1 && cells[this.index(spreadName)] === '' ? 0 : this.number(cells, line, spreadName);
     if (spread < 0) throw new InputError(`must be zero or positive, got "${cells[this.index(spreadName)]}"`, { file, line, column: spreadName });
     let variance = spreadName === 'sd' ? spread * spread : spread;
     if (options.log) {

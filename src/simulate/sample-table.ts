@@ -34,7 +34,9 @@ function quoteCell(text: string): string {
  * or depths placed by an age model: their ages), elapsed time otherwise.
  *
  * Summary form: the horizon mean is drawn exactly as the likelihood assumes
- * (sampling error N(0, v_i / n_i)) and sd is the design's within-horizon sd.
+ * (sampling error N(0, v_i / n_i)) and sd is the design's within-horizon sd
+ * (empty for a horizon of one specimen, which has none; the file then reads
+ * back with --pool, as its design did).
  * Specimen form: n_i specimens are drawn around the horizon's latent mean
  * with variance v_i, so their mean has the same sampling variance and their
  * sample variance scatters as a real sample's would.
@@ -60,7 +62,9 @@ export function simulatedTable(request: SimulationRequest): string {
       if (request.form === 'summary') {
         const means = simulateMeans(request.model, design, { ...request.parameters[lineageIndex] }, random);
         for (let i = 0; i < size; i++) {
-          lines.push(`${prefix(i)},${design.count[i]},${formatValue(means[i])},${formatValue(Math.sqrt(design.withinVariance[i]))}`);
+          // One specimen has no sd: left empty, as in a real file, so the output reads back (with --pool) like its design.
+          const sd = design.count[i] === 1 ? '' : formatValue(Math.sqrt(design.withinVariance[i]));
+          lines.push(`${prefix(i)},${design.count[i]},${formatValue(means[i])},${sd}`);
         }
       } else {
         const latentDesign: Lineage = { ...design, samplingVariance: new Float64Array(size) };
