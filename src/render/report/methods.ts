@@ -56,6 +56,8 @@ export interface PowerRun {
   readonly stepVariance?: 'fitted' | 'given' | 'mixed';
   /** Akaike weight the directional walk had to exceed (the P(weight) rule). */
   readonly weightThreshold?: number;
+  /** Level of the bootstrap likelihood-ratio test (0.05 unless the document says otherwise). */
+  readonly level?: number;
 }
 
 /** Which optional analyses the report shows, so the methods text can describe them. */
@@ -367,7 +369,7 @@ export function methodsText(document: FitDocumentView, analyses: AnalysesRun = {
     const step = power.stepVariance === 'given' ? 'a step variance given by the analyst' : power.stepVariance === 'mixed' ? 'a fitted or given step variance' : 'the step variance of the fitted directional walk';
     const details = [power.replicates ? `${power.replicates} replicates per drift value` : null, power.seed !== undefined ? `random seed ${power.seed}` : null].filter(Boolean).join(', ');
     sentences.push({
-      text: `The power of ${which} to detect a directional trend was estimated by simulating the directional walk, with ${step}, on the design of the data (its times, sample sizes and within-horizon variances)${grid}, refitting every model to each replicate${details ? ` (${details})` : ''}, and counting how often the directional walk was best supported${power.weightThreshold !== undefined ? `, had an Akaike weight above ${power.weightThreshold}` : ''} or was preferred by a likelihood-ratio test against the random walk at the 5% level with a parametric-bootstrap critical value; the same counts at zero drift give the false-trend rate.`,
+      text: `The power of ${which} to detect a directional trend was estimated by simulating the directional walk, with ${step}, on the design of the data (its times, sample sizes and within-horizon variances)${grid}, refitting every model to each replicate${details ? ` (${details})` : ''}, and counting how often the directional walk was best supported${power.weightThreshold !== undefined ? `, had an Akaike weight above ${power.weightThreshold}` : ''} or was preferred by a likelihood-ratio test against the random walk at the ${shortNumber(100 * (power.level ?? 0.05))}% level with a parametric-bootstrap critical value; the same counts at zero drift give the false-trend rate.`,
       cites: ['efronTibshirani1993'], paragraph: 'choice',
     });
   }

@@ -100,7 +100,7 @@ ${rows.map(([term, value]) => `<tr><td>${escapeHtml(term)}</td><td><code>${escap
  * ran, replicates, seed, drift grid, where the step variance came from.
  */
 export function powerRunOf(documents: readonly unknown[]): PowerRun {
-  type PowerView = { power_not_run?: string; lineage?: string; input?: { lineage?: string }; grid?: { drift?: number }[]; settings?: { replicates?: number; seed?: number; time_unit?: string; weight_threshold?: number }; generator?: { step_variance_source?: string } };
+  type PowerView = { power_not_run?: string; lineage?: string; input?: { lineage?: string }; grid?: { drift?: number }[]; settings?: { replicates?: number; seed?: number; time_unit?: string; weight_threshold?: number }; generator?: { step_variance_source?: string }; lrt?: { level?: number } };
   const views = documents.filter((entry): entry is PowerView => entry !== null && typeof entry === 'object');
   const ran = views.filter((view) => view.power_not_run === undefined && Array.isArray(view.grid) && view.grid.length > 0);
   const notRun = views.filter((view) => !ran.includes(view));
@@ -116,6 +116,7 @@ export function powerRunOf(documents: readonly unknown[]): PowerRun {
     drifts: first && drifts.length > 0 ? { lowest: Math.min(...drifts), highest: Math.max(...drifts), count: first.grid?.length ?? 0, unit: first.settings?.time_unit ?? 'time unit' } : undefined,
     stepVariance: sources.size > 1 ? 'mixed' : sources.has('given') ? 'given' : 'fitted',
     weightThreshold: first?.settings?.weight_threshold,
+    level: first?.lrt?.level,
   };
 }
 
