@@ -99,13 +99,14 @@ export interface ReportFigureChoices {
   readonly smoothedBand?: boolean;
 }
 
-function sketchFigures(document: FitDocumentView): ReportFigure[] {
+function sketchFigures(document: FitDocumentView, smoothedBand = false): ReportFigure[] {
   return document.lineages.map((lineage, index) => {
-    const sketch = sketchTrajectory(lineage);
+    // As the real figures: the smoothed mean only with --smoothed-band (the methods text says so only then).
+    const sketch = sketchTrajectory(smoothedBand ? lineage : { ...lineage, smoothed: null });
     return {
       lineage: index,
       kind: 'trajectory',
-      caption: `${lineageTitle(lineage)}: horizon means with 95% sampling intervals (±1.96 √eᵢ)${lineage.smoothed ? ' and the lineage mean smoothed under the best-supported model with its 95% band' : ''}; time runs up the page, oldest horizon at the bottom.`,
+      caption: `${lineageTitle(lineage)}: horizon means with 95% sampling intervals (±1.96 √eᵢ)${smoothedBand && lineage.smoothed ? ' and the lineage mean smoothed under the best-supported model with its 95% band' : ''}; time runs up the page, oldest horizon at the bottom.`,
       mime: 'image/svg+xml',
       bytes: new TextEncoder().encode(sketch.svg),
       width: sketch.width,
@@ -134,7 +135,7 @@ export async function reportFigures(document: FitDocumentView, choices: ReportFi
   try {
     figuresModule = await import('../render/figures/index.js');
   } catch (error) {
-    return { figures: sketchFigures(document), note: `Figures are plain sketches: the chart module could not be loaded (${(error as Error).message}).` };
+    return { figures: sketchFigures(document, choices.smoothedBand), note: `Figures are plain sketches: the chart module could not be loaded (${(error as Error).message}).` };
   }
   const { renderTrajectory, renderSectionsTogether, figureJobs } = figuresModule;
   const options = {
@@ -167,7 +168,7 @@ export async function reportFigures(document: FitDocumentView, choices: ReportFi
     }
   } catch (error) {
     if ((error as { name?: string }).name === 'InputError') throw error;
-    return { figures: sketchFigures(document), note: `Figures are plain sketches: the chart module failed (${(error as Error).message}).` };
+    return { figures: sketchFigures(document, choices.smoothedBand), note: `Figures are plain sketches: the chart module failed (${(error as Error).message}).` };
   }
   const left = Math.max(0, figureJobs(document.lineages, ['trajectory', 'sections']).length - maximumFigures);
   return { figures, note: left > 0 ? `The first ${maximumFigures} figures are drawn; ${left} more are left out to keep the page small (draw them all with "stratotrend fit … --out DIR" or "stratotrend redraw").` : undefined };
