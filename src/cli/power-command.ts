@@ -1,5 +1,5 @@
 import { InputError, usageError } from '../data/errors.js';
-import { WarningLog } from '../data/warnings.js';
+import { WarningLog, type Warning } from '../data/warnings.js';
 import { LikelihoodEvaluator } from '../fit/evaluator.js';
 import { fitModel } from '../fit/fit-model.js';
 import { intervalMethodLabels } from '../fit/intervals.js';
@@ -121,6 +121,8 @@ export interface PowerRun {
   readonly report: PowerReport;
   readonly document: Record<string, unknown>;
   readonly notes: string[];
+  /** Warnings of reading the samples and placing them in time (printed on stderr, and in the document). */
+  readonly warnings: readonly Warning[];
 }
 
 /**
@@ -136,7 +138,6 @@ export async function runPower(file: string, options: PowerCommandOptions, progr
   const { lineages } = lineagesWithAgeModel(file, samples, options, warnings);
   const { lineage, note } = chooseLineage(lineages, options.lineage, input.name);
   const notes: string[] = note ? [note] : [];
-  for (const warning of warnings.list()) if (warning.category === 'time-axis' || warning.category === 'input') notes.push(warning.message);
   const replicates = wholeOption(options.replicates, '--replicates', 200, 20, 100000);
   const seed = seedOption(options.seed);
   const threads = options.threads === undefined ? undefined : wholeOption(options.threads, '--threads', 1, 1, 256);
@@ -192,9 +193,11 @@ export async function runPower(file: string, options: PowerCommandOptions, progr
     },
     ...report,
     notes,
+    // Warnings of reading and placing the samples (e.g. time-axis plausibility), as in fit.json.
+    warnings: warnings.list().map((warning) => ({ category: warning.category, message: warning.message, count: warning.count })),
     caution: caution,
   };
-  return { lineage, report, document, notes };
+  return { lineage, report, document, notes, warnings: warnings.list() };
 }
 
 const caution =
@@ -288,4 +291,5 @@ export async function powerCommand(file: string, options: PowerCommandOptions): 
   if (options.json) process.stdout.write(JSON.stringify(run.document, null, 2) + '\n');
   else if (!options.quiet) process.stdout.write(powerTable(run) + '\n' + (options.figure ? `\nWrote the power curve to ${options.figure}\n` : ''));
   for (const note of run.notes) process.stderr.write(`note: ${note}\n`);
+  for (const warning of run.warnings) process.stderr.write(`warning (${warning.category}): ${warning.message}${warning.count > 1 ? ` (${warning.count} times)` : ''}\n`);
 }

@@ -134,6 +134,16 @@ describe('plausibility of the time axis (thresholds: common practice, see README
   });
 });
 
+describe('power reports the same time-axis warnings in its JSON', () => {
+  it('ka ties read as Ma: the power document carries the time-axis warnings', async () => {
+    const kaTies = write('ka-ties-power.csv', 'depth,age\n0,1000\n100,11000\n');
+    const run = await runPower(depthSamples, { ageModel: kaTies, replicates: '20', coverage: false, threads: '1', drifts: '0,1' });
+    const warnings = (run.document.warnings as { category: string; message: string }[]).filter((warning) => warning.category === 'time-axis');
+    expect(warnings).toHaveLength(2);
+    for (const warning of warnings) expect(warning.message).toContain('--time-unit ka');
+  });
+});
+
 describe('fit with an age model', () => {
   it('fit.json data carries each horizon\'s age (age = 1 + depth/100, closed form) and the age model with its tie file in the provenance', async () => {
     const run = await runFitStreamed(depthSamples, { ageModel: depthTies, intervals: false, quiet: true, models: 'random-walk' });
