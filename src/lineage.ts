@@ -29,6 +29,52 @@ export function timeUnit(name: string): TimeUnit {
 }
 
 /**
+ * Longest plausible span of one lineage, in years (common practice, a rough
+ * bound): a species lineage followed through a section lasts a few million
+ * years, rarely tens; 100 Myr is generous. A longer span in the stated unit
+ * almost always means ages in ka (or years) read as Ma.
+ */
+export const plausibleLineageSpanYears = 1e8;
+
+/** Units a time axis can be restated in, largest first (the `--time-unit` values). */
+const restatedUnits = [
+  { option: 'Ma', label: 'Myr', years: 1e6 },
+  { option: 'ka', label: 'kyr', years: 1e3 },
+  { option: 'yr', label: 'yr', years: 1 },
+] as const;
+
+/**
+ * The first `--time-unit` (largest first) other than the stated one under
+ * which a quantity is plausible, or null. `isPlausible(years)` judges the
+ * quantity when one unit of the axis is `years` long.
+ *
+ * @example
+ * plausibleUnit(1e6, (years) => 1923 * years <= 1e8); // { option: 'ka', label: 'kyr' }
+ */
+export function plausibleUnit(statedYears: number, isPlausible: (years: number) => boolean): { option: string; label: string } | null {
+  for (const unit of restatedUnits) {
+    if (unit.years === statedYears) continue;
+    if (isPlausible(unit.years)) return { option: unit.option, label: unit.label };
+  }
+  return null;
+}
+
+/**
+ * Warn (category `time-axis`, one line) when a lineage spans more than
+ * {@link plausibleLineageSpanYears} in the stated unit, naming the
+ * `--time-unit` that makes the span plausible. Silent for a custom unit.
+ */
+export function warnImplausibleSpan(name: string, span: number, unit: TimeUnit, kind: string, warnings: Pick<WarningLog, 'add'> | undefined): void {
+  if (unit.years === null || !(span * unit.years > plausibleLineageSpanYears)) return;
+  const years = unit.years;
+  const better = plausibleUnit(years, (candidate) => candidate < years && span * candidate <= plausibleLineageSpanYears);
+  warnings?.add(
+    'time-axis',
+    `${name}: the horizons span ${Number(span.toPrecision(6))} ${unit.label}, more than the ${plausibleLineageSpanYears / 1e6} Myr plausible for one lineage; ${better ? `if the ${kind === 'height' || kind === 'depth' ? "age model's ages" : `${kind} values`} are in ${better.label}, give --time-unit ${better.option}` : 'check the time column and --time-unit'} (rates are per ${unit.label})`,
+  );
+}
+
+/**
  * One evolving lineage: the horizons of one (section, trait) pair sorted from
  * oldest to youngest, with the sampling variance of each horizon's mean.
  * All arrays have one entry per horizon; the object is never mutated.
@@ -170,11 +216,7 @@ export function buildLineages(samples: SampleSet, options: LineageOptions = {}):
     refuseUnboundedLikelihood(name, placed.map((entry) => entry.record), samplingVariance, samples, options.pool === true);
     const firstAge = placed[0].age;
     const time = Float64Array.from(placed, (entry) => firstAge - entry.age);
-    const spanYears = unit.years === null ? 0 : (time[time.length - 1] ?? 0) * unit.years;
-    if (spanYears > 4.6e9) {
-      // Older than the Earth (about 4.5 Gyr, common knowledge): almost surely ages in years or ka read as Ma.
-      options.warnings?.add('input', `${name}: the horizons span ${time[time.length - 1]} ${unit.label}, more than the age of the Earth; if the ${samples.timeKind} column is in years or thousands of years, give --time-unit yr or ka (rates are per ${unit.label})`);
-    }
+    warnImplausibleSpan(name, time[time.length - 1] ?? 0, unit, samples.timeKind, options.warnings);
     const hasCovariate = placed.some((entry) => entry.record.covariate !== undefined);
     for (let i = 0; i < placed.length; i++) {
       if (samplingVariance[i] === 0) {

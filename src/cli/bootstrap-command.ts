@@ -5,12 +5,13 @@ import { classicModels } from '../models/registry.js';
 import { formatNumber } from '../render/units.js';
 import { bootstrapTests, type BootstrapTestReport } from '../simulate/bootstrap-test.js';
 import { poolRunner } from '../simulate/run-replicates.js';
-import { loadLineagesStreamed, type SampleFileOptions } from './input.js';
+import { lineagesWithAgeModel, type AgeModelOptions } from './age-model-options.js';
+import { loadSamplesStreamed, terminalProgress, type SampleFileOptions } from './input.js';
 import { progressReporter, seedOption, wholeOption } from './power-command.js';
 import { toolVersion } from './version.js';
 
 /** Options of `stratotrend bootstrap`. */
-export interface BootstrapCommandOptions extends SampleFileOptions {
+export interface BootstrapCommandOptions extends SampleFileOptions, AgeModelOptions {
   replicates?: string;
   seed?: string;
   threads?: string;
@@ -44,7 +45,11 @@ export function bootstrapTable(name: string, report: BootstrapTestReport): strin
 /** `stratotrend bootstrap FILE`: parametric-bootstrap tests for every lineage. */
 export async function bootstrapCommand(file: string, options: BootstrapCommandOptions): Promise<void> {
   // Streamed: a specimen file of millions of rows is read in bounded memory.
-  const { input, lineages } = await loadLineagesStreamed(file, options, new WarningLog());
+  const warnings = new WarningLog();
+  const { input, samples } = await loadSamplesStreamed(file, options, terminalProgress(file));
+  // Heights and depths become ages through the same age-model options as fit.
+  const { lineages } = lineagesWithAgeModel(file, samples, options, warnings);
+  for (const warning of warnings.list()) if (warning.category === 'time-axis' || warning.category === 'input') process.stderr.write(`warning (${warning.category}): ${warning.message}\n`);
   const replicates = wholeOption(options.replicates, '--replicates', 200, 19, 100000);
   const seed = seedOption(options.seed);
   const threads = options.threads === undefined ? undefined : wholeOption(options.threads, '--threads', 1, 1, 256);

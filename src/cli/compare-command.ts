@@ -1,7 +1,5 @@
 import { join } from 'node:path';
-import { ageFunction, hasAgeUncertainty, readAgeModel, sedimentationRates, type AgeModel } from '../data/age-model.js';
-import { usageError } from '../data/errors.js';
-import { readTable } from '../data/read-table.js';
+import { ageFunction, hasAgeUncertainty, sedimentationRates, type AgeModel } from '../data/age-model.js';
 import type { SampleSet } from '../data/samples.js';
 import { WarningLog } from '../data/warnings.js';
 import { ageMonteCarlo, summariseDraws, type CandidateSpread, type RankedCandidate } from '../compare/age-uncertainty.js';
@@ -18,17 +16,15 @@ import { modelsCsv } from '../render/models-csv.js';
 import { alignColumns, lineageTable } from '../render/text-table.js';
 import { formatNumber } from '../render/units.js';
 import { resolveModels } from './fit-command.js';
-import { delimiterOption, lineagesOf, loadSamplesStreamed, readInput, terminalProgress, type InputText, type SampleFileOptions, type StreamedInput } from './input.js';
+import { ageModelHook, parseDrawOptions, warnUnusedAgeModel, type AgeModelOptions } from './age-model-options.js';
+import { lineagesOf, loadSamplesStreamed, terminalProgress, type SampleFileOptions, type StreamedInput } from './input.js';
 import { toolVersion } from './version.js';
+import type { PowerProgress } from '../simulate/power.js';
 import { inputPaths, prepareOutputFolder, writeAtomically } from './write-output.js';
 
-/** Options of the age model, shared by `fit` and `compare`. */
-export interface AgeModelOptions {
-  ageModel?: string;
-  extrapolate?: boolean;
-  ageDraws?: string;
-  seed?: string;
-}
+// The age-model options moved to age-model-options.ts (shared by every samples-reading command); re-exported for callers of this module.
+export { ageModelHook, loadAgeModel, parseDrawOptions, warnUnusedAgeModel, type AgeModelOptions, type LoadedAgeModel } from './age-model-options.js';
+import type { LoadedAgeModel } from './age-model-options.js';
 
 /** Options of `stratotrend compare`. */
 export interface CompareCommandOptions extends SampleFileOptions, AgeModelOptions {
@@ -43,23 +39,6 @@ export interface CompareCommandOptions extends SampleFileOptions, AgeModelOption
   quiet?: boolean;
 }
 
-/** Read and validate an age-model file (tie points). */
-export function loadAgeModel(path: string, options: SampleFileOptions): LoadedAgeModel {
-  const input = readInput(path);
-  const model = readAgeModel(readTable(input.text, input.name, { delimiter: delimiterOption(options.delimiter) }), { decimalComma: options.decimalComma });
-  return { input, model };
-}
-
-/** Parse `--age-draws` and `--seed`. */
-export function parseDrawOptions(options: AgeModelOptions): { draws: number; seed: number } {
-  const draws = options.ageDraws === undefined ? 0 : Number(options.ageDraws);
-  if (!Number.isInteger(draws) || draws < 0 || draws > 100_000) throw usageError(`--age-draws must be a whole number from 0 to 100000, got "${options.ageDraws}"`);
-  const seed = options.seed === undefined ? 1 : Number(options.seed);
-  if (!Number.isInteger(seed) || seed < 0 || seed > 2 ** 32 - 1) throw usageError(`--seed must be a whole number from 0 to 4294967295, got "${options.seed}"`);
-  if (draws > 0 && options.ageModel === undefined) throw usageError('--age-draws redraws the ages of an age model: give one with --age-model FILE');
-  return { draws, seed };
-}
-
 /** The age model in words: ties and sedimentation rates per section. */
 export function ageModelWords(model: AgeModel, unit: string): string {
   const lines = [`Age model ${model.file} (ages by linear interpolation between ties; rates in m per ${unit}):`];
@@ -69,31 +48,6 @@ export function ageModelWords(model: AgeModel, unit: string): string {
     lines.push(`  ${section || 'every section'}: ${ties.length} ties, sedimentation rates ${rates.join(', ')}${uncertain > 0 ? `; ${uncertain} with age_sd` : ''}`);
   }
   return lines.join('\n');
-}
-
-/** An age-model file as read: its text record (name, checksum) and the validated ties. */
-export interface LoadedAgeModel {
-  readonly model: AgeModel;
-  readonly input: InputText;
-}
-
-/**
- * The `ageOf` hook for `loadLineages` when `--age-model` is given (and the
- * age model itself), or nothing.
- */
-export function ageModelHook(file: string, options: AgeModelOptions & SampleFileOptions): { age: LoadedAgeModel | null; extra: Pick<LineageOptions, 'ageOf'> } {
-  if (!options.ageModel) {
-    if (options.extrapolate) throw usageError('--extrapolate extends an age model: give one with --age-model FILE');
-    return { age: null, extra: {} };
-  }
-  const age = loadAgeModel(options.ageModel, options);
-  return { age, extra: { ageOf: ageFunction(age.model, { extrapolate: options.extrapolate, samplesFile: file === '-' ? 'stdin' : file }) } };
-}
-
-/** An age model only places heights and depths: say so when the samples already give ages or times. */
-export function warnUnusedAgeModel(lineages: readonly Lineage[], model: AgeModel, warnings: { add(category: 'input', message: string): void }): void {
-  const kind = lineages[0]?.positionKind;
-  if (kind === 'age' || kind === 'time') warnings.add('input', `the samples give "${kind}", so the age model ${model.file} is not used (it places heights and depths only)`);
 }
 
 /** Extrapolated horizons of fitted lineages in words (empty when none). */
@@ -108,8 +62,8 @@ export function extrapolatedLineageWords(lineages: readonly Lineage[]): string {
 /**
  * `fit --age-draws N`: redraw the tie-point ages N times, refit every lineage
  * (without intervals), and summarise per lineage how the Akaike weights and
- * point estimates move. Adds `age_model` and `age_uncertainty` to the fit
- * document and returns the text block for the terminal (empty without draws).
+ * point estimates move. Adds `age_uncertainty` to the fit document (whose
+ * `age_model` runFitStreamed wrote) and returns the text block for the terminal (empty without draws).
  */
 export function fitAgeDraws(
   file: string,
@@ -118,20 +72,20 @@ export function fitAgeDraws(
   document: Record<string, unknown>,
   samples: SampleSet,
   age: LoadedAgeModel | null,
+  progress?: PowerProgress,
 ): string {
   const { draws, seed } = parseDrawOptions(options);
   if (!age) return '';
-  const { model: ageModel, input: ageInput } = age;
-  const provenance = document.provenance as { inputs?: { file: string; sha256: string }[]; options?: Record<string, unknown> } | undefined;
-  provenance?.inputs?.push({ file: ageInput.name, sha256: ageInput.sha256 });
-  if (provenance?.options) Object.assign(provenance.options, { age_model: options.ageModel, extrapolate: options.extrapolate === true, age_draws: draws, seed: draws > 0 ? seed : null });
-  document.age_model = ageModelDocument(ageModel);
+  const { model: ageModel } = age;
+  // runFitStreamed has put the age model, its input and options into the document.
   const lines: string[] = [];
   const kind = fits[0]?.lineage.positionKind;
   if (kind === 'age' || kind === 'time') {
     lines.push(`warning: the samples give "${kind}", so the age model ${ageModel.file} is not used (it places heights and depths only)`);
     return lines.join('\n');
   }
+  // The ties and sedimentation rates, as compare prints them.
+  lines.push(ageModelWords(ageModel, fits[0]?.lineage.timeUnit.label ?? 'Myr'));
   const extrapolated = extrapolatedLineageWords(fits.map((fit) => fit.lineage));
   if (extrapolated) lines.push(extrapolated);
   if (draws === 0) return lines.join('\n');
@@ -140,7 +94,7 @@ export function fitAgeDraws(
   const { models } = resolveModels(options.models);
   const perDraw = ageMonteCarlo(ageModel, draws, seed, (drawn) =>
     lineagesOf(samples, options, new WarningLog(), { ageOf: ageFunction(drawn, { extrapolate: options.extrapolate, samplesFile }) })
-      .map((lineage) => fitLineage(lineage, models, { intervals: false })));
+      .map((lineage) => fitLineage(lineage, models, { intervals: false })), progress?.stage('age draws: refitting every lineage', draws));
   const summaries = fits.map((fit) => {
     const name = lineageName(fit.lineage);
     const spreads = summariseDraws(perDraw.map((drawFits) => {
@@ -254,15 +208,16 @@ export function withoutOffsets(sections: readonly Lineage[], offsets: EstimatedO
  * lineages are assembled from its horizons again for every age-model draw.
  *
  * @param read the samples file already read (the report's fit read it), so it is not read again
+ * @param progress progress bar of the age draws (terminal only; changes nothing)
  */
-export async function runCompare(file: string, options: CompareCommandOptions, read?: StreamedInput): Promise<CompareRun> {
+export async function runCompare(file: string, options: CompareCommandOptions, read?: StreamedInput, progress?: PowerProgress): Promise<CompareRun> {
   const warnings = new WarningLog();
   // Usage first (no point reading a large file for a mistyped option), then the samples, then the age model.
   const { draws, seed } = parseDrawOptions(options);
   const { name: modelSet, models } = resolveModels(options.models);
   const intervals = intervalOptions(options.intervals);
   const { input, samples } = read ?? (await loadSamplesStreamed(file, options, terminalProgress(file)));
-  const { age } = ageModelHook(file, options);
+  const { age } = ageModelHook(file, options, samples.timeKind, warnings);
   const lineagesUnder = (model: AgeModel | null, log: WarningLog): Lineage[] =>
     lineagesOf(samples, options, log, model ? { ageOf: ageFunction(model, { extrapolate: options.extrapolate, samplesFile: input.name }) } : {});
   const lineages = lineagesUnder(age?.model ?? null, warnings);
@@ -303,7 +258,7 @@ export async function runCompare(file: string, options: CompareCommandOptions, r
   const tiedDraws = new Map<string, number>();
   if (draws > 0 && age) {
     if (!hasAgeUncertainty(age.model)) warnings.add('input', `--age-draws: every age_sd in ${age.model.file} is 0, so every draw repeats the plain fit`);
-    const perDraw = ageMonteCarlo(age.model, draws, seed, (drawn) => compareTraits(lineagesUnder(drawn, new WarningLog()), models, { intervals: false }));
+    const perDraw = ageMonteCarlo(age.model, draws, seed, (drawn) => compareTraits(lineagesUnder(drawn, new WarningLog()), models, { intervals: false }), progress?.stage('age draws: comparing again', draws));
     for (const comparison of run.comparisons) {
       const matches = perDraw.map((result) => result.comparisons.find((entry) => entry.trait === comparison.trait));
       spreads.set(comparison.trait, summariseDraws(matches.map((match) => (match ? candidates(match) : []))));
@@ -359,7 +314,15 @@ export function sectionDocuments(comparison: TraitComparison, models: ReturnType
 
 /** `stratotrend compare FILE`: print the comparison tables (or JSON) and write outputs with --out. */
 export async function compareCommand(file: string, options: CompareCommandOptions): Promise<void> {
-  const result = await runCompare(file, options);
+  // A progress bar for the age draws, on a terminal only (stderr), not with --quiet.
+  const { progressReporter } = await import('./power-command.js');
+  const reporter = await progressReporter(options.quiet);
+  let result: CompareRun;
+  try {
+    result = await runCompare(file, options, undefined, reporter.progress);
+  } finally {
+    reporter.stop();
+  }
   const written: string[] = [];
   if (options.out) {
     const inputs = inputPaths(file, options);

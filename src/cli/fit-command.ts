@@ -9,11 +9,11 @@ import { fitDocument, type Provenance } from '../render/fit-document.js';
 import { modelsCsv } from '../render/models-csv.js';
 import { adequacyText, ratesText } from '../render/extensions-text.js';
 import { lineageTable } from '../render/text-table.js';
-import { loadLineages, loadLineagesStreamed, readInput, terminalProgress, type InputText, type SampleFileOptions, type StreamedInput } from './input.js';
+import { lineagesOf, loadLineages, loadSamplesStreamed, readInput, terminalProgress, type InputText, type SampleFileOptions, type StreamedInput } from './input.js';
 import type { Lineage } from '../lineage.js';
 import { fitLineages } from '../parallel/fit-lineages.js';
 import { fittingProgress } from './fit-progress.js';
-import type { AgeModelOptions, LoadedAgeModel } from './compare-command.js';
+import type { AgeModelOptions, LoadedAgeModel } from './age-model-options.js';
 import { intervalOptions } from '../fit/intervals.js';
 import { attachCovariates, extensionSettings, extrasDocument, lineageExtras, modelsForLineage, searchProgress, type ExtensionOptions, type LineageExtras } from './fit-extensions.js';
 import type { FigureCommandOptions } from './render-command.js';
@@ -83,9 +83,12 @@ export function runFit(file: string, options: FitCommandOptions): FitRun {
  */
 export async function runFitStreamed(file: string, options: FitCommandOptions): Promise<FitRun> {
   const warnings = new WarningLog();
-  const { ageModelHook } = await import('./compare-command.js');
-  const { extra, age } = ageModelHook(file, options);
-  const { input, samples, lineages: read } = await loadLineagesStreamed(file, options, warnings, extra, terminalProgress(file));
+  const { ageModelHook, checkAgeModelUsage } = await import('./age-model-options.js');
+  checkAgeModelUsage(options);
+  // The samples first: the tie file must use their position column (height or depth).
+  const { input, samples } = await loadSamplesStreamed(file, options, terminalProgress(file));
+  const { extra, age } = ageModelHook(file, options, samples.timeKind, warnings);
+  const read = lineagesOf(samples, options, warnings, extra);
   const lineages = options.covariateFile ? attachCovariates(read, options.covariateFile) : read;
   // Many lineages are fitted on worker threads (same numbers, input order; see src/parallel/fit-lineages.ts).
   const { models } = resolveModels(options.models);
@@ -93,7 +96,17 @@ export async function runFitStreamed(file: string, options: FitCommandOptions): 
     threads: options.threads,
     onProgress: fittingProgress(lineages.length, options),
   });
-  return { ...fitLoaded(input, lineages, options, warnings, fits), read: { input, samples }, age };
+  const run = fitLoaded(input, lineages, options, warnings, fits);
+  if (age) {
+    // The age model is part of the result (fit, and the report made from the same run): its file, its options, its ties and rates.
+    const { parseDrawOptions, ageModelDocument } = await import('./compare-command.js');
+    const { draws, seed } = parseDrawOptions(options);
+    const provenance = run.document.provenance as { inputs: { file: string; sha256: string }[]; options: Record<string, unknown> };
+    provenance.inputs.push({ file: age.input.name, sha256: age.input.sha256 });
+    Object.assign(provenance.options, { age_model: options.ageModel, extrapolate: options.extrapolate === true, age_draws: draws, seed: draws > 0 ? seed : null });
+    run.document.age_model = ageModelDocument(age.model);
+  }
+  return { ...run, read: { input, samples }, age };
 }
 
 /** Fit read lineages and build the result document (no output). */
@@ -151,7 +164,14 @@ export async function fitCommand(file: string, options: FitCommandOptions): Prom
   const run = await runFitStreamed(file, options);
   // Age model: extrapolated horizons in words, and the Monte Carlo over tie ages (--age-draws).
   const { fitAgeDraws } = await import('./compare-command.js');
-  const ageText = run.read ? fitAgeDraws(file, options, run.fits, run.document, run.read.samples, run.age ?? null) : '';
+  // A progress bar for the age draws (stderr, terminal only, not with --quiet).
+  const reporter = options.ageDraws !== undefined ? await (await import('./power-command.js')).progressReporter(options.quiet) : null;
+  let ageText: string;
+  try {
+    ageText = run.read ? fitAgeDraws(file, options, run.fits, run.document, run.read.samples, run.age ?? null, reporter?.progress) : '';
+  } finally {
+    reporter?.stop();
+  }
   const compilation = options.summary ? await import('./compilation-output.js') : null;
   const summary = compilation ? compilation.addCompilation(run) : null;
   // Figures load their module (and, when drawing, the chart stack) only with --out.

@@ -58,8 +58,10 @@ export function extensionSettings(options: ExtensionOptions): ExtensionSettings 
 }
 
 /**
- * Covariate values from a separate CSV (columns: section, optional; age or
- * time; covariate), matched to each horizon by section and age (or time).
+ * Covariate values from a separate CSV (columns: section, optional; age,
+ * time, height or depth; covariate), matched to each horizon by section and
+ * that position: age (also for heights/depths placed by an age model), time,
+ * or the height/depth as the samples give it.
  * Every horizon of a lineage must find its value; a file value overrides a
  * `covariate` column of the samples.
  *
@@ -69,8 +71,8 @@ export function attachCovariates(lineages: readonly Lineage[], path: string): Li
   const input = readInput(path);
   const table = readTable(input.text, input.name);
   const column = (name: string): number => table.header.indexOf(name);
-  const key = column('age') >= 0 ? 'age' : column('time') >= 0 ? 'time' : null;
-  if (key === null) throw new InputError('needs an "age" or a "time" column to match horizons', { file: input.name, line: 1 });
+  const key = (['age', 'time', 'height', 'depth'] as const).find((name) => column(name) >= 0) ?? null;
+  if (key === null) throw new InputError('needs an "age", "time", "height" or "depth" column to match horizons', { file: input.name, line: 1 });
   if (column('covariate') < 0) throw new InputError('needs a "covariate" column', { file: input.name, line: 1 });
   const values = table.rows.map((row) => ({
     section: column('section') >= 0 ? checkName((row.cells[column('section')] ?? '').trim(), { file: input.name, line: row.line, column: 'section' }) : null,
@@ -79,6 +81,11 @@ export function attachCovariates(lineages: readonly Lineage[], path: string): Li
   }));
   return lineages.map((lineage) => {
     const positionOf = (i: number): number => {
+      if (key === 'height' || key === 'depth') {
+        // Matched by the position as the samples give it (before the age model), so the covariate file needs no ages.
+        if (lineage.positionKind !== key) throw new InputError(`matches by "${key}" but the samples give "${lineage.positionKind}"; use ${lineage.positionKind === 'height' || lineage.positionKind === 'depth' ? `a "${lineage.positionKind}"` : 'an "age"'} column`, { file: input.name, line: 1 });
+        return lineage.position[i];
+      }
       if (key === 'time') {
         if (lineage.positionKind !== 'time') throw new InputError(`matches by "time" but the samples give "${lineage.positionKind}"; use an "age" column`, { file: input.name, line: 1 });
         return lineage.position[i];

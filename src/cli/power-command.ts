@@ -1,5 +1,5 @@
 import { InputError, usageError } from '../data/errors.js';
-import { WarningLog } from '../data/warnings.js';
+import { WarningLog, type Warning } from '../data/warnings.js';
 import { LikelihoodEvaluator } from '../fit/evaluator.js';
 import { fitModel } from '../fit/fit-model.js';
 import { defaultIntervalMethod, intervalMethodLabels } from '../fit/intervals.js';
@@ -10,12 +10,13 @@ import { designOf, pooledWithinSd } from '../simulate/design.js';
 import { defaultDrifts, powerAnalysis, type PowerProgress, type PowerReport } from '../simulate/power.js';
 import { poolRunner } from '../simulate/run-replicates.js';
 import { parseSeed } from '../simulate/seeds.js';
-import { lineagesOf, loadLineagesStreamed, type SampleFileOptions, type StreamedInput } from './input.js';
+import { lineagesWithAgeModel, type AgeModelOptions } from './age-model-options.js';
+import { loadSamplesStreamed, terminalProgress, type SampleFileOptions, type StreamedInput } from './input.js';
 import { toolVersion } from './version.js';
 import { refuseInputPath, writeAtomically } from './write-output.js';
 
 /** Options of `stratotrend power`. */
-export interface PowerCommandOptions extends SampleFileOptions {
+export interface PowerCommandOptions extends SampleFileOptions, AgeModelOptions {
   lineage?: string;
   replicates?: string;
   seed?: string;
@@ -123,6 +124,8 @@ export interface PowerRun {
   readonly assumptions: readonly PowerAssumption[];
   readonly document: Record<string, unknown>;
   readonly notes: string[];
+  /** Warnings of reading the samples and placing them in time (printed on stderr, and in the document). */
+  readonly warnings: readonly Warning[];
 }
 
 /** One assumed step variance, why it was assumed, and the power analysis under it. */
@@ -180,7 +183,9 @@ function sourceWords(source: string): string {
 export async function runPower(file: string, options: PowerCommandOptions, progress?: PowerProgress, read?: StreamedInput): Promise<PowerRun> {
   const warnings = new WarningLog();
   // Streamed: a specimen file of millions of rows is read in bounded memory (or already read, by the report's fit).
-  const { input, lineages } = read ? { input: read.input, lineages: lineagesOf(read.samples, options, warnings) } : await loadLineagesStreamed(file, options, warnings);
+  const { input, samples } = read ?? (await loadSamplesStreamed(file, options, terminalProgress(file)));
+  // Heights and depths become ages through the same age-model options as fit (--age-model, --extrapolate).
+  const { lineages } = lineagesWithAgeModel(file, samples, options, warnings);
   const { lineage, note } = chooseLineage(lineages, options.lineage, input.name);
   const notes: string[] = note ? [note] : [];
   const replicates = wholeOption(options.replicates, '--replicates', 200, 20, 100000);
@@ -259,9 +264,11 @@ export async function runPower(file: string, options: PowerCommandOptions, progr
     // Every assumed step variance with its own analysis (the top level repeats the last, the largest).
     assumptions: assumptions.map((entry) => ({ step_variance: entry.stepVariance, source: entry.source, drift_standard_error: entry.driftStandardError, ...entry.report })),
     notes,
+    // Warnings of reading and placing the samples (e.g. time-axis plausibility), as in fit.json.
+    warnings: warnings.list().map((warning) => ({ category: warning.category, message: warning.message, count: warning.count })),
     caution: caution,
   };
-  return { lineage, report: primary.report, assumptions, document, notes };
+  return { lineage, report: primary.report, assumptions, document, notes, warnings: warnings.list() };
 }
 
 const caution =
@@ -368,4 +375,5 @@ export async function powerCommand(file: string, options: PowerCommandOptions): 
   if (options.json) process.stdout.write(JSON.stringify(run.document, null, 2) + '\n');
   else if (!options.quiet) process.stdout.write(powerTable(run) + '\n' + (options.figure ? `\nWrote the power curve to ${options.figure}\n` : ''));
   for (const note of run.notes) process.stderr.write(`note: ${note}\n`);
+  for (const warning of run.warnings) process.stderr.write(`warning (${warning.category}): ${warning.message}${warning.count > 1 ? ` (${warning.count} times)` : ''}\n`);
 }

@@ -91,13 +91,14 @@ export interface ReportFigureChoices {
   readonly smoothedBand?: boolean;
 }
 
-function sketchFigures(document: FitDocumentView): ReportFigure[] {
+function sketchFigures(document: FitDocumentView, smoothedBand = false): ReportFigure[] {
   return document.lineages.map((lineage, index) => {
-    const sketch = sketchTrajectory(lineage);
+    // As the real figures: the smoothed mean only with --smoothed-band (the methods text says so only then).
+    const sketch = sketchTrajectory(smoothedBand ? lineage : { ...lineage, smoothed: null });
     return {
       lineage: index,
       kind: 'trajectory',
-      caption: `${lineageTitle(lineage)}: horizon means with 95% sampling intervals (±1.96 √eᵢ)${lineage.smoothed ? ' and the lineage mean smoothed under the best-supported model with its 95% band' : ''}; time runs up the page, oldest horizon at the bottom.`,
+      caption: `${lineageTitle(lineage)}: horizon means with 95% sampling intervals (±1.96 √eᵢ)${smoothedBand && lineage.smoothed ? ' and the lineage mean smoothed under the best-supported model with its 95% band' : ''}; time runs up the page, oldest horizon at the bottom.`,
       mime: 'image/svg+xml',
       bytes: new TextEncoder().encode(sketch.svg),
       width: sketch.width,
@@ -126,7 +127,7 @@ export async function reportFigures(document: FitDocumentView, choices: ReportFi
   try {
     figuresModule = await import('../render/figures/index.js');
   } catch (error) {
-    return { figures: sketchFigures(document), note: `Figures are plain sketches: the chart module could not be loaded (${(error as Error).message}).` };
+    return { figures: sketchFigures(document, choices.smoothedBand), note: `Figures are plain sketches: the chart module could not be loaded (${(error as Error).message}).` };
   }
   const { renderTrajectory, renderSectionsTogether, figureJobs } = figuresModule;
   const options = {
@@ -159,7 +160,7 @@ export async function reportFigures(document: FitDocumentView, choices: ReportFi
     }
   } catch (error) {
     if ((error as { name?: string }).name === 'InputError') throw error;
-    return { figures: sketchFigures(document), note: `Figures are plain sketches: the chart module failed (${(error as Error).message}).` };
+    return { figures: sketchFigures(document, choices.smoothedBand), note: `Figures are plain sketches: the chart module failed (${(error as Error).message}).` };
   }
   const left = Math.max(0, figureJobs(document.lineages, ['trajectory', 'sections']).length - maximumFigures);
   return { figures, note: left > 0 ? `The first ${maximumFigures} figures are drawn; ${left} more are left out to keep the page small (draw them all with "stratotrend fit … --out DIR" or "stratotrend redraw").` : undefined };
@@ -222,12 +223,19 @@ async function runAnalyses(
   }
   const power: unknown[] = [];
   if (options.power) {
-    const { runPower } = await import('./power-command.js');
+    const { runPower, progressReporter } = await import('./power-command.js');
     const seed = options.seed ?? '1';
     seeds.power = seed;
-    for (const lineage of document.lineages) {
+    // One progress bar per stage and lineage (stderr, terminal only, not with --quiet): the power runs take a while.
+    const reporter = await progressReporter(options.quiet);
+    try {
+    for (const [index, lineage] of document.lineages.entries()) {
+      const progress = reporter.progress
+        ? { stage: (label: string, total: number) => reporter.progress!.stage(`power ${index + 1}/${document.lineages.length}: ${label}`.slice(0, 40), total) }
+        : undefined;
       try {
-        const result = await runPower(file, { ...sampleOptions, lineage: lineageTitle(lineage), replicates: options.powerReplicates, stepVariance: options.powerStepVariance, seed, coverage: false, quiet: true }, undefined, read);
+        // The same age-model options as the fit, so lineages given by height or depth are placed in time as in the fit.
+        const result = await runPower(file, { ...sampleOptions, ageModel: options.ageModel, extrapolate: options.extrapolate, lineage: lineageTitle(lineage), replicates: options.powerReplicates, stepVariance: options.powerStepVariance, seed, coverage: false, quiet: true }, progress, read);
         power.push(result.document);
       } catch (error) {
         // A lineage whose design cannot be simulated (e.g. the directional walk does not fit) keeps the rest of the report.
@@ -235,8 +243,19 @@ async function runAnalyses(
         power.push({ lineage: lineageTitle(lineage), power_not_run: error.message });
       }
     }
+    } finally {
+      reporter.stop();
+    }
   }
   return { comparison, power, seeds };
+}
+
+/** The provenance entry of --power: on which lineages it ran (and which it could not), with the replicates. */
+function powerOptionWords(results: readonly unknown[], replicates: string | undefined, stepVariance: string | undefined): string {
+  const failed = results.filter((entry) => (entry as { power_not_run?: unknown }).power_not_run !== undefined).length;
+  const ran = results.length - failed;
+  const where = failed === 0 ? 'every lineage' : `${ran} of ${results.length} lineages (not run on ${failed}; see the power block)`;
+  return `${where}, ${replicates ?? '200'} replicates per drift value${stepVariance ? `, step variance ${stepVariance}` : ''}`;
 }
 
 function parseFormat(value: string | undefined): 'svg' | 'png' {
@@ -265,7 +284,7 @@ export async function buildReport(
     draw_model: options.drawModel ?? 'best supported',
     smoothed_band: options.smoothedBand === true,
     compare: options.compare === true,
-    power: options.power === true ? `every lineage, ${options.powerReplicates ?? '200'} replicates per drift value${options.powerStepVariance ? `, step variance ${options.powerStepVariance}` : ''}` : false,
+    power: options.power === true ? powerOptionWords(extra.analyses?.power ?? [], options.powerReplicates, options.powerStepVariance) : false,
   };
   if (extra.source) reportOptions.source = `${extra.source.file} (saved fit document, SHA-256 ${extra.source.sha256}; not refitted)`;
   const extraInputs = attachments.files.map((entry) => ({ role: `attached ${entry.kind}`, file: entry.file, sha256: entry.sha256 }));
@@ -277,6 +296,8 @@ export async function buildReport(
   const input: ReportInput = {
     document,
     figures,
+    // The methods text describes the smoothed mean only when the figures draw it.
+    analyses: { smoothedBand: options.smoothedBand === true && figures.some((figure) => figure.kind === 'trajectory') },
     comparison: extra.analyses?.comparison ?? attachments.comparison,
     power: power.length > 0 ? power : undefined,
     adequacy: attachments.adequacy,

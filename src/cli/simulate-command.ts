@@ -5,12 +5,13 @@ import { lineageName, type Lineage } from '../lineage.js';
 import { findModel } from '../models/registry.js';
 import { designFromOptions, designLineage } from '../simulate/design.js';
 import { simulatedTable } from '../simulate/sample-table.js';
-import { loadLineagesStreamed, terminalProgress, timeUnitOption, type SampleFileOptions } from './input.js';
+import { lineagesWithAgeModel, type AgeModelOptions } from './age-model-options.js';
+import { loadSamplesStreamed, terminalProgress, timeUnitOption, type SampleFileOptions } from './input.js';
 import { numberOption, seedOption, wholeOption } from './power-command.js';
 import { refuseInputPath, writeAtomically } from './write-output.js';
 
 /** Options of `stratotrend simulate`. */
-export interface SimulateCommandOptions extends SampleFileOptions {
+export interface SimulateCommandOptions extends SampleFileOptions, AgeModelOptions {
   model?: string;
   parameters?: string;
   horizons?: string;
@@ -60,10 +61,15 @@ export async function simulateCommand(file: string | undefined, options: Simulat
   const seed = seedOption(options.seed);
   let designs: Lineage[];
   const designOptionsGiven = [options.horizons, options.spacing, options.n, options.withinVariance].some((value) => value !== undefined);
+  if (file === undefined && (options.ageModel !== undefined || options.extrapolate)) throw usageError('--age-model and --extrapolate place the heights or depths of a samples FILE; the design options give times directly');
   if (file !== undefined) {
     if (designOptionsGiven) throw usageError('give a FILE or the design options (--horizons, --spacing, --n, --within-variance), not both');
     // Read as a stream: only the design (times, n, within variances) is needed, in bounded memory.
-    designs = (await loadLineagesStreamed(file, options, new WarningLog(), {}, terminalProgress(file))).lineages;
+    const warnings = new WarningLog();
+    const { samples } = await loadSamplesStreamed(file, options, terminalProgress(file));
+    // Heights and depths become ages through the same age-model options as fit; the output then gives those ages.
+    designs = lineagesWithAgeModel(file, samples, options, warnings).lineages;
+    for (const warning of warnings.list()) if (warning.category === 'time-axis' || warning.category === 'input') process.stderr.write(`warning (${warning.category}): ${warning.message}\n`);
   } else {
     timeUnitOption(options.timeUnit); // the label is printed and written: refuse an empty one or control characters
     const design = designFromOptions({

@@ -10,13 +10,17 @@ import { createRandom } from '../simulate/random.js';
  * age model itself, so every result equals the plain fit exactly.
  *
  * @param refit fits everything under one age model (pure: no printing)
+ * @param onDraw called after each draw with the number done (a progress bar; changes nothing)
  * @returns one result per draw, in draw order
  * @throws InputError from `redrawAgeModel` when no ordered draw exists
  */
-export function ageMonteCarlo<T>(ageModel: AgeModel, draws: number, seed: number, refit: (model: AgeModel) => T): T[] {
+export function ageMonteCarlo<T>(ageModel: AgeModel, draws: number, seed: number, refit: (model: AgeModel) => T, onDraw?: (done: number, total: number) => void): T[] {
   const random = createRandom(seed);
   const results: T[] = [];
-  for (let draw = 0; draw < draws; draw++) results.push(refit(redrawAgeModel(ageModel, random)));
+  for (let draw = 0; draw < draws; draw++) {
+    results.push(refit(redrawAgeModel(ageModel, random)));
+    onDraw?.(draw + 1, draws);
+  }
   return results;
 }
 

@@ -56,7 +56,7 @@ const numberPattern = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
  * @example
  * readAgeModel(readTable('section,height,age\nA,0,10\nA,50,8\n', 'ties.csv')).sections.get('A')?.length; // 2
  */
-export function readAgeModel(table: Table, options: { decimalComma?: boolean } = {}): AgeModel {
+export function readAgeModel(table: Table, options: { decimalComma?: boolean; positionKind?: 'height' | 'depth' } = {}): AgeModel {
   const { file, header } = table;
   const column = (name: string): number => header.indexOf(name);
   const hasHeight = column('height') >= 0;
@@ -72,11 +72,22 @@ export function readAgeModel(table: Table, options: { decimalComma?: boolean } =
   }
   const positionKind = hasHeight ? 'height' : 'depth';
   const sectionColumn = sectionColumnOf(header, file, table.rawHeader) ?? 'section';
+  if (options.positionKind !== undefined && options.positionKind !== positionKind) {
+    // Checked before the ages: depths read as heights would otherwise surface as a misleading "age reversal".
+    throw new InputError(
+      `the ties give "${positionKind}" but the samples give "${options.positionKind}"; name the tie column "${options.positionKind}" like the samples (a depth d below the datum is height -d, so the two are not interchangeable)`,
+      { file, line: 1, column: positionKind },
+    );
+  }
   const number = (cells: readonly string[], line: number, name: string): number => {
     const raw = cells[column(name)];
     const text = options.decimalComma ? raw.replace(',', '.') : raw;
     if (raw === '') throw new InputError('is empty, expected a number', { file, line, column: name });
-    if (!numberPattern.test(text)) throw new InputError(`must be a finite number, got "${raw}"`, { file, line, column: name });
+    if (!numberPattern.test(text)) {
+      // The same hint as the samples reader (numberCell).
+      const hint = !options.decimalComma && /^[+-]?\d*,\d+$/.test(raw) ? ' (for a decimal comma use --decimal-comma)' : '';
+      throw new InputError(`must be a finite number, got "${raw}"${hint}`, { file, line, column: name });
+    }
     const value = Number(text);
     if (!Number.isFinite(value)) throw new InputError(`must be a finite number, got "${raw}"`, { file, line, column: name });
     return value;

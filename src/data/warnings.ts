@@ -13,6 +13,7 @@ export type WarningCategory =
   | 'not-compared'
   | 'not-converged'
   | 'duplicate-time'
+  | 'time-axis'
   | 'input';
 
 /** A folded warning: what, about which lineage, and how often it was raised. */

@@ -135,14 +135,20 @@ export function screenConfiguration(
   return { logLik: -found.value, process };
 }
 
-/** JSON records of shifts: 0-based index of the first horizon of the new segment and its age (or time, and height/depth when read). */
+/**
+ * JSON records of shifts: 0-based index of the first horizon of the new
+ * segment and its age (for ages, and for heights/depths placed by an age
+ * model: age = firstAge - t, with the height or depth as read beside it), or
+ * its elapsed time for "time" input.
+ */
 export function shiftRecords(lineage: Lineage, shifts: readonly number[]): Record<string, number>[] {
   return shifts.map((index) => {
     const record: Record<string, number> = { index };
     if (lineage.positionKind === 'age') record.age = lineage.position[index];
+    else if (lineage.positionKind === 'time' || lineage.firstAge === undefined) record.time = lineage.time[index];
     else {
-      record.time = lineage.time[index];
-      if (lineage.positionKind !== 'time') record[lineage.positionKind] = lineage.position[index];
+      record.age = lineage.firstAge - lineage.time[index];
+      record[lineage.positionKind] = lineage.position[index];
     }
     return record;
   });

@@ -6,15 +6,16 @@ import { buildCovariance, type EvolutionModel } from './model.js';
  * Parameter: stasis_mean theta (trait units). Its ML estimate is the
  * inverse-sampling-variance weighted mean (closed form).
  *
- * Hunt, G., Bell, M. A. & Travis, M. P. (2008). Evolution toward a new
- * adaptive optimum: phenotypic evolution in a fossil stickleback lineage.
- * Evolution 62:700-710.
+ * Hunt, G., Hopkins, M. J. & Lidgard, S. (2015). Simple versus complex
+ * models of trait evolution and stasis as a response to environmental
+ * change. Proceedings of the National Academy of Sciences USA 112:4885-4890.
  */
 export const strictStasis: EvolutionModel = {
   id: 'strict-stasis',
   label: 'strict stasis',
   summary: 'No change: every horizon mean is the stasis mean plus sampling error alone.',
-  citation: 'Hunt, G., Bell, M. A. & Travis, M. P. (2008). Evolution toward a new adaptive optimum: phenotypic evolution in a fossil stickleback lineage. Evolution 62:700-710.',
+  // The paper that introduced strict stasis as a model of its own (issue 19 checked the attribution; it was the 2008 ou paper before).
+  citation: 'Hunt, G., Hopkins, M. J. & Lidgard, S. (2015). Simple versus complex models of trait evolution and stasis as a response to environmental change. PNAS 112:4885-4890.',
   parameters: [
     { name: 'stasis_mean', label: 'stasis mean', role: 'location', unit: { trait: 1, time: 0 }, lowerBound: Number.NEGATIVE_INFINITY },
   ],

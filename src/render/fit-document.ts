@@ -77,6 +77,8 @@ export function lineageDocument(fit: LineageFit): Record<string, unknown> {
     data: {
       time: list(lineage.time),
       position: list(lineage.position),
+      // Age of each horizon (age_i = first_age - time_i): the ages themselves, or those an age model gave heights/depths; null for elapsed-time input.
+      age: lineage.positionKind === 'age' ? list(lineage.position) : lineage.positionKind === 'time' || lineage.firstAge === undefined ? null : Array.from(lineage.time, (t) => finiteOrNull((lineage.firstAge as number) - t)),
       mean: list(lineage.mean),
       n: list(lineage.count),
       within_variance: list(lineage.withinVariance),

@@ -84,7 +84,8 @@ export function lineageTable(fit: LineageFit): string {
     // Shift models: where each new segment starts (0-based horizon index, with its age or time).
     const shifts = model.extra?.shifts as readonly Record<string, number>[] | undefined;
     shifts?.forEach((shift, k) => {
-      const at = shift.age !== undefined ? `age ${formatNumber(shift.age)}` : `time ${formatNumber(shift.time)} ${unit}`;
+      const position = shift.height !== undefined ? `, height ${formatNumber(shift.height)}` : shift.depth !== undefined ? `, depth ${formatNumber(shift.depth)}` : '';
+      const at = shift.age !== undefined ? `age ${formatNumber(shift.age)}${position}` : `time ${formatNumber(shift.time)} ${unit}`;
       parts.push(`shift ${k + 1} at horizon ${shift.index} (${at})`);
     });
     lines.push(`    ${model.label}: ${parts.join('; ')}`);

@@ -33,11 +33,13 @@ function quoteCell(text: string): string {
  * Simulated samples as CSV text in the tool's own input format, so the
  * output can be fed straight back to `fit`, `power` or `bootstrap`. Each
  * replicate of each design lineage becomes its own section ("<section>
- * r001"...). Ages are written when the design came with ages, elapsed time
- * otherwise.
+ * r001"...). Ages are written when the design came with ages (or with heights
+ * or depths placed by an age model: their ages), elapsed time otherwise.
  *
  * Summary form: the horizon mean is drawn exactly as the likelihood assumes
- * (sampling error N(0, v_i / n_i)) and sd is the design's within-horizon sd.
+ * (sampling error N(0, v_i / n_i)) and sd is the design's within-horizon sd
+ * (empty for a horizon of one specimen, which has none; the file then reads
+ * back with --pool, as its design did).
  * Specimen form: n_i specimens are drawn around the horizon's latent mean
  * with variance v_i, so their mean has the same sampling variance and their
  * sample variance scatters as a real sample's would.
@@ -45,7 +47,10 @@ function quoteCell(text: string): string {
  * Seeds come from (seed, replicate, lineage) only: same seed, same bytes.
  */
 export function simulatedTable(request: SimulationRequest): string {
-  const ages = request.designs.every((design) => design.positionKind === 'age');
+  // Heights and depths placed by an age model are written as those ages (firstAge - t), so the file reads back without the tie file.
+  const placed = (design: Lineage): boolean => (design.positionKind === 'height' || design.positionKind === 'depth') && design.firstAge !== undefined;
+  const ages = request.designs.every((design) => design.positionKind === 'age' || placed(design));
+  const ageOf = (design: Lineage, i: number): number => (design.positionKind === 'age' ? design.position[i] : (design.firstAge ?? 0) - design.time[i]);
   const header = request.form === 'summary' ? ['section', 'trait', ages ? 'age' : 'time', 'n', 'mean', 'sd'] : ['section', 'trait', ages ? 'age' : 'time', 'value'];
   const lines = [header.join(',')];
   const width = String(request.replicates).length;
@@ -56,11 +61,13 @@ export function simulatedTable(request: SimulationRequest): string {
       const section = request.replicates > 1 ? `${baseName} r${String(replicate + 1).padStart(Math.max(3, width), '0')}` : baseName;
       const trait = design.trait === '' ? 'trait' : design.trait;
       const size = design.time.length;
-      const prefix = (i: number): string => [quoteCell(section), quoteCell(trait), formatValue(ages ? design.position[i] : design.time[i])].join(',');
+      const prefix = (i: number): string => [quoteCell(section), quoteCell(trait), formatValue(ages ? ageOf(design, i) : design.time[i])].join(',');
       if (request.form === 'summary') {
         const means = simulateMeans(request.model, design, { ...request.parameters[lineageIndex] }, random);
         for (let i = 0; i < size; i++) {
-          lines.push(`${prefix(i)},${design.count[i]},${formatValue(means[i])},${formatValue(Math.sqrt(design.withinVariance[i]))}`);
+          // One specimen has no sd: left empty, as in a real file, so the output reads back (with --pool) like its design.
+          const sd = design.count[i] === 1 ? '' : formatValue(Math.sqrt(design.withinVariance[i]));
+          lines.push(`${prefix(i)},${design.count[i]},${formatValue(means[i])},${sd}`);
         }
       } else {
         const latentDesign: Lineage = { ...design, samplingVariance: new Float64Array(size) };

@@ -23,6 +23,17 @@ describe('fit options for shift and covariate models', () => {
     expect(() => attachCovariates([lineage('South Cut')], file)).toThrow(/no covariate for lineage "South Cut" at age 11.5 \(samples line 3\)/);
   });
 
+  it('matches by depth (or height) as the samples give it, with an age model placing them (issue 19)', () => {
+    const folder = mkdtempSync(join(tmpdir(), 'stratotrend-covariate-'));
+    const file = join(folder, 'proxy-by-depth.csv');
+    writeFileSync(file, 'section,depth,covariate\nCore 1,30,7\nCore 1,10,5\nCore 1,20,6\n');
+    // Depths 30, 20, 10 m (oldest first) with ages from some age model: matching must not need those ages.
+    const cored = { ...lineage('Core 1'), positionKind: 'depth' as const, position: Float64Array.of(30, 20, 10), firstAge: 2.3 };
+    expect(Array.from(attachCovariates([cored], file)[0].covariate!)).toEqual([7, 6, 5]);
+    // A depth file against samples by age says which column to use.
+    expect(() => attachCovariates([lineage('Core 1')], file)).toThrow('matches by "depth" but the samples give "age"; use an "age" column');
+  });
+
   it('validates the options and leaves out of a named set what a lineage does not allow', () => {
     expect(() => extensionSettings({ minSegment: '1' })).toThrow(/--min-segment: must be a whole number >= 2, got "1"/);
     expect(() => extensionSettings({ generationTime: '-2' })).toThrow(/--generation-time/);

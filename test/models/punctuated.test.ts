@@ -105,6 +105,9 @@ describe('punctuated models', () => {
     const fit = fitModel(punctuatedOne, lineage);
     expect(fit.extra?.shifts).toEqual([{ index: 12, age: 30 - time[12] }]);
     expect(fit.estimates.shift_1_time).toBe(time[12]);
+    // Heights placed by an age model (issue 19): the shift carries its age (first age - t) and its height as read.
+    const byHeight = { ...lineage, positionKind: 'height' as const, position: Float64Array.from(time, (t) => 2 * t), firstAge: 30 };
+    expect(fitModel(punctuatedOne, byHeight, { intervals: false }).extra?.shifts).toEqual([{ index: 12, age: 30 - time[12], height: 2 * time[12] }]);
     // The shift times also go with the parameters (JSON params), without an interval, so figures can redraw the model.
     expect(fit.parameters.shift_1_time).toMatchObject({ estimate: time[12], lower: null, upper: null });
     expect(fit.parameters.shift_1_previous_time.estimate).toBe(time[11]);

@@ -218,14 +218,22 @@ describe('degenerate but legal data: finite results or one clear message', () =>
     }
   });
 
-  it('ages in years read as Ma (the default unit) raise an input warning', () => {
-    // A span beyond the age of the Earth (about 4.5 Gyr, common knowledge) means the unit is wrong.
+  it('ages in years read as Ma (the default unit) raise a time-axis warning naming --time-unit yr', () => {
+    // A span beyond 100 Myr for one lineage (common practice, a generous bound; README) means the unit is wrong.
     const path = write(table({ age: (a) => a * 1e6 }));
     const asMa = runFit(path, { intervals: false });
-    expect(asMa.warnings.list().filter((warning) => warning.category === 'input').map((warning) => warning.message)).toEqual([
-      'lineage: the horizons span 2950000 Myr, more than the age of the Earth; if the age column is in years or thousands of years, give --time-unit yr or ka (rates are per Myr)',
+    expect(asMa.warnings.list().filter((warning) => warning.category === 'time-axis').map((warning) => warning.message)).toEqual([
+      'lineage: the horizons span 2950000 Myr, more than the 100 Myr plausible for one lineage; if the age values are in yr, give --time-unit yr (rates are per Myr)',
     ]);
-    expect(runFit(path, { intervals: false, timeUnit: 'yr' }).warnings.has('input')).toBe(false);
+    expect(runFit(path, { intervals: false, timeUnit: 'yr' }).warnings.has('time-axis')).toBe(false);
+  });
+
+  it('ages in ka read as Ma (1000 times too long, issue 19) raise the warning naming --time-unit ka', () => {
+    const path = write(table({ age: (a) => a * 1e3 }));
+    expect(runFit(path, { intervals: false }).warnings.list().filter((warning) => warning.category === 'time-axis').map((warning) => warning.message)).toEqual([
+      'lineage: the horizons span 2950 Myr, more than the 100 Myr plausible for one lineage; if the age values are in kyr, give --time-unit ka (rates are per Myr)',
+    ]);
+    expect(runFit(path, { intervals: false, timeUnit: 'ka' }).warnings.has('time-axis')).toBe(false);
   });
 
   it('a model that cannot be fitted is reported as such without hiding the others', () => {

@@ -53,3 +53,24 @@ describe('simulated samples files', () => {
     expect(Math.abs(average / 0.2 - 1)).toBeLessThan(4 * Math.sqrt(2 / (9 * variances.length)));
   });
 });
+
+describe('horizons of one specimen (issue 19: simulate output reads back into fit)', () => {
+  // A design read with --pool from a file whose n = 1 rows leave sd empty (a sample of one has no sd).
+  const text = 'age,n,mean,sd\n5,1,10.0,\n4,3,10.2,0.5\n3,4,10.1,0.4\n2,1,10.5,\n1,5,10.4,0.6\n';
+  const designs = buildLineages(readSamples(readTable(text, 'design.csv')), { pool: true });
+
+  it('the design file itself reads with --pool (the empty sd of an n = 1 row is no error), and still asks for --pool without it', () => {
+    // Pooled variance, closed form: sum((n - 1) v) / sum(n - 1) = (2 * 0.25 + 3 * 0.16 + 4 * 0.36) / 9.
+    expect(designs[0].withinVariance[0]).toBeCloseTo((2 * 0.25 + 3 * 0.16 + 4 * 0.36) / 9, 14);
+    expect(() => buildLineages(readSamples(readTable(text, 'design.csv')))).toThrow('design.csv line 2, column "n": n = 1 gives no within-horizon variance; use --pool');
+  });
+
+  it('summary output leaves the sd of n = 1 rows empty and reads back with --pool to the same design', () => {
+    const output = simulatedTable({ model: directionalWalk, designs, parameters: [truth], replicates: 1, seed: 3, form: 'summary' });
+    const rows = output.trim().split('\n').slice(1).map((row) => row.split(','));
+    expect(rows.filter((row) => row[3] === '1').map((row) => row[5])).toEqual(['', '']);
+    const [back] = buildLineages(readSamples(readTable(output, 'simulated.csv')), { pool: true });
+    expect(Array.from(back.count)).toEqual(Array.from(designs[0].count));
+    back.withinVariance.forEach((variance, i) => expect(variance).toBeCloseTo(designs[0].withinVariance[i], 9));
+  });
+});

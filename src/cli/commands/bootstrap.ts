@@ -1,15 +1,15 @@
 import type { Command } from 'commander';
-import { addSampleOptions } from './shared.js';
+import { addAgeModelOptions, addSampleOptions } from './shared.js';
 
 /** Define `stratotrend bootstrap`; the action loads the simulation code only when run. */
 export function defineBootstrapCommand(program: Command): void {
-  addSampleOptions(
+  addAgeModelOptions(addSampleOptions(
     program
       .command('bootstrap')
       .description('parametric-bootstrap tests for every lineage: directional vs random walk (likelihood ratio, with its chi-square p-value beside) and random walk vs stasis (AICc difference)')
       .argument('<file>', 'samples CSV (as for fit)'),
     { traitUnit: false },
-  )
+  ), { draws: false })
     .option('--replicates <R>', 'replicates drawn from each fitted null model', '200')
     .option('--seed <s>', 'seed (same seed, same results on any number of threads)', '1')
     .option('--threads <k>', 'worker threads (default: every core)')

@@ -1,18 +1,5 @@
 import type { Command } from 'commander';
-import { addSampleOptions } from './shared.js';
-
-/**
- * Options for heights/depths and their age model, shared by `fit` and
- * `compare`: the tie-point file, extrapolation beyond the ties, and the
- * Monte Carlo over tie-point ages.
- */
-export function addAgeModelOptions(command: Command): Command {
-  return command
-    .option('--age-model <file>', 'tie points (section, height or depth, age, optional age_sd) that turn sample heights/depths into ages')
-    .option('--extrapolate', 'allow ages beyond the outermost ties (constant rate of the nearest stretch); such horizons are flagged in every output')
-    .option('--age-draws <count>', 'redraw the tie-point ages from their age_sd this many times (kept in stratigraphic order), refit, and report the spread')
-    .option('--seed <integer>', 'seed of the age redraws (same seed, same draws)', '1');
-}
+import { addAgeModelOptions, addSampleOptions } from './shared.js';
 
 /**
  * Define `stratotrend compare`. The action imports the comparison code only

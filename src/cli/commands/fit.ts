@@ -1,7 +1,6 @@
 import { InvalidArgumentError, type Command } from 'commander';
-import { addAgeModelOptions } from './compare.js';
 import { addFigureOptions } from './render.js';
-import { addSampleOptions } from './shared.js';
+import { addAgeModelOptions, addSampleOptions } from './shared.js';
 
 /**
  * Define `stratotrend fit`. The action imports the fitting code only when
@@ -18,7 +17,7 @@ export function defineFitCommand(program: Command): void {
     .option('--out <folder>', 'write models.csv, fit.json and the figures (see the figure options; redraw them later with "stratotrend redraw") into this folder (created if needed)')
     .option('--models <set>', 'classic|extended|id,id,...: "classic" (the five models), "extended" (classic plus the shift, mode-shift and covariate models the data allow) or a comma-separated list of model ids', 'classic')
     .option('--min-segment <n>', 'fewest horizons in a segment of a shift model (default 5; at least 3 where a segment has its own variance)')
-    .option('--covariate-file <file>', 'covariate per horizon for the covariate models: CSV with section (optional), age or time, covariate; matched by section and age (or time)')
+    .option('--covariate-file <file>', 'covariate per horizon for the covariate models: CSV with section (optional), age, time, height or depth, and covariate; matched by section and that position (height/depth as the samples give them, age also for heights/depths placed by --age-model)')
     .option('--rates', 'print rates: darwins and haldanes per interval and over the whole sequence, model-based rates, with the caution on interval dependence')
     .option('--generation-time <years>', 'generation time in years, for haldanes and per-generation rates (implies --rates)')
     .option('--adequacy', 'check the adequacy of the best-supported model (one-step prediction errors, parametric bootstrap)')

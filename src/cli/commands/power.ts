@@ -1,14 +1,14 @@
 import type { Command } from 'commander';
-import { addSampleOptions } from './shared.js';
+import { addAgeModelOptions, addSampleOptions } from './shared.js';
 
 /** Define `stratotrend power`; the action loads the simulation code only when run. */
 export function definePowerCommand(program: Command): void {
-  addSampleOptions(
+  addAgeModelOptions(addSampleOptions(
     program
       .command('power')
       .description('how large a trend this file\'s sampling design could detect: simulate directional walks on its own times and sample sizes, refit every model, and report power and the false-trend rate')
       .argument('<file>', 'samples CSV (as for fit); its design (times, n, within-horizon variances) is kept'),
-  )
+  ), { draws: false })
     .option('--lineage <name>', 'which lineage ("section / trait", or a section or trait name); default the first')
     .option('--replicates <R>', 'simulated lineages per drift value and in the null set', '200')
     .option('--seed <s>', 'seed of the simulations (same seed, same results on any number of threads)', '1')

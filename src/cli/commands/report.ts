@@ -1,17 +1,17 @@
 import type { Command } from 'commander';
-import { addSampleOptions } from './shared.js';
+import { addAgeModelOptions, addSampleOptions } from './shared.js';
 
 /**
  * Define `stratotrend report`. The action imports the fitting and report
  * code only when the command runs.
  */
 export function defineReportCommand(program: Command): void {
-  addSampleOptions(
+  addAgeModelOptions(addSampleOptions(
     program
       .command('report')
       .description('fit every model and write one self-contained HTML report (tables, figures, methods text, references, provenance)')
       .argument('<file>', 'samples CSV as for "fit" ("-" reads stdin), or a fit.json saved by "fit --out" (reported without refitting)'),
-  )
+  ), { draws: false })
     .option('--out <file>', 'the HTML file to write', 'stratotrend-report.html')
     .option('--models <set>', 'model set: "classic" (the five models) or a comma-separated list of model ids', 'classic')
     .option('--no-intervals', 'skip the confidence intervals (faster)')
@@ -27,8 +27,6 @@ export function defineReportCommand(program: Command): void {
     .option('--orientation <layout>', 'figures: stratigraphic (time up the page, oldest at the bottom) or horizontal', 'stratigraphic')
     .option('--draw-model <id>', "model whose expected trajectory and 95% envelope are drawn (default: each lineage's best-supported model)")
     .option('--smoothed-band', 'also draw the smoothed lineage mean with its 95% band')
-    .option('--age-model <file>', 'tie points (section, height or depth, age, optional age_sd) that turn sample heights/depths into ages')
-    .option('--extrapolate', 'allow ages beyond the outermost ties; such horizons are flagged in the report')
     .option('--compare', 'also compare the sections of every trait measured in two or more (shared against separate processes, as "compare" does)')
     .option('--power', 'also estimate the power of every lineage\'s design to detect a trend (simulations, as "power" does; takes a while)')
     .option('--power-replicates <R>', 'simulated lineages per drift value for --power', '200')

@@ -24,3 +24,20 @@ export function addSampleOptions(command: Command, { traitUnit = true }: { trait
     .option('--debug', 'show stack traces for errors');
 }
 
+
+/**
+ * The age-model options, one definition for every command that reads
+ * samples (heights or depths need ties to become ages): `--age-model`,
+ * `--extrapolate`, and with `draws` (fit, compare: the commands whose
+ * conclusions the draws move) `--age-draws` and its `--seed`. The actions
+ * read them through `src/cli/age-model-options.ts`.
+ */
+export function addAgeModelOptions(command: Command, { draws = true }: { draws?: boolean } = {}): Command {
+  command
+    .option('--age-model <file>', 'tie points (section, height or depth, age, optional age_sd) that turn sample heights/depths into ages; the tie column must match the samples\' (height with height, depth with depth)')
+    .option('--extrapolate', 'allow ages beyond the outermost ties (constant rate of the nearest stretch); such horizons are flagged in every output');
+  if (!draws) return command;
+  return command
+    .option('--age-draws <count>', 'redraw the tie-point ages from their age_sd this many times (kept in stratigraphic order), refit, and report the spread')
+    .option('--seed <integer>', 'seed of the age redraws (same seed, same draws)', '1');
+}

@@ -1,15 +1,15 @@
 import type { Command } from 'commander';
-import { addSampleOptions } from './shared.js';
+import { addAgeModelOptions, addSampleOptions } from './shared.js';
 
 /** Define `stratotrend simulate`; the action loads the simulation code only when run. */
 export function defineSimulateCommand(program: Command): void {
-  addSampleOptions(
+  addAgeModelOptions(addSampleOptions(
     program
       .command('simulate')
       .description('draw lineages from a model with given parameters, on the design of a samples file or of the design options, and write them as a samples CSV')
       .argument('[file]', 'samples CSV whose design (times, n, within-horizon variances) is used; parameters not given are fitted to it'),
     { traitUnit: false },
-  )
+  ), { draws: false })
     .option('--model <id>', 'generating model: strict-stasis, stasis, random-walk, directional-walk or ou', 'directional-walk')
     .option('--parameters <list>', 'parameter values, e.g. "ancestral_mean=5,drift=0.2,step_variance=0.01" (names as in the fit JSON)')
     .option('--horizons <N>', 'design without a file: number of horizons (default 25)')

@@ -50,6 +50,8 @@ export interface LineageView {
   readonly data: {
     readonly time: readonly (number | null)[];
     readonly position: readonly (number | null)[];
+    /** Age of each horizon (ages as read, or placed by the age model); null for elapsed-time input; absent in a fit.json written before issue 19. */
+    readonly age?: readonly (number | null)[] | null;
     readonly mean: readonly (number | null)[];
     readonly n: readonly (number | null)[];
     readonly within_variance: readonly (number | null)[];

@@ -1,5 +1,5 @@
 import { formatNumber, traitUnitLabel } from '../units.js';
-import { boundCaution, closeSupportCaution, directionalCaution, stasisCaution, supportCautions } from './cautions.js';
+import { boundCaution, closeSupportCaution, directionalCaution, stasisCaution } from './cautions.js';
 import { summariseData, type DataSummary } from './data-summary.js';
 import { lineageTitle, type FitDocumentView, type LineageView } from './document-view.js';
 import { escapeHtml, exactValue, slug } from './html.js';
@@ -32,12 +32,87 @@ export function figureHtml(figure: ReportFigure): string {
   return `<figure data-kind="${escapeHtml(figure.kind)}"><img src="${source}" width="${figure.width}" height="${figure.height}" style="width:min(100%, 40rem)" alt="${escapeHtml(figure.caption)}"><figcaption>${escapeHtml(figure.caption)}</figcaption></figure>`;
 }
 
-function positionWords(lineage: LineageView, summary: DataSummary): string {
+/** The unit of an age as read: Ma for Myr, ka for kyr, else "<unit> before present". */
+function ageUnit(timeUnit: string): string {
+  return timeUnit === 'Myr' ? 'Ma' : timeUnit === 'kyr' ? 'ka' : `${timeUnit} before present`;
+}
+
+/**
+ * The positions of the oldest and youngest horizons in words, each in its
+ * own unit: ages in Ma (ka, …), heights and depths in metres with the ages the
+ * age model gave them beside them, elapsed times in the time unit.
+ */
+export function positionWords(lineage: LineageView, summary: DataSummary): string {
   const first = summary.firstPosition;
   const last = summary.lastPosition;
   if (first === null || last === null) return '';
-  const unit = lineage.position_kind === 'age' ? (lineage.time_unit === 'Myr' ? 'Ma' : lineage.time_unit === 'kyr' ? 'ka' : `${lineage.time_unit} before present`) : lineage.time_unit;
+  const unit = lineage.time_unit;
+  if (lineage.position_kind === 'height' || lineage.position_kind === 'depth') {
+    const ages = lineage.data.age;
+    const firstAge = ages?.[0] ?? null;
+    const lastAge = ages?.[ages.length - 1] ?? null;
+    const agePart = firstAge !== null && lastAge !== null ? `; age ${formatNumber(firstAge)} to ${formatNumber(lastAge)} ${ageUnit(unit)}` : '';
+    return `${lineage.position_kind} ${formatNumber(first)} to ${formatNumber(last)} m${agePart}`;
+  }
+  if (lineage.position_kind === 'age') return `age ${formatNumber(first)} to ${formatNumber(last)} ${ageUnit(unit)}`;
   return `${lineage.position_kind} ${formatNumber(first)} to ${formatNumber(last)} ${unit}`;
+}
+
+/**
+ * One row per horizon, oldest first: position as read, age (heights and
+ * depths: from the age model), n, mean, sd (root of the within-horizon
+ * variance), and whether the age was extrapolated beyond the ties.
+ */
+export function horizonTable(lineage: LineageView): string {
+  const { data } = lineage;
+  const placed = lineage.position_kind === 'height' || lineage.position_kind === 'depth';
+  const positionHead = placed ? `${lineage.position_kind} (m)` : lineage.position_kind === 'age' ? `age (${ageUnit(lineage.time_unit)})` : `${lineage.position_kind} (${lineage.time_unit})`;
+  const showAge = placed && Array.isArray(data.age);
+  const anyExtrapolated = data.extrapolated.some(Boolean);
+  const number = (field: string, value: number | null | undefined, digits = 4): string =>
+    `<td class="number" data-field="${field}" data-value="${exactValue(value ?? null)}">${escapeHtml(value === null || value === undefined ? '—' : formatNumber(value, digits))}</td>`;
+  const rows = data.mean.map((mean, i) => {
+    const within = data.within_variance[i];
+    const sd = within === null ? null : Math.sqrt(within);
+    return `<tr data-horizon="${i}"><td class="number">${i + 1}</td>${number('position', data.position[i])}${showAge ? number('age', data.age?.[i]) : ''}${number('n', data.n[i])}${number('mean', mean, 5)}${number('sd', sd)}${anyExtrapolated ? `<td>${data.extrapolated[i] ? 'extrapolated' : ''}</td>` : ''}</tr>`;
+  });
+  return `<details class="horizons"><summary>Horizons (${data.mean.length}, oldest first)</summary><table class="horizons" aria-label="horizons"><thead><tr><th class="number">#</th><th class="number">${escapeHtml(positionHead)}</th>${showAge ? `<th class="number">age (${escapeHtml(ageUnit(lineage.time_unit))})</th>` : ''}<th class="number">n</th><th class="number">mean</th><th class="number">sd</th>${anyExtrapolated ? '<th>age</th>' : ''}</tr></thead><tbody>
+${rows.join('\n')}
+</tbody></table></details>`;
+}
+
+/**
+ * A few plain sentences on one lineage for a reader who is not a
+ * statistician: which description the data favour and how clearly, what the
+ * best model says in words, and how large sampling error is. Written from the
+ * document only; it interprets nothing beyond the numbers (the cautions say
+ * what support does not show).
+ */
+export function plainSummary(lineage: LineageView, summary: DataSummary): string {
+  const best = lineage.models.find((model) => model.id === lineage.best_model);
+  if (!best || best.weight === null) return 'No model could be compared for this lineage, so the data say nothing here about how the trait changed.';
+  const words: Record<string, string> = {
+    'strict-stasis': 'the trait mean did not change at all: the horizon means differ by sampling error alone',
+    stasis: 'the trait mean fluctuated about a constant value without wandering or trending',
+    'random-walk': 'the trait mean wandered without a preferred direction',
+    'directional-walk': 'the trait mean changed with a consistent direction (a trend) on top of random wandering',
+    ou: 'the trait mean moved toward an optimum and then stayed near it',
+  };
+  const pattern = words[best.id] ?? (/^punctuated-/.test(best.id)
+    ? 'the trait mean stayed constant within segments and shifted between them'
+    : /-then-/.test(best.id) ? 'the mode of change shifted once during the sequence' : /^covariate-/.test(best.id) ? 'the trait mean tracked the covariate' : `the data follow ${best.label}`);
+  const strength = best.weight >= 0.9 ? 'clearly' : best.weight >= 0.7 ? 'moderately' : 'only weakly';
+  const sentences = [`Of the models fitted, the data ${strength} favour ${best.label} (Akaike weight ${best.weight.toFixed(2)}): in plain words, ${pattern}.`];
+  const close = lineage.models.filter((model) => model.id !== best.id && model.compared && model.delta_aicc !== null && model.delta_aicc < 2);
+  if (close.length > 0) sentences.push(`${listWords(close.map((model) => model.label))} ${close.length === 1 ? 'fits' : 'fit'} almost as well, so the data do not decide between them.`);
+  if (summary.samplingShare !== null && summary.samplingShare >= 0.5) sentences.push('Sampling error is large against the differences between horizons, so smaller changes would not be visible in these data.');
+  if (summary.extrapolatedHorizons > 0) sentences.push(`${summary.extrapolatedHorizons} horizon ages rest on extrapolation beyond the age model.`);
+  return sentences.join(' ');
+}
+
+function listWords(items: readonly string[]): string {
+  if (items.length <= 1) return items.join('');
+  return `${items.slice(0, -1).join(', ')} and ${items[items.length - 1]}`;
 }
 
 function fact(term: string, value: string, field?: string, exact?: number | null): string {
@@ -81,20 +156,21 @@ export function lineageWarnings(lineage: LineageView, summary: DataSummary, docu
 function conclusion(lineage: LineageView): string {
   const compared = lineage.models.filter((model) => model.compared && model.weight !== null);
   const best = lineage.models.find((model) => model.id === lineage.best_model);
-  const cautions = [...supportCautions];
+  // The general cautions (supportCautions) are printed once, with the overview; here only those this result calls for.
+  const cautions: string[] = [];
   if (!best) {
     return `<div class="conclusion"><p>No model could be compared for this lineage.</p></div>`;
   }
   const close = compared.filter((model) => model.id !== best.id && model.delta_aicc !== null && model.delta_aicc < 2);
-  if (close.length > 0) cautions.unshift(closeSupportCaution);
-  if (best.id === 'directional-walk') cautions.unshift(directionalCaution);
-  if (best.id === 'stasis' || best.id === 'strict-stasis') cautions.unshift(stasisCaution);
+  if (close.length > 0) cautions.push(closeSupportCaution);
+  if (best.id === 'directional-walk') cautions.push(directionalCaution);
+  if (best.id === 'stasis' || best.id === 'strict-stasis') cautions.push(stasisCaution);
   if (lineage.models.some((model) => model.flags.length > 0)) cautions.push(boundCaution);
   const closeWords = close.length > 0
     ? ` ${close.map((model) => `${model.label} (weight ${model.weight?.toFixed(3)}, ΔAICc ${model.delta_aicc?.toFixed(2)})`).join(' and ')} ${close.length === 1 ? 'is' : 'are'} within 2 AICc units.`
     : '';
   return `<div class="conclusion"><p><strong>Best supported among the models fitted:</strong> ${escapeHtml(best.label)}, Akaike weight <span data-field="best_weight" data-value="${exactValue(best.weight)}">${best.weight?.toFixed(3)}</span>.${escapeHtml(closeWords)}</p></div>
-<div class="cautions"><p><strong>Reading this result</strong></p><ul>${cautions.map((caution) => `<li>${escapeHtml(caution)}</li>`).join('')}</ul></div>`;
+${cautions.length > 0 ? `<div class="cautions"><p><strong>Reading this result</strong> (besides the general cautions in the overview)</p><ul>${cautions.map((caution) => `<li>${escapeHtml(caution)}</li>`).join('')}</ul></div>` : ''}`;
 }
 
 /**
@@ -129,9 +205,11 @@ export function lineageSection(lineage: LineageView, index: number, document: Fi
   const anchor = `lineage-${index + 1}-${slug(title)}`;
   return `<section class="lineage" id="${anchor}" data-lineage="${index}">
 <h2>${escapeHtml(title)}</h2>
+<p class="summary" data-block="plain-summary">${escapeHtml(plainSummary(lineage, summary))}</p>
 <h3>Data</h3>
 <dl class="facts">${facts.join('')}</dl>
 <p>${escapeHtml(samplingWords(summary))}</p>
+${horizonTable(lineage)}
 ${warnings.length > 0 ? `<div class="warnings" role="note"><strong>Warnings</strong><ul>${warnings.map((warning) => `<li>${escapeHtml(warning)}</li>`).join('')}</ul></div>` : ''}
 <h3>Model support</h3>
 ${supportTable(lineage)}
@@ -141,7 +219,7 @@ ${own.length > 0 ? `<h3>Figures</h3>\n${own.map(figureHtml).join('\n')}` : ''}
 <h3>Estimates</h3>
 ${estimatesTable(lineage)}
 ${lineage.adequacy !== undefined && lineage.adequacy !== null ? `<h3>Adequacy of the best-supported model</h3>\n${adequacyBlock(lineage.adequacy)}` : ''}
-${lineage.rates !== undefined && lineage.rates !== null ? `<h3>Rates</h3>\n${ratesBlock(lineage.rates)}` : ''}
+${lineage.rates !== undefined && lineage.rates !== null ? `<h3>Rates</h3>\n${ratesBlock(lineage.rates, lineage)}` : ''}
 ${furtherFacts.length > 0 ? `<h3>Further results</h3>\n${jsonBlock(Object.fromEntries(furtherFacts))}` : ''}
 ${furtherBlocks.map(([key, value]) => `<h3>${escapeHtml(key.replace(/_/g, ' '))}</h3>\n${jsonBlock(value)}`).join('\n')}
 </section>`;

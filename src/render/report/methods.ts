@@ -42,15 +42,37 @@ export interface MethodsText {
   readonly references: readonly Reference[];
 }
 
+/** What the power analysis of the report did, read from its `power --json` documents. */
+export interface PowerRun {
+  readonly replicates?: number;
+  readonly seed?: number | string;
+  /** Lineages whose power analysis ran (absent: not known, e.g. an older caller). */
+  readonly lineages?: readonly string[];
+  /** Lineages whose power analysis could not run. */
+  readonly notRun?: readonly string[];
+  /** The drift grid: values per time unit, lowest and highest, how many. */
+  readonly drifts?: { readonly lowest: number; readonly highest: number; readonly count: number; readonly unit: string };
+  /** Where the simulated walks' step variance came from: the fitted directional walk or a value the user gave. */
+  readonly stepVariance?: 'fitted' | 'given' | 'mixed';
+  /** Akaike weight the directional walk had to exceed (the P(weight) rule). */
+  readonly weightThreshold?: number;
+  /** Level of the bootstrap likelihood-ratio test (0.05 unless the document says otherwise). */
+  readonly level?: number;
+}
+
 /** Which optional analyses the report shows, so the methods text can describe them. */
 export interface AnalysesRun {
   readonly comparison?: boolean;
+  /** The hypotheses the comparison fitted (`separate`, `shared`, `shared-offset`), when known. */
+  readonly comparisonHypotheses?: readonly string[];
   /** Likelihood-ratio tests of shared against separate were reported with the comparison. */
   readonly comparisonTests?: boolean;
   /** Rates in darwins and haldanes were reported. */
   readonly rates?: boolean;
-  readonly power?: { readonly replicates?: number; readonly seed?: number | string } | null;
+  readonly power?: PowerRun | null;
   readonly adequacy?: { readonly replicates?: number; readonly seed?: number | string } | null;
+  /** The smoothed lineage mean was drawn in the figures (`--smoothed-band`). */
+  readonly smoothedBand?: boolean;
 }
 
 function listInWords(items: readonly string[]): string {
@@ -84,41 +106,111 @@ function distinct<T>(lineages: readonly LineageView[], pick: (lineage: LineageVi
   return [...new Set(lineages.map(pick))];
 }
 
-function intervalSentence(document: FitDocumentView): MethodsSentence | null {
+/** The interval methods in the order the text describes them, with their words and sources. */
+const intervalWords: Readonly<Record<string, { text: (models: string) => string; cites: readonly string[] }>> = {
+  integrated: {
+    text: (models) => `For ${models}, the 95% intervals are equal-tailed credible intervals of the integrated likelihood, with the location parameters integrated out under flat priors and the variance or rate parameter under a uniform prior on its square root.`,
+    cites: ['bergerLiseoWolpert1999'],
+  },
+  adjusted: {
+    text: (models) => `For ${models}, the approximate 95% confidence intervals come from the restricted (REML-type) adjusted profile likelihood, in which the location parameters not held fixed are integrated out rather than maximised over, with the cut-off χ²₁(0.95)/2 ≈ 1.92.`,
+    cites: ['venzonMoolgavkar1988'],
+  },
+  profile: {
+    text: (models) => `For ${models}, the approximate 95% confidence intervals are profile-likelihood intervals: the values of a parameter at which the log-likelihood, maximised over the other parameters, lies within χ²₁(0.95)/2 ≈ 1.92 of its maximum (an asymptotic cut-off).`,
+    cites: ['venzonMoolgavkar1988'],
+  },
+  bootstrap: {
+    text: (models) => `For ${models}, the approximate 95% confidence intervals are profile-likelihood intervals whose cut-off is the 95% quantile of the likelihood-ratio statistic over a parametric bootstrap of the fitted model.`,
+    cites: ['venzonMoolgavkar1988', 'efronTibshirani1993'],
+  },
+};
+
+/**
+ * One sentence per interval method actually used, naming the models it was
+ * used for (the default method hands models with two or more process
+ * parameters to the adjusted profile, so a run can use two methods).
+ */
+function intervalSentences(document: FitDocumentView): MethodsSentence[] {
   const requested = document.provenance.options.intervals;
   if (requested === 'none' || requested === false) {
-    return { text: 'No confidence intervals were computed for this run.', cites: [], paragraph: 'models' };
+    return [{ text: 'No intervals were computed for this run.', cites: [], paragraph: 'models' }];
   }
-  const methods = new Set<string>();
-  for (const lineage of document.lineages) for (const model of lineage.models) if (model.converged) methods.add(model.interval_method);
-  const parts: { text: string; cites: string[] }[] = [];
-  for (const method of methods) {
-    if (method === 'profile') {
-      parts.push({
-        text: 'Approximate 95% confidence intervals are profile-likelihood intervals: the set of values of a parameter at which the log-likelihood, maximised over the other parameters, lies within χ²₁(0.95)/2 ≈ 1.92 of its maximum (an asymptotic cut-off)',
-        cites: ['venzonMoolgavkar1988'],
-      });
-    } else if (method === 'adjusted') {
-      parts.push({
-        text: 'Approximate 95% confidence intervals come from a restricted (REML-type) adjusted profile likelihood, in which the location parameters not held fixed are integrated out rather than maximised over, with the χ²₁(0.95)/2 ≈ 1.92 cut-off',
-        cites: ['venzonMoolgavkar1988'],
-      });
-    } else if (method === 'bootstrap') {
-      parts.push({
-        text: 'Approximate 95% confidence intervals are profile-likelihood intervals whose cut-off is the 95% quantile of the likelihood-ratio statistic over a parametric bootstrap of the fitted model',
-        cites: ['venzonMoolgavkar1988', 'efronTibshirani1993'],
-      });
-    } else if (method === 'integrated') {
-      parts.push({
-        text: 'Approximate 95% confidence intervals are equal-tailed intervals of the integrated likelihood, with the location parameters integrated out under flat priors and the variance under a uniform prior on its square root (for models with at most one variance or rate parameter; models with more use the restricted adjusted profile)',
-        cites: ['bergerLiseoWolpert1999'],
-      });
-    } else {
-      parts.push({ text: `Confidence intervals were made by the method "${method}"`, cites: [] });
+  const byMethod = new Map<string, string[]>();
+  for (const lineage of document.lineages) {
+    for (const model of lineage.models) {
+      if (!model.converged || model.interval_method === 'none') continue;
+      const labels = byMethod.get(model.interval_method) ?? [];
+      if (!labels.includes(model.label)) labels.push(model.label);
+      byMethod.set(model.interval_method, labels);
     }
   }
-  if (parts.length === 0) return null;
-  return { text: parts.map((part) => part.text).join('; ') + '.', cites: uniqueKeys(parts.flatMap((part) => part.cites)), paragraph: 'models' };
+  const sentences: MethodsSentence[] = [];
+  const ordered = [...Object.keys(intervalWords).filter((method) => byMethod.has(method)), ...[...byMethod.keys()].filter((method) => !(method in intervalWords))];
+  for (const method of ordered) {
+    const labels = byMethod.get(method) ?? [];
+    const models = labels.length === 1 ? `the ${labels[0]} model` : `the models ${listInWords(labels)}`;
+    const words = intervalWords[method];
+    sentences.push(words
+      ? { text: words.text(byMethod.size === 1 ? 'every model' : models), cites: words.cites, paragraph: 'models' }
+      : { text: `For ${models}, intervals were made by the method "${method}".`, cites: [], paragraph: 'models' });
+  }
+  return sentences;
+}
+
+/** Numbers in running text: up to 3 significant digits, no exponent for ordinary sizes. */
+/** The labels of the adequacy checks the lineage documents report (first lineage that has them). */
+function adequacyCheckLabels(lineages: readonly LineageView[]): string[] {
+  for (const lineage of lineages) {
+    const checks = (lineage.adequacy as { checks?: { label?: unknown }[] } | undefined)?.checks;
+    if (Array.isArray(checks)) return checks.map((check) => check.label).filter((label): label is string => typeof label === 'string');
+  }
+  return [];
+}
+
+function shortNumber(value: number): string {
+  return String(Number(value.toPrecision(3)));
+}
+
+interface AgeModelView {
+  readonly file?: string;
+  readonly position_kind?: string;
+  readonly sections?: readonly { readonly section: string; readonly ties: readonly { readonly age_sd?: number }[]; readonly sedimentation_rates: readonly { readonly rate: number }[] }[];
+}
+
+/** The age model's sentences: ties, interpolation, sedimentation rates, extrapolated horizons and age draws; none without an age model. */
+function ageModelSentences(document: FitDocumentView): MethodsSentence[] {
+  const ageModel = document.age_model as AgeModelView | undefined | null;
+  const placed = document.lineages.filter((lineage) => lineage.position_kind === 'height' || lineage.position_kind === 'depth');
+  if (!ageModel || !Array.isArray(ageModel.sections) || placed.length === 0) return [];
+  const sentences: MethodsSentence[] = [];
+  const kind = ageModel.position_kind === 'depth' ? 'depths' : 'heights';
+  const ties = ageModel.sections.reduce((sum, section) => sum + section.ties.length, 0);
+  const rates = ageModel.sections.flatMap((section) => section.sedimentation_rates.map((segment: { rate: number }) => segment.rate)).filter((rate) => Number.isFinite(rate));
+  const unit = placed[0].time_unit;
+  const named = ageModel.sections.filter((section) => section.section !== '').length;
+  const rateWords = rates.length === 0 ? '' : Math.min(...rates) === Math.max(...rates)
+    ? `, ${shortNumber(rates[0])} m per ${unit}`
+    : `, from ${shortNumber(Math.min(...rates))} to ${shortNumber(Math.max(...rates))} m per ${unit}`;
+  sentences.push({
+    text: `Stratigraphic ${kind} were converted to ages with an age model of ${plural(ties, 'tie point')}${named > 0 ? ` in ${plural(named, 'section')}` : ''}, interpolating linearly between consecutive ties, that is, assuming a constant sedimentation rate between them${rateWords ? ` (rates${rateWords.replace(/^,/, '')})` : ''}.`,
+    cites: [], paragraph: 'data',
+  });
+  const extrapolated = placed.reduce((sum, lineage) => sum + lineage.data.extrapolated.filter(Boolean).length, 0);
+  if (extrapolated > 0) {
+    sentences.push({
+      text: `${capitalised(plural(extrapolated, 'horizon'))} lay beyond the outermost ties; their ages were extrapolated at the rate of the nearest stretch, and results that depend on them should be read with that in mind.`,
+      cites: [], paragraph: 'data',
+    });
+  }
+  const draws = document.age_uncertainty as { draws?: number; seed?: number } | undefined;
+  if (draws && typeof draws.draws === 'number' && draws.draws > 0) {
+    sentences.push({
+      text: `To gauge the effect of dating uncertainty, the tie ages were redrawn ${draws.draws} times from normal distributions with their standard errors (each draw kept in stratigraphic order; random seed ${draws.seed ?? 'not recorded'}), every lineage was refitted without intervals, and the spread of the Akaike weights and estimates over the draws was reported; this spread does not include sampling error.`,
+      cites: [], paragraph: 'choice',
+    });
+  }
+  return sentences;
 }
 
 /**
@@ -191,6 +283,7 @@ export function methodsText(document: FitDocumentView, analyses: AnalysesRun = {
     text: `Time was measured as elapsed time since the oldest horizon of each lineage (${origin}), in ${listInWords(units)}; every rate is per ${listInWords(units)}.`,
     cites: [], paragraph: 'data',
   });
+  sentences.push(...ageModelSentences(document).filter((sentence) => sentence.paragraph === 'data'));
 
   const models = modelsFitted(document);
   const modelParts = models.map((model) => `${model.label} (K = ${model.k}; [[${modelReferenceKeys(model.id).join(';')}]])`);
@@ -225,21 +318,23 @@ export function methodsText(document: FitDocumentView, analyses: AnalysesRun = {
     text: 'The remaining (variance and rate) parameters were maximised numerically on a logarithmic grid refined by Brent\'s method, with variances allowed to reach their bound of zero; estimates at a bound or a limit are reported as such.',
     cites: ['brent1973'], paragraph: 'models',
   });
-  const intervals = intervalSentence(document);
-  if (intervals) sentences.push(intervals);
+  sentences.push(...intervalSentences(document));
   sentences.push({
     text: 'Models were ranked by the small-sample Akaike information criterion, AICc = −2 logL + 2K + 2K(K + 1)/(N − K − 1) with N the number of horizons, and their relative support expressed as Akaike weights; a model with N − K − 1 ≤ 0 was not compared.',
     cites: ['hurvichTsai1989', 'burnhamAnderson2002'], paragraph: 'choice',
   });
-  if (lineages.some((lineage) => lineage.smoothed !== null)) {
+  if (analyses.smoothedBand && lineages.some((lineage) => lineage.smoothed !== null)) {
     sentences.push({
       text: 'The lineage mean drawn in the figures was smoothed under the best-supported model with a fixed-interval (Rauch–Tung–Striebel) smoother.',
       cites: ['rauchTungStriebel1965'], paragraph: 'choice',
     });
   }
+  sentences.push(...ageModelSentences(document).filter((sentence) => sentence.paragraph === 'choice'));
   if (analyses.comparison) {
+    const hypotheses = analyses.comparisonHypotheses ?? ['separate', 'shared'];
+    const offset = hypotheses.includes('shared-offset');
     sentences.push({
-      text: 'Where a trait was measured in two or more sections, hypotheses that the sections share one evolutionary process or each follow their own were fitted to all horizons together and ranked by AICc and Akaike weights in the same way.',
+      text: `Where a trait was measured in two or more sections, hypotheses that the sections each follow their own process (separate) or share one evolutionary process with their own starting values (shared)${offset ? ', or record one lineage on the common timescale with a constant offset per section (shared offset)' : ''} were fitted to all horizons together and ranked by AICc and Akaike weights in the same way, with N the number of horizons of all sections of the trait.`,
       cites: ['hurvichTsai1989', 'burnhamAnderson2002'], paragraph: 'choice',
     });
     if (analyses.comparisonTests) {
@@ -250,8 +345,12 @@ export function methodsText(document: FitDocumentView, analyses: AnalysesRun = {
     }
   }
   if (analyses.rates) {
+    const generation = provenance.options.generation_time_years;
+    const haldanes = typeof generation === 'number'
+      ? `in haldanes (change in within-sample standard deviations per generation, for an assumed generation time of ${shortNumber(generation)} ${generation === 1 ? 'year' : 'years'})`
+      : 'in haldanes (change in within-sample standard deviations per generation)';
     sentences.push({
-      text: 'Rates of change were expressed in darwins (change in the natural logarithm of the trait per million years) and in haldanes (change in within-sample standard deviations per generation), and model-based rates were set against the range expected under neutral drift.',
+      text: `Rates of change were expressed in darwins (change in the natural logarithm of the trait per million years) and ${haldanes}, and model-based rates were set against the range expected under neutral drift.`,
       cites: ['haldane1949', 'gingerich1993', 'lynch1990'], paragraph: 'choice',
     });
     sentences.push({
@@ -259,17 +358,26 @@ export function methodsText(document: FitDocumentView, analyses: AnalysesRun = {
       cites: ['gingerich1983', 'hunt2012'], paragraph: 'choice',
     });
   }
-  if (analyses.power) {
-    const details = [analyses.power.replicates ? `${analyses.power.replicates} replicates per drift value` : null, analyses.power.seed !== undefined ? `random seed ${analyses.power.seed}` : null].filter(Boolean).join(', ');
+  const power = analyses.power;
+  if (power && (power.lineages === undefined || power.lineages.length > 0)) {
+    const which = power.lineages === undefined || power.notRun === undefined || power.notRun.length === 0
+      ? 'this sampling design'
+      : `the sampling design of ${listInWords(power.lineages.map((name) => `"${name}"`))}`;
+    const grid = power.drifts
+      ? ` over a grid of ${power.drifts.count} drift values from ${shortNumber(power.drifts.lowest)} to ${shortNumber(power.drifts.highest)} per ${power.drifts.unit}`
+      : ' over a grid of drift values';
+    const step = power.stepVariance === 'given' ? 'a step variance given by the analyst' : power.stepVariance === 'mixed' ? 'a fitted or given step variance' : 'the step variance of the fitted directional walk';
+    const details = [power.replicates ? `${power.replicates} replicates per drift value` : null, power.seed !== undefined ? `random seed ${power.seed}` : null].filter(Boolean).join(', ');
     sentences.push({
-      text: `The power of this sampling design to detect a directional trend was estimated by simulating the directional walk on the design of the data (its times, sample sizes and within-horizon variances) over a grid of drift values and refitting every model${details ? ` (${details})` : ''}.`,
+      text: `The power of ${which} to detect a directional trend was estimated by simulating the directional walk, with ${step}, on the design of the data (its times, sample sizes and within-horizon variances)${grid}, refitting every model to each replicate${details ? ` (${details})` : ''}, and counting how often the directional walk was best supported${power.weightThreshold !== undefined ? `, had an Akaike weight above ${power.weightThreshold}` : ''} or was preferred by a likelihood-ratio test against the random walk at the ${shortNumber(100 * (power.level ?? 0.05))}% level with a parametric-bootstrap critical value; the same counts at zero drift give the false-trend rate.`,
       cites: ['efronTibshirani1993'], paragraph: 'choice',
     });
   }
   if (analyses.adequacy) {
     const details = [analyses.adequacy.replicates ? `${analyses.adequacy.replicates} replicates` : null, analyses.adequacy.seed !== undefined ? `random seed ${analyses.adequacy.seed}` : null].filter(Boolean).join(', ');
+    const checks = adequacyCheckLabels(lineages);
     sentences.push({
-      text: `The adequacy of the best-supported model was checked on its standardised one-step prediction errors, with p-values from a parametric bootstrap of the fitted model${details ? ` (${details})` : ''}.`,
+      text: `The adequacy of the best-supported model was checked on its standardised one-step prediction errors${checks.length > 0 ? ` (${listInWords(checks)})` : ''}, with p-values from a parametric bootstrap of the fitted model${details ? ` (${details})` : ''}.`,
       cites: ['vojeStarrfeltLiow2018', 'efronTibshirani1993'], paragraph: 'choice',
     });
   }

@@ -80,19 +80,60 @@ ${typeof adequacy.note === 'string' && adequacy.note !== '' ? `<p class="note">$
 <div class="cautions"><ul><li>${escapeHtml('Passing these checks means the data give no clear sign against the model; with few horizons the checks have little power, so "adequate" is weak evidence that the model is right.')}</li></ul></div>`;
 }
 
+/** What a rates table needs to know of its lineage to name units. */
+export interface RatesUnits {
+  readonly time_unit: string;
+  readonly trait_unit?: string | null;
+  readonly transform: string;
+}
+
+function rateCell(value: Json, field: string, digits = 4): string {
+  if (typeof value !== 'number') return '<td class="number">—</td>';
+  return `<td class="number" data-field="${escapeHtml(field)}" data-value="${exactValue(value)}">${escapeHtml(formatNumber(value, digits))}</td>`;
+}
+
+/** Interval rates (whole sequence first) as one table with the unit of every column. */
+function intervalRatesTable(rows: readonly Record<string, Json>[], timeUnit: string, label: string): string {
+  const body = rows.map((row) => `<tr>${rateCell(row.from, 'from', 6)}${rateCell(row.to, 'to', 6)}${rateCell(row.interval, 'interval')}${rateCell(row.ln_change, 'ln_change')}${rateCell(row.darwins, 'darwins')}${rateCell(row.generations, 'generations')}${rateCell(row.haldanes, 'haldanes')}</tr>`);
+  return `<table class="rates" aria-label="${escapeHtml(label)}"><thead><tr><th class="number">from horizon</th><th class="number">to horizon</th><th class="number">interval (${escapeHtml(timeUnit)})</th><th class="number">change in ln trait</th><th class="number">darwins (ln units per Myr)</th><th class="number">generations</th><th class="number">haldanes (sd per generation)</th></tr></thead><tbody>
+${body.join('\n')}
+</tbody></table>`;
+}
+
 /**
  * Rates of one lineage, from the lineage document's `rates` (`fit --rates`):
- * the whole sequence, the model-based rates, and the interval rates folded
- * away, with the caution about the time-scale dependence of rates.
+ * the whole sequence and the model-based rates as tables whose headers carry
+ * their units (horizons numbered from 0, oldest first; intervals in the time
+ * unit; darwins, haldanes; drift in trait per time unit, step variance in
+ * trait² per time unit, Lynch's Delta per generation), the interval rates
+ * folded away, and the caution about the time-scale dependence of rates.
  */
-export function ratesBlock(rates: Json): string {
+export function ratesBlock(rates: Json, lineage?: RatesUnits): string {
   if (!isRecord(rates)) return jsonBlock(rates);
+  const timeUnit = typeof rates.time_unit === 'string' ? rates.time_unit : lineage?.time_unit ?? 'time unit';
+  const logged = lineage?.transform === 'ln';
+  const trait = traitUnitLabel(lineage?.trait_unit ?? null, logged, logged ? 'ln units' : 'trait units');
   const parts: string[] = [];
-  if (isRecord(rates.whole_sequence)) parts.push(`<p><strong>Whole sequence</strong></p>${jsonBlock(rates.whole_sequence)}`);
-  if (Array.isArray(rates.model_based) && rates.model_based.length > 0) parts.push(`<p><strong>From the fitted models</strong></p>${recordsTable((rates.model_based as Json[]).filter(isRecord), 'model-based rates')}`);
-  if (Array.isArray(rates.intervals) && rates.intervals.length > 0) parts.push(`<details><summary>Between consecutive horizons (${rates.intervals.length} intervals)</summary>${recordsTable((rates.intervals as Json[]).filter(isRecord), 'interval rates')}</details>`);
-  const facts = Object.fromEntries(Object.entries(rates).filter(([key, value]) => isScalar(value) && key !== 'caution' && key !== 'notes'));
-  if (Object.keys(facts).length > 0) parts.unshift(jsonBlock(facts));
+  const facts: string[] = [];
+  if (typeof rates.ln_scale === 'string') facts.push(`ln trait: ${rates.ln_scale}`);
+  if (typeof rates.generation_time_years === 'number') facts.push(`generation time ${formatNumber(rates.generation_time_years)} years`);
+  else facts.push('no generation time given (no haldanes or per-generation rates)');
+  if (typeof rates.pooled_within_variance === 'number') facts.push(`pooled within-horizon variance ${formatNumber(rates.pooled_within_variance)} ${squaredLabel(trait)}`);
+  parts.push(`<p>${escapeHtml(facts.join('; '))}.</p>`);
+  if (isRecord(rates.whole_sequence)) parts.push(`<p><strong>Whole sequence</strong></p>${intervalRatesTable([rates.whole_sequence], timeUnit, 'whole-sequence rate')}`);
+  if (Array.isArray(rates.model_based) && rates.model_based.length > 0) {
+    const rows = (rates.model_based as Json[]).filter(isRecord).map((row) => {
+      const drift = row.kind === 'drift';
+      const unit = drift ? `${trait} per ${timeUnit}` : `${squaredLabel(trait)} per ${timeUnit}`;
+      const perMyr = drift ? 'darwins' : '(ln units)² per Myr';
+      const perGeneration = drift ? 'haldanes' : 'Delta (sd² per generation)';
+      return `<tr data-model="${escapeHtml(String(row.model))}"><td>${escapeHtml(String(row.model))}</td><td><code>${escapeHtml(String(row.parameter))}</code></td>${rateCell(row.estimate, 'estimate')}<td>${escapeHtml(unit)}</td>${rateCell(row.per_million_years, 'per_million_years')}<td>${typeof row.per_million_years === 'number' ? escapeHtml(perMyr) : ''}</td>${rateCell(row.per_generation, 'per_generation')}<td>${typeof row.per_generation === 'number' ? escapeHtml(perGeneration) : ''}</td><td>${escapeHtml(row.neutral_range === null || row.neutral_range === undefined ? '' : `${row.neutral_range} the neutral range`)}</td></tr>`;
+    });
+    parts.push(`<p><strong>From the fitted models</strong></p><table class="rates" aria-label="model-based rates"><thead><tr><th>model</th><th>parameter</th><th class="number">estimate</th><th>unit</th><th class="number">per Myr</th><th>unit</th><th class="number">per generation</th><th>unit</th><th>against neutral drift</th></tr></thead><tbody>
+${rows.join('\n')}
+</tbody></table>`);
+  }
+  if (Array.isArray(rates.intervals) && rates.intervals.length > 0) parts.push(`<details><summary>Between consecutive horizons (${rates.intervals.length} intervals)</summary>${intervalRatesTable((rates.intervals as Json[]).filter(isRecord), timeUnit, 'interval rates')}</details>`);
   if (Array.isArray(rates.notes) && rates.notes.length > 0) parts.push(`<ul class="note">${(rates.notes as Json[]).map((note) => `<li>${escapeHtml(scalarText(note))}</li>`).join('')}</ul>`);
   if (typeof rates.caution === 'string') parts.push(`<div class="cautions"><ul><li>${escapeHtml(rates.caution)}</li></ul></div>`);
   return parts.join('\n');
@@ -183,4 +224,31 @@ export function powerDocumentBlock(power: Json): string {
   if (Array.isArray(power.notes) && power.notes.length > 0) parts.push(`<ul class="note">${(power.notes as Json[]).map((note) => `<li>${escapeHtml(scalarText(note))}</li>`).join('')}</ul>`);
   if (typeof power.caution === 'string') parts.push(`<div class="cautions"><ul><li>${escapeHtml(power.caution)}</li></ul></div>`);
   return parts.join('\n');
+}
+
+/**
+ * The age model as fit.json holds it (`age_model`): per section its ties
+ * (position, age, age_sd, input line) and the sedimentation rate of each
+ * stretch between consecutive ties, in m per time unit. Another layout falls
+ * back to {@link jsonBlock}.
+ */
+export function ageModelBlock(ageModel: Json, timeUnit: string): string {
+  if (!isRecord(ageModel) || !Array.isArray(ageModel.sections)) return jsonBlock(ageModel);
+  const kind = ageModel.position_kind === 'depth' ? 'depth' : 'height';
+  const ageUnit = timeUnit === 'Myr' ? 'Ma' : timeUnit === 'kyr' ? 'ka' : timeUnit;
+  const rows: string[] = [];
+  for (const section of (ageModel.sections as Json[]).filter(isRecord)) {
+    const ties = Array.isArray(section.ties) ? (section.ties as Json[]).filter(isRecord) : [];
+    const rates = Array.isArray(section.sedimentation_rates) ? (section.sedimentation_rates as Json[]).filter(isRecord) : [];
+    ties.forEach((tie, k) => {
+      // Ties are stored by height (depth d as -d); shown as the file gives them.
+      const position = typeof tie.height === 'number' ? (kind === 'depth' ? -tie.height : tie.height) : null;
+      const rate = k < rates.length ? rates[k].rate : null;
+      rows.push(`<tr>${k === 0 ? `<td rowspan="${ties.length}">${escapeHtml(String(section.section || 'every section'))}</td>` : ''}${cell(position, kind)}${cell(tie.age, 'age')}${cell(tie.age_sd, 'age_sd')}${cell(tie.line, 'line')}${k < ties.length - 1 ? cell(rate, 'rate') : '<td></td>'}</tr>`);
+    });
+  }
+  return `<p>${escapeHtml(`Ties of ${scalarText(ageModel.file)}; ages between ties by linear interpolation (a constant sedimentation rate between consecutive ties).`)}</p>
+<table class="age-model" aria-label="age model"><thead><tr><th>section</th><th class="number">${kind} (m)</th><th class="number">age (${escapeHtml(ageUnit)})</th><th class="number">age sd</th><th class="number">line</th><th class="number">rate to the next tie (m per ${escapeHtml(timeUnit)})</th></tr></thead><tbody>
+${rows.join('\n')}
+</tbody></table>`;
 }

@@ -127,13 +127,17 @@ export const referenceCatalogue: Readonly<Record<string, Reference>> = {
 };
 
 /**
- * The sources of each model by id. strict-stasis and ou follow the model
- * files' own citations (Hunt, Bell & Travis 2008); the extended models follow
+ * The sources of each model by id, each the paper that introduced the model
+ * in this form: stasis and the two walks Hunt 2006; ou Hunt, Bell & Travis
+ * 2008; strict stasis (means differing by sampling error only) Hunt, Hopkins
+ * & Lidgard 2015, whose abstract names "a strict version of stasis that
+ * entails no real evolutionary changes" (checked against the published
+ * abstract, issue 19; the earlier entry cited the 2008 ou paper). The extended models follow
  * theirs (punctuated: Hunt 2008; mode shifts: Hunt, Hopkins & Lidgard 2015;
  * covariate tracking: Hunt et al. 2010).
  */
 const modelSources: Readonly<Record<string, readonly string[]>> = {
-  'strict-stasis': ['huntBellTravis2008'],
+  'strict-stasis': ['huntHopkinsLidgard2015'],
   stasis: ['hunt2006'],
   'random-walk': ['hunt2006'],
   'directional-walk': ['hunt2006'],

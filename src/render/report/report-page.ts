@@ -2,8 +2,8 @@ import { formatNumber } from '../units.js';
 import { lineageTitle, type FitDocumentView } from './document-view.js';
 import { escapeHtml, exactValue, slug } from './html.js';
 import { figureHtml, lineageSection, type ReportFigure } from './lineage-section.js';
-import { methodsParagraphs, methodsPlainText, methodsText, renderSentence, type AnalysesRun, type MethodsText } from './methods.js';
-import { comparisonDocumentBlock, jsonBlock, powerDocumentBlock } from './optional-blocks.js';
+import { methodsParagraphs, methodsPlainText, methodsText, renderSentence, type AnalysesRun, type MethodsText, type PowerRun } from './methods.js';
+import { ageModelBlock, comparisonDocumentBlock, jsonBlock, powerDocumentBlock } from './optional-blocks.js';
 import { supportTable } from './support-table.js';
 import type { LineageView } from './document-view.js';
 import { findReference } from './references.js';
@@ -45,7 +45,7 @@ export interface ReportInput {
 }
 
 /** Top-level document keys the report shows in blocks of their own. */
-const topKeys = new Set(['provenance', 'model_set', 'lineages', 'warnings', 'comparison', 'comparisons', 'power', 'adequacy']);
+const topKeys = new Set(['provenance', 'model_set', 'lineages', 'warnings', 'comparison', 'comparisons', 'power', 'adequacy', 'age_model']);
 
 function citationLinks(keys: readonly string[]): string {
   return keys.map((key) => `<a href="#ref-${slug(key)}" class="cite">${escapeHtml(findReference(key).cite)}</a>`).join('; ');
@@ -95,6 +95,32 @@ ${rows.map(([term, value]) => `<tr><td>${escapeHtml(term)}</td><td><code>${escap
 }
 
 /**
+ * What the power documents say was done (`power --json` layout; an entry
+ * with `power_not_run` is a lineage whose analysis failed): which lineages
+ * ran, replicates, seed, drift grid, where the step variance came from.
+ */
+export function powerRunOf(documents: readonly unknown[]): PowerRun {
+  type PowerView = { power_not_run?: string; lineage?: string; input?: { lineage?: string }; grid?: { drift?: number }[]; settings?: { replicates?: number; seed?: number; time_unit?: string; weight_threshold?: number }; generator?: { step_variance_source?: string }; lrt?: { level?: number } };
+  const views = documents.filter((entry): entry is PowerView => entry !== null && typeof entry === 'object');
+  const ran = views.filter((view) => view.power_not_run === undefined && Array.isArray(view.grid) && view.grid.length > 0);
+  const notRun = views.filter((view) => !ran.includes(view));
+  const drifts = ran.flatMap((view) => (view.grid ?? []).map((point) => point.drift)).filter((value): value is number => typeof value === 'number');
+  const first = ran[0];
+  const sources = new Set(ran.map((view) => view.generator?.step_variance_source));
+  return {
+    replicates: first?.settings?.replicates,
+    seed: first?.settings?.seed,
+    lineages: ran.map((view) => view.input?.lineage ?? view.lineage ?? 'lineage'),
+    notRun: notRun.map((view) => view.lineage ?? view.input?.lineage ?? 'lineage'),
+    // One grid per lineage, in that lineage's units: the range over all of them, counted per lineage.
+    drifts: first && drifts.length > 0 ? { lowest: Math.min(...drifts), highest: Math.max(...drifts), count: first.grid?.length ?? 0, unit: first.settings?.time_unit ?? 'time unit' } : undefined,
+    stepVariance: sources.size > 1 ? 'mixed' : sources.has('given') ? 'given' : 'fitted',
+    weightThreshold: first?.settings?.weight_threshold,
+    level: first?.lrt?.level,
+  };
+}
+
+/**
  * Build the whole report: one self-contained HTML page (styles inline,
  * figures as data URLs, no scripts, nothing fetched when opened) with an
  * overview, one section per lineage, the optional analyses that were run,
@@ -112,15 +138,18 @@ export function reportPage(input: ReportInput): string {
   const adequacy = input.adequacy ?? document.adequacy;
   const lineageAdequacy = document.lineages.some((lineage) => lineage.adequacy !== undefined);
   const powerList = power === undefined ? [] : Array.isArray(power) ? power : [power];
-  const firstPower = (powerList[0] ?? {}) as { settings?: { replicates?: number; seed?: number } };
   const adequacyOf = document.lineages.map((lineage) => lineage.adequacy as { draws?: number; seed?: number } | undefined).find((entry) => entry);
-  const hasTests = (comparison as { traits?: { tests?: unknown[] }[] } | undefined)?.traits?.some((trait) => (trait.tests ?? []).length > 0) ?? false;
+  const comparisonTraits = (comparison as { traits?: { tests?: unknown[]; hypotheses?: { id?: string }[] }[] } | undefined)?.traits ?? [];
+  const hasTests = comparisonTraits.some((trait) => (trait.tests ?? []).length > 0);
+  const hypotheses = [...new Set(comparisonTraits.flatMap((trait) => (trait.hypotheses ?? []).map((hypothesis) => hypothesis.id)).filter((id): id is string => typeof id === 'string'))];
   const analyses: AnalysesRun = {
     comparison: comparison !== undefined,
+    comparisonHypotheses: hypotheses.length > 0 ? hypotheses : undefined,
     comparisonTests: hasTests,
-    power: power !== undefined ? (input.analyses?.power ?? { replicates: firstPower.settings?.replicates, seed: firstPower.settings?.seed }) : null,
+    power: powerList.length > 0 ? { ...powerRunOf(powerList), ...(input.analyses?.power ?? {}) } : null,
     adequacy: adequacy !== undefined || lineageAdequacy ? (input.analyses?.adequacy ?? { replicates: adequacyOf?.draws, seed: adequacyOf?.seed }) : null,
     rates: document.lineages.some((lineage) => lineage.rates !== undefined && lineage.rates !== null),
+    smoothedBand: input.analyses?.smoothedBand === true,
   };
   const methods = methodsText(document, analyses);
   const inputNames = document.provenance.inputs.map((entry) => entry.file.split(/[\\/]/).pop() ?? entry.file).join(', ');
@@ -130,6 +159,9 @@ export function reportPage(input: ReportInput): string {
 
   const blocks: { id: string; title: string; html: string }[] = [];
   blocks.push({ id: 'overview', title: 'Overview', html: overview(document) });
+  if (document.age_model !== undefined && document.age_model !== null) {
+    blocks.push({ id: 'age-model', title: 'Age model', html: ageModelBlock(document.age_model, document.lineages[0]?.time_unit ?? 'Myr') });
+  }
   document.lineages.forEach((lineage, index) => {
     blocks.push({ id: `lineage-${index + 1}-${slug(lineageTitle(lineage))}`, title: lineageTitle(lineage), html: lineageSection(lineage, index, document, figures) });
   });

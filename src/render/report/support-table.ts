@@ -57,11 +57,36 @@ function unitOf(modelId: string, name: string, lineage: LineageView): string {
   return unitLabel(spec.unit, lineage.time_unit, traitLabel);
 }
 
-function extraText(model: ModelView): string {
-  const known = new Set(['id', 'label', 'k', 'logLik', 'aicc', 'delta_aicc', 'weight', 'converged', 'compared', 'not_compared_reason', 'interval_method', 'params', 'derived', 'flags']);
-  const extras = Object.entries(model).filter(([key]) => !known.has(key));
-  return extras.map(([key, value]) => `${key}: ${typeof value === 'string' ? value : JSON.stringify(value)}`).join('; ');
+/** A shift as a reader wants it: the horizon where the new segment starts, with its age (and height or depth). */
+export function shiftWords(shift: Record<string, unknown>, k: number, lineage: Pick<LineageView, 'time_unit'>): string {
+  const unit = lineage.time_unit;
+  const ageUnit = unit === 'Myr' ? 'Ma' : unit === 'kyr' ? 'ka' : `${unit} before present`;
+  const places: string[] = [];
+  if (typeof shift.age === 'number') places.push(`age ${formatNumber(shift.age)} ${ageUnit}`);
+  else if (typeof shift.time === 'number') places.push(`time ${formatNumber(shift.time)} ${unit}`);
+  for (const kind of ['height', 'depth']) if (typeof shift[kind] === 'number') places.push(`${kind} ${formatNumber(shift[kind] as number)} m`);
+  const index = typeof shift.index === 'number' ? shift.index : null;
+  return `shift ${k + 1} at horizon ${index === null ? '—' : index + 1} of the sequence, counted from the oldest${places.length > 0 ? ` (${places.join(', ')})` : ''}`;
 }
+
+function extraText(model: ModelView, lineage: LineageView): string {
+  const known = new Set(['id', 'label', 'k', 'logLik', 'aicc', 'delta_aicc', 'weight', 'converged', 'compared', 'not_compared_reason', 'interval_method', 'params', 'derived', 'flags']);
+  const parts: string[] = [];
+  for (const [key, value] of Object.entries(model)) {
+    if (known.has(key)) continue;
+    if (key === 'shifts' && Array.isArray(value)) {
+      parts.push(...value.map((shift, k) => shiftWords(shift as Record<string, unknown>, k, lineage)));
+      parts.push('shift positions are estimated by exhaustive search and have no interval; the other intervals are conditional on them');
+    } else if (key === 'shift_search' && value !== null && typeof value === 'object') {
+      const search = value as { configurations?: number; searched_in_full?: number; minimum_segment?: number };
+      parts.push(`${search.configurations ?? '—'} placements scored, ${search.searched_in_full ?? '—'} searched in full, at least ${search.minimum_segment ?? '—'} horizons per segment`);
+    } else parts.push(`${key}: ${typeof value === 'string' ? value : JSON.stringify(value)}`);
+  }
+  return parts.join('; ');
+}
+
+/** Parameters that place a shift (its time and the time of the horizon before it): shown as the shift's position, not as estimates with intervals. */
+const shiftPlacement = /^shift_\d+_(previous_)?time$/;
 
 /** The estimates of every fitted model with their 95% intervals, units and bound flags. */
 export function estimatesTable(lineage: LineageView): string {
@@ -71,7 +96,7 @@ export function estimatesTable(lineage: LineageView): string {
       rows.push(`<tr data-model="${escapeHtml(model.id)}"><td>${escapeHtml(model.label)}</td><td colspan="5">${escapeHtml(model.not_compared_reason ?? 'not fitted')}</td></tr>`);
       continue;
     }
-    const entries = [...Object.entries(model.params), ...Object.entries(model.derived)];
+    const entries = [...Object.entries(model.params), ...Object.entries(model.derived)].filter(([name]) => !(Array.isArray(model.shifts) && shiftPlacement.test(name)));
     entries.forEach(([name, estimate], index) => {
       rows.push(`<tr data-model="${escapeHtml(model.id)}" data-parameter="${escapeHtml(name)}">`
         + (index === 0 ? `<td rowspan="${entries.length}">${escapeHtml(model.label)}</td>` : '')
@@ -81,7 +106,7 @@ export function estimatesTable(lineage: LineageView): string {
         + `<td>${escapeHtml(unitOf(model.id, name, lineage))}</td>`
         + `<td>${escapeHtml(boundText(estimate))}</td></tr>`);
     });
-    const extra = extraText(model);
+    const extra = extraText(model, lineage);
     if (extra) rows.push(`<tr data-model="${escapeHtml(model.id)}"><td></td><td colspan="5" class="note">${escapeHtml(extra)}</td></tr>`);
   }
   const methods = [...new Set(lineage.models.filter((model) => model.converged).map((model) => model.interval_method))];

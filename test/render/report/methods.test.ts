@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { runFit, type FitCommandOptions } from '../../../src/cli/fit-command.js';
+import { runFit, runFitStreamed, type FitCommandOptions } from '../../../src/cli/fit-command.js';
 import { classicModels, extendedModels } from '../../../src/models/registry.js';
 import { asFitDocument, type FitDocumentView } from '../../../src/render/report/document-view.js';
 import { methodsPlainText, methodsText, sentenceKeys } from '../../../src/render/report/methods.js';
@@ -51,16 +51,35 @@ describe('methods text follows the options of the run', () => {
     expect(two).toContain('directional walk (random walk with drift) (K = 3');
     expect(two).not.toContain('strict stasis');
     expect(two).not.toContain('Ornstein');
-    // Only the sources of the models fitted: the OU / strict-stasis source drops out.
+    // Only the sources of the models fitted: the OU and strict-stasis sources drop out.
     expect(methodsText(walks).references.map((reference) => reference.key)).not.toContain('huntBellTravis2008');
+    expect(methodsText(walks).references.map((reference) => reference.key)).not.toContain('huntHopkinsLidgard2015');
     expect(methodsText(plain).references.map((reference) => reference.key)).toContain('huntBellTravis2008');
   });
 
-  it('intervals: named when computed, "no confidence intervals" when skipped', () => {
-    expect(text(plain)).toContain('No confidence intervals were computed');
+  it('intervals: named when computed, "no intervals" when skipped', () => {
+    expect(text(plain)).toContain('No intervals were computed');
     const withIntervals = asFitDocument(runFit('sample-data/shell-length.csv', { models: 'random-walk' }).document);
-    expect(text(withIntervals)).not.toContain('No confidence intervals');
-    expect(text(withIntervals)).toMatch(/95% confidence intervals/);
+    expect(text(withIntervals)).not.toContain('No intervals');
+    // Integrated-likelihood intervals are credible intervals (README, "Intervals that keep their promise"), not confidence intervals.
+    expect(text(withIntervals)).toContain('For every model, the 95% intervals are equal-tailed credible intervals of the integrated likelihood');
+    expect(text(withIntervals)).not.toContain('confidence interval');
+  });
+
+  it('intervals with the default method on the classic set: one sentence per method, naming its models, no clause twice, no capital after a semicolon', () => {
+    const classic = asFitDocument(runFit('sample-data/shell-length.csv', {}).document);
+    const sentences = methodsText(classic).sentences.filter((sentence) => sentence.text.startsWith("For ") && sentence.text.includes("95%"));
+    // The default method hands ou (two process parameters) to the adjusted profile (README): two methods, two sentences.
+    expect(sentences.map((sentence) => sentence.text.slice(0, 40))).toEqual([
+      'For the models strict stasis, stasis, un',
+      'For the Ornstein–Uhlenbeck (approach to ',
+    ]);
+    expect(sentences[0].text).toContain('credible intervals');
+    expect(sentences[1].text).toContain('confidence intervals');
+    const all = text(classic);
+    // Outside parentheses (where "; " separates citations such as "(Hurvich & Tsai 1989; Burnham & Anderson 2002)").
+    expect(all.replace(/\((?:[^()]|\([^()]*\))*\)/g, '')).not.toMatch(/; [A-Z]/);
+    expect(all.match(/restricted \(REML-type\) adjusted profile/g)).toHaveLength(1);
   });
 
   it('time unit and software version come from the document', () => {
@@ -136,9 +155,118 @@ describe('methods text cites every method used, and only those', () => {
     for (const [authors, where] of expected) expect(entries.some((entry) => entry.startsWith(authors) && entry.includes(where))).toBe(true);
   });
 
+  it('strict stasis cites the paper that introduced it (Hunt, Hopkins & Lidgard 2015), ou the stickleback paper', () => {
+    // Source: the published abstract of Hunt, Hopkins & Lidgard 2015 (PNAS 112:4885) names "a strict
+    // version of stasis that entails no real evolutionary changes"; the 2008 Evolution paper fits ou.
+    expect(modelReferenceKeys('strict-stasis')).toEqual(['huntHopkinsLidgard2015']);
+    expect(modelReferenceKeys('ou')).toEqual(['huntBellTravis2008']);
+    const strict = documentFor({ models: 'strict-stasis,stasis' });
+    expect(text(strict)).toContain('strict stasis (K = 1; Hunt, Hopkins & Lidgard 2015)');
+  });
+
   it('extended model families are matched to their sources by id', () => {
     expect(modelReferenceKeys('punctuated-1')).toEqual(['hunt2008']);
     expect(modelReferenceKeys('stasis-then-random-walk')).toEqual(['huntHopkinsLidgard2015']);
     expect(modelReferenceKeys('covariate-walk')).toEqual(['huntEtAl2010']);
+  });
+});
+
+const tiesFile = 'sample-data/locality-ties.csv';
+const heightsFile = 'sample-data/locality-heights.csv';
+const streamed = async (file: string, options: FitCommandOptions): Promise<FitDocumentView> => asFitDocument((await runFitStreamed(file, { intervals: false, quiet: true, ...options })).document);
+const placed = await streamed(heightsFile, { ageModel: tiesFile });
+const placedText = text(placed);
+
+describe('methods text: every option of the run changes it, and nothing that did not run is described (issue 19)', () => {
+
+  it('the age model: ties, sections, interpolation and the range of sedimentation rates (hand-computed from the tie file)', () => {
+    // locality-ties.csv: 11 ties in 3 sections; rates 22.2 (Ostry Scarp, 20 m over 0.9 Myr) to 38.9 m/Myr (Quarrel Hollow, 35 m over 0.9 Myr).
+    expect(placedText).toContain('Stratigraphic heights were converted to ages with an age model of 11 tie points in 3 sections, interpolating linearly between consecutive ties, that is, assuming a constant sedimentation rate between them (rates from 22.2 to 38.9 m per Myr).');
+    expect(placedText).not.toContain('extrapolated');
+    expect(placedText).not.toContain('redrawn');
+    expect(text(plain)).not.toContain('age model');
+  });
+
+  it('extrapolated horizons and age draws are described only when they happened', async () => {
+    // Ties of one section cut to its lower two: the horizons above 35 m are extrapolated.
+    const { mkdtempSync, writeFileSync } = await import('node:fs');
+    const { join } = await import('node:path');
+    const { tmpdir } = await import('node:os');
+    const folder = mkdtempSync(join(tmpdir(), 'stratotrend-methods-'));
+    const shortTies = join(folder, 'short-ties.csv');
+    writeFileSync(shortTies, 'section,height,age,age_sd\nQuarrel Hollow,0,9.00,0.05\nQuarrel Hollow,35,8.10,0.08\n');
+    const rows = (await import('node:fs')).readFileSync(heightsFile, 'utf8').trim().split('\n');
+    const oneSection = join(folder, 'one-section.csv');
+    writeFileSync(oneSection, [rows[0], ...rows.filter((row) => row.startsWith('Quarrel Hollow,whorl width,'))].join('\n') + '\n');
+    const extrapolated = await streamed(oneSection, { ageModel: shortTies, extrapolate: true, models: 'random-walk' });
+    const count = extrapolated.lineages[0].data.extrapolated.filter(Boolean).length;
+    expect(count).toBeGreaterThan(0);
+    expect(text(extrapolated)).toContain(`${count} horizons lay beyond the outermost ties`);
+    const run = await runFitStreamed(oneSection, { intervals: false, quiet: true, ageModel: tiesFile, ageDraws: '3', seed: '5', models: 'random-walk' });
+    const { fitAgeDraws } = await import('../../../src/cli/compare-command.js');
+    fitAgeDraws(oneSection, { ageModel: tiesFile, ageDraws: '3', seed: '5', models: 'random-walk' }, run.fits, run.document, run.read!.samples, run.age ?? null);
+    expect(text(asFitDocument(run.document))).toContain('the tie ages were redrawn 3 times from normal distributions with their standard errors (each draw kept in stratigraphic order; random seed 5)');
+  });
+
+  it('the smoothed mean is described only when the figures draw it (--smoothed-band)', () => {
+    expect(plain.lineages[0].smoothed).not.toBeNull();
+    expect(text(plain)).not.toContain('smoothed');
+    expect(methodsPlainText(methodsText(plain, { smoothedBand: true }))).toContain('The lineage mean drawn in the figures was smoothed under the best-supported model');
+  });
+
+  it('the generation time behind haldanes, and the adequacy statistics by name', () => {
+    const rates = documentFor({ rates: true, models: 'random-walk' } as FitCommandOptions);
+    const generations = documentFor({ generationTime: '2', models: 'random-walk' } as FitCommandOptions);
+    const page = (document: FitDocumentView): string => {
+      const html = reportPage({ document, run: { date: '2026-01-01T00:00:00Z' } });
+      return html.slice(html.indexOf('data-block="methods-plain"'));
+    };
+    expect(page(rates)).not.toContain('generation time');
+    expect(page(generations)).toContain('for an assumed generation time of 2 years');
+    const checked = documentFor({ models: 'random-walk', adequacy: true, adequacyDraws: '19' } as FitCommandOptions);
+    // The four checks of README "Model adequacy".
+    expect(page(checked)).toContain('(lag-1 autocorrelation, runs above/below zero, trend in spread over time and normality (Shapiro–Francia W&#39;))');
+  });
+
+  it('power: described with its grid, replicates, seed and step variance when it ran; never when it did not', () => {
+    const ran = { input: { lineage: 'North Cut / shell length' }, grid: [{ drift: 0 }, { drift: 0.5 }, { drift: 1.25 }], settings: { replicates: 40, seed: 9, time_unit: 'Myr', weight_threshold: 0.5 }, generator: { step_variance_source: 'fitted' } };
+    const failed = { lineage: 'South Cut / shell length', power_not_run: 'gives "depth" but no age model was given' };
+    const page = (power: unknown[]): string => {
+      const html = reportPage({ document: plain, power, run: { date: '2026-01-01T00:00:00Z' } });
+      return html.slice(html.indexOf('data-block="methods-plain"'));
+    };
+    expect(page([failed])).not.toContain('power');
+    const both = page([ran, failed]);
+    expect(both).toContain('The power of the sampling design of &quot;North Cut / shell length&quot; to detect a directional trend');
+    expect(both).toContain('with the step variance of the fitted directional walk');
+    expect(both).toContain('over a grid of 3 drift values from 0 to 1.25 per Myr');
+    expect(both).toContain('(40 replicates per drift value, random seed 9)');
+    expect(page([{ ...ran, generator: { step_variance_source: 'given' } }])).toContain('with a step variance given by the analyst');
+  });
+
+  it('comparison: the shared-offset hypothesis is named when it was fitted', () => {
+    const comparison = (ids: string[]) => methodsPlainText(methodsText(plain, { comparison: true, comparisonHypotheses: ids }));
+    expect(comparison(['separate', 'shared'])).not.toContain('offset');
+    expect(comparison(['separate', 'shared', 'shared-offset'])).toContain('or record one lineage on the common timescale with a constant offset per section (shared offset)');
+  });
+
+  it('each option of the run changes the text', async () => {
+    const baseline = text(plain);
+    const variants: [string, FitDocumentView][] = [
+      ['--log', logged],
+      ['--pool', pooled],
+      ['--models', walks],
+      ['--time-unit ka', documentFor({ timeUnit: 'ka' })],
+      ['--trait-unit mm', documentFor({ traitUnit: 'mm' })],
+      ['--intervals profile', documentFor({ intervals: 'profile', models: 'random-walk' })],
+      ['--min-segment', documentFor({ models: 'punctuated-1', minSegment: '6' } as FitCommandOptions)],
+    ];
+    for (const [option, document] of variants) expect(text(document), option).not.toBe(baseline);
+    expect(text(documentFor({ models: 'punctuated-1', minSegment: '7' } as FitCommandOptions))).not.toBe(text(documentFor({ models: 'punctuated-1', minSegment: '6' } as FitCommandOptions)));
+    const pageText = (analyses: Parameters<typeof methodsText>[1]): string => methodsPlainText(methodsText(plain, analyses));
+    for (const [option, analyses] of [['--smoothed-band', { smoothedBand: true }], ['--compare', { comparison: true }], ['--power', { power: { replicates: 20 } }], ['--rates', { rates: true }]] as const) {
+      expect(pageText(analyses), option).not.toBe(baseline);
+    }
+    expect(placedText).not.toBe(text(await streamed(heightsFile, { ageModel: tiesFile, timeUnit: 'ka' })));
   });
 });

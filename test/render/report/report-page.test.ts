@@ -27,7 +27,8 @@ describe('report page', () => {
     for (const lineage of document.lineages) expect(html).toContain(`<h2>${escapeHtml(`${lineage.section} / ${lineage.trait}`)}</h2>`);
     expect(html.match(/<table class="support"/g)?.length).toBe(document.lineages.length);
     expect(html.match(/class="conclusion"/g)?.length).toBe(document.lineages.length);
-    // Each conclusion is followed by its cautions, including the random-walk caution.
+    // Each conclusion is followed by the cautions its result calls for (here a trend, and a variance at its bound);
+    // the general cautions, the random-walk one among them, stand once with the overview.
     expect(html.match(/<div class="conclusion">[\s\S]*?<\/div>\n<div class="cautions">/g)?.length).toBe(document.lineages.length);
     expect(html).toContain('says nothing by itself about drift versus selection');
   });
