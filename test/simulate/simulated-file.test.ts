@@ -62,7 +62,7 @@ describe('horizons of one specimen (issue 19: simulate output reads back into fi
   it('the design file itself reads with --pool (the empty sd of an n = 1 row is no error), and still asks for --pool without it', () => {
     // Pooled variance, closed form: sum((n - 1) v) / sum(n - 1) = (2 * 0.25 + 3 * 0.16 + 4 * 0.36) / 9.
     expect(designs[0].withinVariance[0]).toBeCloseTo((2 * 0.25 + 3 * 0.16 + 4 * 0.36) / 9, 14);
-    expect(() => buildLineages(readSamples(readTable(text, 'design.csv')))).toThrow('design.csv line 2, column "n": n = 1 gives no within-horizon variance; use --pool');
+    expect(() => buildLineages(readSamples(readTable(text, 'design.csv')))).toThrow('design.csv line 2, column "sd": is empty where n = 1 (one specimen has no standard deviation), got ""; --pool handles this');
   });
 
   it('summary output leaves the sd of n = 1 rows empty and reads back with --pool to the same design', () => {
