@@ -17,7 +17,7 @@ import { formatNumber } from '../render/units.js';
 import { resolveModels } from './fit-command.js';
 import { delimiterOption, lineagesOf, loadSamplesStreamed, readInput, terminalProgress, type InputText, type SampleFileOptions, type StreamedInput } from './input.js';
 import { toolVersion } from './version.js';
-import { inputPaths, prepareOutputFolder, writeAtomically } from './write-output.js';
+import { inputPaths, OutputSet, prepareOutputFolder } from './write-output.js';
 
 /** Options of the age model, shared by `fit` and `compare`. */
 export interface AgeModelOptions {
@@ -304,23 +304,26 @@ export async function compareCommand(file: string, options: CompareCommandOption
     const figureNames = drawFigures ? result.run.comparisons.map((comparison, index) => `sections-${index + 1}-${slug(comparison.trait)}.png`) : [];
     const names = ['compare.csv', 'compare-estimates.csv', 'compare.json', ...(result.composites.length > 0 ? ['composite-models.csv'] : []), ...figureNames];
     const folder = prepareOutputFolder(options.out, inputs, names);
-    writeAtomically(join(folder, 'compare.csv'), comparisonCsv(result.run.comparisons, result.spreads));
-    writeAtomically(join(folder, 'compare-estimates.csv'), estimatesCsv(result.run.comparisons));
-    writeAtomically(join(folder, 'compare.json'), JSON.stringify(result.document, null, 2) + '\n');
-    written.push('compare.csv', 'compare-estimates.csv', 'compare.json');
-    if (result.composites.length > 0) {
-      writeAtomically(join(folder, 'composite-models.csv'), modelsCsv(result.composites));
-      written.push('composite-models.csv');
-    }
-    if (drawFigures) {
-      const { renderSectionsTogether } = await import('../render/figures/index.js');
-      const { models } = resolveModels(options.models);
-      for (const [index, comparison] of result.run.comparisons.entries()) {
-        const figure = renderSectionsTogether(sectionDocuments(comparison, models), { model: comparison.best?.model });
-        writeAtomically(join(folder, figureNames[index]), figure.bytes);
-        written.push(figureNames[index]);
+    // Written as one set, put in place at the end (a full disk leaves the previous set whole).
+    const set = new OutputSet(folder, options.out);
+    try {
+      set.add('compare.csv', comparisonCsv(result.run.comparisons, result.spreads));
+      set.add('compare-estimates.csv', estimatesCsv(result.run.comparisons));
+      set.add('compare.json', JSON.stringify(result.document, null, 2) + '\n');
+      if (result.composites.length > 0) set.add('composite-models.csv', modelsCsv(result.composites));
+      if (drawFigures) {
+        const { renderSectionsTogether } = await import('../render/figures/index.js');
+        const { models } = resolveModels(options.models);
+        for (const [index, comparison] of result.run.comparisons.entries()) {
+          const figure = renderSectionsTogether(sectionDocuments(comparison, models), { model: comparison.best?.model });
+          set.add(figureNames[index], figure.bytes);
+        }
       }
+    } catch (error) {
+      set.abandon();
+      throw error;
     }
+    written.push(...set.commit());
   }
   if (options.json) {
     process.stdout.write(JSON.stringify(result.document, null, 2) + '\n');

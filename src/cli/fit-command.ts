@@ -18,7 +18,7 @@ import { intervalOptions } from '../fit/intervals.js';
 import { attachCovariates, extensionSettings, extrasDocument, lineageExtras, modelsForLineage, searchProgress, type ExtensionOptions, type LineageExtras } from './fit-extensions.js';
 import type { FigureCommandOptions } from './render-command.js';
 import { toolVersion } from './version.js';
-import { inputPaths, prepareOutputFolder, writeAtomically } from './write-output.js';
+import { checkOutputFile, inputPaths, OutputSet, prepareOutputFolder } from './write-output.js';
 
 /** Options of `stratotrend fit`. */
 export interface FitCommandOptions extends AgeModelOptions, SampleFileOptions, FigureCommandOptions, ExtensionOptions {
@@ -148,6 +148,8 @@ function fitOptionsOf(options: FitCommandOptions, lineageCount: number): FitOpti
 
 /** `stratotrend fit FILE`: print the model table (or JSON) and write outputs with --out. */
 export async function fitCommand(file: string, options: FitCommandOptions): Promise<void> {
+  // A report name that would overwrite an input or a file stratotrend did not write is refused before fitting.
+  if (options.report) checkOutputFile(options.report, inputPaths(file, options), '--report file');
   const run = await runFitStreamed(file, options);
   // Age model: extrapolated horizons in words, and the Monte Carlo over tie ages (--age-draws).
   const { fitAgeDraws } = await import('./compare-command.js');
@@ -160,10 +162,18 @@ export async function fitCommand(file: string, options: FitCommandOptions): Prom
   const figurePlan = figures ? figures.planFigureFiles(lineageDocuments, options) : null;
   if (options.out) {
     const folder = prepareOutputFolder(options.out, inputPaths(file, options), ['models.csv', 'fit.json', ...(summary ? ['compilation.png'] : []), ...(figurePlan?.names ?? [])]);
-    writeAtomically(join(folder, 'models.csv'), modelsCsv(run.fits));
-    writeAtomically(join(folder, 'fit.json'), JSON.stringify(run.document, null, 2) + '\n');
-    if (compilation && summary) await compilation.writeCompilationFigure(summary, folder);
-    if (figures && figurePlan) figures.writeFigureFiles(lineageDocuments, figurePlan, folder);
+    // The whole set is written first and put in place at the end: a full disk leaves the previous run's set whole.
+    const set = new OutputSet(folder, options.out);
+    try {
+      set.add('models.csv', modelsCsv(run.fits));
+      set.add('fit.json', JSON.stringify(run.document, null, 2) + '\n');
+      if (compilation && summary) await compilation.writeCompilationFigure(summary, set);
+      if (figures && figurePlan) figures.writeFigureFiles(lineageDocuments, figurePlan, set);
+    } catch (error) {
+      set.abandon();
+      throw error;
+    }
+    set.commit();
   }
   if (options.json) {
     process.stdout.write(JSON.stringify(run.document, null, 2) + '\n');

@@ -14,7 +14,7 @@ import {
   type FigureKind,
   type FigureOptions,
 } from '../render/figures/index.js';
-import { prepareOutputFolder, writeAtomically } from './write-output.js';
+import { OutputSet, prepareOutputFolder } from './write-output.js';
 
 /** Figure options as commander hands them over (strings until checked). */
 export interface FigureCommandOptions {
@@ -89,12 +89,13 @@ export function planFigureFiles(lineages: readonly unknown[], options: FigureCom
 }
 
 /**
- * Draw the planned figures and write them into `folder` (already prepared
- * with `prepareOutputFolder`, which claimed the names).
+ * Draw the planned figures and add them to `set` (an output set of a folder
+ * prepared with `prepareOutputFolder`, which claimed the names); they are put
+ * in place with the rest of the set by `set.commit()`.
  *
  * @returns the file names written, in drawing order
  */
-export function writeFigureFiles(lineages: readonly unknown[], plan: FigurePlanForFolder, folder: string): string[] {
+export function writeFigureFiles(lineages: readonly unknown[], plan: FigurePlanForFolder, set: OutputSet): string[] {
   const written: string[] = [];
   const total = plan.names.length;
   // Hundreds of lineages mean hundreds of figures at about half a second each at 600 dpi: say how far it got.
@@ -110,7 +111,7 @@ export function writeFigureFiles(lineages: readonly unknown[], plan: FigurePlanF
             ? renderModelSupport(documents[0], options)
             : renderSectionsTogether(documents, options);
       const name = `${job.stem}.${format}`;
-      writeAtomically(join(folder, name), figure.bytes);
+      set.add(name, figure.bytes);
       written.push(name);
       progress?.(written.length);
     }
@@ -186,6 +187,15 @@ export function redrawCommand(file: string, options: RedrawCommandOptions): void
   if (plan.jobs.length === 0) throw usageError('nothing to draw (a sections figure needs a trait measured in two or more sections)');
   const out = options.out ?? dirname(file);
   const folder = prepareOutputFolder(out, [file], plan.names);
-  const written = namingFile(file, () => writeFigureFiles(lineages, plan, folder));
+  const set = new OutputSet(folder, out);
+  const written = namingFile(file, () => {
+    try {
+      return writeFigureFiles(lineages, plan, set);
+    } catch (error) {
+      set.abandon();
+      throw error;
+    }
+  });
+  set.commit();
   if (!options.quiet) process.stdout.write(written.map((name) => join(out, name)).join('\n') + '\n');
 }

@@ -7,7 +7,7 @@ import { sketchTrajectory } from '../render/report/sketch-figure.js';
 import { traitUnitLabel } from '../render/units.js';
 import { runFitStreamed, type FitCommandOptions, type FitRun } from './fit-command.js';
 import type { StreamedInput } from './input.js';
-import { inputPaths, refuseInputPath, writeAtomically } from './write-output.js';
+import { checkOutputFile, inputPaths, prepareOutputFile, writeAtomically } from './write-output.js';
 
 /** Options of `stratotrend report` (the fit options plus where and how to write the page). */
 export interface ReportCommandOptions extends FitCommandOptions {
@@ -306,11 +306,12 @@ export async function writeReportForRun(
   inputs: readonly string[],
   fitOptions: { orientation?: string; drawModel?: string; smoothedBand?: boolean; ageModel?: string; covariateFile?: string } = {},
 ): Promise<void> {
-  refuseInputPath(path, inputs);
+  checkOutputFile(path, inputs, '--report file');
   // The layout choices and the extra input files carry over from fit; fit's --figure-format names files, the page takes SVG.
   const { orientation, drawModel, smoothedBand, ageModel, covariateFile } = fitOptions;
   const html = await buildReport(asFitDocument(run.document), { orientation, drawModel, smoothedBand, ageModel, covariateFile });
-  writeAtomically(path, html);
+  // Like every output name: never over an input, nor over a file stratotrend did not write.
+  writeAtomically(prepareOutputFile(path, inputs, '--report file'), html);
 }
 
 /**
@@ -320,7 +321,7 @@ export async function writeReportForRun(
 export async function reportCommand(file: string, options: ReportCommandOptions): Promise<void> {
   const path = options.out ?? defaultReportFile;
   if (!/\.html?$/i.test(path)) throw usageError(`--out: the report is one HTML file; give a name ending in .html, got "${path}"`);
-  refuseInputPath(path, inputPaths(file, options));
+  checkOutputFile(path, inputPaths(file, options), '--out file');
   let html: string;
   let warningLines: string[] = [];
   if (/\.json$/i.test(file)) {
@@ -346,7 +347,7 @@ export async function reportCommand(file: string, options: ReportCommandOptions)
       .filter((warning) => warning.category !== 'at-bound' && warning.category !== 'not-compared')
       .map((warning) => `warning (${warning.category}): ${warning.message}${warning.count > 1 ? ` (${warning.count} times)` : ''}`);
   }
-  writeAtomically(path, html);
+  writeAtomically(prepareOutputFile(path, inputPaths(file, options), '--out file'), html);
   if (!options.quiet) process.stdout.write(`Wrote the report to ${path} (${Math.round(Buffer.byteLength(html) / 1024)} kB, one self-contained HTML file)\n`);
   for (const line of warningLines) process.stderr.write(`${line}\n`);
 }
