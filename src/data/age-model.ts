@@ -1,5 +1,6 @@
 import { InputError } from './errors.js';
 import type { Table } from './read-table.js';
+import { numberCell } from './samples.js';
 import type { RandomSource } from '../simulate/random.js';
 
 /** One tie point: a stratigraphic height in a section with a known age. */
@@ -39,8 +40,6 @@ export interface SedimentationSegment {
   readonly rate: number;
 }
 
-const numberPattern = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
-
 /**
  * Read a tie-point table: columns `section` (optional), `height` or `depth`
  * (one of them; a depth d below the datum is read as height -d, so deeper is
@@ -68,15 +67,9 @@ export function readAgeModel(table: Table, options: { decimalComma?: boolean } =
     }
   }
   const positionKind = hasHeight ? 'height' : 'depth';
-  const number = (cells: readonly string[], line: number, name: string): number => {
-    const raw = cells[column(name)];
-    const text = options.decimalComma ? raw.replace(',', '.') : raw;
-    if (raw === '') throw new InputError('is empty, expected a number', { file, line, column: name });
-    if (!numberPattern.test(text)) throw new InputError(`must be a finite number, got "${raw}"`, { file, line, column: name });
-    const value = Number(text);
-    if (!Number.isFinite(value)) throw new InputError(`must be a finite number, got "${raw}"`, { file, line, column: name });
-    return value;
-  };
+  // The samples file's one cell parser, so ties are range-checked like every other number (magnitude 1e-100..1e100 or 0).
+  const number = (cells: readonly string[], line: number, name: string): number =>
+    numberCell(cells[column(name)], { file, line, column: name }, options.decimalComma === true);
   const grouped = new Map<string, TiePoint[]>();
   for (const { line, cells } of table.rows) {
     const section = column('section') >= 0 ? cells[column('section')] : '';
