@@ -161,8 +161,8 @@ function lineageMatches(document: unknown, wanted: readonly string[]): boolean {
   const doc = document as { section?: unknown; trait?: unknown };
   const section = typeof doc.section === 'string' ? doc.section : '';
   const trait = typeof doc.trait === 'string' ? doc.trait : '';
-  const names = [section, trait, [section, trait].filter((part) => part !== '').join(' / ')].map((name) => name.toLowerCase());
-  return wanted.some((name) => names.includes(name.trim().toLowerCase()));
+  const names = [section, trait, [section, trait].filter((part) => part !== '').join(' / ')].map((name) => name.normalize('NFC').toLowerCase());
+  return wanted.some((name) => names.includes(name.trim().normalize('NFC').toLowerCase()));
 }
 
 /** Run `work`; a data error from the figure input (which knows no file) is re-raised naming the fit document. */

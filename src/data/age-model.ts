@@ -72,7 +72,8 @@ export function readAgeModel(table: Table, options: { decimalComma?: boolean } =
     numberCell(cells[column(name)], { file, line, column: name }, options.decimalComma === true);
   const grouped = new Map<string, TiePoint[]>();
   for (const { line, cells } of table.rows) {
-    const section = column('section') >= 0 ? cells[column('section')] : '';
+    // NFC like the samples' names, so the ties of "Café" serve its horizons whichever form either file uses.
+    const section = column('section') >= 0 ? cells[column('section')].normalize('NFC') : '';
     const position = number(cells, line, positionKind);
     const age = number(cells, line, 'age');
     let ageSd = 0;

@@ -215,9 +215,14 @@ export class HorizonCollector {
     return numberCell(cells[this.index(name)], { file: this.plan.file, line, column: name }, this.options.decimalComma === true);
   }
 
+  /**
+   * A section or trait name in Unicode normal form C, so a name typed with a
+   * composed "é" and one with "e" + combining accent (which print alike) are
+   * one lineage.
+   */
   private label(cells: readonly string[], name: string): string {
     const at = this.index(name);
-    return at >= 0 ? cells[at] : '';
+    return at >= 0 ? cells[at].normalize('NFC') : '';
   }
 
   /** Validate and take one data row (cells in header order). */
