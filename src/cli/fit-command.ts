@@ -89,6 +89,9 @@ export async function runFitStreamed(file: string, options: FitCommandOptions): 
   const lineages = options.covariateFile ? attachCovariates(read, options.covariateFile) : read;
   // Many lineages are fitted on worker threads (same numbers, input order; see src/parallel/fit-lineages.ts).
   const { models } = resolveModels(options.models);
+  // Shift searches grow with the square of the horizons: refuse what cannot be held, announce a long run with its estimate.
+  const { checkShiftSearchCost } = await import('./run-cost.js');
+  checkShiftSearchCost(lineages, models, { minimumSegment: extensionSettings(options).minimumSegment, threads: options.threads, warnings });
   const fits = await fitLineages(lineages, models, fitOptionsOf(options, lineages.length), {
     threads: options.threads,
     onProgress: fittingProgress(lineages.length, options),
@@ -160,6 +163,11 @@ export async function fitCommand(file: string, options: FitCommandOptions): Prom
   const figures = options.out && options.figures !== false ? await import('./render-command.js') : null;
   const lineageDocuments = (run.document as { lineages: unknown[] }).lineages;
   const figurePlan = figures ? figures.planFigureFiles(lineageDocuments, options) : null;
+  const longDrawing = figures && figurePlan ? figures.figureTimeWarning(figurePlan, 'to skip them, run with --no-figures and draw the ones you need later with "stratotrend redraw fit.json --lineage NAME"') : null;
+  if (longDrawing && options.out) {
+    run.warnings.add('long-run', longDrawing);
+    process.stderr.write(`warning (long-run): ${longDrawing}\n`);
+  }
   if (options.out) {
     const folder = prepareOutputFolder(options.out, inputPaths(file, options), ['models.csv', 'fit.json', ...(summary ? ['compilation.png'] : []), ...(figurePlan?.names ?? [])]);
     // The whole set is written first and put in place at the end: a full disk leaves the previous run's set whole.
@@ -189,7 +197,8 @@ export async function fitCommand(file: string, options: FitCommandOptions): Prom
     if (!options.quiet && !options.json) process.stdout.write(`Wrote the report to ${options.report}\n`);
   }
   for (const warning of run.warnings.list()) {
-    if (warning.category === 'at-bound' || warning.category === 'not-compared') continue;
+    // at-bound and not-compared are in the tables; long-run was printed before fitting.
+    if (warning.category === 'at-bound' || warning.category === 'not-compared' || warning.category === 'long-run') continue;
     process.stderr.write(`warning (${warning.category}): ${warning.message}${warning.count > 1 ? ` (${warning.count} times)` : ''}\n`);
   }
 }

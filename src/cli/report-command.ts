@@ -344,7 +344,7 @@ export async function reportCommand(file: string, options: ReportCommandOptions)
     const analyses = await runAnalyses(file, document, options, run.read);
     html = await buildReport(document, options, { analyses });
     warningLines = run.warnings.list()
-      .filter((warning) => warning.category !== 'at-bound' && warning.category !== 'not-compared')
+      .filter((warning) => warning.category !== 'at-bound' && warning.category !== 'not-compared' && warning.category !== 'long-run')
       .map((warning) => `warning (${warning.category}): ${warning.message}${warning.count > 1 ? ` (${warning.count} times)` : ''}`);
   }
   writeAtomically(prepareOutputFile(path, inputPaths(file, options), '--out file'), html);

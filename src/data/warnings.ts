@@ -12,6 +12,7 @@ export type WarningCategory =
   | 'not-compared'
   | 'not-converged'
   | 'duplicate-time'
+  | 'long-run'
   | 'input';
 
 /** A folded warning: what, about which lineage, and how often it was raised. */
