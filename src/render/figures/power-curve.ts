@@ -3,7 +3,7 @@ import { drawFigure, measureText, type FigurePlan, type RenderedFigure } from '.
 import { pointsPerCm, resolveFigureOptions, type FigureOptions } from './figure-options.js';
 import { font, wrapText } from './marks.js';
 import { ink, lineWidth, seriesStyles, typeSize } from './style.js';
-import { fittedTicks, tickLabel, type RoundStep } from './ticks.js';
+import { drawableLimits, fittedTicks, tickLabel, type RoundStep } from './ticks.js';
 import { traitUnitLabel } from '../units.js';
 
 /** What the power-curve figure needs: the grid of `power --json` and a few words about the design. */
@@ -93,6 +93,8 @@ export function powerCurvePlan(input: PowerCurveInput, options: FigureOptions = 
   ];
   const maximumDrift = Math.max(...input.grid.map((point) => point.drift));
   const minimumDrift = Math.min(0, ...input.grid.map((point) => point.drift));
+  // A power document read back (report --attach) may carry any numbers: limits chart.js cannot lay out are refused, not handed to it.
+  if (maximumDrift !== minimumDrift) drawableLimits({ min: minimumDrift, max: maximumDrift }, 'drift axis');
   const notePlugin: Plugin = {
     id: 'stratotrendPowerNote',
     afterDraw(chart) {

@@ -89,6 +89,19 @@ describe('tick helpers end for any finite input', () => {
   });
 });
 
+describe('the power curve refuses a drift axis chart.js cannot lay out', () => {
+  it('drifts near 1e-310 (a hand-edited power document) give one message, no hang', () => {
+    const power = pathToFileURL(join(root, 'dist', 'src', 'render', 'figures', 'power-curve.js')).href;
+    const script = `const { renderPowerCurve } = await import(${JSON.stringify(power)});
+const grid = [0, 1, 2, 3].map((k) => ({ drift: k * 1e-310, drift_sd: 0, p_best: 0.1 * k, p_weight: 0.1 * k, p_lrt: 0.1 * k }));
+try { renderPowerCurve({ grid, lineage: 'invented', horizons: 20, replicates: 20, timeUnit: 'Myr', weightThreshold: 0.9, targetPower: 0.8, level: 0.05, withinSd: 1 }); process.stdout.write('drawn'); }
+catch (error) { process.stdout.write(error.message); }`;
+    const run = spawnSync(process.execPath, ['--input-type=module', '-e', script], { encoding: 'utf8', timeout: 60_000 });
+    expect(run.signal, 'the drawing did not end (killed by the hang detector)').toBeNull();
+    expect(run.stdout).toMatch(/^cannot draw the drift axis: its values run from 0 to 3e-310; /);
+  });
+});
+
 describe('redraw and report on a fit.json with subnormal times end with one message (issue 23)', () => {
   it('exit 1, one line, no hang', () => {
     const folder = mkdtempSync(join(tmpdir(), 'stratotrend-subnormal-'));
