@@ -227,6 +227,9 @@ export async function runCompare(file: string, options: CompareCommandOptions, r
     lineagesOf(samples, options, log, model ? { ageOf: ageFunction(model, { extrapolate: options.extrapolate, samplesFile: input.name }) } : {});
   const lineages = lineagesUnder(age?.model ?? null, warnings);
   if (age) warnUnusedAgeModel(lineages, age.model, warnings);
+  // The same limits as fit for the shift searches of each section (refusal above the placement limit, long-run warning).
+  const { checkShiftSearchCost } = await import('./run-cost.js');
+  checkShiftSearchCost(lineages, models, { warnings });
   const run = compareTraits(lineages, models, { intervals: options.intervals !== false });
   for (const skipped of run.skipped) warnings.add('input', `trait "${skipped.trait}": ${skipped.reason}`);
   const composites: LineageFit[] = [];
@@ -340,6 +343,7 @@ export async function compareCommand(file: string, options: CompareCommandOption
     if (written.length > 0) process.stdout.write(`\nWrote ${written.join(', ')} to ${options.out}\n`);
   }
   for (const warning of result.warnings.list()) {
+    if (warning.category === 'long-run') continue; // printed before the run
     process.stderr.write(`warning (${warning.category}): ${warning.message}${warning.count > 1 ? ` (${warning.count} times)` : ''}\n`);
   }
 }

@@ -96,4 +96,15 @@ describe('fit --models extended on a very long lineage (real CLI)', () => {
     expect(run.status).toBe(2);
     expect(run.stderr).toMatch(/^stratotrend: --models: lineage "lineage" has 100,000 horizons; punctuated-2, punctuated-2-separate would search [\d,]+ placements .*Leave them out: --models [a-z0-9,-]+\n$/);
   });
+
+  it('compare applies the same check to each section', () => {
+    const folder = mkdtempSync(join(tmpdir(), 'stratotrend-cost-'));
+    // Invented: two sections of 2,100 horizons; C(2100 − 13, 2) = 2,176,741 placements for two shifts.
+    const rows = ['section,age,n,mean,sd'];
+    for (const section of ['Ash Ledge', 'Brisk Ledge']) for (let i = 0; i < 2100; i++) rows.push(`${section},${(2100 - i) / 100},20,${(5 + Math.sin(i / 30)).toFixed(4)},0.5`);
+    writeFileSync(join(folder, 'two.csv'), rows.join('\n') + '\n');
+    const run = runCli(['compare', 'two.csv', '--models', 'extended'], folder);
+    expect(run.status).toBe(2);
+    expect(run.stderr).toMatch(/^stratotrend: --models: lineage "Ash Ledge" has 2,100 horizons; punctuated-2, punctuated-2-separate would search 2,176,741 placements /);
+  });
 });
