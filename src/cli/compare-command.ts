@@ -17,7 +17,7 @@ import { formatNumber } from '../render/units.js';
 import { resolveModels } from './fit-command.js';
 import { delimiterOption, lineagesOf, loadSamplesStreamed, readInput, terminalProgress, type InputText, type SampleFileOptions, type StreamedInput } from './input.js';
 import { toolVersion } from './version.js';
-import { inputPaths, OutputSet, prepareOutputFolder } from './write-output.js';
+import { inputPaths, OutputSet, prepareOutputFolder, releaseOutputLocks } from './write-output.js';
 
 /** Options of the age model, shared by `fit` and `compare`. */
 export interface AgeModelOptions {
@@ -299,6 +299,14 @@ export function sectionDocuments(comparison: TraitComparison, models: ReturnType
 
 /** `stratotrend compare FILE`: print the comparison tables (or JSON) and write outputs with --out. */
 export async function compareCommand(file: string, options: CompareCommandOptions): Promise<void> {
+  try {
+    await compareAndWrite(file, options);
+  } finally {
+    releaseOutputLocks();
+  }
+}
+
+async function compareAndWrite(file: string, options: CompareCommandOptions): Promise<void> {
   const result = await runCompare(file, options);
   const written: string[] = [];
   if (options.out) {

@@ -18,7 +18,7 @@ import { intervalOptions } from '../fit/intervals.js';
 import { attachCovariates, extensionSettings, extrasDocument, lineageExtras, modelsForLineage, searchProgress, type ExtensionOptions, type LineageExtras } from './fit-extensions.js';
 import type { FigureCommandOptions } from './render-command.js';
 import { toolVersion } from './version.js';
-import { checkOutputFile, inputPaths, OutputSet, prepareOutputFolder } from './write-output.js';
+import { checkOutputFile, inputPaths, OutputSet, prepareOutputFolder, releaseOutputLocks } from './write-output.js';
 
 /** Options of `stratotrend fit`. */
 export interface FitCommandOptions extends AgeModelOptions, SampleFileOptions, FigureCommandOptions, ExtensionOptions {
@@ -151,6 +151,14 @@ function fitOptionsOf(options: FitCommandOptions, lineageCount: number): FitOpti
 
 /** `stratotrend fit FILE`: print the model table (or JSON) and write outputs with --out. */
 export async function fitCommand(file: string, options: FitCommandOptions): Promise<void> {
+  try {
+    await fitAndWrite(file, options);
+  } finally {
+    releaseOutputLocks();
+  }
+}
+
+async function fitAndWrite(file: string, options: FitCommandOptions): Promise<void> {
   // A report name that would overwrite an input or a file stratotrend did not write is refused before fitting.
   if (options.report) checkOutputFile(options.report, inputPaths(file, options), '--report file');
   const run = await runFitStreamed(file, options);

@@ -15,7 +15,7 @@ import {
   type FigureOptions,
 } from '../render/figures/index.js';
 import { durationWords } from './run-cost.js';
-import { OutputSet, prepareOutputFolder } from './write-output.js';
+import { OutputSet, prepareOutputFolder, releaseOutputLocks } from './write-output.js';
 import { WarningLog } from '../data/warnings.js';
 
 /** Figure options as commander hands them over (strings until checked). */
@@ -205,6 +205,14 @@ function namingFile<T>(file: string, work: () => T): T {
 
 /** `stratotrend redraw FIT_JSON`: draw the figures of a saved fit again, without refitting. */
 export function redrawCommand(file: string, options: RedrawCommandOptions): void {
+  try {
+    redrawAndWrite(file, options);
+  } finally {
+    releaseOutputLocks();
+  }
+}
+
+function redrawAndWrite(file: string, options: RedrawCommandOptions): void {
   const all = readFitDocument(file);
   const wanted = options.lineage ?? [];
   const lineages = all.filter((document) => lineageMatches(document, wanted));

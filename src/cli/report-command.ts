@@ -7,7 +7,7 @@ import { sketchTrajectory } from '../render/report/sketch-figure.js';
 import { traitUnitLabel } from '../render/units.js';
 import { runFitStreamed, type FitCommandOptions, type FitRun } from './fit-command.js';
 import type { StreamedInput } from './input.js';
-import { checkOutputFile, inputPaths, prepareOutputFile, writeAtomically } from './write-output.js';
+import { checkOutputFile, inputPaths, prepareOutputFile, releaseOutputLocks, writeAtomically } from './write-output.js';
 
 /** Options of `stratotrend report` (the fit options plus where and how to write the page). */
 export interface ReportCommandOptions extends FitCommandOptions {
@@ -319,6 +319,14 @@ export async function writeReportForRun(
  * one self-contained HTML report.
  */
 export async function reportCommand(file: string, options: ReportCommandOptions): Promise<void> {
+  try {
+    await reportAndWrite(file, options);
+  } finally {
+    releaseOutputLocks();
+  }
+}
+
+async function reportAndWrite(file: string, options: ReportCommandOptions): Promise<void> {
   const path = options.out ?? defaultReportFile;
   if (!/\.html?$/i.test(path)) throw usageError(`--out: the report is one HTML file; give a name ending in .html, got "${path}"`);
   checkOutputFile(path, inputPaths(file, options), '--out file');

@@ -335,6 +335,15 @@ export const lockFileName = '.stratotrend-lock';
 /** Folders this process holds the lock of (absolute paths); released when the process exits. */
 const heldLocks = new Set<string>();
 
+/**
+ * Give up every output-folder lock this process holds. Commands call it when
+ * they end, so a process that runs several commands (a test, a library
+ * caller) does not keep its folders locked; process exit does it too.
+ */
+export function releaseOutputLocks(): void {
+  releaseHeldLocks();
+}
+
 function releaseHeldLocks(): void {
   for (const folder of heldLocks) {
     try { unlinkSync(join(folder, lockFileName)); } catch { /* already gone */ }

@@ -20,6 +20,7 @@ import {
   OutputSet,
   prepareOutputFolder,
   releaseOutputFolder,
+  releaseOutputLocks,
   removeStaleTemporaryFiles,
   writeAtomically,
   type OutputFileSystem,
@@ -164,6 +165,12 @@ describe('stale temporary files and the folder lock', () => {
     expect(() => prepareOutputFolder(folder, [], ['report.html'])).not.toThrow();
     releaseOutputFolder(folder);
     expect(existsSync(join(folder, lockFileName))).toBe(false);
+    // Commands give up every lock they took when they end (releaseOutputLocks), so one process can run several.
+    prepareOutputFolder(folder, [], ['fit.json']);
+    prepareOutputFolder(join(folder, 'second'), [], ['fit.json']);
+    releaseOutputLocks();
+    expect(existsSync(join(folder, lockFileName))).toBe(false);
+    expect(existsSync(join(folder, 'second', lockFileName))).toBe(false);
   });
 
   it('fit refuses a folder another running stratotrend holds (exit 2, naming it) and takes over a stale lock', () => {
