@@ -28,7 +28,7 @@ export function defineFitCommand(program: Command): void {
     .option('--intervals <method>', 'how the 95% intervals are made: integrated (default: integrated likelihood, best calibrated; ou and shift models use adjusted), adjusted (restricted profile likelihood), profile (plain profile likelihood, asymptotic) or bootstrap (profile with a parametric-bootstrap cut-off, slower)')
     .option('--quiet', 'print nothing but errors and warnings')
     .option('--no-figures', 'with --out, write no figure files (by default each lineage gets a trajectory and a model-support figure, each trait with several sections a sections figure; drawing estimated over two minutes is announced first)')
-    .option('--report <file>', 'also write one self-contained HTML report (as "stratotrend report" does)')
+    .option('--report <file>', 'also write one self-contained HTML report (as "stratotrend report" does; never over an input, nor over a file of that name stratotrend did not write: checked before fitting)')
     .option('--summary', 'print the cross-lineage summary (wins per model, Akaike weights, drift) instead of one table per lineage; adds "compilation" to the JSON and compilation.png with --out')
     .option('--threads <count>', 'worker threads for many lineages (1 = no workers; default: every core when there are enough lineages to pay off)', parseThreads)
     .addHelpText('after', modelHelp())
