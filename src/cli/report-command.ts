@@ -336,7 +336,13 @@ async function reportAndWrite(file: string, options: ReportCommandOptions): Prom
     // The units are those the fit was made with (fit.json trait_unit); a label here would contradict the saved numbers.
     if (options.traitUnit !== undefined) throw usageError('--trait-unit applies to a samples file; a fit.json keeps the unit it was fitted with (its "trait_unit"); give --trait-unit to "fit" instead');
     const saved = readFitJson(file);
-    html = await buildReport(saved.document, options, { source: { file, sha256: saved.sha256 } });
+    try {
+      html = await buildReport(saved.document, options, { source: { file, sha256: saved.sha256 } });
+    } catch (error) {
+      // A figure that cannot be drawn from the document's numbers (its InputError knows no file) names the fit.json.
+      if (error instanceof InputError && error.kind === 'data' && error.file === undefined) throw new InputError(error.message, { file });
+      throw error;
+    }
   } else {
     if (options.power) {
       // Checked before the fit, so a bad value fails at once and names the report's own option.
