@@ -35,7 +35,7 @@ export const nodeFileSystem: OutputFileSystem = {
  * Temporary files are named `.<target>.<pid>-<random>.tmp`: the process id
  * lets a later run tell a stale file (its process is gone) from one in use.
  */
-const temporaryPattern = /^\..+\.(\d+)(?:-[0-9a-f]+)?\.tmp$/;
+const temporaryPattern = /^\.(.+)\.(\d+)(-[0-9a-f]{12})?\.tmp$/;
 
 /**
  * Write `contents` into a new temporary file beside `path`, flushed to disk.
@@ -426,9 +426,11 @@ function readLock(path: string): { pid: number | null; started: string; command:
 
 /**
  * Remove the temporary files (`.<name>.<pid>-<random>.tmp`, or the older
- * `.<name>.<pid>.tmp`) that runs no longer running left in a folder; those of
- * running processes are left alone. A link at such a name is removed itself,
- * never followed.
+ * `.<name>.<pid>.tmp`) that runs no longer running left in a folder, for the
+ * names stratotrend writes there (listed in {@link ownFilesList}, and the list
+ * itself; a run records its names before writing, so an interrupted run's
+ * files are covered); those of running processes and every other file are
+ * left alone. A link at such a name is removed itself, never followed.
  *
  * @returns the names removed
  */
@@ -440,10 +442,12 @@ export function removeStaleTemporaryFiles(folder: string): string[] {
   } catch {
     return removed;
   }
+  const own = readOwnFiles(folder);
+  own.add(ownFilesList);
   for (const name of entries) {
     const match = temporaryPattern.exec(name);
-    if (!match) continue;
-    const pid = Number(match[1]);
+    if (!match || !own.has(match[1])) continue;
+    const pid = Number(match[2]);
     if (pid === process.pid || processAlive(pid)) continue;
     try {
       unlinkSync(join(folder, name));

@@ -17,6 +17,7 @@ import { describe, expect, it } from 'vitest';
 import {
   lockFileName,
   nodeFileSystem,
+  ownFilesList,
   OutputSet,
   prepareOutputFolder,
   releaseOutputFolder,
@@ -144,16 +145,22 @@ describe('a set of outputs is put in place together', () => {
 });
 
 describe('stale temporary files and the folder lock', () => {
-  it('removes temporary files of runs that ended, keeps those of running processes and other files', () => {
+  it('removes temporary files of runs that ended, for its own names only; keeps those of running processes and other files', () => {
     const folder = freshFolder();
     const gone = endedPid();
-    writeFileSync(join(folder, `.fit.json.${gone}-0a1b2c.tmp`), 'half');
+    writeFileSync(join(folder, ownFilesList), '# list\nfit.json\nmodels.csv\nx.csv\n');
+    writeFileSync(join(folder, `.fit.json.${gone}-0a1b2c3d4e5f.tmp`), 'half');
     writeFileSync(join(folder, `.models.csv.${gone}.tmp`), 'half');
+    writeFileSync(join(folder, `.${ownFilesList}.${gone}-0a1b2c3d4e5f.tmp`), 'half');
     symlinkSync(join(folder, 'keep.txt'), join(folder, `.x.csv.${gone}.tmp`));
     writeFileSync(join(folder, 'keep.txt'), 'keep');
-    writeFileSync(join(folder, `.fit.json.${process.ppid}-0a1b2c.tmp`), 'in use');
-    expect(removeStaleTemporaryFiles(folder).sort()).toEqual([`.fit.json.${gone}-0a1b2c.tmp`, `.models.csv.${gone}.tmp`, `.x.csv.${gone}.tmp`].sort());
-    expect(readdirSync(folder).sort()).toEqual([`.fit.json.${process.ppid}-0a1b2c.tmp`, 'keep.txt']);
+    // A user's file that merely looks like a temporary name (not one of the tool's names) stays.
+    writeFileSync(join(folder, `.notes.${gone}.tmp`), 'mine');
+    writeFileSync(join(folder, `.fit.json.${process.ppid}-0a1b2c3d4e5f.tmp`), 'in use');
+    expect(removeStaleTemporaryFiles(folder).sort()).toEqual(
+      [`.fit.json.${gone}-0a1b2c3d4e5f.tmp`, `.models.csv.${gone}.tmp`, `.${ownFilesList}.${gone}-0a1b2c3d4e5f.tmp`, `.x.csv.${gone}.tmp`].sort(),
+    );
+    expect(readdirSync(folder).sort()).toEqual([`.fit.json.${process.ppid}-0a1b2c3d4e5f.tmp`, `.notes.${gone}.tmp`, ownFilesList, 'keep.txt'].sort());
     expect(readFileSync(join(folder, 'keep.txt'), 'utf8')).toBe('keep');
   });
 
@@ -187,7 +194,8 @@ describe('stale temporary files and the folder lock', () => {
 
     const gone = endedPid();
     writeFileSync(join(folder, 'out', lockFileName), `pid ${gone}\nstarted 2026-01-02T03:04:05.000Z\n`);
-    writeFileSync(join(folder, 'out', `.fit.json.${gone}-00ff.tmp`), 'interrupted');
+    writeFileSync(join(folder, 'out', ownFilesList), '# list\nfit.json\nmodels.csv\n');
+    writeFileSync(join(folder, 'out', `.fit.json.${gone}-00ff00ff00ff.tmp`), 'interrupted');
     const run = runCli(['fit', join(corpus, 'clean.csv'), '--out', 'out', '--no-intervals', '--no-figures', '--quiet'], folder);
     expect(run.stderr).toBe('');
     expect(run.status).toBe(0);
