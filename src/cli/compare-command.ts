@@ -1,4 +1,3 @@
-import { join } from 'node:path';
 import { ageFunction, hasAgeUncertainty, readAgeModel, sedimentationRates, type AgeModel } from '../data/age-model.js';
 import { usageError } from '../data/errors.js';
 import { readTable } from '../data/read-table.js';

@@ -1,4 +1,3 @@
-import { join } from 'node:path';
 import { usageError } from '../data/errors.js';
 import { WarningLog } from '../data/warnings.js';
 import { fitLineage, type LineageFit } from '../fit/fit-lineage.js';
