@@ -1,5 +1,7 @@
 import { join } from 'node:path';
-import { ageFunction, hasAgeUncertainty, sedimentationRates, type AgeModel } from '../data/age-model.js';
+import { ageFunction, hasAgeUncertainty, readAgeModel, sedimentationRates, type AgeModel } from '../data/age-model.js';
+import { usageError } from '../data/errors.js';
+import { readTable } from '../data/read-table.js';
 import type { SampleSet } from '../data/samples.js';
 import { WarningLog } from '../data/warnings.js';
 import { ageMonteCarlo, summariseDraws, type CandidateSpread, type RankedCandidate } from '../compare/age-uncertainty.js';
@@ -20,7 +22,7 @@ import { ageModelHook, parseDrawOptions, warnUnusedAgeModel, type AgeModelOption
 import { lineagesOf, loadSamplesStreamed, terminalProgress, type SampleFileOptions, type StreamedInput } from './input.js';
 import { toolVersion } from './version.js';
 import type { PowerProgress } from '../simulate/power.js';
-import { inputPaths, prepareOutputFolder, writeAtomically } from './write-output.js';
+import { inputPaths, OutputSet, prepareOutputFolder, releaseOutputLocks, writeAtomically } from './write-output.js';
 
 // The age-model options moved to age-model-options.ts (shared by every samples-reading command); re-exported for callers of this module.
 export { ageModelHook, loadAgeModel, parseDrawOptions, warnUnusedAgeModel, type AgeModelOptions, type LoadedAgeModel } from './age-model-options.js';
@@ -222,6 +224,9 @@ export async function runCompare(file: string, options: CompareCommandOptions, r
     lineagesOf(samples, options, log, model ? { ageOf: ageFunction(model, { extrapolate: options.extrapolate, samplesFile: input.name }) } : {});
   const lineages = lineagesUnder(age?.model ?? null, warnings);
   if (age) warnUnusedAgeModel(lineages, age.model, warnings);
+  // The same limits as fit for the shift searches of each section (refusal above the placement limit, long-run warning).
+  const { checkShiftSearchCost } = await import('./run-cost.js');
+  checkShiftSearchCost(lineages, models, { warnings });
   const run = compareTraits(lineages, models, intervals);
   for (const skipped of run.skipped) warnings.add('input', `trait "${skipped.trait}": ${skipped.reason}`);
   const composites: LineageFit[] = [];
@@ -314,6 +319,14 @@ export function sectionDocuments(comparison: TraitComparison, models: ReturnType
 
 /** `stratotrend compare FILE`: print the comparison tables (or JSON) and write outputs with --out. */
 export async function compareCommand(file: string, options: CompareCommandOptions): Promise<void> {
+  try {
+    await compareAndWrite(file, options);
+  } finally {
+    releaseOutputLocks();
+  }
+}
+
+async function compareAndWrite(file: string, options: CompareCommandOptions): Promise<void> {
   // A progress bar for the age draws, on a terminal only (stderr), not with --quiet.
   const { progressReporter } = await import('./power-command.js');
   const reporter = await progressReporter(options.quiet);
@@ -330,23 +343,26 @@ export async function compareCommand(file: string, options: CompareCommandOption
     const figureNames = drawFigures ? result.run.comparisons.map((comparison, index) => `sections-${index + 1}-${slug(comparison.trait)}.png`) : [];
     const names = ['compare.csv', 'compare-estimates.csv', 'compare.json', ...(result.composites.length > 0 ? ['composite-models.csv'] : []), ...figureNames];
     const folder = prepareOutputFolder(options.out, inputs, names);
-    writeAtomically(join(folder, 'compare.csv'), comparisonCsv(result.run.comparisons, result.spreads));
-    writeAtomically(join(folder, 'compare-estimates.csv'), estimatesCsv(result.run.comparisons));
-    writeAtomically(join(folder, 'compare.json'), JSON.stringify(result.document, null, 2) + '\n');
-    written.push('compare.csv', 'compare-estimates.csv', 'compare.json');
-    if (result.composites.length > 0) {
-      writeAtomically(join(folder, 'composite-models.csv'), modelsCsv(result.composites));
-      written.push('composite-models.csv');
-    }
-    if (drawFigures) {
-      const { renderSectionsTogether } = await import('../render/figures/index.js');
-      const { models } = resolveModels(options.models);
-      for (const [index, comparison] of result.run.comparisons.entries()) {
-        const figure = renderSectionsTogether(sectionDocuments(comparison, models), { model: comparison.best?.model });
-        writeAtomically(join(folder, figureNames[index]), figure.bytes);
-        written.push(figureNames[index]);
+    // Written as one set, put in place at the end (a full disk leaves the previous set whole).
+    const set = new OutputSet(folder, options.out);
+    try {
+      set.add('compare.csv', comparisonCsv(result.run.comparisons, result.spreads));
+      set.add('compare-estimates.csv', estimatesCsv(result.run.comparisons));
+      set.add('compare.json', JSON.stringify(result.document, null, 2) + '\n');
+      if (result.composites.length > 0) set.add('composite-models.csv', modelsCsv(result.composites));
+      if (drawFigures) {
+        const { renderSectionsTogether } = await import('../render/figures/index.js');
+        const { models } = resolveModels(options.models);
+        for (const [index, comparison] of result.run.comparisons.entries()) {
+          const figure = renderSectionsTogether(sectionDocuments(comparison, models), { model: comparison.best?.model });
+          set.add(figureNames[index], figure.bytes);
+        }
       }
+    } catch (error) {
+      set.abandon();
+      throw error;
     }
+    written.push(...set.commit());
   }
   if (options.json) {
     process.stdout.write(JSON.stringify(result.document, null, 2) + '\n');
@@ -363,6 +379,7 @@ export async function compareCommand(file: string, options: CompareCommandOption
     if (written.length > 0) process.stdout.write(`\nWrote ${written.join(', ')} to ${options.out}\n`);
   }
   for (const warning of result.warnings.list()) {
+    if (warning.category === 'long-run') continue; // printed before the run
     process.stderr.write(`warning (${warning.category}): ${warning.message}${warning.count > 1 ? ` (${warning.count} times)` : ''}\n`);
   }
 }

@@ -1,4 +1,3 @@
-import { join } from 'node:path';
 import { usageError } from '../data/errors.js';
 import { WarningLog } from '../data/warnings.js';
 import { fitLineage, type LineageFit } from '../fit/fit-lineage.js';
@@ -18,7 +17,7 @@ import { intervalOptions } from '../fit/intervals.js';
 import { attachCovariates, extensionSettings, extrasDocument, lineageExtras, modelsForLineage, searchProgress, type ExtensionOptions, type LineageExtras } from './fit-extensions.js';
 import type { FigureCommandOptions } from './render-command.js';
 import { toolVersion } from './version.js';
-import { inputPaths, prepareOutputFolder, writeAtomically } from './write-output.js';
+import { checkOutputFile, inputPaths, OutputSet, prepareOutputFolder, releaseOutputLocks } from './write-output.js';
 
 /** Options of `stratotrend fit`. */
 export interface FitCommandOptions extends AgeModelOptions, SampleFileOptions, FigureCommandOptions, ExtensionOptions {
@@ -92,6 +91,9 @@ export async function runFitStreamed(file: string, options: FitCommandOptions): 
   const lineages = options.covariateFile ? attachCovariates(read, options.covariateFile) : read;
   // Many lineages are fitted on worker threads (same numbers, input order; see src/parallel/fit-lineages.ts).
   const { models } = resolveModels(options.models);
+  // Shift searches grow with the square of the horizons: refuse what cannot be held, announce a long run with its estimate.
+  const { checkShiftSearchCost } = await import('./run-cost.js');
+  checkShiftSearchCost(lineages, models, { minimumSegment: extensionSettings(options).minimumSegment, threads: options.threads, warnings });
   const fits = await fitLineages(lineages, models, fitOptionsOf(options, lineages.length), {
     threads: options.threads,
     onProgress: fittingProgress(lineages.length, options),
@@ -161,6 +163,16 @@ function fitOptionsOf(options: FitCommandOptions, lineageCount: number): FitOpti
 
 /** `stratotrend fit FILE`: print the model table (or JSON) and write outputs with --out. */
 export async function fitCommand(file: string, options: FitCommandOptions): Promise<void> {
+  try {
+    await fitAndWrite(file, options);
+  } finally {
+    releaseOutputLocks();
+  }
+}
+
+async function fitAndWrite(file: string, options: FitCommandOptions): Promise<void> {
+  // A report name that would overwrite an input or a file stratotrend did not write is refused before fitting.
+  if (options.report) checkOutputFile(options.report, inputPaths(file, options), '--report file');
   const run = await runFitStreamed(file, options);
   // Age model: extrapolated horizons in words, and the Monte Carlo over tie ages (--age-draws).
   const { fitAgeDraws } = await import('./compare-command.js');
@@ -178,12 +190,25 @@ export async function fitCommand(file: string, options: FitCommandOptions): Prom
   const figures = options.out && options.figures !== false ? await import('./render-command.js') : null;
   const lineageDocuments = (run.document as { lineages: unknown[] }).lineages;
   const figurePlan = figures ? figures.planFigureFiles(lineageDocuments, options) : null;
+  const longDrawing = figures && figurePlan ? figures.figureTimeWarning(figurePlan, 'to skip them, run with --no-figures and draw the ones you need later with "stratotrend redraw fit.json --lineage NAME"') : null;
+  if (longDrawing && options.out) {
+    run.warnings.add('long-run', longDrawing);
+    process.stderr.write(`warning (long-run): ${longDrawing}\n`);
+  }
   if (options.out) {
     const folder = prepareOutputFolder(options.out, inputPaths(file, options), ['models.csv', 'fit.json', ...(summary ? ['compilation.png'] : []), ...(figurePlan?.names ?? [])]);
-    writeAtomically(join(folder, 'models.csv'), modelsCsv(run.fits));
-    writeAtomically(join(folder, 'fit.json'), JSON.stringify(run.document, null, 2) + '\n');
-    if (compilation && summary) await compilation.writeCompilationFigure(summary, folder);
-    if (figures && figurePlan) figures.writeFigureFiles(lineageDocuments, figurePlan, folder);
+    // The whole set is written first and put in place at the end: a full disk leaves the previous run's set whole.
+    const set = new OutputSet(folder, options.out);
+    try {
+      set.add('models.csv', modelsCsv(run.fits));
+      set.add('fit.json', JSON.stringify(run.document, null, 2) + '\n');
+      if (compilation && summary) await compilation.writeCompilationFigure(summary, set);
+      if (figures && figurePlan) figures.writeFigureFiles(lineageDocuments, figurePlan, set);
+    } catch (error) {
+      set.abandon();
+      throw error;
+    }
+    set.commit();
   }
   if (options.json) {
     process.stdout.write(JSON.stringify(run.document, null, 2) + '\n');
@@ -199,7 +224,8 @@ export async function fitCommand(file: string, options: FitCommandOptions): Prom
     if (!options.quiet && !options.json) process.stdout.write(`Wrote the report to ${options.report}\n`);
   }
   for (const warning of run.warnings.list()) {
-    if (warning.category === 'at-bound' || warning.category === 'not-compared') continue;
+    // at-bound and not-compared are in the tables; long-run was printed before fitting.
+    if (warning.category === 'at-bound' || warning.category === 'not-compared' || warning.category === 'long-run') continue;
     process.stderr.write(`warning (${warning.category}): ${warning.message}${warning.count > 1 ? ` (${warning.count} times)` : ''}\n`);
   }
 }

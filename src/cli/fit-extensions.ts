@@ -75,7 +75,7 @@ export function attachCovariates(lineages: readonly Lineage[], path: string): Li
   if (key === null) throw new InputError('needs an "age", "time", "height" or "depth" column to match horizons', { file: input.name, line: 1 });
   if (column('covariate') < 0) throw new InputError('needs a "covariate" column', { file: input.name, line: 1 });
   const values = table.rows.map((row) => ({
-    section: column('section') >= 0 ? checkName((row.cells[column('section')] ?? '').trim(), { file: input.name, line: row.line, column: 'section' }) : null,
+    section: column('section') >= 0 ? checkName((row.cells[column('section')] ?? '').trim().normalize('NFC'), { file: input.name, line: row.line, column: 'section' }) : null,
     at: numberCell(row.cells[column(key)] ?? '', { file: input.name, line: row.line, column: key }),
     value: numberCell(row.cells[column('covariate')] ?? '', { file: input.name, line: row.line, column: 'covariate' }),
   }));

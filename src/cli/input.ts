@@ -101,7 +101,8 @@ export function traitUnitOption(value: string | readonly string[] | undefined): 
     const trait = given.slice(0, equals).trim();
     if (trait === '') throw new InputError(`--trait-unit: name the trait before "=", got ${JSON.stringify(given)}`, { kind: 'usage' });
     const label = unitLabelText(given.slice(equals + 1), given);
-    const key = trait.toLowerCase();
+    // NFC like the names read from the file (src/data/samples.ts), so either Unicode form of a name matches.
+    const key = trait.normalize('NFC').toLowerCase();
     if (byTrait.has(key)) throw new InputError(`--trait-unit: trait "${trait}" is given a unit twice`, { kind: 'usage' });
     byTrait.set(key, { trait, label });
   }
@@ -110,7 +111,7 @@ export function traitUnitOption(value: string | readonly string[] | undefined): 
 
 /** The unit of one trait under parsed `--trait-unit` values: its own entry, else the label for all, else null. */
 export function traitUnitFor(units: TraitUnits, trait: string): string | null {
-  return units.byTrait.get(trait.trim().toLowerCase())?.label ?? units.all;
+  return units.byTrait.get(trait.trim().normalize('NFC').toLowerCase())?.label ?? units.all;
 }
 
 /** Options shared by every command that reads samples. */
@@ -180,7 +181,7 @@ export function lineagesOf(samples: SampleSet, options: SampleFileOptions, warni
     ...extra,
   });
   // A misspelt trait name would silently leave that trait without its unit.
-  const traits = new Set(lineages.map((lineage) => lineage.trait.trim().toLowerCase()));
+  const traits = new Set(lineages.map((lineage) => lineage.trait.trim().normalize('NFC').toLowerCase()));
   for (const [key, { trait }] of units.byTrait) {
     if (!traits.has(key)) {
       const names = [...new Set(lineages.map((lineage) => lineage.trait))].filter((name) => name !== '');

@@ -8,7 +8,7 @@ import { sketchTrajectory } from '../render/report/sketch-figure.js';
 import { traitUnitLabel } from '../render/units.js';
 import { runFitStreamed, type FitCommandOptions, type FitRun } from './fit-command.js';
 import type { StreamedInput } from './input.js';
-import { inputPaths, refuseInputPath, writeAtomically } from './write-output.js';
+import { checkOutputFile, inputPaths, prepareOutputFile, releaseOutputLocks, writeAtomically } from './write-output.js';
 
 /** Options of `stratotrend report` (the fit options plus where and how to write the page). */
 export interface ReportCommandOptions extends FitCommandOptions {
@@ -321,11 +321,12 @@ export async function writeReportForRun(
   inputs: readonly string[],
   fitOptions: { orientation?: string; drawModel?: string; smoothedBand?: boolean; ageModel?: string; covariateFile?: string } = {},
 ): Promise<void> {
-  refuseInputPath(path, inputs);
+  checkOutputFile(path, inputs, '--report file');
   // The layout choices and the extra input files carry over from fit; fit's --figure-format names files, the page takes SVG.
   const { orientation, drawModel, smoothedBand, ageModel, covariateFile } = fitOptions;
   const html = await buildReport(asFitDocument(run.document), { orientation, drawModel, smoothedBand, ageModel, covariateFile });
-  writeAtomically(path, html);
+  // Like every output name: never over an input, nor over a file stratotrend did not write.
+  writeAtomically(prepareOutputFile(path, inputs, '--report file'), html);
 }
 
 /**
@@ -333,16 +334,30 @@ export async function writeReportForRun(
  * one self-contained HTML report.
  */
 export async function reportCommand(file: string, options: ReportCommandOptions): Promise<void> {
+  try {
+    await reportAndWrite(file, options);
+  } finally {
+    releaseOutputLocks();
+  }
+}
+
+async function reportAndWrite(file: string, options: ReportCommandOptions): Promise<void> {
   const path = options.out ?? defaultReportFile;
   if (!/\.html?$/i.test(path)) throw usageError(`--out: the report is one HTML file; give a name ending in .html, got "${path}"`);
-  refuseInputPath(path, inputPaths(file, options));
+  checkOutputFile(path, inputPaths(file, options), '--out file');
   let html: string;
   let warningLines: string[] = [];
   if (/\.json$/i.test(file)) {
     // The units are those the fit was made with (fit.json trait_unit); a label here would contradict the saved numbers.
     if (options.traitUnit !== undefined) throw usageError('--trait-unit applies to a samples file; a fit.json keeps the unit it was fitted with (its "trait_unit"); give --trait-unit to "fit" instead');
     const saved = readFitJson(file);
-    html = await buildReport(saved.document, options, { source: { file, sha256: saved.sha256 } });
+    try {
+      html = await buildReport(saved.document, options, { source: { file, sha256: saved.sha256 } });
+    } catch (error) {
+      // A figure that cannot be drawn from the document's numbers (its InputError knows no file) names the fit.json.
+      if (error instanceof InputError && error.kind === 'data' && error.file === undefined) throw new InputError(error.message, { file });
+      throw error;
+    }
   } else {
     if (options.power) {
       // Checked before the fit, so a bad value fails at once and names the report's own option.
@@ -358,10 +373,10 @@ export async function reportCommand(file: string, options: ReportCommandOptions)
     const analyses = await runAnalyses(file, document, options, run.read);
     html = await buildReport(document, options, { analyses });
     warningLines = run.warnings.list()
-      .filter((warning) => warning.category !== 'at-bound' && warning.category !== 'not-compared')
+      .filter((warning) => warning.category !== 'at-bound' && warning.category !== 'not-compared' && warning.category !== 'long-run')
       .map((warning) => `warning (${warning.category}): ${warning.message}${warning.count > 1 ? ` (${warning.count} times)` : ''}`);
   }
-  writeAtomically(path, html);
+  writeAtomically(prepareOutputFile(path, inputPaths(file, options), '--out file'), html);
   if (!options.quiet) process.stdout.write(`Wrote the report to ${path} (${Math.round(Buffer.byteLength(html) / 1024)} kB, one self-contained HTML file)\n`);
   for (const line of warningLines) process.stderr.write(`${line}\n`);
 }

@@ -1,7 +1,7 @@
 import { InputError } from './errors.js';
 import { checkName } from './names.js';
 import type { Table } from './read-table.js';
-import { sectionColumnOf } from './samples.js';
+import { numberCell, sectionColumnOf } from './samples.js';
 import type { RandomSource } from '../simulate/random.js';
 
 /** One tie point: a stratigraphic height in a section with a known age. */
@@ -41,8 +41,6 @@ export interface SedimentationSegment {
   readonly rate: number;
 }
 
-const numberPattern = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
-
 /**
  * Read a tie-point table: columns `section` (optional; or another name of
  * `sectionColumnNames`, as in the samples file), `height` or `depth`
@@ -79,22 +77,14 @@ export function readAgeModel(table: Table, options: { decimalComma?: boolean; po
       { file, line: 1, column: positionKind },
     );
   }
-  const number = (cells: readonly string[], line: number, name: string): number => {
-    const raw = cells[column(name)];
-    const text = options.decimalComma ? raw.replace(',', '.') : raw;
-    if (raw === '') throw new InputError('is empty, expected a number', { file, line, column: name });
-    if (!numberPattern.test(text)) {
-      // The same hint as the samples reader (numberCell).
-      const hint = !options.decimalComma && /^[+-]?\d*,\d+$/.test(raw) ? ' (for a decimal comma use --decimal-comma)' : '';
-      throw new InputError(`must be a finite number, got "${raw}"${hint}`, { file, line, column: name });
-    }
-    const value = Number(text);
-    if (!Number.isFinite(value)) throw new InputError(`must be a finite number, got "${raw}"`, { file, line, column: name });
-    return value;
-  };
+  // The samples file's one cell parser, so ties are range-checked like every other number (magnitude 1e-100..1e100 or 0)
+  // and a decimal comma gets the same hint.
+  const number = (cells: readonly string[], line: number, name: string): number =>
+    numberCell(cells[column(name)], { file, line, column: name }, options.decimalComma === true);
   const grouped = new Map<string, TiePoint[]>();
   for (const { line, cells } of table.rows) {
-    const section = column(sectionColumn) >= 0 ? checkName(cells[column(sectionColumn)], { file, line, column: sectionColumn }) : '';
+    // NFC like the samples' names, so the ties of "Café" serve its horizons whichever form either file uses.
+    const section = column(sectionColumn) >= 0 ? checkName(cells[column(sectionColumn)], { file, line, column: sectionColumn }).normalize('NFC') : '';
     const position = number(cells, line, positionKind);
     const age = number(cells, line, 'age');
     let ageSd = 0;

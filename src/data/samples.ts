@@ -334,10 +334,15 @@ export class HorizonCollector {
     return numberCell(cells[this.index(name)], { file: this.plan.file, line, column: name }, this.options.decimalComma === true);
   }
 
-  /** A name cell (section, trait): refused with line and column when it holds a control character. */
+  /**
+   * A name cell (section, trait): refused with line and column when it holds
+   * a control character, and put in Unicode normal form C, so a name typed
+   * with a composed "é" and one with "e" + combining accent (which print
+   * alike) are one lineage.
+   */
   private label(cells: readonly string[], line: number, name: string): string {
     const at = this.index(name);
-    return at >= 0 ? checkName(cells[at], { file: this.plan.file, line, column: name }) : '';
+    return at >= 0 ? checkName(cells[at], { file: this.plan.file, line, column: name }).normalize('NFC') : '';
   }
 
   /** Validate and take one data row (cells in header order). */

@@ -14,6 +14,7 @@ export type WarningCategory =
   | 'not-converged'
   | 'duplicate-time'
   | 'time-axis'
+  | 'long-run'
   | 'input';
 
 /** A folded warning: what, about which lineage, and how often it was raised. */

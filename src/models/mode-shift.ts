@@ -112,6 +112,7 @@ export function modeShift(first: SegmentMode, second: SegmentMode): EvolutionMod
     width: () => width,
     parameterCount: () => locations.length + variances.length + 1,
     configurations: (lineage, options) => shiftPlacements(lineage.mean.length, 1, minimumSegment(options)),
+    shiftCount: 1,
     fillSpace(lineage, process, space) {
       const [shift] = shiftsOf(process, 2, 1);
       const time = lineage.time;

@@ -108,6 +108,13 @@ export interface EvolutionModel {
    */
   configurations?(lineage: Lineage, options: ConfigurationOptions): readonly Configuration[];
   /**
+   * How many shifts each of its configurations places (models with
+   * `configurations` only): the search visits every placement, C(N − (k+1)m + k, k)
+   * of them for k shifts, N horizons and segments of at least m, so the CLI
+   * states the cost and refuses what cannot be done before fitting.
+   */
+  readonly shiftCount?: number;
+  /**
    * Optional fast screen: an approximation of the maximised logL of each
    * configuration (same order), used to choose which configurations are
    * searched in full. Must never rank a configuration far below its true

@@ -53,6 +53,7 @@ export function punctuatedSeparateVariances(shiftCount: number): EvolutionModel 
     width: () => segments,
     parameterCount: () => 2 * segments + shiftCount,
     configurations: (lineage, options) => shiftPlacements(lineage.mean.length, shiftCount, minimumSegment(options)),
+    shiftCount,
     screen: (lineage, configurations) => screenSeparateVariances(lineage, configurations),
     blocks(lineage, configuration) {
       const bounds = [0, ...configuration.shifts, lineage.mean.length];

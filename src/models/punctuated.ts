@@ -60,6 +60,7 @@ export function punctuatedSharedVariance(shiftCount: number): EvolutionModel {
     width: () => segments,
     parameterCount: () => segments + 1 + shiftCount,
     configurations: (lineage, options) => shiftPlacements(lineage.mean.length, shiftCount, minimumSegmentOf(options)),
+    shiftCount,
     screen: (lineage, configurations) => screenSharedVariance(lineage, configurations),
     fillSpace(_lineage, process, space) {
       const shifts = shiftsOf(process, 1, shiftCount);

@@ -63,6 +63,15 @@ describe('age model: errors', () => {
     expect(() => ties('section,height,age\nA,5,10\nA,5,9\n')).toThrow(/two ties at the same height 5 in section "A" \(lines 2 and 3\)/);
     expect(() => ties('section,height,age\nA,5,10\n')).toThrow(/only one tie point for section "A"/);
     expect(() => ties('section,height,age,age_sd\nA,5,10,-1\nA,6,9,0\n')).toThrow(/line 2, column "age_sd": must be zero or positive, got "-1"/);
+    // Issue 24: tie ages, heights and age_sd are range-checked like every number of a samples file (numberCell:
+    // magnitude 1e-100..1e100 or 0), so subnormal ages (which made figure drawing loop) never reach a lineage.
+    expect(() => ties('section,height,age\nA,0,2e-308\nA,50,1e-320\n')).toThrow(
+      'ties.csv line 2, column "age": is outside the range the tool computes with (magnitude 1e-100 to 1e100, or 0), got "2e-308"; rescale the column',
+    );
+    expect(() => ties('section,height,age\nA,0,10\nA,1e101,9\n')).toThrow(/ties\.csv line 3, column "height": is outside the range the tool computes with/);
+    expect(() => ties('section,height,age,age_sd\nA,0,10,1e-200\nA,5,9,0\n')).toThrow(/ties\.csv line 2, column "age_sd": is outside the range the tool computes with/);
+    expect(() => ties('section,height,age\nA,0,10\nA,5,9 Ma\n')).toThrow('ties.csv line 3, column "age": must be a finite number, got "9 Ma" (remove the unit or text after the number)');
+    expect(ties('section,height,age\nA,0,1e-100\nA,5,0\n').sections.get('A')?.map((tie) => tie.age)).toEqual([1e-100, 0]);
     expect(() => ageFunction(model, { samplesFile: 's.csv' })('B', 1, 4)).toThrow(/s\.csv line 4, column "section": section "B" has no ties/);
   });
 });

@@ -26,8 +26,8 @@ export function defineFitCommand(program: Command): void {
     .option('--no-intervals', 'skip the profile-likelihood intervals (faster)')
     .option('--intervals <method>', 'how the 95% intervals are made: integrated (default: integrated likelihood, best calibrated; ou and shift models use adjusted, or profile where adjusted would leave out the estimate), adjusted (restricted profile likelihood), profile (plain profile likelihood, asymptotic) or bootstrap (profile with a parametric-bootstrap cut-off, slower; profile where the bootstrap cannot calibrate). A fit whose intervals fell back says so in interval_method and a warning')
     .option('--quiet', 'print nothing but errors and warnings')
-    .option('--no-figures', 'with --out, write no figure files (by default each lineage gets a trajectory and a model-support figure, each trait with several sections a sections figure)')
-    .option('--report <file>', 'also write one self-contained HTML report (as "stratotrend report" does)')
+    .option('--no-figures', 'with --out, write no figure files (by default each lineage gets a trajectory and a model-support figure, each trait with several sections a sections figure; drawing estimated over two minutes is announced first)')
+    .option('--report <file>', 'also write one self-contained HTML report (as "stratotrend report" does; never over an input, nor over a file of that name stratotrend did not write: checked before fitting)')
     .option('--summary', 'print the cross-lineage summary (wins per model, Akaike weights, drift) instead of one table per lineage; adds "compilation" to the JSON and compilation.png with --out')
     .option('--threads <count>', 'worker threads for many lineages (1 = no workers; default: every core when there are enough lineages to pay off)', parseThreads)
     .addHelpText('after', modelHelp())
@@ -54,7 +54,9 @@ Models (ids as in --models and the JSON):
 
 Extended set (--models extended adds these; segments are numbered from the oldest; every shift
 position is found by exhaustive search over positions leaving each segment >= --min-segment
-horizons, and each position counts 1 in K):
+horizons, and each position counts 1 in K; the search's time grows with the square of the
+horizons: a run estimated over a minute is announced first, and a lineage where a model would
+search more than 2,000,000 placements — two shifts beyond about 2,000 horizons — is refused):
   punctuated-1, punctuated-2
                     1 or 2 shifts split the sequence into stasis segments with their own means
                     (segment_K_mean) and one shared stasis_variance (K = 4, 6)

@@ -12,7 +12,7 @@ export function defineReportCommand(program: Command): void {
       .description('fit every model and write one self-contained HTML report (tables, figures, methods text, references, provenance)')
       .argument('<file>', 'samples CSV as for "fit" ("-" reads stdin), or a fit.json saved by "fit --out" (reported without refitting)'),
   ), { draws: false })
-    .option('--out <file>', 'the HTML file to write', 'stratotrend-report.html')
+    .option('--out <file>', 'the HTML file to write (never over an input, nor over a file of that name stratotrend did not write)', 'stratotrend-report.html')
     .option('--models <set>', 'model set: "classic" (the five models) or a comma-separated list of model ids', 'classic')
     .option('--no-intervals', 'skip the confidence intervals (faster)')
     .option('--intervals <method>', 'how the 95% intervals are made, as for "fit": integrated (default), adjusted, profile or bootstrap')

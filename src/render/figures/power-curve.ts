@@ -3,7 +3,7 @@ import { drawFigure, measureText, type FigurePlan, type RenderedFigure } from '.
 import { pointsPerCm, resolveFigureOptions, type FigureOptions } from './figure-options.js';
 import { font, withOpacity, wrapText } from './marks.js';
 import { ink, lineWidth, seriesStyles, typeSize } from './style.js';
-import { fittedTicks, tickLabel, type RoundStep } from './ticks.js';
+import { drawableLimits, fittedTicks, tickLabel, type RoundStep } from './ticks.js';
 import { squaredLabel, traitUnitLabel } from '../units.js';
 
 /** What the power-curve figure needs: the grid of `power --json` and a few words about the design. */
@@ -146,6 +146,8 @@ export function powerCurvePlan(input: PowerCurveInput, options: FigureOptions = 
   const allPoints = curves.flatMap((curve) => curve.grid);
   const maximumDrift = Math.max(...allPoints.map((point) => point.drift));
   const minimumDrift = Math.min(0, ...allPoints.map((point) => point.drift));
+  // A power document read back (report --attach) may carry any numbers: limits chart.js cannot lay out are refused, not handed to it.
+  if (maximumDrift !== minimumDrift) drawableLimits({ min: minimumDrift, max: maximumDrift }, 'drift axis');
   const notePlugin: Plugin = {
     id: 'stratotrendPowerNote',
     afterDraw(chart) {

@@ -9,6 +9,8 @@
  * can be merged by making `trajectory.ts` import from here.
  */
 
+import { InputError } from '../../data/errors.js';
+
 /** A round tick step, multiple × 10^exponent, kept as its parts so that ticks k × step carry no binary drift. */
 export interface RoundStep {
   readonly multiple: 1 | 2 | 5;
@@ -21,12 +23,34 @@ function powerOfTen(exponent: number): number {
 }
 
 /**
+ * The exponents a step may have: 1e-323 is the smallest power of ten a double
+ * holds (as a subnormal), 5e307 the largest step on the ladder that is finite.
+ * Clamping keeps every helper finite and terminating for any finite input
+ * (a span that underflows to a subnormal, 0, or overflows to Infinity).
+ */
+const lowestExponent = -323;
+const highestExponent = 307;
+
+/** At most this many ticks are ever listed (an axis shows a dozen; more means a degenerate step). */
+export const maximumTicks = 1000;
+
+/**
+ * multiple × 10^exponent as the double nearest that decimal (parsed from text):
+ * for |exponent| ≤ 22 this equals the exact quotient or product of the two
+ * integers, and it stays right where 10^exponent itself over- or underflows.
+ */
+function scaled(multiple: number, exponent: number): number {
+  return Number(`${multiple}e${exponent}`);
+}
+
+/**
  * The value of a round step.
  *
  * @example
  * stepValue({ multiple: 2, exponent: -2 }); // 0.02
  */
 export function stepValue(step: RoundStep): number {
+  if (step.exponent < -22 || step.exponent > 22) return scaled(step.multiple, step.exponent);
   return step.exponent >= 0 ? step.multiple * powerOfTen(step.exponent) : step.multiple / powerOfTen(-step.exponent);
 }
 
@@ -52,7 +76,9 @@ export function coarser(step: RoundStep): RoundStep {
  * roundStep(0.1237, 6); // { multiple: 2, exponent: -2 } (ticks 0, 0.02 … 0.12)
  */
 export function roundStep(span: number, target: number): RoundStep {
-  const exponent = Math.floor(Math.log10(span / target));
+  // A span of 0, or one that underflows or overflows, still gets a finite exponent (the loop below then ends).
+  const raw = Math.floor(Math.log10(span / target));
+  const exponent = Number.isFinite(raw) ? Math.min(highestExponent - 1, Math.max(lowestExponent + 1, raw)) : raw > 0 ? highestExponent - 1 : lowestExponent + 1;
   let best: RoundStep = { multiple: 1, exponent };
   let bestMiss = Number.POSITIVE_INFINITY;
   for (let k = exponent - 1; k <= exponent + 1; k++) {
@@ -92,11 +118,15 @@ export function roundTicks(min: number, max: number, step: RoundStep): number[] 
   const size = stepValue(step);
   const first = Math.ceil(min / size - 1e-9);
   const last = Math.floor(max / size + 1e-9);
+  // A step of 0, a non-finite end, an absurd count, or multiples beyond 2^53 (where k + 1 rounds back to k:
+  // a step below the values' rounding) list no ticks rather than looping without end.
+  if (!(size > 0) || !Number.isSafeInteger(first) || !Number.isSafeInteger(last) || last - first >= maximumTicks) return [];
   const values: number[] = [];
   for (let k = first; k <= last; k++) {
     const whole = k * step.multiple;
+    const value = step.exponent < -22 || step.exponent > 22 ? scaled(whole, step.exponent) : step.exponent >= 0 ? whole * powerOfTen(step.exponent) : whole / powerOfTen(-step.exponent);
     // + 0 turns -0 into 0, so no tick is labelled "-0".
-    values.push((step.exponent >= 0 ? whole * powerOfTen(step.exponent) : whole / powerOfTen(-step.exponent)) + 0);
+    values.push(value + 0);
   }
   return values;
 }
@@ -109,6 +139,11 @@ export function roundTicks(min: number, max: number, step: RoundStep): number[] 
  * tickLabel(1e6, { multiple: 2, exponent: 5 }); // "1,000,000"
  */
 export function tickLabel(value: number, step: RoundStep): string {
+  // Beyond 20 decimals a fixed label would read 0.000…; write the value as its integer multiple × 10^exponent (e.g. 2e-311).
+  if (step.exponent < -20) {
+    const whole = Math.round(value / stepValue(step)) * step.multiple;
+    return whole === 0 ? '0' : `${whole}e${step.exponent}`;
+  }
   const decimals = Math.min(20, Math.max(0, -step.exponent));
   return new Intl.NumberFormat('en-US', { minimumFractionDigits: decimals, maximumFractionDigits: decimals }).format(value + 0);
 }
@@ -140,4 +175,33 @@ export function fittedTicks(limits: { min: number; max: number }, target: number
     values = nextValues;
   }
   return { step, values };
+}
+
+/**
+ * The spans and magnitudes an axis can show: 1e-200 to 1e200. The chart
+ * library counts a tick step's decimals by multiplying by 10 until the value
+ * comes back whole, which never ends for values near the double's underflow
+ * (below about 1e-290): limits outside this range are refused before it runs.
+ */
+export const drawableRange = { smallest: 1e-200, largest: 1e200 } as const;
+
+/**
+ * Check axis limits before they reach the chart library: both finite, a
+ * span of at least {@link drawableRange}.smallest and ends no larger in
+ * magnitude than {@link drawableRange}.largest.
+ *
+ * @param axis - the axis in words, for the message ("time axis")
+ * @throws InputError naming the axis and its ends when they cannot be drawn
+ * @example
+ * drawableLimits({ min: 0, max: 3e-311 }, 'time axis'); // throws: cannot draw the time axis …
+ */
+export function drawableLimits(limits: { min: number; max: number }, axis: string): { min: number; max: number } {
+  const span = limits.max - limits.min;
+  const largest = Math.max(Math.abs(limits.min), Math.abs(limits.max));
+  if (!Number.isFinite(span) || !(span >= drawableRange.smallest) || !(largest <= drawableRange.largest)) {
+    throw new InputError(
+      `cannot draw the ${axis}: its values run from ${limits.min} to ${limits.max}; a figure shows spans of at least ${drawableRange.smallest} and values up to ${drawableRange.largest} in magnitude; rescale the unit`,
+    );
+  }
+  return limits;
 }

@@ -6,7 +6,7 @@ import { pointsPerCm } from './figure-options.js';
 import { horizonMarks, modelCurve, smoothedBand, timeAxisFor, traitAxisTitle, type HorizonMark, type ModelCurve } from './geometry.js';
 import { drawInterval, drawLegend, drawMarker, fillBetween, font, layoutLegend, withOpacity, wrapText, type LegendEntry, type LegendLayout } from './marks.js';
 import { ink, lineWidth, modelInk, seriesStyle, smoothedInk, typeSize, type SeriesStyle } from './style.js';
-import { fittedTicks, roundStep, tickLabel, type RoundStep } from './ticks.js';
+import { drawableLimits, fittedTicks, roundStep, tickLabel, type RoundStep } from './ticks.js';
 
 /** The first part of a model label, before any gloss in parentheses: "directional walk (random walk with drift)" → "directional walk". */
 export function shortModelLabel(label: string): string {
@@ -213,8 +213,9 @@ export function trajectoryPlan(lineages: readonly FigureLineage[], options: Reso
     const ys = extent.map((point) => point.y);
     const timeValues = stratigraphic ? ys : xs;
     const traitValues = stratigraphic ? xs : ys;
-    const timeScale = scaleOptions(stratigraphic ? axis.title : horizontalTitle, axis.reverse, padded(timeValues), stratigraphic ? 7 : 6);
-    const traitScale = scaleOptions(stratigraphic ? horizontalTitle : traitTitle, false, padded(traitValues), 5);
+    // Limits the chart library cannot lay out (spans near the double's underflow) are refused here, never handed to it.
+    const timeScale = scaleOptions(stratigraphic ? axis.title : horizontalTitle, axis.reverse, drawableLimits(padded(timeValues), 'time axis'), stratigraphic ? 7 : 6);
+    const traitScale = scaleOptions(stratigraphic ? horizontalTitle : traitTitle, false, drawableLimits(padded(traitValues), 'trait axis'), 5);
     return {
       type: 'scatter',
       data: { datasets },

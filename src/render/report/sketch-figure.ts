@@ -13,8 +13,13 @@ export function niceTicks(low: number, high: number, count = 5): number[] {
   const raw = (high - low) / count;
   const power = 10 ** Math.floor(Math.log10(raw));
   const step = [1, 2, 5, 10].map((factor) => factor * power).find((candidate) => candidate >= raw) ?? 10 * power;
+  // Ticks by an integer count, at most 100, of safe integers (beyond 2^53, k + 1 rounds back to k): a step that underflows
+  // to 0, overflows, or is below the values' rounding never loops.
+  const first = Math.ceil(low / step);
+  const last = Math.floor(high / step + 1e-9);
+  if (!(step > 0 && step < Number.POSITIVE_INFINITY) || !Number.isSafeInteger(first) || !Number.isSafeInteger(last) || last - first > 100) return [low, high];
   const ticks: number[] = [];
-  for (let value = Math.ceil(low / step) * step; value <= high + step * 1e-9; value += step) ticks.push(Number(value.toPrecision(12)));
+  for (let k = first; k <= last; k++) ticks.push(Number((k * step).toPrecision(12)));
   return ticks;
 }
 
