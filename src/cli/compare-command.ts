@@ -301,7 +301,12 @@ export async function compareCommand(file: string, options: CompareCommandOption
   if (options.out) {
     const inputs = inputPaths(file, options);
     const drawFigures = options.figure !== false && result.run.comparisons.length > 0;
-    const figureNames = drawFigures ? result.run.comparisons.map((comparison, index) => `sections-${index + 1}-${slug(comparison.trait)}.png`) : [];
+    const { models } = resolveModels(options.models);
+    const documents = drawFigures ? result.run.comparisons.map((comparison) => sectionDocuments(comparison, models)) : [];
+    // The file names of fit and redraw (`figureJobs`: <trait>.sections, numbered when traits coincide after cleaning).
+    const { figureJobs } = await import('../render/figures/figure-set.js');
+    const jobs = figureJobs(documents.flat(), ['sections']);
+    const figureNames = jobs.map((job) => `${job.stem}.png`);
     const names = ['compare.csv', 'compare-estimates.csv', 'compare.json', ...(result.composites.length > 0 ? ['composite-models.csv'] : []), ...figureNames];
     const folder = prepareOutputFolder(options.out, inputs, names);
     writeAtomically(join(folder, 'compare.csv'), comparisonCsv(result.run.comparisons, result.spreads));
@@ -314,9 +319,8 @@ export async function compareCommand(file: string, options: CompareCommandOption
     }
     if (drawFigures) {
       const { renderSectionsTogether } = await import('../render/figures/index.js');
-      const { models } = resolveModels(options.models);
       for (const [index, comparison] of result.run.comparisons.entries()) {
-        const figure = renderSectionsTogether(sectionDocuments(comparison, models), { model: comparison.best?.model });
+        const figure = renderSectionsTogether(documents[index], { model: comparison.best?.model });
         writeAtomically(join(folder, figureNames[index]), figure.bytes);
         written.push(figureNames[index]);
       }
@@ -339,9 +343,4 @@ export async function compareCommand(file: string, options: CompareCommandOption
   for (const warning of result.warnings.list()) {
     process.stderr.write(`warning (${warning.category}): ${warning.message}${warning.count > 1 ? ` (${warning.count} times)` : ''}\n`);
   }
-}
-
-function slug(text: string): string {
-  const cleaned = text.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-+|-+$/g, '');
-  return cleaned === '' ? 'trait' : cleaned.slice(0, 40);
 }

@@ -74,16 +74,25 @@ export interface FigurePlanForFolder {
   readonly names: readonly string[];
 }
 
-/** Plan the figure files of a fit document's lineages. */
-export function planFigureFiles(lineages: readonly unknown[], options: FigureCommandOptions, kinds: readonly FigureKind[] = figureKinds): FigurePlanForFolder {
+/**
+ * Plan the figure files of a fit document's lineages: always pass all of
+ * them (names are worked out over the whole document, `figureJobs`) and
+ * narrow with `selected`.
+ */
+export function planFigureFiles(
+  lineages: readonly unknown[],
+  options: FigureCommandOptions,
+  kinds: readonly FigureKind[] = figureKinds,
+  selected: (index: number) => boolean = () => true,
+): FigurePlanForFolder {
   const request = figureRequest(options);
   if (request.options.model) {
-    const ids = new Set(lineages.flatMap((document) => ((document as { models?: { id?: unknown }[] }).models ?? []).map((model) => String(model.id))));
+    const ids = new Set(lineages.filter((_document, index) => selected(index)).flatMap((document) => ((document as { models?: { id?: unknown }[] }).models ?? []).map((model) => String(model.id))));
     if (!ids.has(request.options.model)) {
       throw usageError(`--draw-model: no lineage was fitted with "${request.options.model}"; models in this fit: ${[...ids].join(', ') || 'none'}`);
     }
   }
-  const jobs = figureJobs(lineages, kinds);
+  const jobs = figureJobs(lineages, kinds, selected);
   const names = jobs.flatMap((job) => request.formats.map((format) => `${job.stem}.${format}`));
   return { jobs, request, names };
 }
@@ -178,14 +187,15 @@ function namingFile<T>(file: string, work: () => T): T {
 export function redrawCommand(file: string, options: RedrawCommandOptions): void {
   const all = readFitDocument(file);
   const wanted = options.lineage ?? [];
-  const lineages = all.filter((document) => lineageMatches(document, wanted));
-  if (lineages.length === 0) {
+  const chosen = all.map((document) => lineageMatches(document, wanted));
+  if (!chosen.includes(true)) {
     throw usageError(`--lineage: no lineage of ${file} is called ${wanted.map((name) => `"${name}"`).join(' or ')}`);
   }
-  const plan = namingFile(file, () => planFigureFiles(lineages, options, parseKinds(options.only ?? figureKinds.join(','))));
+  // Names come from the whole document, as fit gave them, so redrawing some lineages never takes another's file name.
+  const plan = namingFile(file, () => planFigureFiles(all, options, parseKinds(options.only ?? figureKinds.join(',')), (index) => chosen[index]));
   if (plan.jobs.length === 0) throw usageError('nothing to draw (a sections figure needs a trait measured in two or more sections)');
   const out = options.out ?? dirname(file);
   const folder = prepareOutputFolder(out, [file], plan.names);
-  const written = namingFile(file, () => writeFigureFiles(lineages, plan, folder));
+  const written = namingFile(file, () => writeFigureFiles(all, plan, folder));
   if (!options.quiet) process.stdout.write(written.map((name) => join(out, name)).join('\n') + '\n');
 }
