@@ -14,6 +14,7 @@ import {
   type FigureKind,
   type FigureOptions,
 } from '../render/figures/index.js';
+import { figureParts, type FigurePart } from '../render/figures/figure-options.js';
 import { prepareOutputFolder, writeAtomically } from './write-output.js';
 
 /** Figure options as commander hands them over (strings until checked). */
@@ -25,6 +26,8 @@ export interface FigureCommandOptions {
   orientation?: string;
   drawModel?: string;
   smoothedBand?: boolean;
+  leaveOut?: string;
+  traitTitle?: string;
 }
 
 /** The checked figure options and the formats to write. */
@@ -55,6 +58,8 @@ export function figureRequest(options: FigureCommandOptions): FigureRequest {
     orientation,
     model: options.drawModel,
     smoothed: options.smoothedBand === true,
+    leaveOut: options.leaveOut === undefined ? [] : parseLeaveOut(options.leaveOut),
+    traitTitle: options.traitTitle === undefined ? undefined : traitTitleOption(options.traitTitle),
   };
   // Range checks (width, dpi) live with the figures; run them now so a bad option fails before any file is written.
   for (const format of formats) resolveFigureOptions({ ...figureOptions, format: format as FigureFormat });
@@ -65,6 +70,35 @@ export function figureRequest(options: FigureCommandOptions): FigureRequest {
     if (across * across * 1.4 > 100e6) throw usageError(`--dpi ${dpiText} at ${widthCm} cm makes PNG figures of over 100 million pixels; lower --dpi or --figure-width, or use --figure-format svg or pdf`);
   }
   return { formats: [...new Set(formats)] as FigureFormat[], options: figureOptions };
+}
+
+/**
+ * Parse `--leave-out`: a comma-separated list of title, subtitle, notes, or
+ * "captions" for all three.
+ *
+ * @throws InputError (usage) naming the unknown part
+ * @example
+ * parseLeaveOut('title,notes'); // ["title", "notes"]
+ */
+export function parseLeaveOut(text: string): FigurePart[] {
+  const words = text.split(',').map((word) => word.trim().toLowerCase()).filter((word) => word !== '');
+  if (words.length === 0) throw usageError('--leave-out: no part named; use title, subtitle, notes or captions');
+  const parts = new Set<FigurePart>();
+  for (const word of words) {
+    if (word === 'captions') figureParts.forEach((part) => parts.add(part));
+    else if ((figureParts as readonly string[]).includes(word)) parts.add(word as FigurePart);
+    else throw usageError(`--leave-out: unknown part "${word}"; use title, subtitle, notes or captions`);
+  }
+  return figureParts.filter((part) => parts.has(part));
+}
+
+/** Check `--trait-title`: one line of printable text. */
+function traitTitleOption(text: string): string {
+  const trimmed = text.trim();
+  if (trimmed === '') throw usageError('--trait-title: empty title');
+  // eslint-disable-next-line no-control-regex
+  if (/[\u0000-\u001f\u007f-\u009f]/.test(trimmed)) throw usageError(`--trait-title: control characters are not allowed, got ${JSON.stringify(trimmed)}`);
+  return trimmed;
 }
 
 /** The figures to write and their file names, known before anything is drawn. */

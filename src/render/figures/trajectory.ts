@@ -102,15 +102,17 @@ export function trajectoryPlan(lineages: readonly FigureLineage[], options: Reso
     ? `${capitalised(lineages[0].trait || 'trait')}: ${lineages.length} sections`
     : figureLineageName(lineages[0]);
   const subtitleMeasure = (text: string) => measureText(font(typeSize.subtitle), text);
-  const subtitle = wrapText(subtitleText(series, together, options), innerWidth, subtitleMeasure);
+  const subtitle = options.show.subtitle ? wrapText(subtitleText(series, together, options), innerWidth, subtitleMeasure, { breakWords: true }) : [];
   const stratigraphic = options.orientation === 'stratigraphic';
-  const traitTitle = traitAxisTitle(lineages[0]);
+  const traitTitle = options.traitTitle ?? traitAxisTitle(lineages[0]);
   // chart.js squeezes a title wider than its box (it draws with maxWidth), so narrow figures wrap the title and the horizontal axis title instead.
-  const titleLines = wrapText(title, innerWidth, (text) => measureText(font(typeSize.title, 'bold'), text), { breakWords: true });
+  const titleLines = options.show.title ? wrapText(title, innerWidth, (text) => measureText(font(typeSize.title, 'bold'), text), { breakWords: true }) : [];
   // A horizontal axis title gets the plot's width: the figure less the vertical axis (about 40 pt of tick labels and title).
   const horizontalTitle = wrapText(stratigraphic ? traitTitle : axis.title, Math.max(40, innerWidth - 40), (text) => measureText(font(typeSize.axisTitle), text), { breakWords: true });
   // The aspect allows for one line of title, subtitle and horizontal axis title; each further line (narrow figures wrap them) adds its own height, so the plot is not squeezed.
-  const extraSubtitle = Math.max(0, subtitle.length - 1) * typeSize.subtitle * 1.2 + (titleLines.length - 1) * typeSize.title * 1.2 + (horizontalTitle.length - 1) * typeSize.axisTitle * 1.2;
+  // A title or subtitle left out (--leave-out) gives its line back, so the plot keeps its size.
+  const extraSubtitle =
+    (subtitle.length - 1) * typeSize.subtitle * 1.2 + (subtitle.length === 0 ? -6 : 0) + (titleLines.length - 1) * typeSize.title * 1.2 + (titleLines.length === 0 ? -2 : 0) + (horizontalTitle.length - 1) * typeSize.axisTitle * 1.2;
   // Narrow figures: the plot stays at least as tall as the vertical axis title is long (about 60 pt of title, subtitle and horizontal axis go above and below it).
   const verticalTitle = measureText(font(typeSize.axisTitle), stratigraphic ? axis.title : traitTitle);
   const chartPart = Math.max(widthPoints * aspect(options), verticalTitle + 60);
@@ -225,7 +227,7 @@ export function trajectoryPlan(lineages: readonly FigureLineage[], options: Reso
         plugins: {
           legend: { display: false },
           tooltip: { enabled: false },
-          title: { display: true, text: titleLines.length > 1 ? titleLines : title, align: 'start', color: ink.text, font: { size: typeSize.title, weight: 'bold' }, padding: { top: 0, bottom: 2 } },
+          title: { display: titleLines.length > 0, text: titleLines.length > 1 ? titleLines : title, align: 'start', color: ink.text, font: { size: typeSize.title, weight: 'bold' }, padding: { top: 0, bottom: 2 } },
           subtitle: { display: subtitle.length > 0, text: subtitle, align: 'start', color: ink.muted, font: { size: typeSize.subtitle }, padding: { top: 0, bottom: 6 } },
         },
       },
