@@ -15,6 +15,9 @@ import {
   type FigureOptions,
 } from '../render/figures/index.js';
 import { figureParts, type FigurePart } from '../render/figures/figure-options.js';
+import { smoothUnderEstimates } from '../fit/fit-lineage.js';
+import { lineageFromArrays } from '../lineage.js';
+import { findModel } from '../models/registry.js';
 import { prepareOutputFolder, writeAtomically } from './write-output.js';
 
 /** Figure options as commander hands them over (strings until checked). */
@@ -142,10 +145,12 @@ export function writeFigureFiles(lineages: readonly unknown[], plan: FigurePlanF
   const total = plan.names.length;
   // Hundreds of lineages mean hundreds of figures at about half a second each at 600 dpi: say how far it got.
   const progress = total > 12 && process.stderr.isTTY ? (done: number) => process.stderr.write(`\rdrawing figures ${done}/${total}${done === total ? '\n' : ''}`) : null;
+  const { model, smoothed } = plan.request.options;
   for (const job of plan.jobs) {
+    // The band is the smoother of the model drawn: fit.json holds the best model's, so another model's is worked out from its estimates.
+    const documents = job.lineages.map((index) => (smoothed && model && job.kind === 'trajectory' ? withSmootherOf(lineages[index], model) : lineages[index]));
     for (const format of plan.request.formats) {
       const options: FigureOptions = { ...plan.request.options, format };
-      const documents = job.lineages.map((index) => lineages[index]);
       const figure =
         job.kind === 'trajectory'
           ? renderTrajectory(documents[0], options)
@@ -159,6 +164,40 @@ export function writeFigureFiles(lineages: readonly unknown[], plan: FigurePlanF
     }
   }
   return written;
+}
+
+/**
+ * A lineage document whose `smoothed` is the smoother under `modelId` (the
+ * model drawn): unchanged when it already is, else worked out from the
+ * model's estimates and the document's horizon data (`smoothUnderEstimates`),
+ * or null when that cannot be done (the model was not fitted, or needs a
+ * covariate the document does not carry); the figure then says why no band is drawn.
+ */
+export function withSmootherOf(document: unknown, modelId: string): unknown {
+  const doc = document as { smoothed?: { model?: unknown } | null; models?: unknown; data?: Record<string, unknown>; time_unit?: unknown };
+  if (doc?.smoothed?.model === modelId) return document;
+  let smoothed: { model: string; mean: number[]; standard_error: number[] } | null = null;
+  try {
+    const entry = (Array.isArray(doc.models) ? doc.models : []).find((candidate: { id?: unknown }) => candidate?.id === modelId) as { params?: Record<string, { estimate?: unknown }> } | undefined;
+    const definition = findModel(modelId);
+    const data = doc.data ?? {};
+    const numbers = (value: unknown) => (Array.isArray(value) && value.every((item) => typeof item === 'number' && Number.isFinite(item)) ? (value as number[]) : null);
+    const time = numbers(data.time);
+    const mean = numbers(data.mean);
+    const samplingVariance = numbers(data.sampling_variance);
+    if (entry && definition && time && mean && samplingVariance && mean.length === time.length && samplingVariance.length === time.length) {
+      const estimates: Record<string, number> = {};
+      for (const [name, value] of Object.entries(entry.params ?? {})) if (typeof value?.estimate === 'number') estimates[name] = value.estimate;
+      const lineage = lineageFromArrays({ time, mean, samplingVariance, count: numbers(data.n) ?? undefined });
+      const result = smoothUnderEstimates(definition, estimates, lineage);
+      if (result.mean.every(Number.isFinite) && result.standardError.every(Number.isFinite)) {
+        smoothed = { model: modelId, mean: Array.from(result.mean), standard_error: Array.from(result.standardError) };
+      }
+    }
+  } catch {
+    smoothed = null;
+  }
+  return { ...(document as object), smoothed };
 }
 
 /** Options of `stratotrend redraw`. */

@@ -45,6 +45,8 @@ export interface FigureModel {
   readonly notComparedReason: string | null;
   /** Point estimates by parameter name (missing or null estimates left out). */
   readonly estimates: Readonly<Record<string, number>>;
+  /** Derived point estimates (`derived` in fit.json, e.g. ou's `limit_drift`; missing or null left out). */
+  readonly derived: Readonly<Record<string, number>>;
 }
 
 type Json = Record<string, unknown>;
@@ -97,6 +99,12 @@ export function readFigureLineage(document: unknown, where = 'lineage'): FigureL
       const value = nullableNumber(entry?.estimate);
       if (value !== null) estimates[name] = value;
     }
+    const derived: Record<string, number> = {};
+    const rawDerived = model.derived && typeof model.derived === 'object' ? (model.derived as Record<string, { estimate?: unknown } | null>) : {};
+    for (const [name, entry] of Object.entries(rawDerived)) {
+      const value = nullableNumber(entry?.estimate);
+      if (value !== null) derived[name] = value;
+    }
     const aicc = nullableNumber(model.aicc);
     return {
       id: text(model.id, `model ${index + 1}`),
@@ -109,6 +117,7 @@ export function readFigureLineage(document: unknown, where = 'lineage'): FigureL
       compared: model.compared === undefined ? aicc !== null : model.compared === true,
       notComparedReason: typeof model.not_compared_reason === 'string' ? model.not_compared_reason : null,
       estimates,
+      derived,
     };
   });
   let smoothed: FigureLineage['smoothed'] = null;

@@ -90,7 +90,8 @@ export function trajectoryPlan(lineages: readonly FigureLineage[], options: Reso
       marks: horizonMarks(lineage, axis),
       curve,
       curveReason: reason,
-      smoothed: options.smoothed && !together ? smoothedBand(lineage, axis) : null,
+      // The band is the smoother of the model drawn, never another model's.
+      smoothed: options.smoothed && !together && curve !== null && lineage.smoothed?.model === curve.id ? smoothedBand(lineage, axis) : null,
       style: together ? seriesStyle(index) : null,
     };
   });
@@ -304,7 +305,8 @@ function subtitleText(series: readonly Series[], together: boolean, options: Res
     const flat = drawn.filter((s) => !s.curve!.hasEnvelope).map((s) => s.lineage.section || 'lineage');
     const shading = flat.length === drawn.length ? '' : '; shading: its 95% envelope';
     const noEnvelope = drawn.length === 0 || flat.length === 0 ? '' : flat.length === drawn.length ? ' No envelopes: every model drawn has its variance at 0.' : ` No envelope for ${flat.join(', ')} (variance at 0).`;
-    return `Bars: 95% sampling intervals of the horizon means. Lines: expected trajectory of ${which}${shading}.${noEnvelope}${missing.length > 0 ? ` No line for ${missing.join(', ')}.` : ''}`;
+    const limits = drawn.filter((s) => s.curve!.limit !== null).map((s) => `${s.lineage.section || 'lineage'}: ${shortModelLabel(s.curve!.label)} with ${s.curve!.limit}.`);
+    return `Bars: 95% sampling intervals of the horizon means. Lines: expected trajectory of ${which}${shading}.${noEnvelope}${missing.length > 0 ? ` No line for ${missing.join(', ')}.` : ''}${limits.length > 0 ? ` ${limits.join(' ')}` : ''}`;
   }
   const item = series[0];
   if (!item.curve) return `No model trajectory drawn: ${item.curveReason}.`;
@@ -313,7 +315,9 @@ function subtitleText(series: readonly Series[], together: boolean, options: Res
   const best = curve.isBest ? 'best-supported model' : `model drawn (best supported: ${shortModelLabel(item.lineage.models.find((m) => m.id === item.lineage.bestModel)?.label ?? 'none')})`;
   const spans = item.lineage.time[item.lineage.time.length - 1] > 0;
   const flat = curve.hasEnvelope || curve.id === 'strict-stasis' || !spans ? '' : ' Its envelope has no width: the variance is estimated at 0.';
-  return `${capitalised(curve.label)}: ${best}${support}.${flat}`;
+  const limit = curve.limit === null ? '' : ` ${capitalised(curve.limit)}.`;
+  const noBand = options.smoothed && !item.smoothed ? ` No smoothed band: the fit holds no smoother under ${shortModelLabel(curve.label)}.` : '';
+  return `${capitalised(curve.label)}: ${best}${support}.${limit}${flat}${noBand}`;
 }
 
 function legendEntries(series: readonly Series[], together: boolean): LegendEntry[] {
