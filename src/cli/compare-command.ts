@@ -7,7 +7,7 @@ import { WarningLog } from '../data/warnings.js';
 import { ageMonteCarlo, summariseDraws, type CandidateSpread, type RankedCandidate } from '../compare/age-uncertainty.js';
 import { compareTraits, lineagesByTrait, type ComparisonRun, type TraitComparison } from '../compare/compare-sections.js';
 import { candidateKey, comparisonCaution, comparisonCsv, comparisonDocument, comparisonTable, estimatesCsv, spreadsDocument } from '../compare/output.js';
-import { mergeSections, toleratingCoeval } from '../compare/stack.js';
+import { commonTime, mergeSections, toleratingCoeval } from '../compare/stack.js';
 import { fitLineage, type LineageFit } from '../fit/fit-lineage.js';
 import { lineageName, type Lineage, type LineageOptions } from '../lineage.js';
 import { lineageDocument, type Provenance } from '../render/fit-document.js';
@@ -286,12 +286,33 @@ export async function runCompare(file: string, options: CompareCommandOptions, r
  * so the sections line up on the common timescale.
  */
 export function sectionDocuments(comparison: TraitComparison, models: ReturnType<typeof resolveModels>['models']): Record<string, unknown>[] {
-  return comparison.sections.map((section) => {
+  const winner = comparison.best === null ? undefined : comparison.hypotheses.find((hypothesis) => hypothesis.id === comparison.best!.id && hypothesis.model === comparison.best!.model);
+  const joint = winner?.joint ?? null;
+  const { starts } = commonTime(comparison.sections);
+  return comparison.sections.map((section, s) => {
     const document = lineageDocument(fitLineage(section, models, { intervals: false }));
     const data = document.data as Record<string, unknown>;
     const firstAge = section.firstAge ?? 0;
-    return { ...document, position_kind: 'age', data: { ...data, position: Array.from(section.time, (t) => firstAge - t) } };
+    const placed = { ...document, position_kind: 'age', data: { ...data, position: Array.from(section.time, (t) => firstAge - t) } };
+    if (!winner || !joint) return placed;
+    // A shared hypothesis won: the winning model's row carries the section's parameters under that hypothesis, not its separate fit.
+    const parameters = joint.sectionParameters({ ...winner.estimates }, s);
+    const rows = (document.models as Record<string, unknown>[]).map((row) => {
+      if (row.id !== winner.model) return row;
+      const params = Object.fromEntries(Object.entries(parameters).map(([name, value]) => [name, { estimate: Number.isFinite(value) ? value : null, lower: null, upper: null, at_bound: null, lower_at_bound: false, upper_at_bound: false }]));
+      return { ...row, params, derived: {} };
+    });
+    // Under shared-offset one process runs from the oldest horizon of all sections: this section joins it starts[s] time units later.
+    return { ...placed, models: rows, smoothed: null, curve_origin: joint.hypothesis === 'shared-offset' ? starts[s] : 0 };
   });
+}
+
+/** The sections figure's words for its lines: the winning hypothesis and model. */
+export function hypothesisCaption(comparison: TraitComparison, label: string): string {
+  const best = comparison.best;
+  if (!best || best.id === 'separate') return `the ${label} model fitted to each section separately (the best-supported hypothesis)`;
+  if (best.id === 'shared') return `the ${label} model with one process shared by all sections, each from its own start (the best-supported hypothesis)`;
+  return `the ${label} model as one lineage on the common timescale, each section shifted by its own offset (the best-supported hypothesis)`;
 }
 
 /** `stratotrend compare FILE`: print the comparison tables (or JSON) and write outputs with --out. */
@@ -320,7 +341,9 @@ export async function compareCommand(file: string, options: CompareCommandOption
     if (drawFigures) {
       const { renderSectionsTogether } = await import('../render/figures/index.js');
       for (const [index, comparison] of result.run.comparisons.entries()) {
-        const figure = renderSectionsTogether(documents[index], { model: comparison.best?.model });
+        const label = resolveModels(options.models).models.find((model) => model.id === comparison.best?.model)?.label ?? comparison.best?.model ?? '';
+        const short = label.includes(' (') ? label.slice(0, label.indexOf(' (')) : label;
+        const figure = renderSectionsTogether(documents[index], { model: comparison.best?.model, linesCaption: comparison.best ? hypothesisCaption(comparison, short) : undefined });
         writeAtomically(join(folder, figureNames[index]), figure.bytes);
         written.push(figureNames[index]);
       }

@@ -30,6 +30,12 @@ export interface FigureLineage {
   /** Horizons whose age the age model extrapolated beyond its ties (drawn open). */
   readonly extrapolated: readonly boolean[];
   readonly smoothed: { readonly model: string; readonly mean: readonly number[]; readonly standardError: readonly number[] } | null;
+  /**
+   * Time of the lineage's first horizon on the model's own clock (`curve_origin`, default 0):
+   * compare's shared-offset hypothesis runs one process from the oldest horizon of all
+   * sections, so a later section's curve is the model's expectation from that time on.
+   */
+  readonly curveOrigin: number;
 }
 
 /** One model row of the document. */
@@ -148,6 +154,7 @@ export function readFigureLineage(document: unknown, where = 'lineage'): FigureL
     samplingVariance,
     extrapolated: Array.isArray(data.extrapolated) && data.extrapolated.length === time.length ? data.extrapolated.map((flag) => flag === true) : time.map(() => false),
     smoothed,
+    curveOrigin: nullableNumber(doc.curve_origin) ?? 0,
   };
 }
 

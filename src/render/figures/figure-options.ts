@@ -24,6 +24,8 @@ export interface FigureOptions {
   readonly leaveOut?: readonly FigurePart[];
   /** Title of the trait axis in place of the one made from the trait's name and unit (default: made). */
   readonly traitTitle?: string;
+  /** Sections figure: what the lines are, in words, in place of "each section's best-supported model" (compare names its winning hypothesis). */
+  readonly linesCaption?: string;
 }
 
 /** A part of a figure that can be left out: its title, the subtitle under it, the notes at its foot. */
@@ -44,6 +46,7 @@ export interface ResolvedFigureOptions {
   readonly show: { readonly title: boolean; readonly subtitle: boolean; readonly notes: boolean };
   /** The trait axis title asked for, or null for the one made from the trait's name and unit. */
   readonly traitTitle: string | null;
+  readonly linesCaption: string | null;
 }
 
 /** Single journal column width in cm (common practice: most journals ask for 8–9 cm). */
@@ -83,7 +86,7 @@ export function resolveFigureOptions(options: FigureOptions = {}): ResolvedFigur
   }
   const show = { title: !leaveOut.includes('title'), subtitle: !leaveOut.includes('subtitle'), notes: !leaveOut.includes('notes') };
   const traitTitle = options.traitTitle === undefined || options.traitTitle.trim() === '' ? null : options.traitTitle.trim();
-  return { format, widthCm, dpi, orientation, model: options.model ?? null, smoothed: options.smoothed === true, show, traitTitle };
+  return { format, widthCm, dpi, orientation, model: options.model ?? null, smoothed: options.smoothed === true, show, traitTitle, linesCaption: options.linesCaption ?? null };
 }
 
 /**

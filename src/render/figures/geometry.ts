@@ -182,7 +182,7 @@ export function modelCurve(lineage: FigureLineage, axis: TimeAxis, requested: st
   const grid = new Set<number>(lineage.time);
   for (let k = 0; k <= curveSamples; k++) grid.add((span * k) / curveSamples);
   const times = [...grid].sort((a, b) => a - b);
-  const expectation = definition.expectation(estimates, times);
+  const expectation = definition.expectation(estimates, lineage.curveOrigin === 0 ? times : times.map((t) => t + lineage.curveOrigin));
   const mean: number[] = [];
   const lower: number[] = [];
   const upper: number[] = [];

@@ -299,7 +299,7 @@ function scaleOptions(title: string | readonly string[], reverse: boolean, limit
 
 function subtitleText(series: readonly Series[], together: boolean, options: ResolvedFigureOptions): string {
   if (together) {
-    const which = options.model ? `the ${shortModelLabel(series.find((s) => s.curve)?.curve?.label ?? options.model)} model fitted to each section` : "each section's best-supported model";
+    const which = options.linesCaption ?? (options.model ? `the ${shortModelLabel(series.find((s) => s.curve)?.curve?.label ?? options.model)} model fitted to each section` : "each section's best-supported model");
     const missing = series.filter((s) => !s.curve).map((s) => s.lineage.section || 'lineage');
     const drawn = series.filter((s) => s.curve);
     const flat = drawn.filter((s) => !s.curve!.hasEnvelope).map((s) => s.lineage.section || 'lineage');
