@@ -74,7 +74,7 @@ export function drawMarker(context: Context, shape: MarkerShape, x: number, y: n
 }
 
 /** Draw an interval from (x1, y1) to (x2, y2) with end caps across it. */
-export function drawInterval(context: Context, x1: number, y1: number, x2: number, y2: number, color: string, width = lineWidth.interval): void {
+export function drawInterval(context: Context, x1: number, y1: number, x2: number, y2: number, color: string, width: number = lineWidth.interval): void {
   const length = Math.hypot(x2 - x1, y2 - y1);
   context.save();
   context.setLineDash([]);
