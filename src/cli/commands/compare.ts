@@ -31,7 +31,7 @@ export function defineCompareCommand(program: Command): void {
     .option('--composite', 'also merge each trait\'s sections onto one timeline as one lineage and fit it like any lineage')
     .option('--merge-coeval', 'with --composite: pool horizons of equal age from different sections into one sample (default: keep them separate)')
     .option('--json', 'print one JSON document to stdout instead of the tables')
-    .option('--out <folder>', 'write compare.csv, compare-estimates.csv, compare.json and a sections figure per trait into this folder')
+    .option('--out <folder>', 'write compare.csv, compare-estimates.csv, compare.json and a sections figure per trait (<trait>.sections.png, drawn under the best-supported hypothesis) into this folder')
     .option('--no-figure', 'with --out: do not draw the sections figure')
     .option('--no-intervals', 'skip the profile-likelihood intervals (faster)')
     .option('--quiet', 'print nothing but errors and warnings')

@@ -34,8 +34,11 @@ export function defineRedrawCommand(program: Command): void {
 Figures (one file per figure; names say the lineage and the kind):
   <section>_<trait>.trajectory   horizon means with 95% sampling intervals, the model's expected
                                  trajectory and 95% envelope, oldest horizon at the bottom
-  <section>_<trait>.model-support  K, logL, AICc, ΔAICc and Akaike weight bars, best marked
-  <trait>.sections               all sections of a trait on one time axis (when there are two or more)`)
+  <section>_<trait>.model-support  K, logL, AICc, ΔAICc and Akaike weight bars, best marked (narrow
+                                 figures leave out logL, then AICc, then K, then show weights as numbers)
+  <trait>.sections               all sections of a trait on one time axis (when there are two or more;
+                                 from 7 sections on, one small panel per section on shared axes)
+Names that coincide after cleaning get -2, -3 on the lineage (or trait) name, as fit gave them.`)
     .action(async (file: string, options) => {
       const { redrawCommand } = await import('../render-command.js');
       redrawCommand(file, options);
