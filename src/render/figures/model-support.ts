@@ -64,7 +64,7 @@ const allColumns: readonly SupportColumn[] = ['k', 'logL', 'aicc', 'delta'];
  * The settings tried in order, from the full table down to the narrowest:
  * drop the glosses, wrap the model names, one decimal, 7 pt type, leave out
  * the logL column, then the AICc column, then K, show the weights as numbers
- * instead of bars, 6.5 pt type, and at last cut long words. ΔAICc, the model
+ * instead of bars, 6.5 pt then 6 pt type, and at last cut long words. ΔAICc, the model
  * names and the weights are always shown.
  */
 export const supportLayoutSteps: readonly TableSetting[] = (() => {
@@ -84,6 +84,8 @@ export const supportLayoutSteps: readonly TableSetting[] = (() => {
   push({ columns: ['delta'] });
   push({ bars: false });
   push({ size: typeSize.note });
+  // 6 pt: the smallest type journals commonly accept in figures (common practice).
+  push({ size: 6 });
   push({ breakWords: true });
   return steps;
 })();
