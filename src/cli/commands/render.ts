@@ -10,7 +10,7 @@ export function addFigureOptions(command: Command): Command {
     .option('--draw-model <id>', "model whose expected trajectory and 95% envelope are drawn (default: each lineage's best-supported model)")
     .option('--smoothed-band', 'also draw the smoothed lineage mean (Kalman smoother under the model drawn) with its 95% band')
     .option('--leave-out <parts>', 'parts of the figures not to draw, for a journal that sets its own caption: title, subtitle, notes, or captions for all three (comma-separated)')
-    .option('--trait-title <text>', 'title of the trait axis instead of the one made from the trait name and unit (e.g. "Shell length of the ammonite, mm")');
+    .option('--trait-title <text>', 'title of the trait axis instead of the one made from the trait name and unit; words between asterisks are set in italics (e.g. "Shell length of *Inventa fictiva* (mm)")');
 }
 
 /**

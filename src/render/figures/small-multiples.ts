@@ -3,7 +3,7 @@ import { measureText, type FigurePlan } from './chart-backend.js';
 import type { FigureLineage } from './figure-input.js';
 import { pointsPerCm, type ResolvedFigureOptions } from './figure-options.js';
 import { horizonMarks, modelCurve, timeAxisFor, traitAxisTitle, type HorizonMark, type ModelCurve } from './geometry.js';
-import { drawInterval, drawMarker, fillBetween, font, wrapText, type Context } from './marks.js';
+import { drawInterval, drawMarker, drawStyledLine, fillBetween, font, hasEmphasis, styledWords, wrapStyled, wrapText, type Context } from './marks.js';
 import { ink, lineWidth, modelInk, typeSize } from './style.js';
 import { fittedTicks, tickLabel } from './ticks.js';
 
@@ -92,9 +92,12 @@ export function smallMultiplesPlan(lineages: readonly FigureLineage[], options: 
   const traitLimits = padded(traits);
   const limits = stratigraphic ? { x: traitLimits, y: timeLimits } : { x: timeLimits, y: traitLimits };
   const reversed = stratigraphic ? { x: false, y: axis.reverse } : { x: axis.reverse, y: false };
+  // The trait title may mark italics with asterisks (`*Invented taxon*`); the time title never does.
   const traitTitle = options.traitTitle ?? traitAxisTitle(lineages[0]);
   const horizontalTitle = stratigraphic ? traitTitle : axis.title;
   const verticalTitle = stratigraphic ? axis.title : traitTitle;
+  const styledLinesOf = (title: string, width: number) =>
+    hasEmphasis(title) ? wrapStyled(styledWords(title), width, typeSize.axisTitle, measureText) : wrapText(title, width, (text) => measureText(font(typeSize.axisTitle), text), { breakWords: true }).map((line) => [{ text: line, italic: false }]);
   const tickFont = font(typeSize.tick);
   const measureTick = (text: string) => measureText(tickFont, text);
 
@@ -138,7 +141,7 @@ export function smallMultiplesPlan(lineages: readonly FigureLineage[], options: 
   const subtitleHeight = subtitle.length * typeSize.subtitle * 1.3;
   const gridTop = margin + titleHeight + subtitleHeight + (titleLines.length + subtitle.length > 0 ? 4 : 0);
   const bottomGutter = typeSize.tick * 1.2 + 4 + typeSize.axisTitle * 1.3 + 2;
-  const horizontalTitleLines = wrapText(horizontalTitle, plotWidth, (text) => measureText(font(typeSize.axisTitle), text), { breakWords: true });
+  const horizontalTitleLines = styledLinesOf(horizontalTitle, plotWidth);
   const heightPoints = Math.round(gridTop + rows * rowHeight - panelGap + bottomGutter + (horizontalTitleLines.length - 1) * typeSize.axisTitle * 1.3 + margin);
 
   const panels: PanelBox[] = items.map((item, index) => {
@@ -258,14 +261,13 @@ export function smallMultiplesPlan(lineages: readonly FigureLineage[], options: 
     context.font = font(typeSize.axisTitle);
     context.textBaseline = 'alphabetic';
     const gridBottom = Math.max(...panels.map((panel) => panel.bottom));
-    horizontalTitleLines.forEach((line, k) => context.fillText(line, margin + leftGutter + plotWidth / 2, gridBottom + typeSize.tick * 1.2 + 4 + typeSize.axisTitle * (1 + 1.3 * k)));
+    horizontalTitleLines.forEach((line, k) => drawStyledLine(context, line, margin + leftGutter + plotWidth / 2, gridBottom + typeSize.tick * 1.2 + 4 + typeSize.axisTitle * (1 + 1.3 * k), typeSize.axisTitle, ink.text, measureText));
     const firstTop = panels[0].top;
     const middle = (firstTop + gridBottom) / 2;
     context.translate(margin + typeSize.axisTitle, middle);
     context.rotate(-Math.PI / 2);
-    context.textAlign = 'center';
-    const verticalLines = wrapText(verticalTitle, gridBottom - firstTop, (text) => measureText(font(typeSize.axisTitle), text), { breakWords: true });
-    verticalLines.forEach((line, k) => context.fillText(line, 0, k * typeSize.axisTitle * 1.2 - ((verticalLines.length - 1) * typeSize.axisTitle * 1.2)));
+    const verticalLines = styledLinesOf(verticalTitle, gridBottom - firstTop);
+    verticalLines.forEach((line, k) => drawStyledLine(context, line, 0, (k - (verticalLines.length - 1)) * typeSize.axisTitle * 1.2, typeSize.axisTitle, ink.text, measureText));
     context.restore();
   };
 

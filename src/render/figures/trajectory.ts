@@ -4,7 +4,24 @@ import { figureLineageName, type FigureLineage } from './figure-input.js';
 import type { ResolvedFigureOptions } from './figure-options.js';
 import { pointsPerCm } from './figure-options.js';
 import { horizonMarks, modelCurve, smoothedBand, timeAxisFor, traitAxisTitle, type HorizonMark, type ModelCurve } from './geometry.js';
-import { drawInterval, drawLegend, drawMarker, fillBetween, font, layoutLegend, withOpacity, wrapText, type LegendEntry, type LegendLayout } from './marks.js';
+import {
+  drawInterval,
+  drawLegend,
+  drawMarker,
+  drawStyledLine,
+  fillBetween,
+  font,
+  hasEmphasis,
+  layoutLegend,
+  plainTitle,
+  styledWords,
+  withOpacity,
+  wrapStyled,
+  wrapText,
+  type LegendEntry,
+  type LegendLayout,
+  type StyledWord,
+} from './marks.js';
 import { ink, lineWidth, modelInk, seriesStyle, smoothedInk, typeSize, type SeriesStyle } from './style.js';
 import { fittedTicks, roundStep, tickLabel, type RoundStep } from './ticks.js';
 
@@ -105,15 +122,20 @@ export function trajectoryPlan(lineages: readonly FigureLineage[], options: Reso
   const subtitleMeasure = (text: string) => measureText(font(typeSize.subtitle), text);
   const subtitle = options.show.subtitle ? wrapText(subtitleText(series, together, options), innerWidth, subtitleMeasure, { breakWords: true }) : [];
   const stratigraphic = options.orientation === 'stratigraphic';
-  const traitTitle = options.traitTitle ?? traitAxisTitle(lineages[0]);
+  const markedTitle = options.traitTitle ?? traitAxisTitle(lineages[0]);
+  // A trait title may mark italics with asterisks (taxon names): chart.js sets a title in one font, so such a title is drawn by the plugin instead.
+  const traitTitle = plainTitle(markedTitle);
+  const styledTrait = hasEmphasis(markedTitle) ? styledWords(markedTitle) : null;
   // chart.js squeezes a title wider than its box (it draws with maxWidth), so narrow figures wrap the title and the horizontal axis title instead.
   const titleLines = options.show.title ? wrapText(title, innerWidth, (text) => measureText(font(typeSize.title, 'bold'), text), { breakWords: true }) : [];
   // A horizontal axis title gets the plot's width: the figure less the vertical axis (about 40 pt of tick labels and title).
   const horizontalTitle = wrapText(stratigraphic ? traitTitle : axis.title, Math.max(40, innerWidth - 40), (text) => measureText(font(typeSize.axisTitle), text), { breakWords: true });
+  const styledLines = styledTrait ? wrapStyled(styledTrait, stratigraphic ? Math.max(40, innerWidth - 40) : Number.POSITIVE_INFINITY, typeSize.axisTitle, measureText) : null;
+  const styledTitle = styledLines ? { lines: styledLines, axis: stratigraphic ? ('x' as const) : ('y' as const) } : null;
   // The aspect allows for one line of title, subtitle and horizontal axis title; each further line (narrow figures wrap them) adds its own height, so the plot is not squeezed.
   // A title or subtitle left out (--leave-out) gives its line back, so the plot keeps its size.
   const extraSubtitle =
-    (subtitle.length - 1) * typeSize.subtitle * 1.2 + (subtitle.length === 0 ? -6 : 0) + (titleLines.length - 1) * typeSize.title * 1.2 + (titleLines.length === 0 ? -2 : 0) + (horizontalTitle.length - 1) * typeSize.axisTitle * 1.2;
+    (subtitle.length - 1) * typeSize.subtitle * 1.2 + (subtitle.length === 0 ? -6 : 0) + (titleLines.length - 1) * typeSize.title * 1.2 + (titleLines.length === 0 ? -2 : 0) + ((styledLines && stratigraphic ? styledLines.length : horizontalTitle.length) - 1) * typeSize.axisTitle * 1.2;
   // Narrow figures: the plot stays at least as tall as the vertical axis title is long (about 60 pt of title, subtitle and horizontal axis go above and below it).
   const verticalTitle = measureText(font(typeSize.axisTitle), stratigraphic ? axis.title : traitTitle);
   const chartPart = Math.max(widthPoints * aspect(options), verticalTitle + 60);
@@ -218,6 +240,16 @@ export function trajectoryPlan(lineages: readonly FigureLineage[], options: Reso
     const traitValues = stratigraphic ? xs : ys;
     const timeScale = scaleOptions(stratigraphic ? axis.title : horizontalTitle, axis.reverse, padded(timeValues), stratigraphic ? 7 : 6);
     const traitScale = scaleOptions(stratigraphic ? horizontalTitle : traitTitle, false, padded(traitValues), 5);
+    if (styledTitle) {
+      // Room for the plugin's title where chart.js would have set its own: the same line height and padding.
+      const room = styledTitle.lines.length * typeSize.axisTitle * 1.2 + 3;
+      const plain = traitScale as unknown as { title: { display: boolean }; afterFit?: (scale: Scale) => void };
+      plain.title.display = false;
+      plain.afterFit = (scale: Scale) => {
+        if (scale.isHorizontal()) scale.height += room;
+        else scale.width += room;
+      };
+    }
     return {
       type: 'scatter',
       data: { datasets },
@@ -232,7 +264,7 @@ export function trajectoryPlan(lineages: readonly FigureLineage[], options: Reso
           subtitle: { display: subtitle.length > 0, text: subtitle, align: 'start', color: ink.muted, font: { size: typeSize.subtitle }, padding: { top: 0, bottom: 6 } },
         },
       },
-      plugins: [marksPlugin(series, stratigraphic, envelopes, legend)],
+      plugins: [marksPlugin(series, stratigraphic, envelopes, legend, styledTitle)],
     };
   };
   return { widthPoints, heightPoints, title, configuration, legend };
@@ -361,7 +393,13 @@ function legendEntries(series: readonly Series[], together: boolean): LegendEntr
   return entries;
 }
 
-function marksPlugin(series: readonly Series[], stratigraphic: boolean, envelopes: readonly EnvelopeFill[], legend: LegendLayout): Plugin<'scatter'> {
+function marksPlugin(
+  series: readonly Series[],
+  stratigraphic: boolean,
+  envelopes: readonly EnvelopeFill[],
+  legend: LegendLayout,
+  styledTitle: { readonly lines: readonly (readonly StyledWord[])[]; readonly axis: 'x' | 'y' } | null,
+): Plugin<'scatter'> {
   const pixel = (chart: Chart, time: number, value: number) => {
     const x = chart.scales.x.getPixelForValue(stratigraphic ? value : time);
     const y = chart.scales.y.getPixelForValue(stratigraphic ? time : value);
@@ -417,6 +455,23 @@ function marksPlugin(series: readonly Series[], stratigraphic: boolean, envelope
     },
     afterDraw(chart) {
       drawLegend(chart.ctx, legend, margin, chart.height - legend.height - 4);
+      if (styledTitle) {
+        const scale = chart.scales[styledTitle.axis];
+        const area = chart.chartArea;
+        const size = typeSize.axisTitle;
+        const lineHeight = size * 1.2;
+        const count = styledTitle.lines.length;
+        if (styledTitle.axis === 'x') {
+          // The lines' block sits at the foot of the scale (1 pt padding below, as chart.js sets its titles).
+          styledTitle.lines.forEach((line, k) => drawStyledLine(chart.ctx, line, (area.left + area.right) / 2, scale.bottom - 1 - (count - 1 - k) * lineHeight - size * 0.28, size, ink.text, measureText));
+        } else {
+          chart.ctx.save();
+          chart.ctx.translate(scale.left + 1, (area.top + area.bottom) / 2);
+          chart.ctx.rotate(-Math.PI / 2);
+          styledTitle.lines.forEach((line, k) => drawStyledLine(chart.ctx, line, 0, k * lineHeight + size * 0.92, size, ink.text, measureText));
+          chart.ctx.restore();
+        }
+      }
     },
   };
 }

@@ -10,6 +10,8 @@ import { InputError } from '../../../src/data/errors.js';
 import { readFigureLineage } from '../../../src/render/figures/figure-input.js';
 import { resolveFigureOptions, type FigureOptions } from '../../../src/render/figures/figure-options.js';
 import { renderTrajectory } from '../../../src/render/figures/index.js';
+import { styledWords } from '../../../src/render/figures/marks.js';
+import { smallMultiplesPlan } from '../../../src/render/figures/small-multiples.js';
 import { trajectoryPlan } from '../../../src/render/figures/trajectory.js';
 import { ridgeDocument } from './documents.js';
 import { recordDrawnText, textProblems } from './drawn-text.js';
@@ -57,6 +59,34 @@ describe('captions left out and the trait axis title', () => {
       expect(strings).toContain('Valve width of the invented brachiopod (mm)');
       expect(strings.join(' ')).not.toContain('mean per horizon');
     }
+  });
+
+  it('asterisks in the trait title mark italics (taxon names): those words are drawn in italic type, the rest upright, no asterisk drawn', () => {
+    const title = 'Valve width of *Inventa fictiva* (mm)';
+    for (const orientation of ['stratigraphic', 'horizontal'] as const) {
+      for (const width of [4, 9]) {
+        const drawn = drawnStrings({ width, orientation, traitTitle: title });
+        const italic = drawn.texts.filter((text) => text.font.startsWith('italic'));
+        expect(italic.map((text) => text.text).join(' ')).toBe('Inventa fictiva');
+        const all = drawn.texts.map((text) => text.text).join(' ');
+        expect(all).not.toContain('*');
+        expect(all).toContain('Valve width of');
+        expect(all).toContain('(mm)');
+        expect(textProblems(drawn, 3), `${orientation} ${width} cm`).toEqual([]);
+      }
+    }
+    // Sections drawn as small multiples carry the italics too.
+    const many = Array.from({ length: 7 }, (_, s) => ridgeDocument({ section: `Invented Gully ${s + 1}`, offset: 0.1 * s }));
+    const lineages = many.map((document, i) => readFigureLineage(document, `lineages[${i}]`));
+    const resolved = resolveFigureOptions({ traitTitle: title });
+    const drawn = recordDrawnText(smallMultiplesPlan(lineages, resolved), resolved);
+    expect(drawn.texts.filter((text) => text.font.startsWith('italic')).map((text) => text.text)).toEqual(['Inventa fictiva']);
+  });
+
+  it('styledWords: italic words between asterisks, a slant change inside a word glued, an unpaired asterisk kept', () => {
+    expect(styledWords('*Aus bus* length')).toEqual([{ text: 'Aus', italic: true }, { text: 'bus', italic: true }, { text: 'length', italic: false }]);
+    expect(styledWords('*Aus*-like width')).toEqual([{ text: 'Aus', italic: true }, { text: '-like', italic: false, glued: true }, { text: 'width', italic: false }]);
+    expect(styledWords('width * 2')).toEqual([{ text: 'width', italic: false }, { text: '*', italic: false }, { text: '2', italic: false }]);
   });
 
   it('parses --leave-out and refuses an unknown part as a usage error', () => {
