@@ -99,7 +99,6 @@ export function parseLeaveOut(text: string): FigurePart[] {
 function traitTitleOption(text: string): string {
   const trimmed = text.trim();
   if (trimmed === '') throw usageError('--trait-title: empty title');
-  // eslint-disable-next-line no-control-regex
   if (/[\u0000-\u001f\u007f-\u009f]/.test(trimmed)) throw usageError(`--trait-title: control characters are not allowed, got ${JSON.stringify(trimmed)}`);
   return trimmed;
 }

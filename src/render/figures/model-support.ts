@@ -151,7 +151,7 @@ export function modelSupportPlan(lineage: FigureLineage, options: ResolvedFigure
     const cells: Cell[] = rows.map((model, i) => {
       const { gloss } = splitLabel(model.label);
       const lines = setting.wrapNames
-        ? wrapText(texts[i].replace(/–/g, '– '), nameWidth0, measureName, { breakWords: setting.breakWords }).map((line) => line.replace(/– /g, '–').replace(/–$/, '–'))
+        ? wrapText(texts[i].replace(/–/g, '– '), nameWidth0, measureName, { breakWords: setting.breakWords }).map((line) => line.replace(/– /g, '–'))
         : [texts[i]];
       const keepGloss = gloss !== null && (setting.glosses || names.filter((other) => other === names[i]).length > 1);
       const glossLines = !keepGloss ? [] : setting.wrapNames ? wrapText(gloss, nameWidth0, measureGloss, { breakWords: setting.breakWords }) : [gloss];
