@@ -31,6 +31,7 @@ export interface FigureCommandOptions {
   smoothedBand?: boolean;
   leaveOut?: string;
   traitTitle?: string;
+  markerAreaByN?: boolean;
 }
 
 /** The checked figure options and the formats to write. */
@@ -63,6 +64,7 @@ export function figureRequest(options: FigureCommandOptions): FigureRequest {
     smoothed: options.smoothedBand === true,
     leaveOut: options.leaveOut === undefined ? [] : parseLeaveOut(options.leaveOut),
     traitTitle: options.traitTitle === undefined ? undefined : traitTitleOption(options.traitTitle),
+    markerByCount: options.markerAreaByN === true,
   };
   // Range checks (width, dpi) live with the figures; run them now so a bad option fails before any file is written.
   for (const format of formats) resolveFigureOptions({ ...figureOptions, format: format as FigureFormat });

@@ -9,6 +9,7 @@ export function addFigureOptions(command: Command): Command {
     .option('--orientation <layout>', 'stratigraphic (time up the page, oldest at the bottom) or horizontal (time left to right)', 'stratigraphic')
     .option('--draw-model <id>', "model whose expected trajectory and 95% envelope are drawn (default: each lineage's best-supported model)")
     .option('--smoothed-band', 'also draw the smoothed lineage mean (Kalman smoother under the model drawn) with its 95% band')
+    .option('--marker-area-by-n', 'draw each horizon mean with a marker whose area is proportional to its specimen count n (the median n at the usual size)')
     .option('--leave-out <parts>', 'parts of the figures not to draw, for a journal that sets its own caption: title, subtitle, notes, or captions for all three (comma-separated)')
     .option('--trait-title <text>', 'title of the trait axis instead of the one made from the trait name and unit; words between asterisks are set in italics (e.g. "Shell length of *Inventa fictiva* (mm)")');
 }

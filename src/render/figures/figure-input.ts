@@ -27,6 +27,8 @@ export interface FigureLineage {
   readonly position: readonly number[];
   readonly mean: readonly number[];
   readonly samplingVariance: readonly number[];
+  /** Specimens per horizon (`data.n`), or null when the document has none. */
+  readonly count: readonly number[] | null;
   /** Horizons whose age the age model extrapolated beyond its ties (drawn open). */
   readonly extrapolated: readonly boolean[];
   readonly smoothed: { readonly model: string; readonly mean: readonly number[]; readonly standardError: readonly number[] } | null;
@@ -96,6 +98,7 @@ export function readFigureLineage(document: unknown, where = 'lineage'): FigureL
   if (time.length < 1) fail(`${where}.data.time`, 'has no horizons');
   const mean = numberList(data.mean, `${where}.data.mean`, time.length);
   const samplingVariance = numberList(data.sampling_variance, `${where}.data.sampling_variance`, time.length);
+  const count = Array.isArray(data.n) && data.n.length === time.length && data.n.every((value) => typeof value === 'number' && value > 0 && Number.isFinite(value)) ? (data.n as number[]) : null;
   const position = data.position === undefined ? time.slice() : numberList(data.position, `${where}.data.position`, time.length);
   const rawModels = Array.isArray(doc.models) ? (doc.models as Json[]) : [];
   const models: FigureModel[] = rawModels.map((model, index) => {
@@ -152,6 +155,7 @@ export function readFigureLineage(document: unknown, where = 'lineage'): FigureL
     position,
     mean,
     samplingVariance,
+    count,
     extrapolated: Array.isArray(data.extrapolated) && data.extrapolated.length === time.length ? data.extrapolated.map((flag) => flag === true) : time.map(() => false),
     smoothed,
     curveOrigin: nullableNumber(doc.curve_origin) ?? 0,

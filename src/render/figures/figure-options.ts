@@ -26,6 +26,8 @@ export interface FigureOptions {
   readonly traitTitle?: string;
   /** Sections figure: what the lines are, in words, in place of "each section's best-supported model" (compare names its winning hypothesis). */
   readonly linesCaption?: string;
+  /** Marker area proportional to the horizon's specimen count n (default false: one size). */
+  readonly markerByCount?: boolean;
 }
 
 /** A part of a figure that can be left out: its title, the subtitle under it, the notes at its foot. */
@@ -47,6 +49,7 @@ export interface ResolvedFigureOptions {
   /** The trait axis title asked for, or null for the one made from the trait's name and unit. */
   readonly traitTitle: string | null;
   readonly linesCaption: string | null;
+  readonly markerByCount: boolean;
 }
 
 /** Single journal column width in cm (common practice: most journals ask for 8–9 cm). */
@@ -86,7 +89,7 @@ export function resolveFigureOptions(options: FigureOptions = {}): ResolvedFigur
   }
   const show = { title: !leaveOut.includes('title'), subtitle: !leaveOut.includes('subtitle'), notes: !leaveOut.includes('notes') };
   const traitTitle = options.traitTitle === undefined || options.traitTitle.trim() === '' ? null : options.traitTitle.trim();
-  return { format, widthCm, dpi, orientation, model: options.model ?? null, smoothed: options.smoothed === true, show, traitTitle, linesCaption: options.linesCaption ?? null };
+  return { format, widthCm, dpi, orientation, model: options.model ?? null, smoothed: options.smoothed === true, show, traitTitle, linesCaption: options.linesCaption ?? null, markerByCount: options.markerByCount === true };
 }
 
 /**

@@ -22,7 +22,7 @@ import {
   type LegendLayout,
   type StyledWord,
 } from './marks.js';
-import { ink, lineWidth, modelInk, seriesStyle, smoothedInk, typeSize, type SeriesStyle } from './style.js';
+import { ink, lineWidth, markerRadius, modelInk, seriesStyle, smoothedInk, typeSize, type SeriesStyle } from './style.js';
 import { fittedTicks, roundStep, tickLabel, type RoundStep } from './ticks.js';
 
 /** The first part of a model label, before any gloss in parentheses: "directional walk (random walk with drift)" → "directional walk". */
@@ -115,7 +115,9 @@ export function trajectoryPlan(lineages: readonly FigureLineage[], options: Reso
   const widthPoints = options.widthCm * pointsPerCm;
   const innerWidth = widthPoints - 2 * margin;
   const legendMeasure = (text: string) => measureText(font(typeSize.legend), text);
-  const legend = layoutLegend(legendEntries(series, together), innerWidth, legendMeasure);
+  const scaling = options.markerByCount ? countScaling(lineages) : null;
+  const markerSize = scaling ? (lineage: FigureLineage, index: number) => scaling.radius(lineage.count?.[index] ?? scaling.reference) : null;
+  const legend = layoutLegend([...legendEntries(series, together), ...(scaling ? countLegend(scaling) : [])], innerWidth, legendMeasure);
   const title = together
     ? `${capitalised(lineages[0].trait || 'trait')}: ${lineages.length} sections`
     : figureLineageName(lineages[0]);
@@ -264,10 +266,36 @@ export function trajectoryPlan(lineages: readonly FigureLineage[], options: Reso
           subtitle: { display: subtitle.length > 0, text: subtitle, align: 'start', color: ink.muted, font: { size: typeSize.subtitle }, padding: { top: 0, bottom: 6 } },
         },
       },
-      plugins: [marksPlugin(series, stratigraphic, envelopes, legend, styledTitle)],
+      plugins: [marksPlugin(series, stratigraphic, envelopes, legend, styledTitle, markerSize)],
     };
   };
   return { widthPoints, heightPoints, title, configuration, legend };
+}
+
+/**
+ * Marker area proportional to n: radius = r0 √(n / n_median), the median n
+ * of the horizons drawn at the house radius r0, clamped to 0.5–2 r0 so a
+ * single horizon of one specimen stays visible and a huge one does not
+ * cover its neighbours (the clamp is stated in the legend).
+ */
+function countScaling(lineages: readonly FigureLineage[]): { reference: number; smallest: number; largest: number; radius(n: number): number } | null {
+  const counts = lineages.flatMap((lineage) => lineage.count ?? []).sort((a, b) => a - b);
+  if (counts.length === 0) return null;
+  const middle = Math.floor(counts.length / 2);
+  const reference = counts.length % 2 === 1 ? counts[middle] : (counts[middle - 1] + counts[middle]) / 2;
+  const radius = (n: number) => markerRadius * Math.min(2, Math.max(0.5, Math.sqrt(n / reference)));
+  return { reference, smallest: counts[0], largest: counts[counts.length - 1], radius };
+}
+
+function countLegend(scaling: { reference: number; smallest: number; largest: number }): LegendEntry[] {
+  const round = (n: number) => Number(n.toPrecision(3));
+  const clamped = scaling.smallest < scaling.reference / 4 || scaling.largest > scaling.reference * 4;
+  return [
+    {
+      key: { marker: { shape: 'circle', color: ink.text } },
+      text: `Marker area proportional to n (this size: median n = ${round(scaling.reference)}; n from ${round(scaling.smallest)} to ${round(scaling.largest)})${clamped ? ', areas held within ¼ to 4 times this' : ''}`,
+    },
+  ];
 }
 
 function capitalised(text: string): string {
@@ -399,6 +427,7 @@ function marksPlugin(
   envelopes: readonly EnvelopeFill[],
   legend: LegendLayout,
   styledTitle: { readonly lines: readonly (readonly StyledWord[])[]; readonly axis: 'x' | 'y' } | null,
+  markerSize: ((lineage: FigureLineage, index: number) => number) | null,
 ): Plugin<'scatter'> {
   const pixel = (chart: Chart, time: number, value: number) => {
     const x = chart.scales.x.getPixelForValue(stratigraphic ? value : time);
@@ -448,7 +477,7 @@ function marksPlugin(
         item.marks.forEach((mark, i) => {
           const centre = pixel(chart, mark.time, mark.mean);
           const filled = (style ? style.filled : true) && !item.lineage.extrapolated[i];
-          drawMarker(chart.ctx, style ? style.marker : 'circle', centre.x, centre.y, style ? style.color : ink.text, filled);
+          drawMarker(chart.ctx, style ? style.marker : 'circle', centre.x, centre.y, style ? style.color : ink.text, filled, markerSize ? markerSize(item.lineage, i) : markerRadius);
         });
       }
       chart.ctx.restore();
