@@ -129,9 +129,15 @@ export function smallMultiplesPlan(lineages: readonly FigureLineage[], options: 
     : [];
   const which = options.linesCaption ?? (options.model ? `the ${shortLabel(items.find((item) => item.curve)?.curve?.label ?? options.model)} model fitted to each section` : "each section's best-supported model");
   const missing = items.filter((item) => !item.curve).map((item) => item.lineage.section || 'lineage');
+  // Marker area proportional to n (--marker-area-by-n): the median n at the panels' marker size, held within 0.5–2 times its radius.
+  const counts = options.markerByCount ? lineages.flatMap((lineage) => lineage.count ?? []).sort((a, b) => a - b) : [];
+  const medianCount = counts.length === 0 ? null : counts.length % 2 === 1 ? counts[(counts.length - 1) / 2] : (counts[counts.length / 2 - 1] + counts[counts.length / 2]) / 2;
+  const panelMarker = 1.6;
+  const markerSize = (n: number | null) => (medianCount === null || n === null ? panelMarker : panelMarker * Math.min(2, Math.max(0.5, Math.sqrt(n / medianCount))));
+  const countWords = medianCount === null ? '' : ` Marker area proportional to n (median n = ${Number(medianCount.toPrecision(3))} at the usual size).`;
   const subtitle = options.show.subtitle
     ? wrapText(
-        `Bars: 95% sampling intervals of the horizon means. Line and shading: expected trajectory and 95% envelope of ${which}${oneModel ? ` (${modelWords[0]} in every panel)` : ''}. All panels share their axes.${missing.length > 0 ? ` No line for ${missing.join(', ')}.` : ''}`,
+        `Bars: 95% sampling intervals of the horizon means. Line and shading: expected trajectory and 95% envelope of ${which}${oneModel ? ` (${modelWords[0]} in every panel)` : ''}. All panels share their axes.${missing.length > 0 ? ` No line for ${missing.join(', ')}.` : ''}${countWords}`,
         inner,
         (text) => measureText(font(typeSize.subtitle), text),
         { breakWords: true },
@@ -227,7 +233,7 @@ export function smallMultiplesPlan(lineages: readonly FigureLineage[], options: 
     }
     item.marks.forEach((mark, i) => {
       const centre = at(panel, mark.time, mark.mean);
-      drawMarker(context, 'circle', centre.x, centre.y, ink.text, !item.lineage.extrapolated[i], 1.6);
+      drawMarker(context, 'circle', centre.x, centre.y, ink.text, !item.lineage.extrapolated[i], markerSize(item.lineage.count?.[i] ?? null));
     });
     context.restore();
   };

@@ -12,7 +12,9 @@ import { resolveFigureOptions } from '../../../src/render/figures/figure-options
 import { renderTrajectory } from '../../../src/render/figures/index.js';
 import { trajectoryPlan } from '../../../src/render/figures/trajectory.js';
 import { markerRadius } from '../../../src/render/figures/style.js';
+import { smallMultiplesPlan } from '../../../src/render/figures/small-multiples.js';
 import { ridgeDocument } from './documents.js';
+import { recordDrawnText } from './drawn-text.js';
 import { decodePng, keepChanged, luma, scalePixel, type Pixels } from './figure-probes.js';
 
 function inkRun(pixels: Pixels, x: number, y: number): number {
@@ -59,5 +61,16 @@ describe('marker area by n', () => {
     const plan = trajectoryPlan([lineage], resolveFigureOptions({ markerByCount: true }), false);
     const texts = plan.legend.rows.flatMap((row) => row.entries.map((placed) => placed.entry.text));
     expect(texts.some((text) => text.startsWith('Marker area proportional to n (this size: median n = 20;'))).toBe(true);
+  });
+
+  it('small multiples (7 sections) say so in the subtitle, and only when asked', () => {
+    const documents = Array.from({ length: 7 }, (_, s) => ridgeDocument({ section: `Invented Gully ${s + 1}`, offset: 0.1 * s }));
+    const lineages = documents.map((document, i) => readFigureLineage(document, `lineages[${i}]`));
+    const words = (markerByCount: boolean) => {
+      const resolved = resolveFigureOptions({ markerByCount });
+      return recordDrawnText(smallMultiplesPlan(lineages, resolved), resolved).texts.map((text) => text.text).join(' ');
+    };
+    expect(words(true)).toContain('Marker area proportional to n');
+    expect(words(false)).not.toContain('Marker area');
   });
 });
