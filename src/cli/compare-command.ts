@@ -10,7 +10,7 @@ import { perSectionName } from '../compare/joint-models.js';
 import { intervalOptions } from '../fit/intervals.js';
 import { modelsForLineage } from './fit-extensions.js';
 import { candidateKey, comparisonCaution, comparisonCsv, comparisonDocument, comparisonTable, estimatesCsv, spreadsDocument } from '../compare/output.js';
-import { mergeSections, toleratingCoeval } from '../compare/stack.js';
+import { commonTime, mergeSections, toleratingCoeval } from '../compare/stack.js';
 import { fitLineage, type LineageFit } from '../fit/fit-lineage.js';
 import { lineageName, type Lineage, type LineageOptions } from '../lineage.js';
 import { lineageDocument, type Provenance } from '../render/fit-document.js';
@@ -309,12 +309,33 @@ export async function runCompare(file: string, options: CompareCommandOptions, r
  * so the sections line up on the common timescale.
  */
 export function sectionDocuments(comparison: TraitComparison, models: ReturnType<typeof resolveModels>['models']): Record<string, unknown>[] {
-  return comparison.sections.map((section) => {
+  const winner = comparison.best === null ? undefined : comparison.hypotheses.find((hypothesis) => hypothesis.id === comparison.best!.id && hypothesis.model === comparison.best!.model);
+  const joint = winner?.joint ?? null;
+  const { starts } = commonTime(comparison.sections);
+  return comparison.sections.map((section, s) => {
     const document = lineageDocument(fitLineage(section, models, { intervals: false }));
     const data = document.data as Record<string, unknown>;
     const firstAge = section.firstAge ?? 0;
-    return { ...document, position_kind: 'age', data: { ...data, position: Array.from(section.time, (t) => firstAge - t) } };
+    const placed = { ...document, position_kind: 'age', data: { ...data, position: Array.from(section.time, (t) => firstAge - t) } };
+    if (!winner || !joint) return placed;
+    // A shared hypothesis won: the winning model's row carries the section's parameters under that hypothesis, not its separate fit.
+    const parameters = joint.sectionParameters({ ...winner.estimates }, s);
+    const rows = (document.models as Record<string, unknown>[]).map((row) => {
+      if (row.id !== winner.model) return row;
+      const params = Object.fromEntries(Object.entries(parameters).map(([name, value]) => [name, { estimate: Number.isFinite(value) ? value : null, lower: null, upper: null, at_bound: null, lower_at_bound: false, upper_at_bound: false }]));
+      return { ...row, params, derived: {} };
+    });
+    // Under shared-offset one process runs from the oldest horizon of all sections: this section joins it starts[s] time units later.
+    return { ...placed, models: rows, smoothed: null, curve_origin: joint.hypothesis === 'shared-offset' ? starts[s] : 0 };
   });
+}
+
+/** The sections figure's words for its lines: the winning hypothesis and model. */
+export function hypothesisCaption(comparison: TraitComparison, label: string): string {
+  const best = comparison.best;
+  if (!best || best.id === 'separate') return `the ${label} model fitted to each section separately (the best-supported hypothesis)`;
+  if (best.id === 'shared') return `the ${label} model with one process shared by all sections, each from its own start (the best-supported hypothesis)`;
+  return `the ${label} model as one lineage on the common timescale, each section shifted by its own offset (the best-supported hypothesis)`;
 }
 
 /** `stratotrend compare FILE`: print the comparison tables (or JSON) and write outputs with --out. */
@@ -340,7 +361,12 @@ async function compareAndWrite(file: string, options: CompareCommandOptions): Pr
   if (options.out) {
     const inputs = inputPaths(file, options);
     const drawFigures = options.figure !== false && result.run.comparisons.length > 0;
-    const figureNames = drawFigures ? result.run.comparisons.map((comparison, index) => `sections-${index + 1}-${slug(comparison.trait)}.png`) : [];
+    const { models } = resolveModels(options.models);
+    const documents = drawFigures ? result.run.comparisons.map((comparison) => sectionDocuments(comparison, models)) : [];
+    // The file names of fit and redraw (`figureJobs`: <trait>.sections, numbered when traits coincide after cleaning).
+    const { figureJobs } = await import('../render/figures/figure-set.js');
+    const jobs = figureJobs(documents.flat(), ['sections']);
+    const figureNames = jobs.map((job) => `${job.stem}.png`);
     const names = ['compare.csv', 'compare-estimates.csv', 'compare.json', ...(result.composites.length > 0 ? ['composite-models.csv'] : []), ...figureNames];
     const folder = prepareOutputFolder(options.out, inputs, names);
     // Written as one set, put in place at the end (a full disk leaves the previous set whole).
@@ -352,9 +378,10 @@ async function compareAndWrite(file: string, options: CompareCommandOptions): Pr
       if (result.composites.length > 0) set.add('composite-models.csv', modelsCsv(result.composites));
       if (drawFigures) {
         const { renderSectionsTogether } = await import('../render/figures/index.js');
-        const { models } = resolveModels(options.models);
         for (const [index, comparison] of result.run.comparisons.entries()) {
-          const figure = renderSectionsTogether(sectionDocuments(comparison, models), { model: comparison.best?.model });
+          const label = models.find((model) => model.id === comparison.best?.model)?.label ?? comparison.best?.model ?? '';
+          const short = label.includes(' (') ? label.slice(0, label.indexOf(' (')) : label;
+          const figure = renderSectionsTogether(documents[index], { model: comparison.best?.model, linesCaption: comparison.best ? hypothesisCaption(comparison, short) : undefined });
           set.add(figureNames[index], figure.bytes);
         }
       }
@@ -382,9 +409,4 @@ async function compareAndWrite(file: string, options: CompareCommandOptions): Pr
     if (warning.category === 'long-run') continue; // printed before the run
     process.stderr.write(`warning (${warning.category}): ${warning.message}${warning.count > 1 ? ` (${warning.count} times)` : ''}\n`);
   }
-}
-
-function slug(text: string): string {
-  const cleaned = text.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-+|-+$/g, '');
-  return cleaned === '' ? 'trait' : cleaned.slice(0, 40);
 }

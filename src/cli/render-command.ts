@@ -17,6 +17,10 @@ import {
 import { durationWords } from './run-cost.js';
 import { OutputSet, prepareOutputFolder, releaseOutputLocks } from './write-output.js';
 import { WarningLog } from '../data/warnings.js';
+import { figureParts, type FigurePart } from '../render/figures/figure-options.js';
+import { smoothUnderEstimates } from '../fit/fit-lineage.js';
+import { lineageFromArrays } from '../lineage.js';
+import { findModel } from '../models/registry.js';
 
 /** Figure options as commander hands them over (strings until checked). */
 export interface FigureCommandOptions {
@@ -27,6 +31,9 @@ export interface FigureCommandOptions {
   orientation?: string;
   drawModel?: string;
   smoothedBand?: boolean;
+  leaveOut?: string;
+  traitTitle?: string;
+  markerAreaByN?: boolean;
 }
 
 /** The checked figure options and the formats to write. */
@@ -57,6 +64,9 @@ export function figureRequest(options: FigureCommandOptions): FigureRequest {
     orientation,
     model: options.drawModel,
     smoothed: options.smoothedBand === true,
+    leaveOut: options.leaveOut === undefined ? [] : parseLeaveOut(options.leaveOut),
+    traitTitle: options.traitTitle === undefined ? undefined : traitTitleOption(options.traitTitle),
+    markerByCount: options.markerAreaByN === true,
   };
   // Range checks (width, dpi) live with the figures; run them now so a bad option fails before any file is written.
   for (const format of formats) resolveFigureOptions({ ...figureOptions, format: format as FigureFormat });
@@ -69,6 +79,34 @@ export function figureRequest(options: FigureCommandOptions): FigureRequest {
   return { formats: [...new Set(formats)] as FigureFormat[], options: figureOptions };
 }
 
+/**
+ * Parse `--leave-out`: a comma-separated list of title, subtitle, notes, or
+ * "captions" for all three.
+ *
+ * @throws InputError (usage) naming the unknown part
+ * @example
+ * parseLeaveOut('title,notes'); // ["title", "notes"]
+ */
+export function parseLeaveOut(text: string): FigurePart[] {
+  const words = text.split(',').map((word) => word.trim().toLowerCase()).filter((word) => word !== '');
+  if (words.length === 0) throw usageError('--leave-out: no part named; use title, subtitle, notes or captions');
+  const parts = new Set<FigurePart>();
+  for (const word of words) {
+    if (word === 'captions') figureParts.forEach((part) => parts.add(part));
+    else if ((figureParts as readonly string[]).includes(word)) parts.add(word as FigurePart);
+    else throw usageError(`--leave-out: unknown part "${word}"; use title, subtitle, notes or captions`);
+  }
+  return figureParts.filter((part) => parts.has(part));
+}
+
+/** Check `--trait-title`: one line of printable text. */
+function traitTitleOption(text: string): string {
+  const trimmed = text.trim();
+  if (trimmed === '') throw usageError('--trait-title: empty title');
+  if (/[\u0000-\u001f\u007f-\u009f]/.test(trimmed)) throw usageError(`--trait-title: control characters are not allowed, got ${JSON.stringify(trimmed)}`);
+  return trimmed;
+}
+
 /** The figures to write and their file names, known before anything is drawn. */
 export interface FigurePlanForFolder {
   readonly jobs: readonly FigureJob[];
@@ -76,16 +114,25 @@ export interface FigurePlanForFolder {
   readonly names: readonly string[];
 }
 
-/** Plan the figure files of a fit document's lineages. */
-export function planFigureFiles(lineages: readonly unknown[], options: FigureCommandOptions, kinds: readonly FigureKind[] = figureKinds): FigurePlanForFolder {
+/**
+ * Plan the figure files of a fit document's lineages: always pass all of
+ * them (names are worked out over the whole document, `figureJobs`) and
+ * narrow with `selected`.
+ */
+export function planFigureFiles(
+  lineages: readonly unknown[],
+  options: FigureCommandOptions,
+  kinds: readonly FigureKind[] = figureKinds,
+  selected: (index: number) => boolean = () => true,
+): FigurePlanForFolder {
   const request = figureRequest(options);
   if (request.options.model) {
-    const ids = new Set(lineages.flatMap((document) => ((document as { models?: { id?: unknown }[] }).models ?? []).map((model) => String(model.id))));
+    const ids = new Set(lineages.filter((_document, index) => selected(index)).flatMap((document) => ((document as { models?: { id?: unknown }[] }).models ?? []).map((model) => String(model.id))));
     if (!ids.has(request.options.model)) {
       throw usageError(`--draw-model: no lineage was fitted with "${request.options.model}"; models in this fit: ${[...ids].join(', ') || 'none'}`);
     }
   }
-  const jobs = figureJobs(lineages, kinds);
+  const jobs = figureJobs(lineages, kinds, selected);
   const names = jobs.flatMap((job) => request.formats.map((format) => `${job.stem}.${format}`));
   return { jobs, request, names };
 }
@@ -128,10 +175,12 @@ export function writeFigureFiles(lineages: readonly unknown[], plan: FigurePlanF
   const total = plan.names.length;
   // Hundreds of lineages mean hundreds of figures at about half a second each at 600 dpi: say how far it got.
   const progress = total > 12 && process.stderr.isTTY ? (done: number) => process.stderr.write(`\rdrawing figures ${done}/${total}${done === total ? '\n' : ''}`) : null;
+  const { model, smoothed } = plan.request.options;
   for (const job of plan.jobs) {
+    // The band is the smoother of the model drawn: fit.json holds the best model's, so another model's is worked out from its estimates.
+    const documents = job.lineages.map((index) => (smoothed && model && job.kind === 'trajectory' ? withSmootherOf(lineages[index], model) : lineages[index]));
     for (const format of plan.request.formats) {
       const options: FigureOptions = { ...plan.request.options, format };
-      const documents = job.lineages.map((index) => lineages[index]);
       const figure =
         job.kind === 'trajectory'
           ? renderTrajectory(documents[0], options)
@@ -145,6 +194,40 @@ export function writeFigureFiles(lineages: readonly unknown[], plan: FigurePlanF
     }
   }
   return written;
+}
+
+/**
+ * A lineage document whose `smoothed` is the smoother under `modelId` (the
+ * model drawn): unchanged when it already is, else worked out from the
+ * model's estimates and the document's horizon data (`smoothUnderEstimates`),
+ * or null when that cannot be done (the model was not fitted, or needs a
+ * covariate the document does not carry); the figure then says why no band is drawn.
+ */
+export function withSmootherOf(document: unknown, modelId: string): unknown {
+  const doc = document as { smoothed?: { model?: unknown } | null; models?: unknown; data?: Record<string, unknown>; time_unit?: unknown };
+  if (doc?.smoothed?.model === modelId) return document;
+  let smoothed: { model: string; mean: number[]; standard_error: number[] } | null = null;
+  try {
+    const entry = (Array.isArray(doc.models) ? doc.models : []).find((candidate: { id?: unknown }) => candidate?.id === modelId) as { params?: Record<string, { estimate?: unknown }> } | undefined;
+    const definition = findModel(modelId);
+    const data = doc.data ?? {};
+    const numbers = (value: unknown) => (Array.isArray(value) && value.every((item) => typeof item === 'number' && Number.isFinite(item)) ? (value as number[]) : null);
+    const time = numbers(data.time);
+    const mean = numbers(data.mean);
+    const samplingVariance = numbers(data.sampling_variance);
+    if (entry && definition && time && mean && samplingVariance && mean.length === time.length && samplingVariance.length === time.length) {
+      const estimates: Record<string, number> = {};
+      for (const [name, value] of Object.entries(entry.params ?? {})) if (typeof value?.estimate === 'number') estimates[name] = value.estimate;
+      const lineage = lineageFromArrays({ time, mean, samplingVariance, count: numbers(data.n) ?? undefined });
+      const result = smoothUnderEstimates(definition, estimates, lineage);
+      if (result.mean.every(Number.isFinite) && result.standardError.every(Number.isFinite)) {
+        smoothed = { model: modelId, mean: Array.from(result.mean), standard_error: Array.from(result.standardError) };
+      }
+    }
+  } catch {
+    smoothed = null;
+  }
+  return { ...(document as object), smoothed };
 }
 
 /** Options of `stratotrend redraw`. */
@@ -202,11 +285,12 @@ export function redrawCommand(file: string, options: RedrawCommandOptions): void
 function redrawAndWrite(file: string, options: RedrawCommandOptions): void {
   const all = readFitDocument(file);
   const wanted = options.lineage ?? [];
-  const lineages = all.filter((document) => lineageMatches(document, wanted));
-  if (lineages.length === 0) {
+  const chosen = all.map((document) => lineageMatches(document, wanted));
+  if (!chosen.includes(true)) {
     throw usageError(`--lineage: no lineage of ${file} is called ${wanted.map((name) => `"${name}"`).join(' or ')}`);
   }
-  const plan = namingFile(file, () => planFigureFiles(lineages, options, parseKinds(options.only ?? figureKinds.join(','))));
+  // Names come from the whole document, as fit gave them, so redrawing some lineages never takes another's file name.
+  const plan = namingFile(file, () => planFigureFiles(all, options, parseKinds(options.only ?? figureKinds.join(',')), (index) => chosen[index]));
   if (plan.jobs.length === 0) throw usageError('nothing to draw (a sections figure needs a trait measured in two or more sections)');
   const out = options.out ?? dirname(file);
   const folder = prepareOutputFolder(out, [file], plan.names);
@@ -219,7 +303,7 @@ function redrawAndWrite(file: string, options: RedrawCommandOptions): void {
   const set = new OutputSet(folder, out);
   const written = namingFile(file, () => {
     try {
-      return writeFigureFiles(lineages, plan, set);
+      return writeFigureFiles(all, plan, set);
     } catch (error) {
       set.abandon();
       throw error;

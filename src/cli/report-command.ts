@@ -130,6 +130,7 @@ export async function reportFigures(document: FitDocumentView, choices: ReportFi
     return { figures: sketchFigures(document, choices.smoothedBand), note: `Figures are plain sketches: the chart module could not be loaded (${(error as Error).message}).` };
   }
   const { renderTrajectory, renderSectionsTogether, figureJobs } = figuresModule;
+  const { withSmootherOf } = await import('./render-command.js');
   const options = {
     format: choices.format,
     width: 'double' as const,
@@ -144,7 +145,9 @@ export async function reportFigures(document: FitDocumentView, choices: ReportFi
     const jobs = figureJobs(document.lineages, ['trajectory', 'sections']);
     for (const job of jobs.slice(0, maximumFigures)) {
       const lineages = job.lineages.map((index) => document.lineages[index]);
-      const drawn = job.kind === 'trajectory' ? renderTrajectory(lineages[0], options) : renderSectionsTogether(lineages, options);
+      // The band is the smoother of the model drawn (fit.json holds the best model's).
+      const single = options.smoothed && options.model ? withSmootherOf(lineages[0], options.model) : lineages[0];
+      const drawn = job.kind === 'trajectory' ? renderTrajectory(single, options) : renderSectionsTogether(lineages, options);
       const caption = job.kind === 'trajectory'
         ? `${lineageTitle(lineages[0])}: horizon means with 95% sampling intervals (±1.96 √eᵢ), the expected trajectory of ${modelWords(lineages[0], choices.drawModel)} with its 95% envelope${options.smoothed ? ', and the smoothed lineage mean with its 95% band' : ''}; ${direction}.`
         : `${lineages[0].trait || 'trait'}: ${lineages.map((lineage) => lineage.section || 'lineage').join(', ')} on one time axis, each with the expected trajectory of its ${choices.drawModel ? 'chosen' : 'best-supported'} model and its 95% envelope shaded (none where the model's variance is 0); ${direction}.`;

@@ -68,8 +68,22 @@ export function fitLineage(lineage: Lineage, models: readonly EvolutionModel[], 
   return { lineage, models: ranked, best, smoothed };
 }
 
+/**
+ * Smoothed lineage mean and its standard error under a model at given
+ * point estimates (as fit.json holds them), e.g. to redraw the smoother of a
+ * model other than the best one. The location coefficients are the GLS ones
+ * at the estimates' process values, as in `smoothUnder`.
+ *
+ * @throws Error when the estimates lack a process parameter of the model
+ */
+export function smoothUnderEstimates(model: EvolutionModel, estimates: Readonly<Record<string, number>>, lineage: Lineage): SmoothedLineage {
+  const process = model.processFrom({ ...estimates }, lineage);
+  if (process.some((value) => !Number.isFinite(value))) throw new Error(`${model.id}: the estimates lack a process parameter`);
+  return smoothUnder(model, { process }, lineage);
+}
+
 /** Smoothed lineage mean and its standard error under a fitted model. */
-export function smoothUnder(model: EvolutionModel, fit: ModelFit, lineage: Lineage): SmoothedLineage {
+export function smoothUnder(model: EvolutionModel, fit: Pick<ModelFit, 'process'>, lineage: Lineage): SmoothedLineage {
   const evaluator = new LikelihoodEvaluator(model, lineage);
   const details = evaluator.details(fit.process);
   model.fillSpace(lineage, fit.process, evaluator.space);

@@ -70,7 +70,7 @@ describe('stratotrend compare', () => {
     const csv = readFileSync(join(out, 'compare.csv'), 'utf8').trim().split('\n');
     expect(csv[0]).toBe('trait,hypothesis,model,k,horizons,logLik,aicc,delta_aicc,weight,best,compared,lrt_statistic,lrt_df,lrt_p_value,extrapolated_horizons,message,same_fit_as');
     expect(csv).toHaveLength(1 + 2 * 6);
-    expect(existsSync(join(out, 'sections-1-whorl-width.png'))).toBe(true);
+    expect(existsSync(join(out, 'whorl-width.sections.png'))).toBe(true);
     const help = spawnSync(process.execPath, [launcher, 'compare', '--help'], { encoding: 'utf8' });
     expect(help.stdout).toMatch(/shared-offset/);
     expect(help.stdout).toMatch(/--age-model <file>/);

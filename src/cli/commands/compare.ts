@@ -18,7 +18,7 @@ export function defineCompareCommand(program: Command): void {
     .option('--composite', 'also merge each trait\'s sections onto one timeline as one lineage and fit it like any lineage, after removing the section offsets estimated under the best-supported shared-offset hypothesis (the output says which)')
     .option('--merge-coeval', 'with --composite: pool horizons of equal age from different sections into one sample (default: keep them separate)')
     .option('--json', 'print one JSON document to stdout instead of the tables')
-    .option('--out <folder>', 'write compare.csv, compare-estimates.csv, compare.json and a sections figure per trait into this folder')
+    .option('--out <folder>', 'write compare.csv, compare-estimates.csv, compare.json and a sections figure per trait (<trait>.sections.png, drawn under the best-supported hypothesis) into this folder')
     .option('--no-figure', 'with --out: do not draw the sections figure')
     .option('--no-intervals', 'skip the 95% intervals (faster)')
     .option('--intervals <method>', 'how the 95% intervals are made, as for "fit": integrated (default: integrated likelihood, best calibrated; models with several process parameters use adjusted), adjusted (restricted profile likelihood), profile (plain profile likelihood, asymptotic) or bootstrap (profile with a parametric-bootstrap cut-off, slower)')

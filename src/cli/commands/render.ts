@@ -8,7 +8,10 @@ export function addFigureOptions(command: Command): Command {
     .option('--dpi <dots>', 'resolution of PNG figures in dots per inch (72 to 1200)', '600')
     .option('--orientation <layout>', 'stratigraphic (time up the page, oldest at the bottom) or horizontal (time left to right)', 'stratigraphic')
     .option('--draw-model <id>', "model whose expected trajectory and 95% envelope are drawn (default: each lineage's best-supported model)")
-    .option('--smoothed-band', 'also draw the smoothed lineage mean (Kalman smoother under the best model) with its 95% band');
+    .option('--smoothed-band', 'also draw the smoothed lineage mean (Kalman smoother under the model drawn) with its 95% band')
+    .option('--marker-area-by-n', 'draw each horizon mean with a marker whose area is proportional to its specimen count n (the median n at the usual size)')
+    .option('--leave-out <parts>', 'parts of the figures not to draw, for a journal that sets its own caption: title, subtitle, notes, or captions for all three (comma-separated)')
+    .option('--trait-title <text>', 'title of the trait axis instead of the one made from the trait name and unit; words between asterisks are set in italics (e.g. "Shell length of *Inventa fictiva* (mm)")');
 }
 
 /**
@@ -32,8 +35,11 @@ export function defineRedrawCommand(program: Command): void {
 Figures (one file per figure; names say the lineage and the kind):
   <section>_<trait>.trajectory   horizon means with 95% sampling intervals, the model's expected
                                  trajectory and 95% envelope, oldest horizon at the bottom
-  <section>_<trait>.model-support  K, logL, AICc, ΔAICc and Akaike weight bars, best marked
-  <trait>.sections               all sections of a trait on one time axis (when there are two or more)`)
+  <section>_<trait>.model-support  K, logL, AICc, ΔAICc and Akaike weight bars, best marked (narrow
+                                 figures leave out logL, then AICc, then K, then show weights as numbers)
+  <trait>.sections               all sections of a trait on one time axis (when there are two or more;
+                                 from 7 sections on, one small panel per section on shared axes)
+Names that coincide after cleaning get -2, -3 on the lineage (or trait) name, as fit gave them.`)
     .action(async (file: string, options) => {
       const { redrawCommand } = await import('../render-command.js');
       redrawCommand(file, options);

@@ -183,7 +183,7 @@ export function drawFigure(plan: FigurePlan, options: ResolvedFigureOptions): Re
     const content = surface.getContent().toString('utf8');
     chart.destroy();
     const resized = content.replace(/<svg([^>]*?)\swidth="[^"]*"\s+height="[^"]*"/, `<svg$1 width="${widthPoints}pt" height="${heightPoints}pt" viewBox="0 0 ${widthPoints} ${heightPoints}"`);
-    const svg = stableIds(resized);
+    const svg = stableIds(wholeTextElements(resized));
     return { bytes: new TextEncoder().encode(svg), mime: 'image/svg+xml', width: widthPoints, height: heightPoints, widthCm, frame: requireFrame(store) };
   }
   const { canvas } = chartStack;
@@ -211,6 +211,65 @@ export function drawFigure(plan: FigurePlan, options: ResolvedFigureOptions): Re
   target = canvas.createCanvas(1, 1).getContext('2d');
   chart.destroy();
   return { bytes: new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength), mime: 'application/pdf', width: widthPoints, height: heightPoints, widthCm, frame: requireFrame(store) };
+}
+
+/** The Latin ligatures U+FB00–U+FB06 (Unicode Alphabetic Presentation Forms) as letters. */
+const ligatures = ['ff', 'fi', 'fl', 'ffi', 'ffl', 'ſt', 'st'];
+
+/**
+ * Skia writes each run of a drawn string as its own `<text>` with one x per
+ * glyph, and each space between words as an empty `<text x="" y="">`; a
+ * vector editor then shows a string as loose words (and one common renderer
+ * draws the empty elements broken). This joins the words of one drawn
+ * string back into one `<text>` (the runs between which skia put empty
+ * elements, with the same attributes and baseline), one space per empty
+ * element, and places every `<text>` by its first glyph only (x, y of the
+ * first glyph; the font lays out the rest). Skia writes the glyph of a
+ * ligature as its presentation form ("ﬁ"); the letters are put back, so the
+ * text reads and searches as drawn.
+ *
+ * @example
+ * wholeTextElements('<text fill="#000" x="1, 5, " y="9, ">ab</text><text fill="#000" x="" y=""></text><text fill="#000" x="14, " y="9, ">c</text>');
+ * // '<text fill="#000" x="1" y="9">ab c</text>'
+ */
+export function wholeTextElements(svg: string): string {
+  const element = /<text([^>]*?) x="([^"]*)" y="([^"]*)"([^>]*)>([^<]*)<\/text>/g;
+  const first = (list: string) => list.split(',')[0].trim();
+  let out = '';
+  let last = 0;
+  // The string being joined: its opening attributes, position, words, and the spaces owed before the next word.
+  let open: { attributes: string; x: string; y: string; text: string; spaces: number } | null = null;
+  const close = () => {
+    if (open) out += `<text${open.attributes} x="${open.x}" y="${open.y}">${open.text}</text>`;
+    open = null;
+  };
+  for (const match of svg.matchAll(element)) {
+    const [whole, before, x, y, after, glyphs] = match;
+    const text = glyphs.replace(/[\uFB00-\uFB06]/g, (ligature) => ligatures[ligature.charCodeAt(0) - 0xfb00]);
+    const index = match.index ?? 0;
+    const adjacent = index === last;
+    if (!adjacent) {
+      close();
+      out += svg.slice(last, index);
+    }
+    last = index + whole.length;
+    const attributes = `${before}${after}`;
+    const empty = text === '' && x.trim() === '';
+    if (empty) {
+      // A space: it belongs to the string being joined (skia writes none at the start of a string).
+      if (open && open.attributes === attributes) open.spaces += 1;
+      continue;
+    }
+    if (open && open.attributes === attributes && open.spaces > 0 && first(y) === open.y) {
+      open.text += ' '.repeat(open.spaces) + text;
+      open.spaces = 0;
+      continue;
+    }
+    close();
+    open = { attributes, x: first(x), y: first(y), text, spaces: 0 };
+  }
+  close();
+  return out + svg.slice(last);
 }
 
 /**

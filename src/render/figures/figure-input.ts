@@ -27,9 +27,17 @@ export interface FigureLineage {
   readonly position: readonly number[];
   readonly mean: readonly number[];
   readonly samplingVariance: readonly number[];
+  /** Specimens per horizon (`data.n`), or null when the document has none. */
+  readonly count: readonly number[] | null;
   /** Horizons whose age the age model extrapolated beyond its ties (drawn open). */
   readonly extrapolated: readonly boolean[];
   readonly smoothed: { readonly model: string; readonly mean: readonly number[]; readonly standardError: readonly number[] } | null;
+  /**
+   * Time of the lineage's first horizon on the model's own clock (`curve_origin`, default 0):
+   * compare's shared-offset hypothesis runs one process from the oldest horizon of all
+   * sections, so a later section's curve is the model's expectation from that time on.
+   */
+  readonly curveOrigin: number;
 }
 
 /** One model row of the document. */
@@ -45,6 +53,8 @@ export interface FigureModel {
   readonly notComparedReason: string | null;
   /** Point estimates by parameter name (missing or null estimates left out). */
   readonly estimates: Readonly<Record<string, number>>;
+  /** Derived point estimates (`derived` in fit.json, e.g. ou's `limit_drift`; missing or null left out). */
+  readonly derived: Readonly<Record<string, number>>;
 }
 
 type Json = Record<string, unknown>;
@@ -88,6 +98,7 @@ export function readFigureLineage(document: unknown, where = 'lineage'): FigureL
   if (time.length < 1) fail(`${where}.data.time`, 'has no horizons');
   const mean = numberList(data.mean, `${where}.data.mean`, time.length);
   const samplingVariance = numberList(data.sampling_variance, `${where}.data.sampling_variance`, time.length);
+  const count = Array.isArray(data.n) && data.n.length === time.length && data.n.every((value) => typeof value === 'number' && value > 0 && Number.isFinite(value)) ? (data.n as number[]) : null;
   const position = data.position === undefined ? time.slice() : numberList(data.position, `${where}.data.position`, time.length);
   const rawModels = Array.isArray(doc.models) ? (doc.models as Json[]) : [];
   const models: FigureModel[] = rawModels.map((model, index) => {
@@ -96,6 +107,12 @@ export function readFigureLineage(document: unknown, where = 'lineage'): FigureL
     for (const [name, entry] of Object.entries(params)) {
       const value = nullableNumber(entry?.estimate);
       if (value !== null) estimates[name] = value;
+    }
+    const derived: Record<string, number> = {};
+    const rawDerived = model.derived && typeof model.derived === 'object' ? (model.derived as Record<string, { estimate?: unknown } | null>) : {};
+    for (const [name, entry] of Object.entries(rawDerived)) {
+      const value = nullableNumber(entry?.estimate);
+      if (value !== null) derived[name] = value;
     }
     const aicc = nullableNumber(model.aicc);
     return {
@@ -109,6 +126,7 @@ export function readFigureLineage(document: unknown, where = 'lineage'): FigureL
       compared: model.compared === undefined ? aicc !== null : model.compared === true,
       notComparedReason: typeof model.not_compared_reason === 'string' ? model.not_compared_reason : null,
       estimates,
+      derived,
     };
   });
   let smoothed: FigureLineage['smoothed'] = null;
@@ -137,8 +155,10 @@ export function readFigureLineage(document: unknown, where = 'lineage'): FigureL
     position,
     mean,
     samplingVariance,
+    count,
     extrapolated: Array.isArray(data.extrapolated) && data.extrapolated.length === time.length ? data.extrapolated.map((flag) => flag === true) : time.map(() => false),
     smoothed,
+    curveOrigin: nullableNumber(doc.curve_origin) ?? 0,
   };
 }
 

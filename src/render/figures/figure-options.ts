@@ -20,7 +20,21 @@ export interface FigureOptions {
   readonly model?: string;
   /** Draw the smoothed lineage mean and its 95% band (default false). */
   readonly smoothed?: boolean;
+  /** Parts of the figure left out, for a journal that sets its own caption: any of 'title', 'subtitle', 'notes' (default none). */
+  readonly leaveOut?: readonly FigurePart[];
+  /** Title of the trait axis in place of the one made from the trait's name and unit (default: made). */
+  readonly traitTitle?: string;
+  /** Sections figure: what the lines are, in words, in place of "each section's best-supported model" (compare names its winning hypothesis). */
+  readonly linesCaption?: string;
+  /** Marker area proportional to the horizon's specimen count n (default false: one size). */
+  readonly markerByCount?: boolean;
 }
+
+/** A part of a figure that can be left out: its title, the subtitle under it, the notes at its foot. */
+export type FigurePart = 'title' | 'subtitle' | 'notes';
+
+/** The parts that can be left out, in the order they appear on the page. */
+export const figureParts: readonly FigurePart[] = ['title', 'subtitle', 'notes'];
 
 /** Options with defaults applied and sizes worked out. */
 export interface ResolvedFigureOptions {
@@ -30,6 +44,12 @@ export interface ResolvedFigureOptions {
   readonly orientation: FigureOrientation;
   readonly model: string | null;
   readonly smoothed: boolean;
+  /** Which of the title, subtitle and notes are drawn. */
+  readonly show: { readonly title: boolean; readonly subtitle: boolean; readonly notes: boolean };
+  /** The trait axis title asked for, or null for the one made from the trait's name and unit. */
+  readonly traitTitle: string | null;
+  readonly linesCaption: string | null;
+  readonly markerByCount: boolean;
 }
 
 /** Single journal column width in cm (common practice: most journals ask for 8–9 cm). */
@@ -45,7 +65,7 @@ export const pointsPerCm = 72 / 2.54;
 /**
  * Apply defaults and check ranges.
  *
- * @throws InputError (usage) for an unknown format, orientation or width, or a dpi outside 72–1200
+ * @throws InputError (usage) for an unknown format, orientation, width or part to leave out, or a dpi outside 72–1200
  * @example
  * resolveFigureOptions({ width: 'double' }).widthCm; // 18
  */
@@ -63,7 +83,13 @@ export function resolveFigureOptions(options: FigureOptions = {}): ResolvedFigur
   }
   const dpi = options.dpi ?? defaultDpi;
   if (!Number.isFinite(dpi) || dpi < 72 || dpi > 1200) throw usageError(`figure dpi must be a number from 72 to 1200 (journals ask for 300–1200), got "${String(dpi)}"`);
-  return { format, widthCm, dpi, orientation, model: options.model ?? null, smoothed: options.smoothed === true };
+  const leaveOut = options.leaveOut ?? [];
+  for (const part of leaveOut) {
+    if (!figureParts.includes(part)) throw usageError(`figure part to leave out must be ${figureParts.join(', ')}, got "${String(part)}"`);
+  }
+  const show = { title: !leaveOut.includes('title'), subtitle: !leaveOut.includes('subtitle'), notes: !leaveOut.includes('notes') };
+  const traitTitle = options.traitTitle === undefined || options.traitTitle.trim() === '' ? null : options.traitTitle.trim();
+  return { format, widthCm, dpi, orientation, model: options.model ?? null, smoothed: options.smoothed === true, show, traitTitle, linesCaption: options.linesCaption ?? null, markerByCount: options.markerByCount === true };
 }
 
 /**

@@ -115,7 +115,33 @@ export interface ModelCurve {
   readonly upper: readonly number[];
   /** True when the envelope has width (false for strict stasis: the line alone is drawn). */
   readonly hasEnvelope: boolean;
+  /** When the fit sits at a limit the model equals another model at: what is drawn instead, in words (else null). */
+  readonly limit: string | null;
 }
+
+/**
+ * A fitted model at a limit where its own parameters do not exist but it
+ * equals another model: ou at alpha = 0 (`alpha-zero`) is the directional
+ * walk with drift `limit_drift` = (optimum − a) alpha (MODELS.md; the
+ * optimum is then infinite and fit.json reports it as null).
+ */
+interface LimitRule {
+  readonly model: string;
+  applies(model: FigureModel): boolean;
+  readonly drawnAs: string;
+  parameters(model: FigureModel): Record<string, number>;
+  readonly words: string;
+}
+
+const limitRules: readonly LimitRule[] = [
+  {
+    model: 'ou',
+    applies: (model) => model.estimates.alpha === 0 && !('optimum' in model.estimates) && 'limit_drift' in model.derived,
+    drawnAs: 'directional-walk',
+    parameters: (model) => ({ ancestral_mean: model.estimates.ancestral_mean, drift: model.derived.limit_drift, step_variance: model.estimates.step_variance }),
+    words: 'alpha at its limit 0, drawn as the directional walk it equals there',
+  },
+];
 
 /** Why a model's curve cannot be drawn, or the curve. */
 export type ModelCurveResult = { readonly curve: ModelCurve; readonly reason: null } | { readonly curve: null; readonly reason: string };
@@ -146,15 +172,17 @@ export function chosenModel(lineage: FigureLineage, requested: string | null): {
 export function modelCurve(lineage: FigureLineage, axis: TimeAxis, requested: string | null): ModelCurveResult {
   const { model, reason } = chosenModel(lineage, requested);
   if (!model) return { curve: null, reason: reason ?? 'no model' };
-  const definition = findModel(model.id);
+  const rule = limitRules.find((candidate) => candidate.model === model.id && candidate.applies(model));
+  const definition = findModel(rule ? rule.drawnAs : model.id);
   if (!definition) return { curve: null, reason: `model "${model.id}" is not known to this version of the tool` };
-  const missing = definition.parameters.filter((parameter) => !(parameter.name in model.estimates)).map((parameter) => parameter.name);
+  const estimates = rule ? rule.parameters(model) : model.estimates;
+  const missing = definition.parameters.filter((parameter) => !(parameter.name in estimates) || !Number.isFinite(estimates[parameter.name])).map((parameter) => parameter.name);
   if (missing.length > 0) return { curve: null, reason: `${model.label} was not fitted (no estimate of ${missing.join(', ')})` };
   const span = lineage.time[lineage.time.length - 1];
   const grid = new Set<number>(lineage.time);
   for (let k = 0; k <= curveSamples; k++) grid.add((span * k) / curveSamples);
   const times = [...grid].sort((a, b) => a - b);
-  const expectation = definition.expectation(model.estimates, times);
+  const expectation = definition.expectation(estimates, lineage.curveOrigin === 0 ? times : times.map((t) => t + lineage.curveOrigin));
   const mean: number[] = [];
   const lower: number[] = [];
   const upper: number[] = [];
@@ -181,6 +209,7 @@ export function modelCurve(lineage: FigureLineage, axis: TimeAxis, requested: st
       lower,
       upper,
       hasEnvelope,
+      limit: rule ? rule.words : null,
     },
     reason: null,
   };

@@ -21,6 +21,7 @@ import { drawFigure, type RenderedFigure } from './chart-backend.js';
 import { readFigureLineage, type FigureLineage } from './figure-input.js';
 import { resolveFigureOptions, type FigureOptions } from './figure-options.js';
 import { modelSupportPlan } from './model-support.js';
+import { smallMultiplesFrom, smallMultiplesPlan } from './small-multiples.js';
 import { trajectoryPlan } from './trajectory.js';
 
 export type { FigureFrame, RenderedFigure } from './chart-backend.js';
@@ -53,7 +54,8 @@ export function renderTrajectory(lineageDocument: unknown, options: FigureOption
 
 /**
  * Several sections of one trait on a shared time axis (ages line up across
- * sections). Each section's horizons and its model's expected trajectory
+ * sections); from `smallMultiplesFrom` (7) sections on, one small panel per
+ * section on shared axes instead (src/render/figures/small-multiples.ts). Each section's horizons and its model's expected trajectory
  * (best-supported by default) are drawn, with the model's 95% envelope
  * lightly shaded in the section's colour (none where its variance is 0);
  * smoothed bands are left to the one-lineage figures so the sections stay legible.
@@ -64,6 +66,8 @@ export function renderSectionsTogether(lineageDocuments: readonly unknown[], opt
   const resolved = resolveFigureOptions(options);
   if (lineageDocuments.length === 0) throw new Error('renderSectionsTogether needs at least one lineage');
   const lineages = lineageDocuments.map((document, index) => asLineage(document, `lineages[${index}]`));
+  // Many sections: one panel each on shared axes, so none has to share a colour, marker or dash with another.
+  if (lineages.length >= smallMultiplesFrom) return drawFigure(smallMultiplesPlan(lineages, resolved), resolved);
   return drawFigure(trajectoryPlan(lineages, resolved, true), resolved);
 }
 

@@ -74,7 +74,7 @@ export function drawMarker(context: Context, shape: MarkerShape, x: number, y: n
 }
 
 /** Draw an interval from (x1, y1) to (x2, y2) with end caps across it. */
-export function drawInterval(context: Context, x1: number, y1: number, x2: number, y2: number, color: string, width = lineWidth.interval): void {
+export function drawInterval(context: Context, x1: number, y1: number, x2: number, y2: number, color: string, width: number = lineWidth.interval): void {
   const length = Math.hypot(x2 - x1, y2 - y1);
   context.save();
   context.setLineDash([]);
@@ -308,4 +308,102 @@ function cutWord(word: string, width: number, measure: (text: string) => number)
   }
   if (piece !== '') pieces.push(piece);
   return pieces;
+}
+
+/** A word of a title with its slant: `*Invented taxon* length` gives "Invented" and "taxon" italic. */
+export interface StyledWord {
+  readonly text: string;
+  readonly italic: boolean;
+  /** True when this piece continues the previous word without a space (a word whose slant changes inside it). */
+  readonly glued?: boolean;
+}
+
+/** True when the text marks a part in italics with asterisks (`*Invented taxon*`). */
+export function hasEmphasis(text: string): boolean {
+  return /\*[^*]+\*/.test(text);
+}
+
+/**
+ * Split a title into words, each italic when it lies between a pair of
+ * asterisks (the markers themselves are dropped; an unpaired one is kept as
+ * a character). A word whose slant changes inside it ("*Aus*-like") comes
+ * as two pieces, the second `glued`.
+ *
+ * @example
+ * styledWords('*Invented taxon* length').map((w) => `${w.italic ? '/' : ''}${w.text}`); // ["/Invented", "/taxon", "length"]
+ */
+export function styledWords(text: string): StyledWord[] {
+  const words: StyledWord[] = [];
+  let inWord = false;
+  text.split(/(\*[^*]+\*)/).forEach((part) => {
+    const italic = part.length > 2 && part.startsWith('*') && part.endsWith('*');
+    const body = italic ? part.slice(1, -1) : part;
+    for (const piece of body.split(/(\s+)/)) {
+      if (piece === '') continue;
+      if (/^\s+$/.test(piece)) {
+        inWord = false;
+        continue;
+      }
+      words.push(inWord ? { text: piece, italic, glued: true } : { text: piece, italic });
+      inWord = true;
+    }
+  });
+  return words;
+}
+
+/** The title without its asterisks. */
+export function plainTitle(text: string): string {
+  return text.replace(/\*([^*]+)\*/g, '$1');
+}
+
+function wordFont(size: number, word: StyledWord): string {
+  return font(size, 'normal', word.italic ? 'italic' : 'normal');
+}
+
+/** Width of a line of styled words in points (a space between words unless glued). */
+export function styledWidth(line: readonly StyledWord[], size: number): (measure: (font: string, text: string) => number) => number {
+  return (measure) => line.reduce((sum, word, i) => sum + measure(wordFont(size, word), word.text) + (i > 0 && !word.glued ? measure(font(size), ' ') : 0), 0);
+}
+
+/** Break styled words into lines no wider than `width` (a word wider than the line keeps a line of its own). */
+export function wrapStyled(words: readonly StyledWord[], width: number, size: number, measure: (font: string, text: string) => number): StyledWord[][] {
+  const lines: StyledWord[][] = [];
+  let line: StyledWord[] = [];
+  for (const word of words) {
+    const candidate = [...line, word];
+    if (line.length > 0 && !word.glued && styledWidth(candidate, size)(measure) > width) {
+      lines.push(line);
+      line = [word];
+    } else {
+      line = candidate;
+    }
+  }
+  if (line.length > 0) lines.push(line);
+  return lines;
+}
+
+/** Draw one line of styled words centred on x at baseline y, one run of text per change of slant (the space between runs is left as a gap, so no run starts or ends with a space). */
+export function drawStyledLine(context: Context, line: readonly StyledWord[], x: number, y: number, size: number, color: string, measure: (font: string, text: string) => number): void {
+  const runs: { text: string; italic: boolean; spaced: boolean }[] = [];
+  line.forEach((word, i) => {
+    const space = i > 0 && !word.glued;
+    const last = runs[runs.length - 1];
+    if (last && last.italic === word.italic) last.text += (space ? ' ' : '') + word.text;
+    else runs.push({ text: word.text, italic: word.italic, spaced: space });
+  });
+  const runFont = (run: { italic: boolean }) => font(size, 'normal', run.italic ? 'italic' : 'normal');
+  const spaceWidth = measure(font(size), ' ');
+  const total = runs.reduce((sum, run) => sum + measure(runFont(run), run.text) + (run.spaced ? spaceWidth : 0), 0);
+  context.save();
+  context.fillStyle = color;
+  context.textAlign = 'left';
+  context.textBaseline = 'alphabetic';
+  let left = x - total / 2;
+  for (const run of runs) {
+    if (run.spaced) left += spaceWidth;
+    context.font = runFont(run);
+    context.fillText(run.text, left, y);
+    left += measure(runFont(run), run.text);
+  }
+  context.restore();
 }

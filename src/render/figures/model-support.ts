@@ -35,12 +35,60 @@ export function supportRows(lineage: FigureLineage): FigureModel[] {
   return [...compared, ...others];
 }
 
-interface TableSetting {
+/** A number column of the table. */
+export type SupportColumn = 'k' | 'logL' | 'aicc' | 'delta';
+
+const columnHeaders: Record<SupportColumn, string> = { k: 'K', logL: 'logL', aicc: 'AICc', delta: 'ΔAICc' };
+
+/** One way of setting the table; the figure takes the first of `supportLayoutSteps` that fits its width. */
+export interface TableSetting {
+  /** Type size of the table in points. */
   readonly size: number;
+  /** Decimals of logL, AICc and ΔAICc. */
   readonly decimals: number;
+  /** Keep every gloss in parentheses (false: only where two models share a name). */
   readonly glosses: boolean;
+  /** Wrap model names over several lines. */
   readonly wrapNames: boolean;
+  /** Cut a word that is wider than the name column by itself (last resort). */
+  readonly breakWords: boolean;
+  /** Number columns shown, in order. */
+  readonly columns: readonly SupportColumn[];
+  /** Akaike weights as bars on a 0–1 scale (false: as a column of numbers). */
+  readonly bars: boolean;
 }
+
+const allColumns: readonly SupportColumn[] = ['k', 'logL', 'aicc', 'delta'];
+
+/**
+ * The settings tried in order, from the full table down to the narrowest:
+ * drop the glosses, wrap the model names, one decimal, 7 pt type, leave out
+ * the logL column, then the AICc column, then K, show the weights as numbers
+ * instead of bars, 6.5 pt then 6 pt type, and at last cut long words. ΔAICc, the model
+ * names and the weights are always shown.
+ */
+export const supportLayoutSteps: readonly TableSetting[] = (() => {
+  const steps: TableSetting[] = [];
+  let step: TableSetting = { size: typeSize.table, decimals: 2, glosses: true, wrapNames: false, breakWords: false, columns: allColumns, bars: true };
+  const push = (change: Partial<TableSetting>) => {
+    step = { ...step, ...change };
+    steps.push(step);
+  };
+  push({});
+  push({ glosses: false });
+  push({ wrapNames: true });
+  push({ decimals: 1 });
+  push({ size: 7 });
+  push({ columns: ['k', 'aicc', 'delta'] });
+  push({ columns: ['k', 'delta'] });
+  push({ columns: ['delta'] });
+  push({ bars: false });
+  push({ size: typeSize.note });
+  // 6 pt: the smallest type journals commonly accept in figures (common practice).
+  push({ size: 6 });
+  push({ breakWords: true });
+  return steps;
+})();
 
 interface Cell {
   readonly lines: readonly string[];
@@ -53,51 +101,77 @@ function splitLabel(label: string): { name: string; gloss: string | null } {
   return cut > 0 ? { name: label.slice(0, cut), gloss: label.slice(cut + 1) } : { name: label, gloss: null };
 }
 
+/** Header of the weights: in full when it fits over its column, else shortened. */
+const weightHeaders = ['Akaike weight', 'weight', 'w'];
+
+/** A laid-out table: the setting chosen and the widths it needs. */
+interface TableLayout {
+  readonly setting: TableSetting;
+  readonly cells: readonly Cell[];
+  readonly nameWidth: number;
+  readonly numberWidths: readonly number[];
+  /** Width of the marker, name and number columns with their gaps (the weights come after). */
+  readonly tableWidth: number;
+  /** Width of the weight column when weights are numbers (0 with bars). */
+  readonly weightWidth: number;
+}
+
 /** Plan the model-support figure of one lineage. */
-export function modelSupportPlan(lineage: FigureLineage, options: ResolvedFigureOptions): FigurePlan & { readonly rowCentres: readonly number[] } {
+export function modelSupportPlan(lineage: FigureLineage, options: ResolvedFigureOptions): FigurePlan & { readonly rowCentres: readonly number[]; readonly setting: TableSetting } {
   const rows = supportRows(lineage);
   const widthPoints = options.widthCm * pointsPerCm;
   const inner = widthPoints - 2 * margin;
-  const numbers = (setting: TableSetting) =>
-    rows.map((model) => [
-      model.k === null ? '—' : String(model.k),
-      tableNumber(model.logLik, setting.decimals),
-      tableNumber(model.aicc, setting.decimals),
-      tableNumber(model.deltaAicc, setting.decimals),
-    ]);
-  const headers = ['K', 'logL', 'AICc', 'ΔAICc'];
-  const settings: TableSetting[] = [
-    { size: typeSize.table, decimals: 2, glosses: true, wrapNames: false },
-    { size: typeSize.table, decimals: 2, glosses: false, wrapNames: false },
-    { size: typeSize.table, decimals: 2, glosses: false, wrapNames: true },
-    { size: typeSize.table, decimals: 1, glosses: false, wrapNames: true },
-    { size: 7, decimals: 1, glosses: false, wrapNames: true },
-  ];
-  let chosen: { setting: TableSetting; cells: Cell[]; nameWidth: number; numberWidths: number[]; tableWidth: number } | null = null;
-  for (const setting of settings) {
+  const compared = (model: FigureModel) => model.compared && model.aicc !== null;
+  const numberText = (model: FigureModel, column: SupportColumn, decimals: number) =>
+    column === 'k' ? (model.k === null ? '—' : String(model.k)) : tableNumber(column === 'logL' ? model.logLik : column === 'aicc' ? model.aicc : model.deltaAicc, decimals);
+  const names = rows.map((model) => splitLabel(model.label).name);
+  // Bars need room for the scale and a weight label beside or inside every bar.
+  const barMinimum = Math.max(60, inner * 0.3);
+  const layout = (setting: TableSetting): { fits: boolean; table: TableLayout } => {
     const measureName = (text: string) => measureText(font(setting.size, 'bold'), text);
-    const measureNumber = (text: string) => measureText(font(setting.size), text);
-    const longestWord = Math.max(...rows.flatMap((model) => splitLabel(model.label).name.split(/[\s]+|(?<=–)/).map(measureName)));
-    const nameWidth0 = setting.wrapNames ? Math.max(longestWord, inner * 0.27) : Math.max(...rows.map((model) => measureName(splitLabel(model.label).name)), measureName('Model'));
-    const names = rows.map((model) => splitLabel(model.label).name);
+    // Headers and the best model's row are bold.
+    const measureNumber = (text: string, bold: boolean) => measureText(font(setting.size, bold ? 'bold' : 'normal'), text);
     const measureGloss = (text: string) => measureText(font(setting.size - 1), text);
+    const isBest = (model: FigureModel) => model.id === lineage.bestModel;
+    const numberWidths = setting.columns.map((column) =>
+      Math.max(measureNumber(columnHeaders[column], true), ...rows.map((model) => measureNumber(numberText(model, column, setting.decimals), isBest(model)))),
+    );
+    const weightWidth = setting.bars ? 0 : Math.max(measureNumber(weightHeaders[1], true), ...rows.map((model) => measureNumber(compared(model) ? formatWeight(model.weight) : '—', isBest(model))));
+    const fixed = markerColumn + numberWidths.reduce((sum, width) => sum + width + columnGap, 0) + columnGap;
+    const weightPart = setting.bars ? barMinimum : weightWidth;
+    // Not-compared models carry a dagger after their name: it is wrapped with the name.
+    const texts = rows.map((model, i) => (compared(model) ? names[i] : `${names[i]} ${dagger}`));
+    const longestWord = Math.max(...texts.flatMap((text) => text.replace(/–/g, '– ').split(/\s+/).map(measureName)));
+    const room = inner - fixed - weightPart;
+    const nameWidth0 = !setting.wrapNames
+      ? Math.max(...texts.map(measureName), measureName('Model'))
+      : setting.breakWords
+        ? Math.max(room, measureName('Model'))
+        : Math.max(longestWord, measureName('Model'), inner * 0.27);
     const cells: Cell[] = rows.map((model, i) => {
-      const { name, gloss } = splitLabel(model.label);
-      const lines = setting.wrapNames ? wrapText(name.replace(/–/g, '– '), nameWidth0, measureName).map((line) => line.replace(/– /g, '–')) : [name];
+      const { gloss } = splitLabel(model.label);
+      const lines = setting.wrapNames
+        ? wrapText(texts[i].replace(/–/g, '– '), nameWidth0, measureName, { breakWords: setting.breakWords }).map((line) => line.replace(/– /g, '–'))
+        : [texts[i]];
       const keepGloss = gloss !== null && (setting.glosses || names.filter((other) => other === names[i]).length > 1);
-      const glossLines = !keepGloss ? [] : setting.wrapNames ? wrapText(gloss, nameWidth0, measureGloss) : [gloss];
+      const glossLines = !keepGloss ? [] : setting.wrapNames ? wrapText(gloss, nameWidth0, measureGloss, { breakWords: setting.breakWords }) : [gloss];
       return { lines, glossLines };
     });
     const glossWidth = Math.max(0, ...cells.flatMap((cell) => cell.glossLines.map(measureGloss)));
-    const nameWidth = Math.max(nameWidth0, glossWidth);
-    const table = numbers(setting);
-    const numberWidths = headers.map((header, c) => Math.max(measureNumber(header), ...table.map((row) => measureNumber(row[c]))));
-    const tableWidth = markerColumn + nameWidth + numberWidths.reduce((sum, w) => sum + w + columnGap, 0) + columnGap;
-    chosen = { setting, cells, nameWidth, numberWidths, tableWidth };
-    if (inner - tableWidth >= Math.max(60, inner * 0.3)) break;
+    const lineWidthMax = Math.max(0, ...cells.flatMap((cell) => cell.lines.map(measureName)));
+    const nameWidth = Math.max(setting.wrapNames ? Math.min(nameWidth0, Math.max(lineWidthMax, measureName('Model'))) : nameWidth0, glossWidth);
+    const tableWidth = fixed + nameWidth;
+    return { fits: tableWidth + weightPart <= inner + 1e-9, table: { setting, cells, nameWidth, numberWidths, tableWidth, weightWidth } };
+  };
+  let chosen: TableLayout | null = null;
+  for (const setting of supportLayoutSteps) {
+    const attempt = layout(setting);
+    chosen = attempt.table;
+    if (attempt.fits) break;
   }
-  const { setting, cells, nameWidth, numberWidths, tableWidth } = chosen!;
-  const table = numbers(setting);
+  const { setting, cells, nameWidth, numberWidths, tableWidth, weightWidth } = chosen!;
+  const table = rows.map((model) => setting.columns.map((column) => numberText(model, column, setting.decimals)));
+  const headers = setting.columns.map((column) => columnHeaders[column]);
   const lineHeight = setting.size * 1.22;
   const glossSize = setting.size - 1;
   // Rows are as tall as their own text, so one long model name does not space out the whole table.
@@ -109,28 +183,34 @@ export function modelSupportPlan(lineage: FigureLineage, options: ResolvedFigure
   }, 0);
   const rowsHeight = rowHeights.reduce((sum, height) => sum + height, 0);
 
+  const show = options.show;
   const title = figureLineageName(lineage);
-  const subtitle = wrapText(
-    `Model support by AICc, N = ${lineage.time.length} horizons. ${bestMark} best supported.`,
-    inner,
-    (text) => measureText(font(typeSize.subtitle), text),
-  );
+  const titleLines = show.title ? wrapText(title, inner, (text) => measureText(font(typeSize.title, 'bold'), text), { breakWords: true }) : [];
+  const subtitle = show.subtitle
+    ? wrapText(`Model support by AICc, N = ${lineage.time.length} horizons. ${bestMark} best supported.`, inner, (text) => measureText(font(typeSize.subtitle), text), { breakWords: true })
+    : [];
   const notes: string[] = [];
-  rows.forEach((model) => {
-    if (!(model.compared && model.aicc !== null)) notes.push(`${dagger} ${splitLabel(model.label).name}: ${model.notComparedReason ?? 'not compared'}.`);
-  });
-  notes.push(
-    'Weights compare only the models listed. Support depends on sampling, time-averaging and the age model, and a good fit to a random walk does not by itself tell drift from selection; weigh it with the specialist’s judgement.',
-  );
-  const noteLines = notes.flatMap((note) => wrapText(note, inner, (text) => measureText(font(typeSize.note), text)));
-  const titleHeight = typeSize.title * 1.3;
+  if (show.notes) {
+    rows.forEach((model) => {
+      if (!compared(model)) notes.push(`${dagger} ${splitLabel(model.label).name}: ${model.notComparedReason ?? 'not compared'}.`);
+    });
+    notes.push(
+      'Weights compare only the models listed. Support depends on sampling, time-averaging and the age model, and a good fit to a random walk does not by itself tell drift from selection; weigh it with the specialist’s judgement.',
+    );
+  }
+  const noteLines = notes.flatMap((note) => wrapText(note, inner, (text) => measureText(font(typeSize.note), text), { breakWords: true }));
+  const titleHeight = titleLines.length * typeSize.title * 1.3;
   const subtitleHeight = subtitle.length * typeSize.subtitle * 1.3;
   const headerHeight = setting.size * 1.25 + 6;
-  const top = margin + titleHeight + subtitleHeight + 4 + headerHeight;
-  const axisHeight = typeSize.tick * 1.3 + 6;
-  const notesHeight = noteLines.length * typeSize.note * 1.3 + 6;
+  const top = margin + titleHeight + subtitleHeight + (titleLines.length + subtitle.length > 0 ? 4 : 0) + headerHeight;
+  // Bars have their 0–1 scale under them; numbers need only a little space below the last rule.
+  const axisHeight = setting.bars ? typeSize.tick * 1.3 + 6 : 4;
+  const notesHeight = noteLines.length > 0 ? noteLines.length * typeSize.note * 1.3 + 6 : 0;
   const heightPoints = Math.round(top + rowsHeight + axisHeight + notesHeight + margin);
-  const barLeft = margin + tableWidth + 4;
+  const barLeft = margin + tableWidth + (setting.bars ? 4 : 0);
+  // The weight header in full when it fits over the bars (or the column of numbers), else shortened.
+  const weightRoom = setting.bars ? widthPoints - barLeft - margin - 2 : weightWidth;
+  const weightHeader = weightHeaders.find((header) => measureText(font(setting.size, 'bold'), header) <= weightRoom) ?? weightHeaders[weightHeaders.length - 1];
 
   const plugin: Plugin<'bar'> = {
     id: 'stratotrendSupportTable',
@@ -146,8 +226,10 @@ export function modelSupportPlan(lineage: FigureLineage, options: ResolvedFigure
           context.fillStyle = '#f1f4f8';
           context.fillRect(margin, centre - (rowHeights[i] * stretch) / 2, area.right - margin, rowHeights[i] * stretch);
         }
-        context.fillStyle = supportInk.track;
-        context.fillRect(area.left, centre - 3, area.right - area.left, 6);
+        if (setting.bars) {
+          context.fillStyle = supportInk.track;
+          context.fillRect(area.left, centre - 3, area.right - area.left, 6);
+        }
       });
       context.restore();
     },
@@ -166,7 +248,7 @@ export function modelSupportPlan(lineage: FigureLineage, options: ResolvedFigure
     context.fillStyle = ink.text;
     context.font = font(typeSize.title, 'bold');
     context.textAlign = 'left';
-    context.fillText(title, margin, margin + typeSize.title);
+    titleLines.forEach((line, i) => context.fillText(line, margin, margin + typeSize.title * (1.3 * i + 1)));
     context.font = font(typeSize.subtitle);
     context.fillStyle = ink.muted;
     subtitle.forEach((line, i) => context.fillText(line, margin, margin + titleHeight + typeSize.subtitle * (1.3 * i + 1)));
@@ -197,39 +279,50 @@ export function modelSupportPlan(lineage: FigureLineage, options: ResolvedFigure
       context.fillText(headers[c], right, headerBaseline);
       right += columnGap;
     });
-    context.textAlign = 'center';
-    context.fillText('Akaike weight', (area.left + area.right) / 2, headerBaseline);
+    if (setting.bars) {
+      context.textAlign = 'center';
+      context.fillText(weightHeader, (area.left + area.right) / 2, headerBaseline);
+    } else {
+      context.textAlign = 'right';
+      context.fillText(weightHeader, area.right, headerBaseline);
+    }
     rows.forEach((model, i) => {
       const centre = y.getPixelForValue(centres[i]);
-      const compared = model.compared && model.aicc !== null;
+      const isCompared = compared(model);
       const best = model.id === lineage.bestModel;
       const cell = cells[i];
       const lines = cell.lines.length + cell.glossLines.length;
       const firstBaseline = centre - (lines * lineHeight) / 2 + setting.size * 0.92;
-      context.fillStyle = compared ? ink.text : ink.muted;
+      context.fillStyle = isCompared ? ink.text : ink.muted;
       context.textAlign = 'left';
       if (best) {
         context.font = font(setting.size, 'bold');
         context.fillText(bestMark, margin, firstBaseline);
       }
-      context.font = font(setting.size, best ? 'bold' : 'normal', compared ? 'normal' : 'italic');
-      cell.lines.forEach((line, k) => context.fillText(k === cell.lines.length - 1 && !compared ? `${line} ${dagger}` : line, margin + markerColumn, firstBaseline + k * lineHeight));
+      context.font = font(setting.size, best ? 'bold' : 'normal', isCompared ? 'normal' : 'italic');
+      cell.lines.forEach((line, k) => context.fillText(line, margin + markerColumn, firstBaseline + k * lineHeight));
       context.font = font(glossSize);
       context.fillStyle = ink.muted;
       cell.glossLines.forEach((line, k) => context.fillText(line, margin + markerColumn, firstBaseline + (cell.lines.length + k) * lineHeight));
-      context.fillStyle = compared ? ink.text : ink.muted;
-      context.font = font(setting.size, best ? 'bold' : 'normal');
+      context.fillStyle = isCompared ? ink.text : ink.muted;
+      const numberFont = font(setting.size, best ? 'bold' : 'normal');
+      context.font = numberFont;
       context.textAlign = 'right';
       const numberBaseline = centre + setting.size * 0.35;
       table[i].forEach((value, c) => context.fillText(value, columnRights[c], numberBaseline));
+      if (!setting.bars) {
+        context.fillText(isCompared ? formatWeight(model.weight) : '—', area.right, numberBaseline);
+        return;
+      }
       context.textAlign = 'left';
-      if (!compared) {
+      if (!isCompared) {
         context.font = font(setting.size, 'normal', 'italic');
         context.fillText('not compared', area.left + 3, numberBaseline);
       } else {
         const end = x.getPixelForValue(model.weight ?? 0);
         const text = formatWeight(model.weight);
-        const width = measureText(font(setting.size, best ? 'bold' : 'normal'), text);
+        const width = measureText(numberFont, text);
+        // Beside the bar when there is room, else inside it in paper colour.
         const inside = end + 3 + width > area.right;
         context.fillStyle = inside ? ink.background : ink.text;
         context.textAlign = inside ? 'right' : 'left';
@@ -250,7 +343,7 @@ export function modelSupportPlan(lineage: FigureLineage, options: ResolvedFigure
       datasets: [
         {
           label: 'Akaike weight',
-          data: rows.map((model, i) => ({ x: model.compared && model.aicc !== null ? (model.weight ?? 0) : Number.NaN, y: centres[i] })),
+          data: rows.map((model, i) => ({ x: setting.bars && compared(model) ? (model.weight ?? 0) : Number.NaN, y: centres[i] })),
           backgroundColor: rows.map((model) => (model.id === lineage.bestModel ? supportInk.bestBar : supportInk.bar)),
           borderWidth: 0,
           barThickness: Math.min(9, lineHeight * 0.9),
@@ -260,10 +353,12 @@ export function modelSupportPlan(lineage: FigureLineage, options: ResolvedFigure
     options: {
       indexAxis: 'y',
       locale: 'en-US',
-      layout: { padding: { left: barLeft, right: margin + 2, top, bottom: notesHeight + margin } },
+      // Without bars the plot area is the column of weights (right-aligned at its right edge) and the scale is hidden.
+      layout: { padding: { left: barLeft, right: setting.bars ? margin + 2 : margin, top, bottom: notesHeight + margin + (setting.bars ? 0 : axisHeight) } },
       scales: {
         x: {
           type: 'linear',
+          display: setting.bars,
           min: 0,
           max: 1,
           ticks: { stepSize: 0.25, color: ink.text, font: { size: typeSize.tick }, padding: 2, maxRotation: 0, autoSkip: false, callback: (value) => (Number(value) === 0.5 ? '0.5' : Number(value) === 0 || Number(value) === 1 ? String(value) : '') },
@@ -277,5 +372,5 @@ export function modelSupportPlan(lineage: FigureLineage, options: ResolvedFigure
     },
     plugins: [plugin as Plugin],
   });
-  return { widthPoints, heightPoints, title: `${title}: model support`, configuration, rowCentres: centres };
+  return { widthPoints, heightPoints, title: `${title}: model support`, configuration, rowCentres: centres, setting };
 }

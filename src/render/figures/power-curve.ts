@@ -1,8 +1,8 @@
 import type { ChartConfiguration, Plugin, Scale } from 'chart.js';
 import { drawFigure, measureText, type FigurePlan, type RenderedFigure } from './chart-backend.js';
 import { pointsPerCm, resolveFigureOptions, type FigureOptions } from './figure-options.js';
-import { font, withOpacity, wrapText } from './marks.js';
-import { ink, lineWidth, seriesStyles, typeSize } from './style.js';
+import { drawLegend, font, layoutLegend, withOpacity, wrapText, type LegendLayout } from './marks.js';
+import { ink, lineWidth, seriesStyles, typeSize, type MarkerShape } from './style.js';
 import { drawableLimits, fittedTicks, tickLabel, type RoundStep } from './ticks.js';
 import { squaredLabel, traitUnitLabel } from '../units.js';
 
@@ -148,6 +148,14 @@ export function powerCurvePlan(input: PowerCurveInput, options: FigureOptions = 
   const minimumDrift = Math.min(0, ...allPoints.map((point) => point.drift));
   // A power document read back (report --attach) may carry any numbers: limits chart.js cannot lay out are refused, not handed to it.
   if (maximumDrift !== minimumDrift) drawableLimits({ min: minimumDrift, max: maximumDrift }, 'drift axis');
+  // Our own legend, one entry per line (chart.js's packs entries side by side), keyed like the curves: line, dash and marker.
+  const markerOf = (point: string): MarkerShape => (point === 'rect' ? 'square' : point === 'triangle' ? 'triangle' : 'circle');
+  const legendMeasure = (text: string) => measureText(font(typeSize.legend), text);
+  const legendParts = series.map((item) =>
+    layoutLegend([{ key: { line: { color: item.style.color, width: lineWidth.model, dash: item.style.dash }, marker: { shape: markerOf(item.point), color: item.style.color } }, text: capitalised(item.label) }], inner, legendMeasure),
+  );
+  const legend: LegendLayout = { rows: legendParts.flatMap((part) => part.rows), height: legendParts.reduce((sum, part) => sum + part.height, 0) };
+  const noteHeight = note.length * typeSize.note * 1.3;
   const notePlugin: Plugin = {
     id: 'stratotrendPowerNote',
     afterDraw(chart) {
@@ -158,6 +166,7 @@ export function powerCurvePlan(input: PowerCurveInput, options: FigureOptions = 
       context.textBaseline = 'top';
       note.forEach((line, i) => context.fillText(line, margin, chart.height - margin - (note.length - i) * typeSize.note * 1.3));
       context.restore();
+      drawLegend(context, legend, margin, chart.height - margin - noteHeight - 4 - legend.height);
     },
   };
   const configuration = (): ChartConfiguration => ({
@@ -178,6 +187,8 @@ export function powerCurvePlan(input: PowerCurveInput, options: FigureOptions = 
             pointStyle: item.point,
             pointRadius: faded ? 1.8 : 2.4,
             tension: 1e-6,
+            // Points at the axis ends (the largest drift, probabilities 0 and 1) are drawn whole, not cut at the plot's edge.
+            clip: false,
           }));
         }),
         {
@@ -204,7 +215,7 @@ export function powerCurvePlan(input: PowerCurveInput, options: FigureOptions = 
     } as ChartConfiguration['data'],
     options: {
       locale: 'en-US',
-      layout: { padding: { left: margin, right: margin + 4, top: margin - 2, bottom: note.length * typeSize.note * 1.3 + 8 } },
+      layout: { padding: { left: margin, right: margin + 4, top: margin - 2, bottom: noteHeight + 8 + legend.height + 4 } },
       scales: {
         x: {
           type: 'linear',
@@ -226,12 +237,7 @@ export function powerCurvePlan(input: PowerCurveInput, options: FigureOptions = 
         },
       },
       plugins: {
-        legend: {
-          display: true,
-          position: 'bottom',
-          align: 'start',
-          labels: { usePointStyle: true, boxWidth: 4, boxHeight: 4, font: { size: typeSize.legend }, color: ink.text, padding: 4, filter: (item: { text: string }) => !item.text.startsWith('target power') && !item.text.startsWith('test level') },
-        },
+        legend: { display: false },
         tooltip: { enabled: false },
         title: { display: true, text: title, align: 'start', color: ink.text, font: { size: typeSize.title, weight: 'bold' }, padding: { top: 0, bottom: 2 } },
         subtitle: { display: true, text: subtitle, align: 'start', color: ink.muted, font: { size: typeSize.subtitle }, padding: { top: 0, bottom: 6 } },
@@ -246,4 +252,8 @@ export function powerCurvePlan(input: PowerCurveInput, options: FigureOptions = 
 export function renderPowerCurve(input: PowerCurveInput, options: FigureOptions = {}): RenderedFigure {
   const { plan, resolved } = powerCurvePlan(input, options);
   return drawFigure(plan, resolved);
+}
+
+function capitalised(text: string): string {
+  return text.charAt(0).toUpperCase() + text.slice(1);
 }

@@ -4,8 +4,25 @@ import { figureLineageName, type FigureLineage } from './figure-input.js';
 import type { ResolvedFigureOptions } from './figure-options.js';
 import { pointsPerCm } from './figure-options.js';
 import { horizonMarks, modelCurve, smoothedBand, timeAxisFor, traitAxisTitle, type HorizonMark, type ModelCurve } from './geometry.js';
-import { drawInterval, drawLegend, drawMarker, fillBetween, font, layoutLegend, withOpacity, wrapText, type LegendEntry, type LegendLayout } from './marks.js';
-import { ink, lineWidth, modelInk, seriesStyle, smoothedInk, typeSize, type SeriesStyle } from './style.js';
+import {
+  drawInterval,
+  drawLegend,
+  drawMarker,
+  drawStyledLine,
+  fillBetween,
+  font,
+  hasEmphasis,
+  layoutLegend,
+  plainTitle,
+  styledWords,
+  withOpacity,
+  wrapStyled,
+  wrapText,
+  type LegendEntry,
+  type LegendLayout,
+  type StyledWord,
+} from './marks.js';
+import { ink, lineWidth, markerRadius, modelInk, seriesStyle, smoothedInk, typeSize, type SeriesStyle } from './style.js';
 import { drawableLimits, fittedTicks, roundStep, tickLabel, type RoundStep } from './ticks.js';
 
 /** The first part of a model label, before any gloss in parentheses: "directional walk (random walk with drift)" → "directional walk". */
@@ -90,27 +107,37 @@ export function trajectoryPlan(lineages: readonly FigureLineage[], options: Reso
       marks: horizonMarks(lineage, axis),
       curve,
       curveReason: reason,
-      smoothed: options.smoothed && !together ? smoothedBand(lineage, axis) : null,
+      // The band is the smoother of the model drawn, never another model's.
+      smoothed: options.smoothed && !together && curve !== null && lineage.smoothed?.model === curve.id ? smoothedBand(lineage, axis) : null,
       style: together ? seriesStyle(index) : null,
     };
   });
   const widthPoints = options.widthCm * pointsPerCm;
   const innerWidth = widthPoints - 2 * margin;
   const legendMeasure = (text: string) => measureText(font(typeSize.legend), text);
-  const legend = layoutLegend(legendEntries(series, together), innerWidth, legendMeasure);
+  const scaling = options.markerByCount ? countScaling(lineages) : null;
+  const markerSize = scaling ? (lineage: FigureLineage, index: number) => scaling.radius(lineage.count?.[index] ?? scaling.reference) : null;
+  const legend = layoutLegend([...legendEntries(series, together), ...(scaling ? countLegend(scaling) : [])], innerWidth, legendMeasure);
   const title = together
     ? `${capitalised(lineages[0].trait || 'trait')}: ${lineages.length} sections`
     : figureLineageName(lineages[0]);
   const subtitleMeasure = (text: string) => measureText(font(typeSize.subtitle), text);
-  const subtitle = wrapText(subtitleText(series, together, options), innerWidth, subtitleMeasure);
+  const subtitle = options.show.subtitle ? wrapText(subtitleText(series, together, options), innerWidth, subtitleMeasure, { breakWords: true }) : [];
   const stratigraphic = options.orientation === 'stratigraphic';
-  const traitTitle = traitAxisTitle(lineages[0]);
+  const markedTitle = options.traitTitle ?? traitAxisTitle(lineages[0]);
+  // A trait title may mark italics with asterisks (taxon names): chart.js sets a title in one font, so such a title is drawn by the plugin instead.
+  const traitTitle = plainTitle(markedTitle);
+  const styledTrait = hasEmphasis(markedTitle) ? styledWords(markedTitle) : null;
   // chart.js squeezes a title wider than its box (it draws with maxWidth), so narrow figures wrap the title and the horizontal axis title instead.
-  const titleLines = wrapText(title, innerWidth, (text) => measureText(font(typeSize.title, 'bold'), text), { breakWords: true });
+  const titleLines = options.show.title ? wrapText(title, innerWidth, (text) => measureText(font(typeSize.title, 'bold'), text), { breakWords: true }) : [];
   // A horizontal axis title gets the plot's width: the figure less the vertical axis (about 40 pt of tick labels and title).
   const horizontalTitle = wrapText(stratigraphic ? traitTitle : axis.title, Math.max(40, innerWidth - 40), (text) => measureText(font(typeSize.axisTitle), text), { breakWords: true });
+  const styledLines = styledTrait ? wrapStyled(styledTrait, stratigraphic ? Math.max(40, innerWidth - 40) : Number.POSITIVE_INFINITY, typeSize.axisTitle, measureText) : null;
+  const styledTitle = styledLines ? { lines: styledLines, axis: stratigraphic ? ('x' as const) : ('y' as const) } : null;
   // The aspect allows for one line of title, subtitle and horizontal axis title; each further line (narrow figures wrap them) adds its own height, so the plot is not squeezed.
-  const extraSubtitle = Math.max(0, subtitle.length - 1) * typeSize.subtitle * 1.2 + (titleLines.length - 1) * typeSize.title * 1.2 + (horizontalTitle.length - 1) * typeSize.axisTitle * 1.2;
+  // A title or subtitle left out (--leave-out) gives its line back, so the plot keeps its size.
+  const extraSubtitle =
+    (subtitle.length - 1) * typeSize.subtitle * 1.2 + (subtitle.length === 0 ? -6 : 0) + (titleLines.length - 1) * typeSize.title * 1.2 + (titleLines.length === 0 ? -2 : 0) + ((styledLines && stratigraphic ? styledLines.length : horizontalTitle.length) - 1) * typeSize.axisTitle * 1.2;
   // Narrow figures: the plot stays at least as tall as the vertical axis title is long (about 60 pt of title, subtitle and horizontal axis go above and below it).
   const verticalTitle = measureText(font(typeSize.axisTitle), stratigraphic ? axis.title : traitTitle);
   const chartPart = Math.max(widthPoints * aspect(options), verticalTitle + 60);
@@ -216,6 +243,16 @@ export function trajectoryPlan(lineages: readonly FigureLineage[], options: Reso
     // Limits the chart library cannot lay out (spans near the double's underflow) are refused here, never handed to it.
     const timeScale = scaleOptions(stratigraphic ? axis.title : horizontalTitle, axis.reverse, drawableLimits(padded(timeValues), 'time axis'), stratigraphic ? 7 : 6);
     const traitScale = scaleOptions(stratigraphic ? horizontalTitle : traitTitle, false, drawableLimits(padded(traitValues), 'trait axis'), 5);
+    if (styledTitle) {
+      // Room for the plugin's title where chart.js would have set its own: the same line height and padding.
+      const room = styledTitle.lines.length * typeSize.axisTitle * 1.2 + 3;
+      const plain = traitScale as unknown as { title: { display: boolean }; afterFit?: (scale: Scale) => void };
+      plain.title.display = false;
+      plain.afterFit = (scale: Scale) => {
+        if (scale.isHorizontal()) scale.height += room;
+        else scale.width += room;
+      };
+    }
     return {
       type: 'scatter',
       data: { datasets },
@@ -226,14 +263,40 @@ export function trajectoryPlan(lineages: readonly FigureLineage[], options: Reso
         plugins: {
           legend: { display: false },
           tooltip: { enabled: false },
-          title: { display: true, text: titleLines.length > 1 ? titleLines : title, align: 'start', color: ink.text, font: { size: typeSize.title, weight: 'bold' }, padding: { top: 0, bottom: 2 } },
+          title: { display: titleLines.length > 0, text: titleLines.length > 1 ? titleLines : title, align: 'start', color: ink.text, font: { size: typeSize.title, weight: 'bold' }, padding: { top: 0, bottom: 2 } },
           subtitle: { display: subtitle.length > 0, text: subtitle, align: 'start', color: ink.muted, font: { size: typeSize.subtitle }, padding: { top: 0, bottom: 6 } },
         },
       },
-      plugins: [marksPlugin(series, stratigraphic, envelopes, legend)],
+      plugins: [marksPlugin(series, stratigraphic, envelopes, legend, styledTitle, markerSize)],
     };
   };
   return { widthPoints, heightPoints, title, configuration, legend };
+}
+
+/**
+ * Marker area proportional to n: radius = r0 √(n / n_median), the median n
+ * of the horizons drawn at the house radius r0, clamped to 0.5–2 r0 so a
+ * single horizon of one specimen stays visible and a huge one does not
+ * cover its neighbours (the clamp is stated in the legend).
+ */
+function countScaling(lineages: readonly FigureLineage[]): { reference: number; smallest: number; largest: number; radius(n: number): number } | null {
+  const counts = lineages.flatMap((lineage) => lineage.count ?? []).sort((a, b) => a - b);
+  if (counts.length === 0) return null;
+  const middle = Math.floor(counts.length / 2);
+  const reference = counts.length % 2 === 1 ? counts[middle] : (counts[middle - 1] + counts[middle]) / 2;
+  const radius = (n: number) => markerRadius * Math.min(2, Math.max(0.5, Math.sqrt(n / reference)));
+  return { reference, smallest: counts[0], largest: counts[counts.length - 1], radius };
+}
+
+function countLegend(scaling: { reference: number; smallest: number; largest: number }): LegendEntry[] {
+  const round = (n: number) => Number(n.toPrecision(3));
+  const clamped = scaling.smallest < scaling.reference / 4 || scaling.largest > scaling.reference * 4;
+  return [
+    {
+      key: { marker: { shape: 'circle', color: ink.text } },
+      text: `Marker area proportional to n (this size: median n = ${round(scaling.reference)}; n from ${round(scaling.smallest)} to ${round(scaling.largest)})${clamped ? ', areas held within ¼ to 4 times this' : ''}`,
+    },
+  ];
 }
 
 function capitalised(text: string): string {
@@ -297,13 +360,14 @@ function scaleOptions(title: string | readonly string[], reverse: boolean, limit
 
 function subtitleText(series: readonly Series[], together: boolean, options: ResolvedFigureOptions): string {
   if (together) {
-    const which = options.model ? `the ${shortModelLabel(series.find((s) => s.curve)?.curve?.label ?? options.model)} model fitted to each section` : "each section's best-supported model";
+    const which = options.linesCaption ?? (options.model ? `the ${shortModelLabel(series.find((s) => s.curve)?.curve?.label ?? options.model)} model fitted to each section` : "each section's best-supported model");
     const missing = series.filter((s) => !s.curve).map((s) => s.lineage.section || 'lineage');
     const drawn = series.filter((s) => s.curve);
     const flat = drawn.filter((s) => !s.curve!.hasEnvelope).map((s) => s.lineage.section || 'lineage');
     const shading = flat.length === drawn.length ? '' : '; shading: its 95% envelope';
     const noEnvelope = drawn.length === 0 || flat.length === 0 ? '' : flat.length === drawn.length ? ' No envelopes: every model drawn has its variance at 0.' : ` No envelope for ${flat.join(', ')} (variance at 0).`;
-    return `Bars: 95% sampling intervals of the horizon means. Lines: expected trajectory of ${which}${shading}.${noEnvelope}${missing.length > 0 ? ` No line for ${missing.join(', ')}.` : ''}`;
+    const limits = drawn.filter((s) => s.curve!.limit !== null).map((s) => `${s.lineage.section || 'lineage'}: ${shortModelLabel(s.curve!.label)} with ${s.curve!.limit}.`);
+    return `Bars: 95% sampling intervals of the horizon means. Lines: expected trajectory of ${which}${shading}.${noEnvelope}${missing.length > 0 ? ` No line for ${missing.join(', ')}.` : ''}${limits.length > 0 ? ` ${limits.join(' ')}` : ''}`;
   }
   const item = series[0];
   if (!item.curve) return `No model trajectory drawn: ${item.curveReason}.`;
@@ -312,7 +376,9 @@ function subtitleText(series: readonly Series[], together: boolean, options: Res
   const best = curve.isBest ? 'best-supported model' : `model drawn (best supported: ${shortModelLabel(item.lineage.models.find((m) => m.id === item.lineage.bestModel)?.label ?? 'none')})`;
   const spans = item.lineage.time[item.lineage.time.length - 1] > 0;
   const flat = curve.hasEnvelope || curve.id === 'strict-stasis' || !spans ? '' : ' Its envelope has no width: the variance is estimated at 0.';
-  return `${capitalised(curve.label)}: ${best}${support}.${flat}`;
+  const limit = curve.limit === null ? '' : ` ${capitalised(curve.limit)}.`;
+  const noBand = options.smoothed && !item.smoothed ? ` No smoothed band: the fit holds no smoother under ${shortModelLabel(curve.label)}.` : '';
+  return `${capitalised(curve.label)}: ${best}${support}.${limit}${flat}${noBand}`;
 }
 
 function legendEntries(series: readonly Series[], together: boolean): LegendEntry[] {
@@ -356,7 +422,14 @@ function legendEntries(series: readonly Series[], together: boolean): LegendEntr
   return entries;
 }
 
-function marksPlugin(series: readonly Series[], stratigraphic: boolean, envelopes: readonly EnvelopeFill[], legend: LegendLayout): Plugin<'scatter'> {
+function marksPlugin(
+  series: readonly Series[],
+  stratigraphic: boolean,
+  envelopes: readonly EnvelopeFill[],
+  legend: LegendLayout,
+  styledTitle: { readonly lines: readonly (readonly StyledWord[])[]; readonly axis: 'x' | 'y' } | null,
+  markerSize: ((lineage: FigureLineage, index: number) => number) | null,
+): Plugin<'scatter'> {
   const pixel = (chart: Chart, time: number, value: number) => {
     const x = chart.scales.x.getPixelForValue(stratigraphic ? value : time);
     const y = chart.scales.y.getPixelForValue(stratigraphic ? time : value);
@@ -405,13 +478,30 @@ function marksPlugin(series: readonly Series[], stratigraphic: boolean, envelope
         item.marks.forEach((mark, i) => {
           const centre = pixel(chart, mark.time, mark.mean);
           const filled = (style ? style.filled : true) && !item.lineage.extrapolated[i];
-          drawMarker(chart.ctx, style ? style.marker : 'circle', centre.x, centre.y, style ? style.color : ink.text, filled);
+          drawMarker(chart.ctx, style ? style.marker : 'circle', centre.x, centre.y, style ? style.color : ink.text, filled, markerSize ? markerSize(item.lineage, i) : markerRadius);
         });
       }
       chart.ctx.restore();
     },
     afterDraw(chart) {
       drawLegend(chart.ctx, legend, margin, chart.height - legend.height - 4);
+      if (styledTitle) {
+        const scale = chart.scales[styledTitle.axis];
+        const area = chart.chartArea;
+        const size = typeSize.axisTitle;
+        const lineHeight = size * 1.2;
+        const count = styledTitle.lines.length;
+        if (styledTitle.axis === 'x') {
+          // The lines' block sits at the foot of the scale (1 pt padding below, as chart.js sets its titles).
+          styledTitle.lines.forEach((line, k) => drawStyledLine(chart.ctx, line, (area.left + area.right) / 2, scale.bottom - 1 - (count - 1 - k) * lineHeight - size * 0.28, size, ink.text, measureText));
+        } else {
+          chart.ctx.save();
+          chart.ctx.translate(scale.left + 1, (area.top + area.bottom) / 2);
+          chart.ctx.rotate(-Math.PI / 2);
+          styledTitle.lines.forEach((line, k) => drawStyledLine(chart.ctx, line, 0, k * lineHeight + size * 0.92, size, ink.text, measureText));
+          chart.ctx.restore();
+        }
+      }
     },
   };
 }
