@@ -27,8 +27,18 @@ export const comparisonCaution =
 
 export { candidateKey } from './compare-sections.js';
 
-function estimateText(name: string, estimate: ParameterEstimate): string {
-  const interval = estimate.lower === null && estimate.upper === null ? '' : ` [${estimate.lower === null ? 'open' : formatNumber(estimate.lower)}, ${estimate.upper === null ? 'open' : formatNumber(estimate.upper)}]`;
+/**
+ * One estimate with its interval in words, as compare's table prints it:
+ * "drift 0.37 [0.27, 0.5]"; an end that reaches a limit is "open", one that
+ * was not computed "—".
+ *
+ * @example
+ * estimateText('alpha', { estimate: 0.3, lower: 0, upper: null, atBound: null, lowerAtBound: false, upperAtBound: true }); // 'alpha 0.3 [0, open]'
+ */
+export function estimateText(name: string, estimate: ParameterEstimate): string {
+  // "open" only where the interval reaches a limit (as in fit's table); an end that was not computed is "—".
+  const end = (value: number | null, atBound: boolean | undefined): string => (value === null ? (atBound ? 'open' : '—') : formatNumber(value));
+  const interval = estimate.lower === null && estimate.upper === null && !estimate.lowerAtBound && !estimate.upperAtBound ? '' : ` [${end(estimate.lower, estimate.lowerAtBound)}, ${end(estimate.upper, estimate.upperAtBound)}]`;
   const bound = estimate.atBound ? (estimate.atBound === 'zero' ? ' (at bound 0)' : ` (at the ${estimate.atBound} limit)`) : '';
   return `${name} ${formatNumber(estimate.estimate)}${interval}${bound}`;
 }

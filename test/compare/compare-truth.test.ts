@@ -13,7 +13,9 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { candidates, runCompare, type CompareRun } from '../../src/cli/compare-command.js';
 import { compareSections, sameFit, sameFitTolerance, sharedShiftReason } from '../../src/compare/compare-sections.js';
 import { offsetModel } from '../../src/compare/joint-models.js';
-import { comparisonTable } from '../../src/compare/output.js';
+import { comparisonDocument, comparisonTable, estimateText } from '../../src/compare/output.js';
+import { escapeHtml } from '../../src/render/report/html.js';
+import { comparisonDocumentBlock } from '../../src/render/report/optional-blocks.js';
 import { mergeSections } from '../../src/compare/stack.js';
 import { summariseDraws } from '../../src/compare/age-uncertainty.js';
 import { fitModel } from '../../src/fit/fit-model.js';
@@ -95,6 +97,14 @@ describe('compare --models extended lists only what the data support', () => {
     }
   });
 
+  it('the report lists the left-out hypotheses with their reason, as the table does', () => {
+    const html = comparisonDocumentBlock(document as never);
+    expect(html).toContain('Left out, never ranked');
+    const leftOut = (document.traits[0].left_out as Json[]);
+    expect(leftOut.length).toBeGreaterThan(0);
+    for (const entry of leftOut) expect(html).toContain(escapeHtml(`of ${entry.model}: ${entry.reason}`));
+  });
+
   it('the table names no unfitted row and says what was left out and why', () => {
     expect(table).not.toMatch(/not finite anywhere/);
     expect(table).not.toMatch(/not compared/);
@@ -165,6 +175,15 @@ describe('exact ties are not rankings', () => {
     expect(Math.abs(shared.weight! - offset.weight!)).toBeLessThan(1e-6);
     expect(text.match(/<- best supported, tied \(same fit\)/g)).toHaveLength(2);
     expect(text).not.toMatch(/<- best supported$/m);
+  });
+
+  it('the report names the tie too: no single "best supported" row, the combined weight of the tied rows', () => {
+    const html = comparisonDocumentBlock({ traits: [comparisonDocument(comparison)] } as never);
+    expect(html.match(/best supported, tied \(same fit\)/g)).toHaveLength(2);
+    expect(html).not.toContain('<strong>best supported</strong>');
+    expect(html).toContain('Best supported: cannot be told apart here.');
+    const combined = Number(/together they carry Akaike weight (\d+\.\d+)/.exec(html)![1]);
+    expect(combined).toBeCloseTo(shared.weight! + offset.weight!, 3);
   });
 
   it('age-draw summaries count the tied rows together: each is best in every draw where the tie is best', () => {
@@ -279,4 +298,16 @@ describe('compare uses the calibrated default interval method (issue 18 item 3)'
     for (const hypothesis of comparison.hypotheses) expect(hypothesis.intervalMethod).toBe('profile');
     expect(comparisonTable(comparison)).toMatch(/95% profile-likelihood \(asymptotic\) intervals where computed/);
   }, 60_000);
+});
+
+describe('interval ends in words', () => {
+  // Common practice (and fit's table): "open" is said only of an end that reaches a bound or limit where the
+  // likelihood stays above the cut-off; an end that was never computed is shown as a dash, not as "open".
+  const base = { estimate: 0.3, lower: 0.1, upper: 0.9, atBound: null, lowerAtBound: false, upperAtBound: false } as const;
+  it('prints "open" only for an end at a limit', () => {
+    expect(estimateText('alpha', { ...base, upper: null, upperAtBound: true })).toBe('alpha 0.3 [0.1, open]');
+    expect(estimateText('alpha', { ...base, upper: null })).toBe('alpha 0.3 [0.1, —]');
+    expect(estimateText('alpha', { ...base, lower: null, upper: null })).toBe('alpha 0.3');
+    expect(estimateText('alpha', base)).toBe('alpha 0.3 [0.1, 0.9]');
+  });
 });

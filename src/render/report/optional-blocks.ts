@@ -162,8 +162,17 @@ export function comparisonDocumentBlock(comparison: Json, renderLineage?: Lineag
     const sections = Array.isArray(entry.sections) ? (entry.sections as Json[]).filter(isRecord) : [];
     parts.push(`<h3>${escapeHtml(String(entry.trait || 'trait'))}</h3>`);
     parts.push(`<p>${escapeHtml(`${sections.length} sections (${sections.map((section) => `${section.section}: ${section.horizons} horizons${typeof section.first_age === 'number' ? ` from age ${formatNumber(section.first_age)}` : ''}`).join('; ')}), ${scalarText(entry.horizons)} horizons in all, time in ${scalarText(entry.time_unit)}${traitWords(entry)}.`)}</p>`);
+    // compare.json's best_tied: more than one entry means the best is the same fit as others (equal K and logL) and cannot be told apart.
+    const tied = Array.isArray(entry.best_tied) ? (entry.best_tied as Json[]).filter(isRecord) : [];
+    const inTiedBest = (hypothesis: Record<string, Json>): boolean => tied.length > 1 && tied.some((item) => item.id === hypothesis.id && item.model === hypothesis.model);
     const rows = hypotheses.map((hypothesis) => {
       const isBest = best !== null && best.id === hypothesis.id && best.model === hypothesis.model;
+      const sameFit = Array.isArray(hypothesis.same_fit_as) ? (hypothesis.same_fit_as as Json[]).map(String) : [];
+      const status = inTiedBest(hypothesis)
+        ? '<strong>best supported, tied (same fit)</strong>'
+        : isBest ? '<strong>best supported</strong>'
+          : hypothesis.compared === false ? escapeHtml(String(hypothesis.message ?? 'not compared'))
+            : sameFit.length > 0 ? escapeHtml(`same fit as ${sameFit.join(', ')}`) : '';
       return `<tr data-hypothesis="${escapeHtml(String(hypothesis.id))}" data-model="${escapeHtml(String(hypothesis.model))}" class="${isBest ? 'best' : hypothesis.compared === false ? 'not-compared' : ''}">`
         + `<td>${escapeHtml(String(hypothesis.description ?? hypothesis.id))}</td><td>${escapeHtml(String(hypothesis.label ?? hypothesis.model))}</td>`
         + cell(hypothesis.k, 'k')
@@ -171,12 +180,23 @@ export function comparisonDocumentBlock(comparison: Json, renderLineage?: Lineag
         + `<td class="number" data-field="aicc" data-value="${exactValue(hypothesis.aicc as number | null)}">${escapeHtml(typeof hypothesis.aicc === 'number' ? hypothesis.aicc.toFixed(3) : '—')}</td>`
         + `<td class="number" data-field="delta_aicc" data-value="${exactValue(hypothesis.delta_aicc as number | null)}">${escapeHtml(typeof hypothesis.delta_aicc === 'number' ? hypothesis.delta_aicc.toFixed(3) : '—')}</td>`
         + `<td class="number" data-field="weight" data-value="${exactValue(hypothesis.weight as number | null)}">${escapeHtml(typeof hypothesis.weight === 'number' ? hypothesis.weight.toFixed(3) : '—')}</td>`
-        + `<td>${isBest ? '<strong>best supported</strong>' : hypothesis.compared === false ? escapeHtml(String(hypothesis.message ?? 'not compared')) : ''}</td></tr>`;
+        + `<td>${status}</td></tr>`;
     });
     parts.push(`<table class="comparison" aria-label="section comparison"><thead><tr><th>hypothesis</th><th>model</th><th class="number">K</th><th class="number">logL</th><th class="number">AICc</th><th class="number">ΔAICc</th><th class="number">Akaike weight</th><th></th></tr></thead><tbody>\n${rows.join('\n')}\n</tbody></table>`);
-    if (best) {
+    const tiedRows = hypotheses.filter(inTiedBest);
+    if (tiedRows.length > 1) {
+      const combined = tiedRows.reduce((sum, hypothesis) => sum + (typeof hypothesis.weight === 'number' ? hypothesis.weight : 0), 0);
+      const names = tiedRows.map((hypothesis) => `${hypothesis.description ?? hypothesis.id}, ${hypothesis.label ?? hypothesis.model}`);
+      const logL = typeof tiedRows[0].logLik === 'number' ? tiedRows[0].logLik.toFixed(3) : '—';
+      parts.push(`<div class="conclusion"><p><strong>Best supported: cannot be told apart here.</strong> ${escapeHtml(`${names.join('; ')} are the same fit at their estimates (K = ${scalarText(tiedRows[0].k)}, logL ${logL} in each), so the data do not favour one over the other; together they carry Akaike weight ${combined.toFixed(3)}.`)}</p></div>`);
+    } else if (best) {
       const winner = hypotheses.find((hypothesis) => hypothesis.id === best.id && hypothesis.model === best.model);
       if (winner) parts.push(`<div class="conclusion"><p><strong>Best supported:</strong> ${escapeHtml(String(winner.description ?? winner.id))}, ${escapeHtml(String(winner.label ?? winner.model))} (Akaike weight ${typeof winner.weight === 'number' ? winner.weight.toFixed(3) : '—'}).</p></div>`);
+    }
+    // Hypotheses never ranked (e.g. a shared shift, which is not defined here), with compare's reason.
+    const leftOut = Array.isArray(entry.left_out) ? (entry.left_out as Json[]).filter(isRecord) : [];
+    if (leftOut.length > 0) {
+      parts.push(`<p><strong>Left out, never ranked</strong></p><ul class="note">${leftOut.map((item) => `<li>${escapeHtml(`${item.id === 'every' ? 'every hypothesis' : String(item.id)} of ${String(item.model)}: ${String(item.reason)}`)}</li>`).join('')}</ul>`);
     }
     if (Array.isArray(entry.tests) && entry.tests.length > 0) {
       const tests = (entry.tests as Json[]).filter(isRecord);
