@@ -6,6 +6,10 @@
  * writes the JSON elsewhere. Nothing here asserts anything: the numbers and
  * the targets of issue 7 are reported side by side.
  *
+ * The full run also runs the exhaustive test sweeps that `npm test` only
+ * samples (`sweepFiles`, through vitest with STRATOTREND_SWEEP=full: those
+ * files assert, so a failure is reported as such); `--sweep` runs only them.
+ *
  * Heavy cases (long fits, batches) run in child processes (bench/case.ts) so
  * that each one's peak memory is its own.
  */
@@ -29,6 +33,7 @@ import { benchLineage } from './workload.js';
 const distRoot = new URL('../', import.meta.url); // dist/
 const projectRoot = new URL('../../', import.meta.url);
 const smoke = process.argv.includes('--smoke');
+const sweepOnly = process.argv.includes('--sweep');
 const outIndex = process.argv.indexOf('--out');
 const outFile = outIndex >= 0 ? process.argv[outIndex + 1] : smoke ? null : fileURLToPath(new URL('bench/results.json', projectRoot));
 
@@ -299,6 +304,36 @@ async function measureCalibration(): Promise<unknown> {
   return { seconds: (performance.now() - started) / 1000, result: JSON.parse(JSON.stringify(result ?? null)) };
 }
 
+/**
+ * Test files whose exhaustive sweep `npm test` runs only as a seeded sample;
+ * with STRATOTREND_SWEEP=full they run every seed (issue 22).
+ */
+export const sweepFiles: readonly string[] = ['test/robustness/numbers.test.ts'];
+
+interface SweepResult {
+  files: readonly string[];
+  passed: boolean;
+  seconds: number;
+  summary: string;
+}
+
+/** Run the sweep files through vitest (a dev dependency) with STRATOTREND_SWEEP=full, from the project root. */
+function runSweep(): SweepResult {
+  process.stderr.write(`  exhaustive sweeps (${sweepFiles.join(', ')})...\n`);
+  const vitest = fileURLToPath(new URL('node_modules/vitest/vitest.mjs', projectRoot));
+  const started = performance.now();
+  const result = spawnSync(process.execPath, [vitest, 'run', ...sweepFiles], {
+    cwd: fileURLToPath(projectRoot),
+    encoding: 'utf8',
+    maxBuffer: 1 << 26,
+    env: { ...process.env, STRATOTREND_SWEEP: 'full', NO_COLOR: '1' },
+  });
+  const seconds = (performance.now() - started) / 1000;
+  const output = `${result.stdout ?? ''}${result.stderr ?? ''}`;
+  const summary = output.split('\n').filter((line) => /^\s*(Test Files|Tests)\s/.test(line)).map((line) => line.trim()).join('; ') || output.slice(-400);
+  return { files: sweepFiles, passed: result.status === 0, seconds, summary };
+}
+
 /** Growth of time with horizons, as the time ratio for 16× the horizons (from a power law through two sizes). */
 function growthFor16(rows: readonly FitRow[], intervals: boolean, from: number, to: number): number | null {
   const a = rows.find((row) => row.intervals === intervals && row.horizons === from);
@@ -385,6 +420,12 @@ function measureStreaming(rows: number): { rows: number; megabytes: number; seco
 }
 
 async function main(): Promise<void> {
+  if (sweepOnly) {
+    const sweep = runSweep();
+    process.stdout.write(`Exhaustive sweeps: ${sweep.passed ? 'passed' : 'FAILED'} in ${format(sweep.seconds)} s (${sweep.summary})\n`);
+    if (!sweep.passed) process.exitCode = 1;
+    return;
+  }
   const cores = availableParallelism();
   const machine = {
     cores,
@@ -406,6 +447,7 @@ async function main(): Promise<void> {
   const calibration = await measureCalibration();
   process.stderr.write('  streaming a large specimen file...\n');
   const streaming = measureStreaming(smoke ? 20_000 : 1_000_000);
+  const sweep = smoke ? null : runSweep();
 
   const at1000 = likelihood.filter((row) => row.horizons === (smoke ? 200 : 1000));
   const worstRatio = Math.min(...at1000.map((row) => row.ratio ?? Number.POSITIVE_INFINITY));
@@ -426,7 +468,7 @@ async function main(): Promise<void> {
     { name: `batch speedup on ${batch.rows[1].threads} threads`, target: '>= 1.6', measured: batch.speedup, met: batch.speedup >= 1.6 },
     { name: '`stratotrend --help` / `node -e 0`', target: '<= 2', measured: startup.ratio, met: startup.ratio <= 2 },
   ];
-  const results = { mode: smoke ? 'smoke' : 'full', date: new Date().toISOString(), machine, likelihood, fits, batch, startup, figures, streaming, calibration, targets };
+  const results = { mode: smoke ? 'smoke' : 'full', date: new Date().toISOString(), machine, likelihood, fits, batch, startup, figures, streaming, calibration, sweep, targets };
   if (outFile) writeFileSync(outFile, JSON.stringify(results, null, 2) + '\n');
 
   const lines: string[] = [];
@@ -466,6 +508,7 @@ async function main(): Promise<void> {
   lines.push('Every command that reads the samples file, on the same file (each in its own process):');
   lines.push(table([['command', 'seconds', 'peak resident MiB'], ...streaming.commands.map((row) => [row.command, format(row.seconds), format(row.peakResidentMiB)])]));
   if (!smoke) lines.push('', `Calibration: ${JSON.stringify(calibration).slice(0, 200)}`);
+  if (sweep) lines.push('', `Exhaustive sweeps (${sweep.files.join(', ')}, STRATOTREND_SWEEP=full): ${sweep.passed ? 'passed' : 'FAILED'} in ${format(sweep.seconds)} s (${sweep.summary})`);
   lines.push('', 'Targets (issue 7)');
   lines.push(table([
     ['measure', 'target', 'measured', 'met'],
@@ -474,6 +517,7 @@ async function main(): Promise<void> {
   if (smoke) lines.push('', '(smoke mode: small sizes, so the targets above are not meaningful)');
   if (outFile) lines.push('', `Wrote ${outFile}`);
   process.stdout.write(lines.join('\n') + '\n');
+  if (sweep && !sweep.passed) process.exitCode = 1;
 }
 
 main().catch((error) => {
