@@ -370,13 +370,13 @@ interface StreamedCommand {
  * own and not the benchmark's: the reader alone, then every command that
  * reads a samples file (fit, compare, simulate, power, bootstrap, report), each
  * through the CLI's `main` with the lightest options that still read it all.
- * Two invented sections of 100 horizons each, so that `compare` compares.
+ * Two invented sections of `horizons` / 2 horizons each (100 in the full run, 20 in
+ * smoke mode), so that `compare` compares.
  */
-function measureStreaming(rows: number): { rows: number; megabytes: number; seconds: number; peakResidentMiB: number; commands: StreamedCommand[] } {
+function measureStreaming(rows: number, horizons: number): { rows: number; horizons: number; megabytes: number; seconds: number; peakResidentMiB: number; commands: StreamedCommand[] } {
   const folder = mkdtempSync(join(tmpdir(), 'stratotrend-bench-stream-'));
   const file = join(folder, 'specimens.csv');
   const lines = ['section,trait,age,value'];
-  const horizons = 200;
   for (let k = 0; k < rows; k++) {
     const horizon = k % horizons;
     const section = horizon < horizons / 2 ? 'Bench Gully' : 'Bench Scar';
@@ -416,7 +416,7 @@ function measureStreaming(rows: number): { rows: number; megabytes: number; seco
     runCommand(['report', file, '--no-intervals', '--compare', '--out', join(folder, 'report.html')]),
   ];
   rmSync(folder, { recursive: true, force: true });
-  return { rows: measured.rows, megabytes, seconds: measured.seconds, peakResidentMiB: measured.maxRss / 2 ** 20, commands };
+  return { rows: measured.rows, horizons, megabytes, seconds: measured.seconds, peakResidentMiB: measured.maxRss / 2 ** 20, commands };
 }
 
 async function main(): Promise<void> {
@@ -446,7 +446,8 @@ async function main(): Promise<void> {
   const figures = await measureFigures();
   const calibration = await measureCalibration();
   process.stderr.write('  streaming a large specimen file...\n');
-  const streaming = measureStreaming(smoke ? 20_000 : 1_000_000);
+  // Smoke mode: 40 horizons (two sections of 20), so the six commands' fits take seconds, not half a minute.
+  const streaming = measureStreaming(smoke ? 20_000 : 1_000_000, smoke ? 40 : 200);
   const sweep = smoke ? null : runSweep();
 
   const at1000 = likelihood.filter((row) => row.horizons === (smoke ? 200 : 1000));

@@ -36,7 +36,11 @@ describe('npm run bench -- --smoke', () => {
       expect(results.startup.helpMilliseconds).toBeGreaterThan(0);
       expect(results.figures.length).toBeGreaterThanOrEqual(1);
       for (const row of results.figures) if (row.available) expect(row.bytes).toBeGreaterThan(0);
+      // Every samples-reading command ran on the streamed file (a failing one stops the script).
+      expect(results.streaming.commands.map((row: { command: string }) => row.command.split(' ')[1])).toEqual(['fit', 'compare', 'simulate', 'power', 'bootstrap', 'report']);
+      expect(results.streaming.rows).toBe(20_000);
       expect(results.calibration).toEqual({ skipped: 'smoke mode' });
+      expect(results.sweep).toBeNull();
       expect(results.targets.length).toBeGreaterThanOrEqual(8);
       expect(printed).toContain('Targets (issue 7)');
     } finally {
