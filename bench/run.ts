@@ -308,7 +308,7 @@ async function measureCalibration(): Promise<unknown> {
  * Test files whose exhaustive sweep `npm test` runs only as a seeded sample;
  * with STRATOTREND_SWEEP=full they run every seed (issue 22).
  */
-export const sweepFiles: readonly string[] = ['test/robustness/numbers.test.ts'];
+export const sweepFiles: readonly string[] = ['test/robustness/numbers.test.ts', 'test/robustness/fuzz.test.ts'];
 
 interface SweepResult {
   files: readonly string[];

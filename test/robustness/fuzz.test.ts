@@ -1,5 +1,6 @@
 /**
- * Property-based fuzzing (fast-check, seeded): thousands of mutated versions
+ * Property-based fuzzing (fast-check, seeded): hundreds (thousands in the
+ * sweep of `npm run bench`) of mutated versions
  * of small valid files go through the same functions the CLI calls. Every
  * run must end in a result whose numbers are all finite, or in an InputError
  * (one user-facing message); any other exception is a crash. The streaming
@@ -26,6 +27,7 @@ import { lineageTable } from '../../src/render/text-table.js';
 import { modelsCsv } from '../../src/render/models-csv.js';
 import { runCli } from './cli.js';
 import { nonFinitePaths, nonFiniteText } from './finite.js';
+import { sweepSize } from '../support/sweep.js';
 
 const summaryFile = [
   'section,trait,age,n,mean,sd',
@@ -200,7 +202,14 @@ async function streamedRead(bytes: Buffer, name: string, options: FitCommandOpti
 }
 
 describe('fuzzing: mutated files end in a finite result or one InputError', () => {
-  it('in-process through runFit (2000 mutated files, no intervals)', () => {
+  // The two large property runs are sweeps: npm test runs the first quarter of each seeded
+  // sequence (fast-check draws runs in order from its seed: the first
+  // n runs do not depend on numRuns, checked here with fast-check 4.10), npm run bench all of it
+  // (test/support/sweep.ts). The branch counts are required in the same proportion (1 in 20).
+  const fitRuns = sweepSize(2000, 500);
+  const readerRuns = sweepSize(1500, 400);
+
+  it(`in-process through runFit (${fitRuns} mutated files, no intervals; 2000 in the sweep)`, () => {
     const outcomes = { fitted: 0, refused: 0 };
     fc.assert(
       fc.property(caseArbitrary, ({ base, mutations, flags }) => {
@@ -208,11 +217,11 @@ describe('fuzzing: mutated files end in a finite result or one InputError', () =
         const path = writeCase(mutate(text, mutations));
         outcomes[fitOrRefuse(path, { ...options, ...flags, intervals: false })] += 1;
       }),
-      { numRuns: 2000, seed: 20261201 },
+      { numRuns: fitRuns, seed: 20261201 },
     );
-    // The corpus must exercise both branches, or the property says little.
-    expect(outcomes.fitted).toBeGreaterThan(100);
-    expect(outcomes.refused).toBeGreaterThan(100);
+    // The corpus must exercise both branches, or the property says little (each more than 1 run in 20).
+    expect(outcomes.fitted).toBeGreaterThan(fitRuns / 20);
+    expect(outcomes.refused).toBeGreaterThan(fitRuns / 20);
   });
 
   it('in-process through runFit with profile intervals (40 mutated files)', () => {
@@ -225,7 +234,7 @@ describe('fuzzing: mutated files end in a finite result or one InputError', () =
     );
   });
 
-  it('the streaming reader agrees with the whole-file reader (1500 mutated files, random chunk sizes)', async () => {
+  it(`the streaming reader agrees with the whole-file reader (${readerRuns} mutated files, random chunk sizes; 1500 in the sweep)`, async () => {
     await fc.assert(
       fc.asyncProperty(caseArbitrary, fc.integer({ min: 1, max: 64 }), async ({ base, mutations, flags }, chunkBytes) => {
         const { text, options } = bases[base];
@@ -235,7 +244,7 @@ describe('fuzzing: mutated files end in a finite result or one InputError', () =
         const streamed = await streamedRead(bytes, 'case.csv', readOptions, chunkBytes);
         expect(streamed).toEqual(whole);
       }),
-      { numRuns: 1500, seed: 99 },
+      { numRuns: readerRuns, seed: 99 },
     );
   });
 

@@ -20,6 +20,7 @@ import { lineageTable } from '../../src/render/text-table.js';
 import { modelsCsv } from '../../src/render/models-csv.js';
 import { nonFinitePaths, nonFiniteText } from './finite.js';
 import { createRandom } from '../../src/simulate/random.js';
+import { sweepSize } from '../support/sweep.js';
 
 const folder = mkdtempSync(join(tmpdir(), 'stratotrend-numbers-'));
 let counter = 0;
@@ -184,9 +185,8 @@ describe('invariances on seeded random lineages (1e-8 relative, every interval m
     ['bootstrap', [17, 18], [18], { intervals: 'bootstrap' }],
     ['extended models', [19, 22], [22], { models: 'extended', intervals: 'profile' }],
   ];
-  const fullSweep = process.env.STRATOTREND_SWEEP === 'full';
   it.each(methods)('%s', (_, allSeeds, sampleSeeds, options) => {
-    for (const seed of fullSweep ? allSeeds : sampleSeeds) {
+    for (const seed of sweepSize(allSeeds, sampleSeeds)) {
       const rows = lineageRows(seed);
       const original = fitDocument(write(rows), options);
       expectSameFit(fitDocument(write(rows.map(([age, n, mean, sd]) => [age, n, mean + 1000, sd])), options), original, { shift: 1000 });
