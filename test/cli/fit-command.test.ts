@@ -115,7 +115,7 @@ describe('stratotrend fit: invariances (common practice for location-scale model
 describe('stratotrend fit: the command line', () => {
   it('--out writes models.csv and fit.json, and the JSON equals --json output byte for byte', () => {
     const out = join(folder, 'out');
-    const printed = execFileSync('node', [launcher, 'fit', sample, '--out', out, '--json'], { encoding: 'utf8' });
+    const printed = execFileSync('node', [launcher, 'fit', sample, '--no-figures', '--out', out, '--json'], { encoding: 'utf8' });
     expect(existsSync(join(out, 'models.csv'))).toBe(true);
     expect(readFileSync(join(out, 'fit.json'), 'utf8')).toBe(printed);
     const csv = readFileSync(join(out, 'models.csv'), 'utf8').trim().split('\n');

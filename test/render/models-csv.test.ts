@@ -35,7 +35,7 @@ describe('models.csv: extrapolated_horizons', () => {
     const shortTies = join(folder, 'short-ties.csv');
     writeFileSync(shortTies, readFileSync(ties, 'utf8').replace('Quarrel Hollow,120,5.60,0.04\n', ''));
     const out = join(folder, 'out');
-    const run = spawnSync(process.execPath, [launcher, 'fit', heights, '--age-model', shortTies, '--extrapolate', '--no-intervals', '--models', 'random-walk', '--out', out], { encoding: 'utf8' });
+    const run = spawnSync(process.execPath, [launcher, 'fit', heights, '--age-model', shortTies, '--extrapolate', '--no-intervals', '--models', 'random-walk', '--no-figures', '--out', out], { encoding: 'utf8' });
     expect(run.status, run.stderr).toBe(0);
 
     // Expected counts from the inputs: per section × trait, heights outside [lowest tie, highest tie].
