@@ -49,11 +49,11 @@ describe('--age-model and --extrapolate on every samples-reading command', () =>
   });
 
   it('report --power on heights with --age-model runs the power analysis for every lineage', () => {
-    // One lineage of the bundled data (one power run keeps the test short).
+    // One lineage of the bundled data and one assumed step variance (one power run keeps the test short).
     const rows = readFileSync(heights, 'utf8').trim().split('\n');
     const one = write('one-lineage.csv', [rows[0], ...rows.filter((row) => row.startsWith('Quarrel Hollow,whorl width,'))].join('\n') + '\n');
     const out = join(folder, 'power.html');
-    const run = runCli(['report', one, '--age-model', ties, '--power', '--power-replicates', '20', '--no-intervals', '--out', out], folder);
+    const run = runCli(['report', one, '--age-model', ties, '--power', '--power-replicates', '20', '--power-step-variance', '0.02', '--no-intervals', '--out', out], folder);
     expect(run.status, run.stderr).toBe(0);
     const html = readFileSync(out, 'utf8');
     expect(html).not.toContain('power not run');
