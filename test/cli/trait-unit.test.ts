@@ -148,7 +148,8 @@ describe('compare and power', () => {
   it('power: table, JSON and the drift axis in mm per Myr', () => {
     const folder = mkdtempSync(join(tmpdir(), 'stratotrend-trait-unit-'));
     const figure = join(folder, 'power.svg');
-    const args = ['power', shellLength, '--replicates', '20', '--no-coverage', '--threads', '1', '--trait-unit', 'mm'];
+    // One assumed step variance (the default assumes two, fitted and upper end; the unit is printed the same way for both).
+    const args = ['power', shellLength, '--replicates', '20', '--no-coverage', '--threads', '1', '--step-variance', '0.02', '--trait-unit', 'mm'];
     const run = runCli([...args, '--figure', figure], root);
     expect(run.status, run.stderr).toBe(0);
     expect(run.stdout).toContain('drift (mm per Myr)');
