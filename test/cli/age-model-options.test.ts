@@ -41,7 +41,7 @@ describe('--age-model and --extrapolate on every samples-reading command', () =>
   });
 
   it('power runs on a design given by height once the age model is given (the report --power blocker)', async () => {
-    const run = await runPower(heights, { ageModel: ties, lineage: 'Quarrel Hollow / whorl width', replicates: '20', coverage: false, threads: '1' });
+    const run = await runPower(heights, { ageModel: ties, lineage: 'Quarrel Hollow / whorl width', replicates: '20', stepVariance: '0.02', coverage: false, threads: '1' });
     expect(run.lineage.positionKind).toBe('height');
     // Elapsed time runs from the oldest horizon: t_i = firstAge - age_i, all finite and increasing.
     expect(Array.from(run.lineage.time).every((t, i, all) => i === 0 || t > all[i - 1])).toBe(true);
