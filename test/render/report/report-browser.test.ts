@@ -39,6 +39,18 @@ interface PageLog {
   refusedRequests: string[];
 }
 
+let sharedBrowser: Promise<Browser> | undefined;
+
+/** One Chromium for the whole file, launched on first use (each describe opens its own context); closed after all. */
+function launchedBrowser(): Promise<Browser> {
+  sharedBrowser ??= import('playwright-core').then(({ chromium }) => chromium.launch({ executablePath: executable!, args: chromiumArgs }));
+  return sharedBrowser;
+}
+
+afterAll(async () => {
+  if (sharedBrowser) await (await sharedBrowser).close();
+});
+
 async function openOffline(context: BrowserContext, url: string): Promise<{ page: Page; log: PageLog }> {
   const log: PageLog = { consoleErrors: [], failedRequests: [], refusedRequests: [] };
   const page = await context.newPage();
@@ -118,7 +130,6 @@ describe.skipIf(!executable)('HTML report in headless Chromium, offline', () => 
   let log: PageLog;
 
   beforeAll(async () => {
-    const { chromium } = await import('playwright-core');
     folder = mkdtempSync(join(tmpdir(), 'stratotrend-report-'));
     const run = runFit('sample-data/shell-length.csv', {});
     const fitText = JSON.stringify(run.document, null, 2) + '\n';
@@ -126,13 +137,13 @@ describe.skipIf(!executable)('HTML report in headless Chromium, offline', () => 
     fitJson = JSON.parse(readFileSync(join(folder, 'fit.json'), 'utf8'));
     const html = await buildReport(asFitDocument(run.document), {});
     writeFileSync(join(folder, 'report.html'), html);
-    browser = await chromium.launch({ executablePath: executable!, args: chromiumArgs });
+    browser = await launchedBrowser();
     context = await browser.newContext({ viewport: { width: 1280, height: 900 }, offline: true });
     ({ page, log } = await openOffline(context, pathToFileURL(join(folder, 'report.html')).href));
   });
 
   afterAll(async () => {
-    await browser?.close();
+    await context?.close();
     if (folder) rmSync(folder, { recursive: true, force: true });
   });
 
@@ -243,13 +254,13 @@ describe.skipIf(!executable)('HTML report in headless Chromium, offline', () => 
 describe.skipIf(!executable)('HTML report with the optional analyses (section comparison, power), offline', () => {
   let folder: string;
   let browser: Browser;
+  let context: BrowserContext;
   let page: Page;
   let log: PageLog;
   let comparison: { traits: { hypotheses: Record<string, unknown>[] }[] };
   let power: { grid: Record<string, number>[] };
 
   beforeAll(async () => {
-    const { chromium } = await import('playwright-core');
     const { runCompare } = await import('../../../src/cli/compare-command.js');
     const { runPower } = await import('../../../src/cli/power-command.js');
     folder = mkdtempSync(join(tmpdir(), 'stratotrend-report-analyses-'));
@@ -259,13 +270,13 @@ describe.skipIf(!executable)('HTML report with the optional analyses (section co
     power = JSON.parse(JSON.stringify((await runPower('sample-data/shell-length.csv', { replicates: '20', seed: '3', coverage: false })).document));
     const html = await buildReport(asFitDocument(run.document), {}, { analyses: { comparison, power: [power], seeds: { power: '3' } } });
     writeFileSync(join(folder, 'report.html'), html);
-    browser = await chromium.launch({ executablePath: executable!, args: chromiumArgs });
-    const context = await browser.newContext({ viewport: { width: 1280, height: 900 }, offline: true });
+    browser = await launchedBrowser();
+    context = await browser.newContext({ viewport: { width: 1280, height: 900 }, offline: true });
     ({ page, log } = await openOffline(context, pathToFileURL(join(folder, 'report.html')).href));
   });
 
   afterAll(async () => {
-    await browser?.close();
+    await context?.close();
     if (folder) rmSync(folder, { recursive: true, force: true });
   });
 
