@@ -147,7 +147,11 @@ describe('integrated intervals agree with brute-force numerical integration of t
   // over sigma2 is a Riemann sum on a log grid (300 cells from 1e-7 to 10, so
   // the cell width in log sigma2 is 0.09) and the drift's distribution
   // function a trapezoid sum on 400 points; the quantile error of both is far
-  // below the 1e-3 x width tolerance.
+  // below the 1e-3 x width tolerance. V depends on sigma2 only, so its
+  // factorisations are made once per sigma2 (issue 22: not once per drift):
+  // the normalising term -0.5 (N ln 2 pi + ln det V) is denseLogLik at r = 0
+  // (Cholesky, ml-matrix) and the quadratic form r' V^-1 r uses ml-matrix's
+  // inverse; their sum is denseLogLik's value at each drift.
   it('the 95% drift interval (equal tails) matches to 1e-3 of its width', () => {
     const fit = fitModel(directionalWalk, lineage, { intervalMethod: 'integrated' });
     expect(fit.intervalMethod).toBe('integrated');
@@ -164,15 +168,19 @@ describe('integrated intervals agree with brute-force numerical integration of t
       const vInverse = inverse(new Matrix(covariance.map((row, i) => row.map((value, j) => value + (i === j ? e[i] : 0)))));
       let information = 0;
       for (let i = 0; i < size; i++) for (let j = 0; j < size; j++) information += vInverse.get(i, j);
-      return { stepVariance, covariance, vInverse, information };
+      const logNormaliser = denseLogLik(x, covariance, e, x);
+      return { stepVariance, vInverse, information, logNormaliser };
     });
     const drifts = Array.from({ length: 400 }, (_, k) => low - 1.5 * width + (k * 4 * width) / 399);
     const logDensity = drifts.map((drift) => {
-      const terms = cache.map(({ stepVariance, covariance, vInverse, information }) => {
+      const terms = cache.map(({ stepVariance, vInverse, information, logNormaliser }) => {
         let numerator = 0;
         for (let i = 0; i < size; i++) for (let j = 0; j < size; j++) numerator += vInverse.get(i, j) * (x[j] - drift * timeValues[j]);
         const ancestral = numerator / information;
-        const logLik = denseLogLik(timeValues.map((t) => ancestral + drift * t), covariance, e, x);
+        const residual = timeValues.map((t, i) => x[i] - ancestral - drift * t);
+        let quadratic = 0;
+        for (let i = 0; i < size; i++) for (let j = 0; j < size; j++) quadratic += residual[i] * vInverse.get(i, j) * residual[j];
+        const logLik = logNormaliser - 0.5 * quadratic;
         // + ln sqrt(2 pi / information) (integral over a) - 0.5 ln sigma2 (prior) + ln sigma2 (log-grid Jacobian).
         return logLik + 0.5 * Math.log((2 * Math.PI) / information) + 0.5 * Math.log(stepVariance);
       });
