@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { ageMonteCarlo, quantileOfSorted, spreadOf, summariseDraws } from '../../src/compare/age-uncertainty.js';
+import { ageMonteCarlo, spreadOf, summariseDraws } from '../../src/compare/age-uncertainty.js';
+import { quantileOfSorted } from '../../src/statistics/quantiles.js';
 import { compareTraits } from '../../src/compare/compare-sections.js';
 import { ageFunction, readAgeModel, type AgeModel } from '../../src/data/age-model.js';
 import { readTable } from '../../src/data/read-table.js';

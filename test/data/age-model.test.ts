@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { ageFunction, hasAgeUncertainty, interpolateAge, readAgeModel, redrawAgeModel, sedimentationRates } from '../../src/data/age-model.js';
+import { redrawAgeModel } from '../../src/compare/age-uncertainty.js';
+import { ageFunction, hasAgeUncertainty, interpolateAge, readAgeModel, sedimentationRates } from '../../src/data/age-model.js';
 import { InputError } from '../../src/data/errors.js';
 import { readTable } from '../../src/data/read-table.js';
 import { createRandom } from '../../src/simulate/random.js';

@@ -3,13 +3,13 @@
  * Pure: reads the plain result objects of `compareSections`, prints nothing.
  */
 import type { ParameterEstimate } from '../fit/fit-model.js';
-import { estimateEndsDocument, finiteOrNull } from '../render/fit-document.js';
-import { csvField } from '../render/models-csv.js';
-import { alignColumns, intervalMethodWords } from '../render/text-table.js';
-import { formatFixed, formatNumber } from '../render/units.js';
-import type { CandidateSpread, Spread } from './age-uncertainty.js';
-import { candidateKey, type HypothesisFit, type LeftOutHypothesis, type TraitComparison } from './compare-sections.js';
-import { commonTime } from './stack.js';
+import { estimateEndsDocument, finiteOrNull } from './fit-document.js';
+import { csvField } from './models-csv.js';
+import { alignColumns, intervalMethodWords } from './text-table.js';
+import { formatFixed, formatNumber } from './units.js';
+import type { CandidateSpread, Spread } from '../compare/age-uncertainty.js';
+import { candidateKey, type HypothesisFit, type LeftOutHypothesis, type TraitComparison } from '../compare/compare-sections.js';
+import { commonTime } from '../compare/stack.js';
 
 /** Words for each hypothesis id. */
 export const hypothesisWords: Record<string, string> = {
@@ -24,8 +24,6 @@ export const comparisonCaution =
   'sampling, and time-averaging within horizons; "shared-offset" assumes the sections sample one lineage on a correct common timescale. ' +
   'A shared process does not by itself show that the localities exchanged migrants, nor a separate one that they were isolated; ' +
   'the likelihood-ratio p-value is approximate when a variance sits at its bound 0. Weigh these results with the specialist\'s knowledge of the sections.';
-
-export { candidateKey } from './compare-sections.js';
 
 /**
  * One estimate with its interval in words, as compare's table prints it:
