@@ -19,7 +19,8 @@ import { alignColumns, lineageTable } from '../render/text-table.js';
 import { formatNumber } from '../render/units.js';
 import { resolveModels } from './fit-command.js';
 import { ageModelHook, parseDrawOptions, warnUnusedAgeModel, type AgeModelOptions } from './age-model-options.js';
-import { lineagesOf, loadSamplesStreamed, terminalProgress, type SampleFileOptions, type StreamedInput } from './input.js';
+import { lineagesOf, loadSamplesStreamed, type SampleFileOptions, type StreamedInput } from './input.js';
+import { readingProgress, stageProgress } from './progress.js';
 import { toolVersion } from './version.js';
 import type { PowerProgress } from '../simulate/power.js';
 import { inputPaths, OutputSet, prepareOutputFolder, releaseOutputLocks, writeAtomically } from './write-output.js';
@@ -218,7 +219,7 @@ export async function runCompare(file: string, options: CompareCommandOptions, r
   const { draws, seed } = parseDrawOptions(options);
   const { name: modelSet, models } = resolveModels(options.models);
   const intervals = intervalOptions(options.intervals);
-  const { input, samples } = read ?? (await loadSamplesStreamed(file, options, terminalProgress(file)));
+  const { input, samples } = read ?? (await loadSamplesStreamed(file, options, readingProgress(file, options)));
   const { age } = ageModelHook(file, options, samples.timeKind, warnings);
   const lineagesUnder = (model: AgeModel | null, log: WarningLog): Lineage[] =>
     lineagesOf(samples, options, log, model ? { ageOf: ageFunction(model, { extrapolate: options.extrapolate, samplesFile: input.name }) } : {});
@@ -349,8 +350,7 @@ export async function compareCommand(file: string, options: CompareCommandOption
 
 async function compareAndWrite(file: string, options: CompareCommandOptions): Promise<void> {
   // A progress bar for the age draws, on a terminal only (stderr), not with --quiet.
-  const { progressReporter } = await import('./power-command.js');
-  const reporter = await progressReporter(options.quiet);
+  const reporter = stageProgress(options.quiet);
   let result: CompareRun;
   try {
     result = await runCompare(file, options, undefined, reporter.progress);

@@ -8,13 +8,13 @@ import { fitDocument, type Provenance } from '../render/fit-document.js';
 import { modelsCsv } from '../render/models-csv.js';
 import { adequacyText, ratesText } from '../render/extensions-text.js';
 import { lineageTable } from '../render/text-table.js';
-import { lineagesOf, loadLineages, loadSamplesStreamed, readInput, terminalProgress, type InputText, type SampleFileOptions, type StreamedInput } from './input.js';
+import { lineagesOf, loadLineages, loadSamplesStreamed, readInput, type InputText, type SampleFileOptions, type StreamedInput } from './input.js';
 import type { Lineage } from '../lineage.js';
 import { fitLineages } from '../parallel/fit-lineages.js';
-import { fittingProgress } from './fit-progress.js';
+import { fittingProgress, readingProgress, searchProgress, stageProgress } from './progress.js';
 import type { AgeModelOptions, LoadedAgeModel } from './age-model-options.js';
 import { intervalOptions } from '../fit/intervals.js';
-import { attachCovariates, extensionSettings, extrasDocument, lineageExtras, modelsForLineage, searchProgress, type ExtensionOptions, type LineageExtras } from './fit-extensions.js';
+import { attachCovariates, extensionSettings, extrasDocument, lineageExtras, modelsForLineage, type ExtensionOptions, type LineageExtras } from './fit-extensions.js';
 import type { FigureCommandOptions } from './render-command.js';
 import { toolVersion } from './version.js';
 import { checkOutputFile, inputPaths, OutputSet, prepareOutputFolder, releaseOutputLocks } from './write-output.js';
@@ -85,7 +85,7 @@ export async function runFitStreamed(file: string, options: FitCommandOptions): 
   const { ageModelHook, checkAgeModelUsage } = await import('./age-model-options.js');
   checkAgeModelUsage(options);
   // The samples first: the tie file must use their position column (height or depth).
-  const { input, samples } = await loadSamplesStreamed(file, options, terminalProgress(file));
+  const { input, samples } = await loadSamplesStreamed(file, options, readingProgress(file, options));
   const { extra, age } = ageModelHook(file, options, samples.timeKind, warnings);
   const read = lineagesOf(samples, options, warnings, extra);
   const lineages = options.covariateFile ? attachCovariates(read, options.covariateFile) : read;
@@ -157,7 +157,7 @@ function fitOptionsOf(options: FitCommandOptions, lineageCount: number): FitOpti
   return {
     ...intervalOptions(options.intervals),
     minimumSegment: settings.minimumSegment,
-    ...(lineageCount === 1 ? { onProgress: searchProgress() } : {}),
+    ...(lineageCount === 1 ? { onProgress: searchProgress(options) } : {}),
   };
 }
 
@@ -177,7 +177,7 @@ async function fitAndWrite(file: string, options: FitCommandOptions): Promise<vo
   // Age model: extrapolated horizons in words, and the Monte Carlo over tie ages (--age-draws).
   const { fitAgeDraws } = await import('./compare-command.js');
   // A progress bar for the age draws (stderr, terminal only, not with --quiet).
-  const reporter = options.ageDraws !== undefined ? await (await import('./power-command.js')).progressReporter(options.quiet) : null;
+  const reporter = options.ageDraws !== undefined ? stageProgress(options.quiet) : null;
   let ageText: string;
   try {
     ageText = run.read ? fitAgeDraws(file, options, run.fits, run.document, run.read.samples, run.age ?? null, reporter?.progress) : '';
@@ -203,7 +203,7 @@ async function fitAndWrite(file: string, options: FitCommandOptions): Promise<vo
       set.add('models.csv', modelsCsv(run.fits));
       set.add('fit.json', JSON.stringify(run.document, null, 2) + '\n');
       if (compilation && summary) await compilation.writeCompilationFigure(summary, set);
-      if (figures && figurePlan) figures.writeFigureFiles(lineageDocuments, figurePlan, set);
+      if (figures && figurePlan) figures.writeFigureFiles(lineageDocuments, figurePlan, set, { quiet: options.quiet });
     } catch (error) {
       set.abandon();
       throw error;

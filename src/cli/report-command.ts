@@ -8,6 +8,7 @@ import { sketchTrajectory } from '../render/report/sketch-figure.js';
 import { traitUnitLabel } from '../render/units.js';
 import { runFitStreamed, type FitCommandOptions, type FitRun } from './fit-command.js';
 import type { StreamedInput } from './input.js';
+import { stageProgress } from './progress.js';
 import { checkOutputFile, inputPaths, prepareOutputFile, releaseOutputLocks, writeAtomically } from './write-output.js';
 
 /** Options of `stratotrend report` (the fit options plus where and how to write the page). */
@@ -226,11 +227,11 @@ async function runAnalyses(
   }
   const power: unknown[] = [];
   if (options.power) {
-    const { runPower, progressReporter } = await import('./power-command.js');
+    const { runPower } = await import('./power-command.js');
     const seed = options.seed ?? '1';
     seeds.power = seed;
     // One progress bar per stage and lineage (stderr, terminal only, not with --quiet): the power runs take a while.
-    const reporter = await progressReporter(options.quiet);
+    const reporter = stageProgress(options.quiet);
     try {
     for (const [index, lineage] of document.lineages.entries()) {
       const progress = reporter.progress

@@ -44,6 +44,13 @@ describe('one place for each helper', () => {
   });
 });
 
+describe('one progress bar', () => {
+  it('only src/cli/progress.ts draws bars: no other file loads cli-progress, tests isTTY or draws a bar by hand', () => {
+    const drawing = files.filter((file) => /cli-progress|isTTY|'#'\.repeat\(|\\r\\u001b\[K/.test(file.text)).map((file) => file.path);
+    expect(drawing).toEqual(['cli/progress.ts']);
+  });
+});
+
 describe('imports follow the pipeline', () => {
   it('data/ imports nothing downstream of itself', () => {
     for (const file of files.filter((item) => item.path.startsWith('data/'))) {
