@@ -17,7 +17,7 @@ import { lineageDocument, type Provenance } from '../render/fit-document.js';
 import { modelsCsv } from '../render/models-csv.js';
 import { alignColumns, lineageTable } from '../render/text-table.js';
 import { formatNumber } from '../render/units.js';
-import { resolveModels } from './fit-command.js';
+import { resolveModels, type ModelSelection, type ModelsOption } from './model-selection.js';
 import { ageModelHook, parseDrawOptions, warnUnusedAgeModel, type AgeModelOptions } from './age-model-options.js';
 import { lineagesOf, loadSamplesStreamed, type SampleFileOptions, type StreamedInput } from './input.js';
 import { readingProgress, stageProgress } from './progress.js';
@@ -33,7 +33,7 @@ import type { LoadedAgeModel } from './age-model-options.js';
 export interface CompareCommandOptions extends SampleFileOptions, AgeModelOptions {
   json?: boolean;
   out?: string;
-  models?: string;
+  models?: ModelsOption;
   /** false for --no-intervals, a method name for --intervals METHOD (default: the calibrated default, as in `fit`). */
   intervals?: boolean | string;
   composite?: boolean;
@@ -70,14 +70,15 @@ export function extrapolatedLineageWords(lineages: readonly Lineage[]): string {
  */
 export function fitAgeDraws(
   file: string,
-  options: AgeModelOptions & SampleFileOptions & { models?: string },
-  fits: readonly LineageFit[],
+  options: AgeModelOptions & SampleFileOptions,
+  run: { readonly fits: readonly LineageFit[]; readonly selection: ModelSelection },
   document: Record<string, unknown>,
   samples: SampleSet,
   age: LoadedAgeModel | null,
   progress?: PowerProgress,
 ): string {
   const { draws, seed } = parseDrawOptions(options);
+  const { fits, selection } = run;
   if (!age) return '';
   const { model: ageModel } = age;
   // runFitStreamed has put the age model, its input and options into the document.
@@ -94,7 +95,7 @@ export function fitAgeDraws(
   if (draws === 0) return lines.join('\n');
   // The horizons were read once (streamed); each draw only places them again.
   const samplesFile = file === '-' ? 'stdin' : file;
-  const { models } = resolveModels(options.models);
+  const { models } = selection;
   const perDraw = ageMonteCarlo(ageModel, draws, seed, (drawn) =>
     lineagesOf(samples, options, new WarningLog(), { ageOf: ageFunction(drawn, { extrapolate: options.extrapolate, samplesFile }) })
       .map((lineage) => fitLineage(lineage, models, { intervals: false })), progress?.stage('age draws: refitting every lineage', draws));
@@ -162,6 +163,8 @@ export interface CompareRun {
   readonly ageModel: AgeModel | null;
   readonly document: Record<string, unknown>;
   readonly warnings: WarningLog;
+  /** `--models`, resolved once at the start of the run. */
+  readonly selection: ModelSelection;
 }
 
 /** One draw's hypotheses as age-draw candidates; every member of a tied best (identical fits) counts as best. */
@@ -217,7 +220,8 @@ export async function runCompare(file: string, options: CompareCommandOptions, r
   const warnings = new WarningLog();
   // Usage first (no point reading a large file for a mistyped option), then the samples, then the age model.
   const { draws, seed } = parseDrawOptions(options);
-  const { name: modelSet, models } = resolveModels(options.models);
+  const selection = resolveModels(options.models);
+  const { name: modelSet, models } = selection;
   const intervals = intervalOptions(options.intervals);
   const { input, samples } = read ?? (await loadSamplesStreamed(file, options, readingProgress(file, options)));
   const { age } = ageModelHook(file, options, samples.timeKind, warnings);
@@ -301,7 +305,7 @@ export async function runCompare(file: string, options: CompareCommandOptions, r
     caution: comparisonCaution,
     warnings: warnings.list().map((warning) => ({ category: warning.category, message: warning.message, count: warning.count })),
   };
-  return { run, composites, compositeNotes, tiedDraws, spreads, draws: draws > 0 ? { draws, seed } : null, ageModel: age?.model ?? null, document, warnings };
+  return { run, composites, compositeNotes, tiedDraws, spreads, draws: draws > 0 ? { draws, seed } : null, ageModel: age?.model ?? null, document, warnings, selection };
 }
 
 /**
@@ -309,7 +313,7 @@ export async function runCompare(file: string, options: CompareCommandOptions, r
  * section's own fit, with positions replaced by ages (age_i = firstAge - t_i)
  * so the sections line up on the common timescale.
  */
-export function sectionDocuments(comparison: TraitComparison, models: ReturnType<typeof resolveModels>['models']): Record<string, unknown>[] {
+export function sectionDocuments(comparison: TraitComparison, models: ModelSelection['models']): Record<string, unknown>[] {
   const winner = comparison.best === null ? undefined : comparison.hypotheses.find((hypothesis) => hypothesis.id === comparison.best!.id && hypothesis.model === comparison.best!.model);
   const joint = winner?.joint ?? null;
   const { starts } = commonTime(comparison.sections);
@@ -361,7 +365,7 @@ async function compareAndWrite(file: string, options: CompareCommandOptions): Pr
   if (options.out) {
     const inputs = inputPaths(file, options);
     const drawFigures = options.figure !== false && result.run.comparisons.length > 0;
-    const { models } = resolveModels(options.models);
+    const { models } = result.selection;
     const documents = drawFigures ? result.run.comparisons.map((comparison) => sectionDocuments(comparison, models)) : [];
     // The file names of fit and redraw (`figureJobs`: <trait>.sections, numbered when traits coincide after cleaning).
     const { figureJobs } = await import('../render/figures/figure-set.js');

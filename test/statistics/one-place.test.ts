@@ -51,6 +51,14 @@ describe('one progress bar', () => {
   });
 });
 
+describe('--models is resolved once per run', () => {
+  it('resolveModels is called only where a run starts (runFit, runFitStreamed, runCompare) and sets are looked up only there', () => {
+    const calls = files.flatMap((file) => [...file.text.matchAll(/\bresolveModels\(/g)].map(() => file.path)).filter((path) => path !== 'cli/model-selection.ts');
+    expect(calls.sort()).toEqual(['cli/compare-command.ts', 'cli/fit-command.ts', 'cli/fit-command.ts']);
+    expect(files.filter((file) => /\bmodelSets\[/.test(file.text)).map((file) => file.path)).toEqual(['cli/model-selection.ts']);
+  });
+});
+
 describe('imports follow the pipeline', () => {
   it('data/ imports nothing downstream of itself', () => {
     for (const file of files.filter((item) => item.path.startsWith('data/'))) {
