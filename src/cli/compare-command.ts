@@ -67,6 +67,10 @@ export function extrapolatedLineageWords(lineages: readonly Lineage[]): string {
  * (without intervals), and summarise per lineage how the Akaike weights and
  * point estimates move. Adds `age_uncertainty` to the fit document (whose
  * `age_model` runFitStreamed wrote) and returns the text block for the terminal (empty without draws).
+ *
+ * @example
+ * const run = await runFitStreamed(file, { ageModel: ties, ageDraws: '3', quiet: true });
+ * fitAgeDraws(file, { ageModel: ties, ageDraws: '3' }, run, run.document, run.read!.samples, run.age ?? null); // the ties, rates and spread text
  */
 export function fitAgeDraws(
   file: string,
@@ -215,6 +219,9 @@ export function withoutOffsets(sections: readonly Lineage[], offsets: EstimatedO
  *
  * @param read the samples file already read (the report's fit read it), so it is not read again
  * @param progress progress bar of the age draws (terminal only; changes nothing)
+ *
+ * @example
+ * (await runCompare('sample-data/locality-heights.csv', { ageModel: 'sample-data/locality-ties.csv', intervals: false })).selection.name; // 'classic'
  */
 export async function runCompare(file: string, options: CompareCommandOptions, read?: StreamedInput, progress?: PowerProgress): Promise<CompareRun> {
   const warnings = new WarningLog();
@@ -312,6 +319,9 @@ export async function runCompare(file: string, options: CompareCommandOptions, r
  * Per-section lineage documents for the sections-together figure: each
  * section's own fit, with positions replaced by ages (age_i = firstAge - t_i)
  * so the sections line up on the common timescale.
+ *
+ * @example
+ * sectionDocuments(run.run.comparisons[0], run.selection.models).map((document) => document.section); // one document per section of the trait
  */
 export function sectionDocuments(comparison: TraitComparison, models: ModelSelection['models']): Record<string, unknown>[] {
   const winner = comparison.best === null ? undefined : comparison.hypotheses.find((hypothesis) => hypothesis.id === comparison.best!.id && hypothesis.model === comparison.best!.model);
@@ -343,7 +353,12 @@ export function hypothesisCaption(comparison: TraitComparison, label: string): s
   return `the ${label} model as one lineage on the common timescale, each section shifted by its own offset (the best-supported hypothesis)`;
 }
 
-/** `stratotrend compare FILE`: print the comparison tables (or JSON) and write outputs with --out. */
+/**
+ * `stratotrend compare FILE`: print the comparison tables (or JSON) and write outputs with --out.
+ *
+ * @example
+ * await compareCommand('sample-data/locality-heights.csv', { ageModel: 'sample-data/locality-ties.csv' }); // prints one ranked table per trait
+ */
 export async function compareCommand(file: string, options: CompareCommandOptions): Promise<void> {
   try {
     await compareAndWrite(file, options);

@@ -55,7 +55,12 @@ export interface FitRun {
   readonly selection: ModelSelection;
 }
 
-/** Read the file, fit every lineage, and build the result document (no output). */
+/**
+ * Read the file, fit every lineage, and build the result document (no output).
+ *
+ * @example
+ * runFit('sample-data/shell-length.csv', { intervals: false }).document.model_set; // 'classic'
+ */
 export function runFit(file: string, options: FitCommandOptions): FitRun {
   const warnings = new WarningLog();
   const input = readInput(file);
@@ -67,6 +72,9 @@ export function runFit(file: string, options: FitCommandOptions): FitRun {
 /**
  * {@link runFit} reading the file as a stream (bounded memory for specimen
  * files of millions of rows, progress bar on a terminal); same result.
+ *
+ * @example
+ * (await runFitStreamed('sample-data/shell-length.csv', { quiet: true })).selection.name; // 'classic'
  */
 export async function runFitStreamed(file: string, options: FitCommandOptions): Promise<FitRun> {
   const warnings = new WarningLog();
@@ -100,7 +108,12 @@ export async function runFitStreamed(file: string, options: FitCommandOptions): 
   return { ...run, read: { input, samples }, age };
 }
 
-/** Fit read lineages and build the result document (no output). */
+/**
+ * Fit read lineages and build the result document (no output).
+ *
+ * @example
+ * fitLoaded(input, lineages, options, resolveModels('random-walk,ou'), new WarningLog()).fits[0].models.length; // 2
+ */
 export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lineage[], options: FitCommandOptions, selection: ModelSelection, warnings: WarningLog, given?: LineageFit[]): FitRun {
   const { name, models } = selection;
   const settings = extensionSettings(options);
@@ -150,7 +163,12 @@ function fitOptionsOf(options: FitCommandOptions, lineageCount: number): FitOpti
   };
 }
 
-/** `stratotrend fit FILE`: print the model table (or JSON) and write outputs with --out. */
+/**
+ * `stratotrend fit FILE`: print the model table (or JSON) and write outputs with --out.
+ *
+ * @example
+ * await fitCommand('sample-data/shell-length.csv', { models: 'classic' }); // prints 'Model set: classic (the five classic models)' and one table per lineage
+ */
 export async function fitCommand(file: string, options: FitCommandOptions): Promise<void> {
   try {
     await fitAndWrite(file, options);

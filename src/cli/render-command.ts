@@ -170,6 +170,9 @@ export function figureTimeWarning(plan: FigurePlanForFolder, advice: string): st
  * in place with the rest of the set by `set.commit()`.
  *
  * @returns the file names written, in drawing order
+ *
+ * @example
+ * writeFigureFiles(document.lineages, plan, set, { quiet: false }); // ['A_length.trajectory.png', 'A_length.model-support.png', …]
  */
 export function writeFigureFiles(lineages: readonly unknown[], plan: FigurePlanForFolder, set: OutputSet, options: { quiet?: boolean } = {}): string[] {
   const written: string[] = [];

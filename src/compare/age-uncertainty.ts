@@ -52,6 +52,9 @@ export function redrawAgeModel(model: AgeModel, random: RandomSource, attempts =
  * @param onDraw called after each draw with the number done (a progress bar; changes nothing)
  * @returns one result per draw, in draw order
  * @throws InputError from `redrawAgeModel` when no ordered draw exists
+ *
+ * @example
+ * ageMonteCarlo(ties, 3, 1, (drawn) => drawn.sections.size); // [2, 2, 2] for a model of two sections
  */
 export function ageMonteCarlo<T>(ageModel: AgeModel, draws: number, seed: number, refit: (model: AgeModel) => T, onDraw?: (done: number, total: number) => void): T[] {
   const random = createRandom(seed);
@@ -73,7 +76,12 @@ export interface Spread {
 }
 
 
-/** Median and central 95% of the finite values. */
+/**
+ * Median and central 95% of the finite values.
+ *
+ * @example
+ * spreadOf([4, null, 2, 1, 3]); // { median: 2.5, lower: 1.075, upper: 3.925, count: 4 }
+ */
 export function spreadOf(values: readonly (number | null | undefined)[]): Spread {
   const finite = values.filter((value): value is number => value !== null && value !== undefined && Number.isFinite(value)).sort((a, b) => a - b);
   if (finite.length === 0) return { median: null, lower: null, upper: null, count: 0 };
