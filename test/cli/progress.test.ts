@@ -50,9 +50,9 @@ describe('progress bars', () => {
     const { stream, text } = fakeStream(true);
     const reporter = stageProgress(false, stream);
     const first = reporter.progress!.stage('null set', 4);
-    first(4, 4);
+    first(4);
     const second = reporter.progress!.stage('drift grid', 8);
-    second(2, 8);
+    second(2);
     reporter.stop();
     expect(text()).toContain('null set');
     expect(text()).toContain('4/4');
