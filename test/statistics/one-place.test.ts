@@ -42,6 +42,12 @@ describe('one place for each helper', () => {
     expect(definitionsOf(name)).toEqual([where]);
   });
 
+  it('one ranking rule: fit and compare take the best by lowestCriterion, with no loop of their own over AICc', () => {
+    expect(definitionsOf('lowestCriterion')).toEqual(['fit/model-choice.ts']);
+    const ownLoops = files.filter((file) => /\.aicc < (lowest|bestCriterion)\b/.test(file.code)).map((file) => file.path);
+    expect(ownLoops).toEqual([]);
+  });
+
   it('no hand-written median, type-7 quantile or CRC-32 (simple-statistics and node:zlib provide them)', () => {
     for (const name of ['median', 'quantile', 'crc32']) expect(definitionsOf(name)).toEqual([]);
     // A CRC table of polynomial 0xEDB88320 is the mark of a hand-made CRC-32.
