@@ -18,6 +18,7 @@ import { existsSync, mkdtempSync, rmSync, statSync, writeFileSync } from 'node:f
 import { availableParallelism, cpus, loadavg, tmpdir, totalmem } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { median } from 'simple-statistics';
 import { denseLogLik } from '../src/engine/dense.js';
 import { logLikAt, profileOut } from '../src/engine/gls.js';
 import { allocateSums, whiten, workSize } from '../src/engine/kalman-filter.js';
@@ -37,12 +38,6 @@ const sweepOnly = process.argv.includes('--sweep');
 const outIndex = process.argv.indexOf('--out');
 const outFile = outIndex >= 0 ? process.argv[outIndex + 1] : smoke ? null : fileURLToPath(new URL('bench/results.json', projectRoot));
 
-/** Median of a list. */
-function median(values: readonly number[]): number {
-  const sorted = [...values].sort((a, b) => a - b);
-  const middle = Math.floor(sorted.length / 2);
-  return sorted.length % 2 === 1 ? sorted[middle] : 0.5 * (sorted[middle - 1] + sorted[middle]);
-}
 
 /**
  * CPU nanoseconds per call of `run` (this thread's user + system time, so

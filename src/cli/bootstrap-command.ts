@@ -6,8 +6,9 @@ import { formatNumber } from '../render/units.js';
 import { bootstrapTests, type BootstrapTestReport } from '../simulate/bootstrap-test.js';
 import { poolRunner } from '../simulate/run-replicates.js';
 import { lineagesWithAgeModel, type AgeModelOptions } from './age-model-options.js';
-import { loadSamplesStreamed, terminalProgress, type SampleFileOptions } from './input.js';
-import { progressReporter, seedOption, wholeOption } from './power-command.js';
+import { loadSamplesStreamed, type SampleFileOptions } from './input.js';
+import { seedOption, wholeOption } from './power-command.js';
+import { readingProgress, stageProgress } from './progress.js';
 import { toolVersion } from './version.js';
 
 /** Options of `stratotrend bootstrap`. */
@@ -46,7 +47,7 @@ export function bootstrapTable(name: string, report: BootstrapTestReport): strin
 export async function bootstrapCommand(file: string, options: BootstrapCommandOptions): Promise<void> {
   // Streamed: a specimen file of millions of rows is read in bounded memory.
   const warnings = new WarningLog();
-  const { input, samples } = await loadSamplesStreamed(file, options, terminalProgress(file));
+  const { input, samples } = await loadSamplesStreamed(file, options, readingProgress(file, options));
   // Heights and depths become ages through the same age-model options as fit.
   const { lineages } = lineagesWithAgeModel(file, samples, options, warnings);
   for (const warning of warnings.list()) if (warning.category === 'time-axis' || warning.category === 'input') process.stderr.write(`warning (${warning.category}): ${warning.message}\n`);
@@ -54,7 +55,7 @@ export async function bootstrapCommand(file: string, options: BootstrapCommandOp
   const seed = seedOption(options.seed);
   const threads = options.threads === undefined ? undefined : wholeOption(options.threads, '--threads', 1, 1, 256);
   const runner = poolRunner({ threads });
-  const reporter = await progressReporter(options.quiet);
+  const reporter = stageProgress(options.quiet);
   const results: { name: string; report: BootstrapTestReport }[] = [];
   try {
     for (const lineage of lineages) {

@@ -5,11 +5,11 @@ import { readTable } from '../data/read-table.js';
 import type { SampleSet } from '../data/samples.js';
 import { WarningLog } from '../data/warnings.js';
 import { ageMonteCarlo, summariseDraws, type CandidateSpread, type RankedCandidate } from '../compare/age-uncertainty.js';
-import { compareTraits, type ComparisonRun, type TraitComparison } from '../compare/compare-sections.js';
+import { candidateKey, compareTraits, type ComparisonRun, type TraitComparison } from '../compare/compare-sections.js';
 import { perSectionName } from '../compare/joint-models.js';
 import { intervalOptions } from '../fit/intervals.js';
 import { modelsForLineage } from './fit-extensions.js';
-import { candidateKey, comparisonCaution, comparisonCsv, comparisonDocument, comparisonTable, estimatesCsv, spreadsDocument } from '../compare/output.js';
+import { comparisonCaution, comparisonCsv, comparisonDocument, comparisonTable, estimatesCsv, spreadsDocument } from '../render/comparison-output.js';
 import { commonTime, mergeSections, toleratingCoeval } from '../compare/stack.js';
 import { fitLineage, type LineageFit } from '../fit/fit-lineage.js';
 import { lineageName, type Lineage, type LineageOptions } from '../lineage.js';
@@ -17,9 +17,10 @@ import { lineageDocument, type Provenance } from '../render/fit-document.js';
 import { modelsCsv } from '../render/models-csv.js';
 import { alignColumns, lineageTable } from '../render/text-table.js';
 import { formatNumber } from '../render/units.js';
-import { resolveModels } from './fit-command.js';
+import { resolveModels, type ModelSelection, type ModelsOption } from './model-selection.js';
 import { ageModelHook, parseDrawOptions, warnUnusedAgeModel, type AgeModelOptions } from './age-model-options.js';
-import { lineagesOf, loadSamplesStreamed, terminalProgress, type SampleFileOptions, type StreamedInput } from './input.js';
+import { lineagesOf, loadSamplesStreamed, type SampleFileOptions, type StreamedInput } from './input.js';
+import { readingProgress, stageProgress } from './progress.js';
 import { toolVersion } from './version.js';
 import type { PowerProgress } from '../simulate/power.js';
 import { inputPaths, OutputSet, prepareOutputFolder, releaseOutputLocks, writeAtomically } from './write-output.js';
@@ -32,7 +33,7 @@ import type { LoadedAgeModel } from './age-model-options.js';
 export interface CompareCommandOptions extends SampleFileOptions, AgeModelOptions {
   json?: boolean;
   out?: string;
-  models?: string;
+  models?: ModelsOption;
   /** false for --no-intervals, a method name for --intervals METHOD (default: the calibrated default, as in `fit`). */
   intervals?: boolean | string;
   composite?: boolean;
@@ -66,17 +67,22 @@ export function extrapolatedLineageWords(lineages: readonly Lineage[]): string {
  * (without intervals), and summarise per lineage how the Akaike weights and
  * point estimates move. Adds `age_uncertainty` to the fit document (whose
  * `age_model` runFitStreamed wrote) and returns the text block for the terminal (empty without draws).
+ *
+ * @example
+ * const run = await runFitStreamed(file, { ageModel: ties, ageDraws: '3', quiet: true });
+ * fitAgeDraws(file, { ageModel: ties, ageDraws: '3' }, run, run.document, run.read!.samples, run.age ?? null); // the ties, rates and spread text
  */
 export function fitAgeDraws(
   file: string,
-  options: AgeModelOptions & SampleFileOptions & { models?: string },
-  fits: readonly LineageFit[],
+  options: AgeModelOptions & SampleFileOptions,
+  run: { readonly fits: readonly LineageFit[]; readonly selection: ModelSelection },
   document: Record<string, unknown>,
   samples: SampleSet,
   age: LoadedAgeModel | null,
   progress?: PowerProgress,
 ): string {
   const { draws, seed } = parseDrawOptions(options);
+  const { fits, selection } = run;
   if (!age) return '';
   const { model: ageModel } = age;
   // runFitStreamed has put the age model, its input and options into the document.
@@ -93,7 +99,7 @@ export function fitAgeDraws(
   if (draws === 0) return lines.join('\n');
   // The horizons were read once (streamed); each draw only places them again.
   const samplesFile = file === '-' ? 'stdin' : file;
-  const { models } = resolveModels(options.models);
+  const { models } = selection;
   const perDraw = ageMonteCarlo(ageModel, draws, seed, (drawn) =>
     lineagesOf(samples, options, new WarningLog(), { ageOf: ageFunction(drawn, { extrapolate: options.extrapolate, samplesFile }) })
       .map((lineage) => fitLineage(lineage, models, { intervals: false })), progress?.stage('age draws: refitting every lineage', draws));
@@ -161,6 +167,8 @@ export interface CompareRun {
   readonly ageModel: AgeModel | null;
   readonly document: Record<string, unknown>;
   readonly warnings: WarningLog;
+  /** `--models`, resolved once at the start of the run. */
+  readonly selection: ModelSelection;
 }
 
 /** One draw's hypotheses as age-draw candidates; every member of a tied best (identical fits) counts as best. */
@@ -211,14 +219,18 @@ export function withoutOffsets(sections: readonly Lineage[], offsets: EstimatedO
  *
  * @param read the samples file already read (the report's fit read it), so it is not read again
  * @param progress progress bar of the age draws (terminal only; changes nothing)
+ *
+ * @example
+ * (await runCompare('sample-data/locality-heights.csv', { ageModel: 'sample-data/locality-ties.csv', intervals: false })).selection.name; // 'classic'
  */
 export async function runCompare(file: string, options: CompareCommandOptions, read?: StreamedInput, progress?: PowerProgress): Promise<CompareRun> {
   const warnings = new WarningLog();
   // Usage first (no point reading a large file for a mistyped option), then the samples, then the age model.
   const { draws, seed } = parseDrawOptions(options);
-  const { name: modelSet, models } = resolveModels(options.models);
+  const selection = resolveModels(options.models);
+  const { name: modelSet, models } = selection;
   const intervals = intervalOptions(options.intervals);
-  const { input, samples } = read ?? (await loadSamplesStreamed(file, options, terminalProgress(file)));
+  const { input, samples } = read ?? (await loadSamplesStreamed(file, options, readingProgress(file, options)));
   const { age } = ageModelHook(file, options, samples.timeKind, warnings);
   const lineagesUnder = (model: AgeModel | null, log: WarningLog): Lineage[] =>
     lineagesOf(samples, options, log, model ? { ageOf: ageFunction(model, { extrapolate: options.extrapolate, samplesFile: input.name }) } : {});
@@ -300,15 +312,18 @@ export async function runCompare(file: string, options: CompareCommandOptions, r
     caution: comparisonCaution,
     warnings: warnings.list().map((warning) => ({ category: warning.category, message: warning.message, count: warning.count })),
   };
-  return { run, composites, compositeNotes, tiedDraws, spreads, draws: draws > 0 ? { draws, seed } : null, ageModel: age?.model ?? null, document, warnings };
+  return { run, composites, compositeNotes, tiedDraws, spreads, draws: draws > 0 ? { draws, seed } : null, ageModel: age?.model ?? null, document, warnings, selection };
 }
 
 /**
  * Per-section lineage documents for the sections-together figure: each
  * section's own fit, with positions replaced by ages (age_i = firstAge - t_i)
  * so the sections line up on the common timescale.
+ *
+ * @example
+ * sectionDocuments(run.run.comparisons[0], run.selection.models).map((document) => document.section); // one document per section of the trait
  */
-export function sectionDocuments(comparison: TraitComparison, models: ReturnType<typeof resolveModels>['models']): Record<string, unknown>[] {
+export function sectionDocuments(comparison: TraitComparison, models: ModelSelection['models']): Record<string, unknown>[] {
   const winner = comparison.best === null ? undefined : comparison.hypotheses.find((hypothesis) => hypothesis.id === comparison.best!.id && hypothesis.model === comparison.best!.model);
   const joint = winner?.joint ?? null;
   const { starts } = commonTime(comparison.sections);
@@ -338,7 +353,12 @@ export function hypothesisCaption(comparison: TraitComparison, label: string): s
   return `the ${label} model as one lineage on the common timescale, each section shifted by its own offset (the best-supported hypothesis)`;
 }
 
-/** `stratotrend compare FILE`: print the comparison tables (or JSON) and write outputs with --out. */
+/**
+ * `stratotrend compare FILE`: print the comparison tables (or JSON) and write outputs with --out.
+ *
+ * @example
+ * await compareCommand('sample-data/locality-heights.csv', { ageModel: 'sample-data/locality-ties.csv' }); // prints one ranked table per trait
+ */
 export async function compareCommand(file: string, options: CompareCommandOptions): Promise<void> {
   try {
     await compareAndWrite(file, options);
@@ -349,8 +369,7 @@ export async function compareCommand(file: string, options: CompareCommandOption
 
 async function compareAndWrite(file: string, options: CompareCommandOptions): Promise<void> {
   // A progress bar for the age draws, on a terminal only (stderr), not with --quiet.
-  const { progressReporter } = await import('./power-command.js');
-  const reporter = await progressReporter(options.quiet);
+  const reporter = stageProgress(options.quiet);
   let result: CompareRun;
   try {
     result = await runCompare(file, options, undefined, reporter.progress);
@@ -361,7 +380,7 @@ async function compareAndWrite(file: string, options: CompareCommandOptions): Pr
   if (options.out) {
     const inputs = inputPaths(file, options);
     const drawFigures = options.figure !== false && result.run.comparisons.length > 0;
-    const { models } = resolveModels(options.models);
+    const { models } = result.selection;
     const documents = drawFigures ? result.run.comparisons.map((comparison) => sectionDocuments(comparison, models)) : [];
     // The file names of fit and redraw (`figureJobs`: <trait>.sections, numbered when traits coincide after cleaning).
     const { figureJobs } = await import('../render/figures/figure-set.js');

@@ -3,18 +3,18 @@ import { WarningLog } from '../data/warnings.js';
 import { fitLineage, type LineageFit } from '../fit/fit-lineage.js';
 import { intervalFallbackPrefix, type FitOptions } from '../fit/fit-model.js';
 import { defaultMinimumSegment, type EvolutionModel } from '../models/model.js';
-import { findModel, modelSets } from '../models/registry.js';
 import { fitDocument, type Provenance } from '../render/fit-document.js';
 import { modelsCsv } from '../render/models-csv.js';
 import { adequacyText, ratesText } from '../render/extensions-text.js';
 import { lineageTable } from '../render/text-table.js';
-import { lineagesOf, loadLineages, loadSamplesStreamed, readInput, terminalProgress, type InputText, type SampleFileOptions, type StreamedInput } from './input.js';
+import { lineagesOf, loadLineages, loadSamplesStreamed, readInput, type InputText, type SampleFileOptions, type StreamedInput } from './input.js';
 import type { Lineage } from '../lineage.js';
 import { fitLineages } from '../parallel/fit-lineages.js';
-import { fittingProgress } from './fit-progress.js';
+import { modelSetLine, resolveModels, type ModelSelection, type ModelsOption } from './model-selection.js';
+import { fittingProgress, readingProgress, searchProgress, stageProgress } from './progress.js';
 import type { AgeModelOptions, LoadedAgeModel } from './age-model-options.js';
 import { intervalOptions } from '../fit/intervals.js';
-import { attachCovariates, extensionSettings, extrasDocument, lineageExtras, modelsForLineage, searchProgress, type ExtensionOptions, type LineageExtras } from './fit-extensions.js';
+import { attachCovariates, extensionSettings, extrasDocument, lineageExtras, modelsForLineage, type ExtensionOptions, type LineageExtras } from './fit-extensions.js';
 import type { FigureCommandOptions } from './render-command.js';
 import { toolVersion } from './version.js';
 import { checkOutputFile, inputPaths, OutputSet, prepareOutputFolder, releaseOutputLocks } from './write-output.js';
@@ -23,7 +23,7 @@ import { checkOutputFile, inputPaths, OutputSet, prepareOutputFolder, releaseOut
 export interface FitCommandOptions extends AgeModelOptions, SampleFileOptions, FigureCommandOptions, ExtensionOptions {
   json?: boolean;
   out?: string;
-  models?: string;
+  models?: ModelsOption;
   /** false for --no-intervals, a method name for --intervals METHOD. */
   intervals?: boolean | string;
   quiet?: boolean;
@@ -35,20 +35,6 @@ export interface FitCommandOptions extends AgeModelOptions, SampleFileOptions, F
   summary?: boolean;
 }
 
-/** Resolve `--models`: a named set or a comma-separated list of model ids. */
-export function resolveModels(request: string | undefined): { name: string; models: readonly EvolutionModel[] } {
-  const name = request ?? 'classic';
-  const set = modelSets[name];
-  if (set) return { name, models: set() };
-  const ids = name.split(',').map((id) => id.trim()).filter((id) => id !== '');
-  const models = ids.map((id) => {
-    const model = findModel(id);
-    if (!model) throw usageError(`--models: unknown model "${id}"; use a set (${Object.keys(modelSets).join(', ')}) or model ids`);
-    return model;
-  });
-  if (models.length === 0) throw usageError('--models: no model named');
-  return { name: 'custom', models };
-}
 
 /** Everything `fit` computed, before it is printed or written. */
 export interface FitRun {
@@ -65,32 +51,43 @@ export interface FitRun {
   readonly read?: StreamedInput;
   /** The `--age-model` file as read by {@link runFitStreamed} (null without one), for `--age-draws`. */
   readonly age?: LoadedAgeModel | null;
+  /** `--models`, resolved once at the start of the run. */
+  readonly selection: ModelSelection;
 }
 
-/** Read the file, fit every lineage, and build the result document (no output). */
+/**
+ * Read the file, fit every lineage, and build the result document (no output).
+ *
+ * @example
+ * runFit('sample-data/shell-length.csv', { intervals: false }).document.model_set; // 'classic'
+ */
 export function runFit(file: string, options: FitCommandOptions): FitRun {
   const warnings = new WarningLog();
   const input = readInput(file);
   const read = loadLineages(input, options, warnings);
   const lineages = options.covariateFile ? attachCovariates(read, options.covariateFile) : read;
-  return fitLoaded(input, lineages, options, warnings);
+  return fitLoaded(input, lineages, options, resolveModels(options.models), warnings);
 }
 
 /**
  * {@link runFit} reading the file as a stream (bounded memory for specimen
  * files of millions of rows, progress bar on a terminal); same result.
+ *
+ * @example
+ * (await runFitStreamed('sample-data/shell-length.csv', { quiet: true })).selection.name; // 'classic'
  */
 export async function runFitStreamed(file: string, options: FitCommandOptions): Promise<FitRun> {
   const warnings = new WarningLog();
   const { ageModelHook, checkAgeModelUsage } = await import('./age-model-options.js');
   checkAgeModelUsage(options);
   // The samples first: the tie file must use their position column (height or depth).
-  const { input, samples } = await loadSamplesStreamed(file, options, terminalProgress(file));
+  const { input, samples } = await loadSamplesStreamed(file, options, readingProgress(file, options));
   const { extra, age } = ageModelHook(file, options, samples.timeKind, warnings);
   const read = lineagesOf(samples, options, warnings, extra);
   const lineages = options.covariateFile ? attachCovariates(read, options.covariateFile) : read;
   // Many lineages are fitted on worker threads (same numbers, input order; see src/parallel/fit-lineages.ts).
-  const { models } = resolveModels(options.models);
+  const selection = resolveModels(options.models);
+  const { models } = selection;
   // Shift searches grow with the square of the horizons: refuse what cannot be held, announce a long run with its estimate.
   const { checkShiftSearchCost } = await import('./run-cost.js');
   checkShiftSearchCost(lineages, models, { minimumSegment: extensionSettings(options).minimumSegment, threads: options.threads, warnings });
@@ -98,7 +95,7 @@ export async function runFitStreamed(file: string, options: FitCommandOptions): 
     threads: options.threads,
     onProgress: fittingProgress(lineages.length, options),
   });
-  const run = fitLoaded(input, lineages, options, warnings, fits);
+  const run = fitLoaded(input, lineages, options, selection, warnings, fits);
   if (age) {
     // The age model is part of the result (fit, and the report made from the same run): its file, its options, its ties and rates.
     const { parseDrawOptions, ageModelDocument } = await import('./compare-command.js');
@@ -111,9 +108,14 @@ export async function runFitStreamed(file: string, options: FitCommandOptions): 
   return { ...run, read: { input, samples }, age };
 }
 
-/** Fit read lineages and build the result document (no output). */
-export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lineage[], options: FitCommandOptions, warnings: WarningLog, given?: LineageFit[]): FitRun {
-  const { name, models } = resolveModels(options.models);
+/**
+ * Fit read lineages and build the result document (no output).
+ *
+ * @example
+ * fitLoaded(input, lineages, options, resolveModels('random-walk,ou'), new WarningLog()).fits[0].models.length; // 2
+ */
+export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lineage[], options: FitCommandOptions, selection: ModelSelection, warnings: WarningLog, given?: LineageFit[]): FitRun {
+  const { name, models } = selection;
   const settings = extensionSettings(options);
   const fitted = given ?? lineages.map((lineage) => fitLineage(lineage, models, fitOptionsOf(options, lineages.length)));
   // A named set (e.g. extended) leaves out models a lineage does not allow (no covariate): their rows are not fitted and carry no weight.
@@ -148,7 +150,7 @@ export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lin
   const extras = fits.map((fit, j) => lineageExtras(fit, settings, kept[j].leftOut));
   const document = fitDocument(fits, provenance, warnings.list(), name);
   (document as { lineages: Record<string, unknown>[] }).lineages.forEach((lineage, j) => Object.assign(lineage, extrasDocument(extras[j])));
-  return { fits, document, warnings, extras };
+  return { fits, document, warnings, extras, selection };
 }
 
 /** Fit options from the command's options: interval method, minimum segment, and a search progress bar for a single lineage (fitted in this thread). */
@@ -157,11 +159,16 @@ function fitOptionsOf(options: FitCommandOptions, lineageCount: number): FitOpti
   return {
     ...intervalOptions(options.intervals),
     minimumSegment: settings.minimumSegment,
-    ...(lineageCount === 1 ? { onProgress: searchProgress() } : {}),
+    ...(lineageCount === 1 ? { onProgress: searchProgress(options) } : {}),
   };
 }
 
-/** `stratotrend fit FILE`: print the model table (or JSON) and write outputs with --out. */
+/**
+ * `stratotrend fit FILE`: print the model table (or JSON) and write outputs with --out.
+ *
+ * @example
+ * await fitCommand('sample-data/shell-length.csv', { models: 'classic' }); // prints 'Model set: classic (the five classic models)' and one table per lineage
+ */
 export async function fitCommand(file: string, options: FitCommandOptions): Promise<void> {
   try {
     await fitAndWrite(file, options);
@@ -177,10 +184,10 @@ async function fitAndWrite(file: string, options: FitCommandOptions): Promise<vo
   // Age model: extrapolated horizons in words, and the Monte Carlo over tie ages (--age-draws).
   const { fitAgeDraws } = await import('./compare-command.js');
   // A progress bar for the age draws (stderr, terminal only, not with --quiet).
-  const reporter = options.ageDraws !== undefined ? await (await import('./power-command.js')).progressReporter(options.quiet) : null;
+  const reporter = options.ageDraws !== undefined ? stageProgress(options.quiet) : null;
   let ageText: string;
   try {
-    ageText = run.read ? fitAgeDraws(file, options, run.fits, run.document, run.read.samples, run.age ?? null, reporter?.progress) : '';
+    ageText = run.read ? fitAgeDraws(file, options, run, run.document, run.read.samples, run.age ?? null, reporter?.progress) : '';
   } finally {
     reporter?.stop();
   }
@@ -203,7 +210,7 @@ async function fitAndWrite(file: string, options: FitCommandOptions): Promise<vo
       set.add('models.csv', modelsCsv(run.fits));
       set.add('fit.json', JSON.stringify(run.document, null, 2) + '\n');
       if (compilation && summary) await compilation.writeCompilationFigure(summary, set);
-      if (figures && figurePlan) figures.writeFigureFiles(lineageDocuments, figurePlan, set);
+      if (figures && figurePlan) figures.writeFigureFiles(lineageDocuments, figurePlan, set, { quiet: options.quiet });
     } catch (error) {
       set.abandon();
       throw error;
@@ -214,7 +221,7 @@ async function fitAndWrite(file: string, options: FitCommandOptions): Promise<vo
     process.stdout.write(JSON.stringify(run.document, null, 2) + '\n');
   } else if (!options.quiet) {
     const tables = run.fits.map((fit, j) => [lineageTable(fit), ...extrasText(fit, run.extras?.[j])].join('\n'));
-    process.stdout.write(modelSetLine(options.models) + (compilation && summary ? compilation.compilationText(summary) : tables.join('\n\n')) + '\n');
+    process.stdout.write(modelSetLine(run.selection) + (compilation && summary ? compilation.compilationText(summary) : tables.join('\n\n')) + '\n');
     if (options.out) process.stdout.write(`\nWrote models.csv${summary ? ', compilation.png' : ''} and fit.json${figurePlan ? ` and ${figurePlan.names.length} figure files` : ''} to ${options.out}\n`);
   }
   if (ageText && !options.json && !options.quiet) process.stdout.write('\n' + ageText + '\n');
@@ -230,15 +237,6 @@ async function fitAndWrite(file: string, options: FitCommandOptions): Promise<vo
   }
 }
 
-/** The line naming the model set above the tables. */
-function modelSetLine(request: string | undefined): string {
-  const { name, models } = resolveModels(request);
-  const words: Record<string, string> = {
-    classic: 'the five classic models',
-    extended: 'classic plus shift, mode-shift and covariate models the data allow',
-  };
-  return `Model set: ${name} (${words[name] ?? models.map((model) => model.id).join(', ')})\n`;
-}
 
 /** Rates and adequacy text of one lineage, when asked for. */
 function extrasText(fit: LineageFit, extras: LineageExtras | undefined): string[] {

@@ -122,26 +122,6 @@ export function modelsForLineage(lineage: Lineage, models: readonly EvolutionMod
   return { models: kept, leftOut };
 }
 
-/** A progress bar on stderr for long shift searches (only on a terminal, only after a second). */
-export function searchProgress(stream: NodeJS.WriteStream = process.stderr): ((progress: SearchProgress) => void) | undefined {
-  if (!stream.isTTY) return undefined;
-  const started = Date.now();
-  let drawn = false;
-  return (progress) => {
-    const finished = progress.stage === 'refine' && progress.done >= progress.total;
-    if (finished) {
-      if (drawn) stream.write('\r\u001b[K');
-      drawn = false;
-      return;
-    }
-    if (!drawn && Date.now() - started < 1000) return;
-    drawn = true;
-    const width = 30;
-    const fraction = progress.total > 0 ? progress.done / progress.total : 1;
-    const filled = Math.round(fraction * width);
-    stream.write(`\r${progress.model}: ${progress.stage === 'screen' ? 'scoring shift positions' : 'full search'} [${'#'.repeat(filled)}${'.'.repeat(width - filled)}] ${progress.done}/${progress.total}`);
-  };
-}
 
 /** Rates and adequacy of one lineage, when asked for. */
 export interface LineageExtras {

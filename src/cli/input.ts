@@ -203,30 +203,3 @@ export async function loadLineagesStreamed(
   return { ...streamed, lineages: lineagesOf(streamed.samples, options, warnings, extra) };
 }
 
-/**
- * A progress bar on stderr for reading a large file, drawn only when stderr
- * is a terminal and the file is over a few megabytes (so pipes, logs and tests
- * see nothing); cleared when reading ends.
- */
-export function terminalProgress(file: string, stream: NodeJS.WriteStream = process.stderr): ((progress: StreamProgress) => void) | undefined {
-  if (!stream.isTTY) return undefined;
-  let drawn = false;
-  return (progress) => {
-    const { bytes, totalBytes, rows, done } = progress;
-    if (!drawn && (done || (totalBytes !== null ? totalBytes < 4_000_000 : bytes < 4_000_000))) return;
-    if (done) {
-      if (drawn) stream.write('\r\u001b[K');
-      drawn = false;
-      return;
-    }
-    drawn = true;
-    const width = 30;
-    if (totalBytes !== null && totalBytes > 0) {
-      const fraction = Math.min(1, bytes / totalBytes);
-      const filled = Math.round(fraction * width);
-      stream.write(`\rreading ${file} [${'#'.repeat(filled)}${'.'.repeat(width - filled)}] ${(fraction * 100).toFixed(0)}%, ${rows.toLocaleString('en-US')} rows`);
-    } else {
-      stream.write(`\rreading ${file}: ${rows.toLocaleString('en-US')} rows`);
-    }
-  };
-}

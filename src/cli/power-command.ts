@@ -11,7 +11,8 @@ import { defaultDrifts, powerAnalysis, type PowerProgress, type PowerReport } fr
 import { poolRunner } from '../simulate/run-replicates.js';
 import { parseSeed } from '../simulate/seeds.js';
 import { lineagesWithAgeModel, type AgeModelOptions } from './age-model-options.js';
-import { loadSamplesStreamed, terminalProgress, type SampleFileOptions, type StreamedInput } from './input.js';
+import { loadSamplesStreamed, type SampleFileOptions, type StreamedInput } from './input.js';
+import { readingProgress, stageProgress } from './progress.js';
 import { toolVersion } from './version.js';
 import { refuseInputPath, writeAtomically } from './write-output.js';
 
@@ -84,31 +85,6 @@ export function chooseLineage(lineages: readonly Lineage[], request: string | un
   return { lineage: found, note: null };
 }
 
-/**
- * A progress bar on stderr (cli-progress), one line per stage, shown only
- * when stderr is a terminal and --quiet is not given; otherwise silent.
- */
-export async function progressReporter(quiet: boolean | undefined): Promise<{ progress: PowerProgress | undefined; stop(): void }> {
-  if (quiet || !process.stderr.isTTY) return { progress: undefined, stop: () => {} };
-  const { default: cliProgress } = await import('cli-progress');
-  let bar: InstanceType<typeof cliProgress.SingleBar> | null = null;
-  const stop = (): void => {
-    bar?.stop();
-    bar = null;
-  };
-  const progress: PowerProgress = {
-    stage(label, total) {
-      stop();
-      bar = new cliProgress.SingleBar(
-        { stream: process.stderr, format: `  ${label.padEnd(40)} [{bar}] {value}/{total}`, barsize: 24, hideCursor: true, clearOnComplete: false },
-        cliProgress.Presets.shades_classic,
-      );
-      bar.start(total, 0);
-      return (done) => bar?.update(done);
-    },
-  };
-  return { progress, stop };
-}
 
 /** The lineage's trait unit as power prints it ("mm"; "ln mm" with --log), or null without --trait-unit. */
 export function traitUnitOf(lineage: Lineage): string | null {
@@ -183,7 +159,7 @@ function sourceWords(source: string): string {
 export async function runPower(file: string, options: PowerCommandOptions, progress?: PowerProgress, read?: StreamedInput): Promise<PowerRun> {
   const warnings = new WarningLog();
   // Streamed: a specimen file of millions of rows is read in bounded memory (or already read, by the report's fit).
-  const { input, samples } = read ?? (await loadSamplesStreamed(file, options, terminalProgress(file)));
+  const { input, samples } = read ?? (await loadSamplesStreamed(file, options, readingProgress(file, options)));
   // Heights and depths become ages through the same age-model options as fit (--age-model, --extrapolate).
   const { lineages } = lineagesWithAgeModel(file, samples, options, warnings);
   const { lineage, note } = chooseLineage(lineages, options.lineage, input.name);
@@ -347,7 +323,7 @@ function wrap(text: string, width: number): string[] {
 /** `stratotrend power FILE`. */
 export async function powerCommand(file: string, options: PowerCommandOptions): Promise<void> {
   if (options.figure) refuseInputPath(options.figure, [file]);
-  const reporter = await progressReporter(options.quiet);
+  const reporter = stageProgress(options.quiet);
   let run: PowerRun;
   try {
     run = await runPower(file, options, reporter.progress);

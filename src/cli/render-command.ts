@@ -21,6 +21,7 @@ import { figureParts, type FigurePart } from '../render/figures/figure-options.j
 import { smoothUnderEstimates } from '../fit/fit-lineage.js';
 import { lineageFromArrays } from '../lineage.js';
 import { findModel } from '../models/registry.js';
+import { drawingProgress } from './progress.js';
 
 /** Figure options as commander hands them over (strings until checked). */
 export interface FigureCommandOptions {
@@ -169,12 +170,14 @@ export function figureTimeWarning(plan: FigurePlanForFolder, advice: string): st
  * in place with the rest of the set by `set.commit()`.
  *
  * @returns the file names written, in drawing order
+ *
+ * @example
+ * writeFigureFiles(document.lineages, plan, set, { quiet: false }); // ['A_length.trajectory.png', 'A_length.model-support.png', …]
  */
-export function writeFigureFiles(lineages: readonly unknown[], plan: FigurePlanForFolder, set: OutputSet): string[] {
+export function writeFigureFiles(lineages: readonly unknown[], plan: FigurePlanForFolder, set: OutputSet, options: { quiet?: boolean } = {}): string[] {
   const written: string[] = [];
   const total = plan.names.length;
-  // Hundreds of lineages mean hundreds of figures at about half a second each at 600 dpi: say how far it got.
-  const progress = total > 12 && process.stderr.isTTY ? (done: number) => process.stderr.write(`\rdrawing figures ${done}/${total}${done === total ? '\n' : ''}`) : null;
+  const progress = drawingProgress(total, options);
   const { model, smoothed } = plan.request.options;
   for (const job of plan.jobs) {
     // The band is the smoother of the model drawn: fit.json holds the best model's, so another model's is worked out from its estimates.
@@ -303,7 +306,7 @@ function redrawAndWrite(file: string, options: RedrawCommandOptions): void {
   const set = new OutputSet(folder, out);
   const written = namingFile(file, () => {
     try {
-      return writeFigureFiles(all, plan, set);
+      return writeFigureFiles(all, plan, set, { quiet: options.quiet });
     } catch (error) {
       set.abandon();
       throw error;

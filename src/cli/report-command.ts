@@ -8,6 +8,8 @@ import { sketchTrajectory } from '../render/report/sketch-figure.js';
 import { traitUnitLabel } from '../render/units.js';
 import { runFitStreamed, type FitCommandOptions, type FitRun } from './fit-command.js';
 import type { StreamedInput } from './input.js';
+import type { ModelSelection } from './model-selection.js';
+import { stageProgress } from './progress.js';
 import { checkOutputFile, inputPaths, prepareOutputFile, releaseOutputLocks, writeAtomically } from './write-output.js';
 
 /** Options of `stratotrend report` (the fit options plus where and how to write the page). */
@@ -216,21 +218,22 @@ async function runAnalyses(
   document: FitDocumentView,
   options: ReportCommandOptions,
   read?: StreamedInput,
+  selection?: ModelSelection,
 ): Promise<{ comparison?: unknown; power: unknown[]; seeds: Record<string, unknown> }> {
   const sampleOptions = { log: options.log, pool: options.pool, timeUnit: options.timeUnit, traitUnit: options.traitUnit, delimiter: options.delimiter, decimalComma: options.decimalComma };
   const seeds: Record<string, unknown> = {};
   let comparison: unknown;
   if (options.compare) {
     const { runCompare } = await import('./compare-command.js');
-    comparison = (await runCompare(file, { ...sampleOptions, models: options.models, intervals: options.intervals, ageModel: options.ageModel, extrapolate: options.extrapolate }, read)).document;
+    comparison = (await runCompare(file, { ...sampleOptions, models: selection ?? options.models, intervals: options.intervals, ageModel: options.ageModel, extrapolate: options.extrapolate }, read)).document;
   }
   const power: unknown[] = [];
   if (options.power) {
-    const { runPower, progressReporter } = await import('./power-command.js');
+    const { runPower } = await import('./power-command.js');
     const seed = options.seed ?? '1';
     seeds.power = seed;
     // One progress bar per stage and lineage (stderr, terminal only, not with --quiet): the power runs take a while.
-    const reporter = await progressReporter(options.quiet);
+    const reporter = stageProgress(options.quiet);
     try {
     for (const [index, lineage] of document.lineages.entries()) {
       const progress = reporter.progress
@@ -373,7 +376,7 @@ async function reportAndWrite(file: string, options: ReportCommandOptions): Prom
     const run = await runFitStreamed(file, { ...fitOptions, quiet: true });
     const document = asFitDocument(run.document);
     // The comparison and power analyses reuse the horizons the fit read (the file, or stdin, is read once).
-    const analyses = await runAnalyses(file, document, options, run.read);
+    const analyses = await runAnalyses(file, document, options, run.read, run.selection);
     html = await buildReport(document, options, { analyses });
     warningLines = run.warnings.list()
       .filter((warning) => warning.category !== 'at-bound' && warning.category !== 'not-compared' && warning.category !== 'long-run')

@@ -6,7 +6,8 @@ import { findModel } from '../models/registry.js';
 import { designFromOptions, designLineage } from '../simulate/design.js';
 import { simulatedTable } from '../simulate/sample-table.js';
 import { lineagesWithAgeModel, type AgeModelOptions } from './age-model-options.js';
-import { loadSamplesStreamed, terminalProgress, timeUnitOption, type SampleFileOptions } from './input.js';
+import { loadSamplesStreamed, timeUnitOption, type SampleFileOptions } from './input.js';
+import { readingProgress } from './progress.js';
 import { numberOption, seedOption, wholeOption } from './power-command.js';
 import { refuseInputPath, writeAtomically } from './write-output.js';
 
@@ -66,7 +67,7 @@ export async function simulateCommand(file: string | undefined, options: Simulat
     if (designOptionsGiven) throw usageError('give a FILE or the design options (--horizons, --spacing, --n, --within-variance), not both');
     // Read as a stream: only the design (times, n, within variances) is needed, in bounded memory.
     const warnings = new WarningLog();
-    const { samples } = await loadSamplesStreamed(file, options, terminalProgress(file));
+    const { samples } = await loadSamplesStreamed(file, options, readingProgress(file));
     // Heights and depths become ages through the same age-model options as fit; the output then gives those ages.
     designs = lineagesWithAgeModel(file, samples, options, warnings).lineages;
     for (const warning of warnings.list()) if (warning.category === 'time-axis' || warning.category === 'input') process.stderr.write(`warning (${warning.category}): ${warning.message}\n`);

@@ -1,5 +1,44 @@
-import { redrawAgeModel, type AgeModel } from '../data/age-model.js';
-import { createRandom } from '../simulate/random.js';
+import type { AgeModel, TiePoint } from '../data/age-model.js';
+import { InputError } from '../data/errors.js';
+import { createRandom, type RandomSource } from '../simulate/random.js';
+import { quantileOfSorted } from '../statistics/quantiles.js';
+
+/**
+ * One Monte Carlo draw of the age model: every tie's age redrawn from
+ * N(age, age_sd^2) independently, the whole section redrawn until its ages
+ * are again strictly decreasing upward (so the draw is from the normal
+ * distribution conditioned on stratigraphic order). Ties with age_sd = 0 keep
+ * their age exactly, so a model with every age_sd = 0 comes back unchanged.
+ *
+ * @param random seeded source (draws consumed section by section, tie by tie)
+ * @param attempts redraws allowed per section before giving up (default 10000)
+ * @throws InputError when no ordered draw is found (age_sd far larger than the
+ *   age gaps between ties), naming the section.
+ * @example
+ * redrawAgeModel(model, createRandom(1)); // same sections, ties with age_sd > 0 at drawn ages
+ */
+export function redrawAgeModel(model: AgeModel, random: RandomSource, attempts = 10_000): AgeModel {
+  const sections = new Map<string, readonly TiePoint[]>();
+  for (const [section, ties] of model.sections) {
+    if (!ties.some((tie) => tie.ageSd > 0)) {
+      sections.set(section, ties);
+      continue;
+    }
+    let drawn: TiePoint[] | null = null;
+    for (let attempt = 0; attempt < attempts && drawn === null; attempt++) {
+      const candidate = ties.map((tie) => (tie.ageSd > 0 ? { ...tie, age: tie.age + tie.ageSd * random.normal() } : tie));
+      if (candidate.every((tie, k) => k === 0 || tie.age < candidate[k - 1].age)) drawn = candidate;
+    }
+    if (drawn === null) {
+      throw new InputError(
+        `${section === '' ? 'the ties' : `section "${section}"`}: no redraw of the tie ages kept them in stratigraphic order in ${attempts} tries; age_sd is too large for the age gaps between ties`,
+        { file: model.file },
+      );
+    }
+    sections.set(section, drawn);
+  }
+  return { ...model, sections };
+}
 
 /**
  * Monte Carlo over the age model: `draws` times, redraw every tie-point age
@@ -13,6 +52,9 @@ import { createRandom } from '../simulate/random.js';
  * @param onDraw called after each draw with the number done (a progress bar; changes nothing)
  * @returns one result per draw, in draw order
  * @throws InputError from `redrawAgeModel` when no ordered draw exists
+ *
+ * @example
+ * ageMonteCarlo(ties, 3, 1, (drawn) => drawn.sections.size); // [2, 2, 2] for a model of two sections
  */
 export function ageMonteCarlo<T>(ageModel: AgeModel, draws: number, seed: number, refit: (model: AgeModel) => T, onDraw?: (done: number, total: number) => void): T[] {
   const random = createRandom(seed);
@@ -33,22 +75,13 @@ export interface Spread {
   readonly count: number;
 }
 
+
 /**
- * Quantile of sorted values by linear interpolation between order statistics,
- * h = (n - 1) p (the default of R and numpy, "type 7"; common practice).
+ * Median and central 95% of the finite values.
  *
  * @example
- * quantileOfSorted([1, 2, 3, 4], 0.5); // 2.5
+ * spreadOf([4, null, 2, 1, 3]); // { median: 2.5, lower: 1.075, upper: 3.925, count: 4 }
  */
-export function quantileOfSorted(sorted: readonly number[], probability: number): number {
-  const position = (sorted.length - 1) * probability;
-  const below = Math.floor(position);
-  const above = Math.ceil(position);
-  if (below === above) return sorted[below];
-  return sorted[below] + (position - below) * (sorted[above] - sorted[below]);
-}
-
-/** Median and central 95% of the finite values. */
 export function spreadOf(values: readonly (number | null | undefined)[]): Spread {
   const finite = values.filter((value): value is number => value !== null && value !== undefined && Number.isFinite(value)).sort((a, b) => a - b);
   if (finite.length === 0) return { median: null, lower: null, upper: null, count: 0 };

@@ -1,5 +1,5 @@
 import { fitModel, type FitOptions, type ModelFit, type ParameterEstimate } from '../fit/fit-model.js';
-import { aicc, akaikeWeights } from '../fit/model-choice.js';
+import { aicc, akaikeWeights, lowestCriterion } from '../fit/model-choice.js';
 import type { Lineage } from '../lineage.js';
 import { defaultMinimumSegment, type EvolutionModel } from '../models/model.js';
 import { offsetModel, perSectionName, sharedModel, type HypothesisId, type JointModel } from './joint-models.js';
@@ -248,14 +248,8 @@ export function compareSections(sections: readonly Lineage[], models: readonly E
     message: fit.message ?? (criteria[j] === null ? `not compared: N - K - 1 = ${horizons - fit.k - 1} <= 0` : null),
     sameFitAs: criteria[j] === null ? [] : fits.filter((other, k) => k !== j && criteria[k] !== null && sameFit(fit, other)).map(candidateKey),
   }));
-  let best: TraitComparison['best'] = null;
-  let lowest = Number.POSITIVE_INFINITY;
-  for (const hypothesis of hypotheses) {
-    if (hypothesis.aicc !== null && hypothesis.aicc < lowest) {
-      lowest = hypothesis.aicc;
-      best = { id: hypothesis.id, model: hypothesis.model };
-    }
-  }
+  const lowest = lowestCriterion(criteria);
+  const best: TraitComparison['best'] = lowest === -1 ? null : { id: hypotheses[lowest].id, model: hypotheses[lowest].model };
   const bestFit = best === null ? undefined : hypotheses.find((h) => h.id === best!.id && h.model === best!.model);
   const bestGroup = bestFit ? hypotheses.filter((h) => h === bestFit || bestFit.sameFitAs.includes(candidateKey(h))).map((h) => ({ id: h.id, model: h.model })) : [];
   const tests: FamilyTest[] = [];

@@ -1,5 +1,6 @@
 import type { LineageFit } from '../fit/fit-lineage.js';
 import { lineageName } from '../lineage.js';
+import { quantileOfSorted } from '../statistics/quantiles.js';
 
 /** Five-number summary plus the mean of a list of values (quantiles by linear interpolation, type 7). */
 export interface Distribution {
@@ -62,12 +63,6 @@ export interface CompilationSummary {
   readonly drift: DriftSummary | null;
 }
 
-function quantile(sorted: readonly number[], probability: number): number {
-  const position = (sorted.length - 1) * probability;
-  const below = Math.floor(position);
-  const above = Math.min(sorted.length - 1, below + 1);
-  return sorted[below] + (position - below) * (sorted[above] - sorted[below]);
-}
 
 /**
  * Mean, extremes and quartiles of the finite values of a list. Quartiles
@@ -88,9 +83,9 @@ export function distribution(values: readonly (number | null)[]): Distribution {
     count: finite.length,
     mean,
     minimum: finite[0],
-    lowerQuartile: quantile(finite, 0.25),
-    median: quantile(finite, 0.5),
-    upperQuartile: quantile(finite, 0.75),
+    lowerQuartile: quantileOfSorted(finite, 0.25),
+    median: quantileOfSorted(finite, 0.5),
+    upperQuartile: quantileOfSorted(finite, 0.75),
     maximum: finite[finite.length - 1],
   };
 }

@@ -1,4 +1,4 @@
-import chisquareCdf from '@stdlib/stats-base-dists-chisquare-cdf';
+import { chiSquareSurvival } from '../statistics/chi-square.js';
 
 /** A likelihood-ratio test of a restricted hypothesis against a fuller one that contains it. */
 export interface LikelihoodRatioTest {
@@ -8,21 +8,6 @@ export interface LikelihoodRatioTest {
   readonly degreesOfFreedom: number;
   /** P(chi-square(df) >= G), or null when df <= 0 or a logL is not finite. */
   readonly pValue: number | null;
-}
-
-/**
- * Upper tail of the chi-square distribution, P(X >= x) = 1 - F(x; df), with
- * F from the stdlib distributions library
- * (`@stdlib/stats-base-dists-chisquare-cdf`, the regularised lower incomplete
- * gamma function P(df/2, x/2)). Accurate to about 1e-16 absolute, so p-values
- * below that print as 0.
- *
- * @example
- * chiSquareSurvival(3.841458820694124, 1); // 0.05 (to 1e-15)
- */
-export function chiSquareSurvival(statistic: number, degreesOfFreedom: number): number {
-  if (statistic <= 0) return 1;
-  return Math.max(0, 1 - chisquareCdf(statistic, degreesOfFreedom));
 }
 
 /**

@@ -2,7 +2,6 @@ import { InputError } from './errors.js';
 import { checkName } from './names.js';
 import type { Table } from './read-table.js';
 import { numberCell, sectionColumnOf } from './samples.js';
-import type { RandomSource } from '../simulate/random.js';
 
 /** One tie point: a stratigraphic height in a section with a known age. */
 export interface TiePoint {
@@ -229,39 +228,4 @@ export function ageFunction(model: AgeModel, options: AgeFunctionOptions = {}): 
 export function hasAgeUncertainty(model: AgeModel): boolean {
   for (const ties of model.sections.values()) if (ties.some((tie) => tie.ageSd > 0)) return true;
   return false;
-}
-
-/**
- * One Monte Carlo draw of the age model: every tie's age redrawn from
- * N(age, age_sd^2) independently, the whole section redrawn until its ages
- * are again strictly decreasing upward (so the draw is from the normal
- * distribution conditioned on stratigraphic order). Ties with age_sd = 0 keep
- * their age exactly, so a model with every age_sd = 0 comes back unchanged.
- *
- * @param random seeded source (draws consumed section by section, tie by tie)
- * @param attempts redraws allowed per section before giving up (default 10000)
- * @throws InputError when no ordered draw is found (age_sd far larger than the
- *   age gaps between ties), naming the section.
- */
-export function redrawAgeModel(model: AgeModel, random: RandomSource, attempts = 10_000): AgeModel {
-  const sections = new Map<string, readonly TiePoint[]>();
-  for (const [section, ties] of model.sections) {
-    if (!ties.some((tie) => tie.ageSd > 0)) {
-      sections.set(section, ties);
-      continue;
-    }
-    let drawn: TiePoint[] | null = null;
-    for (let attempt = 0; attempt < attempts && drawn === null; attempt++) {
-      const candidate = ties.map((tie) => (tie.ageSd > 0 ? { ...tie, age: tie.age + tie.ageSd * random.normal() } : tie));
-      if (candidate.every((tie, k) => k === 0 || tie.age < candidate[k - 1].age)) drawn = candidate;
-    }
-    if (drawn === null) {
-      throw new InputError(
-        `${section === '' ? 'the ties' : `section "${section}"`}: no redraw of the tie ages kept them in stratigraphic order in ${attempts} tries; age_sd is too large for the age gaps between ties`,
-        { file: model.file },
-      );
-    }
-    sections.set(section, drawn);
-  }
-  return { ...model, sections };
 }

@@ -3,7 +3,7 @@ import type { Lineage } from '../lineage.js';
 import type { EvolutionModel } from '../models/model.js';
 import { LikelihoodEvaluator } from './evaluator.js';
 import { fitModel, type FitOptions, type ModelFit } from './fit-model.js';
-import { aicc, akaikeWeights } from './model-choice.js';
+import { aicc, akaikeWeights, lowestCriterion } from './model-choice.js';
 
 /** A model fit with its place in the model-choice table. */
 export interface RankedFit extends ModelFit {
@@ -54,14 +54,8 @@ export function fitLineage(lineage: Lineage, models: readonly EvolutionModel[], 
           ? (fit.message ?? 'not fitted')
           : `not compared: N - K - 1 = ${horizons - fit.k - 1} <= 0 (too few horizons for K = ${fit.k})`,
   }));
-  let best: string | null = null;
-  let bestCriterion = Number.POSITIVE_INFINITY;
-  ranked.forEach((fit) => {
-    if (fit.aicc !== null && fit.aicc < bestCriterion) {
-      bestCriterion = fit.aicc;
-      best = fit.id;
-    }
-  });
+  const lowest = lowestCriterion(criteria);
+  const best: string | null = lowest === -1 ? null : ranked[lowest].id;
   const bestModel = models.find((model) => model.id === best);
   const bestFit = fits.find((fit) => fit.id === best);
   const smoothed = bestModel && bestFit ? smoothUnder(bestModel, bestFit, lineage) : null;

@@ -7,6 +7,7 @@ import { LikelihoodEvaluator } from './evaluator.js';
 import { fitModel } from './fit-model.js';
 import { profileFunction } from './intervals.js';
 import { chiSquare1At95 } from './model-choice.js';
+import { orderQuantile } from '../statistics/quantiles.js';
 
 /** Options of {@link bootstrapCutoffs}. */
 export interface BootstrapCutoffOptions {
@@ -78,8 +79,3 @@ export function bootstrapCutoffs(
   return { cutoff, used };
 }
 
-/** The ceil(level (B + 1))-th smallest of B sorted values (capped at the largest). */
-export function orderQuantile(sorted: readonly number[], level: number): number {
-  const rank = Math.min(sorted.length, Math.max(1, Math.ceil(level * (sorted.length + 1))));
-  return sorted[rank - 1];
-}

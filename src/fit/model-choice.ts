@@ -36,5 +36,24 @@ export function akaikeWeights(criteria: readonly (number | null)[]): { delta: (n
   return { delta, weight: delta.map((value, j) => (value === null ? null : relative[j] / total)) };
 }
 
+/**
+ * Index of the best-supported candidate: the lowest AICc among those
+ * compared (null criteria are skipped); on an exact tie the first listed
+ * wins. -1 when none is compared. The one ranking rule of `fit` (models)
+ * and `compare` (hypotheses); ties of identical fits are named separately
+ * (`sameFit` in compare-sections.ts).
+ *
+ * @example
+ * lowestCriterion([12, 10, null, 10]); // 1
+ * lowestCriterion([null, null]); // -1
+ */
+export function lowestCriterion(criteria: readonly (number | null)[]): number {
+  let best = -1;
+  criteria.forEach((value, index) => {
+    if (value !== null && (best === -1 || value < (criteria[best] as number))) best = index;
+  });
+  return best;
+}
+
 /** 0.95 quantile of the chi-square distribution with 1 degree of freedom (closed form: 1.959963984540054^2). */
 export const chiSquare1At95 = 3.841458820694124;

@@ -1,6 +1,6 @@
 import type { LineageFit } from '../fit/fit-lineage.js';
-import { orderQuantile } from '../fit/intervals-bootstrap.js';
-import { chiSquareSurvival } from './chi-square.js';
+import { orderQuantile } from '../statistics/quantiles.js';
+import { chiSquareSurvival } from '../statistics/chi-square.js';
 import { designOf } from './design.js';
 import { ratioStatistic, type FitReplicateTask } from './replicates.js';
 import type { BatchProgress, ReplicateRunner } from './run-replicates.js';

@@ -1,6 +1,7 @@
-import { bootstrapCutoffs, orderQuantile } from '../fit/intervals-bootstrap.js';
+import { bootstrapCutoffs } from '../fit/intervals-bootstrap.js';
 import { intervalMethods, type IntervalMethod } from '../fit/intervals.js';
 import { chiSquare1At95 } from '../fit/model-choice.js';
+import { orderQuantile } from '../statistics/quantiles.js';
 import { classicModels, findModel } from '../models/registry.js';
 import { summariseCoverage, type CoverageSummary, type CoverageTask } from './coverage.js';
 import { designLineage, extendDesign, pooledWithinSd, type Design } from './design.js';

@@ -173,7 +173,7 @@ describe('progress of long jobs (drawn on a terminal only; here a recorder stand
     const options = { ageModel: ties, ageDraws: '4', seed: '3', models: 'random-walk', intervals: false as const, quiet: true };
     const run = await runFitStreamed(heights, options);
     const { stages, progress } = recorder();
-    fitAgeDraws(heights, options, run.fits, run.document, run.read!.samples, run.age ?? null, progress);
+    fitAgeDraws(heights, options, run, run.document, run.read!.samples, run.age ?? null, progress);
     expect(stages.map((stage) => [stage.total, stage.ticks])).toEqual([[4, [1, 2, 3, 4]]]);
   });
 

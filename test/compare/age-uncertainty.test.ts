@@ -1,12 +1,14 @@
 import { describe, expect, it } from 'vitest';
-import { ageMonteCarlo, quantileOfSorted, spreadOf, summariseDraws } from '../../src/compare/age-uncertainty.js';
+import { ageMonteCarlo, redrawAgeModel, spreadOf, summariseDraws } from '../../src/compare/age-uncertainty.js';
+import { quantileOfSorted } from '../../src/statistics/quantiles.js';
 import { compareTraits } from '../../src/compare/compare-sections.js';
-import { ageFunction, readAgeModel, type AgeModel } from '../../src/data/age-model.js';
+import { ageFunction, hasAgeUncertainty, readAgeModel, type AgeModel } from '../../src/data/age-model.js';
 import { readTable } from '../../src/data/read-table.js';
 import { readSamples } from '../../src/data/samples.js';
 import { fitLineage } from '../../src/fit/fit-lineage.js';
 import { buildLineages } from '../../src/lineage.js';
 import { classicModels } from '../../src/models/registry.js';
+import { createRandom } from '../../src/simulate/random.js';
 
 // Invented demo-style data (heights in two fictional sections); what is checked is
 // an identity (sd = 0 draws equal the plain fit) and reproducibility, not the values.
@@ -74,5 +76,25 @@ describe('Monte Carlo over tie-point ages', () => {
     expect(spread.lower).toBeCloseTo(1.075, 12);
     expect(spread.upper).toBeCloseTo(3.925, 12);
     expect(spread.count).toBe(4);
+  });
+});
+
+describe('age model: Monte Carlo redraws', () => {
+  const model = readAgeModel(readTable('section,height,age,age_sd\nA,0,10,0.3\nA,50,9.8,0.3\nA,80,5,0.1\nB,0,7,0\nB,10,6,0\n', 'ties.csv'));
+  it('keeps ties in stratigraphic order and is reproducible with a seed', () => {
+    expect(hasAgeUncertainty(model)).toBe(true);
+    const first = createRandom(11);
+    const second = createRandom(11);
+    for (let draw = 0; draw < 200; draw++) {
+      const a = redrawAgeModel(model, first).sections.get('A')!;
+      const b = redrawAgeModel(model, second).sections.get('A')!;
+      expect(a.map((tie) => tie.age)).toEqual(b.map((tie) => tie.age));
+      expect(a[0].age).toBeGreaterThan(a[1].age);
+      expect(a[1].age).toBeGreaterThan(a[2].age);
+    }
+  });
+  it('leaves ties with age_sd = 0 exactly as they are', () => {
+    const drawn = redrawAgeModel(model, createRandom(3));
+    expect(drawn.sections.get('B')).toBe(model.sections.get('B'));
   });
 });

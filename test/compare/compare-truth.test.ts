@@ -13,7 +13,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { candidates, runCompare, type CompareRun } from '../../src/cli/compare-command.js';
 import { compareSections, sameFit, sameFitTolerance, sharedShiftReason } from '../../src/compare/compare-sections.js';
 import { offsetModel } from '../../src/compare/joint-models.js';
-import { comparisonDocument, comparisonTable, estimateText } from '../../src/compare/output.js';
+import { comparisonDocument, comparisonTable, estimateText } from '../../src/render/comparison-output.js';
 import { escapeHtml } from '../../src/render/report/html.js';
 import { comparisonDocumentBlock } from '../../src/render/report/optional-blocks.js';
 import { mergeSections } from '../../src/compare/stack.js';

@@ -1,8 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { ageFunction, hasAgeUncertainty, interpolateAge, readAgeModel, redrawAgeModel, sedimentationRates } from '../../src/data/age-model.js';
+import { ageFunction, interpolateAge, readAgeModel, sedimentationRates } from '../../src/data/age-model.js';
 import { InputError } from '../../src/data/errors.js';
 import { readTable } from '../../src/data/read-table.js';
-import { createRandom } from '../../src/simulate/random.js';
 
 const ties = (text: string) => readAgeModel(readTable(text, 'ties.csv'));
 
@@ -73,26 +72,6 @@ describe('age model: errors', () => {
     expect(() => ties('section,height,age\nA,0,10\nA,5,9 Ma\n')).toThrow('ties.csv line 3, column "age": must be a finite number, got "9 Ma" (remove the unit or text after the number)');
     expect(ties('section,height,age\nA,0,1e-100\nA,5,0\n').sections.get('A')?.map((tie) => tie.age)).toEqual([1e-100, 0]);
     expect(() => ageFunction(model, { samplesFile: 's.csv' })('B', 1, 4)).toThrow(/s\.csv line 4, column "section": section "B" has no ties/);
-  });
-});
-
-describe('age model: Monte Carlo redraws', () => {
-  const model = ties('section,height,age,age_sd\nA,0,10,0.3\nA,50,9.8,0.3\nA,80,5,0.1\nB,0,7,0\nB,10,6,0\n');
-  it('keeps ties in stratigraphic order and is reproducible with a seed', () => {
-    expect(hasAgeUncertainty(model)).toBe(true);
-    const first = createRandom(11);
-    const second = createRandom(11);
-    for (let draw = 0; draw < 200; draw++) {
-      const a = redrawAgeModel(model, first).sections.get('A')!;
-      const b = redrawAgeModel(model, second).sections.get('A')!;
-      expect(a.map((tie) => tie.age)).toEqual(b.map((tie) => tie.age));
-      expect(a[0].age).toBeGreaterThan(a[1].age);
-      expect(a[1].age).toBeGreaterThan(a[2].age);
-    }
-  });
-  it('leaves ties with age_sd = 0 exactly as they are', () => {
-    const drawn = redrawAgeModel(model, createRandom(3));
-    expect(drawn.sections.get('B')).toBe(model.sections.get('B'));
   });
 });
 

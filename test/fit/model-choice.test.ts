@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { aicc, akaikeWeights } from '../../src/fit/model-choice.js';
+import { aicc, akaikeWeights, lowestCriterion } from '../../src/fit/model-choice.js';
 
 // AICc = -2 logL + 2K + 2K(K+1)/(N-K-1) (Hurvich & Tsai 1989, Biometrika
 // 76:297) and Akaike weights (Burnham & Anderson 2002), on numbers worked by
@@ -25,5 +25,15 @@ describe('AICc and Akaike weights on hand-computed numbers', () => {
   it('three equal AICc values share the weight equally', () => {
     const { weight } = akaikeWeights([5, 5, 5]);
     for (const value of weight) expect(value).toBeCloseTo(1 / 3, 14);
+  });
+});
+
+describe('the best-supported candidate', () => {
+  // Common practice: the lowest AICc is best; not-compared candidates (null) never are; on an exact tie the first listed is taken (and compare names the tie separately).
+  it('lowest AICc, nulls skipped, first of an exact tie, -1 when none is compared', () => {
+    expect(lowestCriterion([12, 10, null, 10])).toBe(1);
+    expect(lowestCriterion([null, 25.7, 24.1])).toBe(2);
+    expect(lowestCriterion([null, null])).toBe(-1);
+    expect(lowestCriterion([])).toBe(-1);
   });
 });

@@ -22,7 +22,7 @@ import { streamSampleFile } from '../../src/data/stream-samples.js';
 import { runFit, type FitCommandOptions } from '../../src/cli/fit-command.js';
 import { runCompare } from '../../src/cli/compare-command.js';
 import { simulateCommand } from '../../src/cli/simulate-command.js';
-import { comparisonCsv, comparisonTable } from '../../src/compare/output.js';
+import { comparisonCsv, comparisonTable } from '../../src/render/comparison-output.js';
 import { lineageTable } from '../../src/render/text-table.js';
 import { modelsCsv } from '../../src/render/models-csv.js';
 import { runCli } from './cli.js';

@@ -1,30 +1,20 @@
 import { InvalidArgumentError, type Command } from 'commander';
 import { addFigureOptions } from './render.js';
-import { addAgeModelOptions, addSampleOptions } from './shared.js';
+import { addAgeModelOptions, addFittingOptions, addSampleOptions } from './shared.js';
 
 /**
  * Define `stratotrend fit`. The action imports the fitting code only when
  * the command runs, so defining commands stays cheap.
  */
 export function defineFitCommand(program: Command): void {
-  addFigureOptions(addAgeModelOptions(addSampleOptions(
+  addFigureOptions(addFittingOptions(addAgeModelOptions(addSampleOptions(
     program
       .command('fit')
       .description('fit every model to every lineage (section × trait) of a samples CSV and rank them by AICc')
       .argument('<file>', 'samples CSV (summary form: n, mean, sd or var per horizon; specimen form: value per specimen); "-" reads stdin'),
-  )))
+  ))))
     .option('--json', 'print one JSON document to stdout instead of the table')
     .option('--out <folder>', 'write models.csv, fit.json and the figures (see the figure options; redraw them later with "stratotrend redraw") into this folder (created if needed)')
-    .option('--models <set>', 'classic|extended|id,id,...: "classic" (the five models), "extended" (classic plus the shift, mode-shift and covariate models the data allow) or a comma-separated list of model ids', 'classic')
-    .option('--min-segment <n>', 'fewest horizons in a segment of a shift model (default 5; at least 3 where a segment has its own variance)')
-    .option('--covariate-file <file>', 'covariate per horizon for the covariate models: CSV with section (optional), age, time, height or depth, and covariate; matched by section and that position (height/depth as the samples give them, age also for heights/depths placed by --age-model)')
-    .option('--rates', 'print rates: darwins and haldanes per interval and over the whole sequence, model-based rates, with the caution on interval dependence')
-    .option('--generation-time <years>', 'generation time in years, for haldanes and per-generation rates (implies --rates)')
-    .option('--adequacy', 'check the adequacy of the best-supported model (one-step prediction errors, parametric bootstrap)')
-    .option('--adequacy-draws <n>', 'simulated data sets for --adequacy (default 199)')
-    .option('--adequacy-seed <n>', 'seed of the --adequacy simulation (default 1)')
-    .option('--no-intervals', 'skip the profile-likelihood intervals (faster)')
-    .option('--intervals <method>', 'how the 95% intervals are made: integrated (default: integrated likelihood, best calibrated; ou and shift models use adjusted, or profile where adjusted would leave out the estimate), adjusted (restricted profile likelihood), profile (plain profile likelihood, asymptotic) or bootstrap (profile with a parametric-bootstrap cut-off, slower; profile where the bootstrap cannot calibrate). A fit whose intervals fell back says so in interval_method and a warning')
     .option('--quiet', 'print nothing but errors and warnings')
     .option('--no-figures', 'with --out, write no figure files (by default each lineage gets a trajectory and a model-support figure, each trait with several sections a sections figure; drawing estimated over two minutes is announced first)')
     .option('--report <file>', 'also write one self-contained HTML report (as "stratotrend report" does; never over an input, nor over a file of that name stratotrend did not write: checked before fitting)')

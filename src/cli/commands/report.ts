@@ -1,28 +1,18 @@
 import type { Command } from 'commander';
-import { addAgeModelOptions, addSampleOptions } from './shared.js';
+import { addAgeModelOptions, addFittingOptions, addSampleOptions } from './shared.js';
 
 /**
  * Define `stratotrend report`. The action imports the fitting and report
  * code only when the command runs.
  */
 export function defineReportCommand(program: Command): void {
-  addAgeModelOptions(addSampleOptions(
+  addFittingOptions(addAgeModelOptions(addSampleOptions(
     program
       .command('report')
       .description('fit every model and write one self-contained HTML report (tables, figures, methods text, references, provenance)')
       .argument('<file>', 'samples CSV as for "fit" ("-" reads stdin), or a fit.json saved by "fit --out" (reported without refitting)'),
-  ), { draws: false })
+  ), { draws: false }))
     .option('--out <file>', 'the HTML file to write (never over an input, nor over a file of that name stratotrend did not write)', 'stratotrend-report.html')
-    .option('--models <set>', 'model set: "classic" (the five models) or a comma-separated list of model ids', 'classic')
-    .option('--no-intervals', 'skip the confidence intervals (faster)')
-    .option('--intervals <method>', 'how the 95% intervals are made, as for "fit": integrated (default), adjusted, profile or bootstrap')
-    .option('--min-segment <n>', 'fewest horizons in a segment of a shift model (as for "fit")')
-    .option('--covariate-file <file>', 'covariate per horizon for the covariate models (as for "fit")')
-    .option('--rates', 'also report rates (darwins, haldanes, model-based rates)')
-    .option('--generation-time <years>', 'generation time in years, for haldanes and per-generation rates (implies --rates)')
-    .option('--adequacy', 'also check the adequacy of each lineage\'s best-supported model (parametric bootstrap)')
-    .option('--adequacy-draws <n>', 'simulated data sets for --adequacy (default 199)')
-    .option('--adequacy-seed <n>', 'seed of the --adequacy simulation (default 1)')
     .option('--figure-format <format>', 'figures inside the page: svg (vector, prints sharply) or png', 'svg')
     .option('--orientation <layout>', 'figures: stratigraphic (time up the page, oldest at the bottom) or horizontal', 'stratigraphic')
     .option('--draw-model <id>', "model whose expected trajectory and 95% envelope are drawn (default: each lineage's best-supported model)")

@@ -41,3 +41,29 @@ export function addAgeModelOptions(command: Command, { draws = true }: { draws?:
     .option('--age-draws <count>', 'redraw the tie-point ages from their age_sd this many times (kept in stratigraphic order), refit, and report the spread')
     .option('--seed <integer>', 'seed of the age redraws (same seed, same draws)', '1');
 }
+
+/**
+ * The fitting options, one definition for `fit` and `report` (the report
+ * fits exactly as `fit` does, so each option means the same in both and its
+ * help text says so once): `--models`, `--min-segment`, `--covariate-file`,
+ * `--rates`, `--generation-time`, `--adequacy` with its draws and seed, and
+ * the intervals (`--no-intervals`, `--intervals`). The actions read them
+ * through `resolveModels` (`src/cli/model-selection.ts`),
+ * `extensionSettings` (`src/cli/fit-extensions.ts`) and `intervalOptions`.
+ *
+ * @example
+ * addFittingOptions(program.command('fit')).option('--json', '...');
+ */
+export function addFittingOptions(command: Command): Command {
+  return command
+    .option('--models <set>', 'classic|extended|id,id,...: "classic" (the five models), "extended" (classic plus the shift, mode-shift and covariate models the data allow) or a comma-separated list of model ids (see "stratotrend fit --help")', 'classic')
+    .option('--min-segment <n>', 'fewest horizons in a segment of a shift model (default 5; at least 3 where a segment has its own variance)')
+    .option('--covariate-file <file>', 'covariate per horizon for the covariate models: CSV with section (optional), age, time, height or depth, and covariate; matched by section and that position (height/depth as the samples give them, age also for heights/depths placed by --age-model)')
+    .option('--rates', 'also give rates: darwins and haldanes per interval and over the whole sequence, model-based rates, with the caution on interval dependence')
+    .option('--generation-time <years>', 'generation time in years, for haldanes and per-generation rates (implies --rates)')
+    .option('--adequacy', 'check the adequacy of the best-supported model (one-step prediction errors, parametric bootstrap)')
+    .option('--adequacy-draws <n>', 'simulated data sets for --adequacy (default 199)')
+    .option('--adequacy-seed <n>', 'seed of the --adequacy simulation (default 1)')
+    .option('--no-intervals', 'skip the 95% intervals (faster)')
+    .option('--intervals <method>', 'how the 95% intervals are made: integrated (default: integrated likelihood, best calibrated; ou and shift models use adjusted, or profile where adjusted would leave out the estimate), adjusted (restricted profile likelihood), profile (plain profile likelihood, asymptotic) or bootstrap (profile with a parametric-bootstrap cut-off, slower; profile where the bootstrap cannot calibrate). A fit whose intervals fell back says so in interval_method and a warning');
+}

@@ -1,4 +1,5 @@
 import type { ChartConfiguration, Plugin } from 'chart.js';
+import { medianSorted } from 'simple-statistics';
 import { measureText, type FigurePlan } from './chart-backend.js';
 import type { FigureLineage } from './figure-input.js';
 import { pointsPerCm, type ResolvedFigureOptions } from './figure-options.js';
@@ -131,7 +132,7 @@ export function smallMultiplesPlan(lineages: readonly FigureLineage[], options: 
   const missing = items.filter((item) => !item.curve).map((item) => item.lineage.section || 'lineage');
   // Marker area proportional to n (--marker-area-by-n): the median n at the panels' marker size, held within 0.5–2 times its radius.
   const counts = options.markerByCount ? lineages.flatMap((lineage) => lineage.count ?? []).sort((a, b) => a - b) : [];
-  const medianCount = counts.length === 0 ? null : counts.length % 2 === 1 ? counts[(counts.length - 1) / 2] : (counts[counts.length / 2 - 1] + counts[counts.length / 2]) / 2;
+  const medianCount = counts.length === 0 ? null : medianSorted(counts);
   const panelMarker = 1.6;
   const markerSize = (n: number | null) => (medianCount === null || n === null ? panelMarker : panelMarker * Math.min(2, Math.max(0.5, Math.sqrt(n / medianCount))));
   const countWords = medianCount === null ? '' : ` Marker area proportional to n (median n = ${Number(medianCount.toPrecision(3))} at the usual size).`;

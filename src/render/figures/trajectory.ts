@@ -1,4 +1,5 @@
 import type { Chart, ChartConfiguration, ChartDataset, Plugin, Scale, ScaleOptionsByType } from 'chart.js';
+import { medianSorted } from 'simple-statistics';
 import { measureText, type FigurePlan } from './chart-backend.js';
 import { figureLineageName, type FigureLineage } from './figure-input.js';
 import type { ResolvedFigureOptions } from './figure-options.js';
@@ -282,8 +283,7 @@ export function trajectoryPlan(lineages: readonly FigureLineage[], options: Reso
 function countScaling(lineages: readonly FigureLineage[]): { reference: number; smallest: number; largest: number; radius(n: number): number } | null {
   const counts = lineages.flatMap((lineage) => lineage.count ?? []).sort((a, b) => a - b);
   if (counts.length === 0) return null;
-  const middle = Math.floor(counts.length / 2);
-  const reference = counts.length % 2 === 1 ? counts[middle] : (counts[middle - 1] + counts[middle]) / 2;
+  const reference = medianSorted(counts);
   const radius = (n: number) => markerRadius * Math.min(2, Math.max(0.5, Math.sqrt(n / reference)));
   return { reference, smallest: counts[0], largest: counts[counts.length - 1], radius };
 }

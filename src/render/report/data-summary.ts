@@ -1,3 +1,4 @@
+import { medianSorted } from 'simple-statistics';
 import type { LineageView } from './document-view.js';
 
 /** The facts about one lineage's data that a reader needs before the model table. */
@@ -35,10 +36,6 @@ function numbers(values: readonly (number | null)[]): number[] {
   return values.map((value) => (value === null ? Number.NaN : value));
 }
 
-function median(sorted: readonly number[]): number {
-  const middle = Math.floor(sorted.length / 2);
-  return sorted.length % 2 === 1 ? sorted[middle] : (sorted[middle - 1] + sorted[middle]) / 2;
-}
 
 /**
  * Summarise a lineage's data as fit.json holds it: span and spacing of the
@@ -80,7 +77,7 @@ export function summariseData(lineage: LineageView): DataSummary {
     longestInterval: longest,
     specimens: {
       smallest: sortedCounts[0],
-      median: median(sortedCounts),
+      median: medianSorted(sortedCounts),
       largest: sortedCounts[size - 1],
       total: count.reduce((sum, value) => sum + value, 0),
     },

@@ -204,7 +204,7 @@ describe('methods text: every option of the run changes it, and nothing that did
     expect(text(extrapolated)).toContain(`${count} horizons lay beyond the outermost ties`);
     const run = await runFitStreamed(oneSection, { intervals: false, quiet: true, ageModel: tiesFile, ageDraws: '3', seed: '5', models: 'random-walk' });
     const { fitAgeDraws } = await import('../../../src/cli/compare-command.js');
-    fitAgeDraws(oneSection, { ageModel: tiesFile, ageDraws: '3', seed: '5', models: 'random-walk' }, run.fits, run.document, run.read!.samples, run.age ?? null);
+    fitAgeDraws(oneSection, { ageModel: tiesFile, ageDraws: '3', seed: '5' }, run, run.document, run.read!.samples, run.age ?? null);
     expect(text(asFitDocument(run.document))).toContain('the tie ages were redrawn 3 times from normal distributions with their standard errors (each draw kept in stratigraphic order; random seed 5)');
   });
 

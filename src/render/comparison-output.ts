@@ -3,13 +3,13 @@
  * Pure: reads the plain result objects of `compareSections`, prints nothing.
  */
 import type { ParameterEstimate } from '../fit/fit-model.js';
-import { estimateEndsDocument, finiteOrNull } from '../render/fit-document.js';
-import { csvField } from '../render/models-csv.js';
-import { alignColumns, intervalMethodWords } from '../render/text-table.js';
-import { formatFixed, formatNumber } from '../render/units.js';
-import type { CandidateSpread, Spread } from './age-uncertainty.js';
-import { candidateKey, type HypothesisFit, type LeftOutHypothesis, type TraitComparison } from './compare-sections.js';
-import { commonTime } from './stack.js';
+import { estimateEndsDocument, finiteOrNull } from './fit-document.js';
+import { csvField } from './models-csv.js';
+import { alignColumns, intervalMethodWords } from './text-table.js';
+import { formatFixed, formatNumber } from './units.js';
+import type { CandidateSpread, Spread } from '../compare/age-uncertainty.js';
+import { candidateKey, type HypothesisFit, type LeftOutHypothesis, type TraitComparison } from '../compare/compare-sections.js';
+import { commonTime } from '../compare/stack.js';
 
 /** Words for each hypothesis id. */
 export const hypothesisWords: Record<string, string> = {
@@ -24,8 +24,6 @@ export const comparisonCaution =
   'sampling, and time-averaging within horizons; "shared-offset" assumes the sections sample one lineage on a correct common timescale. ' +
   'A shared process does not by itself show that the localities exchanged migrants, nor a separate one that they were isolated; ' +
   'the likelihood-ratio p-value is approximate when a variance sits at its bound 0. Weigh these results with the specialist\'s knowledge of the sections.';
-
-export { candidateKey } from './compare-sections.js';
 
 /**
  * One estimate with its interval in words, as compare's table prints it:
@@ -62,6 +60,9 @@ export function extrapolatedWords(comparison: TraitComparison): string {
  * The terminal table of one trait: every hypothesis × model family ranked by
  * AICc (K, logL, AICc, ΔAICc, weight), the likelihood-ratio tests of shared
  * against separate, the estimates of the best-supported hypothesis, and the caution.
+ *
+ * @example
+ * comparisonTable(run.comparisons[0]); // the ranked table, tests, estimates and caution compare prints for one trait
  */
 export function comparisonTable(comparison: TraitComparison, ageDraws: { draws: number; seed: number; spreads: readonly CandidateSpread[]; tiedDraws?: number } | null = null): string {
   const unit = comparison.sections[0].timeUnit.label;
@@ -176,7 +177,14 @@ export function leftOutWords(leftOut: readonly LeftOutHypothesis[]): string[] {
   return [...byReason].map(([reason, groups]) => `Left out, never ranked — ${[...groups].map(([ids, models]) => `${ids} of ${models.join(', ')}`).join('; ')}: ${reason}`);
 }
 
-/** A p-value for tables: 4 decimals, exponent form below 1e-4, "< 1e-15" below what the chi-square tail resolves. */
+/**
+ * A p-value for tables: 4 decimals, exponent form below 1e-4, "< 1e-15" below what the chi-square tail resolves.
+ *
+ * @example
+ * pValueText(0.23231); // '0.2323'
+ * pValueText(8.68e-9); // '8.68e-9'
+ * pValueText(null); // '—'
+ */
 export function pValueText(value: number | null): string {
   if (value === null) return '—';
   if (value < 1e-15) return '< 1e-15';
@@ -200,6 +208,9 @@ export function spreadsDocument(spreads: readonly CandidateSpread[]): Record<str
 /**
  * The JSON document of one trait's comparison:
  * `{trait, sections, horizons, best, hypotheses: [{id, model, label, k, logLik, aicc, delta_aicc, weight, ...}], tests}`.
+ *
+ * @example
+ * comparisonDocument(run.comparisons[0]).best; // { id: 'shared-offset', model: 'ou' } for whorl width in sample-data/locality-heights.csv
  */
 export function comparisonDocument(comparison: TraitComparison, spreads: readonly CandidateSpread[] | null = null, tiedDraws = 0): Record<string, unknown> {
   const { origin, starts } = commonTime(comparison.sections);
@@ -262,6 +273,9 @@ export function comparisonDocument(comparison: TraitComparison, spreads: readonl
  * with the likelihood-ratio test on the family's shared row and, after
  * `--age-draws`, the median and 2.5–97.5% range of the weight over the draws
  * and the fraction of draws in which the row was best.
+ *
+ * @example
+ * comparisonCsv(run.comparisons).split('\n')[0]; // 'trait,hypothesis,model,k,horizons,logLik,aicc,…'
  */
 export function comparisonCsv(comparisons: readonly TraitComparison[], spreads: ReadonlyMap<string, readonly CandidateSpread[]> | null = null): string {
   const withDraws = spreads !== null && spreads.size > 0;
@@ -289,7 +303,12 @@ function drawColumns(spread: CandidateSpread | undefined): (number | null)[] {
   return [finiteOrNull(spread.weight.median), finiteOrNull(spread.weight.lower), finiteOrNull(spread.weight.upper), spread.bestFraction];
 }
 
-/** Tidy CSV of the estimates: one row per trait × hypothesis × model × parameter. */
+/**
+ * Tidy CSV of the estimates: one row per trait × hypothesis × model × parameter.
+ *
+ * @example
+ * estimatesCsv(run.comparisons).split('\n').length; // 1 + one row per trait × hypothesis × model × parameter (+ trailing newline)
+ */
 export function estimatesCsv(comparisons: readonly TraitComparison[]): string {
   const rows = ['trait,hypothesis,model,parameter,estimate,lower,upper,at_bound'];
   for (const comparison of comparisons) {

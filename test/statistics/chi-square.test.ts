@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { chiSquareSurvival } from '../../src/simulate/chi-square.js';
+import { chiSquareSurvival } from '../../src/statistics/chi-square.js';
 import { erfc as chebyshevErfc } from '../../src/fit/intervals-integrated.js';
 
 // erfc by its Maclaurin series, erf(z) = 2/sqrt(pi) sum (-1)^n z^(2n+1) / (n! (2n+1))
