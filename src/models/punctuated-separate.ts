@@ -1,7 +1,7 @@
 import { buildCovariance, sliceLineage, stasisVarianceRange, type EvolutionModel, type ParameterSpec } from './model.js';
 import {
   minimumSegmentOf,
-  screenSeparateVariances,
+  boundSeparateVariances,
   segmentOfIndex,
   segmentOfTime,
   shiftEstimates,
@@ -53,7 +53,7 @@ export function punctuatedSeparateVariances(shiftCount: number): EvolutionModel 
     width: () => segments,
     parameterCount: () => 2 * segments + shiftCount,
     configurations: (lineage, options) => shiftPlacements(lineage.mean.length, shiftCount, minimumSegment(options)),
-    screen: (lineage, configurations) => screenSeparateVariances(lineage, configurations),
+    screenBound: (lineage, configurations) => boundSeparateVariances(lineage, configurations),
     blocks(lineage, configuration) {
       const bounds = [0, ...configuration.shifts, lineage.mean.length];
       return Array.from({ length: segments }, (_, k) => ({
