@@ -166,7 +166,19 @@ export function maximiseProcess(
     return { logLik: result.logLik, process: result.process, positions: [position, ...result.positions] };
   };
   if (options.start !== undefined) return gridAndPolish(evaluate, axes, lineage, points, fixed, options.start);
-  const result = preferEnds(evaluate, axes, lineage, fixed, recurse(0, null));
+  let nested = recurse(0, null);
+  // An inner axis whose bound 0 wins over part of the outer range makes the outer profile the upper envelope of
+  // two smooth curves, with a narrow peak where the curve at 0 is on top, which a grid and Brent on the envelope
+  // can step over (ou: step_variance 0 only near one alpha; issue 25). So the face where that axis is 0 is
+  // searched as a problem of its own too.
+  for (let level = 1; level < depth; level++) {
+    if (!axes[level].allowZero || fixed.has(level)) continue;
+    const face = maximiseProcess(evaluate, axes, lineage, { points, fixed: new Map([...fixed, [level, 0]]) });
+    if (face.logLik > nested.logLik + flatTolerance * Math.max(1, Math.abs(nested.logLik))) {
+      nested = { logLik: face.logLik, process: face.process, positions: face.positions.map((position, other) => (other === level ? 'zero' : position)) };
+    }
+  }
+  const result = preferEnds(evaluate, axes, lineage, fixed, nested);
   if (options.polish) {
     const free = result.positions.flatMap((position, level) => (position === 'interior' && !fixed.has(level) ? [level] : []));
     const polished = polishMaximum(evaluate, axes, lineage, result, free);

@@ -46,11 +46,11 @@ describe('directional walks whose step-variance profile has a narrow interior pe
   }
 });
 
-/** Dense profile logL at process covariance s2 × C0 (+ diag e), the location columns X by GLS (ml-matrix Cholesky). */
-function denseProfile(lineage: Lineage, design: number[][], s2: number): number {
+/** Dense profile logL with process covariance C (+ diag e), the location columns X by GLS (ml-matrix Cholesky). */
+function denseGls(lineage: Lineage, design: number[][], covariance: (i: number, j: number) => number): number {
   const n = lineage.time.length;
   const v = new Matrix(n, n);
-  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) v.set(i, j, s2 * Math.min(lineage.time[i], lineage.time[j]) + (i === j ? lineage.samplingVariance[i] : 0));
+  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) v.set(i, j, covariance(i, j) + (i === j ? lineage.samplingVariance[i] : 0));
   const cholesky = new CholeskyDecomposition(v);
   const x = new Matrix(design);
   const y = Matrix.columnVector(Array.from(lineage.mean));
@@ -64,6 +64,22 @@ function denseProfile(lineage: Lineage, design: number[][], s2: number): number 
   return -0.5 * (n * Math.log(2 * Math.PI) + logDet + quadratic);
 }
 
+/** Walk profile at step variance s2: covariance s2 min(t_i, t_j). */
+const denseProfile = (lineage: Lineage, design: number[][], s2: number): number =>
+  denseGls(lineage, design, (i, j) => s2 * Math.min(lineage.time[i], lineage.time[j]));
+
+/** Golden-section maximum of f on [a, b] (common practice). */
+function goldenMaximum(f: (u: number) => number, a: number, b: number): number {
+  const ratio = (Math.sqrt(5) - 1) / 2;
+  for (let step = 0; step < 60; step++) {
+    const c = b - ratio * (b - a);
+    const d = a + ratio * (b - a);
+    if (f(c) > f(d)) b = d;
+    else a = c;
+  }
+  return f((a + b) / 2);
+}
+
 /** Maximum over s2 >= 0 of the dense profile: the bound 0, a scan of 300 ln-spaced points, golden sections at each local maximum. */
 function denseWalkMaximum(lineage: Lineage, design: number[][]): number {
   const [lower, upper] = stepVarianceRange(lineage);
@@ -75,24 +91,16 @@ function denseWalkMaximum(lineage: Lineage, design: number[][]): number {
   for (let k = 0; k < points; k++) {
     best = Math.max(best, values[k]);
     if (!(values[k] >= (values[k - 1] ?? -Infinity) && values[k] > (values[k + 1] ?? -Infinity))) continue;
-    // Golden-section search (common practice) on the cell either side.
-    let a = us[Math.max(0, k - 1)];
-    let b = us[Math.min(points - 1, k + 1)];
-    const ratio = (Math.sqrt(5) - 1) / 2;
-    for (let step = 0; step < 60; step++) {
-      const c = b - ratio * (b - a);
-      const d = a + ratio * (b - a);
-      if (f(c) > f(d)) b = d;
-      else a = c;
-    }
-    best = Math.max(best, f((a + b) / 2));
+    // Golden sections on the cell either side.
+    best = Math.max(best, goldenMaximum(f, us[Math.max(0, k - 1)], us[Math.min(points - 1, k + 1)]));
   }
   return best;
 }
 
 describe('seeded simulations: walks and trends against a dense scan (ml-matrix Cholesky)', () => {
   // Directional walks of 14 horizons as in issue 25 (drift 0.5, step variance 0.125, unequal spacing, sampling
-  // variances 0.1..0.3), and random walks of 25 horizons; 40 lineages each (larger sweeps: the issue's 200).
+  // variances 0.1..0.3), and random walks of 25 horizons; 40 lineages each (larger sweeps, ou and the shift models:
+  // scripts/check-global-maxima.mjs).
   const designs = [
     { horizons: 14, drift: 0.5, model: 'directional-walk', seed: 2500 },
     { horizons: 25, drift: 0, model: 'random-walk', seed: 2600 },
@@ -116,6 +124,41 @@ describe('seeded simulations: walks and trends against a dense scan (ml-matrix C
       }
     });
   }
+});
+
+describe('ou whose step variance 0 wins only near one alpha (a narrow peak of the profile over alpha)', () => {
+  it('reaches the maximum over alpha of the dense likelihood at step variance 0 (ml-matrix Cholesky, scan + golden sections)', () => {
+    // Found by scripts/check-global-maxima.mjs: a seeded directional walk of 25 horizons (trends design, replicate 0);
+    // the search reported logL -6.6005 at step variance 0.029, while at step variance 0 and alpha near 0.0108 the
+    // likelihood is -6.4077.
+    const random = createRandom(300000);
+    const time = [0];
+    for (let i = 1; i < 25; i++) time.push(time[i - 1] + 0.2 + 1.6 * random.uniform());
+    const sampling = time.map(() => 0.05 * (0.5 + random.uniform()));
+    let latent = 0;
+    const mean = time.map((t, i) => {
+      if (i > 0) latent += 0.5 * (t - time[i - 1]) + Math.sqrt(0.125 * (t - time[i - 1])) * random.normal();
+      return latent + Math.sqrt(sampling[i]) * random.normal();
+    });
+    const lineage = lineageFromArrays({ time, mean, samplingVariance: sampling });
+    // ou at step variance 0: mean a + (theta - a)(1 - e^(-alpha t)), covariance diag(e); columns 1 and (1 - e^(-alpha t)) / alpha.
+    const atZero = (logAlpha: number): number => {
+      const alpha = Math.exp(logAlpha);
+      return denseGls(lineage, time.map((t) => [1, -Math.expm1(-alpha * t) / alpha]), () => 0);
+    };
+    let reference = Number.NEGATIVE_INFINITY;
+    const points = 400;
+    const [low, high] = [Math.log(1e-5 / time[24]), Math.log(40 / 0.2)];
+    const us = Array.from({ length: points }, (_, k) => low + ((high - low) * k) / (points - 1));
+    const values = us.map(atZero);
+    values.forEach((value, k) => {
+      reference = Math.max(reference, value);
+      if (!(value >= (values[k - 1] ?? -Infinity) && value > (values[k + 1] ?? -Infinity))) return;
+      reference = Math.max(reference, goldenMaximum(atZero, us[Math.max(0, k - 1)], us[Math.min(points - 1, k + 1)]));
+    });
+    const fit = fitModel(findModel('ou') as EvolutionModel, lineage, { intervals: false });
+    expect(fit.logLik).toBeGreaterThanOrEqual(reference - 1e-6);
+  });
 });
 
 describe('shift models: the reported maximum is the best of full fits at every shift position', () => {
