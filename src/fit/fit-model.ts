@@ -125,7 +125,9 @@ interface StandardScaling {
 function standardScaling(model: EvolutionModel, lineage: Lineage): StandardScaling | null {
   const size = lineage.mean.length;
   if (size < 2) return null;
-  const span = lineage.time[size - 1];
+  // The largest elapsed time (the last one for one section; a lineage of several sections restarts its time).
+  let span = 0;
+  for (let i = 0; i < size; i++) span = Math.max(span, Math.abs(lineage.time[i]));
   const variance = varianceScale(lineage);
   const trait = Number.isFinite(variance) && variance > 0 ? Math.sqrt(variance) : 1;
   const time = Number.isFinite(span) && span > 0 ? span : 1;
