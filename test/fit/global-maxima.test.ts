@@ -22,6 +22,7 @@ interface NarrowPeak {
   logLik: Record<string, number>;
   directional_walk_step_variance: number;
   directional_walk_logLik_at_zero: number;
+  directional_walk_profile_intervals: Record<string, { lower: number; upper: number; lower_at_bound: boolean; upper_at_bound: boolean }>;
 }
 const fixture = new URL('../fixtures/search/narrow-peaks.json', import.meta.url);
 const narrowPeaks = existsSync(fixture) ? (JSON.parse(readFileSync(fixture, 'utf8')) as { cases: NarrowPeak[] }).cases : [];
@@ -42,6 +43,18 @@ describe('directional walks whose step-variance profile has a narrow interior pe
       const walk = fitModel(findModel('directional-walk') as EvolutionModel, lineage, { intervals: false });
       expect(walk.flags).toEqual([]);
       expect(Math.abs(walk.estimates.step_variance - item.directional_walk_step_variance) / item.directional_walk_step_variance).toBeLessThan(1e-4);
+    });
+    it(`${item.name}: the directional walk's 95% profile intervals agree with the dense reference's`, () => {
+      const lineage = lineageFromArrays({ time: item.time, mean: item.mean, samplingVariance: item.sampling_variance });
+      const fit = fitModel(findModel('directional-walk') as EvolutionModel, lineage, { intervalMethod: 'profile' });
+      for (const [name, ends] of Object.entries(item.directional_walk_profile_intervals)) {
+        const ours = fit.parameters[name];
+        // 2e-3 of the width, as test/fit/dense-reference.test.ts.
+        const width = Math.abs(ends.upper - ends.lower);
+        expect(ours.lowerAtBound, `${name} lower at bound`).toBe(ends.lower_at_bound);
+        if (!ends.lower_at_bound) expect(Math.abs((ours.lower as number) - ends.lower) / width, `${name} lower`).toBeLessThan(2e-3);
+        expect(Math.abs((ours.upper as number) - ends.upper) / width, `${name} upper`).toBeLessThan(2e-3);
+      }
     });
   }
 });
