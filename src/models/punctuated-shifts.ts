@@ -232,12 +232,16 @@ function cellBound(sums: StasisPrefixSums, size: number, logDeterminant: (g: num
     const from = coarse[k];
     const to = k + 1 < coarse.length ? coarse[k + 1] : null;
     const cell = -0.5 * (constant + logDeterminant(from) + (to === null ? 0 : residual(to)));
+    if (Number.isNaN(cell)) return Number.POSITIVE_INFINITY;
     if (!(cell >= lower)) continue;
     if (to === null || to - from === 1) {
       bound = Math.max(bound, cell);
       continue;
     }
-    for (let g = from; g < to; g++) bound = Math.max(bound, -0.5 * (constant + logDeterminant(g) + residual(g + 1)));
+    for (let g = from; g < to; g++) {
+      const fine = -0.5 * (constant + logDeterminant(g) + residual(g + 1));
+      bound = Number.isNaN(fine) ? Number.POSITIVE_INFINITY : Math.max(bound, fine);
+    }
   }
   return Number.isNaN(bound) ? Number.POSITIVE_INFINITY : bound;
 }
