@@ -2,36 +2,33 @@ import type { Lineage } from '../lineage.js';
 import { bindConfiguration, defaultMinimumSegment, type Configuration, type EvolutionModel } from '../models/model.js';
 import { LikelihoodEvaluator } from './evaluator.js';
 import { unfittedFit, type FitOptions, type ModelFit, type ParameterEstimate } from './fit-model.js';
-import { nelderMead } from './optimise.js';
-import { maximiseProcess } from './search.js';
 
 /** Progress of a configuration search, for a progress bar. */
 export interface SearchProgress {
   readonly model: string;
-  /** "screen" (every configuration, fast) or "refine" (full search of the most promising). */
+  /** "screen" (the bounds of every configuration, fast) or "refine" (full searches). */
   readonly stage: 'screen' | 'refine';
   readonly done: number;
   readonly total: number;
 }
 
 /**
- * How many screened configurations are searched in full: every one whose
- * screen score is within {@link refineMargin} logL units of the best, at
- * least {@link refineAtLeast} and at most {@link refineAtMost}.
+ * A configuration is left out when its upper bound is below the best full
+ * fit by more than this (relative to |logL|, at least this absolute): room
+ * for the rounding of the bound's sums.
  */
-export const refineMargin = 2;
-export const refineAtLeast = 5;
-export const refineAtMost = 40;
+export const boundSlack = 1e-7;
 
 type FitPlain = (model: EvolutionModel, lineage: Lineage, options: FitOptions) => ModelFit;
 
 /**
- * Fit a model with discrete configurations (shift positions): screen every
- * admissible configuration (the model's own closed-form screen, or a coarse
- * nested search with one O(N) filter pass per likelihood evaluation), search
- * the most promising in full, and report the best with profile intervals
- * conditional on its configuration. Exhaustive over configurations: every
- * admissible placement is scored.
+ * Fit a model with discrete configurations (shift positions) and report the
+ * best with profile intervals conditional on its configuration. Never leaves
+ * out the best configuration (issue 25): a model with `screenBound` (an upper
+ * bound of each configuration's maximum, e.g. the punctuated models' closed
+ * form) has its configurations searched in full from the highest bound down
+ * until the next bound is below the best full fit; every other model has
+ * every configuration searched in full.
  *
  * The result carries the family's id and K, the process vector with the
  * shifts appended (so the family model reproduces the fit), and `extra.shifts`
@@ -51,37 +48,28 @@ export function fitOverConfigurations(model: EvolutionModel, lineage: Lineage, o
   }
   const quick: FitOptions = { ...options, intervals: false, onProgress: undefined };
   const report = (stage: SearchProgress['stage'], done: number, total: number): void => options.onProgress?.({ model: model.id, stage, done, total });
-  let scores: Float64Array;
-  if (model.screen) {
+  let order = Array.from(configurations.keys());
+  let bounds: Float64Array | null = null;
+  if (model.screenBound) {
     report('screen', 0, configurations.length);
-    scores = model.screen(lineage, configurations);
-    report('screen', configurations.length, configurations.length);
-  } else {
-    scores = new Float64Array(configurations.length);
-    const step = Math.max(1, Math.floor(configurations.length / 100));
-    let previous: number[] | null = null;
-    configurations.forEach((configuration, c) => {
-      if (model.blocks) {
-        scores[c] = fitAtConfiguration(model, lineage, configuration, quick, fitPlain).logLik;
-      } else {
-        const screened = screenConfiguration(model, lineage, configuration, c % warmRestartEvery === 0 ? null : previous);
-        scores[c] = screened.logLik;
-        previous = Number.isFinite(screened.logLik) ? screened.process : null;
-      }
-      if (c % step === 0) report('screen', c + 1, configurations.length);
-    });
+    const found = model.screenBound(lineage, configurations);
+    bounds = found;
+    // NaN bounds (no bound known) go first, as +infinity.
+    const key = (c: number): number => (Number.isNaN(found[c]) ? Number.POSITIVE_INFINITY : found[c]);
+    order = order.sort((left, right) => key(right) - key(left) || left - right);
     report('screen', configurations.length, configurations.length);
   }
-  const order = Array.from(scores.keys()).filter((c) => Number.isFinite(scores[c])).sort((left, right) => scores[right] - scores[left] || left - right);
-  if (order.length === 0) return unfittedFit(model, lineage, 'not fitted: the likelihood is not finite at any shift position');
-  const bestScore = scores[order[0]];
-  const candidates = order.filter((c, rank) => rank < refineAtLeast || scores[c] >= bestScore - refineMargin).slice(0, refineAtMost);
   let best: { configuration: Configuration; logLik: number } | null = null;
-  candidates.forEach((c, done) => {
+  let searched = 0;
+  const step = Math.max(1, Math.floor(order.length / 100));
+  for (const c of order) {
+    if (bounds !== null && best !== null && bounds[c] < best.logLik - boundSlack * Math.max(1, Math.abs(best.logLik))) break;
     const fit = fitAtConfiguration(model, lineage, configurations[c], quick, fitPlain);
+    searched += 1;
     if (fit.converged && (best === null || fit.logLik > best.logLik)) best = { configuration: configurations[c], logLik: fit.logLik };
-    report('refine', done + 1, candidates.length);
-  });
+    if (searched % step === 0) report('refine', searched, order.length);
+  }
+  report('refine', order.length, order.length);
   const chosen = best as { configuration: Configuration; logLik: number } | null;
   if (chosen === null) return unfittedFit(model, lineage, 'not fitted: no shift position gave a converged fit');
   const final = fitAtConfiguration(model, lineage, chosen.configuration, options, fitPlain);
@@ -99,40 +87,9 @@ export function fitOverConfigurations(model: EvolutionModel, lineage: Lineage, o
     extra: {
       ...(final.extra ?? {}),
       shifts: shiftRecords(lineage, chosen.configuration.shifts),
-      shift_search: { configurations: configurations.length, searched_in_full: candidates.length, minimum_segment: minimumSegment },
+      shift_search: { configurations: configurations.length, searched_in_full: searched, minimum_segment: minimumSegment },
     },
   };
-}
-
-/** A warm-started screen restarts with the coarse nested search every this many configurations. */
-export const warmRestartEvery = 32;
-
-/**
- * Screen score of one configuration of a non-separable model: the coarse
- * nested search (8 grid points per axis, Brent refinement) from scratch, or,
- * given the maximum of the neighbouring configuration (shift optima move
- * little between neighbouring positions), a Nelder–Mead search on the log
- * process values started there. Each likelihood evaluation is one O(N)
- * filter pass. Only a ranking: the best configurations are searched in full.
- */
-export function screenConfiguration(
-  model: EvolutionModel,
-  lineage: Lineage,
-  configuration: Configuration,
-  start: readonly number[] | null,
-): { logLik: number; process: number[] } {
-  const bound = bindConfiguration(model, configuration);
-  const evaluator = new LikelihoodEvaluator(bound, lineage);
-  const profile = (process: number[]): number => evaluator.profile(process);
-  if (start === null || bound.process.length === 0) {
-    const found = maximiseProcess(profile, bound.process, lineage, { points: 8 });
-    return { logLik: found.logLik, process: found.process };
-  }
-  const floors = bound.process.map((axis, level) => axis.range(lineage, start.slice(0, level))[0]);
-  const toLog = start.map((value, level) => Math.log(Math.max(value, floors[level])));
-  const found = nelderMead((logs) => -profile(logs.map(Math.exp)), toLog, { step: toLog.map(() => 1), tolerance: 1e-6, maxEvaluations: 60 * bound.process.length, restarts: 0 });
-  const process = found.at.map(Math.exp);
-  return { logLik: -found.value, process };
 }
 
 /**

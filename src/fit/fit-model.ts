@@ -1,7 +1,7 @@
 import type { Lineage } from '../lineage.js';
-import type { EvolutionModel } from '../models/model.js';
+import { varianceScale, type EvolutionModel } from '../models/model.js';
 import { LikelihoodEvaluator } from './evaluator.js';
-import { fitOverConfigurations, type SearchProgress } from './fit-configurations.js';
+import { fitOverConfigurations, shiftRecords, type SearchProgress } from './fit-configurations.js';
 import { replaceIntervals, type IntervalMethod } from './intervals-method.js';
 import { locationEnds, openTowardTrendLimit } from './intervals.js';
 import { chiSquare1At95 } from './model-choice.js';
@@ -103,6 +103,92 @@ export const unfittedFit = (model: EvolutionModel, lineage: Lineage, message: st
  * converged = false and a message.
  */
 export function fitModel(model: EvolutionModel, lineage: Lineage, options: FitOptions = {}): ModelFit {
+  const scaling = standardScaling(model, lineage);
+  if (scaling === null) return fitStandardised(model, lineage, options);
+  return scaleFitBack(model, lineage, scaling, fitStandardised(model, scaling.lineage, options));
+}
+
+/** How {@link fitModel} rescaled a lineage: trait values divided by `trait`, times by `time`. */
+interface StandardScaling {
+  readonly trait: number;
+  readonly time: number;
+  readonly lineage: Lineage;
+}
+
+/**
+ * The fit is made on standardised data (issues 23 and 25): elapsed time
+ * divided by the lineage's span and the trait by the square root of its
+ * variance scale (the larger of the spread of the means and the average
+ * sampling variance), then reported in the user's units. Every search
+ * range, grid, tolerance and root finder then works on numbers of order 1,
+ * so the answer does not depend on the units (trait in mm² or m², ages in
+ * ka or Ma) beyond rounding, and times of any accepted magnitude (1e-15 or
+ * 1e14) fit like any other. Null when there is nothing to rescale, or when
+ * the model has a searched axis that is not one of its parameters (its unit
+ * unknown).
+ */
+function standardScaling(model: EvolutionModel, lineage: Lineage): StandardScaling | null {
+  const size = lineage.mean.length;
+  if (size < 2) return null;
+  // The largest elapsed time (the last one for one section; a lineage of several sections restarts its time).
+  let span = 0;
+  for (let i = 0; i < size; i++) span = Math.max(span, Math.abs(lineage.time[i]));
+  const variance = varianceScale(lineage);
+  const trait = Number.isFinite(variance) && variance > 0 ? Math.sqrt(variance) : 1;
+  const time = Number.isFinite(span) && span > 0 ? span : 1;
+  if (trait === 1 && time === 1) return null;
+  if (!model.process.every((axis) => model.parameters.some((spec) => spec.name === axis.name))) return null;
+  const traitSquared = trait * trait;
+  return {
+    trait,
+    time,
+    lineage: {
+      ...lineage,
+      time: Float64Array.from(lineage.time, (value) => value / time),
+      mean: Float64Array.from(lineage.mean, (value) => value / trait),
+      withinVariance: Float64Array.from(lineage.withinVariance, (value) => value / traitSquared),
+      samplingVariance: Float64Array.from(lineage.samplingVariance, (value) => value / traitSquared),
+    },
+  };
+}
+
+/** Units of the quantities a fit reports that are not among the model's parameters. */
+const otherUnits: Record<string, { trait: number; time: number }> = {
+  half_life: { trait: 0, time: 1 },
+  limit_drift: { trait: 1, time: -1 },
+};
+
+/** A fit made on standardised data, in the units of the original lineage (logL with the Jacobian of the trait's scale). */
+function scaleFitBack(model: EvolutionModel, lineage: Lineage, scaling: StandardScaling, fit: ModelFit): ModelFit {
+  const factor = (name: string): number => {
+    const unit = model.parameters.find((spec) => spec.name === name)?.unit ?? otherUnits[name] ?? (/_time$/.test(name) ? { trait: 0, time: 1 } : { trait: 0, time: 0 });
+    return scaling.trait ** unit.trait * scaling.time ** unit.time;
+  };
+  const scaled = (value: number | null, by: number): number | null => (value === null ? null : value * by);
+  const estimatesBack = (record: Readonly<Record<string, ParameterEstimate>>): Record<string, ParameterEstimate> =>
+    Object.fromEntries(
+      Object.entries(record).map(([name, estimate]) => {
+        const by = factor(name);
+        return [name, { ...estimate, estimate: scaled(estimate.estimate, by), lower: scaled(estimate.lower, by), upper: scaled(estimate.upper, by) }];
+      }),
+    );
+  const process = fit.process.map((value, level) => (level < model.process.length ? value * factor(model.process[level].name) : value));
+  const extra = fit.extra && Array.isArray(fit.extra.shifts)
+    ? { ...fit.extra, shifts: shiftRecords(lineage, (fit.extra.shifts as Array<{ index: number }>).map((record) => record.index)) }
+    : fit.extra;
+  return {
+    ...fit,
+    logLik: fit.logLik - lineage.mean.length * Math.log(scaling.trait),
+    parameters: estimatesBack(fit.parameters),
+    derived: estimatesBack(fit.derived),
+    process: fit.converged ? process : fit.process,
+    estimates: Object.fromEntries(Object.entries(fit.estimates).map(([name, value]) => [name, value * factor(name)])),
+    ...(extra === undefined ? {} : { extra }),
+  };
+}
+
+/** {@link fitModel} on the lineage as given (standardised by the caller). */
+function fitStandardised(model: EvolutionModel, lineage: Lineage, options: FitOptions): ModelFit {
   const size = lineage.mean.length;
   if (size < model.minimumHorizons) {
     return unfittedFit(model, lineage, `needs at least ${model.minimumHorizons} horizons, has ${size}`);
@@ -110,7 +196,7 @@ export function fitModel(model: EvolutionModel, lineage: Lineage, options: FitOp
   const unavailable = model.unavailable?.(lineage);
   if (unavailable) return unfittedFit(model, lineage, unavailable);
   // Models with discrete configurations (shift positions): exhaustive loop over them (fit-configurations.ts).
-  if (model.configurations) return fitOverConfigurations(model, lineage, options, fitModel);
+  if (model.configurations) return fitOverConfigurations(model, lineage, options, fitStandardised);
   const evaluator = new LikelihoodEvaluator(model, lineage);
   const evaluate = (process: number[]): number => evaluator.profile(process);
   const maximum = maximiseProcess(evaluate, model.process, lineage, { points: options.gridPoints, polish: true });

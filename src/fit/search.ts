@@ -116,27 +116,37 @@ export function maximiseProcess(
     if (hint !== null && startValue !== undefined && startValue > 0 && Number.isFinite(startValue)) {
       at = warmSearch((x) => innerAt(x, hint), Math.min(logUpper, Math.max(logLower, Math.log(startValue))), logLower, logUpper);
     } else {
-      // Grid over the whole range, then Brent within the best grid point's neighbours,
-      // the inner axes warm-started from the inner maximum at that grid point.
+      // Grid over the whole range, then Brent within the neighbours of the best grid point and of every
+      // other local maximum of the grid (a narrow interior peak can sit between grid points whose values
+      // are below the best one, e.g. a directional walk's step variance whose best grid value is next to
+      // the bound 0: issue 25), the inner axes warm-started from the inner maximum at that grid point.
       const step = (logUpper - logLower) / (points - 1);
+      const gridAt = (k: number): number => (k === points - 1 ? logUpper : logLower + k * step);
+      const values = new Array<number>(points);
+      const innerBest: Array<Found | null> = new Array(points).fill(null);
       let bestIndex = 0;
       let bestValue = Number.NEGATIVE_INFINITY;
-      let bestGrid: Found | null = null;
       for (let k = 0; k < points; k++) {
-        const x = k === points - 1 ? logUpper : logLower + k * step;
-        const value = innerAt(x, hint === null ? null : hint);
+        const value = innerAt(gridAt(k), hint === null ? null : hint);
+        values[k] = Number.isFinite(value) ? value : Number.NEGATIVE_INFINITY;
+        innerBest[k] = best;
         if (Number.isFinite(value) && value > bestValue) {
           bestValue = value;
           bestIndex = k;
-          bestGrid = best;
         }
       }
-      const bestX = bestIndex === points - 1 ? logUpper : logLower + bestIndex * step;
-      at = bestX;
+      at = gridAt(bestIndex);
       if (bestValue !== Number.NEGATIVE_INFINITY) {
-        const innerHint = level + 1 < depth ? (bestGrid as Found | null)?.process ?? hint : hint;
-        const refined = brentMaximize((x) => innerAt(x, innerHint), Math.max(logLower, bestX - step), Math.min(logUpper, bestX + step), brentTolerance);
-        if (refined.value >= bestValue) at = refined.at;
+        let atValue = bestValue;
+        for (const k of gridPeaks(values, bestIndex)) {
+          const innerHint = level + 1 < depth ? innerBest[k]?.process ?? hint : hint;
+          const centre = gridAt(k);
+          const refined = brentMaximize((x) => innerAt(x, innerHint), Math.max(logLower, centre - step), Math.min(logUpper, centre + step), brentTolerance);
+          if (k === bestIndex ? refined.value >= atValue : refined.value > atValue) {
+            at = refined.at;
+            atValue = refined.value;
+          }
+        }
       }
     }
     // Re-evaluate at the reported point so process values and logL match exactly.
@@ -156,13 +166,46 @@ export function maximiseProcess(
     return { logLik: result.logLik, process: result.process, positions: [position, ...result.positions] };
   };
   if (options.start !== undefined) return gridAndPolish(evaluate, axes, lineage, points, fixed, options.start);
-  const result = preferEnds(evaluate, axes, lineage, fixed, recurse(0, null));
+  let nested = recurse(0, null);
+  // An inner axis whose bound 0 wins over part of the outer range makes the outer profile the upper envelope of
+  // two smooth curves, with a narrow peak where the curve at 0 is on top, which a grid and Brent on the envelope
+  // can step over (ou: step_variance 0 only near one alpha; issue 25). So the face where that axis is 0 is
+  // searched as a problem of its own too.
+  for (let level = 1; level < depth; level++) {
+    if (!axes[level].allowZero || fixed.has(level)) continue;
+    const face = maximiseProcess(evaluate, axes, lineage, { points, fixed: new Map([...fixed, [level, 0]]) });
+    if (face.logLik > nested.logLik + flatTolerance * Math.max(1, Math.abs(nested.logLik))) {
+      nested = { logLik: face.logLik, process: face.process, positions: face.positions.map((position, other) => (other === level ? 'zero' : position)) };
+    }
+  }
+  const result = preferEnds(evaluate, axes, lineage, fixed, nested);
   if (options.polish) {
     const free = result.positions.flatMap((position, level) => (position === 'interior' && !fixed.has(level) ? [level] : []));
     const polished = polishMaximum(evaluate, axes, lineage, result, free);
     return { process: polished.process, logLik: polished.logLik, positions: result.positions };
   }
   return { process: result.process, logLik: result.logLik, positions: result.positions };
+}
+
+/** Most local maxima of one grid that are refined by Brent's method (besides the best grid point). */
+export const gridPeaksRefined = 6;
+
+/**
+ * Indices of a grid's points to refine: the best one first, then the other
+ * local maxima (a value at least its left neighbour's and above its right
+ * neighbour's; an end counts against its one neighbour), highest first, at
+ * most {@link gridPeaksRefined} of them.
+ */
+export function gridPeaks(values: readonly number[], bestIndex: number): number[] {
+  const peaks: number[] = [];
+  for (let k = 0; k < values.length; k++) {
+    if (k === bestIndex || !Number.isFinite(values[k])) continue;
+    const left = k > 0 ? values[k - 1] : Number.NEGATIVE_INFINITY;
+    const right = k + 1 < values.length ? values[k + 1] : Number.NEGATIVE_INFINITY;
+    if (values[k] >= left && values[k] > right) peaks.push(k);
+  }
+  peaks.sort((a, b) => values[b] - values[a] || a - b);
+  return [bestIndex, ...peaks.slice(0, gridPeaksRefined)];
 }
 
 /**
@@ -243,6 +286,8 @@ function gridAndPolish(
   const chosen: number[] = new Array(depth).fill(0);
   let best: number[] | null = null;
   let bestValue = Number.NEGATIVE_INFINITY;
+  // The grid in enumeration order (for the local maxima along a single free axis).
+  const visited: Array<{ process: number[]; value: number }> = [];
   const offer = (process: number[], value: number): void => {
     if (Number.isFinite(value) && (best === null || value > bestValue)) {
       best = process.slice();
@@ -251,7 +296,9 @@ function gridAndPolish(
   };
   const enumerate = (level: number): void => {
     if (level === depth) {
-      offer(chosen, evaluate(chosen.slice()));
+      const value = evaluate(chosen.slice());
+      visited.push({ process: chosen.slice(), value });
+      offer(chosen, value);
       return;
     }
     const fixedValue = fixed.get(level);
@@ -347,6 +394,14 @@ function gridAndPolish(
   const startUsable = start.length === depth && start.every((value) => Number.isFinite(value) && value >= 0);
   if (startUsable) polish(start);
   if (gridBest !== null && (!startUsable || gridValue > bestValue - gridBasinMargin)) polish(gridBest);
+  // One free axis: also polish from the grid's other local maxima (a narrow peak between grid points, issue 25).
+  const freeAxes = axes.flatMap((_, level) => (fixed.has(level) ? [] : [level]));
+  if (freeAxes.length === 1) {
+    const line = visited.filter((point) => point.process[freeAxes[0]] > 0);
+    const values = line.map((point) => (Number.isFinite(point.value) ? point.value : Number.NEGATIVE_INFINITY));
+    const top = values.indexOf(Math.max(...values));
+    if (top >= 0) for (const k of gridPeaks(values, top).slice(1)) polish(line[k].process);
+  }
   const result = (best ?? clamp(start.slice())) as number[];
   const logLik = best === null ? Number.NEGATIVE_INFINITY : bestValue;
   const positions: AxisPosition[] = result.map((value, level) => {

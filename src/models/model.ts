@@ -115,12 +115,13 @@ export interface EvolutionModel {
    */
   readonly shiftCount?: number;
   /**
-   * Optional fast screen: an approximation of the maximised logL of each
-   * configuration (same order), used to choose which configurations are
-   * searched in full. Must never rank a configuration far below its true
-   * value; the fitter refines every configuration close to the best score.
+   * Optional: an upper bound, provably at or above the maximised logL, of
+   * each configuration (same order). The fitter searches configurations in
+   * full from the highest bound down and stops when the next bound is below
+   * the best full fit, so the best configuration is never left out. Without
+   * it every configuration is searched in full.
    */
-  screen?(lineage: Lineage, configurations: readonly Configuration[]): Float64Array;
+  screenBound?(lineage: Lineage, configurations: readonly Configuration[]): Float64Array;
   /**
    * Optional: when the likelihood at a configuration is a sum over
    * independent blocks (block-diagonal covariance, no shared parameters),
@@ -176,7 +177,7 @@ export function bindConfiguration(model: EvolutionModel, configuration: Configur
   return {
     ...model,
     configurations: undefined,
-    screen: undefined,
+    screenBound: undefined,
     blocks: undefined,
     fillSpace: (lineage, process, space) => model.fillSpace(lineage, full(process), space),
     toParameters: (coefficients, process, lineage) => model.toParameters(coefficients, full(process), lineage),

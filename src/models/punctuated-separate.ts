@@ -1,7 +1,7 @@
 import { buildCovariance, sliceLineage, stasisVarianceRange, type EvolutionModel, type ParameterSpec } from './model.js';
 import {
   minimumSegmentOf,
-  screenSeparateVariances,
+  boundSeparateVariances,
   segmentOfIndex,
   segmentOfTime,
   shiftEstimates,
@@ -54,7 +54,7 @@ export function punctuatedSeparateVariances(shiftCount: number): EvolutionModel 
     parameterCount: () => 2 * segments + shiftCount,
     configurations: (lineage, options) => shiftPlacements(lineage.mean.length, shiftCount, minimumSegment(options)),
     shiftCount,
-    screen: (lineage, configurations) => screenSeparateVariances(lineage, configurations),
+    screenBound: (lineage, configurations) => boundSeparateVariances(lineage, configurations),
     blocks(lineage, configuration) {
       const bounds = [0, ...configuration.shifts, lineage.mean.length];
       return Array.from({ length: segments }, (_, k) => ({

@@ -98,17 +98,25 @@ export function shiftIndicesFrom(parameters: Record<string, number>, count: numb
   });
 }
 
+/** Log-spaced variances of the coarse grid of the closed-form bounds (besides 0). */
+export const boundGridPoints = 360;
+/** Each coarse cell is cut into this many cells where the bound needs it. */
+export const boundSubdivision = 8;
+
 /**
- * Grid of stasis variances for the closed-form screen: 0, then log-spaced
- * from 1e-5 to 2 times the lineage's variance scale (no segment's ML
- * variance can exceed the spread of all the means by much).
+ * Grid of stasis variances for the closed-form bounds: 0, then log-spaced
+ * from 1e-5 to 1e4 times the lineage's variance scale (beyond the top of
+ * the stasis variance's search range, 1e3 times, so that the bound of the
+ * cell above the grid is far below any maximum), fine enough that
+ * every {@link boundSubdivision}-th point is a point of the coarse grid.
  */
-function screenGrid(lineage: Lineage, points: number): Float64Array {
+function boundGrid(lineage: Lineage, points: number): Float64Array {
   const scale = varianceScale(lineage);
-  const grid = new Float64Array(points + 1);
+  const fine = (points - 1) * boundSubdivision + 1;
+  const grid = new Float64Array(fine + 1);
   const low = Math.log(1e-5 * scale);
-  const high = Math.log(2 * scale);
-  for (let g = 0; g < points; g++) grid[g + 1] = Math.exp(low + ((high - low) * g) / (points - 1));
+  const high = Math.log(1e4 * scale);
+  for (let g = 0; g < fine; g++) grid[g + 1] = Math.exp(low + ((high - low) * g) / (fine - 1));
   return grid;
 }
 
@@ -117,120 +125,168 @@ function screenGrid(lineage: Lineage, points: number): Float64Array {
  * x_i^2/(w + e_i) and ln(w + e_i) over the (centred) means: with them the
  * GLS residual and log-determinant of a stasis segment [a, b) are O(1):
  * RSS = S2 - S1^2 / S0, because a stasis segment's covariance is diagonal.
+ * Rows are made when first asked for (most fine grid points never are).
  */
 export class StasisPrefixSums {
+  /** 0, then the fine log-spaced grid; `coarse` lists the indices of the coarse grid's points in it. */
   readonly grid: Float64Array;
+  readonly coarse: readonly number[];
   readonly size: number;
-  /** Per grid point, (size + 1) entries each; NaN rows where w + e_i = 0 for some i. */
-  readonly weight: Float64Array;
-  readonly first: Float64Array;
-  readonly second: Float64Array;
-  readonly logVariance: Float64Array;
-  /** False at grid points where some horizon has w + e_i = 0 (the density does not exist there). */
-  readonly usable: boolean[];
+  private readonly lineage: Lineage;
+  private readonly centre: number;
+  /** Per grid point: weight, first, second, ln-variance prefix sums, (size + 1) entries each. */
+  private readonly rows: Array<Float64Array | null>;
+  /** 1 where w + e_i > 0 for every horizon, 0 where not (the density does not exist there), -1 not yet known. */
+  private readonly usableAt: Int8Array;
 
-  constructor(lineage: Lineage, points = 240) {
-    const size = lineage.mean.length;
-    this.size = size;
-    this.grid = screenGrid(lineage, points);
-    const stride = size + 1;
-    const count = this.grid.length;
-    this.weight = new Float64Array(count * stride);
-    this.first = new Float64Array(count * stride);
-    this.second = new Float64Array(count * stride);
-    this.logVariance = new Float64Array(count * stride);
-    this.usable = [];
+  constructor(lineage: Lineage, points = boundGridPoints) {
+    this.lineage = lineage;
+    this.size = lineage.mean.length;
+    this.grid = boundGrid(lineage, points);
+    this.coarse = [0, ...Array.from({ length: points }, (_, g) => 1 + g * boundSubdivision)];
+    this.rows = new Array<Float64Array | null>(this.grid.length).fill(null);
+    this.usableAt = new Int8Array(this.grid.length).fill(-1);
     let centre = 0;
-    for (let i = 0; i < size; i++) centre += lineage.mean[i];
-    centre /= size;
-    for (let g = 0; g < count; g++) {
-      let usable = true;
-      const base = g * stride;
-      for (let i = 0; i < size; i++) {
-        const variance = this.grid[g] + lineage.samplingVariance[i];
-        if (!(variance > 0)) usable = false;
-        const w = 1 / variance;
-        const x = lineage.mean[i] - centre;
-        this.weight[base + i + 1] = this.weight[base + i] + w;
-        this.first[base + i + 1] = this.first[base + i] + w * x;
-        this.second[base + i + 1] = this.second[base + i] + w * x * x;
-        this.logVariance[base + i + 1] = this.logVariance[base + i] + Math.log(variance);
-      }
-      this.usable.push(usable);
+    for (let i = 0; i < this.size; i++) centre += lineage.mean[i];
+    this.centre = centre / this.size;
+  }
+
+  private row(g: number): Float64Array {
+    const kept = this.rows[g];
+    if (kept) return kept;
+    const size = this.size;
+    const stride = size + 1;
+    const row = new Float64Array(4 * stride);
+    let usable = 1;
+    for (let i = 0; i < size; i++) {
+      const variance = this.grid[g] + this.lineage.samplingVariance[i];
+      if (!(variance > 0)) usable = 0;
+      const w = 1 / variance;
+      const x = this.lineage.mean[i] - this.centre;
+      row[i + 1] = row[i] + w;
+      row[stride + i + 1] = row[stride + i] + w * x;
+      row[2 * stride + i + 1] = row[2 * stride + i] + w * x * x;
+      row[3 * stride + i + 1] = row[3 * stride + i] + Math.log(variance);
     }
+    this.rows[g] = row;
+    this.usableAt[g] = usable;
+    return row;
+  }
+
+  /** False at grid points where some horizon has w + e_i = 0. */
+  usable(g: number): boolean {
+    if (this.usableAt[g] < 0) this.row(g);
+    return this.usableAt[g] === 1;
   }
 
   /** GLS residual sum of squares of the stasis segment [start, end) at grid point g. */
   residual(g: number, start: number, end: number): number {
-    const base = g * (this.size + 1);
-    const weight = this.weight[base + end] - this.weight[base + start];
-    const first = this.first[base + end] - this.first[base + start];
-    const second = this.second[base + end] - this.second[base + start];
+    const row = this.row(g);
+    const stride = this.size + 1;
+    const weight = row[end] - row[start];
+    const first = row[stride + end] - row[stride + start];
+    const second = row[2 * stride + end] - row[2 * stride + start];
     return Math.max(0, second - (first * first) / weight);
   }
 
   /** ln det of the segment [start, end) at grid point g. */
   logDeterminant(g: number, start: number, end: number): number {
-    const base = g * (this.size + 1);
-    return this.logVariance[base + end] - this.logVariance[base + start];
+    const row = this.row(g);
+    const stride = this.size + 1;
+    return row[3 * stride + end] - row[3 * stride + start];
   }
 }
 
 const logTwoPi = Math.log(2 * Math.PI);
 
 /**
- * Screen of a shared-variance punctuated model: for each configuration the
- * maximum over the variance grid of the exact profile logL (segment means by
- * GLS). O(grid × segments) per configuration after O(grid × N) set-up.
+ * Upper bound of the profile logL of stasis segments over every variance
+ * w >= 0 between two grid points (issue 25: a bound, not an approximation,
+ * so that no configuration whose maximum could beat the best full fit is
+ * left out). On a cell [w_g, w_g+1] of the grid, ln det V = sum ln(w + e_i)
+ * is increasing in w and the GLS residual RSS(w) = min over the means of
+ * sum (x_i - mu_i)^2 / (w + e_i) is non-increasing (a minimum of
+ * non-increasing functions), so logL(w) <= -1/2 (N ln 2 pi + ln det V(w_g) +
+ * RSS(w_g+1)); above the last grid point RSS >= 0 bounds it. The maximum over
+ * the cells bounds the maximum over w, hence over the search range. Cells
+ * that could hold the maximum are cut {@link boundSubdivision} times finer.
+ *
+ * @param logDeterminant ln det V of the segments at grid point g
+ * @param residual their GLS residual at grid point g
  */
-export function screenSharedVariance(lineage: Lineage, configurations: readonly Configuration[]): Float64Array {
-  const sums = new StasisPrefixSums(lineage);
-  const size = lineage.mean.length;
-  const scores = new Float64Array(configurations.length).fill(Number.NEGATIVE_INFINITY);
-  const totalLogDet = Array.from(sums.grid, (_, g) => sums.logDeterminant(g, 0, size));
-  configurations.forEach((configuration, c) => {
-    const bounds = [0, ...configuration.shifts, size];
-    let best = Number.NEGATIVE_INFINITY;
-    for (let g = 0; g < sums.grid.length; g++) {
-      if (!sums.usable[g]) continue;
-      let residual = 0;
-      for (let k = 0; k + 1 < bounds.length; k++) residual += sums.residual(g, bounds[k], bounds[k + 1]);
-      const value = -0.5 * (size * logTwoPi + totalLogDet[g] + residual);
-      if (value > best) best = value;
+function cellBound(sums: StasisPrefixSums, size: number, logDeterminant: (g: number) => number, residual: (g: number) => number): number {
+  const constant = size * logTwoPi;
+  const coarse = sums.coarse;
+  // The exact profile at the coarse points is a lower bound of the maximum: a cell whose bound is below it cannot
+  // hold the maximum, so only the other cells are cut into finer cells (a tighter bound at little cost).
+  let lower = Number.NEGATIVE_INFINITY;
+  for (const g of coarse) {
+    const logDet = logDeterminant(g);
+    // A grid point where some w + e_i = 0: the density is unbounded near it, so no finite bound.
+    if (!sums.usable(g) || !(logDet > Number.NEGATIVE_INFINITY)) return Number.POSITIVE_INFINITY;
+    const value = -0.5 * (constant + logDet + residual(g));
+    if (value > lower) lower = value;
+  }
+  let bound = lower;
+  for (let k = 0; k < coarse.length; k++) {
+    const from = coarse[k];
+    const to = k + 1 < coarse.length ? coarse[k + 1] : null;
+    const cell = -0.5 * (constant + logDeterminant(from) + (to === null ? 0 : residual(to)));
+    if (Number.isNaN(cell)) return Number.POSITIVE_INFINITY;
+    if (!(cell >= lower)) continue;
+    if (to === null || to - from === 1) {
+      bound = Math.max(bound, cell);
+      continue;
     }
-    scores[c] = best;
-  });
-  return scores;
+    for (let g = from; g < to; g++) {
+      const fine = -0.5 * (constant + logDeterminant(g) + residual(g + 1));
+      bound = Number.isNaN(fine) ? Number.POSITIVE_INFINITY : Math.max(bound, fine);
+    }
+  }
+  return Number.isNaN(bound) ? Number.POSITIVE_INFINITY : bound;
 }
 
 /**
- * Screen of a separate-variance punctuated model: each segment [a, b) is
- * maximised over the variance grid on its own (the likelihood is a sum over
- * segments), cached by (a, b); a configuration scores the sum.
+ * Upper bound of the maximised logL of a shared-variance punctuated model at
+ * each configuration (see {@link cellBound}): segment means by GLS, the one
+ * variance anywhere in [0, infinity). O(grid × segments) per configuration
+ * after O(grid × N) set-up.
  */
-export function screenSeparateVariances(lineage: Lineage, configurations: readonly Configuration[]): Float64Array {
+export function boundSharedVariance(lineage: Lineage, configurations: readonly Configuration[]): Float64Array {
+  const sums = new StasisPrefixSums(lineage);
+  const size = lineage.mean.length;
+  return Float64Array.from(configurations, (configuration) => {
+    const bounds = [0, ...configuration.shifts, size];
+    const residual = (g: number): number => {
+      let total = 0;
+      for (let k = 0; k + 1 < bounds.length; k++) total += sums.residual(g, bounds[k], bounds[k + 1]);
+      return total;
+    };
+    return cellBound(sums, size, (g) => sums.logDeterminant(g, 0, size), residual);
+  });
+}
+
+/**
+ * Upper bound of the maximised logL of a separate-variance punctuated model
+ * at each configuration: the likelihood is a sum over segments, each bounded
+ * on its own by {@link cellBound} (cached by segment), so the sum bounds it.
+ */
+export function boundSeparateVariances(lineage: Lineage, configurations: readonly Configuration[]): Float64Array {
   const sums = new StasisPrefixSums(lineage);
   const size = lineage.mean.length;
   const stride = size + 1;
   const cache = new Float64Array(stride * stride).fill(Number.NaN);
-  const segmentBest = (start: number, end: number): number => {
+  const segmentBound = (start: number, end: number): number => {
     const key = start * stride + end;
-    const cached = cache[key];
-    if (!Number.isNaN(cached)) return cached;
-    let best = Number.NEGATIVE_INFINITY;
-    for (let g = 0; g < sums.grid.length; g++) {
-      const logDet = sums.logDeterminant(g, start, end);
-      if (!Number.isFinite(logDet)) continue;
-      const value = -0.5 * ((end - start) * logTwoPi + logDet + sums.residual(g, start, end));
-      if (value > best) best = value;
+    if (Number.isNaN(cache[key])) {
+      cache[key] = cellBound(sums, end - start, (g) => sums.logDeterminant(g, start, end), (g) => sums.residual(g, start, end));
     }
-    cache[key] = best;
-    return best;
+    return cache[key];
   };
   return Float64Array.from(configurations, (configuration) => {
     const bounds = [0, ...configuration.shifts, size];
     let total = 0;
-    for (let k = 0; k + 1 < bounds.length; k++) total += segmentBest(bounds[k], bounds[k + 1]);
+    for (let k = 0; k + 1 < bounds.length; k++) total += segmentBound(bounds[k], bounds[k + 1]);
     return total;
   });
 }

@@ -1,7 +1,7 @@
 import { buildCovariance, type EvolutionModel, type ParameterSpec, stasisVarianceRange } from './model.js';
 import {
   minimumSegmentOf,
-  screenSharedVariance,
+  boundSharedVariance,
   segmentOfIndex,
   segmentOfTime,
   shiftEstimates,
@@ -61,7 +61,7 @@ export function punctuatedSharedVariance(shiftCount: number): EvolutionModel {
     parameterCount: () => segments + 1 + shiftCount,
     configurations: (lineage, options) => shiftPlacements(lineage.mean.length, shiftCount, minimumSegmentOf(options)),
     shiftCount,
-    screen: (lineage, configurations) => screenSharedVariance(lineage, configurations),
+    screenBound: (lineage, configurations) => boundSharedVariance(lineage, configurations),
     fillSpace(_lineage, process, space) {
       const shifts = shiftsOf(process, 1, shiftCount);
       space.transition.fill(0);
