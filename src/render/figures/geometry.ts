@@ -224,3 +224,24 @@ export function smoothedBand(lineage: FigureLineage, axis: TimeAxis): { model: s
   const upper = smoothed.mean.map((m, i) => m + normal95 * smoothed.standardError[i]);
   return { model: smoothed.model, time, mean: [...smoothed.mean], lower, upper };
 }
+
+/**
+ * Axis limits: the data's extent widened by 4% at each end (a flat extent by
+ * 5% of its value, or 1), so no mark sits on the frame and no axis runs on
+ * to the next round number with nothing in it. Common practice in plotting.
+ *
+ * @example
+ * paddedLimits([0, 10]); // { min: -0.4, max: 10.4 }
+ * paddedLimits([5, 5]); // { min: 4.73, max: 5.27 }
+ */
+export function paddedLimits(values: readonly number[]): { min: number; max: number } {
+  let low = Math.min(...values);
+  let high = Math.max(...values);
+  if (!(high > low)) {
+    const half = Math.abs(low) * 0.05 || 1;
+    low -= half;
+    high += half;
+  }
+  const pad = (high - low) * 0.04;
+  return { min: low - pad, max: high + pad };
+}

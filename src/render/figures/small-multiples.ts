@@ -3,10 +3,10 @@ import { medianSorted } from 'simple-statistics';
 import { measureText, type FigurePlan } from './chart-backend.js';
 import type { FigureLineage } from './figure-input.js';
 import { pointsPerCm, type ResolvedFigureOptions } from './figure-options.js';
-import { horizonMarks, modelCurve, timeAxisFor, traitAxisTitle, type HorizonMark, type ModelCurve } from './geometry.js';
+import { horizonMarks, modelCurve, paddedLimits, timeAxisFor, traitAxisTitle, type HorizonMark, type ModelCurve } from './geometry.js';
 import { drawInterval, drawMarker, drawStyledLine, fillBetween, font, hasEmphasis, styledWords, wrapStyled, wrapText, type Context } from './marks.js';
 import { ink, lineWidth, modelInk, typeSize } from './style.js';
-import { fittedTicks, tickLabel } from './ticks.js';
+import { drawableLimits, fittedTicks, tickLabel } from './ticks.js';
 
 /**
  * The sections figure for many sections: one small panel per section on
@@ -45,18 +45,6 @@ export interface SmallMultiplesPlan extends FigurePlan {
   readonly reversed: { readonly x: boolean; readonly y: boolean };
 }
 
-function padded(values: readonly number[]): { min: number; max: number } {
-  let low = Math.min(...values);
-  let high = Math.max(...values);
-  if (!(high > low)) {
-    const half = Math.abs(low) * 0.05 || 1;
-    low -= half;
-    high += half;
-  }
-  const pad = (high - low) * 0.04;
-  return { min: low - pad, max: high + pad };
-}
-
 function shortLabel(label: string): string {
   const cut = label.indexOf(' (');
   return cut > 0 ? label.slice(0, cut) : label;
@@ -89,8 +77,9 @@ export function smallMultiplesPlan(lineages: readonly FigureLineage[], options: 
       traits.push(...(item.curve.hasEnvelope ? [...item.curve.lower, ...item.curve.upper] : item.curve.mean));
     }
   }
-  const timeLimits = padded(times);
-  const traitLimits = padded(traits);
+  // Limits the drawing cannot lay out (spans near the double's underflow) are refused, as in the single-panel figure.
+  const timeLimits = drawableLimits(paddedLimits(times), 'time axis');
+  const traitLimits = drawableLimits(paddedLimits(traits), 'trait axis');
   const limits = stratigraphic ? { x: traitLimits, y: timeLimits } : { x: timeLimits, y: traitLimits };
   const reversed = stratigraphic ? { x: false, y: axis.reverse } : { x: axis.reverse, y: false };
   // The trait title may mark italics with asterisks (`*Invented taxon*`); the time title never does.

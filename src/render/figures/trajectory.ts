@@ -4,7 +4,7 @@ import { measureText, type FigurePlan } from './chart-backend.js';
 import { figureLineageName, type FigureLineage } from './figure-input.js';
 import type { ResolvedFigureOptions } from './figure-options.js';
 import { pointsPerCm } from './figure-options.js';
-import { horizonMarks, modelCurve, smoothedBand, timeAxisFor, traitAxisTitle, type HorizonMark, type ModelCurve } from './geometry.js';
+import { horizonMarks, modelCurve, paddedLimits, smoothedBand, timeAxisFor, traitAxisTitle, type HorizonMark, type ModelCurve } from './geometry.js';
 import {
   drawInterval,
   drawLegend,
@@ -242,8 +242,8 @@ export function trajectoryPlan(lineages: readonly FigureLineage[], options: Reso
     const timeValues = stratigraphic ? ys : xs;
     const traitValues = stratigraphic ? xs : ys;
     // Limits the chart library cannot lay out (spans near the double's underflow) are refused here, never handed to it.
-    const timeScale = scaleOptions(stratigraphic ? axis.title : horizontalTitle, axis.reverse, drawableLimits(padded(timeValues), 'time axis'), stratigraphic ? 7 : 6);
-    const traitScale = scaleOptions(stratigraphic ? horizontalTitle : traitTitle, false, drawableLimits(padded(traitValues), 'trait axis'), 5);
+    const timeScale = scaleOptions(stratigraphic ? axis.title : horizontalTitle, axis.reverse, drawableLimits(paddedLimits(timeValues), 'time axis'), stratigraphic ? 7 : 6);
+    const traitScale = scaleOptions(stratigraphic ? horizontalTitle : traitTitle, false, drawableLimits(paddedLimits(traitValues), 'trait axis'), 5);
     if (styledTitle) {
       // Room for the plugin's title where chart.js would have set its own: the same line height and padding.
       const room = styledTitle.lines.length * typeSize.axisTitle * 1.2 + 3;
@@ -301,23 +301,6 @@ function countLegend(scaling: { reference: number; smallest: number; largest: nu
 
 function capitalised(text: string): string {
   return text.charAt(0).toUpperCase() + text.slice(1);
-}
-
-/**
- * Axis limits: the data's extent widened by 4% at each end (a flat extent by
- * 5% of its value, or 1), so no mark sits on the frame and no axis runs on
- * to the next round number with nothing in it.
- */
-function padded(values: readonly number[]): { min: number; max: number } {
-  let low = Math.min(...values);
-  let high = Math.max(...values);
-  if (!(high > low)) {
-    const half = Math.abs(low) * 0.05 || 1;
-    low -= half;
-    high += half;
-  }
-  const pad = (high - low) * 0.04;
-  return { min: low - pad, max: high + pad };
 }
 
 // The round-tick helpers (1–2–5 × 10^k steps, labels that fit) live in ticks.ts, shared with the power curve.
