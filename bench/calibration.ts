@@ -53,6 +53,21 @@ export interface OuCalibrationRow {
 }
 
 /**
+ * The uneven design shared by both calibrations: `size` horizons 0.5–1.5 time
+ * units apart (seeded by seed + size), 20 specimens each, within-horizon
+ * variance 1.
+ *
+ * @example
+ * calibrationDesign(2026, 15).time.length; // 15
+ */
+function calibrationDesign(seed: number, size: number): Design {
+  const shape = createRandom(seed + size);
+  const time = [0];
+  for (let i = 1; i < size; i++) time.push(time[i - 1] + 0.5 + shape.uniform());
+  return { time, count: time.map(() => 20), withinVariance: time.map(() => 1), timeUnit: 'Myr' };
+}
+
+/**
  * Coverage of every interval method's nominal 95% intervals for drift and
  * step variance, over seeded simulated directional walks at each size. The
  * scenario is the common fossil one of the issue: unequal spacing (intervals
@@ -77,11 +92,8 @@ export async function runCalibration(options: CalibrationOptions = {}): Promise<
   print(`Coverage of nominal 95% intervals, ${lineages} simulated directional walks per size (seed ${seed})`);
   print('horizons  method       drift  step_variance  seconds');
   for (const size of sizes) {
-    const shape = createRandom(seed + size);
-    const time = [0];
-    for (let i = 1; i < size; i++) time.push(time[i - 1] + 0.5 + shape.uniform());
-    const design: Design = { time, count: time.map(() => 20), withinVariance: time.map(() => 1), timeUnit: 'Myr' };
-    const meanInterval = time[size - 1] / (size - 1);
+    const design = calibrationDesign(seed, size);
+    const meanInterval = design.time[size - 1] / (size - 1);
     const parameters = { ancestral_mean: 10, drift: 0.05, step_variance: 1 / 20 / meanInterval };
     for (const method of methods) {
       const started = Date.now();
@@ -132,11 +144,8 @@ async function runOuCalibration(options: CalibrationOptions, runner: ReturnType<
   print('horizons  method       alpha  optimum  step_variance  fallback  seconds');
   const names = ['alpha', 'optimum', 'step_variance'];
   for (const size of sizes) {
-    const shape = createRandom(seed + size);
-    const time = [0];
-    for (let i = 1; i < size; i++) time.push(time[i - 1] + 0.5 + shape.uniform());
-    const design: Design = { time, count: time.map(() => 20), withinVariance: time.map(() => 1), timeUnit: 'Myr' };
-    const span = time[size - 1];
+    const design = calibrationDesign(seed, size);
+    const span = design.time[size - 1];
     const parameters = { ancestral_mean: 10, optimum: 11, alpha: Math.LN2 / (span / 4), step_variance: 1 / 20 / (span / (size - 1)) };
     for (const method of methods) {
       const started = Date.now();
