@@ -4,10 +4,11 @@ import { smoothLineage } from '../../src/engine/smoother.js';
 import { allocateStateSpace } from '../../src/engine/state-space.js';
 import { smoothUnder } from '../../src/fit/fit-lineage.js';
 import { LikelihoodEvaluator } from '../../src/fit/evaluator.js';
-import { lineageFromArrays, type Lineage } from '../../src/lineage.js';
+import type { Lineage } from '../../src/lineage.js';
 import type { EvolutionModel } from '../../src/models/model.js';
 import { classicModels, extendedModels } from '../../src/models/registry.js';
 import { createRandom, type RandomSource } from '../../src/simulate/random.js';
+import { randomTestLineage } from '../support/random-lineage.js';
 
 // RTS smoother against the dense conditional distribution.
 //
@@ -44,16 +45,6 @@ function denseConditional(mu: ArrayLike<number>, latent: readonly (readonly numb
   };
 }
 
-function randomLineage(random: RandomSource, design: number): Lineage {
-  const size = 8 + Math.floor(random.uniform() * 22);
-  const time = [0];
-  for (let i = 1; i < size; i++) time.push(time[i - 1] + (design % 3 === 0 ? 1 : 0.01 + 3 * random.uniform() ** 2));
-  const mean = time.map(() => 10 + random.normal());
-  const samplingVariance = time.map(() => 0.001 + random.uniform() * 0.3);
-  const covariate = time.map(() => 5 * random.normal());
-  return lineageFromArrays({ time, mean, samplingVariance, covariate });
-}
-
 /** Random natural parameters of any registered model (variances sometimes 0; shift positions at least two horizons apart). */
 function randomParameters(model: EvolutionModel, lineage: Lineage, random: RandomSource): Record<string, number> {
   const parameters: Record<string, number> = {};
@@ -79,7 +70,7 @@ function randomParameters(model: EvolutionModel, lineage: Lineage, random: Rando
 
 describe('RTS smoother against the dense conditional mean and variance (ml-matrix)', () => {
   const random = createRandom(23);
-  const designs = Array.from({ length: 8 }, (_, design) => randomLineage(random, design));
+  const designs = Array.from({ length: 8 }, (_, design) => randomTestLineage(random, design, 22));
 
   for (const model of extendedModels) {
     it(`${model.id}: smoothed mean and variance equal the dense conditional moments to 1e-9`, () => {

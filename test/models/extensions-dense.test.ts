@@ -1,10 +1,11 @@
 import { describe, expect, it } from 'vitest';
 import { denseLogLik } from '../../src/engine/dense.js';
 import { LikelihoodEvaluator } from '../../src/fit/evaluator.js';
-import { lineageFromArrays, type Lineage } from '../../src/lineage.js';
+import type { Lineage } from '../../src/lineage.js';
 import { extensionModels } from '../../src/models/extensions.js';
 import type { EvolutionModel } from '../../src/models/model.js';
 import { createRandom, type RandomSource } from '../../src/simulate/random.js';
+import { randomTestLineage } from '../support/random-lineage.js';
 
 // Filter ≡ dense reference for every model beyond the classic five: the O(N)
 // filter on each model's state-space form and the dense multivariate normal
@@ -33,15 +34,7 @@ function randomParameters(model: EvolutionModel, lineage: Lineage, random: Rando
 
 describe('extension models: filter against the dense multivariate-normal reference', () => {
   const random = createRandom(11);
-  const designs = Array.from({ length: 25 }, (_, design) => {
-    const size = 8 + Math.floor(random.uniform() * 30);
-    const time = [0];
-    for (let i = 1; i < size; i++) time.push(time[i - 1] + (design % 3 === 0 ? 1 : 0.01 + 3 * random.uniform() ** 2));
-    const mean = time.map(() => 10 + random.normal());
-    const samplingVariance = time.map(() => 0.001 + random.uniform() * 0.3);
-    const covariate = time.map(() => 5 * random.normal());
-    return lineageFromArrays({ time, mean, samplingVariance, covariate });
-  });
+  const designs = Array.from({ length: 25 }, (_, design) => randomTestLineage(random, design, 30));
   for (const model of extensionModels) {
     it(`${model.id}: filter and dense logL agree to 1e-9 relative`, () => {
       let checked = 0;
