@@ -36,7 +36,7 @@ export interface ModelFit {
   /** Why the model was not fitted or not converged, in words. */
   readonly message: string | null;
   readonly parameters: Readonly<Record<string, ParameterEstimate>>;
-  /** Derived quantities (ou half_life). */
+  /** Derived quantities (half_life of a model with alpha; ou's limit_drift at alpha = 0). */
   readonly derived: Readonly<Record<string, ParameterEstimate>>;
   /** Process values at the maximum (search space) and design coefficients. */
   readonly process: readonly number[];
@@ -152,16 +152,18 @@ function standardScaling(model: EvolutionModel, lineage: Lineage): StandardScali
   };
 }
 
-/** Units of the quantities a fit reports that are not among the model's parameters. */
-const otherUnits: Record<string, { trait: number; time: number }> = {
-  half_life: { trait: 0, time: 1 },
-  limit_drift: { trait: 1, time: -1 },
-};
+/** Units of the quantities a fit reports that are not among the model's parameters: half_life, and what the parameters' `runaway` says. */
+function otherUnits(model: EvolutionModel): Record<string, { trait: number; time: number }> {
+  const units: Record<string, { trait: number; time: number }> = { half_life: { trait: 0, time: 1 } };
+  for (const spec of model.parameters) if (spec.runaway) units[spec.runaway.derived] = spec.runaway.unit;
+  return units;
+}
 
 /** A fit made on standardised data, in the units of the original lineage (logL with the Jacobian of the trait's scale). */
 function scaleFitBack(model: EvolutionModel, lineage: Lineage, scaling: StandardScaling, fit: ModelFit): ModelFit {
+  const others = otherUnits(model);
   const factor = (name: string): number => {
-    const unit = model.parameters.find((spec) => spec.name === name)?.unit ?? otherUnits[name] ?? (/_time$/.test(name) ? { trait: 0, time: 1 } : { trait: 0, time: 0 });
+    const unit = model.parameters.find((spec) => spec.name === name)?.unit ?? others[name] ?? (/_time$/.test(name) ? { trait: 0, time: 1 } : { trait: 0, time: 0 });
     return scaling.trait ** unit.trait * scaling.time ** unit.time;
   };
   const scaled = (value: number | null, by: number): number | null => (value === null ? null : value * by);
@@ -266,23 +268,7 @@ function fitStandardised(model: EvolutionModel, lineage: Lineage, options: FitOp
       intervalMethod = 'profile';
     }
   }
-  const derived: Record<string, ParameterEstimate> = {};
-  if (parameters.alpha && parameters.alpha.estimate === 0) {
-    // The alpha -> 0 limit: ou is the directional walk whose drift is (optimum - a) alpha.
-    derived.limit_drift = { estimate: details.coefficients[1], lower: null, upper: null, atBound: 'alpha-zero', lowerAtBound: false, upperAtBound: false };
-  }
-  if (parameters.alpha) {
-    const alpha = parameters.alpha;
-    const halfLife = (value: number | null): number | null => (value === null ? null : value > 0 ? Math.LN2 / value : null);
-    derived.half_life = {
-      estimate: halfLife(alpha.estimate),
-      lower: alpha.upperAtBound ? 0 : halfLife(alpha.upper),
-      upper: alpha.lowerAtBound ? null : halfLife(alpha.lower),
-      atBound: alpha.atBound,
-      lowerAtBound: alpha.upperAtBound,
-      upperAtBound: alpha.lowerAtBound,
-    };
-  }
+  const derived = derivedEstimates(model, parameters, details.coefficients);
   return {
     id: model.id,
     label: model.label,
@@ -299,6 +285,44 @@ function fitStandardised(model: EvolutionModel, lineage: Lineage, options: FitOp
     intervalMethod,
     evaluations: evaluator.evaluations,
   };
+}
+
+/**
+ * The quantities a fit derives from its parameters, as the model's
+ * parameters declare them: at the zero limit of the first process axis,
+ * each `runaway` parameter's finite coefficient (ou: `limit_drift`, the
+ * drift (optimum − a)·alpha of the directional walk ou equals there); and
+ * `half_life` = ln 2 / value of a `halfLife` parameter, its interval the
+ * parameter's mapped (an open end where the parameter reaches its limit).
+ */
+function derivedEstimates(model: EvolutionModel, parameters: Readonly<Record<string, ParameterEstimate>>, coefficients: ArrayLike<number>): Record<string, ParameterEstimate> {
+  const derived: Record<string, ParameterEstimate> = {};
+  const first = model.process[0] ? parameters[model.process[0].name] : undefined;
+  for (const spec of model.parameters) {
+    const runaway = spec.runaway;
+    if (runaway && first && first.estimate === 0) {
+      derived[runaway.derived] = { estimate: coefficients[runaway.coefficient], lower: null, upper: null, atBound: runaway.limit, lowerAtBound: false, upperAtBound: false };
+    }
+  }
+  for (const spec of model.parameters) {
+    const rate = spec.halfLife ? parameters[spec.name] : undefined;
+    if (!rate) continue;
+    const halfLife = (value: number | null): number | null => (value === null ? null : value > 0 ? Math.LN2 / value : null);
+    derived.half_life = {
+      estimate: halfLife(rate.estimate),
+      lower: rate.upperAtBound ? 0 : halfLife(rate.upper),
+      upper: rate.lowerAtBound ? null : halfLife(rate.lower),
+      atBound: rate.atBound,
+      lowerAtBound: rate.upperAtBound,
+      upperAtBound: rate.lowerAtBound,
+    };
+  }
+  return derived;
+}
+
+/** How much the design coefficient that location parameter `name` fixes changes per unit of the parameter (1 for most; alpha for ou's optimum). */
+export function coefficientPerUnit(model: EvolutionModel, name: string, process: ArrayLike<number>, lineage: Lineage): number {
+  return model.fixLocation(name, 1, process, lineage).coefficient - model.fixLocation(name, 0, process, lineage).coefficient;
 }
 
 /**
@@ -441,7 +465,9 @@ function locationInterval(
   const index = model.fixLocation(name, estimate, best, lineage).index;
   const width = Math.sqrt(details.coefficientCovariance.length);
   let scale = Math.sqrt(Math.max(0, details.coefficientCovariance[index * width + index]));
-  if (name === 'optimum' && best[0] > 0) scale /= best[0];
+  // The coefficient can be a multiple of the parameter (ou's optimum enters as optimum·alpha): the step is in the parameter's units.
+  const perUnit = coefficientPerUnit(model, name, best, lineage);
+  if (perUnit > 0) scale /= perUnit;
   if (!(scale > 0) || !Number.isFinite(scale)) scale = Math.max(1e-8, Math.abs(estimate) * 1e-3);
   return openTowardTrendLimit(evaluator, name, locationEnds(profileAt, estimate, scale, cutoff), cutoff, false);
 }

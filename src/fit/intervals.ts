@@ -151,23 +151,25 @@ function locationSupremum(evaluator: LikelihoodEvaluator, name: string, adjusted
 }
 
 /**
- * ou's optimum as it runs off to ±∞ on the side of the trend: its profile
- * tends to the alpha → 0 limit with the drift (optimum − a)·alpha free, the
- * directional walk. Far out the profile computed with alpha held inside its
- * search range falls off only because alpha cannot get small enough (an
- * artefact: the sample data's ou gave an upper end of 125,000 that way), so
- * when the limit stays above the cut-off the interval is open on the side of
- * the limit's drift. Other parameters and models: the ends unchanged.
+ * A location parameter that runs off to ±∞ at the zero limit of the first
+ * process axis (`ParameterSpec.runaway`; ou's optimum as alpha → 0, its
+ * profile tending to the directional walk with the drift (optimum − a)·alpha
+ * free). Far out the profile computed with alpha held inside its search
+ * range falls off only because alpha cannot get small enough (an artefact:
+ * the sample data's ou gave an upper end of 125,000 that way), so when the
+ * limit stays above the cut-off the interval is open on the side of the
+ * sign of the coefficient that stays finite there. Other parameters: the
+ * ends unchanged.
  *
  * @param cutoff the profile value that defines the interval
  */
 export function openTowardTrendLimit(evaluator: LikelihoodEvaluator, name: string, ends: IntervalEnds, cutoff: number, adjusted: boolean): IntervalEnds {
   const model = evaluator.model;
-  if (name !== 'optimum' || model.process[0]?.limitNames?.[0] !== 'alpha-zero' || !model.process[0].allowZero) return ends;
+  const runaway = model.parameters.find((spec) => spec.name === name)?.runaway;
+  if (!runaway || model.process[0]?.limitNames?.[0] !== runaway.limit || !model.process[0].allowZero) return ends;
   const limit = maximiseProcess(locationSupremum(evaluator, name, adjusted), model.process, evaluator.lineage, { fixed: new Map([[0, 0]]), points: 24 });
   if (!(limit.logLik >= cutoff)) return ends;
-  // At alpha = 0 the second coefficient of ou's mean is the drift (optimum − a)·alpha.
-  const drift = evaluator.details(limit.process).coefficients[1];
+  const drift = evaluator.details(limit.process).coefficients[runaway.coefficient];
   if (drift > 0) return { ...ends, upper: null, upperAtBound: true };
   if (drift < 0) return { ...ends, lower: null, lowerAtBound: true };
   return ends;
@@ -242,7 +244,8 @@ export function locationScale(evaluator: LikelihoodEvaluator, name: string, proc
   const index = model.fixLocation(name, estimate, process, evaluator.lineage).index;
   const width = Math.sqrt(details.coefficientCovariance.length);
   let scale = Math.sqrt(Math.max(0, details.coefficientCovariance[index * width + index]));
-  if (name === 'optimum' && process[0] > 0) scale /= process[0];
+  const perUnit = model.fixLocation(name, 1, process, evaluator.lineage).coefficient - model.fixLocation(name, 0, process, evaluator.lineage).coefficient;
+  if (perUnit > 0) scale /= perUnit;
   if (!(scale > 0) || !Number.isFinite(scale)) scale = Math.max(1e-8, Math.abs(estimate) * 1e-3);
   return scale;
 }

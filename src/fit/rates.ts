@@ -1,4 +1,5 @@
 import type { Lineage } from '../lineage.js';
+import { findModel } from '../models/registry.js';
 import type { ModelFit } from './fit-model.js';
 
 /**
@@ -121,7 +122,7 @@ export function pooledPair(n1: number, v1: number, n2: number, v2: number): numb
  * means. Darwins need a time unit convertible to years; haldanes also a
  * generation time (years).
  *
- * @param fits fitted models whose rate parameters are converted (drift, step_variance and their segment forms)
+ * @param fits fitted models whose rate parameters (`ParameterSpec.rate`: drift, step_variance and their segment forms) are converted
  * @param generationTime generation time in years, or null
  */
 export function lineageRates(lineage: Lineage, fits: readonly ModelFit[], generationTime: number | null): LineageRates {
@@ -156,10 +157,12 @@ export function lineageRates(lineage: Lineage, fits: readonly ModelFit[], genera
   const model: ModelRate[] = [];
   for (const fit of fits) {
     if (!fit.converged) continue;
+    // Which parameters are rates of the lineage, and of which kind, each model says (`ParameterSpec.rate`).
+    const specs = findModel(fit.id)?.parameters ?? [];
     for (const [name, estimate] of Object.entries(fit.parameters)) {
       const value = estimate.estimate;
       if (value === null) continue;
-      const kind = /(^|_)drift$/.test(name) ? 'drift' : /(^|_)step_variance$/.test(name) ? 'step-variance' : null;
+      const kind = specs.find((spec) => spec.name === name)?.rate ?? null;
       if (kind === null) continue;
       const perUnitToMyr = yearsPerUnit === null ? null : 1e6 / yearsPerUnit;
       const unitsPerGeneration = yearsPerUnit === null || generationTime === null ? null : generationTime / yearsPerUnit;

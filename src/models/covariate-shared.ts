@@ -1,4 +1,14 @@
 import type { Lineage } from '../lineage.js';
+import type { MethodsNote } from './model.js';
+
+/** The report's methods sentence of the covariate-tracking models (once for the family). */
+export const covariateMethodsNote: MethodsNote = {
+  key: 'covariate',
+  sentence: (options) => {
+    const file = options.covariate_file;
+    return `In the covariate-tracking models the expected trait mean is a linear function of an environmental covariate measured at each horizon${typeof file === 'string' ? ` (from ${file})` : ''}.`;
+  },
+};
 
 /**
  * Why a lineage's covariate cannot be used, or null: it must be present at

@@ -1,5 +1,5 @@
 import { buildCovariance, type EvolutionModel } from './model.js';
-import { covariateIsConstant, covariateProblem } from './covariate-shared.js';
+import { covariateIsConstant, covariateMethodsNote, covariateProblem } from './covariate-shared.js';
 import { fillWalkDynamics, stepVarianceRange } from './walk-dynamics.js';
 
 /**
@@ -22,10 +22,13 @@ export const covariateWalk: EvolutionModel = {
   label: 'covariate-following walk (steps follow covariate changes plus random-walk noise)',
   summary: 'A random walk from ancestral_mean whose steps add covariate_slope × the change in the covariate to random steps with step_variance per time unit.',
   citation: 'After Hunt, G., Wicaksono, S. A., Brown, J. E. & Macleod, K. G. (2010). Climate-driven body-size trends in the ostracod fauna of the deep Indian Ocean. Palaeontology 53:1255-1268.',
+  referenceKeys: ['huntEtAl2010'],
+  help: { heading: 'covariate-walk', lines: ['random walk whose steps add covariate_slope x the change in the covariate', 'to random steps with step_variance (K = 3)'] },
+  methodsNote: covariateMethodsNote,
   parameters: [
     { name: 'ancestral_mean', label: 'ancestral mean', role: 'location', unit: { trait: 1, time: 0 }, lowerBound: Number.NEGATIVE_INFINITY },
     { name: 'covariate_slope', label: 'slope on covariate changes', role: 'location', unit: { trait: 1, time: 0 }, lowerBound: Number.NEGATIVE_INFINITY },
-    { name: 'step_variance', label: 'step variance', role: 'variance', unit: { trait: 2, time: -1 }, lowerBound: 0 },
+    { name: 'step_variance', label: 'step variance', role: 'variance', unit: { trait: 2, time: -1 }, lowerBound: 0, rate: 'step-variance' },
   ],
   process: [{ name: 'step_variance', allowZero: true, range: (lineage) => stepVarianceRange(lineage) }],
   minimumHorizons: 4,

@@ -1,6 +1,6 @@
 import { buildCovariance, sliceLineage, stasisVarianceRange, type EvolutionModel, type LikelihoodBlock, type ParameterSpec } from './model.js';
 import { directionalWalk } from './directional-walk.js';
-import { minimumSegmentOf, shiftEstimates, shiftIndicesFrom, shiftPlacements, shiftsOf } from './punctuated-shifts.js';
+import { minimumSegmentOf, shiftEstimates, shiftIndicesFrom, shiftMethodsNote, shiftPlacements, shiftsOf } from './punctuated-shifts.js';
 import { randomWalk } from './random-walk.js';
 import { stasis } from './stasis.js';
 import { stepVarianceRange } from './walk-dynamics.js';
@@ -10,8 +10,20 @@ export type SegmentMode = 'stasis' | 'random-walk' | 'directional-walk';
 
 const modeWords: Record<SegmentMode, string> = { stasis: 'stasis', 'random-walk': 'random walk', 'directional-walk': 'directional walk' };
 
-const location = (name: string, label: string, time = 0): ParameterSpec => ({ name, label, role: 'location', unit: { trait: 1, time }, lowerBound: Number.NEGATIVE_INFINITY });
-const variance = (name: string, label: string, time = 0): ParameterSpec => ({ name, label, role: 'variance', unit: { trait: 2, time }, lowerBound: 0 });
+const modeShiftHelp = {
+  heading: 'FIRST-then-SECOND',
+  lines: [
+    'mode shift: one shift between two different modes from stasis, random-walk,',
+    'directional-walk (all 6 ordered pairs, e.g. stasis-then-random-walk). A stasis',
+    'segment has its own mean and variance; a walk after the shift continues from',
+    'the latent lineage mean at the last horizon before it; a walk first starts at',
+    'ancestral_mean (K = its parameters + 1: 4 to 6)',
+  ],
+};
+
+// A location per time unit is a segment's drift, a variance per time unit its step variance: rates of the lineage (`--rates`).
+const location = (name: string, label: string, time = 0): ParameterSpec => ({ name, label, role: 'location', unit: { trait: 1, time }, lowerBound: Number.NEGATIVE_INFINITY, ...(time === -1 ? { rate: 'drift' as const } : {}) });
+const variance = (name: string, label: string, time = 0): ParameterSpec => ({ name, label, role: 'variance', unit: { trait: 2, time }, lowerBound: 0, ...(time === -1 ? { rate: 'step-variance' as const } : {}) });
 
 /**
  * A mode shift: one shift splits the sequence into two segments that follow
@@ -100,6 +112,10 @@ export function modeShift(first: SegmentMode, second: SegmentMode): EvolutionMod
     label: `mode shift: ${modeWords[first]}, then ${modeWords[second]}`,
     summary: `One shift: ${modeWords[first]} up to the shift, ${modeWords[second]} after it${secondIsWalk ? ' (the walk continues from the latent lineage mean at the last horizon before the shift)' : ' (a stasis segment with its own mean and variance)'}; shift position searched exhaustively.`,
     citation: 'After Hunt, G., Hopkins, M. J. & Lidgard, S. (2015). Simple versus complex models of trait evolution and stasis as a response to environmental change. PNAS 112:4885-4890.',
+    referenceKeys: ['huntHopkinsLidgard2015'],
+    methodsNote: shiftMethodsNote,
+    // The six pairs share one help entry, given by the first of them.
+    ...(first === 'stasis' && second === 'random-walk' ? { help: modeShiftHelp } : {}),
     parameters: [...locations, ...variances],
     process: variances.map((spec) => ({
       name: spec.name,

@@ -20,6 +20,62 @@ export interface ParameterSpec {
   readonly unit: UnitPowers;
   /** Lower bound of the parameter (0 for variances and alpha; -Infinity for locations). */
   readonly lowerBound: number;
+  /**
+   * What kind of rate of the lineage mean this parameter is, for `--rates`
+   * (darwins, haldanes, Lynch's Delta): a drift (trait per time) or a step
+   * variance (trait^2 per time). Left out for parameters that are not a rate
+   * of the lineage itself (e.g. the movement of an optimum).
+   */
+  readonly rate?: 'drift' | 'step-variance';
+  /** Set on a rate parameter such as alpha: the fit also reports half_life = ln 2 / value, with its interval. */
+  readonly halfLife?: boolean;
+  /**
+   * A location parameter that is not finite where the first process axis
+   * sits at its lower limit 0 (ou's optimum as alpha -> 0): there the
+   * parameter is reported as null, design coefficient `coefficient` is
+   * reported instead as the derived quantity `derived` (unit `unit`), and its
+   * sign tells on which side the parameter's interval is open.
+   */
+  readonly runaway?: RunawayAtLimit;
+}
+
+/** How a location parameter runs off to ±∞ at the zero limit of the first process axis (see {@link ParameterSpec.runaway}). */
+export interface RunawayAtLimit {
+  /** Index of the design coefficient that stays finite at the limit. */
+  readonly coefficient: number;
+  /** Name of the derived quantity reporting that coefficient (e.g. `limit_drift`). */
+  readonly derived: string;
+  readonly unit: UnitPowers;
+  /** Name of the limit the derived quantity is reported at (e.g. `alpha-zero`). */
+  readonly limit: string;
+}
+
+/** A model's entry in `stratotrend fit --help`; a family of models shares one entry, given by one of them. */
+export interface HelpEntry {
+  /** The id, or the ids or pattern the entry covers (e.g. "punctuated-1, punctuated-2"). */
+  readonly heading: string;
+  /** The text, already wrapped; a heading of up to 16 characters has the first line beside it. */
+  readonly lines: readonly string[];
+}
+
+/** A sentence the report's methods paragraph adds when a model is fitted; models sharing `key` add it once. */
+export interface MethodsNote {
+  readonly key: string;
+  /** The sentence, given the run's recorded options (e.g. `min_segment`, `covariate_file`). */
+  sentence(options: Readonly<Record<string, unknown>>): string;
+}
+
+/**
+ * How a fit at a limit where some parameters are not finite is drawn:
+ * with the expected trajectory of model `drawnAs` (the model the fit equals
+ * there) at `parameters`.
+ */
+export interface LimitDrawing {
+  applies(estimates: Readonly<Record<string, number>>, derived: Readonly<Record<string, number>>): boolean;
+  readonly drawnAs: string;
+  parameters(estimates: Readonly<Record<string, number>>, derived: Readonly<Record<string, number>>): Record<string, number>;
+  /** Words for the figure's note. */
+  readonly words: string;
 }
 
 /**
@@ -64,6 +120,19 @@ export interface EvolutionModel {
   readonly summary: string;
   /** Where the model's likelihood comes from. */
   readonly citation: string;
+  /**
+   * Keys of the report's reference catalogue (`render/report/references.ts`)
+   * the model cites; without them the report cites `citation` itself.
+   */
+  readonly referenceKeys?: readonly string[];
+  /** Its entry in `stratotrend fit --help` (a family's other members leave it out). */
+  readonly help?: HelpEntry;
+  /** A sentence the report's methods paragraph adds when the model is fitted (shared by a family). */
+  readonly methodsNote?: MethodsNote;
+  /** The report's reading caution when this model is best supported: a trend, or a form of stasis. */
+  readonly caution?: 'directional' | 'stasis';
+  /** How figures draw a fit at a limit where some parameters are not finite. */
+  readonly limitDrawing?: LimitDrawing;
   readonly parameters: readonly ParameterSpec[];
   /** Searched parameters in search order; the remaining location parameters are profiled by GLS. */
   readonly process: readonly ProcessAxis[];

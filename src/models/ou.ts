@@ -34,11 +34,23 @@ export const ornsteinUhlenbeck: EvolutionModel = {
   label: 'Ornstein–Uhlenbeck (approach to an optimum)',
   summary: 'The lineage mean is pulled toward an optimum at rate alpha while wandering with step variance; it starts at the ancestral mean.',
   citation: 'Hunt, G., Bell, M. A. & Travis, M. P. (2008). Evolution toward a new adaptive optimum: phenotypic evolution in a fossil stickleback lineage. Evolution 62:700-710.',
+  referenceKeys: ['huntBellTravis2008'],
+  help: { heading: 'ou', lines: ['Ornstein–Uhlenbeck approach from ancestral_mean to optimum at rate alpha (K = 4)'] },
+  limitDrawing: {
+    applies: (estimates, derived) => estimates.alpha === 0 && !('optimum' in estimates) && 'limit_drift' in derived,
+    drawnAs: 'directional-walk',
+    parameters: (estimates, derived) => ({ ancestral_mean: estimates.ancestral_mean, drift: derived.limit_drift, step_variance: estimates.step_variance }),
+    words: 'alpha at its limit 0, drawn as the directional walk it equals there',
+  },
   parameters: [
     { name: 'ancestral_mean', label: 'ancestral mean', role: 'location', unit: { trait: 1, time: 0 }, lowerBound: Number.NEGATIVE_INFINITY },
-    { name: 'optimum', label: 'optimum', role: 'location', unit: { trait: 1, time: 0 }, lowerBound: Number.NEGATIVE_INFINITY },
-    { name: 'alpha', label: 'alpha (strength of attraction)', role: 'rate', unit: { trait: 0, time: -1 }, lowerBound: 0 },
-    { name: 'step_variance', label: 'step variance', role: 'variance', unit: { trait: 2, time: -1 }, lowerBound: 0 },
+    {
+      name: 'optimum', label: 'optimum', role: 'location', unit: { trait: 1, time: 0 }, lowerBound: Number.NEGATIVE_INFINITY,
+      // At alpha = 0 the second coefficient of the mean is the drift (optimum − a)·alpha of the directional walk ou equals there.
+      runaway: { coefficient: 1, derived: 'limit_drift', unit: { trait: 1, time: -1 }, limit: 'alpha-zero' },
+    },
+    { name: 'alpha', label: 'alpha (strength of attraction)', role: 'rate', unit: { trait: 0, time: -1 }, lowerBound: 0, halfLife: true },
+    { name: 'step_variance', label: 'step variance', role: 'variance', unit: { trait: 2, time: -1 }, lowerBound: 0, rate: 'step-variance' },
   ],
   process: [
     // alpha = 0 itself is evaluated exactly (the basis and process variance are

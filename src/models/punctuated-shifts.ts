@@ -1,5 +1,14 @@
 import type { Lineage } from '../lineage.js';
-import { defaultMinimumSegment, varianceScale, type Configuration, type ConfigurationOptions } from './model.js';
+import { defaultMinimumSegment, varianceScale, type Configuration, type ConfigurationOptions, type MethodsNote } from './model.js';
+
+/** The report's methods sentence of every model with shifts (once for all of them). */
+export const shiftMethodsNote: MethodsNote = {
+  key: 'shifts',
+  sentence: (options) => {
+    const segment = options.min_segment;
+    return `For the models with shifts, every admissible shift position was tried (exhaustive search${typeof segment === 'number' ? `, at least ${segment} horizons per segment` : ''}), and each shift position counts as one parameter in K.`;
+  },
+};
 
 /**
  * Every admissible placement of `count` shifts in a sequence of `size`

@@ -13,9 +13,11 @@ export const randomWalk: EvolutionModel = {
   label: 'unbiased random walk',
   summary: 'Brownian motion from the ancestral mean with no preferred direction: steps have mean 0 and variance step_variance per unit time.',
   citation: 'Hunt, G. (2006). Fitting and comparing models of phyletic evolution: random walks and beyond. Paleobiology 32:578-601.',
+  referenceKeys: ['hunt2006'],
+  help: { heading: 'random-walk', lines: ['unbiased random walk from ancestral_mean with step_variance per time unit (K = 2)'] },
   parameters: [
     { name: 'ancestral_mean', label: 'ancestral mean', role: 'location', unit: { trait: 1, time: 0 }, lowerBound: Number.NEGATIVE_INFINITY },
-    { name: 'step_variance', label: 'step variance', role: 'variance', unit: { trait: 2, time: -1 }, lowerBound: 0 },
+    { name: 'step_variance', label: 'step variance', role: 'variance', unit: { trait: 2, time: -1 }, lowerBound: 0, rate: 'step-variance' },
   ],
   process: [{ name: 'step_variance', allowZero: true, range: (lineage) => stepVarianceRange(lineage) }],
   minimumHorizons: 3,

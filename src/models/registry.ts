@@ -16,9 +16,8 @@ export const classicModels: readonly EvolutionModel[] = [strictStasis, stasis, r
  */
 export const extendedModels: readonly EvolutionModel[] = [...classicModels, ...extensionModels];
 
-const registry = new Map<string, EvolutionModel>(classicModels.map((model) => [model.id, model]));
-/** The extended models are found by id but are not part of {@link allModels} (which lists the classic and registered ones). */
-const extensionsById = new Map<string, EvolutionModel>(extensionModels.map((model) => [model.id, model]));
+/** Every model by id: the classic and extended ones, and any registered later. */
+const registry = new Map<string, EvolutionModel>(extendedModels.map((model) => [model.id, model]));
 
 /** Named model sets for `--models`. */
 export const modelSets: Record<string, () => readonly EvolutionModel[]> = {
@@ -33,10 +32,10 @@ export function registerModel(model: EvolutionModel): void {
 
 /** A model by id, or undefined. */
 export function findModel(id: string): EvolutionModel | undefined {
-  return registry.get(id) ?? extensionsById.get(id);
+  return registry.get(id);
 }
 
-/** Every registered model. */
+/** Every model, classic and extended, in table order. */
 export function allModels(): EvolutionModel[] {
   return [...registry.values()];
 }

@@ -15,6 +15,9 @@ export const stasis: EvolutionModel = {
   label: 'stasis',
   summary: 'Horizon means fluctuate independently about a constant stasis mean with variance stasis_variance (plus sampling error).',
   citation: 'Hunt, G. (2006). Fitting and comparing models of phyletic evolution: random walks and beyond. Paleobiology 32:578-601.',
+  referenceKeys: ['hunt2006'],
+  help: { heading: 'stasis', lines: ['independent fluctuation about stasis_mean with stasis_variance (K = 2)'] },
+  caution: 'stasis',
   parameters: [
     { name: 'stasis_mean', label: 'stasis mean', role: 'location', unit: { trait: 1, time: 0 }, lowerBound: Number.NEGATIVE_INFINITY },
     { name: 'stasis_variance', label: 'stasis variance', role: 'variance', unit: { trait: 2, time: 0 }, lowerBound: 0 },

@@ -16,6 +16,9 @@ export const strictStasis: EvolutionModel = {
   summary: 'No change: every horizon mean is the stasis mean plus sampling error alone.',
   // The paper that introduced strict stasis as a model of its own (issue 19 checked the attribution; it was the 2008 ou paper before).
   citation: 'Hunt, G., Hopkins, M. J. & Lidgard, S. (2015). Simple versus complex models of trait evolution and stasis as a response to environmental change. PNAS 112:4885-4890.',
+  referenceKeys: ['huntHopkinsLidgard2015'],
+  help: { heading: 'strict-stasis', lines: ['no change: horizon means differ from stasis_mean by sampling error only (K = 1)'] },
+  caution: 'stasis',
   parameters: [
     { name: 'stasis_mean', label: 'stasis mean', role: 'location', unit: { trait: 1, time: 0 }, lowerBound: Number.NEGATIVE_INFINITY },
   ],

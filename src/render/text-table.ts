@@ -76,8 +76,9 @@ export function lineageTable(fit: LineageFit): string {
       return `${spec.name} ${formatNumber(estimate.estimate)}${shown ? ' ' + unitText : ''} ${interval}${bound}`;
     });
     for (const [name, estimate] of Object.entries(model.derived)) {
-      // half_life is a time; limit_drift (ou at the alpha-zero limit) is a drift, trait per time.
-      const derivedUnit = name === 'limit_drift' ? unitLabel({ trait: 1, time: -1 }, unit, traitLabel) : unit;
+      // half_life is a time; a quantity reported at a limit (ou's limit_drift at alpha = 0) has the unit its parameter's `runaway` gives.
+      const runaway = specs.find((spec) => spec.runaway?.derived === name)?.runaway;
+      const derivedUnit = runaway ? unitLabel(runaway.unit, unit, traitLabel) : unit;
       // "open" only where the interval reaches a limit (half_life as alpha -> 0); limit_drift has no interval at all.
       parts.push(`${name} ${formatNumber(estimate.estimate)} ${derivedUnit} [${formatNumber(estimate.lower)}, ${estimate.upper === null && estimate.upperAtBound ? 'open' : formatNumber(estimate.upper)}]`);
     }

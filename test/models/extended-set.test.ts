@@ -8,7 +8,7 @@ describe('the extended model set', () => {
     expect(extended.length).toBe(5 + 4 + 6 + 2);
     expect(new Set(extended.map((model) => model.id)).size).toBe(extended.length);
     for (const model of extended) expect(findModel(model.id)).toBe(model);
-    // allModels() keeps listing the classic (and explicitly registered) models only, as before.
-    expect(allModels().map((model) => model.id)).toEqual(classicModels.map((model) => model.id));
+    // One registry (issue 22): allModels() lists every model, classic and extended, in table order.
+    expect(allModels().map((model) => model.id)).toEqual(extended.map((model) => model.id));
   });
 });

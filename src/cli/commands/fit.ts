@@ -1,4 +1,7 @@
 import { InvalidArgumentError, type Command } from 'commander';
+import { extensionModels } from '../../models/extensions.js';
+import type { EvolutionModel } from '../../models/model.js';
+import { classicModels } from '../../models/registry.js';
 import { addFigureOptions } from './render.js';
 import { addAgeModelOptions, addFittingOptions, addSampleOptions } from './shared.js';
 
@@ -36,33 +39,27 @@ function parseThreads(value: string): number {
 function modelHelp(): string {
   return `
 Models (ids as in --models and the JSON):
-  strict-stasis     no change: horizon means differ from stasis_mean by sampling error only (K = 1)
-  stasis            independent fluctuation about stasis_mean with stasis_variance (K = 2)
-  random-walk       unbiased random walk from ancestral_mean with step_variance per time unit (K = 2)
-  directional-walk  random walk with drift per time unit (K = 3)
-  ou                Ornstein–Uhlenbeck approach from ancestral_mean to optimum at rate alpha (K = 4)
+${helpEntries(classicModels)}
 
 Extended set (--models extended adds these; segments are numbered from the oldest; every shift
 position is found by exhaustive search over positions leaving each segment >= --min-segment
 horizons, and each position counts 1 in K; the search's time grows with the square of the
 horizons: a run estimated over a minute is announced first, and a lineage where a model would
 search more than 2,000,000 placements — two shifts beyond about 2,000 horizons — is refused):
-  punctuated-1, punctuated-2
-                    1 or 2 shifts split the sequence into stasis segments with their own means
-                    (segment_K_mean) and one shared stasis_variance (K = 4, 6)
-  punctuated-1-separate, punctuated-2-separate
-                    the same with a stasis variance per segment (segment_K_variance) (K = 5, 8)
-  FIRST-then-SECOND mode shift: one shift between two different modes from stasis, random-walk,
-                    directional-walk (all 6 ordered pairs, e.g. stasis-then-random-walk). A stasis
-                    segment has its own mean and variance; a walk after the shift continues from
-                    the latent lineage mean at the last horizon before it; a walk first starts at
-                    ancestral_mean (K = its parameters + 1: 4 to 6)
-  covariate-stasis  mean = covariate_intercept + covariate_slope x covariate, independent
-                    stasis_variance about it (K = 3); needs a covariate column or --covariate-file
-  covariate-walk    random walk whose steps add covariate_slope x the change in the covariate
-                    to random steps with step_variance (K = 3)
+${helpEntries(extensionModels)}
 
 Input columns (names case-insensitive): section, trait (optional); one of age (before present,
 older = larger), time (elapsed), or height / depth with --age-model FILE; n, mean, and sd or var (summary form) or value (specimen form);
 covariate (optional, for the covariate models).`;
+}
+
+/** The help entries the models give about themselves (`EvolutionModel.help`): a heading of up to 17 characters has its first line beside it. */
+function helpEntries(models: readonly EvolutionModel[]): string {
+  const indent = ' '.repeat(20);
+  return models
+    .flatMap((model) => (model.help ? [model.help] : []))
+    .map(({ heading, lines }) => (heading.length < 18
+      ? [`  ${heading.padEnd(18)}${lines[0]}`, ...lines.slice(1).map((line) => indent + line)]
+      : [`  ${heading}`, ...lines.map((line) => indent + line)]).join('\n'))
+    .join('\n');
 }

@@ -119,30 +119,6 @@ export interface ModelCurve {
   readonly limit: string | null;
 }
 
-/**
- * A fitted model at a limit where its own parameters do not exist but it
- * equals another model: ou at alpha = 0 (`alpha-zero`) is the directional
- * walk with drift `limit_drift` = (optimum − a) alpha (MODELS.md; the
- * optimum is then infinite and fit.json reports it as null).
- */
-interface LimitRule {
-  readonly model: string;
-  applies(model: FigureModel): boolean;
-  readonly drawnAs: string;
-  parameters(model: FigureModel): Record<string, number>;
-  readonly words: string;
-}
-
-const limitRules: readonly LimitRule[] = [
-  {
-    model: 'ou',
-    applies: (model) => model.estimates.alpha === 0 && !('optimum' in model.estimates) && 'limit_drift' in model.derived,
-    drawnAs: 'directional-walk',
-    parameters: (model) => ({ ancestral_mean: model.estimates.ancestral_mean, drift: model.derived.limit_drift, step_variance: model.estimates.step_variance }),
-    words: 'alpha at its limit 0, drawn as the directional walk it equals there',
-  },
-];
-
 /** Why a model's curve cannot be drawn, or the curve. */
 export type ModelCurveResult = { readonly curve: ModelCurve; readonly reason: null } | { readonly curve: null; readonly reason: string };
 
@@ -168,14 +144,21 @@ export function chosenModel(lineage: FigureLineage, requested: string | null): {
  * @param lineage - the lineage document
  * @param axis - the time axis the curve is drawn on
  * @param requested - model id, or null for the best-supported model
+ *
+ * A fitted model at a limit where its own parameters do not exist is drawn
+ * as the model says (`EvolutionModel.limitDrawing`): ou at alpha = 0
+ * (`alpha-zero`) as the directional walk with drift `limit_drift` =
+ * (optimum − a) alpha (MODELS.md; the optimum is then infinite and fit.json
+ * reports it as null).
  */
 export function modelCurve(lineage: FigureLineage, axis: TimeAxis, requested: string | null): ModelCurveResult {
   const { model, reason } = chosenModel(lineage, requested);
   if (!model) return { curve: null, reason: reason ?? 'no model' };
-  const rule = limitRules.find((candidate) => candidate.model === model.id && candidate.applies(model));
+  const drawing = findModel(model.id)?.limitDrawing;
+  const rule = drawing && drawing.applies(model.estimates, model.derived) ? drawing : null;
   const definition = findModel(rule ? rule.drawnAs : model.id);
   if (!definition) return { curve: null, reason: `model "${model.id}" is not known to this version of the tool` };
-  const estimates = rule ? rule.parameters(model) : model.estimates;
+  const estimates = rule ? rule.parameters(model.estimates, model.derived) : model.estimates;
   const missing = definition.parameters.filter((parameter) => !(parameter.name in estimates) || !Number.isFinite(estimates[parameter.name])).map((parameter) => parameter.name);
   if (missing.length > 0) return { curve: null, reason: `${model.label} was not fitted (no estimate of ${missing.join(', ')})` };
   const span = lineage.time[lineage.time.length - 1];

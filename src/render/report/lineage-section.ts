@@ -1,3 +1,4 @@
+import { findModel } from '../../models/registry.js';
 import { formatNumber, traitUnitLabel } from '../units.js';
 import { boundCaution, closeSupportCaution, directionalCaution, stasisCaution } from './cautions.js';
 import { summariseData, type DataSummary } from './data-summary.js';
@@ -163,8 +164,9 @@ function conclusion(lineage: LineageView): string {
   }
   const close = compared.filter((model) => model.id !== best.id && model.delta_aicc !== null && model.delta_aicc < 2);
   if (close.length > 0) cautions.push(closeSupportCaution);
-  if (best.id === 'directional-walk') cautions.push(directionalCaution);
-  if (best.id === 'stasis' || best.id === 'strict-stasis') cautions.push(stasisCaution);
+  const reading = findModel(best.id)?.caution;
+  if (reading === 'directional') cautions.push(directionalCaution);
+  if (reading === 'stasis') cautions.push(stasisCaution);
   if (lineage.models.some((model) => model.flags.length > 0)) cautions.push(boundCaution);
   const closeWords = close.length > 0
     ? ` ${close.map((model) => `${model.label} (weight ${model.weight?.toFixed(3)}, ΔAICc ${model.delta_aicc?.toFixed(2)})`).join(' and ')} ${close.length === 1 ? 'is' : 'are'} within 2 AICc units.`

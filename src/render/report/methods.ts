@@ -1,3 +1,5 @@
+import type { MethodsNote } from '../../models/model.js';
+import { findModel } from '../../models/registry.js';
 import type { FitDocumentView, LineageView, ModelView } from './document-view.js';
 import { findReference, modelReferenceKeys, uniqueKeys, type Reference } from './references.js';
 
@@ -293,23 +295,13 @@ export function methodsText(document: FitDocumentView, analyses: AnalysesRun = {
     cites: [],
     paragraph: 'models',
   });
-  const ids = models.map((model) => model.id);
-  if (ids.some((id) => /^punctuated-|-then-/.test(id))) {
-    const segment = provenance.options.min_segment;
-    sentences.push({
-      text: `For the models with shifts, every admissible shift position was tried (exhaustive search${typeof segment === 'number' ? `, at least ${segment} horizons per segment` : ''}), and each shift position counts as one parameter in K.`,
-      cites: [],
-      paragraph: 'models',
-    });
+  // Each family's sentence once (`EvolutionModel.methodsNote`), in table order.
+  const notes = new Map<string, MethodsNote>();
+  for (const model of models) {
+    const note = findModel(model.id)?.methodsNote;
+    if (note && !notes.has(note.key)) notes.set(note.key, note);
   }
-  if (ids.some((id) => /^covariate-/.test(id))) {
-    const file = provenance.options.covariate_file;
-    sentences.push({
-      text: `In the covariate-tracking models the expected trait mean is a linear function of an environmental covariate measured at each horizon${typeof file === 'string' ? ` (from ${file})` : ''}.`,
-      cites: [],
-      paragraph: 'models',
-    });
-  }
+  for (const note of notes.values()) sentences.push({ text: note.sentence(provenance.options), cites: [], paragraph: 'models' });
   sentences.push({
     text: 'The likelihood is the exact joint multivariate-normal density of all horizon means, with the model\'s process covariance plus the sampling variances on the diagonal; it was computed in a number of steps proportional to the number of horizons by a Kalman filter on the state-space form of each model, with the parameters that enter the mean linearly estimated exactly by generalised least squares through the augmented filter.',
     cites: ['kalman1960', 'deJong1991'], paragraph: 'models',

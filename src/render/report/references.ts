@@ -127,39 +127,24 @@ export const referenceCatalogue: Readonly<Record<string, Reference>> = {
 };
 
 /**
- * The sources of each model by id, each the paper that introduced the model
- * in this form: stasis and the two walks Hunt 2006; ou Hunt, Bell & Travis
- * 2008; strict stasis (means differing by sampling error only) Hunt, Hopkins
- * & Lidgard 2015, whose abstract names "a strict version of stasis that
- * entails no real evolutionary changes" (checked against the published
- * abstract, issue 19; the earlier entry cited the 2008 ou paper). The extended models follow
- * theirs (punctuated: Hunt 2008; mode shifts: Hunt, Hopkins & Lidgard 2015;
- * covariate tracking: Hunt et al. 2010).
- */
-const modelSources: Readonly<Record<string, readonly string[]>> = {
-  'strict-stasis': ['huntHopkinsLidgard2015'],
-  stasis: ['hunt2006'],
-  'random-walk': ['hunt2006'],
-  'directional-walk': ['hunt2006'],
-  ou: ['huntBellTravis2008'],
-};
-
-/**
- * The reference keys for a model id. Families of the extended set are
- * matched by id; any other model cites the `citation` of its model file,
- * under the key `model:<id>` (see {@link findReference}).
+ * The reference keys for a model id: the model's own `referenceKeys` (each
+ * model file names the paper that introduced it in this form: stasis and
+ * the two walks Hunt 2006; ou Hunt, Bell & Travis 2008; strict stasis
+ * Hunt, Hopkins & Lidgard 2015, whose abstract names "a strict version of
+ * stasis that entails no real evolutionary changes", checked against the
+ * published abstract, issue 19; punctuated Hunt 2008; mode shifts Hunt,
+ * Hopkins & Lidgard 2015; covariate tracking Hunt et al. 2010); a model
+ * without them cites the `citation` of its model file, under the key
+ * `model:<id>` (see {@link findReference}); an unknown id Hunt 2006.
  *
  * @example
  * modelReferenceKeys('ou'); // ['huntBellTravis2008']
  * modelReferenceKeys('stasis-then-random-walk'); // ['huntHopkinsLidgard2015']
  */
 export function modelReferenceKeys(id: string): readonly string[] {
-  const known = modelSources[id];
-  if (known) return known;
-  if (/^punctuated-/.test(id)) return ['hunt2008'];
-  if (/-then-/.test(id)) return ['huntHopkinsLidgard2015'];
-  if (/^covariate-/.test(id)) return ['huntEtAl2010'];
-  return findModel(id) ? [`model:${id}`] : ['hunt2006'];
+  const model = findModel(id);
+  if (!model) return ['hunt2006'];
+  return model.referenceKeys ?? [`model:${id}`];
 }
 
 /**
