@@ -2,13 +2,16 @@ import { covariateStasis } from './covariate-stasis.js';
 import { covariateWalk } from './covariate-walk.js';
 import type { EvolutionModel } from './model.js';
 import { modeShiftModels } from './mode-shift.js';
+import { movingOptimum } from './moving-optimum.js';
+import { optimumShift } from './optimum-shift.js';
 import { punctuatedOne, punctuatedTwo } from './punctuated.js';
 import { punctuatedOneSeparate, punctuatedTwoSeparate } from './punctuated-separate.js';
 
 /**
  * The models beyond the classic five, in the order tables list them:
  * punctuated (1 and 2 shifts, shared or separate variances), the six mode
- * shifts, and covariate tracking (stasis and walk variants).
+ * shifts, covariate tracking (stasis and walk variants), and the models
+ * whose adaptive landscape changes (issue 16).
  */
 export const extensionModels: readonly EvolutionModel[] = [
   punctuatedOne,
@@ -18,4 +21,6 @@ export const extensionModels: readonly EvolutionModel[] = [
   ...modeShiftModels,
   covariateStasis,
   covariateWalk,
+  movingOptimum,
+  optimumShift,
 ];

@@ -1,3 +1,4 @@
+import type { StateSpace } from '../engine/state-space.js';
 import type { Lineage } from '../lineage.js';
 import { buildCovariance, timeSpan, varianceScale, type EvolutionModel } from './model.js';
 
@@ -6,8 +7,24 @@ export function relaxedTime(rate: number, t: number): number {
   return rate === 0 ? t : -Math.expm1(-rate * t) / rate;
 }
 
+/**
+ * Latent dynamics of ou (and the models built on it): started exactly at the
+ * ancestral mean, transition exp(-alpha tau_i), process variance
+ * sigma2 (1 - exp(-2 alpha tau_i)) / (2 alpha).
+ */
+export function fillAttractionDynamics(lineage: Lineage, alpha: number, stepVariance: number, space: StateSpace): void {
+  const time = lineage.time;
+  space.transition[0] = 0;
+  space.processVariance[0] = 0;
+  for (let i = 1; i < space.size; i++) {
+    const interval = time[i] - time[i - 1];
+    space.transition[i] = Math.exp(-alpha * interval);
+    space.processVariance[i] = stepVariance * relaxedTime(2 * alpha, interval);
+  }
+}
+
 /** Ranges of alpha searched: alpha * span = 1e-5 (the random-walk limit) to alpha * shortest interval = 40 (the stasis-like limit). */
-function alphaRange(lineage: Lineage): readonly [number, number] {
+export function alphaRange(lineage: Lineage): readonly [number, number] {
   const { span, shortest } = timeSpan(lineage);
   return [1e-5 / span, 40 / shortest];
 }
@@ -73,18 +90,11 @@ export const ornsteinUhlenbeck: EvolutionModel = {
   parameterCount: () => 4,
   fillSpace(lineage, process, space) {
     const alpha = process[0];
-    const stepVariance = process[1];
     const time = lineage.time;
-    space.transition[0] = 0;
-    space.processVariance[0] = 0;
+    fillAttractionDynamics(lineage, alpha, process[1], space);
     for (let i = 0; i < space.size; i++) {
       space.design[2 * i] = Math.exp(-alpha * time[i]);
       space.design[2 * i + 1] = relaxedTime(alpha, time[i]);
-      if (i > 0) {
-        const interval = time[i] - time[i - 1];
-        space.transition[i] = Math.exp(-alpha * interval);
-        space.processVariance[i] = stepVariance * relaxedTime(2 * alpha, interval);
-      }
     }
   },
   // At alpha = 0 the optimum is not finite (it ran away with (optimum - a) alpha -> drift); it is reported as null.

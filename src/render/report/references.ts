@@ -119,6 +119,26 @@ export const referenceCatalogue: Readonly<Record<string, Reference>> = {
     cite: 'Wilks 1938',
     entry: 'Wilks, S. S. (1938). The large-sample distribution of the likelihood ratio for testing composite hypotheses. Annals of Mathematical Statistics 9:60–62.',
   },
+  hansen1997: {
+    key: 'hansen1997',
+    cite: 'Hansen 1997',
+    entry: 'Hansen, T. F. (1997). Stabilizing selection and the comparative analysis of adaptation. Evolution 51:1341–1351.',
+  },
+  hansenPienaarOrzack2008: {
+    key: 'hansenPienaarOrzack2008',
+    cite: 'Hansen, Pienaar & Orzack 2008',
+    entry: 'Hansen, T. F., Pienaar, J. & Orzack, S. H. (2008). A comparative method for studying adaptation to a randomly evolving environment. Evolution 62:1965–1977.',
+  },
+  estesArnold2007: {
+    key: 'estesArnold2007',
+    cite: 'Estes & Arnold 2007',
+    entry: 'Estes, S. & Arnold, S. J. (2007). Resolving the paradox of stasis: models with stabilizing selection explain evolutionary divergence on all timescales. American Naturalist 169:227–244.',
+  },
+  voje2023: {
+    key: 'voje2023',
+    cite: 'Voje 2023',
+    entry: 'Voje, K. L. (2023). Fitting and evaluating univariate and multivariate models of within-lineage evolution. Paleobiology 49:747–764.',
+  },
   efronTibshirani1993: {
     key: 'efronTibshirani1993',
     cite: 'Efron & Tibshirani 1993',

@@ -1,0 +1,135 @@
+import { buildCovariance, type EvolutionModel } from './model.js';
+import { fillAttractionDynamics, ornsteinUhlenbeck, relaxedTime } from './ou.js';
+import { minimumSegmentOf, shiftEstimates, shiftIndicesFrom, shiftMethodsNote, shiftPlacements, shiftsOf } from './punctuated-shifts.js';
+
+/**
+ * Design row of the optimum shift at elapsed time t, given alpha and t_p
+ * (the time of the last horizon before the shift): the columns of the
+ * ancestral mean, of optimum_before · alpha and of optimum_after · alpha.
+ * At alpha = 0 they are 1, min(t, t_p) and max(0, t - t_p).
+ */
+function designRow(alpha: number, t: number, previousTime: number): [number, number, number] {
+  if (t <= previousTime) return [Math.exp(-alpha * t), relaxedTime(alpha, t), 0];
+  const since = t - previousTime;
+  return [Math.exp(-alpha * t), relaxedTime(alpha, previousTime) * Math.exp(-alpha * since), relaxedTime(alpha, since)];
+}
+
+/** Mean straight from the definition (alpha > 0): ou toward theta_1 up to t_p, then ou toward theta_2 from where the lineage is expected at t_p. */
+function definedMean(parameters: Record<string, number>, t: number, previousTime: number): number {
+  const { ancestral_mean: start, optimum_before: before, optimum_after: after, alpha } = parameters;
+  const early = (time: number): number => before + (start - before) * Math.exp(-alpha * time);
+  if (t <= previousTime) return early(t);
+  return after + (early(previousTime) - after) * Math.exp(-alpha * (t - previousTime));
+}
+
+/**
+ * Ornstein–Uhlenbeck evolution whose optimum shifts once: the optimum is
+ * optimum_before theta_1 up to t_p, the time of the last horizon before the
+ * shift, and optimum_after theta_2 from then on (horizon s, the shift index,
+ * is the first of the new segment, as in the other shift models); one alpha
+ * and one step variance throughout, the latent lineage mean continuous.
+ *
+ * E z(t) = theta_1 + (a - theta_1) exp(-alpha t) for t <= t_p, and
+ * theta_2 + (m_p - theta_2) exp(-alpha (t - t_p)) after, m_p = E z(t_p);
+ * covariance as ou. Parameters: ancestral_mean a, optimum_before,
+ * optimum_after (trait units), alpha (per time unit, >= 0), step_variance
+ * sigma2 (trait^2 per time unit, >= 0); K = 5 + 1 for the shift position,
+ * found by exhaustive search. Equal optima give ou. Derived: half_life.
+ * As alpha -> 0 the model is a walk whose drift changes at the shift,
+ * a + c_1 min(t, t_p) + c_2 max(0, t - t_p) (the optima run off to
+ * infinity), reported as `limit_drift_before` c_1 and `limit_drift_after` c_2.
+ *
+ * After Voje, K. L. (2023). Fitting and evaluating univariate and
+ * multivariate models of within-lineage evolution. Paleobiology 49:747-764
+ *, and Hansen, T. F.
+ * (1997). Stabilizing selection and the comparative analysis of adaptation.
+ * Evolution 51:1341-1351.
+ */
+export const optimumShift: EvolutionModel = {
+  id: 'optimum-shift',
+  label: 'optimum shift (Ornstein–Uhlenbeck whose optimum moves once)',
+  summary: 'The lineage mean is pulled at rate alpha toward optimum_before, then, from the last horizon before the shift, toward optimum_after; one alpha and step variance; shift position searched exhaustively.',
+  citation: 'Hansen, T. F. (1997). Stabilizing selection and the comparative analysis of adaptation. Evolution 51:1341-1351.',
+  referenceKeys: ['voje2023', 'hansen1997'],
+  methodsNote: shiftMethodsNote,
+  help: {
+    heading: 'optimum-shift',
+    lines: [
+      'ou whose optimum moves from optimum_before to optimum_after at the last horizon',
+      'before the shift; one alpha and step_variance (K = 6; equal optima are ou)',
+    ],
+  },
+  limitDrawing: {
+    applies: (estimates, derived) => estimates.alpha === 0 && 'limit_drift_before' in derived && 'limit_drift_after' in derived,
+    drawnAs: 'optimum-shift',
+    // The expectation reads the limit's drifts at alpha = 0; the optima are not finite there (0 stands in).
+    parameters: (estimates, derived) => ({
+      ...estimates, optimum_before: 0, optimum_after: 0,
+      limit_drift_before: derived.limit_drift_before, limit_drift_after: derived.limit_drift_after,
+    }),
+    words: 'alpha at its limit 0, drawn as the walk whose drift changes at the shift that it equals there',
+  },
+  parameters: [
+    { name: 'ancestral_mean', label: 'ancestral mean', role: 'location', unit: { trait: 1, time: 0 }, lowerBound: Number.NEGATIVE_INFINITY },
+    {
+      name: 'optimum_before', label: 'optimum before the shift', role: 'location', unit: { trait: 1, time: 0 }, lowerBound: Number.NEGATIVE_INFINITY,
+      runaway: { coefficient: 1, derived: 'limit_drift_before', unit: { trait: 1, time: -1 }, limit: 'alpha-zero' },
+    },
+    {
+      name: 'optimum_after', label: 'optimum after the shift', role: 'location', unit: { trait: 1, time: 0 }, lowerBound: Number.NEGATIVE_INFINITY,
+      runaway: { coefficient: 2, derived: 'limit_drift_after', unit: { trait: 1, time: -1 }, limit: 'alpha-zero' },
+    },
+    { name: 'alpha', label: 'alpha (strength of attraction)', role: 'rate', unit: { trait: 0, time: -1 }, lowerBound: 0, halfLife: true },
+    { name: 'step_variance', label: 'step variance', role: 'variance', unit: { trait: 2, time: -1 }, lowerBound: 0, rate: 'step-variance' },
+  ],
+  process: ornsteinUhlenbeck.process,
+  minimumHorizons: 6,
+  width: () => 3,
+  parameterCount: () => 6,
+  configurations: (lineage, options) => shiftPlacements(lineage.mean.length, 1, minimumSegmentOf(options, 3)),
+  shiftCount: 1,
+  fillSpace(lineage, process, space) {
+    const alpha = process[0];
+    const [shift] = shiftsOf(process, 2, 1);
+    const time = lineage.time;
+    const previousTime = time[shift - 1];
+    fillAttractionDynamics(lineage, alpha, process[1], space);
+    for (let i = 0; i < space.size; i++) {
+      const row = designRow(alpha, time[i], previousTime);
+      space.design[3 * i] = row[0];
+      space.design[3 * i + 1] = row[1];
+      space.design[3 * i + 2] = row[2];
+    }
+  },
+  toParameters: (coefficients, process, lineage) => ({
+    ancestral_mean: coefficients[0],
+    optimum_before: process[0] === 0 ? Number.NaN : coefficients[1] / process[0],
+    optimum_after: process[0] === 0 ? Number.NaN : coefficients[2] / process[0],
+    alpha: process[0],
+    step_variance: process[1],
+    ...shiftEstimates(lineage, shiftsOf(process, 2, 1)),
+  }),
+  constantCoefficients: (process) => Float64Array.of(1, process[0], process[0]),
+  fixLocation: (name, value, process) =>
+    name === 'optimum_before' ? { index: 1, coefficient: value * process[0] } : name === 'optimum_after' ? { index: 2, coefficient: value * process[0] } : { index: 0, coefficient: value },
+  processFrom: (parameters, lineage) => [parameters.alpha, parameters.step_variance, ...shiftIndicesFrom(parameters, 1, lineage)],
+  coefficientsFrom: (parameters) => [parameters.ancestral_mean, parameters.optimum_before * parameters.alpha, parameters.optimum_after * parameters.alpha],
+  meanCovariance(lineage, parameters) {
+    const time = lineage.time;
+    const { alpha, step_variance: stepVariance, shift_1_previous_time: previousTime } = parameters;
+    return {
+      mean: Float64Array.from(time, (t) => definedMean(parameters, t, previousTime)),
+      covariance: buildCovariance(time.length, (i, j) =>
+        (stepVariance / (2 * alpha)) * (Math.exp(-alpha * Math.abs(time[i] - time[j])) - Math.exp(-alpha * (time[i] + time[j])))),
+    };
+  },
+  expectation(parameters, time) {
+    const { ancestral_mean: start, alpha, step_variance: stepVariance, shift_1_previous_time: previousTime } = parameters;
+    const atLimit = alpha === 0 && 'limit_drift_before' in parameters;
+    const limitMean = (t: number): number => start + parameters.limit_drift_before * Math.min(t, previousTime) + parameters.limit_drift_after * Math.max(0, t - previousTime);
+    return {
+      mean: Float64Array.from(time, (t) => (atLimit ? limitMean(t) : definedMean(parameters, t, previousTime))),
+      variance: Float64Array.from(time, (t) => stepVariance * relaxedTime(2 * alpha, t)),
+    };
+  },
+};
