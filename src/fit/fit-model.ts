@@ -1,9 +1,9 @@
 import type { Lineage } from '../lineage.js';
-import { varianceScale, type EvolutionModel } from '../models/model.js';
+import { axisIndexOf, varianceScale, type EvolutionModel } from '../models/model.js';
 import { LikelihoodEvaluator } from './evaluator.js';
 import { fitOverConfigurations, shiftRecords, type SearchProgress } from './fit-configurations.js';
 import { replaceIntervals, type IntervalMethod } from './intervals-method.js';
-import { locationEnds, openTowardTrendLimit } from './intervals.js';
+import { locationEnds, openTowardTrendLimit, parameterEnds } from './intervals.js';
 import { chiSquare1At95 } from './model-choice.js';
 import { findRoot } from './optimise.js';
 import { maximiseProcess, type AxisPosition } from './search.js';
@@ -137,7 +137,8 @@ function standardScaling(model: EvolutionModel, lineage: Lineage): StandardScali
   const trait = Number.isFinite(variance) && variance > 0 ? Math.sqrt(variance) : 1;
   const time = Number.isFinite(span) && span > 0 ? span : 1;
   if (trait === 1 && time === 1) return null;
-  if (!model.process.every((axis) => model.parameters.some((spec) => spec.name === axis.name))) return null;
+  // An axis a signed parameter is searched through (`searchedAs`) is unit-free.
+  if (!model.process.every((axis) => model.parameters.some((spec) => spec.name === axis.name || spec.searchedAs?.axis === axis.name))) return null;
   const traitSquared = trait * trait;
   return {
     trait,
@@ -221,7 +222,7 @@ function fitStandardised(model: EvolutionModel, lineage: Lineage, options: FitOp
   const estimates = model.toParameters(details.coefficients, maximum.process, lineage);
   const flags: string[] = [];
   const boundOf = (name: string): string | null => {
-    const axisIndex = model.process.findIndex((axis) => axis.name === name);
+    const axisIndex = axisIndexOf(model, name);
     if (axisIndex < 0) return null;
     return positionName(model, axisIndex, maximum.positions[axisIndex]);
   };
@@ -244,9 +245,9 @@ function fitStandardised(model: EvolutionModel, lineage: Lineage, options: FitOp
         parameters[spec.name] = { estimate: finite ? estimate : null, lower: null, upper: null, atBound, lowerAtBound: false, upperAtBound: false };
         continue;
       }
-      const axisIndex = model.process.findIndex((axis) => axis.name === spec.name);
+      const axisIndex = axisIndexOf(model, spec.name);
       const interval = axisIndex >= 0
-        ? processInterval(evaluate, model, lineage, maximum.process, axisIndex, cutoff)
+        ? parameterEnds(spec, lineage, processInterval(evaluate, model, lineage, maximum.process, axisIndex, cutoff))
         : locationInterval(evaluator, model, lineage, spec.name, estimate, maximum.process, details, cutoff, options.gridPoints);
       parameters[spec.name] = { estimate, atBound, ...interval };
     }
@@ -271,7 +272,7 @@ function fitStandardised(model: EvolutionModel, lineage: Lineage, options: FitOp
   const derived = derivedEstimates(model, parameters, details.coefficients);
   return {
     id: model.id,
-    label: model.label,
+    label: model.labelFor?.(estimates) ?? model.label,
     k: model.parameterCount(lineage),
     horizons: size,
     logLik: maximum.logLik,

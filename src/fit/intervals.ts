@@ -2,7 +2,7 @@ import { usageError } from '../data/errors.js';
 import { profileOut, reducedProfile } from '../engine/gls.js';
 import type { WhitenedSums } from '../engine/kalman-filter.js';
 import type { Lineage } from '../lineage.js';
-import type { EvolutionModel } from '../models/model.js';
+import { axisIndexOf, type EvolutionModel, type ParameterSpec } from '../models/model.js';
 import type { LikelihoodEvaluator } from './evaluator.js';
 import { findRoot } from './optimise.js';
 import { maximiseProcess } from './search.js';
@@ -118,14 +118,16 @@ export function parameterProfile(
   const model = evaluator.model;
   const lineage = evaluator.lineage;
   const at = profileFunction(evaluator, name, adjusted, points);
-  const axisIndex = model.process.findIndex((axis) => axis.name === name);
+  const axisIndex = axisIndexOf(model, name);
   if (axisIndex >= 0) {
     const evaluate = (process: number[]): number => {
       const sums = evaluator.whiten(process);
       return adjusted ? restrictedLogLik(sums) : profileOut(sums).logLik;
     };
     const best = maximiseProcess(evaluate, model.process, lineage, { points: Math.max(points, 24) });
-    return { at, maximum: best.logLik, maximiser: best.process[axisIndex], process: best.process };
+    const through = model.parameters.find((spec) => spec.name === name)?.searchedAs;
+    const maximiser = through ? through.fromAxis(best.process[axisIndex], lineage) : best.process[axisIndex];
+    return { at, maximum: best.logLik, maximiser, process: best.process };
   }
   const whole = locationSupremum(evaluator, name, adjusted);
   const best = maximiseProcess(whole, model.process, lineage, { points: Math.max(points, 24) });
@@ -147,6 +149,22 @@ function locationSupremum(evaluator: LikelihoodEvaluator, name: string, adjusted
     const { index } = model.fixLocation(name, 0, process, evaluator.lineage);
     const logDet = reducedProfile(sums, index, 0).logDetInformation;
     return Number.isFinite(logDet) ? result.logLik - 0.5 * logDet : Number.NEGATIVE_INFINITY;
+  };
+}
+
+/**
+ * Interval ends of a parameter from those of its searched axis: the same for
+ * an axis parameter; mapped for one searched through another axis
+ * (`searchedAs`), an end at the axis's bound or limit becoming open.
+ */
+export function parameterEnds(spec: ParameterSpec | undefined, lineage: Lineage, ends: IntervalEnds): IntervalEnds {
+  const through = spec?.searchedAs;
+  if (!through) return ends;
+  return {
+    lower: ends.lowerAtBound || ends.lower === null ? null : through.fromAxis(ends.lower, lineage),
+    upper: ends.upperAtBound || ends.upper === null ? null : through.fromAxis(ends.upper, lineage),
+    lowerAtBound: ends.lowerAtBound,
+    upperAtBound: ends.upperAtBound,
   };
 }
 
@@ -184,13 +202,15 @@ export function openTowardTrendLimit(evaluator: LikelihoodEvaluator, name: strin
 export function profileFunction(evaluator: LikelihoodEvaluator, name: string, adjusted: boolean, points = 12): (value: number) => number {
   const model = evaluator.model;
   const lineage = evaluator.lineage;
-  const axisIndex = model.process.findIndex((axis) => axis.name === name);
+  const axisIndex = axisIndexOf(model, name);
   if (axisIndex >= 0) {
     const evaluate = (process: number[]): number => {
       const sums = evaluator.whiten(process);
       return adjusted ? restrictedLogLik(sums) : profileOut(sums).logLik;
     };
-    return (value: number): number => {
+    const through = model.parameters.find((spec) => spec.name === name)?.searchedAs;
+    return (parameterValue: number): number => {
+      const value = through ? through.toAxis(parameterValue, lineage) : parameterValue;
       if (model.process.length === 1) return evaluate([value]);
       return maximiseProcess(evaluate, model.process, lineage, { fixed: new Map([[axisIndex, value]]), points }).logLik;
     };
@@ -276,14 +296,15 @@ export function intervalsByProfile(
   for (const name of names) {
     // A bootstrap cut-off can be 0 when the truth sits on a bound; a tiny floor keeps the root search bracketed.
     const drop = Math.max(request.ratioCutoff(name), 1e-6) / 2;
-    const axisIndex = model.process.findIndex((axis) => axis.name === name);
+    const axisIndex = axisIndexOf(model, name);
     if (axisIndex >= 0) {
       const evaluate = (process: number[]): number => {
         const sums = evaluator.whiten(process);
         return request.adjusted ? restrictedLogLik(sums) : profileOut(sums).logLik;
       };
       const best = maximiseProcess(evaluate, model.process, evaluator.lineage, { points: 24 });
-      result[name] = processEnds(evaluate, best.process, axisIndex, best.logLik - drop);
+      const spec = model.parameters.find((candidate) => candidate.name === name);
+      result[name] = parameterEnds(spec, evaluator.lineage, processEnds(evaluate, best.process, axisIndex, best.logLik - drop));
       continue;
     }
     const profile = parameterProfile(evaluator, name, request.adjusted);

@@ -1,3 +1,4 @@
+import { acceleratingWalk } from './accelerating-walk.js';
 import { covariateStasis } from './covariate-stasis.js';
 import { covariateWalk } from './covariate-walk.js';
 import type { EvolutionModel } from './model.js';
@@ -21,6 +22,7 @@ export const extensionModels: readonly EvolutionModel[] = [
   ...modeShiftModels,
   covariateStasis,
   covariateWalk,
+  acceleratingWalk,
   movingOptimum,
   optimumShift,
 ];

@@ -37,6 +37,34 @@ export interface ParameterSpec {
    * sign tells on which side the parameter's interval is open.
    */
   readonly runaway?: RunawayAtLimit;
+  /**
+   * A parameter that may take either sign, searched through a positive axis
+   * of another name (searched on a log scale like every axis) of which it
+   * is an increasing function: its estimate comes from `toParameters`, its
+   * profile interval is the axis's, mapped (an end at the axis's range is
+   * open).
+   */
+  readonly searchedAs?: SearchedAs;
+}
+
+/** The positive axis a signed parameter is searched through (see {@link ParameterSpec.searchedAs}). */
+export interface SearchedAs {
+  readonly axis: string;
+  /** The parameter's value at an axis value (increasing). */
+  fromAxis(value: number, lineage: Lineage): number;
+  /** The axis value at a parameter value. */
+  toAxis(value: number, lineage: Lineage): number;
+}
+
+/**
+ * Index of the searched axis behind parameter `name` (the axis of that name,
+ * or the one it is searched through), or -1 for a location parameter.
+ */
+export function axisIndexOf(model: Pick<EvolutionModel, 'process' | 'parameters'>, name: string): number {
+  const own = model.process.findIndex((axis) => axis.name === name);
+  if (own >= 0) return own;
+  const through = model.parameters.find((spec) => spec.name === name)?.searchedAs?.axis;
+  return through === undefined ? -1 : model.process.findIndex((axis) => axis.name === through);
 }
 
 /** How a location parameter runs off to ±∞ at the zero limit of the first process axis (see {@link ParameterSpec.runaway}). */
@@ -116,6 +144,8 @@ export interface EvolutionModel {
   readonly id: string;
   /** Name in words, e.g. "directional walk (general random walk)". */
   readonly label: string;
+  /** The label of a fit at these estimates, when it depends on them (e.g. "decelerating" for a negative rate). */
+  labelFor?(estimates: Readonly<Record<string, number>>): string;
   /** One-sentence definition for `--help` and the README. */
   readonly summary: string;
   /** Where the model's likelihood comes from. */
