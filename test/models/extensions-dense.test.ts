@@ -17,7 +17,11 @@ function randomParameters(model: EvolutionModel, lineage: Lineage, random: Rando
   const parameters: Record<string, number> = {};
   for (const spec of model.parameters) {
     if (spec.role === 'location') parameters[spec.name] = spec.unit.time === -1 ? random.normal() : 10 + 2 * random.normal();
-    else parameters[spec.name] = random.uniform() < 0.15 ? 0 : 10 ** (-4 + 4 * random.uniform());
+    else if (spec.role === 'rate') {
+      // A rate (alpha, rate_change) is never exactly 0 here: the dense forms divide by it (its limit 0 is checked by each model's own tests).
+      const negative = spec.lowerBound < 0 && random.uniform() < 0.5;
+      parameters[spec.name] = (negative ? -1 : 1) * 10 ** (-3 + 3 * random.uniform());
+    } else parameters[spec.name] = random.uniform() < 0.15 ? 0 : 10 ** (-4 + 4 * random.uniform());
   }
   const shiftCount = model.id.startsWith('punctuated-2') ? 2 : model.configurations ? 1 : 0;
   const size = lineage.time.length;
