@@ -129,6 +129,13 @@ export interface MeanCovariance {
   readonly covariance: number[][];
 }
 
+/** A dashed guide line of a figure: points (elapsed time, trait value), and words for the legend. */
+export interface Guide {
+  readonly time: readonly number[];
+  readonly value: readonly number[];
+  readonly words: string;
+}
+
 /** Expected trajectory of a model and the variance about it, at given times. */
 export interface Expectation {
   readonly mean: Float64Array;
@@ -163,6 +170,12 @@ export interface EvolutionModel {
   readonly caution?: 'directional' | 'stasis';
   /** How figures draw a fit at a limit where some parameters are not finite. */
   readonly limitDrawing?: LimitDrawing;
+  /**
+   * A line the trajectory figure draws dashed beside the expected
+   * trajectory (e.g. a moving or shifting optimum), at given elapsed times;
+   * null when there is none at these estimates.
+   */
+  guide?(parameters: Record<string, number>, time: readonly number[]): Guide | null;
   readonly parameters: readonly ParameterSpec[];
   /** Searched parameters in search order; the remaining location parameters are profiled by GLS. */
   readonly process: readonly ProcessAxis[];

@@ -69,6 +69,9 @@ export const movingOptimum: EvolutionModel = {
     }),
     words: 'alpha at its limit 0, drawn as the walk with a quadratic trend it equals there',
   },
+  guide: (parameters, time) => (Number.isFinite(parameters.optimum) && Number.isFinite(parameters.optimum_drift) && parameters.alpha > 0
+    ? { time, value: Array.from(movingOptimumPath(parameters, time)), words: 'Moving optimum' }
+    : null),
   parameters: [
     { name: 'ancestral_mean', label: 'ancestral mean', role: 'location', unit: { trait: 1, time: 0 }, lowerBound: Number.NEGATIVE_INFINITY },
     {

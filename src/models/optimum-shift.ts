@@ -69,6 +69,14 @@ export const optimumShift: EvolutionModel = {
     }),
     words: 'alpha at its limit 0, drawn as the walk whose drift changes at the shift that it equals there',
   },
+  // The optimum as a step at t_p, so the figure marks the time of the shift.
+  guide: (parameters, time) => {
+    const { optimum_before: before, optimum_after: after, shift_1_previous_time: previousTime } = parameters;
+    if (!Number.isFinite(before) || !Number.isFinite(after) || !(parameters.alpha > 0) || time.length === 0) return null;
+    const first = time[0];
+    const last = time[time.length - 1];
+    return { time: [first, previousTime, previousTime, last], value: [before, before, after, after], words: 'Optimum, shifting after the last horizon before the shift' };
+  },
   parameters: [
     { name: 'ancestral_mean', label: 'ancestral mean', role: 'location', unit: { trait: 1, time: 0 }, lowerBound: Number.NEGATIVE_INFINITY },
     {

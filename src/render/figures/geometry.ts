@@ -1,3 +1,4 @@
+import type { EvolutionModel } from '../../models/model.js';
 import { findModel } from '../../models/registry.js';
 import type { FigureLineage, FigureModel } from './figure-input.js';
 import { traitUnitLabel } from '../units.js';
@@ -117,6 +118,15 @@ export interface ModelCurve {
   readonly hasEnvelope: boolean;
   /** When the fit sits at a limit the model equals another model at: what is drawn instead, in words (else null). */
   readonly limit: string | null;
+  /** A dashed line the model asks for beside its trajectory (`EvolutionModel.guide`: a moving or shifting optimum), on the axis' time scale; else null. */
+  readonly guide: { readonly time: readonly number[]; readonly value: readonly number[]; readonly words: string } | null;
+}
+
+/** The model's guide line at the curve's times, on the axis' time scale, or null. */
+function guideOf(definition: EvolutionModel, estimates: Record<string, number>, lineage: FigureLineage, axis: TimeAxis, times: readonly number[]): ModelCurve['guide'] {
+  const guide = definition.guide?.(estimates, lineage.curveOrigin === 0 ? times : times.map((t) => t + lineage.curveOrigin));
+  if (!guide || !guide.value.every(Number.isFinite)) return null;
+  return { time: guide.time.map((t) => axis.toAxis(lineage, t - lineage.curveOrigin)), value: guide.value, words: guide.words };
 }
 
 /** Why a model's curve cannot be drawn, or the curve. */
@@ -193,6 +203,7 @@ export function modelCurve(lineage: FigureLineage, axis: TimeAxis, requested: st
       upper,
       hasEnvelope,
       limit: rule ? rule.words : null,
+      guide: guideOf(definition, estimates, lineage, axis, times),
     },
     reason: null,
   };

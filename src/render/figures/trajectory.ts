@@ -219,6 +219,22 @@ export function trajectoryPlan(lineages: readonly FigureLineage[], options: Reso
           borderDash: item.style ? [...item.style.dash] : [],
         });
       }
+      // The model's guide (a moving or shifting optimum), dashed; left out of the extent, so an optimum far from the data does not squeeze the plot (the chart clips it).
+      if (item.curve?.guide && !together) {
+        const guide = item.curve.guide;
+        datasets.push({
+          label: 'guide',
+          order: 15,
+          data: guide.time.map((time, i) => at(time, guide.value[i])),
+          showLine: true,
+          pointRadius: 0,
+          pointStyle: false,
+          tension: 0,
+          borderColor: modelInk.line,
+          borderWidth: lineWidth.smoothed,
+          borderDash: guideDash,
+        });
+      }
       if (item.smoothed) {
         const band = item.smoothed;
         datasets.push({
@@ -364,6 +380,9 @@ function subtitleText(series: readonly Series[], together: boolean, options: Res
   return `${capitalised(curve.label)}: ${best}${support}.${limit}${flat}${noBand}`;
 }
 
+/** Dash of a model's guide line (longer than the smoothed mean's, so the two stay apart). */
+const guideDash = [6, 3];
+
 function legendEntries(series: readonly Series[], together: boolean): LegendEntry[] {
   if (together) {
     const extrapolated = series.some((item) => item.lineage.extrapolated.some((flag) => flag));
@@ -393,6 +412,7 @@ function legendEntries(series: readonly Series[], together: boolean): LegendEntr
   if (item.curve) {
     entries.push({ key: { line: { color: modelInk.line, width: lineWidth.model } }, text: `Expected trajectory, ${shortModelLabel(item.curve.label)}` });
     if (item.curve.hasEnvelope) entries.push({ key: { band: { fill: modelInk.band, edge: modelInk.bandEdge } }, text: '95% envelope of the model' });
+    if (item.curve.guide) entries.push({ key: { line: { color: modelInk.line, width: lineWidth.smoothed, dash: guideDash } }, text: item.curve.guide.words });
   }
   if (item.smoothed) {
     const band = item.smoothed;
