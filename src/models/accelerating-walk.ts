@@ -49,11 +49,16 @@ export const acceleratingWalk: EvolutionModel = {
   summary: 'An unbiased random walk from the ancestral mean whose step variance per time unit changes exponentially at rate_change (accelerating when positive, decelerating when negative).',
   citation: 'Voje, K. L. (2023). Fitting and evaluating univariate and multivariate models of within-lineage evolution. Paleobiology 49:747-764.',
   referenceKeys: ['voje2023'],
+  methodsNotes: [{
+    key: 'accelerating-walk',
+    sentence: () => 'In the accelerating walk the step variance per time unit changes exponentially in time, σ² e^(r t), so the walk speeds up (r > 0) or slows down (r < 0); r = 0 is the unbiased random walk.',
+  }],
   help: {
     heading: 'accelerating-walk',
     lines: [
-      'unbiased random walk whose step_variance per time unit changes as exp(rate_change x t):',
-      'accelerating when rate_change > 0, decelerating when < 0 (K = 3; rate_change = 0 is random-walk)',
+      'unbiased random walk whose step_variance per time unit changes as',
+      'exp(rate_change x t): accelerating when rate_change > 0, decelerating when < 0',
+      '(K = 3; rate_change = 0 is random-walk)',
     ],
   },
   parameters: [

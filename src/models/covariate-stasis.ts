@@ -24,7 +24,7 @@ export const covariateStasis: EvolutionModel = {
   citation: 'Hunt, G., Wicaksono, S. A., Brown, J. E. & Macleod, K. G. (2010). Climate-driven body-size trends in the ostracod fauna of the deep Indian Ocean. Palaeontology 53:1255-1268.',
   referenceKeys: ['huntEtAl2010'],
   help: { heading: 'covariate-stasis', lines: ['mean = covariate_intercept + covariate_slope x covariate, independent', 'stasis_variance about it (K = 3); needs a covariate column or --covariate-file'] },
-  methodsNote: covariateMethodsNote,
+  methodsNotes: [covariateMethodsNote],
   parameters: [
     { name: 'covariate_intercept', label: 'intercept (mean at covariate 0)', role: 'location', unit: { trait: 1, time: 0 }, lowerBound: Number.NEGATIVE_INFINITY },
     { name: 'covariate_slope', label: 'slope on the covariate', role: 'location', unit: { trait: 1, time: 0 }, lowerBound: Number.NEGATIVE_INFINITY },

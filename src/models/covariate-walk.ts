@@ -24,7 +24,7 @@ export const covariateWalk: EvolutionModel = {
   citation: 'After Hunt, G., Wicaksono, S. A., Brown, J. E. & Macleod, K. G. (2010). Climate-driven body-size trends in the ostracod fauna of the deep Indian Ocean. Palaeontology 53:1255-1268.',
   referenceKeys: ['huntEtAl2010'],
   help: { heading: 'covariate-walk', lines: ['random walk whose steps add covariate_slope x the change in the covariate', 'to random steps with step_variance (K = 3)'] },
-  methodsNote: covariateMethodsNote,
+  methodsNotes: [covariateMethodsNote],
   parameters: [
     { name: 'ancestral_mean', label: 'ancestral mean', role: 'location', unit: { trait: 1, time: 0 }, lowerBound: Number.NEGATIVE_INFINITY },
     { name: 'covariate_slope', label: 'slope on covariate changes', role: 'location', unit: { trait: 1, time: 0 }, lowerBound: Number.NEGATIVE_INFINITY },

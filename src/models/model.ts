@@ -164,8 +164,8 @@ export interface EvolutionModel {
   readonly referenceKeys?: readonly string[];
   /** Its entry in `stratotrend fit --help` (a family's other members leave it out). */
   readonly help?: HelpEntry;
-  /** A sentence the report's methods paragraph adds when the model is fitted (shared by a family). */
-  readonly methodsNote?: MethodsNote;
+  /** Sentences the report's methods paragraph adds when the model is fitted (each once per key, shared by a family). */
+  readonly methodsNotes?: readonly MethodsNote[];
   /** The report's reading caution when this model is best supported: a trend, or a form of stasis. */
   readonly caution?: 'directional' | 'stasis';
   /** How figures draw a fit at a limit where some parameters are not finite. */

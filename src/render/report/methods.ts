@@ -295,11 +295,10 @@ export function methodsText(document: FitDocumentView, analyses: AnalysesRun = {
     cites: [],
     paragraph: 'models',
   });
-  // Each family's sentence once (`EvolutionModel.methodsNote`), in table order.
+  // Each family's sentences once (`EvolutionModel.methodsNotes`), in table order.
   const notes = new Map<string, MethodsNote>();
   for (const model of models) {
-    const note = findModel(model.id)?.methodsNote;
-    if (note && !notes.has(note.key)) notes.set(note.key, note);
+    for (const note of findModel(model.id)?.methodsNotes ?? []) if (!notes.has(note.key)) notes.set(note.key, note);
   }
   for (const note of notes.values()) sentences.push({ text: note.sentence(provenance.options), cites: [], paragraph: 'models' });
   sentences.push({
