@@ -230,7 +230,8 @@ export function compareSections(sections: readonly Lineage[], models: readonly E
       if ((options.offsets ?? true) && offsetApplies(base)) leftOut.push({ id: 'shared-offset', model: base.id, reason: sharedShiftReason });
       continue;
     }
-    fits.push(jointFit(sharedModel(base, sections), horizons, fitOptions));
+    if (base.notShared) leftOut.push({ id: 'shared', model: base.id, reason: `not fitted: ${base.notShared}` });
+    else fits.push(jointFit(sharedModel(base, sections), horizons, fitOptions));
     if (!(options.offsets ?? true) || !offsetApplies(base)) continue;
     if (base.unavailable) leftOut.push({ id: 'shared-offset', model: base.id, reason: offsetCovariateReason });
     else fits.push(jointFit(offsetModel(base, sections), horizons, fitOptions));

@@ -168,6 +168,12 @@ export interface EvolutionModel {
   readonly methodsNotes?: readonly MethodsNote[];
   /** The report's reading caution when this model is best supported: a trend, or a form of stasis. */
   readonly caution?: 'directional' | 'stasis';
+  /**
+   * Why `compare` cannot fit this model as one process shared by sections
+   * that each keep their own times (the "shared" hypothesis), or absent when
+   * it can; the model is then compared as separate and shared-offset only.
+   */
+  readonly notShared?: string;
   /** How figures draw a fit at a limit where some parameters are not finite. */
   readonly limitDrawing?: LimitDrawing;
   /**

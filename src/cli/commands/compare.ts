@@ -38,8 +38,10 @@ when the best is such a tie, the output says the data cannot tell them apart.
 
 Model sets (--models):
   classic   the five models: strict-stasis, stasis, random-walk, directional-walk, ou
-  extended  classic plus the shift, mode-shift and covariate models of "fit --help", with these limits:
-            shift models (punctuated-*, FIRST-then-SECOND) are fitted as separate only; a shift shared
+  extended  classic plus the shift, mode-shift, covariate and changing-landscape models of "fit --help",
+            with these limits: accelerating-walk has no shared hypothesis (its rate is searched
+            relative to each section's span); shift models (punctuated-*, FIRST-then-SECOND,
+            optimum-shift) are fitted as separate only; a shift shared
             by several sections is not defined here, so shared and shared-offset are left out, and a
             section too short for a shift (segments of at least 5 horizons) leaves the model out;
             covariate models are left out unless every section has a covariate column, and their

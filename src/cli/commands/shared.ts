@@ -56,7 +56,7 @@ export function addAgeModelOptions(command: Command, { draws = true }: { draws?:
  */
 export function addFittingOptions(command: Command): Command {
   return command
-    .option('--models <set>', 'classic|extended|id,id,...: "classic" (the five models), "extended" (classic plus the shift, mode-shift and covariate models the data allow) or a comma-separated list of model ids (see "stratotrend fit --help")', 'classic')
+    .option('--models <set>', 'classic|extended|id,id,...: "classic" (the five models), "extended" (classic plus the shift, mode-shift, covariate and changing-landscape models the data allow) or a comma-separated list of model ids (see "stratotrend fit --help")', 'classic')
     .option('--min-segment <n>', 'fewest horizons in a segment of a shift model (default 5; at least 3 where a segment has its own variance)')
     .option('--covariate-file <file>', 'covariate per horizon for the covariate models: CSV with section (optional), age, time, height or depth, and covariate; matched by section and that position (height/depth as the samples give them, age also for heights/depths placed by --age-model)')
     .option('--rates', 'also give rates: darwins and haldanes per interval and over the whole sequence, model-based rates, with the caution on interval dependence')
