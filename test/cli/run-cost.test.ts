@@ -66,10 +66,10 @@ describe('checkShiftSearchCost', () => {
     const warnings = new WarningLog();
     checkShiftSearchCost([lineageOf(1800)], extended, { warnings, write: (text) => printed.push(text) });
     expect(printed).toHaveLength(1);
-    expect(printed[0]).toMatch(/^warning \(long-run\): the shift and mode-shift models \(10 of them\) search every placement of their shifts, .*\(longest lineage: 1,800\); this run will take roughly \d+ (seconds|minutes) .*--models classic\n$/);
+    expect(printed[0]).toMatch(/^warning \(long-run\): the shift and mode-shift models \(11 of them\) search every placement of their shifts, .*\(longest lineage: 1,800\); this run will take roughly \d+ (seconds|minutes) .*--models classic\n$/);
     expect(warnings.has('long-run')).toBe(true);
     // The estimate is the stated formula (our own measurement, see run-cost.ts), in words.
-    expect(printed[0]).toContain(`roughly ${durationWords(shiftSearchSeconds(1800, 10))}`);
+    expect(printed[0]).toContain(`roughly ${durationWords(shiftSearchSeconds(1800, 11))}`);
 
     const quiet: string[] = [];
     const none = new WarningLog();

@@ -41,9 +41,9 @@ Model sets (--models):
   extended  classic plus the shift, mode-shift, covariate and changing-landscape models of "fit --help",
             with these limits: accelerating-walk has no shared hypothesis (its rate is searched
             relative to each section's span); shift models (punctuated-*, FIRST-then-SECOND,
-            optimum-shift) are fitted as separate only; a shift shared
-            by several sections is not defined here, so shared and shared-offset are left out, and a
-            section too short for a shift (segments of at least 5 horizons) leaves the model out;
+            optimum-shift) are fitted as separate only; a shift shared by several sections is not
+            defined here, so shared and shared-offset are left out, and a section too short for a
+            shift (segments of at least 5 horizons) leaves the model out;
             covariate models are left out unless every section has a covariate column, and their
             shared-offset is left out (the common timeline carries no covariate)
   id,id,... a comma-separated list of model ids, with the same limits
