@@ -4,12 +4,12 @@ import { stepVarianceRange } from './walk-dynamics.js';
 
 /**
  * The searched axis behind rate_change: the growth of the step variance
- * over the lineage, g = exp(rate_change · span), between exp(-25) and
- * exp(25) (our choice: a step variance per time unit 7e10 times larger at
- * one end of the sequence than at the other leaves the likelihood flat in
- * practice, and the ends are flagged as such).
+ * over the lineage, g = exp(rate_change · span), between exp(-40) and
+ * exp(40) (our choice, as ou's alpha · shortest interval = 40: a step
+ * variance per time unit 2e17 times larger at one end of the sequence than
+ * at the other; an estimate there is flagged and its interval open).
  */
-const growthEnd = 25;
+const growthEnd = 40;
 
 /** (exp(r t) - 1) / r, the variance accumulated from t = 0 per unit step variance; t at r = 0, exact near it. */
 export function acceleratedTime(rate: number, t: number): number {

@@ -75,12 +75,14 @@ describe('compare --models extended lists only what the data support', () => {
         expect(hypothesis.converged, `${hypothesis.id} ${hypothesis.model}: ${hypothesis.message}`).toBe(true);
         expect(hypothesis.message).toBeNull();
         expect(/^covariate-/.test(hypothesis.model)).toBe(false);
-        if (/punctuated|-then-/.test(hypothesis.model)) expect(hypothesis.id).toBe('separate');
+        if (/punctuated|-then-|optimum-shift/.test(hypothesis.model)) expect(hypothesis.id).toBe('separate');
       }
       const leftOut = trait.left_out as Json[];
-      // The six mode shifts and punctuated-1 (shared variance and separate): shared and shared-offset each, with the reason.
+      // The six mode shifts, punctuated-1 (shared variance and separate) and optimum-shift: shared and shared-offset each, with the reason.
       const sharedShift = leftOut.filter((entry) => entry.reason === sharedShiftReason);
-      expect(sharedShift).toHaveLength(2 * 8);
+      expect(sharedShift).toHaveLength(2 * 9);
+      // accelerating-walk: no shared hypothesis (its rate is searched relative to each section's span), with the reason.
+      expect(leftOut.find((entry) => entry.model === 'accelerating-walk' && entry.id === 'shared')?.reason).toMatch(/own span/);
       // Brisk Fen Cut has 12 horizons: two shifts with segments of at least 5 horizons need 15 (5 + 5 + 5).
       for (const model of ['punctuated-2', 'punctuated-2-separate']) {
         const entry = leftOut.find((item) => item.model === model)!;

@@ -165,6 +165,22 @@ describe('invariance to shifting the trait and rescaling time (common practice: 
   }
 });
 
+describe('rate_change, searched through variance_growth: its profile interval in its own units', () => {
+  it('the profile log-likelihood at each end of the 95% interval is the maximum − χ²₁(0.95)/2 (definition of the profile interval; 1e-6)', async () => {
+    const { profileFunction } = await import('../../src/fit/intervals.js');
+    const lineage = simulated(acceleratingWalk, { ancestral_mean: 1, step_variance: 0.5, rate_change: -0.4 }, 30, 31);
+    const fit = fitModel(acceleratingWalk, lineage, { intervalMethod: 'profile' });
+    const interval = fit.parameters.rate_change;
+    expect(interval.lower).not.toBeNull();
+    expect(interval.upper).not.toBeNull();
+    expect(interval.lower!).toBeLessThan(interval.estimate!);
+    expect(interval.upper!).toBeGreaterThan(interval.estimate!);
+    const profile = profileFunction(new LikelihoodEvaluator(acceleratingWalk, lineage), 'rate_change', false, 24);
+    // 1.920729410347062 = χ²₁(0.95)/2 (scipy.stats.chi2.ppf(0.95, 1) / 2).
+    for (const end of [interval.lower!, interval.upper!]) expect(Math.abs(profile(end) - (fit.logLik - 1.920729410347062))).toBeLessThan(1e-6);
+  });
+});
+
 describe('what the models say about themselves (issue 22)', () => {
   it('the optimum\'s drift is not a rate of the lineage in --rates (a name pattern ending in "drift" took it for one)', () => {
     const lineage = lineageFromArrays({ time: [0, 1, 2, 3, 4, 5], mean: [1, 1.2, 1.1, 1.5, 1.7, 1.6], samplingVariance: [0.01, 0.01, 0.01, 0.01, 0.01, 0.01] });

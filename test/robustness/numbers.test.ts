@@ -76,10 +76,10 @@ function expectClose(actual: number | null, expected: number | null, label: stri
 }
 
 /** Location parameters move by the constant added to the trait (the means of every model and segment, the optimum). */
-const isLocation = (name: string): boolean => /(^|_)mean$/.test(name) || name === 'optimum';
-/** Power of the time unit in each parameter: rates per unit time (-1), times and half-lives (+1); by name, segment prefixes included. */
+const isLocation = (name: string): boolean => /(^|_)mean$/.test(name) || /^optimum(_before|_after)?$/.test(name);
+/** Power of the time unit in each parameter: rates per unit time (-1), the limit's acceleration (-2), times and half-lives (+1); by name, segment prefixes included. */
 const timePower = (name: string): number =>
-  /(step_variance|drift|alpha)$/.test(name) ? -1 : /(half_life|_time)$/.test(name) ? 1 : 0;
+  /(step_variance|drift|alpha|rate_change|limit_drift_before|limit_drift_after)$/.test(name) ? -1 : name === 'limit_acceleration' ? -2 : /(half_life|_time)$/.test(name) ? 1 : 0;
 
 /** Compare two fits model by model, with per-parameter maps (shift for locations, scale for rates). */
 function expectSameFit(
