@@ -71,7 +71,7 @@ export const movingOptimum: EvolutionModel = {
       ancestral_mean: estimates.ancestral_mean, optimum: 0, optimum_drift: 0, alpha: 0, step_variance: estimates.step_variance,
       limit_drift: derived.limit_drift, limit_acceleration: derived.limit_acceleration,
     }),
-    words: 'alpha at its limit 0, drawn as the walk with a quadratic trend it equals there',
+    words: 'alpha at its limit 0, drawn as the walk it equals there, with a quadratic trend',
   },
   guide: (parameters, time) => (Number.isFinite(parameters.optimum) && Number.isFinite(parameters.optimum_drift) && parameters.alpha > 0
     ? { time, value: Array.from(movingOptimumPath(parameters, time)), words: 'Moving optimum' }

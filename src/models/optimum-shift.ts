@@ -70,7 +70,7 @@ export const optimumShift: EvolutionModel = {
       ...estimates, optimum_before: 0, optimum_after: 0,
       limit_drift_before: derived.limit_drift_before, limit_drift_after: derived.limit_drift_after,
     }),
-    words: 'alpha at its limit 0, drawn as the walk whose drift changes at the shift that it equals there',
+    words: 'alpha at its limit 0, drawn as the walk it equals there, whose drift changes at the shift',
   },
   // The optimum as a step at t_p, so the figure marks the time of the shift.
   guide: (parameters, time) => {
