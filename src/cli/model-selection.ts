@@ -49,7 +49,7 @@ export function resolveModels(option: ModelsOption | undefined): ModelSelection 
 export function modelSetLine(selection: ModelSelection): string {
   const words: Record<string, string> = {
     classic: 'the five classic models',
-    extended: 'classic plus shift, mode-shift and covariate models the data allow',
+    extended: 'classic plus shift, mode-shift, covariate and changing-landscape models the data allow',
   };
   return `Model set: ${selection.name} (${words[selection.name] ?? selection.models.map((model) => model.id).join(', ')})\n`;
 }

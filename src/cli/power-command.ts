@@ -12,6 +12,7 @@ import { poolRunner } from '../simulate/run-replicates.js';
 import { parseSeed } from '../simulate/seeds.js';
 import { lineagesWithAgeModel, type AgeModelOptions } from './age-model-options.js';
 import { loadSamplesStreamed, type SampleFileOptions, type StreamedInput } from './input.js';
+import { resolveModels } from './model-selection.js';
 import { readingProgress, stageProgress } from './progress.js';
 import { toolVersion } from './version.js';
 import { refuseInputPath, writeAtomically } from './write-output.js';
@@ -31,6 +32,8 @@ export interface PowerCommandOptions extends SampleFileOptions, AgeModelOptions 
   json?: boolean;
   figure?: string;
   quiet?: boolean;
+  /** Models fitted to every replicate (`--models`, default classic). */
+  models?: string;
 }
 
 /** A whole number option within a range, or a usage error naming the option. */
@@ -168,6 +171,10 @@ export async function runPower(file: string, options: PowerCommandOptions, progr
   const seed = seedOption(options.seed);
   const threads = options.threads === undefined ? undefined : wholeOption(options.threads, '--threads', 1, 1, 256);
   const threshold = numberOption(options.weightThreshold, '--weight-threshold') ?? 0.5;
+  const models = options.models === undefined ? undefined : resolveModels(options.models).models.map((model) => model.id);
+  if (models && !(models.includes('random-walk') && models.includes('directional-walk'))) {
+    throw usageError(`--models must include random-walk and directional-walk (the trend is judged between them), got "${options.models}"`);
+  }
   if (!(threshold > 0 && threshold < 1)) throw usageError(`--weight-threshold must lie between 0 and 1, got "${options.weightThreshold}"`);
   const given = numberList(options.stepVariance, '--step-variance');
   if (given?.some((value) => !(value >= 0))) throw usageError(`--step-variance values must be 0 or more, got "${options.stepVariance}"`);
@@ -204,6 +211,7 @@ export async function runPower(file: string, options: PowerCommandOptions, progr
         targetDrift,
         coverage: options.coverage !== false,
         fittedDrift: fit.estimates.drift,
+        ...(models ? { models } : {}),
       },
       runner,
       progress,

@@ -34,6 +34,8 @@ export interface PowerPlan {
   readonly coverageReplicates?: number;
   /** Drift of the fitted directional walk: the truth of the coverage check (default 0). */
   readonly fittedDrift?: number;
+  /** Ids of the models fitted to every replicate (default the classic five); must include random-walk and directional-walk. */
+  readonly models?: readonly string[];
 }
 
 /** One grid point: the rates of the three decision rules at one drift. */
@@ -140,7 +142,7 @@ export async function powerAnalysis(plan: PowerPlan, runner: ReplicateRunner, pr
   const withinSd = pooledWithinSd(plan.design);
   const drifts = [...new Set([0, ...plan.drifts])].sort((a, b) => a - b);
   const parameters = (drift: number): Record<string, number> => ({ ancestral_mean: plan.ancestralMean, drift, step_variance: plan.stepVariance });
-  const models = allModels();
+  const models = plan.models ?? allModels();
   // Null set (stream 1) for the critical value; grid points use streams 100 + index.
   const critical = await criticalValue(plan.design, plan, runner, 1, ['random-walk', 'directional-walk'], level, progress);
   const tasks: FitReplicateTask[] = [];

@@ -16,6 +16,7 @@ export function definePowerCommand(program: Command): void {
     .option('--drifts-sd <list>', 'drift values in pooled within-horizon standard deviations per time unit')
     .option('--step-variance <list>', 'step variance(s) of the simulated walks, comma-separated; each gets its own table and curves (default: the fitted directional walk\'s estimate, and also the upper end of its 95% interval when the estimate is 0 or poorly determined — upper end at least 4 times the estimate)')
     .option('--weight-threshold <w>', 'Akaike weight the directional walk must exceed for P(weight) (its weight cannot pass about 0.8 when ou is fitted too, because ou contains it as a limit)', '0.5')
+    .option('--models <set>', 'models fitted to every replicate: classic (default), extended, or a comma-separated list of model ids (see "stratotrend fit --help") that includes random-walk and directional-walk', 'classic')
     .option('--target-drift <d>', 'also find how many horizons at the same spacing and sample sizes give 80% power for this drift')
     .option('--no-coverage', 'skip the check of interval coverage on this design')
     .option('--threads <k>', 'worker threads (default: every core; results do not depend on it)')
