@@ -11,7 +11,8 @@ import type { UnitPowers } from '../models/model.js';
 export function unitLabel(unit: UnitPowers, timeLabel: string, traitLabel = 'trait units'): string {
   const trait = unit.trait === 0 ? '' : unit.trait === 1 ? traitLabel : squaredLabel(traitLabel);
   if (unit.time === 0) return trait;
-  const time = unit.time === -1 ? `per ${timeLabel}` : `${timeLabel}`;
+  // A rate of a rate (the acceleration of a trend, time^-2) is per time squared.
+  const time = unit.time === -1 ? `per ${timeLabel}` : unit.time === -2 ? `per ${squaredLabel(timeLabel)}` : `${timeLabel}`;
   return trait === '' ? time : `${trait} ${time}`;
 }
 

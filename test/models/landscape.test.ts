@@ -165,6 +165,20 @@ describe('invariance to shifting the trait and rescaling time (common practice: 
   }
 });
 
+describe('moving-optimum at its alpha-zero limit (closed form: a walk with mean a + c1 t + c2 t^2 / 2)', () => {
+  it('on exactly quadratic means 1 + 0.2 t + 0.8 t^2 it reports alpha 0, null optima, limit_drift 0.2 and limit_acceleration 1.6 (1e-6)', () => {
+    const time = Array.from({ length: 30 }, (_, i) => i * 0.1);
+    const lineage = lineageFromArrays({ time, mean: time.map((t) => 1 + 0.2 * t + 0.8 * t * t), samplingVariance: time.map(() => 0.0036) });
+    const fit = fitModel(movingOptimum, lineage, { intervals: false });
+    expect(fit.parameters.alpha.estimate).toBe(0);
+    expect(fit.parameters.alpha.atBound).toBe('alpha-zero');
+    expect(fit.parameters.optimum.estimate).toBeNull();
+    expect(fit.parameters.optimum_drift.estimate).toBeNull();
+    expect(Math.abs(fit.derived.limit_drift.estimate! - 0.2)).toBeLessThan(1e-6);
+    expect(Math.abs(fit.derived.limit_acceleration.estimate! - 1.6)).toBeLessThan(1e-6);
+  });
+});
+
 describe('rate_change, searched through variance_growth: its profile interval in its own units', () => {
   it('the profile log-likelihood at each end of the 95% interval is the maximum − χ²₁(0.95)/2 (definition of the profile interval; 1e-6)', async () => {
     const { profileFunction } = await import('../../src/fit/intervals.js');

@@ -49,6 +49,8 @@ describe('unit labels', () => {
     expect(unitLabel({ trait: 1, time: -1 }, 'Myr', 'mm')).toBe('mm per Myr');
     expect(unitLabel({ trait: 2, time: -1 }, 'kyr', 'mm')).toBe('mm² per kyr');
     expect(unitLabel({ trait: 0, time: -1 }, 'Myr', 'mm')).toBe('per Myr');
+    // The acceleration of a trend (moving-optimum's limit_acceleration, issue 16) is per time squared; it read "mm Myr".
+    expect(unitLabel({ trait: 1, time: -2 }, 'Myr', 'mm')).toBe('mm per Myr²');
     // A label that is not one word is bracketed, so the square covers all of it.
     expect(unitLabel({ trait: 2, time: -1 }, 'Myr', 'ln mm')).toBe('(ln mm)² per Myr');
     expect(squaredLabel('µm²')).toBe('(µm²)²');
