@@ -49,6 +49,7 @@ export const acceleratingWalk: EvolutionModel = {
   summary: 'An unbiased random walk from the ancestral mean whose step variance per time unit changes exponentially at rate_change (accelerating when positive, decelerating when negative).',
   citation: 'Voje, K. L. (2023). Fitting and evaluating univariate and multivariate models of within-lineage evolution. Paleobiology 49:747-764.',
   referenceKeys: ['voje2023'],
+  plainWords: 'the trait mean wandered without a preferred direction, in steps that grew or shrank in size over time',
   // rate_change is searched relative to the lineage's span, and each section of a shared fit has its own span.
   notShared: 'the rate of change is searched relative to each lineage\'s own span, so sections with their own times cannot share it; compare it as separate or shared-offset',
   methodsNotes: [{

@@ -23,6 +23,7 @@ export const covariateStasis: EvolutionModel = {
   summary: 'The mean is covariate_intercept + covariate_slope × covariate at each horizon, with independent stasis_variance about it.',
   citation: 'Hunt, G., Wicaksono, S. A., Brown, J. E. & Macleod, K. G. (2010). Climate-driven body-size trends in the ostracod fauna of the deep Indian Ocean. Palaeontology 53:1255-1268.',
   referenceKeys: ['huntEtAl2010'],
+  plainWords: 'the trait mean tracked the covariate',
   help: { heading: 'covariate-stasis', lines: ['mean = covariate_intercept + covariate_slope x covariate, independent', 'stasis_variance about it (K = 3); needs a covariate column or --covariate-file'] },
   methodsNotes: [covariateMethodsNote],
   parameters: [

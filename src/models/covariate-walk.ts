@@ -23,6 +23,7 @@ export const covariateWalk: EvolutionModel = {
   summary: 'A random walk from ancestral_mean whose steps add covariate_slope × the change in the covariate to random steps with step_variance per time unit.',
   citation: 'After Hunt, G., Wicaksono, S. A., Brown, J. E. & Macleod, K. G. (2010). Climate-driven body-size trends in the ostracod fauna of the deep Indian Ocean. Palaeontology 53:1255-1268.',
   referenceKeys: ['huntEtAl2010'],
+  plainWords: 'the trait mean tracked the covariate',
   help: { heading: 'covariate-walk', lines: ['random walk whose steps add covariate_slope x the change in the covariate', 'to random steps with step_variance (K = 3)'] },
   methodsNotes: [covariateMethodsNote],
   parameters: [

@@ -17,6 +17,7 @@ export const directionalWalk: EvolutionModel = {
   referenceKeys: ['hunt2006'],
   help: { heading: 'directional-walk', lines: ['random walk with drift per time unit (K = 3)'] },
   caution: 'directional',
+  plainWords: 'the trait mean changed with a consistent direction (a trend) on top of random wandering',
   parameters: [
     { name: 'ancestral_mean', label: 'ancestral mean', role: 'location', unit: { trait: 1, time: 0 }, lowerBound: Number.NEGATIVE_INFINITY },
     { name: 'drift', label: 'drift', role: 'location', unit: { trait: 1, time: -1 }, lowerBound: Number.NEGATIVE_INFINITY, rate: 'drift' },

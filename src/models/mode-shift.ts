@@ -113,6 +113,7 @@ export function modeShift(first: SegmentMode, second: SegmentMode): EvolutionMod
     summary: `One shift: ${modeWords[first]} up to the shift, ${modeWords[second]} after it${secondIsWalk ? ' (the walk continues from the latent lineage mean at the last horizon before the shift)' : ' (a stasis segment with its own mean and variance)'}; shift position searched exhaustively.`,
     citation: 'After Hunt, G., Hopkins, M. J. & Lidgard, S. (2015). Simple versus complex models of trait evolution and stasis as a response to environmental change. PNAS 112:4885-4890.',
     referenceKeys: ['huntHopkinsLidgard2015'],
+    plainWords: 'the mode of change shifted once during the sequence',
     methodsNotes: [shiftMethodsNote],
     // The six pairs share one help entry, given by the first of them.
     ...(first === 'stasis' && second === 'random-walk' ? { help: modeShiftHelp } : {}),

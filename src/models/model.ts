@@ -162,6 +162,8 @@ export interface EvolutionModel {
    * the model cites; without them the report cites `citation` itself.
    */
   readonly referenceKeys?: readonly string[];
+  /** What the model says in plain words when best supported, for the report's summary ("the trait mean …"). */
+  readonly plainWords?: string;
   /** Its entry in `stratotrend fit --help` (a family's other members leave it out). */
   readonly help?: HelpEntry;
   /** Sentences the report's methods paragraph adds when the model is fitted (each once per key, shared by a family). */

@@ -52,6 +52,7 @@ export const movingOptimum: EvolutionModel = {
   summary: 'The lineage mean is pulled at rate alpha toward an optimum that moves by optimum_drift per time unit, while wandering with step variance; it starts at the ancestral mean.',
   citation: 'Hansen, T. F., Pienaar, J. & Orzack, S. H. (2008). A comparative method for studying adaptation to a randomly evolving environment. Evolution 62:1965-1977.',
   referenceKeys: ['hansenPienaarOrzack2008', 'estesArnold2007', 'voje2023'],
+  plainWords: 'the trait mean followed an optimum that moved steadily in one direction',
   methodsNotes: [{
     key: 'moving-optimum',
     sentence: () => 'In the moving-optimum model the lineage mean is attracted toward an optimum that moves linearly in time, which it follows with a lag of (drift of the optimum)/α; with a fixed optimum it is the Ornstein–Uhlenbeck model.',

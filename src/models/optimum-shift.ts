@@ -51,6 +51,7 @@ export const optimumShift: EvolutionModel = {
   summary: 'The lineage mean is pulled at rate alpha toward optimum_before, then, from the last horizon before the shift, toward optimum_after; one alpha and step variance; shift position searched exhaustively.',
   citation: 'Hansen, T. F. (1997). Stabilizing selection and the comparative analysis of adaptation. Evolution 51:1341-1351.',
   referenceKeys: ['voje2023', 'hansen1997'],
+  plainWords: 'the trait mean moved toward an optimum that shifted once during the sequence',
   methodsNotes: [shiftMethodsNote, {
     key: 'optimum-shift',
     sentence: () => 'In the optimum-shift model the optimum of the Ornstein–Uhlenbeck process moves once, at the last horizon before the shift, with one strength of attraction α and one step variance throughout.',

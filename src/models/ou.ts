@@ -52,6 +52,7 @@ export const ornsteinUhlenbeck: EvolutionModel = {
   summary: 'The lineage mean is pulled toward an optimum at rate alpha while wandering with step variance; it starts at the ancestral mean.',
   citation: 'Hunt, G., Bell, M. A. & Travis, M. P. (2008). Evolution toward a new adaptive optimum: phenotypic evolution in a fossil stickleback lineage. Evolution 62:700-710.',
   referenceKeys: ['huntBellTravis2008'],
+  plainWords: 'the trait mean moved toward an optimum and then stayed near it',
   help: { heading: 'ou', lines: ['Ornstein–Uhlenbeck approach from ancestral_mean to optimum at rate alpha (K = 4)'] },
   limitDrawing: {
     applies: (estimates, derived) => estimates.alpha === 0 && !('optimum' in estimates) && 'limit_drift' in derived,

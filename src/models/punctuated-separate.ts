@@ -45,6 +45,7 @@ export function punctuatedSeparateVariances(shiftCount: number): EvolutionModel 
     summary: `${shiftCount} shift${shiftCount === 1 ? '' : 's'} split the sequence into ${segments} stasis segments, each with its own mean and its own variance; shift positions searched exhaustively.`,
     citation: 'Hunt, G. (2008). Gradual or pulsed evolution: when should punctuational explanations be preferred? Paleobiology 34:360-377.',
     referenceKeys: ['hunt2008'],
+    plainWords: 'the trait mean stayed constant within segments and shifted between them',
     methodsNotes: [shiftMethodsNote],
     ...(shiftCount === 1
       ? { help: { heading: 'punctuated-1-separate, punctuated-2-separate', lines: ['the same with a stasis variance per segment (segment_K_variance) (K = 5, 8)'] } }

@@ -50,6 +50,7 @@ export function punctuatedSharedVariance(shiftCount: number): EvolutionModel {
     summary: `${shiftCount} shift${shiftCount === 1 ? '' : 's'} split the sequence into ${segments} stasis segments, each with its own mean and one shared stasis_variance; shift positions searched exhaustively.`,
     citation: hunt2008,
     referenceKeys: ['hunt2008'],
+    plainWords: 'the trait mean stayed constant within segments and shifted between them',
     methodsNotes: [shiftMethodsNote],
     ...(shiftCount === 1
       ? { help: { heading: 'punctuated-1, punctuated-2', lines: ['1 or 2 shifts split the sequence into stasis segments with their own means', '(segment_K_mean) and one shared stasis_variance (K = 4, 6)'] } }

@@ -14,6 +14,7 @@ export const randomWalk: EvolutionModel = {
   summary: 'Brownian motion from the ancestral mean with no preferred direction: steps have mean 0 and variance step_variance per unit time.',
   citation: 'Hunt, G. (2006). Fitting and comparing models of phyletic evolution: random walks and beyond. Paleobiology 32:578-601.',
   referenceKeys: ['hunt2006'],
+  plainWords: 'the trait mean wandered without a preferred direction',
   help: { heading: 'random-walk', lines: ['unbiased random walk from ancestral_mean with step_variance per time unit (K = 2)'] },
   parameters: [
     { name: 'ancestral_mean', label: 'ancestral mean', role: 'location', unit: { trait: 1, time: 0 }, lowerBound: Number.NEGATIVE_INFINITY },

@@ -18,6 +18,7 @@ export const stasis: EvolutionModel = {
   referenceKeys: ['hunt2006'],
   help: { heading: 'stasis', lines: ['independent fluctuation about stasis_mean with stasis_variance (K = 2)'] },
   caution: 'stasis',
+  plainWords: 'the trait mean fluctuated about a constant value without wandering or trending',
   parameters: [
     { name: 'stasis_mean', label: 'stasis mean', role: 'location', unit: { trait: 1, time: 0 }, lowerBound: Number.NEGATIVE_INFINITY },
     { name: 'stasis_variance', label: 'stasis variance', role: 'variance', unit: { trait: 2, time: 0 }, lowerBound: 0 },

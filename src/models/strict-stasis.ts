@@ -19,6 +19,7 @@ export const strictStasis: EvolutionModel = {
   referenceKeys: ['huntHopkinsLidgard2015'],
   help: { heading: 'strict-stasis', lines: ['no change: horizon means differ from stasis_mean by sampling error only (K = 1)'] },
   caution: 'stasis',
+  plainWords: 'the trait mean did not change at all: the horizon means differ by sampling error alone',
   parameters: [
     { name: 'stasis_mean', label: 'stasis mean', role: 'location', unit: { trait: 1, time: 0 }, lowerBound: Number.NEGATIVE_INFINITY },
   ],

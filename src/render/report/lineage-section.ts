@@ -92,16 +92,8 @@ ${rows.join('\n')}
 export function plainSummary(lineage: LineageView, summary: DataSummary): string {
   const best = lineage.models.find((model) => model.id === lineage.best_model);
   if (!best || best.weight === null) return 'No model could be compared for this lineage, so the data say nothing here about how the trait changed.';
-  const words: Record<string, string> = {
-    'strict-stasis': 'the trait mean did not change at all: the horizon means differ by sampling error alone',
-    stasis: 'the trait mean fluctuated about a constant value without wandering or trending',
-    'random-walk': 'the trait mean wandered without a preferred direction',
-    'directional-walk': 'the trait mean changed with a consistent direction (a trend) on top of random wandering',
-    ou: 'the trait mean moved toward an optimum and then stayed near it',
-  };
-  const pattern = words[best.id] ?? (/^punctuated-/.test(best.id)
-    ? 'the trait mean stayed constant within segments and shifted between them'
-    : /-then-/.test(best.id) ? 'the mode of change shifted once during the sequence' : /^covariate-/.test(best.id) ? 'the trait mean tracked the covariate' : `the data follow ${best.label}`);
+  // Each model says it in words (`EvolutionModel.plainWords`).
+  const pattern = findModel(best.id)?.plainWords ?? `the data follow ${best.label}`;
   const strength = best.weight >= 0.9 ? 'clearly' : best.weight >= 0.7 ? 'moderately' : 'only weakly';
   const sentences = [`Of the models fitted, the data ${strength} favour ${best.label} (Akaike weight ${best.weight.toFixed(2)}): in plain words, ${pattern}.`];
   const close = lineage.models.filter((model) => model.id !== best.id && model.compared && model.delta_aicc !== null && model.delta_aicc < 2);
