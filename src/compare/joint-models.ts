@@ -79,7 +79,9 @@ export function sharedModel(base: EvolutionModel, sections: readonly Lineage[]):
     ...sections.flatMap((_, s) => base.parameters
       .filter((spec) => ownNames.includes(spec.name))
       .map((spec) => ({ ...spec, name: perSectionName(spec.name, names[s]), label: `${spec.label}, ${names[s]}` }))),
-    ...base.parameters.filter((spec) => !ownNames.includes(spec.name)),
+    // A runaway parameter names the base design column of its finite limit coefficient; here that column sits at its joint place.
+    ...base.parameters.filter((spec) => !ownNames.includes(spec.name))
+      .map((spec) => (spec.runaway ? { ...spec, runaway: { ...spec.runaway, coefficient: columnOf(0, spec.runaway.coefficient) } } : spec)),
   ];
   const sectionParameters = (estimates: Record<string, number>, s: number): Record<string, number> => {
     const out: Record<string, number> = {};

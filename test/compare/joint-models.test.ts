@@ -126,3 +126,28 @@ describe('joint models: filter against the dense reference', () => {
     expect(merged.lineage.samplingVariance[0]).toBeCloseTo((1.6 + 48 / 9) / 30, 12);
   });
 });
+
+// ou at alpha = 0 is the directional walk with drift (optimum − a)·alpha, the
+// finite limit coefficient reported as `limit_drift` (MODELS.md, ou; a closed
+// form of the model). Under "shared" that coefficient is a column shared by
+// every section, which in the joint design sits after each section's own
+// starting value — reading the base model's column index there gave the
+// second section's starting value instead of the drift.
+describe('joint models: ou limit_drift under "shared"', () => {
+  it('equals the shared directional walk drift when alpha is at 0', async () => {
+    const { fitModel } = await import('../../src/fit/fit-model.js');
+    const ou = classicModels.find((model) => model.id === 'ou')!;
+    const walk = classicModels.find((model) => model.id === 'directional-walk')!;
+    const make = (name: string, start: number, size: number): Lineage => {
+      const time = Array.from({ length: size }, (_, i) => i * 0.7 + (i % 3) * 0.1);
+      // Straight, parallel means: any alpha > 0 would bend them, so ou is best at alpha = 0.
+      return { ...lineageFromArrays({ time, mean: time.map((t) => start + 0.8 * t), samplingVariance: time.map(() => 0.04), section: name, trait: 'width' }), firstAge: 10 };
+    };
+    const sections = [make('Orlen Gap', 20, 9), make('Marrow Cut', 20.3, 8)];
+    const ouFit = fitModel(sharedModel(ou, sections).model, sharedModel(ou, sections).lineage, { intervals: false });
+    const walkFit = fitModel(sharedModel(walk, sections).model, sharedModel(walk, sections).lineage, { intervals: false });
+    expect(ouFit.parameters.alpha.estimate).toBe(0);
+    expect(ouFit.logLik).toBeCloseTo(walkFit.logLik, 8);
+    expect(ouFit.derived.limit_drift.estimate!).toBeCloseTo(walkFit.parameters.drift.estimate!, 6);
+  });
+});
