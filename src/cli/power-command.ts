@@ -9,7 +9,7 @@ import { formatNumber, squaredLabel, traitUnitLabel } from '../render/units.js';
 import { designOf, pooledWithinSd } from '../simulate/design.js';
 import { defaultDrifts, powerAnalysis, type PowerProgress, type PowerReport } from '../simulate/power.js';
 import { poolRunner } from '../simulate/run-replicates.js';
-import { parseSeed } from '../simulate/seeds.js';
+import { parseSeed } from '../random/seeds.js';
 import { lineagesWithAgeModel, type AgeModelOptions } from './age-model-options.js';
 import { loadSamplesStreamed, type SampleFileOptions, type StreamedInput } from './input.js';
 import { readingProgress, stageProgress } from './progress.js';

@@ -24,8 +24,8 @@ import { lineageFromArrays, type Lineage } from '../../src/lineage.js';
 import { directionalWalk } from '../../src/models/directional-walk.js';
 import { randomWalk } from '../../src/models/random-walk.js';
 import { stasis } from '../../src/models/stasis.js';
-import { createRandom } from '../../src/simulate/random.js';
-import { simulateMeans, withMeans } from '../../src/simulate/simulate-lineage.js';
+import { createRandom } from '../../src/random/random.js';
+import { simulateMeans, withMeans } from '../../src/random/simulate-lineage.js';
 
 type Json = Record<string, any>;
 type Random = ReturnType<typeof createRandom>;

@@ -25,8 +25,8 @@ import { root } from '../robustness/cli.js';
 import { fitLineage } from '../../src/fit/fit-lineage.js';
 import { lineageTable } from '../../src/render/text-table.js';
 import { classicModels, extendedModels, findModel } from '../../src/models/registry.js';
-import { createRandom } from '../../src/simulate/random.js';
-import { simulateMeans, withMeans } from '../../src/simulate/simulate-lineage.js';
+import { createRandom } from '../../src/random/random.js';
+import { simulateMeans, withMeans } from '../../src/random/simulate-lineage.js';
 
 /** Parameters (and derived quantities) whose interval leaves out their finite estimate, with the ends. */
 function outside(fit: ModelFit): string[] {

@@ -19,7 +19,7 @@ import { runFit, type FitCommandOptions } from '../../src/cli/fit-command.js';
 import { lineageTable } from '../../src/render/text-table.js';
 import { modelsCsv } from '../../src/render/models-csv.js';
 import { nonFinitePaths, nonFiniteText } from './finite.js';
-import { createRandom } from '../../src/simulate/random.js';
+import { createRandom } from '../../src/random/random.js';
 import { sweepSize } from '../support/sweep.js';
 
 const folder = mkdtempSync(join(tmpdir(), 'stratotrend-numbers-'));
