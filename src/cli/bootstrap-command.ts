@@ -5,11 +5,11 @@ import { classicModels } from '../models/registry.js';
 import { formatNumber } from '../render/units.js';
 import { bootstrapTests, type BootstrapTestReport } from '../simulate/bootstrap-test.js';
 import { poolRunner } from '../simulate/run-replicates.js';
-import { lineagesWithAgeModel, type AgeModelOptions } from './age-model-options.js';
-import { loadSamplesStreamed, type SampleFileOptions } from './input.js';
+import { lineagesWithAgeModel, type AgeModelOptions } from '../analyses/age-model-options.js';
+import { loadSamplesStreamed, type SampleFileOptions } from '../analyses/input.js';
 import { seedOption, wholeOption } from './power-command.js';
-import { readingProgress, stageProgress } from './progress.js';
-import { toolVersion } from './version.js';
+import { readingProgress, stageProgress } from '../io/progress.js';
+import { toolVersion } from '../io/version.js';
 
 /** Options of `stratotrend bootstrap`. */
 export interface BootstrapCommandOptions extends SampleFileOptions, AgeModelOptions {

@@ -8,7 +8,7 @@ import { ageMonteCarlo, summariseDraws, type CandidateSpread, type RankedCandida
 import { candidateKey, compareTraits, type ComparisonRun, type TraitComparison } from '../compare/compare-sections.js';
 import { perSectionName } from '../compare/joint-models.js';
 import { intervalOptions } from '../fit/intervals.js';
-import { modelsForLineage } from './fit-extensions.js';
+import { modelsForLineage } from '../analyses/fit-extensions.js';
 import { comparisonCaution, comparisonCsv, comparisonDocument, comparisonTable, estimatesCsv, spreadsDocument } from '../render/comparison-output.js';
 import { commonTime, mergeSections, toleratingCoeval } from '../compare/stack.js';
 import { fitLineage, type LineageFit } from '../fit/fit-lineage.js';
@@ -17,17 +17,17 @@ import { lineageDocument, type Provenance } from '../render/fit-document.js';
 import { modelsCsv } from '../render/models-csv.js';
 import { alignColumns, lineageTable } from '../render/text-table.js';
 import { formatNumber } from '../render/units.js';
-import { resolveModels, type ModelSelection, type ModelsOption } from './model-selection.js';
-import { ageModelHook, parseDrawOptions, warnUnusedAgeModel, type AgeModelOptions } from './age-model-options.js';
-import { lineagesOf, loadSamplesStreamed, type SampleFileOptions, type StreamedInput } from './input.js';
-import { readingProgress, stageProgress } from './progress.js';
-import { toolVersion } from './version.js';
+import { resolveModels, type ModelSelection, type ModelsOption } from '../analyses/model-selection.js';
+import { ageModelHook, parseDrawOptions, warnUnusedAgeModel, type AgeModelOptions } from '../analyses/age-model-options.js';
+import { lineagesOf, loadSamplesStreamed, type SampleFileOptions, type StreamedInput } from '../analyses/input.js';
+import { readingProgress, stageProgress } from '../io/progress.js';
+import { toolVersion } from '../io/version.js';
 import type { PowerProgress } from '../simulate/power.js';
-import { inputPaths, OutputSet, prepareOutputFolder, releaseOutputLocks, writeAtomically } from './write-output.js';
+import { inputPaths, OutputSet, prepareOutputFolder, releaseOutputLocks, writeAtomically } from '../io/write-output.js';
 
 // The age-model options moved to age-model-options.ts (shared by every samples-reading command); re-exported for callers of this module.
-export { ageModelHook, loadAgeModel, parseDrawOptions, warnUnusedAgeModel, type AgeModelOptions, type LoadedAgeModel } from './age-model-options.js';
-import type { LoadedAgeModel } from './age-model-options.js';
+export { ageModelHook, loadAgeModel, parseDrawOptions, warnUnusedAgeModel, type AgeModelOptions, type LoadedAgeModel } from '../analyses/age-model-options.js';
+import type { LoadedAgeModel } from '../analyses/age-model-options.js';
 
 /** Options of `stratotrend compare`. */
 export interface CompareCommandOptions extends SampleFileOptions, AgeModelOptions {
@@ -237,7 +237,7 @@ export async function runCompare(file: string, options: CompareCommandOptions, r
   const lineages = lineagesUnder(age?.model ?? null, warnings);
   if (age) warnUnusedAgeModel(lineages, age.model, warnings);
   // The same limits as fit for the shift searches of each section (refusal above the placement limit, long-run warning).
-  const { checkShiftSearchCost } = await import('./run-cost.js');
+  const { checkShiftSearchCost } = await import('../analyses/run-cost.js');
   checkShiftSearchCost(lineages, models, { warnings });
   const run = compareTraits(lineages, models, intervals);
   for (const skipped of run.skipped) warnings.add('input', `trait "${skipped.trait}": ${skipped.reason}`);

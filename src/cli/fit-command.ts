@@ -7,17 +7,17 @@ import { fitDocument, type Provenance } from '../render/fit-document.js';
 import { modelsCsv } from '../render/models-csv.js';
 import { adequacyText, ratesText } from '../render/extensions-text.js';
 import { lineageTable } from '../render/text-table.js';
-import { lineagesOf, loadLineages, loadSamplesStreamed, readInput, type InputText, type SampleFileOptions, type StreamedInput } from './input.js';
+import { lineagesOf, loadLineages, loadSamplesStreamed, readInput, type InputText, type SampleFileOptions, type StreamedInput } from '../analyses/input.js';
 import type { Lineage } from '../lineage.js';
 import { fitLineages } from '../parallel/fit-lineages.js';
-import { modelSetLine, resolveModels, type ModelSelection, type ModelsOption } from './model-selection.js';
-import { fittingProgress, readingProgress, searchProgress, stageProgress } from './progress.js';
-import type { AgeModelOptions, LoadedAgeModel } from './age-model-options.js';
+import { modelSetLine, resolveModels, type ModelSelection, type ModelsOption } from '../analyses/model-selection.js';
+import { fittingProgress, readingProgress, searchProgress, stageProgress } from '../io/progress.js';
+import type { AgeModelOptions, LoadedAgeModel } from '../analyses/age-model-options.js';
 import { intervalOptions } from '../fit/intervals.js';
-import { attachCovariates, extensionSettings, extrasDocument, lineageExtras, modelsForLineage, type ExtensionOptions, type LineageExtras } from './fit-extensions.js';
+import { attachCovariates, extensionSettings, extrasDocument, lineageExtras, modelsForLineage, type ExtensionOptions, type LineageExtras } from '../analyses/fit-extensions.js';
 import type { FigureCommandOptions } from './render-command.js';
-import { toolVersion } from './version.js';
-import { checkOutputFile, inputPaths, OutputSet, prepareOutputFolder, releaseOutputLocks } from './write-output.js';
+import { toolVersion } from '../io/version.js';
+import { checkOutputFile, inputPaths, OutputSet, prepareOutputFolder, releaseOutputLocks } from '../io/write-output.js';
 
 /** Options of `stratotrend fit`. */
 export interface FitCommandOptions extends AgeModelOptions, SampleFileOptions, FigureCommandOptions, ExtensionOptions {
@@ -78,7 +78,7 @@ export function runFit(file: string, options: FitCommandOptions): FitRun {
  */
 export async function runFitStreamed(file: string, options: FitCommandOptions): Promise<FitRun> {
   const warnings = new WarningLog();
-  const { ageModelHook, checkAgeModelUsage } = await import('./age-model-options.js');
+  const { ageModelHook, checkAgeModelUsage } = await import('../analyses/age-model-options.js');
   checkAgeModelUsage(options);
   // The samples first: the tie file must use their position column (height or depth).
   const { input, samples } = await loadSamplesStreamed(file, options, readingProgress(file, options));
@@ -89,7 +89,7 @@ export async function runFitStreamed(file: string, options: FitCommandOptions): 
   const selection = resolveModels(options.models);
   const { models } = selection;
   // Shift searches grow with the square of the horizons: refuse what cannot be held, announce a long run with its estimate.
-  const { checkShiftSearchCost } = await import('./run-cost.js');
+  const { checkShiftSearchCost } = await import('../analyses/run-cost.js');
   checkShiftSearchCost(lineages, models, { minimumSegment: extensionSettings(options).minimumSegment, threads: options.threads, warnings });
   const fits = await fitLineages(lineages, models, fitOptionsOf(options, lineages.length), {
     threads: options.threads,

@@ -10,11 +10,11 @@ import { designOf, pooledWithinSd } from '../simulate/design.js';
 import { defaultDrifts, powerAnalysis, type PowerProgress, type PowerReport } from '../simulate/power.js';
 import { poolRunner } from '../simulate/run-replicates.js';
 import { parseSeed } from '../random/seeds.js';
-import { lineagesWithAgeModel, type AgeModelOptions } from './age-model-options.js';
-import { loadSamplesStreamed, type SampleFileOptions, type StreamedInput } from './input.js';
-import { readingProgress, stageProgress } from './progress.js';
-import { toolVersion } from './version.js';
-import { refuseInputPath, writeAtomically } from './write-output.js';
+import { lineagesWithAgeModel, type AgeModelOptions } from '../analyses/age-model-options.js';
+import { loadSamplesStreamed, type SampleFileOptions, type StreamedInput } from '../analyses/input.js';
+import { readingProgress, stageProgress } from '../io/progress.js';
+import { toolVersion } from '../io/version.js';
+import { refuseInputPath, writeAtomically } from '../io/write-output.js';
 
 /** Options of `stratotrend power`. */
 export interface PowerCommandOptions extends SampleFileOptions, AgeModelOptions {

@@ -14,14 +14,14 @@ import {
   type FigureKind,
   type FigureOptions,
 } from '../render/figures/index.js';
-import { durationWords } from './run-cost.js';
-import { OutputSet, prepareOutputFolder, releaseOutputLocks } from './write-output.js';
+import { durationWords } from '../analyses/run-cost.js';
+import { OutputSet, prepareOutputFolder, releaseOutputLocks } from '../io/write-output.js';
 import { WarningLog } from '../data/warnings.js';
 import { figureParts, type FigurePart } from '../render/figures/figure-options.js';
 import { smoothUnderEstimates } from '../fit/fit-lineage.js';
 import { lineageFromArrays } from '../lineage.js';
 import { findModel } from '../models/registry.js';
-import { drawingProgress } from './progress.js';
+import { drawingProgress } from '../io/progress.js';
 
 /** Figure options as commander hands them over (strings until checked). */
 export interface FigureCommandOptions {

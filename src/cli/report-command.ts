@@ -7,10 +7,10 @@ import { reportPage, type ReportFigure, type ReportInput } from '../render/repor
 import { sketchTrajectory } from '../render/report/sketch-figure.js';
 import { traitUnitLabel } from '../render/units.js';
 import { runFitStreamed, type FitCommandOptions, type FitRun } from './fit-command.js';
-import type { StreamedInput } from './input.js';
-import type { ModelSelection } from './model-selection.js';
-import { stageProgress } from './progress.js';
-import { checkOutputFile, inputPaths, prepareOutputFile, releaseOutputLocks, writeAtomically } from './write-output.js';
+import type { StreamedInput } from '../analyses/input.js';
+import type { ModelSelection } from '../analyses/model-selection.js';
+import { stageProgress } from '../io/progress.js';
+import { checkOutputFile, inputPaths, prepareOutputFile, releaseOutputLocks, writeAtomically } from '../io/write-output.js';
 
 /** Options of `stratotrend report` (the fit options plus where and how to write the page). */
 export interface ReportCommandOptions extends FitCommandOptions {

@@ -5,11 +5,11 @@ import { lineageName, type Lineage } from '../lineage.js';
 import { findModel } from '../models/registry.js';
 import { designFromOptions, designLineage } from '../simulate/design.js';
 import { simulatedTable } from '../simulate/sample-table.js';
-import { lineagesWithAgeModel, type AgeModelOptions } from './age-model-options.js';
-import { loadSamplesStreamed, timeUnitOption, type SampleFileOptions } from './input.js';
-import { readingProgress } from './progress.js';
+import { lineagesWithAgeModel, type AgeModelOptions } from '../analyses/age-model-options.js';
+import { loadSamplesStreamed, timeUnitOption, type SampleFileOptions } from '../analyses/input.js';
+import { readingProgress } from '../io/progress.js';
 import { numberOption, seedOption, wholeOption } from './power-command.js';
-import { refuseInputPath, writeAtomically } from './write-output.js';
+import { refuseInputPath, writeAtomically } from '../io/write-output.js';
 
 /** Options of `stratotrend simulate`. */
 export interface SimulateCommandOptions extends SampleFileOptions, AgeModelOptions {

@@ -36,7 +36,7 @@ const { runCompare } = await import('../../src/cli/compare-command.js');
 const { simulateCommand } = await import('../../src/cli/simulate-command.js');
 const { reportCommand } = await import('../../src/cli/report-command.js');
 const { fitCommand } = await import('../../src/cli/fit-command.js');
-const { loadSamplesStreamed } = await import('../../src/cli/input.js');
+const { loadSamplesStreamed } = await import('../../src/analyses/input.js');
 
 const shellLength = join(root, 'sample-data', 'shell-length.csv');
 const heights = join(root, 'sample-data', 'locality-heights.csv');

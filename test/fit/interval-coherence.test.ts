@@ -15,7 +15,7 @@ import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { fitModel, type ModelFit } from '../../src/fit/fit-model.js';
 import { intervalMethods, type IntervalMethod } from '../../src/fit/intervals.js';
-import { loadLineages, readInput } from '../../src/cli/input.js';
+import { loadLineages, readInput } from '../../src/analyses/input.js';
 import { WarningLog } from '../../src/data/warnings.js';
 import { intervalFallbackPrefix } from '../../src/fit/fit-model.js';
 import { lineageFromArrays, type Lineage } from '../../src/lineage.js';

@@ -12,7 +12,7 @@ import { Matrix, inverse } from 'ml-matrix';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { assumedStepVariances, powerTable, runPower, type PowerRun } from '../../src/cli/power-command.js';
 import { fitModel } from '../../src/fit/fit-model.js';
-import { loadLineages, readInput } from '../../src/cli/input.js';
+import { loadLineages, readInput } from '../../src/analyses/input.js';
 import { WarningLog } from '../../src/data/warnings.js';
 import { directionalWalk } from '../../src/models/directional-walk.js';
 import { assumedVarianceWords, powerAssumptionCaption, powerCurvePlan } from '../../src/render/figures/power-curve.js';

@@ -5,7 +5,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { readAgeModel } from '../../src/data/age-model.js';
 import { readTable } from '../../src/data/read-table.js';
 import { WarningLog } from '../../src/data/warnings.js';
-import { warnImplausibleRates } from '../../src/cli/age-model-options.js';
+import { warnImplausibleRates } from '../../src/analyses/age-model-options.js';
 import { runPower } from '../../src/cli/power-command.js';
 import { runFitStreamed } from '../../src/cli/fit-command.js';
 import { root, runCli } from '../robustness/cli.js';
