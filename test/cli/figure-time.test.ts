@@ -5,7 +5,7 @@
  * warning follows the stated formula and threshold, not a timing.
  */
 import { describe, expect, it } from 'vitest';
-import { figureTimeWarning, longDrawingSeconds, planFigureFiles, secondsPerFigure } from '../../src/cli/render-command.js';
+import { figureTimeWarning, longDrawingSeconds, planFigureFiles, secondsPerFigure } from '../../src/analyses/figure-files.js';
 import { durationWords } from '../../src/analyses/run-cost.js';
 
 /** Invented lineage documents: only the names matter for the plan. */

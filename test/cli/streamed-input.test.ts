@@ -32,7 +32,7 @@ vi.mock('../../src/data/stream-samples.js', async (importOriginal) => {
   };
 });
 
-const { runCompare } = await import('../../src/cli/compare-command.js');
+const { runCompare } = await import('../../src/analyses/compare-run.js');
 const { simulateCommand } = await import('../../src/cli/simulate-command.js');
 const { reportCommand } = await import('../../src/cli/report-command.js');
 const { fitCommand } = await import('../../src/cli/fit-command.js');

@@ -10,7 +10,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Matrix, solve } from 'ml-matrix';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { candidates, runCompare, type CompareRun } from '../../src/cli/compare-command.js';
+import { candidates, runCompare, type CompareRun } from '../../src/analyses/compare-run.js';
 import { compareSections, sameFit, sameFitTolerance, sharedShiftReason } from '../../src/compare/compare-sections.js';
 import { offsetModel } from '../../src/compare/joint-models.js';
 import { comparisonDocument, comparisonTable, estimateText } from '../../src/render/comparison-output.js';

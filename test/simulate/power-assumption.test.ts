@@ -10,7 +10,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Matrix, inverse } from 'ml-matrix';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { assumedStepVariances, powerTable, runPower, type PowerRun } from '../../src/cli/power-command.js';
+import { assumedStepVariances, powerTable, runPower, type PowerRun } from '../../src/analyses/power-run.js';
 import { fitModel } from '../../src/fit/fit-model.js';
 import { loadLineages, readInput } from '../../src/analyses/input.js';
 import { WarningLog } from '../../src/data/warnings.js';
