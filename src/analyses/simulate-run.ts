@@ -48,7 +48,7 @@ export function parseParameters(text: string | undefined, known: readonly string
  *
  * @param onRead called with the reading's time-axis and input warnings as soon as FILE is read
  * @example
- * runSimulate(undefined, { model: 'random-walk', parameters: 'ancestral_mean=5,step_variance=0.01', seed: '7' }); // resolves to 'section,trait,age,n,mean,sd\n...'
+ * runSimulate(undefined, { model: 'random-walk', parameters: 'ancestral_mean=5,step_variance=0.01', seed: '7' }); // resolves to 'section,trait,time,n,mean,sd\n...' (one row per horizon)
  */
 export async function runSimulate(file: string | undefined, options: SimulateCommandOptions, onRead?: (warnings: readonly Warning[]) => void): Promise<string> {
   const model = findModel(options.model ?? 'directional-walk');

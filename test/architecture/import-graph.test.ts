@@ -136,6 +136,13 @@ describe('no circles in src/', () => {
     expect(circles(folderGraph(fileGraph))).toEqual([]);
   });
 
+  it('a command file (cli/*-command.ts) imports no other file of cli/: the work is in analyses/, the shared parts in io/ (issue 13)', () => {
+    const commandFiles = [...fileGraph.keys()].filter((path) => /^cli\/[^/]+-command\.ts$/.test(path));
+    expect(commandFiles.length).toBeGreaterThanOrEqual(7); // the seven commands of `stratotrend --help`: fit, compare, report, power, simulate, bootstrap, redraw
+    const crossing = commandFiles.flatMap((from) => fileGraph.get(from)!.filter((target) => folderOf(target) === 'cli').map((target) => `${from} → ${target}`));
+    expect(crossing).toEqual([]);
+  });
+
   it('fit/ imports neither simulate/ nor parallel/ (random numbers and simulation under a model live below it, in random/)', () => {
     const crossing = [...fileGraph].flatMap(([from, targets]) => (folderOf(from) === 'fit' ? targets.filter((target) => ['simulate', 'parallel'].includes(folderOf(target))).map((target) => `${from} → ${target}`) : []));
     expect(crossing).toEqual([]);
