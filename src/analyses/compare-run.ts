@@ -324,13 +324,13 @@ export function sectionDocuments(comparison: TraitComparison, models: ModelSelec
   const { starts } = commonTime(comparison.sections);
   return comparison.sections.map((section, s) => {
     const document = lineageDocument(fitLineage(section, models, { intervals: false }));
-    const data = document.data as Record<string, unknown>;
+    const { data } = document;
     const firstAge = section.firstAge ?? 0;
     const placed = { ...document, position_kind: 'age', data: { ...data, position: Array.from(section.time, (t) => firstAge - t) } };
     if (!winner || !joint) return placed;
     // A shared hypothesis won: the winning model's row carries the section's parameters under that hypothesis, not its separate fit.
     const parameters = joint.sectionParameters({ ...winner.estimates }, s);
-    const rows = (document.models as Record<string, unknown>[]).map((row) => {
+    const rows = document.models.map((row) => {
       if (row.id !== winner.model) return row;
       const params = Object.fromEntries(Object.entries(parameters).map(([name, value]) => [name, { estimate: Number.isFinite(value) ? value : null, lower: null, upper: null, at_bound: null, lower_at_bound: false, upper_at_bound: false }]));
       return { ...row, params, derived: {} };

@@ -2,7 +2,7 @@ import { WarningLog } from '../data/warnings.js';
 import { fitLineage, type LineageFit } from '../fit/fit-lineage.js';
 import { intervalFallbackPrefix, type FitOptions } from '../fit/fit-model.js';
 import { defaultMinimumSegment } from '../models/model.js';
-import { fitDocument, type Provenance } from '../render/fit-document.js';
+import { fitDocument, type FitDocument, type Provenance } from '../render/fit-document.js';
 import { lineagesOf, loadLineages, loadSamplesStreamed, readInput, type InputText, type SampleFileOptions, type StreamedInput } from './input.js';
 import type { Lineage } from '../lineage.js';
 import { fitLineages } from '../parallel/fit-lineages.js';
@@ -34,7 +34,7 @@ export interface FitCommandOptions extends AgeModelOptions, SampleFileOptions, F
 /** Everything `fit` computed, before it is printed or written. */
 export interface FitRun {
   readonly fits: LineageFit[];
-  readonly document: Record<string, unknown>;
+  readonly document: FitDocument;
   readonly warnings: WarningLog;
   /** Rates, adequacy and left-out models per lineage (shift/covariate options), in `fits` order. */
   readonly extras?: readonly LineageExtras[];
@@ -95,10 +95,17 @@ export async function runFitStreamed(file: string, options: FitCommandOptions): 
     // The age model is part of the result (fit, and the report made from the same run): its file, its options, its ties and rates.
     const { parseDrawOptions, ageModelDocument } = await import('./compare-run.js');
     const { draws, seed } = parseDrawOptions(options);
-    const provenance = run.document.provenance as { inputs: { file: string; sha256: string }[]; options: Record<string, unknown> };
-    provenance.inputs.push({ file: age.input.name, sha256: age.input.sha256 });
-    Object.assign(provenance.options, { age_model: options.ageModel, extrapolate: options.extrapolate === true, age_draws: draws, seed: draws > 0 ? seed : null });
-    run.document.age_model = ageModelDocument(age.model);
+    const { provenance } = run.document;
+    const document: FitDocument = {
+      ...run.document,
+      provenance: {
+        ...provenance,
+        inputs: [...provenance.inputs, { file: age.input.name, sha256: age.input.sha256 }],
+        options: { ...provenance.options, age_model: options.ageModel, extrapolate: options.extrapolate === true, age_draws: draws, seed: draws > 0 ? seed : null },
+      },
+      age_model: ageModelDocument(age.model),
+    };
+    return { ...run, document, read: { input, samples }, age };
   }
   return { ...run, read: { input, samples }, age };
 }
@@ -143,8 +150,8 @@ export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lin
     },
   };
   const extras = fits.map((fit, j) => lineageExtras(fit, settings, kept[j].leftOut));
-  const document = fitDocument(fits, provenance, warnings.list(), name);
-  (document as { lineages: Record<string, unknown>[] }).lineages.forEach((lineage, j) => Object.assign(lineage, extrasDocument(extras[j])));
+  const built = fitDocument(fits, provenance, warnings.list(), name);
+  const document: FitDocument = { ...built, lineages: built.lineages.map((lineage, j) => ({ ...lineage, ...extrasDocument(extras[j]) })) };
   return { fits, document, warnings, extras, selection };
 }
 

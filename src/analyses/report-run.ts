@@ -330,7 +330,7 @@ export async function writeReportForRun(
   checkOutputFile(path, inputs, '--report file');
   // The layout choices and the extra input files carry over from fit; fit's --figure-format names files, the page takes SVG.
   const { orientation, drawModel, smoothedBand, ageModel, covariateFile } = fitOptions;
-  const html = await buildReport(asFitDocument(run.document), { orientation, drawModel, smoothedBand, ageModel, covariateFile });
+  const html = await buildReport(run.document, { orientation, drawModel, smoothedBand, ageModel, covariateFile });
   // Like every output name: never over an input, nor over a file stratotrend did not write.
   writeAtomically(prepareOutputFile(path, inputs, '--report file'), html);
 }
@@ -372,7 +372,7 @@ export async function runReport(file: string, options: ReportCommandOptions): Pr
     // The fit options pass through unchanged, so the page shows exactly what `fit` with the same options computes.
     const { out: _out, figureFormat: _format, attach: _attach, compare: _compare, power: _power, powerReplicates: _replicates, seed: _seed, ...fitOptions } = options;
     const run = await runFitStreamed(file, { ...fitOptions, quiet: true });
-    const document = asFitDocument(run.document);
+    const document = run.document;
     // The comparison and power analyses reuse the horizons the fit read (the file, or stdin, is read once).
     const analyses = await runAnalyses(file, document, options, run.read, run.selection);
     html = await buildReport(document, options, { analyses });

@@ -44,7 +44,7 @@ async function fitAndWrite(file: string, options: FitCommandOptions): Promise<vo
   const summary = compilation ? compilation.addCompilation(run) : null;
   // Figures load their module (and, when drawing, the chart stack) only with --out.
   const figures = options.out && options.figures !== false ? await import('../analyses/figure-files.js') : null;
-  const lineageDocuments = (run.document as { lineages: unknown[] }).lineages;
+  const lineageDocuments = run.document.lineages;
   const figurePlan = figures ? figures.planFigureFiles(lineageDocuments, options) : null;
   const longDrawing = figures && figurePlan ? figures.figureTimeWarning(figurePlan, 'to skip them, run with --no-figures and draw the ones you need later with "stratotrend redraw fit.json --lineage NAME"') : null;
   if (longDrawing && options.out) {
