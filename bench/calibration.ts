@@ -2,7 +2,7 @@ import { pathToFileURL } from 'node:url';
 import { defaultIntervalMethod, intervalMethods, type IntervalMethod } from '../src/fit/intervals.js';
 import { summariseCoverage, type CoverageTask } from '../src/simulate/coverage.js';
 import type { Design } from '../src/simulate/design.js';
-import { createRandom } from '../src/simulate/random.js';
+import { createRandom } from '../src/random/random.js';
 import { poolRunner } from '../src/simulate/run-replicates.js';
 
 /** Options of {@link runCalibration}; every field has a default. */

@@ -7,7 +7,7 @@ import { createHash } from 'node:crypto';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { loadLineages, readInput } from '../src/cli/input.js';
+import { loadLineages, readInput } from '../src/analyses/input.js';
 import { WarningLog } from '../src/data/warnings.js';
 import { fitLineage, type LineageFit } from '../src/fit/fit-lineage.js';
 import { classicModels } from '../src/models/registry.js';

@@ -1,7 +1,7 @@
 import { lineageFromArrays, type Lineage } from '../src/lineage.js';
 import { classicModels } from '../src/models/registry.js';
-import { createRandom, type RandomSource } from '../src/simulate/random.js';
-import { simulateMeans, withMeans } from '../src/simulate/simulate-lineage.js';
+import { createRandom, type RandomSource } from '../src/random/random.js';
+import { simulateMeans, withMeans } from '../src/random/simulate-lineage.js';
 
 /**
  * Invented benchmark lineages: uneven horizon spacing, uneven sample sizes,

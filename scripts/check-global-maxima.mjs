@@ -10,7 +10,7 @@ import { fitModel } from '../dist/src/fit/fit-model.js';
 import { lineageFromArrays } from '../dist/src/lineage.js';
 import { extensionModels } from '../dist/src/models/extensions.js';
 import { findModel } from '../dist/src/models/registry.js';
-import { createRandom } from '../dist/src/simulate/random.js';
+import { createRandom } from '../dist/src/random/random.js';
 
 const replicates = Number(process.argv[2] ?? 200);
 const tolerance = 1e-6;

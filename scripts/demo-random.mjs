@@ -1,6 +1,6 @@
 // Seeded numbers for the demo-data scripts: mulberry32 (a small 32-bit
 // generator) with Box–Muller normals. Enough for invented demonstration data;
-// the tool's own simulations use src/simulate/random.ts.
+// the tool's own simulations use src/random/random.ts.
 export function generator(state) {
   let a = state >>> 0;
   const uniform = () => {

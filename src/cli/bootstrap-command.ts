@@ -1,27 +1,10 @@
-import { WarningLog } from '../data/warnings.js';
-import { fitLineage } from '../fit/fit-lineage.js';
-import { lineageName } from '../lineage.js';
-import { classicModels } from '../models/registry.js';
+import { caution, runBootstrap, type BootstrapCommandOptions } from '../analyses/bootstrap-run.js';
+import { stageProgress } from '../io/progress.js';
 import { formatNumber } from '../render/units.js';
-import { bootstrapTests, type BootstrapTestReport } from '../simulate/bootstrap-test.js';
-import { poolRunner } from '../simulate/run-replicates.js';
-import { lineagesWithAgeModel, type AgeModelOptions } from './age-model-options.js';
-import { loadSamplesStreamed, type SampleFileOptions } from './input.js';
-import { seedOption, wholeOption } from './power-command.js';
-import { readingProgress, stageProgress } from './progress.js';
-import { toolVersion } from './version.js';
+import type { BootstrapTestReport } from '../simulate/bootstrap-test.js';
 
-/** Options of `stratotrend bootstrap`. */
-export interface BootstrapCommandOptions extends SampleFileOptions, AgeModelOptions {
-  replicates?: string;
-  seed?: string;
-  threads?: string;
-  json?: boolean;
-  quiet?: boolean;
-}
-
-const caution =
-  'A bootstrap p-value is exact only for the fitted null model taken as true; model support also depends on sampling, time-averaging and the age model, and a good fit to a random walk says nothing by itself about drift versus selection. Weigh it with the specialist’s judgement.';
+// `stratotrend bootstrap`: the tests are run by runBootstrap
+// (src/analyses/bootstrap-run.ts); this file prints them as text or JSON.
 
 /** One lineage's tests as text. */
 export function bootstrapTable(name: string, report: BootstrapTestReport): string {
@@ -45,38 +28,19 @@ export function bootstrapTable(name: string, report: BootstrapTestReport): strin
 
 /** `stratotrend bootstrap FILE`: parametric-bootstrap tests for every lineage. */
 export async function bootstrapCommand(file: string, options: BootstrapCommandOptions): Promise<void> {
-  // Streamed: a specimen file of millions of rows is read in bounded memory.
-  const warnings = new WarningLog();
-  const { input, samples } = await loadSamplesStreamed(file, options, readingProgress(file, options));
-  // Heights and depths become ages through the same age-model options as fit.
-  const { lineages } = lineagesWithAgeModel(file, samples, options, warnings);
-  for (const warning of warnings.list()) if (warning.category === 'time-axis' || warning.category === 'input') process.stderr.write(`warning (${warning.category}): ${warning.message}\n`);
-  const replicates = wholeOption(options.replicates, '--replicates', 200, 19, 100000);
-  const seed = seedOption(options.seed);
-  const threads = options.threads === undefined ? undefined : wholeOption(options.threads, '--threads', 1, 1, 256);
-  const runner = poolRunner({ threads });
+  const onRead = (warnings: readonly { category: string; message: string }[]): void => {
+    for (const warning of warnings) process.stderr.write(`warning (${warning.category}): ${warning.message}\n`);
+  };
   const reporter = stageProgress(options.quiet);
-  const results: { name: string; report: BootstrapTestReport }[] = [];
+  let run: Awaited<ReturnType<typeof runBootstrap>>;
   try {
-    for (const lineage of lineages) {
-      const fit = fitLineage(lineage, classicModels, { intervals: false });
-      const stage = reporter.progress ? (label: string, total: number) => reporter.progress!.stage(`${lineageName(lineage)}: ${label}`.slice(0, 40), total) : undefined;
-      results.push({ name: lineageName(lineage), report: await bootstrapTests(fit, replicates, seed, runner, stage) });
-    }
+    run = await runBootstrap(file, options, { onRead, progress: reporter.progress });
   } finally {
     reporter.stop();
   }
   if (options.json) {
-    const document = {
-      tool: 'stratotrend',
-      version: toolVersion(),
-      command: 'bootstrap',
-      input: { file: input.name, sha256: input.sha256 },
-      lineages: results.map(({ name, report }) => ({ lineage: name, ...report })),
-      caution,
-    };
-    process.stdout.write(JSON.stringify(document, null, 2) + '\n');
+    process.stdout.write(JSON.stringify(run.document, null, 2) + '\n');
   } else if (!options.quiet) {
-    process.stdout.write(results.map(({ name, report }) => bootstrapTable(name, report)).join('\n\n') + '\n\n' + caution + '\n');
+    process.stdout.write(run.results.map(({ name, report }) => bootstrapTable(name, report)).join('\n\n') + '\n\n' + caution + '\n');
   }
 }

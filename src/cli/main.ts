@@ -7,7 +7,7 @@ import { defineBootstrapCommand } from './commands/bootstrap.js';
 import { defineSimulateCommand } from './commands/simulate.js';
 import { defineRedrawCommand } from './commands/render.js';
 import { defineReportCommand } from './commands/report.js';
-import { toolVersion } from './version.js';
+import { toolVersion } from '../io/version.js';
 
 /**
  * Command-line entry point. Commands load their modules only when run, so

@@ -1,6 +1,6 @@
 import type { AgeModel, TiePoint } from '../data/age-model.js';
 import { InputError } from '../data/errors.js';
-import { createRandom, type RandomSource } from '../simulate/random.js';
+import { createRandom, type RandomSource } from '../random/random.js';
 import { quantileOfSorted } from '../statistics/quantiles.js';
 
 /**

@@ -1,8 +1,8 @@
 import { probit } from 'simple-statistics';
 import type { Lineage } from '../lineage.js';
 import type { EvolutionModel } from '../models/model.js';
-import { createRandom } from '../simulate/random.js';
-import { simulateMeans, withMeans } from '../simulate/simulate-lineage.js';
+import { createRandom } from '../random/random.js';
+import { simulateMeans, withMeans } from '../random/simulate-lineage.js';
 import { fitAtConfiguration } from './fit-configurations.js';
 import { smoothUnder } from './fit-lineage.js';
 import { fitModel, type FitOptions, type ModelFit } from './fit-model.js';

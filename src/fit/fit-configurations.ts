@@ -1,16 +1,9 @@
 import type { Lineage } from '../lineage.js';
 import { bindConfiguration, defaultMinimumSegment, type Configuration, type EvolutionModel } from '../models/model.js';
 import { LikelihoodEvaluator } from './evaluator.js';
-import { unfittedFit, type FitOptions, type ModelFit, type ParameterEstimate } from './fit-model.js';
+import { unfittedFit, type FitOptions, type ModelFit, type ParameterEstimate, type SearchProgress } from './fit-results.js';
 
-/** Progress of a configuration search, for a progress bar. */
-export interface SearchProgress {
-  readonly model: string;
-  /** "screen" (the bounds of every configuration, fast) or "refine" (full searches). */
-  readonly stage: 'screen' | 'refine';
-  readonly done: number;
-  readonly total: number;
-}
+export type { SearchProgress } from './fit-results.js';
 
 /**
  * A configuration is left out when its upper bound is below the best full

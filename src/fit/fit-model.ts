@@ -1,97 +1,22 @@
 import type { Lineage } from '../lineage.js';
 import { axisIndexOf, varianceScale, type EvolutionModel } from '../models/model.js';
 import { LikelihoodEvaluator } from './evaluator.js';
-import { fitOverConfigurations, shiftRecords, type SearchProgress } from './fit-configurations.js';
+import { fitOverConfigurations, shiftRecords } from './fit-configurations.js';
+import { unfittedFit, type FitOptions, type ModelFit, type ParameterEstimate } from './fit-results.js';
 import { replaceIntervals, type IntervalMethod } from './intervals-method.js';
 import { locationEnds, openTowardTrendLimit, parameterEnds } from './intervals.js';
 import { chiSquare1At95 } from './model-choice.js';
 import { findRoot } from './optimise.js';
 import { maximiseProcess, type AxisPosition } from './search.js';
 
-/** A parameter estimate with its 95% profile-likelihood interval. */
-export interface ParameterEstimate {
-  /** Maximum-likelihood estimate, or null when it is not finite (e.g. the optimum at the alpha -> 0 limit). */
-  readonly estimate: number | null;
-  /** Interval ends; null when the interval is open (reaches a limit). */
-  readonly lower: number | null;
-  readonly upper: number | null;
-  /** "zero" when the estimate sits on the bound 0; a limit name ("alpha-zero", "alpha-infinite") when at a limit. */
-  readonly atBound: string | null;
-  /** The interval reaches the parameter's bound or limit at this end. */
-  readonly lowerAtBound: boolean;
-  readonly upperAtBound: boolean;
-}
-
-/** One model fitted to one lineage: plain, immutable, read by every output format. */
-export interface ModelFit {
-  readonly id: string;
-  readonly label: string;
-  /** K, number of estimated parameters. */
-  readonly k: number;
-  /** N, number of horizons. */
-  readonly horizons: number;
-  /** Maximised log-likelihood (the supremum when at a bound or limit). */
-  readonly logLik: number;
-  readonly converged: boolean;
-  /** Why the model was not fitted or not converged, in words. */
-  readonly message: string | null;
-  readonly parameters: Readonly<Record<string, ParameterEstimate>>;
-  /** Derived quantities (half_life of a model with alpha; ou's limit_drift at alpha = 0). */
-  readonly derived: Readonly<Record<string, ParameterEstimate>>;
-  /** Process values at the maximum (search space) and design coefficients. */
-  readonly process: readonly number[];
-  readonly estimates: Readonly<Record<string, number>>;
-  /** Estimates at a bound or a limit, in words, for warnings. */
-  readonly flags: readonly string[];
-  /** Which interval method produced lower/upper. */
-  readonly intervalMethod: string;
-  readonly evaluations: number;
-  /** Model-specific extra fields for the JSON (e.g. `shifts` of a shift model). */
-  readonly extra?: Readonly<Record<string, unknown>>;
-}
-
-/** Options of {@link fitModel}. */
-export interface FitOptions {
-  /** Compute 95% profile-likelihood intervals (default true). */
-  intervals?: boolean;
-  /** Grid points per process axis of the search (default 24). */
-  gridPoints?: number;
-  /** How intervals are made (default 'profile'; see `intervals.ts`). */
-  intervalMethod?: IntervalMethod;
-  /** Replicates and seed of the 'bootstrap' interval method (default 199 and 1). */
-  bootstrapReplicates?: number;
-  bootstrapSeed?: number;
-  /** Fewest horizons per segment of a shift model (default `defaultMinimumSegment`, 5). */
-  minimumSegment?: number;
-  /** Only these parameters get intervals (default all); the others keep their estimate with no ends. For coverage studies. */
-  intervalParameters?: readonly string[];
-  /** Called during the configuration search of shift models (screen, then refine). */
-  onProgress?: (progress: SearchProgress) => void;
-}
+// The results types live in fit-results.ts (so fit-configurations.ts and the interval methods need not import this file); re-exported for the code that imports them from here.
+export { unfittedFit, type FitOptions, type ModelFit, type ParameterEstimate, type SearchProgress } from './fit-results.js';
 
 /** How a flag saying that a model's intervals fell back to another method starts (the CLI prints these as `interval-fallback` warnings). */
 export const intervalFallbackPrefix = 'intervals by the plain profile likelihood';
 
 /** Half the 95% chi-square(1) quantile: the profile drop that defines a 95% interval. */
 export const profileDrop = chiSquare1At95 / 2;
-
-/** A model that could not be fitted to this lineage, with the reason in words. */
-export const unfittedFit = (model: EvolutionModel, lineage: Lineage, message: string): ModelFit => ({
-  id: model.id,
-  label: model.label,
-  k: model.parameterCount(lineage),
-  horizons: lineage.mean.length,
-  logLik: Number.NEGATIVE_INFINITY,
-  converged: false,
-  message,
-  parameters: {},
-  derived: {},
-  process: [],
-  estimates: {},
-  flags: [],
-  intervalMethod: 'profile',
-  evaluations: 0,
-});
 
 /**
  * Fit one model to one lineage by maximum likelihood: location parameters by
@@ -190,6 +115,9 @@ function scaleFitBack(model: EvolutionModel, lineage: Lineage, scaling: Standard
   };
 }
 
+/** The bootstrap intervals' refit of each replicate (handed to `replaceIntervals`, which cannot import this file). */
+const refitWithoutIntervals = (model: EvolutionModel, lineage: Lineage): ModelFit => fitModel(model, lineage, { intervals: false });
+
 /** {@link fitModel} on the lineage as given (standardised by the caller). */
 function fitStandardised(model: EvolutionModel, lineage: Lineage, options: FitOptions): ModelFit {
   const size = lineage.mean.length;
@@ -257,7 +185,7 @@ function fitStandardised(model: EvolutionModel, lineage: Lineage, options: FitOp
   let intervalMethod: string = requested;
   if (intervalMethod !== 'profile' && intervalMethod !== 'none') {
     // The method actually used: 'integrated' falls back to 'adjusted' for models with several process parameters.
-    const replaced = replaceIntervals(intervalMethod as Exclude<IntervalMethod, 'profile'>, evaluator, estimates, parameters, processInterval, options);
+    const replaced = replaceIntervals(intervalMethod as Exclude<IntervalMethod, 'profile'>, evaluator, estimates, parameters, processInterval, { ...options, refit: refitWithoutIntervals });
     intervalMethod = replaced.method;
     let fallback = replaced.fallback;
     const stray = fallback === null ? strayIntervals(parameters) : [];

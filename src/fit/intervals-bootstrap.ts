@@ -1,10 +1,10 @@
 import type { Lineage } from '../lineage.js';
 import type { EvolutionModel } from '../models/model.js';
-import { createRandom } from '../simulate/random.js';
-import { replicateSeed } from '../simulate/seeds.js';
-import { simulateMeans, withMeans } from '../simulate/simulate-lineage.js';
+import { createRandom } from '../random/random.js';
+import { replicateSeed } from '../random/seeds.js';
+import { simulateMeans, withMeans } from '../random/simulate-lineage.js';
 import { LikelihoodEvaluator } from './evaluator.js';
-import { fitModel } from './fit-model.js';
+import type { ModelFit } from './fit-results.js';
 import { profileFunction } from './intervals.js';
 import { chiSquare1At95 } from './model-choice.js';
 import { orderQuantile } from '../statistics/quantiles.js';
@@ -17,7 +17,12 @@ export interface BootstrapCutoffOptions {
   readonly seed?: number;
   /** Coverage level (default 0.95). */
   readonly level?: number;
+  /** The fitter, without intervals, for each replicate (`fitModel(model, lineage, { intervals: false })`); passed in so this file does not import fit-model.ts, which imports it. */
+  readonly refit: Refit;
 }
+
+/** Fit one model to one lineage without intervals (the bootstrap's refit of each replicate). */
+export type Refit = (model: EvolutionModel, lineage: Lineage) => ModelFit;
 
 /** Likelihood-ratio cut-offs per parameter, with how many replicates made them. */
 export interface BootstrapCutoffs {
@@ -48,7 +53,7 @@ export function bootstrapCutoffs(
   design: Lineage,
   estimates: Readonly<Record<string, number>>,
   names: readonly string[],
-  options: BootstrapCutoffOptions = {},
+  options: BootstrapCutoffOptions,
 ): BootstrapCutoffs {
   const replicates = options.replicates ?? 199;
   const seed = options.seed ?? 1;
@@ -59,7 +64,7 @@ export function bootstrapCutoffs(
     for (let r = 0; r < replicates; r++) {
       const means = simulateMeans(model, design, { ...estimates }, createRandom(replicateSeed(seed, 7, r)));
       const lineage = withMeans(design, means);
-      const refit = fitModel(model, lineage, { intervals: false });
+      const refit = options.refit(model, lineage);
       if (!refit.converged) continue;
       const evaluator = new LikelihoodEvaluator(model, lineage);
       for (const name of names) {

@@ -1,6 +1,6 @@
 import type { LikelihoodEvaluator } from './evaluator.js';
-import type { ParameterEstimate } from './fit-model.js';
-import { bootstrapCutoffs } from './intervals-bootstrap.js';
+import type { ParameterEstimate } from './fit-results.js';
+import { bootstrapCutoffs, type Refit } from './intervals-bootstrap.js';
 import { integratedIntervals } from './intervals-integrated.js';
 import { intervalsByProfile, restrictedEstimates, type IntervalEnds, type IntervalMethod } from './intervals.js';
 import { chiSquare1At95 } from './model-choice.js';
@@ -50,7 +50,8 @@ export const degenerateCutoff = 0.01;
  * made from fewer than 19 replicates, come back with a `fallback` reason and
  * `parameters` untouched.
  * Parameters without a finite estimate keep what they have. Called by
- * `fitModel` only.
+ * `fitModel` only, which hands its own fitter in as `options.refit` (the
+ * bootstrap refits each replicate) so this file need not import it.
  */
 export function replaceIntervals(
   method: Exclude<IntervalMethod, 'profile'>,
@@ -58,7 +59,7 @@ export function replaceIntervals(
   estimates: Readonly<Record<string, number>>,
   parameters: Record<string, ParameterEstimate>,
   processEnds: ProcessEnds,
-  options: { bootstrapReplicates?: number; bootstrapSeed?: number; intervalParameters?: readonly string[] },
+  options: { bootstrapReplicates?: number; bootstrapSeed?: number; intervalParameters?: readonly string[]; refit: Refit },
 ): ReplacedIntervals {
   const names = Object.keys(parameters).filter((name) => parameters[name].estimate !== null && (!options.intervalParameters || options.intervalParameters.includes(name)));
   if (method === 'integrated') {
@@ -87,6 +88,7 @@ export function replaceIntervals(
     const cutoffs = bootstrapCutoffs(evaluator.model, evaluator.lineage, generator, names, {
       replicates: options.bootstrapReplicates,
       seed: options.bootstrapSeed,
+      refit: options.refit,
     });
     const few = names.find((name) => cutoffs.used[name] < 19);
     if (few) return { method, fallback: `only ${cutoffs.used[few]} bootstrap replicates gave a statistic for ${few} (at least 19 are needed)` };

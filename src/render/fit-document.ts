@@ -1,6 +1,7 @@
 import type { Warning } from '../data/warnings.js';
 import type { LineageFit, RankedFit } from '../fit/fit-lineage.js';
 import type { ParameterEstimate } from '../fit/fit-model.js';
+import type { EstimateView, FitDocumentView, LineageView, ModelView } from './report/document-view.js';
 
 /** What produced a result: tool, inputs with checksums, and every option. */
 export interface Provenance {
@@ -16,7 +17,7 @@ export function finiteOrNull(value: number | null | undefined): number | null {
 }
 
 /** An estimate and its interval ends as JSON (null for what is not finite), with where it sits at a bound. */
-export function estimateEndsDocument(estimate: ParameterEstimate): Record<string, unknown> {
+export function estimateEndsDocument(estimate: ParameterEstimate): Pick<EstimateView, 'estimate' | 'lower' | 'upper' | 'at_bound'> {
   return {
     estimate: finiteOrNull(estimate.estimate),
     lower: finiteOrNull(estimate.lower),
@@ -25,7 +26,7 @@ export function estimateEndsDocument(estimate: ParameterEstimate): Record<string
   };
 }
 
-function estimateDocument(estimate: ParameterEstimate): Record<string, unknown> {
+function estimateDocument(estimate: ParameterEstimate): EstimateView {
   return {
     ...estimateEndsDocument(estimate),
     lower_at_bound: estimate.lowerAtBound,
@@ -34,7 +35,7 @@ function estimateDocument(estimate: ParameterEstimate): Record<string, unknown> 
 }
 
 /** The JSON form of one ranked model fit. */
-export function modelDocument(model: RankedFit): Record<string, unknown> {
+export function modelDocument(model: RankedFit): ModelView {
   return {
     id: model.id,
     label: model.label,
@@ -55,7 +56,7 @@ export function modelDocument(model: RankedFit): Record<string, unknown> {
 }
 
 /** The JSON form of one lineage's fit, including its data so figures can be redrawn without refitting. */
-export function lineageDocument(fit: LineageFit): Record<string, unknown> {
+export function lineageDocument(fit: LineageFit): LineageView {
   const { lineage } = fit;
   const list = (values: ArrayLike<number>): (number | null)[] => Array.from(values, (value) => finiteOrNull(value));
   return {
@@ -92,8 +93,19 @@ export function lineageDocument(fit: LineageFit): Record<string, unknown> {
   };
 }
 
+/**
+ * The fit document as `fit` builds it, typed once (issue 22): the shape the
+ * report and the figures read (`FitDocumentView`), plus the blocks `fit` adds
+ * after fitting (`--age-model`, `--age-draws`, `--summary`).
+ */
+export interface FitDocument extends FitDocumentView {
+  age_model?: Record<string, unknown>;
+  age_uncertainty?: Record<string, unknown>;
+  compilation?: unknown;
+}
+
 /** The whole `--json` / fit.json document. */
-export function fitDocument(fits: readonly LineageFit[], provenance: Provenance, warnings: readonly Warning[], modelSet: string): Record<string, unknown> {
+export function fitDocument(fits: readonly LineageFit[], provenance: Provenance, warnings: readonly Warning[], modelSet: string): FitDocument {
   return {
     provenance,
     model_set: modelSet,

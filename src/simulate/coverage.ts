@@ -4,9 +4,9 @@ import { covers, intervalsByProfile, type IntervalEnds, type IntervalMethod } fr
 import { chiSquare1At95 } from '../fit/model-choice.js';
 import { findModel } from '../models/registry.js';
 import { designLineage, type Design } from './design.js';
-import { createRandom } from './random.js';
-import { replicateSeed } from './seeds.js';
-import { simulateMeans, withMeans } from './simulate-lineage.js';
+import { createRandom } from '../random/random.js';
+import { replicateSeed } from '../random/seeds.js';
+import { simulateMeans, withMeans } from '../random/simulate-lineage.js';
 
 /** One coverage replicate as plain data (runs on a worker thread). */
 export interface CoverageTask {

@@ -1,3 +1,4 @@
+import { fitModel } from '../fit/fit-model.js';
 import { bootstrapCutoffs } from '../fit/intervals-bootstrap.js';
 import { intervalMethods, type IntervalMethod } from '../fit/intervals.js';
 import { chiSquare1At95 } from '../fit/model-choice.js';
@@ -315,7 +316,11 @@ async function coverageCheck(plan: PowerPlan, truth: Record<string, number>, run
   const model = findModel('directional-walk');
   if (!model) throw new Error('directional-walk is not registered');
   const replicates = plan.coverageReplicates ?? plan.replicates;
-  const cutoffs = bootstrapCutoffs(model, designLineage(plan.design), truth, names, { replicates: Math.max(199, replicates), seed: plan.seed });
+  const cutoffs = bootstrapCutoffs(model, designLineage(plan.design), truth, names, {
+    replicates: Math.max(199, replicates),
+    seed: plan.seed,
+    refit: (fitted, lineage) => fitModel(fitted, lineage, { intervals: false }),
+  });
   const tasks: CoverageTask[] = Array.from({ length: replicates }, (_, index) => ({
     design: plan.design,
     model: 'directional-walk',

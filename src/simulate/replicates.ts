@@ -2,9 +2,9 @@ import { fitLineage } from '../fit/fit-lineage.js';
 import { findModel } from '../models/registry.js';
 import type { EvolutionModel } from '../models/model.js';
 import { designLineage, type Design } from './design.js';
-import { createRandom } from './random.js';
-import { replicateSeed } from './seeds.js';
-import { simulateMeans, withMeans } from './simulate-lineage.js';
+import { createRandom } from '../random/random.js';
+import { replicateSeed } from '../random/seeds.js';
+import { simulateMeans, withMeans } from '../random/simulate-lineage.js';
 
 /**
  * One simulate-and-refit replicate as plain data, so it can run on any

@@ -1,9 +1,9 @@
 import type { Lineage } from '../lineage.js';
 import type { EvolutionModel } from '../models/model.js';
 import { neutraliseFormula } from '../data/names.js';
-import { createRandom } from './random.js';
-import { replicateSeed } from './seeds.js';
-import { simulateMeans } from './simulate-lineage.js';
+import { createRandom } from '../random/random.js';
+import { replicateSeed } from '../random/seeds.js';
+import { simulateMeans } from '../random/simulate-lineage.js';
 
 /** What to simulate: a model, its parameters per design lineage, replicates and the form of the file. */
 export interface SimulationRequest {

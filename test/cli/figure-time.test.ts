@@ -5,8 +5,8 @@
  * warning follows the stated formula and threshold, not a timing.
  */
 import { describe, expect, it } from 'vitest';
-import { figureTimeWarning, longDrawingSeconds, planFigureFiles, secondsPerFigure } from '../../src/cli/render-command.js';
-import { durationWords } from '../../src/cli/run-cost.js';
+import { figureTimeWarning, longDrawingSeconds, planFigureFiles, secondsPerFigure } from '../../src/analyses/figure-files.js';
+import { durationWords } from '../../src/analyses/run-cost.js';
 
 /** Invented lineage documents: only the names matter for the plan. */
 const documents = (count: number) => Array.from({ length: count }, (_, i) => ({ section: `Ridge ${i + 1}`, trait: 'width', models: [] }));

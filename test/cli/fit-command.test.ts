@@ -4,7 +4,7 @@ import { mkdtempSync, readFileSync, writeFileSync, existsSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { runFit } from '../../src/cli/fit-command.js';
+import { runFit } from '../../src/analyses/fit-run.js';
 
 const sample = new URL('../../sample-data/shell-length.csv', import.meta.url).pathname;
 const launcher = new URL('../../bin/stratotrend', import.meta.url).pathname;

@@ -32,11 +32,11 @@ vi.mock('../../src/data/stream-samples.js', async (importOriginal) => {
   };
 });
 
-const { runCompare } = await import('../../src/cli/compare-command.js');
+const { runCompare } = await import('../../src/analyses/compare-run.js');
 const { simulateCommand } = await import('../../src/cli/simulate-command.js');
 const { reportCommand } = await import('../../src/cli/report-command.js');
 const { fitCommand } = await import('../../src/cli/fit-command.js');
-const { loadSamplesStreamed } = await import('../../src/cli/input.js');
+const { loadSamplesStreamed } = await import('../../src/analyses/input.js');
 
 const shellLength = join(root, 'sample-data', 'shell-length.csv');
 const heights = join(root, 'sample-data', 'locality-heights.csv');

@@ -5,7 +5,7 @@ import { describe, expect, it } from 'vitest';
 import { WarningLog } from '../../src/data/warnings.js';
 import { readSamples } from '../../src/data/samples.js';
 import { readTable } from '../../src/data/read-table.js';
-import { lineagesOf, traitUnitFor, traitUnitOption } from '../../src/cli/input.js';
+import { lineagesOf, traitUnitFor, traitUnitOption } from '../../src/analyses/input.js';
 import { svgText } from '../render/figures/figure-probes.js';
 import { root, runCli } from '../robustness/cli.js';
 

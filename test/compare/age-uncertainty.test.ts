@@ -8,7 +8,7 @@ import { readSamples } from '../../src/data/samples.js';
 import { fitLineage } from '../../src/fit/fit-lineage.js';
 import { buildLineages } from '../../src/lineage.js';
 import { classicModels } from '../../src/models/registry.js';
-import { createRandom } from '../../src/simulate/random.js';
+import { createRandom } from '../../src/random/random.js';
 
 // Invented demo-style data (heights in two fictional sections); what is checked is
 // an identity (sd = 0 draws equal the plain fit) and reproducibility, not the values.

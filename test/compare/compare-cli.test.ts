@@ -3,7 +3,7 @@ import { mkdtempSync, readFileSync, writeFileSync, existsSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { runCompare, sectionDocuments, type CompareRun } from '../../src/cli/compare-command.js';
+import { runCompare, sectionDocuments, type CompareRun } from '../../src/analyses/compare-run.js';
 import { directionalWalk } from '../../src/models/directional-walk.js';
 
 const heights = new URL('../../sample-data/locality-heights.csv', import.meta.url).pathname;

@@ -11,7 +11,7 @@
  * is known.
  */
 import { describe, expect, it } from 'vitest';
-import { hypothesisCaption, sectionDocuments } from '../../src/cli/compare-command.js';
+import { hypothesisCaption, sectionDocuments } from '../../src/analyses/compare-run.js';
 import type { HypothesisFit, TraitComparison } from '../../src/compare/compare-sections.js';
 import { offsetModel, sharedModel } from '../../src/compare/joint-models.js';
 import { lineageFromArrays, type Lineage } from '../../src/lineage.js';

@@ -9,8 +9,8 @@ import { fitModel } from '../../src/fit/fit-model.js';
 import { lineageFromArrays, type Lineage } from '../../src/lineage.js';
 import { directionalWalk } from '../../src/models/directional-walk.js';
 import { classicModels } from '../../src/models/registry.js';
-import { createRandom } from '../../src/simulate/random.js';
-import { simulateMeans, withMeans } from '../../src/simulate/simulate-lineage.js';
+import { createRandom } from '../../src/random/random.js';
+import { simulateMeans, withMeans } from '../../src/random/simulate-lineage.js';
 
 type Random = ReturnType<typeof createRandom>;
 

@@ -5,7 +5,7 @@ import { denseLogLik } from '../../src/engine/dense.js';
 import { LikelihoodEvaluator } from '../../src/fit/evaluator.js';
 import { lineageFromArrays, type Lineage } from '../../src/lineage.js';
 import { classicModels } from '../../src/models/registry.js';
-import { createRandom } from '../../src/simulate/random.js';
+import { createRandom } from '../../src/random/random.js';
 
 /** A section with random unequal spacing, starting at age `firstAge`. */
 function section(random: ReturnType<typeof createRandom>, name: string, size: number, firstAge: number): Lineage {

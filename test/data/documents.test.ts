@@ -6,7 +6,7 @@
  * function" (exit 70) or a page with wrong numbers. The documents are real
  * outputs of the built CLI (npm test builds first), damaged one field at a
  * time; the expected messages are the layout of src/render/fit-document.ts,
- * src/render/comparison-output.ts and src/cli/power-command.ts written out by hand.
+ * src/render/comparison-output.ts and src/analyses/power-run.ts written out by hand.
  */
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';

@@ -8,7 +8,7 @@
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { loadLineages, readInput } from '../../src/cli/input.js';
+import { loadLineages, readInput } from '../../src/analyses/input.js';
 import { InputError } from '../../src/data/errors.js';
 import { WarningLog } from '../../src/data/warnings.js';
 import { root } from '../robustness/cli.js';

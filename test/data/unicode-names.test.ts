@@ -14,7 +14,7 @@ import { readTable } from '../../src/data/read-table.js';
 import { readSamples } from '../../src/data/samples.js';
 import { streamSampleFile } from '../../src/data/stream-samples.js';
 import { buildLineages } from '../../src/lineage.js';
-import { traitUnitFor, traitUnitOption } from '../../src/cli/input.js';
+import { traitUnitFor, traitUnitOption } from '../../src/analyses/input.js';
 
 const composed = 'Caf\u00e9';
 const decomposed = 'Cafe\u0301';

@@ -3,7 +3,7 @@ import { denseLogLik } from '../../src/engine/dense.js';
 import { LikelihoodEvaluator } from '../../src/fit/evaluator.js';
 import { lineageFromArrays } from '../../src/lineage.js';
 import { classicModels } from '../../src/models/registry.js';
-import { createRandom } from '../../src/simulate/random.js';
+import { createRandom } from '../../src/random/random.js';
 
 // Filter ≡ dense reference: the O(N) filter and the dense multivariate
 // normal built straight from the MODELS.md mean/covariance table (Cholesky by

@@ -7,7 +7,7 @@ import { LikelihoodEvaluator } from '../../src/fit/evaluator.js';
 import type { Lineage } from '../../src/lineage.js';
 import type { EvolutionModel } from '../../src/models/model.js';
 import { classicModels, extendedModels } from '../../src/models/registry.js';
-import { createRandom, type RandomSource } from '../../src/simulate/random.js';
+import { createRandom, type RandomSource } from '../../src/random/random.js';
 import { randomTestLineage } from '../support/random-lineage.js';
 
 // RTS smoother against the dense conditional distribution.

@@ -6,8 +6,8 @@ import { lineageFromArrays } from '../../src/lineage.js';
 import { punctuatedOne } from '../../src/models/punctuated.js';
 import { randomWalk } from '../../src/models/random-walk.js';
 import { stasis } from '../../src/models/stasis.js';
-import { createRandom } from '../../src/simulate/random.js';
-import { simulateMeans, withMeans } from '../../src/simulate/simulate-lineage.js';
+import { createRandom } from '../../src/random/random.js';
+import { simulateMeans, withMeans } from '../../src/random/simulate-lineage.js';
 
 const design = (size: number) =>
   lineageFromArrays({ time: Array.from({ length: size }, (_, i) => 0.2 * i), mean: new Array(size).fill(0), samplingVariance: new Array(size).fill(0.05) });

@@ -6,7 +6,7 @@ import { ornsteinUhlenbeck } from '../../src/models/ou.js';
 import { randomWalk } from '../../src/models/random-walk.js';
 import { stasis } from '../../src/models/stasis.js';
 import { strictStasis } from '../../src/models/strict-stasis.js';
-import { createRandom } from '../../src/simulate/random.js';
+import { createRandom } from '../../src/random/random.js';
 
 const random = createRandom(2026);
 const time = [0, 0.4, 1.0, 1.3, 2.2, 2.5, 3.9, 4.1, 5.6, 6.0, 7.4, 8.0];

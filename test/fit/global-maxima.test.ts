@@ -8,7 +8,7 @@ import { extensionModels } from '../../src/models/extensions.js';
 import { stepVarianceRange } from '../../src/models/walk-dynamics.js';
 import { classicModels, findModel } from '../../src/models/registry.js';
 import type { EvolutionModel } from '../../src/models/model.js';
-import { createRandom } from '../../src/simulate/random.js';
+import { createRandom } from '../../src/random/random.js';
 
 // Issue 25: the fitter must reach the global maximum. References outside the search: maxima of the dense
 // multivariate-normal likelihood made with numpy/scipy (test/fixtures/search/make_narrow_peaks.py, multi-start plus

@@ -15,7 +15,7 @@ import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { fitModel, type ModelFit } from '../../src/fit/fit-model.js';
 import { intervalMethods, type IntervalMethod } from '../../src/fit/intervals.js';
-import { loadLineages, readInput } from '../../src/cli/input.js';
+import { loadLineages, readInput } from '../../src/analyses/input.js';
 import { WarningLog } from '../../src/data/warnings.js';
 import { intervalFallbackPrefix } from '../../src/fit/fit-model.js';
 import { lineageFromArrays, type Lineage } from '../../src/lineage.js';
@@ -25,8 +25,8 @@ import { root } from '../robustness/cli.js';
 import { fitLineage } from '../../src/fit/fit-lineage.js';
 import { lineageTable } from '../../src/render/text-table.js';
 import { classicModels, extendedModels, findModel } from '../../src/models/registry.js';
-import { createRandom } from '../../src/simulate/random.js';
-import { simulateMeans, withMeans } from '../../src/simulate/simulate-lineage.js';
+import { createRandom } from '../../src/random/random.js';
+import { simulateMeans, withMeans } from '../../src/random/simulate-lineage.js';
 
 /** Parameters (and derived quantities) whose interval leaves out their finite estimate, with the ends. */
 function outside(fit: ModelFit): string[] {

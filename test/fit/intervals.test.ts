@@ -8,8 +8,8 @@ import { lineageFromArrays, type Lineage } from '../../src/lineage.js';
 import { directionalWalk } from '../../src/models/directional-walk.js';
 import { strictStasis } from '../../src/models/strict-stasis.js';
 import { coverageReplicate, summariseCoverage } from '../../src/simulate/coverage.js';
-import { createRandom } from '../../src/simulate/random.js';
-import { simulateMeans, withMeans } from '../../src/simulate/simulate-lineage.js';
+import { createRandom } from '../../src/random/random.js';
+import { simulateMeans, withMeans } from '../../src/random/simulate-lineage.js';
 
 // An independent drift profile built from the dense multivariate normal
 // (src/engine/dense.ts: ml-matrix Cholesky) and this test's own

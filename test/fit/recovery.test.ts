@@ -7,8 +7,8 @@ import { ornsteinUhlenbeck } from '../../src/models/ou.js';
 import { classicModels } from '../../src/models/registry.js';
 import { stasis } from '../../src/models/stasis.js';
 import type { EvolutionModel } from '../../src/models/model.js';
-import { createRandom } from '../../src/simulate/random.js';
-import { simulateMeans, withMeans } from '../../src/simulate/simulate-lineage.js';
+import { createRandom } from '../../src/random/random.js';
+import { simulateMeans, withMeans } from '../../src/random/simulate-lineage.js';
 
 // Recovery of known parameters on long simulated sequences (common practice
 // for checking an ML fitter). Tolerance: the truth must lie within 3.3

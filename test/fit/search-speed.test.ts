@@ -5,8 +5,8 @@ import { maximiseProcess } from '../../src/fit/search.js';
 import { lineageFromArrays } from '../../src/lineage.js';
 import { classicModels, findModel } from '../../src/models/registry.js';
 import type { EvolutionModel } from '../../src/models/model.js';
-import { createRandom } from '../../src/simulate/random.js';
-import { simulateMeans, withMeans } from '../../src/simulate/simulate-lineage.js';
+import { createRandom } from '../../src/random/random.js';
+import { simulateMeans, withMeans } from '../../src/random/simulate-lineage.js';
 
 // The speed-ups of issue 7 must not change numbers: the evaluator's kept filter
 // passes must equal fresh ones bit for bit, and the warm-started search must

@@ -4,7 +4,7 @@ import { lineageFromArrays, type Lineage } from '../../src/lineage.js';
 import type { EvolutionModel } from '../../src/models/model.js';
 import { classicModels, findModel } from '../../src/models/registry.js';
 import '../../src/models/extensions.js';
-import { createRandom } from '../../src/simulate/random.js';
+import { createRandom } from '../../src/random/random.js';
 
 // Issues 23 and 25: the fit must not depend on the units. Closed form (change of variables, common practice):
 // with the trait multiplied by c and time by d, a parameter of unit trait^p time^q is multiplied by c^p d^q,

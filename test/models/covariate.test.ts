@@ -5,8 +5,8 @@ import { covariateStasis } from '../../src/models/covariate-stasis.js';
 import { covariateWalk } from '../../src/models/covariate-walk.js';
 import { randomWalk } from '../../src/models/random-walk.js';
 import { stasis } from '../../src/models/stasis.js';
-import { createRandom } from '../../src/simulate/random.js';
-import { simulateMeans } from '../../src/simulate/simulate-lineage.js';
+import { createRandom } from '../../src/random/random.js';
+import { simulateMeans } from '../../src/random/simulate-lineage.js';
 
 describe('covariate tracking', () => {
   const design = (size: number, seed: number) => {

@@ -4,7 +4,7 @@ import { LikelihoodEvaluator } from '../../src/fit/evaluator.js';
 import type { Lineage } from '../../src/lineage.js';
 import { extensionModels } from '../../src/models/extensions.js';
 import type { EvolutionModel } from '../../src/models/model.js';
-import { createRandom, type RandomSource } from '../../src/simulate/random.js';
+import { createRandom, type RandomSource } from '../../src/random/random.js';
 import { randomTestLineage } from '../support/random-lineage.js';
 
 // Filter ≡ dense reference for every model beyond the classic five: the O(N)

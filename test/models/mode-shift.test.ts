@@ -5,8 +5,8 @@ import { fitModel } from '../../src/fit/fit-model.js';
 import { lineageFromArrays } from '../../src/lineage.js';
 import { modeShift, modeShiftModels } from '../../src/models/mode-shift.js';
 import { bindConfiguration } from '../../src/models/model.js';
-import { createRandom } from '../../src/simulate/random.js';
-import { simulateMeans } from '../../src/simulate/simulate-lineage.js';
+import { createRandom } from '../../src/random/random.js';
+import { simulateMeans } from '../../src/random/simulate-lineage.js';
 
 const evenTimes = (size: number): number[] => Array.from({ length: size }, (_, i) => 0.5 * i);
 

@@ -7,7 +7,7 @@ import { bindConfiguration, defaultMinimumSegment } from '../../src/models/model
 import { punctuatedOne, punctuatedTwo } from '../../src/models/punctuated.js';
 import { punctuatedOneSeparate, punctuatedTwoSeparate } from '../../src/models/punctuated-separate.js';
 import { shiftPlacements } from '../../src/models/punctuated-shifts.js';
-import { createRandom } from '../../src/simulate/random.js';
+import { createRandom } from '../../src/random/random.js';
 
 const evenTimes = (size: number): number[] => Array.from({ length: size }, (_, i) => 0.25 * i);
 

@@ -21,7 +21,7 @@ import { parse } from 'csv-parse/sync';
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../../src/data/errors.js';
 import { WarningLog } from '../../src/data/warnings.js';
-import { loadLineages, readInput } from '../../src/cli/input.js';
+import { loadLineages, readInput } from '../../src/analyses/input.js';
 import { neutraliseFormula } from '../../src/data/names.js';
 import { root, runCli } from './cli.js';
 

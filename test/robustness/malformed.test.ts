@@ -13,7 +13,7 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../../src/data/errors.js';
 import { WarningLog } from '../../src/data/warnings.js';
-import { loadLineages, readInput, type SampleFileOptions } from '../../src/cli/input.js';
+import { loadLineages, readInput, type SampleFileOptions } from '../../src/analyses/input.js';
 import { corpus, runCli } from './cli.js';
 
 const reads = 'section, trait, age, time, height, depth, n, mean, sd, var, value, covariate';

@@ -15,11 +15,11 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../../src/data/errors.js';
-import { runFit, type FitCommandOptions } from '../../src/cli/fit-command.js';
+import { runFit, type FitCommandOptions } from '../../src/analyses/fit-run.js';
 import { lineageTable } from '../../src/render/text-table.js';
 import { modelsCsv } from '../../src/render/models-csv.js';
 import { nonFinitePaths, nonFiniteText } from './finite.js';
-import { createRandom } from '../../src/simulate/random.js';
+import { createRandom } from '../../src/random/random.js';
 import { sweepSize } from '../support/sweep.js';
 
 const folder = mkdtempSync(join(tmpdir(), 'stratotrend-numbers-'));

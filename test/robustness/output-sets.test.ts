@@ -25,7 +25,7 @@ import {
   removeStaleTemporaryFiles,
   writeAtomically,
   type OutputFileSystem,
-} from '../../src/cli/write-output.js';
+} from '../../src/io/write-output.js';
 import { corpus, runCli } from './cli.js';
 
 function freshFolder(): string {

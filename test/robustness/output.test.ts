@@ -9,7 +9,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../../src/data/errors.js';
-import { ownFilesList, prepareOutputFolder, writeAtomically } from '../../src/cli/write-output.js';
+import { ownFilesList, prepareOutputFolder, writeAtomically } from '../../src/io/write-output.js';
 import { corpus, runCli } from './cli.js';
 
 const sha = (path: string): string => createHash('sha256').update(readFileSync(path)).digest('hex');

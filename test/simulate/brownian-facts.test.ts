@@ -1,8 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { lineageFromArrays } from '../../src/lineage.js';
 import { randomWalk } from '../../src/models/random-walk.js';
-import { createRandom } from '../../src/simulate/random.js';
-import { simulateMeans } from '../../src/simulate/simulate-lineage.js';
+import { createRandom } from '../../src/random/random.js';
+import { simulateMeans } from '../../src/random/simulate-lineage.js';
 
 // Brownian-motion facts (common practice; textbook property): E[z(t)] = z(0),
 // Var[z(t)] = sigma2 t, increments independent. Checked on R = 4000 seeded

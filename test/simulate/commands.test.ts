@@ -3,7 +3,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../../src/data/errors.js';
-import { runPower } from '../../src/cli/power-command.js';
+import { runPower } from '../../src/analyses/power-run.js';
 import { parseParameters, simulateCommand } from '../../src/cli/simulate-command.js';
 
 // The command edges: options in, files and documents out. The statistics

@@ -4,7 +4,7 @@ import { designFromOptions, designLineage, extendDesign } from '../../src/simula
 import { fitReplicate, type FitReplicateTask } from '../../src/simulate/replicates.js';
 import { poolRunner } from '../../src/simulate/run-replicates.js';
 import { simulatedTable } from '../../src/simulate/sample-table.js';
-import { replicateSeed } from '../../src/simulate/seeds.js';
+import { replicateSeed } from '../../src/random/seeds.js';
 
 // Reproducibility is the contract of `simulate --seed` and of every
 // replicate batch: these checks are exact (no tolerance).

@@ -6,10 +6,10 @@ import { randomWalk } from '../../src/models/random-walk.js';
 import { bootstrapTests } from '../../src/simulate/bootstrap-test.js';
 import { designFromOptions, designLineage, extendDesign } from '../../src/simulate/design.js';
 import { firstCrossing, powerAnalysis } from '../../src/simulate/power.js';
-import { createRandom } from '../../src/simulate/random.js';
+import { createRandom } from '../../src/random/random.js';
 import { poolRunner } from '../../src/simulate/run-replicates.js';
-import { replicateSeed } from '../../src/simulate/seeds.js';
-import { simulateMeans, withMeans } from '../../src/simulate/simulate-lineage.js';
+import { replicateSeed } from '../../src/random/seeds.js';
+import { simulateMeans, withMeans } from '../../src/random/simulate-lineage.js';
 
 // Power of a design by simulation (seeded, inline runner). Expected shapes
 // are facts of testing (common practice): power rises with the effect and

@@ -56,17 +56,17 @@ describe('one place for each helper', () => {
 });
 
 describe('one progress bar', () => {
-  it('only src/cli/progress.ts draws bars: no other file loads cli-progress, tests isTTY or draws a bar by hand', () => {
+  it('only src/io/progress.ts draws bars: no other file loads cli-progress, tests isTTY or draws a bar by hand', () => {
     const drawing = files.filter((file) => /cli-progress|isTTY|'#'\.repeat\(|\\r\\u001b\[K/.test(file.text)).map((file) => file.path);
-    expect(drawing).toEqual(['cli/progress.ts']);
+    expect(drawing).toEqual(['io/progress.ts']);
   });
 });
 
 describe('--models is resolved once per run', () => {
   it('resolveModels is called only where a run starts (runFit, runFitStreamed, runCompare) and sets are looked up only there', () => {
-    const calls = files.flatMap((file) => [...file.code.matchAll(/\bresolveModels\(/g)].map(() => file.path)).filter((path) => path !== 'cli/model-selection.ts');
-    expect(calls.sort()).toEqual(['cli/compare-command.ts', 'cli/fit-command.ts', 'cli/fit-command.ts']);
-    expect(files.filter((file) => /\bmodelSets\[/.test(file.code)).map((file) => file.path)).toEqual(['cli/model-selection.ts']);
+    const calls = files.flatMap((file) => [...file.code.matchAll(/\bresolveModels\(/g)].map(() => file.path)).filter((path) => path !== 'analyses/model-selection.ts');
+    expect(calls.sort()).toEqual(['analyses/compare-run.ts', 'analyses/fit-run.ts', 'analyses/fit-run.ts']);
+    expect(files.filter((file) => /\bmodelSets\[/.test(file.code)).map((file) => file.path)).toEqual(['analyses/model-selection.ts']);
   });
 });
 

@@ -1,5 +1,5 @@
 import { lineageFromArrays, type Lineage } from '../../src/lineage.js';
-import type { RandomSource } from '../../src/simulate/random.js';
+import type { RandomSource } from '../../src/random/random.js';
 
 /**
  * A seeded random lineage for filter-against-dense checks: 8 to 8 + `spread`

@@ -5,7 +5,7 @@
  * figure actually draws (drawn-text.ts) and on the plot area it reports.
  */
 import { describe, expect, it } from 'vitest';
-import { parseLeaveOut } from '../../../src/cli/render-command.js';
+import { parseLeaveOut } from '../../../src/analyses/figure-files.js';
 import { InputError } from '../../../src/data/errors.js';
 import { readFigureLineage } from '../../../src/render/figures/figure-input.js';
 import { resolveFigureOptions, type FigureOptions } from '../../../src/render/figures/figure-options.js';

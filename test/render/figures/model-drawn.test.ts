@@ -11,7 +11,7 @@
  */
 import { inverse, Matrix } from 'ml-matrix';
 import { describe, expect, it } from 'vitest';
-import { withSmootherOf } from '../../../src/cli/render-command.js';
+import { withSmootherOf } from '../../../src/analyses/figure-files.js';
 import { readFigureLineage } from '../../../src/render/figures/figure-input.js';
 import { resolveFigureOptions } from '../../../src/render/figures/figure-options.js';
 import { modelCurve, normal95, timeAxisFor } from '../../../src/render/figures/geometry.js';

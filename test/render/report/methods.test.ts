@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { runFit, runFitStreamed, type FitCommandOptions } from '../../../src/cli/fit-command.js';
+import { runFit, runFitStreamed, type FitCommandOptions } from '../../../src/analyses/fit-run.js';
 import { classicModels, extendedModels } from '../../../src/models/registry.js';
 import { asFitDocument, type FitDocumentView } from '../../../src/render/report/document-view.js';
 import { methodsPlainText, methodsText, sentenceKeys } from '../../../src/render/report/methods.js';
@@ -203,7 +203,7 @@ describe('methods text: every option of the run changes it, and nothing that did
     expect(count).toBeGreaterThan(0);
     expect(text(extrapolated)).toContain(`${count} horizons lay beyond the outermost ties`);
     const run = await runFitStreamed(oneSection, { intervals: false, quiet: true, ageModel: tiesFile, ageDraws: '3', seed: '5', models: 'random-walk' });
-    const { fitAgeDraws } = await import('../../../src/cli/compare-command.js');
+    const { fitAgeDraws } = await import('../../../src/analyses/compare-run.js');
     fitAgeDraws(oneSection, { ageModel: tiesFile, ageDraws: '3', seed: '5' }, run, run.document, run.read!.samples, run.age ?? null);
     expect(text(asFitDocument(run.document))).toContain('the tie ages were redrawn 3 times from normal distributions with their standard errors (each draw kept in stratigraphic order; random seed 5)');
   });

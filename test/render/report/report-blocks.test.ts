@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { runFitStreamed } from '../../../src/cli/fit-command.js';
+import { runFitStreamed } from '../../../src/analyses/fit-run.js';
 import { supportCautions } from '../../../src/render/report/cautions.js';
 import { asFitDocument } from '../../../src/render/report/document-view.js';
 import { reportPage } from '../../../src/render/report/report-page.js';

@@ -4,8 +4,8 @@ import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
-import { runFit } from '../../../src/cli/fit-command.js';
-import { buildReport } from '../../../src/cli/report-command.js';
+import { runFit } from '../../../src/analyses/fit-run.js';
+import { buildReport } from '../../../src/analyses/report-run.js';
 import { asFitDocument } from '../../../src/render/report/document-view.js';
 import { browserDecision, chromiumArgs, findChromium, onCi } from './browser.js';
 
@@ -261,8 +261,8 @@ describe.skipIf(!executable)('HTML report with the optional analyses (section co
   let power: { grid: Record<string, number>[] };
 
   beforeAll(async () => {
-    const { runCompare } = await import('../../../src/cli/compare-command.js');
-    const { runPower } = await import('../../../src/cli/power-command.js');
+    const { runCompare } = await import('../../../src/analyses/compare-run.js');
+    const { runPower } = await import('../../../src/analyses/power-run.js');
     folder = mkdtempSync(join(tmpdir(), 'stratotrend-report-analyses-'));
     const run = runFit('sample-data/shell-length.csv', { intervals: false });
     // Round trips through JSON text, as saved files would be.

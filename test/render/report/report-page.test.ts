@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { runFit } from '../../../src/cli/fit-command.js';
+import { runFit } from '../../../src/analyses/fit-run.js';
 import { asFitDocument } from '../../../src/render/report/document-view.js';
 import { escapeHtml } from '../../../src/render/report/html.js';
 import { reportPage } from '../../../src/render/report/report-page.js';

@@ -1,8 +1,8 @@
 import { existsSync } from 'node:fs';
 import { summariseCompilation, type CompilationSummary } from '../compare/compilation.js';
 import { compilationDocument, compilationTable } from '../render/compilation-table.js';
-import type { FitRun } from './fit-command.js';
-import type { OutputSet } from './write-output.js';
+import type { FitRun } from './fit-run.js';
+import type { OutputSet } from '../io/write-output.js';
 
 /** Summarise a batch fit across lineages and add it to the run's JSON document as `compilation`. */
 export function addCompilation(run: FitRun): CompilationSummary {

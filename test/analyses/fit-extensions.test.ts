@@ -2,7 +2,7 @@ import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { attachCovariates, extensionSettings, modelsForLineage } from '../../src/cli/fit-extensions.js';
+import { attachCovariates, extensionSettings, modelsForLineage } from '../../src/analyses/fit-extensions.js';
 import { lineageFromArrays } from '../../src/lineage.js';
 import { modelSets } from '../../src/models/registry.js';
 

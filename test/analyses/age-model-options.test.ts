@@ -5,13 +5,13 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { readAgeModel } from '../../src/data/age-model.js';
 import { readTable } from '../../src/data/read-table.js';
 import { WarningLog } from '../../src/data/warnings.js';
-import { warnImplausibleRates } from '../../src/cli/age-model-options.js';
-import { runPower } from '../../src/cli/power-command.js';
-import { runFitStreamed } from '../../src/cli/fit-command.js';
+import { warnImplausibleRates } from '../../src/analyses/age-model-options.js';
+import { runPower } from '../../src/analyses/power-run.js';
+import { runFitStreamed } from '../../src/analyses/fit-run.js';
 import { root, runCli } from '../robustness/cli.js';
 
 // Issue 19: every command that reads samples takes the age-model options
-// through one set (commands/shared.ts addAgeModelOptions, cli/age-model-options.ts).
+// through one set (commands/shared.ts addAgeModelOptions, analyses/age-model-options.ts).
 
 const folder = mkdtempSync(join(tmpdir(), 'stratotrend-age-options-'));
 const heights = join(root, 'sample-data', 'locality-heights.csv');
@@ -169,7 +169,7 @@ describe('progress of long jobs (drawn on a terminal only; here a recorder stand
   };
 
   it('fit --age-draws ticks once per draw up to the number of draws', async () => {
-    const { fitAgeDraws } = await import('../../src/cli/compare-command.js');
+    const { fitAgeDraws } = await import('../../src/analyses/compare-run.js');
     const options = { ageModel: ties, ageDraws: '4', seed: '3', models: 'random-walk', intervals: false as const, quiet: true };
     const run = await runFitStreamed(heights, options);
     const { stages, progress } = recorder();
@@ -178,7 +178,7 @@ describe('progress of long jobs (drawn on a terminal only; here a recorder stand
   });
 
   it('compare --age-draws ticks once per draw', async () => {
-    const { runCompare } = await import('../../src/cli/compare-command.js');
+    const { runCompare } = await import('../../src/analyses/compare-run.js');
     const { stages, progress } = recorder();
     await runCompare(heights, { ageModel: ties, ageDraws: '3', models: 'random-walk', intervals: false }, undefined, progress);
     expect(stages.map((stage) => [stage.total, stage.ticks])).toEqual([[3, [1, 2, 3]]]);

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../../src/data/errors.js';
-import { modelSetLine, resolveModels } from '../../src/cli/model-selection.js';
+import { modelSetLine, resolveModels } from '../../src/analyses/model-selection.js';
 
 // `--models` is resolved once per run (issue 22); the expected sets are the
 // ones the README documents under "Model sets".

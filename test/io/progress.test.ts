@@ -1,6 +1,6 @@
 import { Writable } from 'node:stream';
 import { describe, expect, it } from 'vitest';
-import { drawingProgress, fittingProgress, readingProgress, searchProgress, stageProgress, terminalBar } from '../../src/cli/progress.js';
+import { drawingProgress, fittingProgress, readingProgress, searchProgress, stageProgress, terminalBar } from '../../src/io/progress.js';
 
 // The one progress helper on cli-progress (issue 22): terminal only, stderr by
 // default, never with --quiet. A fake terminal records what would be drawn.

@@ -9,7 +9,7 @@ import { writeFileSync, mkdtempSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { checkShiftSearchCost, durationWords, placementCount, placementLimit, shiftSearchSeconds } from '../../src/cli/run-cost.js';
+import { checkShiftSearchCost, durationWords, placementCount, placementLimit, shiftSearchSeconds } from '../../src/analyses/run-cost.js';
 import { WarningLog } from '../../src/data/warnings.js';
 import { lineageFromArrays } from '../../src/lineage.js';
 import { shiftPlacements } from '../../src/models/punctuated-shifts.js';

@@ -1,0 +1,166 @@
+import { WarningLog } from '../data/warnings.js';
+import { fitLineage, type LineageFit } from '../fit/fit-lineage.js';
+import { intervalFallbackPrefix, type FitOptions } from '../fit/fit-model.js';
+import { defaultMinimumSegment } from '../models/model.js';
+import { fitDocument, type FitDocument, type Provenance } from '../render/fit-document.js';
+import { lineagesOf, loadLineages, loadSamplesStreamed, readInput, type InputText, type SampleFileOptions, type StreamedInput } from './input.js';
+import type { Lineage } from '../lineage.js';
+import { fitLineages } from '../parallel/fit-lineages.js';
+import { resolveModels, type ModelSelection, type ModelsOption } from './model-selection.js';
+import { fittingProgress, readingProgress, searchProgress } from '../io/progress.js';
+import type { AgeModelOptions, LoadedAgeModel } from './age-model-options.js';
+import { intervalOptions } from '../fit/intervals.js';
+import { attachCovariates, extensionSettings, extrasDocument, lineageExtras, modelsForLineage, type ExtensionOptions, type LineageExtras } from './fit-extensions.js';
+import type { FigureCommandOptions } from './figure-files.js';
+import { toolVersion } from '../io/version.js';
+
+/** Options of `stratotrend fit`. */
+export interface FitCommandOptions extends AgeModelOptions, SampleFileOptions, FigureCommandOptions, ExtensionOptions {
+  json?: boolean;
+  out?: string;
+  models?: ModelsOption;
+  /** false for --no-intervals, a method name for --intervals METHOD. */
+  intervals?: boolean | string;
+  quiet?: boolean;
+  /** Also write the HTML report to this file (`stratotrend report`). */
+  report?: string;
+  /** Worker threads for many lineages (1 = fit in the main thread); default: all cores when the batch is large enough. */
+  threads?: number;
+  /** Print (and add to the JSON, and draw with --out) the cross-lineage summary instead of one table per lineage. */
+  summary?: boolean;
+}
+
+
+/** Everything `fit` computed, before it is printed or written. */
+export interface FitRun {
+  readonly fits: LineageFit[];
+  readonly document: FitDocument;
+  readonly warnings: WarningLog;
+  /** Rates, adequacy and left-out models per lineage (shift/covariate options), in `fits` order. */
+  readonly extras?: readonly LineageExtras[];
+  /**
+   * The samples file as read (its horizons before the age model places them),
+   * set by {@link runFitStreamed}: `--age-draws` and the report's comparison
+   * and power analyses reuse it instead of reading the file (or stdin) again.
+   */
+  readonly read?: StreamedInput;
+  /** The `--age-model` file as read by {@link runFitStreamed} (null without one), for `--age-draws`. */
+  readonly age?: LoadedAgeModel | null;
+  /** `--models`, resolved once at the start of the run. */
+  readonly selection: ModelSelection;
+}
+
+/**
+ * Read the file, fit every lineage, and build the result document (no output).
+ *
+ * @example
+ * runFit('sample-data/shell-length.csv', { intervals: false }).document.model_set; // 'classic'
+ */
+export function runFit(file: string, options: FitCommandOptions): FitRun {
+  const warnings = new WarningLog();
+  const input = readInput(file);
+  const read = loadLineages(input, options, warnings);
+  const lineages = options.covariateFile ? attachCovariates(read, options.covariateFile) : read;
+  return fitLoaded(input, lineages, options, resolveModels(options.models), warnings);
+}
+
+/**
+ * {@link runFit} reading the file as a stream (bounded memory for specimen
+ * files of millions of rows, progress bar on a terminal); same result.
+ *
+ * @example
+ * (await runFitStreamed('sample-data/shell-length.csv', { quiet: true })).selection.name; // 'classic'
+ */
+export async function runFitStreamed(file: string, options: FitCommandOptions): Promise<FitRun> {
+  const warnings = new WarningLog();
+  const { ageModelHook, checkAgeModelUsage } = await import('./age-model-options.js');
+  checkAgeModelUsage(options);
+  // The samples first: the tie file must use their position column (height or depth).
+  const { input, samples } = await loadSamplesStreamed(file, options, readingProgress(file, options));
+  const { extra, age } = ageModelHook(file, options, samples.timeKind, warnings);
+  const read = lineagesOf(samples, options, warnings, extra);
+  const lineages = options.covariateFile ? attachCovariates(read, options.covariateFile) : read;
+  // Many lineages are fitted on worker threads (same numbers, input order; see src/parallel/fit-lineages.ts).
+  const selection = resolveModels(options.models);
+  const { models } = selection;
+  // Shift searches grow with the square of the horizons: refuse what cannot be held, announce a long run with its estimate.
+  const { checkShiftSearchCost } = await import('./run-cost.js');
+  checkShiftSearchCost(lineages, models, { minimumSegment: extensionSettings(options).minimumSegment, threads: options.threads, warnings });
+  const fits = await fitLineages(lineages, models, fitOptionsOf(options, lineages.length), {
+    threads: options.threads,
+    onProgress: fittingProgress(lineages.length, options),
+  });
+  const run = fitLoaded(input, lineages, options, selection, warnings, fits);
+  if (age) {
+    // The age model is part of the result (fit, and the report made from the same run): its file, its options, its ties and rates.
+    const { parseDrawOptions, ageModelDocument } = await import('./compare-run.js');
+    const { draws, seed } = parseDrawOptions(options);
+    const { provenance } = run.document;
+    const document: FitDocument = {
+      ...run.document,
+      provenance: {
+        ...provenance,
+        inputs: [...provenance.inputs, { file: age.input.name, sha256: age.input.sha256 }],
+        options: { ...provenance.options, age_model: options.ageModel, extrapolate: options.extrapolate === true, age_draws: draws, seed: draws > 0 ? seed : null },
+      },
+      age_model: ageModelDocument(age.model),
+    };
+    return { ...run, document, read: { input, samples }, age };
+  }
+  return { ...run, read: { input, samples }, age };
+}
+
+/**
+ * Fit read lineages and build the result document (no output).
+ *
+ * @example
+ * fitLoaded(input, lineages, options, resolveModels('random-walk,ou'), new WarningLog()).fits[0].models.length; // 2
+ */
+export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lineage[], options: FitCommandOptions, selection: ModelSelection, warnings: WarningLog, given?: LineageFit[]): FitRun {
+  const { name, models } = selection;
+  const settings = extensionSettings(options);
+  const fitted = given ?? lineages.map((lineage) => fitLineage(lineage, models, fitOptionsOf(options, lineages.length)));
+  // A named set (e.g. extended) leaves out models a lineage does not allow (no covariate): their rows are not fitted and carry no weight.
+  const kept = fitted.map((fit) => modelsForLineage(fit.lineage, models, name));
+  const fits = fitted.map((fit, j) => (kept[j].leftOut.length === 0 ? fit : { ...fit, models: fit.models.filter((model) => !kept[j].leftOut.includes(model.id)) }));
+  for (const fit of fits) {
+    for (const model of fit.models) {
+      for (const flag of model.flags) warnings.add(flag.startsWith(intervalFallbackPrefix) ? 'interval-fallback' : 'at-bound', `${fit.lineage.section || 'lineage'}${fit.lineage.trait ? ' / ' + fit.lineage.trait : ''}, ${model.id}: ${flag}`);
+      if (model.notCompared) warnings.add('not-compared', `${fit.lineage.section || 'lineage'}${fit.lineage.trait ? ' / ' + fit.lineage.trait : ''}, ${model.id}: ${model.notCompared}`);
+    }
+  }
+  const provenance: Provenance = {
+    tool: 'stratotrend',
+    version: toolVersion(),
+    inputs: [{ file: input.name, sha256: input.sha256 }],
+    options: {
+      log: options.log === true,
+      pool: options.pool === true,
+      time_unit: options.timeUnit ?? 'Myr',
+      // As given (a label, or TRAIT=LABEL entries); each lineage's own unit is its trait_unit.
+      trait_unit: options.traitUnit === undefined ? null : options.traitUnit,
+      models: name,
+      intervals: options.intervals === false ? 'none' : intervalOptions(options.intervals).intervalMethod,
+      likelihood: 'exact (joint) with known sampling variances, Kalman filter',
+      criterion: 'AICc',
+      min_segment: settings.minimumSegment ?? defaultMinimumSegment,
+      generation_time_years: settings.generationTime,
+      ...(options.covariateFile ? { covariate_file: options.covariateFile } : {}),
+      ...(settings.adequacy ? { adequacy_draws: settings.adequacyDraws, adequacy_seed: settings.adequacySeed } : {}),
+    },
+  };
+  const extras = fits.map((fit, j) => lineageExtras(fit, settings, kept[j].leftOut));
+  const built = fitDocument(fits, provenance, warnings.list(), name);
+  const document: FitDocument = { ...built, lineages: built.lineages.map((lineage, j) => ({ ...lineage, ...extrasDocument(extras[j]) })) };
+  return { fits, document, warnings, extras, selection };
+}
+
+/** Fit options from the command's options: interval method, minimum segment, and a search progress bar for a single lineage (fitted in this thread). */
+function fitOptionsOf(options: FitCommandOptions, lineageCount: number): FitOptions {
+  const settings = extensionSettings(options);
+  return {
+    ...intervalOptions(options.intervals),
+    minimumSegment: settings.minimumSegment,
+    ...(lineageCount === 1 ? { onProgress: searchProgress(options) } : {}),
+  };
+}
