@@ -5,8 +5,8 @@
  *
  * - `expression; // value` checks that the expression equals the JavaScript
  *   literal `value` (deep equality, as vitest's `toEqual`); a parenthetical
- *   note after the value is prose, except `(to 1e-12)`, which is that
- *   number's absolute tolerance.
+ *   note after the value is prose, except `(to 1e-12)` or `(to 1e-12; why)`,
+ *   which gives that number's absolute tolerance.
  * - a line `// message: text` (or `// throws: text`) after a statement checks
  *   that the statement throws an error whose message is `text`.
  * - other lines run as they are; a block without any check is only compiled
@@ -90,7 +90,7 @@ export function statedValue(comment: string): { value: unknown; tolerance: numbe
     if (!note.endsWith(')')) continue;
     const value = parse(comment.slice(0, at));
     if (!value) continue;
-    const stated = /^\(to (\S+)\)$/.exec(note);
+    const stated = /^\(to ([^\s,;()]+)(?:[,;].*)?\)$/.exec(note);
     return { value: value.value, tolerance: stated ? Number(stated[1]) : null };
   }
   return null;
@@ -199,6 +199,7 @@ describe('the example runner itself', () => {
   it('checks a stated value, reads a tolerance and sees a throw', () => {
     expect(statedValue("{ option: 'ka' } (a note)")).toEqual({ value: { option: 'ka' }, tolerance: null });
     expect(statedValue('0.05 (to 1e-15)')).toEqual({ value: 0.05, tolerance: 1e-15 });
+    expect(statedValue('-2.8 (to 1e-12; = -ln 2 pi - 1)')).toEqual({ value: -2.8, tolerance: 1e-12 });
     expect(statedValue('m per Myr')).toBeNull();
     expect(splitComment("f('a // b'); // 2")).toEqual({ code: "f('a // b');", comment: '2' });
     const program = exampleProgram(block(['const a = 1; a + 1; // 2', 'throw new Error("no");', '// message: no']));
