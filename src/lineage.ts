@@ -13,6 +13,9 @@ export interface TimeUnit {
 /**
  * Units the tool can convert (common practice: Ma/Myr million years, ka/kyr
  * thousand years, yr years). Any other label is used as given.
+ * @example
+ * timeUnit('ka'); // { label: 'kyr', years: 1000 }
+ * timeUnit('varves'); // { label: 'varves', years: null }
  */
 export function timeUnit(name: string): TimeUnit {
   const key = name.trim();
@@ -63,6 +66,10 @@ export function plausibleUnit(statedYears: number, isPlausible: (years: number) 
  * Warn (category `time-axis`, one line) when a lineage spans more than
  * {@link plausibleLineageSpanYears} in the stated unit, naming the
  * `--time-unit` that makes the span plausible. Silent for a custom unit.
+ * @example
+ * const log = new WarningLog();
+ * warnImplausibleSpan('A / x', 2000, timeUnit('Ma'), 'age', log);
+ * log.list()[0].message.endsWith('if the age values are in kyr, give --time-unit ka (rates are per Myr)'); // true
  */
 export function warnImplausibleSpan(name: string, span: number, unit: TimeUnit, kind: string, warnings: Pick<WarningLog, 'add'> | undefined): void {
   if (unit.years === null || !(span * unit.years > plausibleLineageSpanYears)) return;
@@ -136,7 +143,13 @@ export interface LineageOptions {
   ageOf?: (section: string, position: number, line: number) => { age: number; extrapolated: boolean };
 }
 
-/** Lineage display name: "section / trait" with empty parts left out. */
+/**
+ * Lineage display name: "section / trait" with empty parts left out.
+ *
+ * @example
+ * lineageName({ section: 'Korrin Gap', trait: 'length' }); // 'Korrin Gap / length'
+ * lineageName({ section: '', trait: '' }); // 'lineage'
+ */
 export function lineageName(lineage: { section: string; trait: string }): string {
   const parts = [lineage.section, lineage.trait].filter((part) => part !== '');
   return parts.length === 0 ? 'lineage' : parts.join(' / ');
@@ -151,6 +164,10 @@ export function lineageName(lineage: { section: string; trait: string }): string
  * `duplicate-time` warning).
  *
  * @throws InputError for an exact copy of a row, n = 1 without pooling, too few horizons.
+ * @example
+ * const [lineage] = buildLineages(readSamples(readTable('age,n,mean,sd\n1,5,3,0.5\n3,5,1,0.5\n2,5,2,0.5\n', 'a.csv')));
+ * Array.from(lineage.time); // [0, 1, 2] (oldest first, elapsed since age 3)
+ * Array.from(lineage.samplingVariance); // [0.05, 0.05, 0.05] (to 1e-15; sd^2 / n)
  */
 export function buildLineages(samples: SampleSet, options: LineageOptions = {}): Lineage[] {
   const unit = options.timeUnit ?? timeUnit('Myr');
@@ -259,6 +276,10 @@ export function buildLineages(samples: SampleSet, options: LineageOptions = {}):
  * ordinary normal sample, and the walks are reported as not fitted.)
  *
  * @throws InputError naming the first zero-variance horizon.
+ * @example
+ * const records = [1, 2].map((age, i) => ({ section: '', trait: '', position: age, n: 4, mean: i, variance: i, line: i + 2 }));
+ * refuseUnboundedLikelihood('A', records, Float64Array.of(0, 0.25), { file: 'a.csv', timeKind: 'age', form: 'summary', spreadColumn: 'sd' }, false);
+ * // throws: a.csv line 2, column "sd": lineage "A": the horizon at age 1 has zero within-horizon variance
  */
 export function refuseUnboundedLikelihood(
   name: string,
@@ -297,6 +318,10 @@ export function refuseUnboundedLikelihood(
  *
  * @param placed horizons sorted by age, older first.
  * @throws InputError for an exact copy or conflicting covariates.
+ * @example
+ * const record = (n, mean, line) => ({ record: { section: '', trait: '', position: 5, n, mean, variance: 1, line }, age: 5, extrapolated: false });
+ * const [merged] = mergeSameAge([record(2, 1, 2), record(2, 3, 3)], 'A', { file: 'a.csv', timeKind: 'age' });
+ * [merged.record.n, merged.record.mean, merged.record.variance]; // [4, 2, 2] (variance: (1·1 + 1·1 + 2·1 + 2·1) / 3)
  */
 export function mergeSameAge<T extends { record: HorizonRecord; age: number; extrapolated: boolean }>(
   placed: readonly T[],
@@ -354,6 +379,8 @@ export function mergeSameAge<T extends { record: HorizonRecord; age: number; ext
 /**
  * A lineage made directly from arrays (for simulation and tests). Times must be
  * strictly increasing from 0.
+ * @example
+ * lineageFromArrays({ time: [0, 1], mean: [1, 2], samplingVariance: [0.1, 0.1] }).lines; // [2, 3] (as if read from a file with a header)
  */
 export function lineageFromArrays(input: {
   time: ArrayLike<number>;

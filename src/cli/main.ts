@@ -30,12 +30,28 @@ export async function main(argv: readonly string[]): Promise<void> {
       process.exitCode = 70;
     }
   });
+  const code = await runCommandLine(argv, program);
+  if (code !== 0) process.exitCode = code;
+  settled = true;
+}
+
+/**
+ * Run one command line (`argv` as `process.argv`: node, script, arguments)
+ * and return its exit code instead of setting the process's, with none of
+ * `main`'s process-wide hooks, so one process can run several command lines
+ * (the CLI tests run them in the test process: test/support/cli-in-process.ts).
+ * Output still goes to process.stdout and process.stderr.
+ *
+ * @example
+ * await runCommandLine(['node', 'stratotrend', '--version']); // 0 (the version is printed on stdout)
+ */
+export async function runCommandLine(argv: readonly string[], program: Command = buildProgram()): Promise<number> {
   try {
     await program.parseAsync(argv as string[]);
+    return 0;
   } catch (error) {
-    process.exitCode = reportError(error, debug);
+    return reportError(error, argv.includes('--debug'));
   }
-  settled = true;
 }
 
 /** Turn an error into one stderr line and an exit code (1 bad data, 2 bad usage, 70 internal). */

@@ -131,7 +131,12 @@ function checkOrder(sorted: readonly TiePoint[], file: string, positionKind: 'he
   }
 }
 
-/** The ties used for a section: its own, or the file's single unnamed set. */
+/**
+ * The ties used for a section: its own, or the file's single unnamed set.
+ *
+ * @example
+ * tiesFor(readAgeModel(readTable('height,age\n0,10\n50,8\n', 'ties.csv')), 'Korrin Gap').length; // 2 (a file without sections serves every section)
+ */
 export function tiesFor(model: AgeModel, section: string): readonly TiePoint[] | undefined {
   return model.sections.get(section) ?? (model.sections.size === 1 ? model.sections.get('') : undefined);
 }
@@ -201,6 +206,11 @@ export interface AgeFunctionOptions {
  * @throws InputError when the section has no ties, or when the height lies
  *   outside the ties and extrapolation was not asked for (naming the sample's
  *   line, its position and the tied range).
+ * @example
+ * const ageOf = ageFunction(readAgeModel(readTable('height,age\n0,10\n50,8\n', 'ties.csv')));
+ * ageOf('Korrin Gap', 25, 7); // { age: 9, extrapolated: false }
+ * ageOf('Korrin Gap', 60, 8);
+ * // throws: line 8: height 60 in section "Korrin Gap" lies outside the age model's ties (0 to 50)
  */
 export function ageFunction(model: AgeModel, options: AgeFunctionOptions = {}): (section: string, position: number, line: number) => { age: number; extrapolated: boolean } {
   return (section, position, line) => {
@@ -224,7 +234,12 @@ export function ageFunction(model: AgeModel, options: AgeFunctionOptions = {}): 
   };
 }
 
-/** Whether any tie of the model has a positive age_sd (Monte Carlo over ages is then meaningful). */
+/**
+ * Whether any tie of the model has a positive age_sd (Monte Carlo over ages is then meaningful).
+ *
+ * @example
+ * hasAgeUncertainty(readAgeModel(readTable('height,age,age_sd\n0,10,0.1\n50,8,\n', 'ties.csv'))); // true
+ */
 export function hasAgeUncertainty(model: AgeModel): boolean {
   for (const ties of model.sections.values()) if (ties.some((tie) => tie.ageSd > 0)) return true;
   return false;

@@ -284,6 +284,9 @@ function checked(check: Check, value: unknown, file: string): void {
  *
  * @throws InputError naming the file and the first field that does not fit, e.g.
  *   `fit.json: lineages[0].models[0].params: expected an object, got nothing (the field is missing)`
+ * @example
+ * checkFitDocument({ traits: [] }, 'compare.json');
+ * // throws: compare.json: is the JSON of "compare" (it has "traits"), not a fit.json
  */
 export function checkFitDocument(value: unknown, file: string): void {
   if (isObject(value) && value.lineages === undefined) {
@@ -298,6 +301,9 @@ export function checkFitDocument(value: unknown, file: string): void {
  * Check a parsed section comparison (`compare --json`, compare.json) before the report shows it.
  *
  * @throws InputError naming the file and the field, e.g. `compare.json: traits[0].hypotheses[1].k: expected a whole number of at least 0, got "2"`
+ * @example
+ * checkComparisonDocument({ traits: 'none' }, 'compare.json');
+ * // throws: compare.json: traits: expected a list
  */
 export function checkComparisonDocument(value: unknown, file: string): void {
   checked(comparison, value, file);
@@ -307,6 +313,9 @@ export function checkComparisonDocument(value: unknown, file: string): void {
  * Check a parsed power result (`power --json`) before the report shows it and draws its curve.
  *
  * @throws InputError naming the file and the field, e.g. `power.json: grid[3].p_best: expected a number from 0 to 1, got 1.5`
+ * @example
+ * checkPowerDocument([], 'power.json');
+ * // throws: power.json: the document: expected an object, got []
  */
 export function checkPowerDocument(value: unknown, file: string): void {
   checked(power, value, file);
@@ -324,6 +333,9 @@ export interface JsonFile {
  * @param expected - what the file should be, for the message when it is not JSON (e.g. `the fit.json written by "fit --out"`)
  * @param role - how the file was given, added to "no such file" (e.g. "given with --attach")
  * @throws InputError naming the file: missing, a folder, or not JSON
+ * @example
+ * readJsonFile('no-such-fit.json', 'the fit.json written by "fit --out"', { role: 'given with --attach' });
+ * // throws: no-such-fit.json: no such file (given with --attach)
  */
 export function readJsonFile(file: string, expected: string, options: { role?: string; missingKind?: 'data' | 'usage' } = {}): JsonFile {
   let buffer: Buffer;

@@ -58,7 +58,12 @@ function formatLocation(where: { file?: string; line?: number; column?: string }
   return location === '' ? '' : `${location}: `;
 }
 
-/** A usage mistake (bad option or argument): exit code 2 in the CLI. */
+/**
+ * A usage mistake (bad option or argument): exit code 2 in the CLI.
+ *
+ * @example
+ * usageError('--dpi: expected a number, got "many"').kind; // 'usage' (exit code 2)
+ */
 export function usageError(detail: string): InputError {
   return new InputError(detail, { kind: 'usage' });
 }

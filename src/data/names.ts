@@ -34,7 +34,13 @@ export function firstControlCharacter(text: string): ControlCharacterAt | null {
   return match === null ? null : { position: match.index + 1, code: text.charCodeAt(match.index) };
 }
 
-/** "U+001B (ESC)" for messages. */
+/**
+ * "U+001B (ESC)" for messages.
+ *
+ * @example
+ * describeControlCharacter(27); // 'U+001B (ESC)'
+ * describeControlCharacter(0x85); // 'U+0085'
+ */
 export function describeControlCharacter(code: number): string {
   const hex = `U+${code.toString(16).toUpperCase().padStart(4, '0')}`;
   const name = controlNames[code];

@@ -27,7 +27,12 @@ export interface ReadTableOptions {
 /** Longest physical line accepted as a record (characters); also the longest record. */
 export const longestLine = 1_000_000;
 
-/** The csv-parse options every reader of data tables uses (whole-file and streaming alike). */
+/**
+ * The csv-parse options every reader of data tables uses (whole-file and streaming alike).
+ *
+ * @example
+ * csvOptions(';').delimiter; // ';'
+ */
 export function csvOptions(delimiter: string): Record<string, unknown> {
   return {
     delimiter,
@@ -41,7 +46,13 @@ export function csvOptions(delimiter: string): Record<string, unknown> {
   };
 }
 
-/** Name a delimiter in words for messages. */
+/**
+ * Name a delimiter in words for messages.
+ *
+ * @example
+ * delimiterName('\t'); // 'tab'
+ * delimiterName('|'); // '"|"'
+ */
 export function delimiterName(delimiter: string): string {
   return delimiter === ',' ? 'comma' : delimiter === ';' ? 'semicolon' : delimiter === '\t' ? 'tab' : `"${delimiter}"`;
 }
@@ -71,7 +82,12 @@ export function decodeText(bytes: Uint8Array, file: string): string {
 /** The message for text that is not UTF-8. */
 export const notUtf8Message = 'is not UTF-8 text (an invalid byte sequence on this line, e.g. a Latin-1 accented letter); save the file as "CSV UTF-8"';
 
-/** 1-based line number of a character offset in text (CRLF, LF and CR each end a line). */
+/**
+ * 1-based line number of a character offset in text (CRLF, LF and CR each end a line).
+ *
+ * @example
+ * lineOfOffset('a\r\nb\rc', 5); // 3 (CRLF and a lone CR each end a line)
+ */
 export function lineOfOffset(text: string, offset: number): number {
   const counter = new LineCounter();
   counter.add(text.slice(0, offset));
@@ -82,6 +98,10 @@ export function lineOfOffset(text: string, offset: number): number {
  * Counts physical lines of text fed in pieces (CRLF, LF and a lone CR each
  * end one line, as csv-parse counts them) and notes the first line longer
  * than {@link longestLine}.
+ * @example
+ * const counter = new LineCounter();
+ * counter.add('a\r'); counter.add('\nb\n');
+ * counter.line; // 3 (a CRLF split over two pieces ends one line)
  */
 export class LineCounter {
   /** The line the next character is on (1-based). */
@@ -113,6 +133,9 @@ export class LineCounter {
 /**
  * Why the start of a file shows it is not UTF-8 text, or null. Looks at the
  * first bytes for UTF-16 and zip signatures and at every byte for NUL.
+ * @example
+ * binaryProblem(new TextEncoder().encode('age,n\n')); // null
+ * binaryProblem(Uint8Array.of(0xff, 0xfe, 0x61, 0)); // 'is UTF-16 text (a spreadsheet "Unicode text" export); save it as "CSV UTF-8"'
  */
 export function binaryProblem(bytes: Uint8Array, start = true): string | null {
   if (start && bytes.length >= 2 && ((bytes[0] === 0xff && bytes[1] === 0xfe) || (bytes[0] === 0xfe && bytes[1] === 0xff))) {
@@ -138,6 +161,8 @@ export const longLineMessage = `line is longer than ${longestLine} characters, t
  * One user-facing message for a csv-parse error.
  *
  * @param lastGoodLine the last line of the last record read without error.
+ * @example
+ * parseErrorOf({ code: 'CSV_QUOTE_NOT_CLOSED' }, 'a.csv', 4).line; // 5 (the line after the last good record)
  */
 export function parseErrorOf(error: unknown, file: string, lastGoodLine: number): InputError {
   const csvError = error as { code?: string; message?: string; lines?: number };
@@ -162,6 +187,8 @@ export function parseErrorOf(error: unknown, file: string, lastGoodLine: number)
 /**
  * The message for a data row whose field count differs from the header's,
  * with a hint when the delimiter or a decimal comma is the likely cause.
+ * @example
+ * raggedRowError(['1', '5', '2', '0', '3'], ['age', 'n', 'mean', 'sd'], 3, 'a.csv', ',', true).message; // 'a.csv line 3: has 5 fields but the header has 4 (ragged row), got "1,5,2,0,3"; if numbers use a decimal comma, the file needs a semicolon or tab delimiter'
  */
 export function raggedRowError(fields: readonly string[], header: readonly string[], line: number, file: string, delimiter: string, detected: boolean): InputError {
   const shown = fields.join(delimiter === '\t' ? '\\t' : delimiter);
@@ -233,6 +260,10 @@ export const headerOnlyMessage = 'has a header but no data rows';
  * often is refused with a message suggesting `--delimiter`.
  *
  * @throws InputError when the header is ambiguous.
+ * @example
+ * detectDelimiter('age;n;mean;sd\n1;5;2,5;0,3\n'); // ';'
+ * detectDelimiter('a,b;c\n');
+ * // throws: cannot tell the delimiter from the header
  */
 export function detectDelimiter(text: string, file?: string): string {
   const firstLine = (text.replace(/^\uFEFF/, '').split(/\r\n|\n|\r/).find((line) => line.trim() !== '') ?? '').replace(/"[^"]*"/g, '');

@@ -145,6 +145,8 @@ export interface ColumnPlan {
  *
  * @param rawHeader the header as written (for messages); defaults to `header`.
  * @throws InputError naming the file, line 1 and the column.
+ * @example
+ * planColumns(['section', 'age', 'n', 'mean', 'sd'], 'a.csv'); // { file: 'a.csv', header: ['section', 'age', 'n', 'mean', 'sd'], form: 'summary', timeKind: 'age', spread: 'sd', section: 'section' }
  */
 export function planColumns(header: readonly string[], file: string, rawHeader: readonly string[] = header): ColumnPlan {
   const seen = new Set<string>();
@@ -266,6 +268,10 @@ interface UnreadColumn {
  * (`stream-samples.ts`) share every check and message. Specimens of the same
  * (section, trait, position) are summarised as they arrive with
  * {@link RunningMoments}; memory grows with the number of horizons, not rows.
+ * @example
+ * const collector = new HorizonCollector(planColumns(['age', 'value'], 'a.csv'));
+ * collector.add(2, ['1.5', '4']); collector.add(3, ['1.5', '6']);
+ * collector.finish().records; // [{ section: '', trait: '', position: 1.5, n: 2, mean: 5, variance: 2, line: 2 }]
  */
 export class HorizonCollector {
   private readonly index: (name: string) => number;
@@ -431,6 +437,8 @@ export class HorizonCollector {
  * mean_ln = ln(mean), v_ln = (sd / mean)^2, common practice).
  *
  * @throws InputError naming file, line, column and value for every bad cell.
+ * @example
+ * readSamples(readTable('age,n,mean,sd\n2,5,1.5,0.5\n', 'a.csv')).records[0].variance; // 0.25 (sd squared)
  */
 export function readSamples(table: Table, options: SampleOptions = {}): SampleSet {
   const plan = planColumns(table.header, table.file, table.rawHeader);
@@ -443,6 +451,9 @@ export function readSamples(table: Table, options: SampleOptions = {}): SampleSe
  * Levenshtein distance (insertions, deletions, substitutions); with
  * `transpositions`, swapping two neighbouring letters also costs 1 (optimal
  * string alignment distance).
+ * @example
+ * editDistance('sectoin', 'section'); // 2
+ * editDistance('sectoin', 'section', true); // 1 (one swap of neighbours)
  */
 export function editDistance(a: string, b: string, transpositions = false): number {
   const rows: number[][] = Array.from({ length: a.length + 1 }, (_, i) => Array.from({ length: b.length + 1 }, (_, j) => (i === 0 ? j : j === 0 ? i : 0)));

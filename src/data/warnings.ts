@@ -24,7 +24,15 @@ export interface Warning {
   readonly count: number;
 }
 
-/** Collects warnings, folding repeats; order of first occurrence is kept. */
+/**
+ * Collects warnings, folding repeats; order of first occurrence is kept.
+ *
+ * @example
+ * const log = new WarningLog();
+ * log.add('duplicate-time', 'A / x: 2 rows at age 3'); log.add('duplicate-time', 'A / x: 2 rows at age 3');
+ * log.list(); // [{ category: 'duplicate-time', message: 'A / x: 2 rows at age 3', count: 2 }]
+ * log.has('at-bound'); // false
+ */
 export class WarningLog {
   private readonly entries = new Map<string, { category: WarningCategory; message: string; count: number }>();
 

@@ -21,6 +21,11 @@ export interface ProfileResult {
  *
  * Aitken, A. C. (1935). On least squares and linear combination of
  * observations. Proc. Royal Society of Edinburgh 55:42-48.
+ * @example
+ * const space = allocateStateSpace(2, 1, Float64Array.of(1, 1)); space.design.fill(1);
+ * const sums = whiten(space, Float64Array.of(1, 3), allocateSums(2, 1), new Float64Array(workSize(1)));
+ * profileOut(sums).coefficients[0]; // 2 (to 1e-12; V = I: the ordinary mean)
+ * profileOut(sums).logLik; // -2.8378770664093453 (to 1e-12; = -ln 2 pi - 1)
  */
 export function profileOut(sums: WhitenedSums): ProfileResult {
   const width = sums.width;
@@ -69,6 +74,10 @@ export function profileOut(sums: WhitenedSums): ProfileResult {
 /**
  * Log-likelihood at given design coefficients (no profiling):
  * -0.5 (N ln 2 pi + ln det V + ||R beta - z||^2 + residual).
+ * @example
+ * const space = allocateStateSpace(2, 1, Float64Array.of(1, 1)); space.design.fill(1);
+ * const sums = whiten(space, Float64Array.of(1, 3), allocateSums(2, 1), new Float64Array(workSize(1)));
+ * logLikAt(sums, [0]); // -6.837877066409345 (to 1e-12; = -ln 2 pi - (1 + 9) / 2)
  */
 export function logLikAt(sums: WhitenedSums, coefficients: ArrayLike<number>): number {
   if (sums.singular) return Number.NEGATIVE_INFINITY;
@@ -87,6 +96,11 @@ export function logLikAt(sums: WhitenedSums, coefficients: ArrayLike<number>): n
  * reduced problem is rebuilt from the full factor R (its rows, column
  * `index` moved into the data), so its `logDetInformation` is
  * ln det(X_r' V^-1 X_r) without forming cross-products.
+ * @example
+ * const space = allocateStateSpace(2, 2, Float64Array.of(1, 1)); space.design.set([1, 0, 1, 1]);
+ * const sums = whiten(space, Float64Array.of(1, 3), allocateSums(2, 2), new Float64Array(workSize(2)));
+ * reducedProfile(sums, 1, 0).coefficients[0]; // 2 (to 1e-12; slope held at 0: the mean)
+ * reducedProfile(sums, 1, 2).coefficients[0]; // 1 (to 1e-12; slope 2: mean of 1 - 0, 3 - 2)
  */
 export function reducedProfile(sums: WhitenedSums, index: number, value: number): ProfileResult {
   const width = sums.width;
@@ -118,6 +132,10 @@ export function reducedProfile(sums: WhitenedSums, index: number, value: number)
 /**
  * Profile log-likelihood with design coefficient `index` held at `value` and
  * the others profiled out by GLS ({@link reducedProfile}).
+ * @example
+ * const space = allocateStateSpace(2, 1, Float64Array.of(1, 1)); space.design.fill(1);
+ * const sums = whiten(space, Float64Array.of(1, 3), allocateSums(2, 1), new Float64Array(workSize(1)));
+ * profileWithFixedCoefficient(sums, 0, 0); // -6.837877066409345 (to 1e-12; the one coefficient held: logLikAt(sums, [0]))
  */
 export function profileWithFixedCoefficient(sums: WhitenedSums, index: number, value: number): number {
   return reducedProfile(sums, index, value).logLik;

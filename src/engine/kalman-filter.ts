@@ -28,7 +28,12 @@ export interface WhitenedSums {
   singular: boolean;
 }
 
-/** Allocate reusable sums for a given width. */
+/**
+ * Allocate reusable sums for a given width.
+ *
+ * @example
+ * allocateSums(5, 2).triangle.length; // 4 (R is width × width)
+ */
 export function allocateSums(size: number, width: number): WhitenedSums {
   return {
     size,
@@ -44,6 +49,11 @@ export function allocateSums(size: number, width: number): WhitenedSums {
 /**
  * Fold one whitened row [row[0..width-1] | row[width]] into the QR factor by
  * Givens rotations; `row` is overwritten.
+ * @example
+ * const sums = allocateSums(2, 1);
+ * foldRow(sums, Float64Array.of(3, 4), 0); foldRow(sums, Float64Array.of(4, 3), 0);
+ * sums.triangle[0]; // 5 (to 1e-12; sqrt(3^2 + 4^2))
+ * sums.residual; // 1.96 (to 1e-12; least squares of 4, 3 on 3, 4: 25 - 24^2 / 25)
  */
 export function foldRow(sums: WhitenedSums, row: Float64Array, offset: number): void {
   const width = sums.width;
@@ -86,6 +96,11 @@ export function foldRow(sums: WhitenedSums, row: Float64Array, offset: number): 
  * @param data the observations x (length N)
  * @param sums output, overwritten
  * @param work scratch of length >= workSize(width)
+ * @example
+ * const space = allocateStateSpace(2, 1, Float64Array.of(1, 1)); space.design.fill(1);
+ * const sums = whiten(space, Float64Array.of(1, 3), allocateSums(2, 1), new Float64Array(workSize(1)));
+ * sums.sumLogVariance; // 0 (no process variance, unit sampling variances: V = I)
+ * sums.residual; // 2 (to 1e-12; squares about the mean 2)
  */
 export function whiten(space: StateSpace, data: Float64Array, sums: WhitenedSums, work: Float64Array): WhitenedSums {
   const { size, width, transition, processVariance, observationVariance, design } = space;
@@ -142,7 +157,12 @@ export function whiten(space: StateSpace, data: Float64Array, sums: WhitenedSums
   return sums;
 }
 
-/** Scratch size {@link whiten} needs for a given design width. */
+/**
+ * Scratch size {@link whiten} needs for a given design width.
+ *
+ * @example
+ * workSize(3); // 8
+ */
 export function workSize(width: number): number {
   return 2 * width + 2;
 }

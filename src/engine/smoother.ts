@@ -23,6 +23,12 @@ export interface SmootherResult {
  * @param space state space at the fitted process parameters
  * @param locationMean mu_i for each horizon
  * @param data observed means x_i
+ * @example
+ * const space = allocateStateSpace(1, 1, Float64Array.of(1)); space.processVariance[0] = 1;
+ * const smoothed = smoothLineage(space, Float64Array.of(0), Float64Array.of(2));
+ * smoothed.smoothedMean[0]; // 1 (prior N(0, 1), one reading 2 with variance 1: halfway)
+ * smoothed.smoothedVariance[0]; // 0.5 (= 1 × 1 / (1 + 1))
+ * smoothed.standardizedInnovations[0]; // 1.4142135623730951 (to 1e-15; = 2 / sqrt 2)
  */
 export function smoothLineage(space: StateSpace, locationMean: Float64Array, data: Float64Array): SmootherResult {
   const size = space.size;

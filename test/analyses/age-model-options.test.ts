@@ -8,7 +8,8 @@ import { WarningLog } from '../../src/data/warnings.js';
 import { warnImplausibleRates } from '../../src/analyses/age-model-options.js';
 import { runPower } from '../../src/analyses/power-run.js';
 import { runFitStreamed } from '../../src/analyses/fit-run.js';
-import { root, runCli } from '../robustness/cli.js';
+import { root } from '../robustness/cli.js';
+import { runCliHere } from '../support/cli-in-process.js';
 
 // Issue 19: every command that reads samples takes the age-model options
 // through one set (commands/shared.ts addAgeModelOptions, analyses/age-model-options.ts).
@@ -31,9 +32,9 @@ const depthTies = write('depth-ties.csv', 'depth,age\n0,1\n100,2\n');
 const heightTies = write('height-ties.csv', 'height,age\n0,1\n100,2\n');
 
 describe('--age-model and --extrapolate on every samples-reading command', () => {
-  it('--help of fit, compare, report, power, bootstrap and simulate lists both; --age-draws only where draws are run (fit, compare)', () => {
+  it('--help of fit, compare, report, power, bootstrap and simulate lists both; --age-draws only where draws are run (fit, compare)', async () => {
     for (const command of ['fit', 'compare', 'report', 'power', 'bootstrap', 'simulate']) {
-      const help = runCli([command, '--help'], folder).stdout;
+      const help = (await runCliHere([command, '--help'], folder)).stdout;
       expect(help, command).toContain('--age-model <file>');
       expect(help, command).toContain('--extrapolate');
       expect(help.includes('--age-draws'), command).toBe(command === 'fit' || command === 'compare');
@@ -48,40 +49,40 @@ describe('--age-model and --extrapolate on every samples-reading command', () =>
     expect(run.report.grid.length).toBeGreaterThan(0);
   });
 
-  it('report --power on heights with --age-model runs the power analysis for every lineage', () => {
+  it('report --power on heights with --age-model runs the power analysis for every lineage', async () => {
     // One lineage of the bundled data and one assumed step variance (one power run keeps the test short).
     const rows = readFileSync(heights, 'utf8').trim().split('\n');
     const one = write('one-lineage.csv', [rows[0], ...rows.filter((row) => row.startsWith('Quarrel Hollow,whorl width,'))].join('\n') + '\n');
     const out = join(folder, 'power.html');
-    const run = runCli(['report', one, '--age-model', ties, '--power', '--power-replicates', '20', '--power-step-variance', '0.02', '--no-intervals', '--out', out], folder);
+    const run = await runCliHere(['report', one, '--age-model', ties, '--power', '--power-replicates', '20', '--power-step-variance', '0.02', '--no-intervals', '--out', out], folder);
     expect(run.status, run.stderr).toBe(0);
     const html = readFileSync(out, 'utf8');
     expect(html).not.toContain('power not run');
     expect(html).not.toContain('no age model was given');
   });
 
-  it('simulate on a depth design writes the ages of the age model (age = 1 + depth/100), which fit reads back without ties', () => {
+  it('simulate on a depth design writes the ages of the age model (age = 1 + depth/100), which fit reads back without ties', async () => {
     const out = join(folder, 'simulated.csv');
-    const run = runCli(['simulate', depthSamples, '--age-model', depthTies, '--model', 'random-walk', '--parameters', 'ancestral_mean=5,step_variance=0.1', '--out', out], folder);
+    const run = await runCliHere(['simulate', depthSamples, '--age-model', depthTies, '--model', 'random-walk', '--parameters', 'ancestral_mean=5,step_variance=0.1', '--out', out], folder);
     expect(run.status, run.stderr).toBe(0);
     const lines = readFileSync(out, 'utf8').trim().split('\n');
     expect(lines[0]).toBe('section,trait,age,n,mean,sd');
     expect(lines.slice(1).map((line) => Number(line.split(',')[2]))).toEqual([1.6, 1.5, 1.4, 1.3, 1.2, 1.1]); // oldest (deepest) first
-    expect(runCli(['fit', out, '--no-intervals', '--quiet'], folder).status).toBe(0);
+    expect((await runCliHere(['fit', out, '--no-intervals', '--quiet'], folder)).status).toBe(0);
   });
 
-  it('bootstrap places depths with the age model; without it the message names --age-model, which it now takes', () => {
-    const without = runCli(['bootstrap', depthSamples, '--replicates', '19', '--threads', '1', '--quiet'], folder);
+  it('bootstrap places depths with the age model; without it the message names --age-model, which it now takes', async () => {
+    const without = await runCliHere(['bootstrap', depthSamples, '--replicates', '19', '--threads', '1', '--quiet'], folder);
     expect(without.status).toBe(1);
     expect(without.stderr).toContain('--age-model FILE');
-    const withTies = runCli(['bootstrap', depthSamples, '--age-model', depthTies, '--replicates', '19', '--threads', '1', '--json'], folder);
+    const withTies = await runCliHere(['bootstrap', depthSamples, '--age-model', depthTies, '--replicates', '19', '--threads', '1', '--json'], folder);
     expect(withTies.status, withTies.stderr).toBe(0);
     expect(JSON.parse(withTies.stdout).lineages).toHaveLength(1);
   });
 
-  it('--extrapolate without --age-model is a usage error on the new commands too', () => {
+  it('--extrapolate without --age-model is a usage error on the new commands too', async () => {
     for (const command of ['power', 'bootstrap', 'simulate']) {
-      const run = runCli([command, depthSamples, '--extrapolate'], folder);
+      const run = await runCliHere([command, depthSamples, '--extrapolate'], folder);
       expect(run.status, command).toBe(2);
       expect(run.stderr, command).toContain('--extrapolate extends an age model');
     }
@@ -89,17 +90,17 @@ describe('--age-model and --extrapolate on every samples-reading command', () =>
 });
 
 describe('the tie reader', () => {
-  it('a tie file in height against samples in depth says so, instead of an age reversal', () => {
-    const run = runCli(['fit', depthSamples, '--age-model', heightTies, '--no-intervals'], folder);
+  it('a tie file in height against samples in depth says so, instead of an age reversal', async () => {
+    const run = await runCliHere(['fit', depthSamples, '--age-model', heightTies, '--no-intervals'], folder);
     expect(run.status).toBe(1);
     expect(run.stderr).toContain('the ties give "height" but the samples give "depth"');
     expect(run.stderr).not.toContain('age reversal');
     // Depth ties named "height" (ages growing with "height") were the misleading case: still a clear message.
     const misnamed = write('misnamed-ties.csv', 'height,age\n0,1\n100,2\n');
-    expect(runCli(['fit', depthSamples, '--age-model', misnamed, '--no-intervals'], folder).stderr).toContain('the samples give "depth"');
+    expect((await runCliHere(['fit', depthSamples, '--age-model', misnamed, '--no-intervals'], folder)).stderr).toContain('the samples give "depth"');
   });
 
-  it('hints --decimal-comma for "8,10" as the samples reader does', () => {
+  it('hints --decimal-comma for "8,10" as the samples reader does', async () => {
     const table = readTable('section;height;age\nA;0;9\nA;35;"8,10"\n', 'ties.csv', { delimiter: ';' });
     expect(() => readAgeModel(table)).toThrow('ties.csv line 3, column "age": must be a finite number, got "8,10" (for a decimal comma use --decimal-comma)');
     expect(readAgeModel(table, { decimalComma: true }).sections.get('A')?.[1].age).toBe(8.1);
@@ -107,7 +108,7 @@ describe('the tie reader', () => {
 });
 
 describe('plausibility of the time axis (thresholds: common practice, see README)', () => {
-  it('sedimentation rates of ka ages read as Ma are 1000 times too small: warned, with --time-unit ka named', () => {
+  it('sedimentation rates of ka ages read as Ma are 1000 times too small: warned, with --time-unit ka named', async () => {
     // Ties 0 m at 1000 and 20 m at 0 in "Myr": 0.02 m/Myr; read as ka, 20 m/Myr.
     const model = readAgeModel(readTable('height,age\n0,1000\n20,0\n', 'ka-ties.csv'));
     const log = new WarningLog();
@@ -120,12 +121,12 @@ describe('plausibility of the time axis (thresholds: common practice, see README
     expect(right.list()).toEqual([]);
   });
 
-  it('the bundled ties (22 to 39 m/Myr) raise nothing; the CLI prints a rate warning on stderr and into the JSON warnings', () => {
-    const fine = runCli(['fit', heights, '--age-model', ties, '--no-intervals', '--json'], folder);
+  it('the bundled ties (22 to 39 m/Myr) raise nothing; the CLI prints a rate warning on stderr and into the JSON warnings', async () => {
+    const fine = await runCliHere(['fit', heights, '--age-model', ties, '--no-intervals', '--json'], folder);
     expect(fine.stderr).not.toContain('time-axis');
     // 100 m over 10000 "Myr": 0.01 m/Myr (10 m/Myr in ka); the horizons at 10..60 m span 5000 "Myr" (5 Myr in ka).
     const kaTies = write('ka-ties.csv', 'depth,age\n0,1000\n100,11000\n');
-    const run = runCli(['fit', depthSamples, '--age-model', kaTies, '--no-intervals', '--json'], folder);
+    const run = await runCliHere(['fit', depthSamples, '--age-model', kaTies, '--no-intervals', '--json'], folder);
     expect(run.status, run.stderr).toBe(0);
     expect(run.stderr).toContain('warning (time-axis)');
     const warnings = (JSON.parse(run.stdout) as { warnings: { category: string; message: string }[] }).warnings.filter((warning) => warning.category === 'time-axis');
@@ -154,8 +155,8 @@ describe('fit with an age model', () => {
     expect((run.document.provenance as { inputs: { file: string }[] }).inputs.map((input) => input.file)).toEqual([depthSamples, depthTies]);
   });
 
-  it('prints the sedimentation rates of every section (hand-computed: 35 m over 0.9 Myr = 38.9 m/Myr)', () => {
-    const run = runCli(['fit', heights, '--age-model', ties, '--no-intervals'], folder);
+  it('prints the sedimentation rates of every section (hand-computed: 35 m over 0.9 Myr = 38.9 m/Myr)', async () => {
+    const run = await runCliHere(['fit', heights, '--age-model', ties, '--no-intervals'], folder);
     expect(run.status, run.stderr).toBe(0);
     expect(run.stdout).toContain('rates in m per Myr');
     expect(run.stdout).toContain('Quarrel Hollow: 4 ties, sedimentation rates 38.9, 37.5, 30.8');

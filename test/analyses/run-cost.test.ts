@@ -14,7 +14,7 @@ import { WarningLog } from '../../src/data/warnings.js';
 import { lineageFromArrays } from '../../src/lineage.js';
 import { shiftPlacements } from '../../src/models/punctuated-shifts.js';
 import { modelSets } from '../../src/models/registry.js';
-import { runCli } from '../robustness/cli.js';
+import { runCliHere } from '../support/cli-in-process.js';
 
 /** An invented lineage of `size` horizons (only its length matters here). */
 function lineageOf(size: number, section = 'Orrin Flat') {
@@ -27,7 +27,7 @@ function lineageOf(size: number, section = 'Orrin Flat') {
 }
 
 describe('placement counts', () => {
-  it('equal the number of placements the search enumerates (stars and bars)', () => {
+  it('equal the number of placements the search enumerates (stars and bars)', async () => {
     for (const [size, shifts, minimum] of [[6, 1, 2], [20, 2, 5], [31, 2, 3], [40, 1, 5], [14, 2, 5], [15, 2, 5], [9, 3, 2]] as const) {
       expect(placementCount(size, shifts, minimum), `${size} ${shifts} ${minimum}`).toBe(shiftPlacements(size, shifts, minimum).length);
     }
@@ -39,7 +39,7 @@ describe('placement counts', () => {
 describe('checkShiftSearchCost', () => {
   const extended = modelSets.extended();
 
-  it('refuses a lineage whose two-shift placements exceed the limit, naming it and a --models list without them', () => {
+  it('refuses a lineage whose two-shift placements exceed the limit, naming it and a --models list without them', async () => {
     const warnings = new WarningLog();
     expect(() => checkShiftSearchCost([lineageOf(20), lineageOf(3000, 'Brisk Ledge')], extended, { warnings, write: () => {} })).toThrow(
       /^--models: lineage "Brisk Ledge" has 3,000 horizons; punctuated-2, punctuated-2-separate would search 4,459,591 placements of their shifts, more than the 2,000,000 this tool searches .*Leave them out: --models strict-stasis,stasis,random-walk,directional-walk,ou,punctuated-1,punctuated-1-separate,/,
@@ -61,7 +61,7 @@ describe('checkShiftSearchCost', () => {
     expect(() => checkShiftSearchCost([lineageOf(3000)], extended, { minimumSegment: 600, warnings, write: () => {} })).not.toThrow();
   });
 
-  it('announces a long run with its estimate before fitting, once, and says nothing for short ones or the classic set', () => {
+  it('announces a long run with its estimate before fitting, once, and says nothing for short ones or the classic set', async () => {
     const printed: string[] = [];
     const warnings = new WarningLog();
     checkShiftSearchCost([lineageOf(1800)], extended, { warnings, write: (text) => printed.push(text) });
@@ -79,7 +79,7 @@ describe('checkShiftSearchCost', () => {
     expect(none.has('long-run')).toBe(false);
   });
 
-  it('duration words', () => {
+  it('duration words', async () => {
     expect(durationWords(12.4)).toBe('12 seconds');
     expect(durationWords(600)).toBe('10 minutes');
     expect(durationWords(36_000)).toBe('10 hours');
@@ -87,23 +87,23 @@ describe('checkShiftSearchCost', () => {
 });
 
 describe('fit --models extended on a very long lineage (real CLI)', () => {
-  it('is refused before fitting with exit 2 and one message, never "internal error: Invalid typed array length"', () => {
+  it('is refused before fitting with exit 2 and one message, never "internal error: Invalid typed array length"', async () => {
     const folder = mkdtempSync(join(tmpdir(), 'stratotrend-cost-'));
     // Invented: 100,000 horizons of a slow sine, 20 specimens each.
     const rows = ['age,n,mean,sd', ...Array.from({ length: 100_000 }, (_, i) => `${(100_000 - i) / 1000},20,${(5 + Math.sin(i / 50)).toFixed(4)},0.5`)];
     writeFileSync(join(folder, 'long.csv'), rows.join('\n') + '\n');
-    const run = runCli(['fit', 'long.csv', '--models', 'extended'], folder);
+    const run = await runCliHere(['fit', 'long.csv', '--models', 'extended'], folder);
     expect(run.status).toBe(2);
     expect(run.stderr).toMatch(/^stratotrend: --models: lineage "lineage" has 100,000 horizons; punctuated-2, punctuated-2-separate would search [\d,]+ placements .*Leave them out: --models [a-z0-9,-]+\n$/);
   });
 
-  it('compare applies the same check to each section', () => {
+  it('compare applies the same check to each section', async () => {
     const folder = mkdtempSync(join(tmpdir(), 'stratotrend-cost-'));
     // Invented: two sections of 2,100 horizons; C(2100 − 13, 2) = 2,176,741 placements for two shifts.
     const rows = ['section,age,n,mean,sd'];
     for (const section of ['Ash Ledge', 'Brisk Ledge']) for (let i = 0; i < 2100; i++) rows.push(`${section},${(2100 - i) / 100},20,${(5 + Math.sin(i / 30)).toFixed(4)},0.5`);
     writeFileSync(join(folder, 'two.csv'), rows.join('\n') + '\n');
-    const run = runCli(['compare', 'two.csv', '--models', 'extended'], folder);
+    const run = await runCliHere(['compare', 'two.csv', '--models', 'extended'], folder);
     expect(run.status).toBe(2);
     expect(run.stderr).toMatch(/^stratotrend: --models: lineage "Ash Ledge" has 2,100 horizons; punctuated-2, punctuated-2-separate would search 2,176,741 placements /);
   });

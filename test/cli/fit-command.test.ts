@@ -5,6 +5,8 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { runFit } from '../../src/analyses/fit-run.js';
+import { root } from '../robustness/cli.js';
+import { runCliHere } from '../support/cli-in-process.js';
 
 const sample = new URL('../../sample-data/shell-length.csv', import.meta.url).pathname;
 const launcher = new URL('../../bin/stratotrend', import.meta.url).pathname;
@@ -112,10 +114,14 @@ describe('stratotrend fit: invariances (common practice for location-scale model
   });
 });
 
+// The first two only read outputs, so they run in the test process (runCliHere); the others
+// go through bin/stratotrend in a child process: exit codes, stderr and stdin as a shell sees them.
 describe('stratotrend fit: the command line', () => {
-  it('--out writes models.csv and fit.json, and the JSON equals --json output byte for byte', () => {
+  it('--out writes models.csv and fit.json, and the JSON equals --json output byte for byte', async () => {
     const out = join(folder, 'out');
-    const printed = execFileSync('node', [launcher, 'fit', sample, '--no-figures', '--out', out, '--json'], { encoding: 'utf8' });
+    const run = await runCliHere(['fit', sample, '--no-figures', '--out', out, '--json'], root);
+    expect(run.status, run.stderr).toBe(0);
+    const printed = run.stdout;
     expect(existsSync(join(out, 'models.csv'))).toBe(true);
     expect(readFileSync(join(out, 'fit.json'), 'utf8')).toBe(printed);
     const csv = readFileSync(join(out, 'models.csv'), 'utf8').trim().split('\n');
@@ -125,8 +131,10 @@ describe('stratotrend fit: the command line', () => {
     expect(csv.slice(1).every((row) => row.split(',')[3] === '0')).toBe(true);
   });
 
-  it('prints the table with the best model marked in words', () => {
-    const printed = execFileSync('node', [launcher, 'fit', sample], { encoding: 'utf8' });
+  it('prints the table with the best model marked in words', async () => {
+    const run = await runCliHere(['fit', sample], root);
+    expect(run.status, run.stderr).toBe(0);
+    const printed = run.stdout;
     expect(printed).toMatch(/Best supported: directional walk/);
     expect(printed).toMatch(/<- best supported/);
   });

@@ -10,6 +10,7 @@ import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { afterEach, describe, expect, it, vi } from 'vitest';
 import { runCli, root } from '../robustness/cli.js';
+import { runCliHere } from '../support/cli-in-process.js';
 
 // Record every whole-file read and every streamed read (the modules under test import these names).
 const reads = vi.hoisted(() => ({ whole: [] as string[], streamed: [] as string[] }));
@@ -100,25 +101,26 @@ describe('samples files are streamed once by every command', () => {
   });
 });
 
+// The file runs are in the test process (runCliHere); the stdin runs stay child processes with a real pipe.
 describe('standard input ("-") works wherever a samples file does', () => {
   const json = (text: string): Record<string, any> => JSON.parse(text);
   const withoutInputs = (document: Record<string, any>): string => JSON.stringify({ ...document, provenance: { ...document.provenance, inputs: null } });
 
-  it('fit --age-draws from stdin gives the same age-uncertainty summary as from the file', () => {
+  it('fit --age-draws from stdin gives the same age-uncertainty summary as from the file', async () => {
     const args = ['--age-model', ties, '--age-draws', '4', '--no-intervals', '--json'];
-    const fromFile = runCli(['fit', heights, ...args], root);
+    const fromFile = await runCliHere(['fit', heights, ...args], root);
     const fromStdin = runCli(['fit', '-', ...args], root, realReadFileSync(heights));
     expect(fromStdin.stderr).toBe(fromFile.stderr);
     expect(fromStdin.status).toBe(0);
     expect(json(fromStdin.stdout).age_uncertainty).toEqual(json(fromFile.stdout).age_uncertainty);
   });
 
-  it('compare and simulate read stdin like a file', () => {
-    const compareFile = runCli(['compare', heights, '--age-model', ties, '--no-intervals', '--json'], root);
+  it('compare and simulate read stdin like a file', async () => {
+    const compareFile = await runCliHere(['compare', heights, '--age-model', ties, '--no-intervals', '--json'], root);
     const compareStdin = runCli(['compare', '-', '--age-model', ties, '--no-intervals', '--json'], root, realReadFileSync(heights));
     expect(compareStdin.status).toBe(0);
     expect(withoutInputs(json(compareStdin.stdout))).toBe(withoutInputs(json(compareFile.stdout)));
-    const simulateFile = runCli(['simulate', shellLength, '--model', 'random-walk', '--seed', '5'], root);
+    const simulateFile = await runCliHere(['simulate', shellLength, '--model', 'random-walk', '--seed', '5'], root);
     const simulateStdin = runCli(['simulate', '-', '--model', 'random-walk', '--seed', '5'], root, realReadFileSync(shellLength));
     expect(simulateStdin.status).toBe(0);
     expect(simulateStdin.stdout).toBe(simulateFile.stdout);

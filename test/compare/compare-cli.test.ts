@@ -1,14 +1,14 @@
-import { spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, writeFileSync, existsSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { runCompare, sectionDocuments, type CompareRun } from '../../src/analyses/compare-run.js';
 import { directionalWalk } from '../../src/models/directional-walk.js';
+import { root } from '../robustness/cli.js';
+import { runCliHere } from '../support/cli-in-process.js';
 
 const heights = new URL('../../sample-data/locality-heights.csv', import.meta.url).pathname;
 const ties = new URL('../../sample-data/locality-ties.csv', import.meta.url).pathname;
-const launcher = new URL('../../bin/stratotrend', import.meta.url).pathname;
 const folder = mkdtempSync(join(tmpdir(), 'stratotrend-compare-'));
 type Json = Record<string, any>;
 
@@ -21,7 +21,7 @@ describe('stratotrend compare', () => {
   });
 
   // The fields the issue names: {"traits": [{"trait", "hypotheses": [{"id", "model", "k", "logLik", "aicc", "weight"}]}]}.
-  it('writes the JSON fields the checks read', () => {
+  it('writes the JSON fields the checks read', async () => {
     expect(document.traits.map((trait: Json) => trait.trait)).toEqual(['whorl width', 'rib density']);
     for (const trait of document.traits) {
       expect(trait.hypotheses).toHaveLength(14);
@@ -45,7 +45,7 @@ describe('stratotrend compare', () => {
   });
 
   // The demo data were generated with very different rib-density drifts (scripts/make-locality-data.mjs).
-  it('on the demo data, rib density favours separate', () => {
+  it('on the demo data, rib density favours separate', async () => {
     const rib = document.traits[1];
     const summed = (id: string) => rib.hypotheses.filter((h: Json) => h.id === id).reduce((sum: number, h: Json) => sum + h.weight, 0);
     expect(summed('separate')).toBeGreaterThan(0.9);
@@ -54,7 +54,7 @@ describe('stratotrend compare', () => {
   it('refuses heights outside the ties without --extrapolate, and flags them with it', async () => {
     const shortTies = join(folder, 'short-ties.csv');
     writeFileSync(shortTies, readFileSync(ties, 'utf8').replace('Quarrel Hollow,120,5.60,0.04\n', ''));
-    const refused = spawnSync(process.execPath, [launcher, 'compare', heights, '--age-model', shortTies, '--no-intervals'], { encoding: 'utf8' });
+    const refused = await runCliHere(['compare', heights, '--age-model', shortTies, '--no-intervals'], root);
     expect(refused.status).toBe(1);
     expect(refused.stderr).toMatch(/locality-heights\.csv line \d+: height \S+ in section "Quarrel Hollow" lies outside the age model's ties \(0 to 80\).*--extrapolate/);
     const allowed = await runCompare(heights, { ageModel: shortTies, extrapolate: true, intervals: false, models: 'random-walk' });
@@ -63,15 +63,15 @@ describe('stratotrend compare', () => {
     expect(allowed.warnings.has('extrapolated-age')).toBe(true);
   });
 
-  it('writes CSV, JSON and a figure with --out, and the help names the hypotheses', () => {
+  it('writes CSV, JSON and a figure with --out, and the help names the hypotheses', async () => {
     const out = join(folder, 'out');
-    const result = spawnSync(process.execPath, [launcher, 'compare', heights, '--age-model', ties, '--no-intervals', '--models', 'random-walk,directional-walk', '--out', out], { encoding: 'utf8' });
+    const result = await runCliHere(['compare', heights, '--age-model', ties, '--no-intervals', '--models', 'random-walk,directional-walk', '--out', out], root);
     expect(result.status).toBe(0);
     const csv = readFileSync(join(out, 'compare.csv'), 'utf8').trim().split('\n');
     expect(csv[0]).toBe('trait,hypothesis,model,k,horizons,logLik,aicc,delta_aicc,weight,best,compared,lrt_statistic,lrt_df,lrt_p_value,extrapolated_horizons,message,same_fit_as');
     expect(csv).toHaveLength(1 + 2 * 6);
     expect(existsSync(join(out, 'whorl-width.sections.png'))).toBe(true);
-    const help = spawnSync(process.execPath, [launcher, 'compare', '--help'], { encoding: 'utf8' });
+    const help = await runCliHere(['compare', '--help'], root);
     expect(help.stdout).toMatch(/shared-offset/);
     expect(help.stdout).toMatch(/--age-model <file>/);
     // Issue 20: the help documents the model sets compare accepts and what extended leaves out.
@@ -81,7 +81,7 @@ describe('stratotrend compare', () => {
 
   // Hand-checkable from the ties: Quarrel Hollow's lowest horizon at 1.0 m lies between (0 m, 9.00 Ma) and
   // (35 m, 8.10 Ma): 9.00 - 1.0 * 0.90 / 35 = 8.974285714... Ma. The figure documents carry these ages.
-  it('sections figure documents put every section on the common age axis', () => {
+  it('sections figure documents put every section on the common age axis', async () => {
     const comparison = run.run.comparisons[0];
     const documents = sectionDocuments(comparison, [directionalWalk]);
     expect(documents.map((d) => d.position_kind)).toEqual(['age', 'age', 'age']);
@@ -104,14 +104,14 @@ describe('stratotrend compare', () => {
     for (let i = 1; i < times.length; i++) expect(times[i]).toBeGreaterThanOrEqual(times[i - 1]);
   });
 
-  it('fit accepts --age-model and reports the age draws in the JSON', () => {
-    const result = spawnSync(process.execPath, [launcher, 'fit', heights, '--age-model', ties, '--no-intervals', '--models', 'random-walk,directional-walk', '--age-draws', '4', '--seed', '9', '--json'], { encoding: 'utf8' });
+  it('fit accepts --age-model and reports the age draws in the JSON', async () => {
+    const result = await runCliHere(['fit', heights, '--age-model', ties, '--no-intervals', '--models', 'random-walk,directional-walk', '--age-draws', '4', '--seed', '9', '--json'], root);
     expect(result.status).toBe(0);
     const fit = JSON.parse(result.stdout);
     expect(fit.age_uncertainty.draws).toBe(4);
     expect(fit.age_uncertainty.lineages).toHaveLength(6);
     expect(fit.age_model.sections).toHaveLength(3);
-    const again = JSON.parse(spawnSync(process.execPath, [launcher, 'fit', heights, '--age-model', ties, '--no-intervals', '--models', 'random-walk,directional-walk', '--age-draws', '4', '--seed', '9', '--json'], { encoding: 'utf8' }).stdout);
+    const again = JSON.parse((await runCliHere(['fit', heights, '--age-model', ties, '--no-intervals', '--models', 'random-walk,directional-walk', '--age-draws', '4', '--seed', '9', '--json'], root)).stdout);
     expect(again.age_uncertainty).toEqual(fit.age_uncertainty);
   });
 });

@@ -19,7 +19,8 @@ import { figureJobs, readFigureLineage } from '../../src/render/figures/index.js
 import { asFitDocument } from '../../src/render/report/document-view.js';
 import { reportPage } from '../../src/render/report/report-page.js';
 import { sketchTrajectory } from '../../src/render/report/sketch-figure.js';
-import { root, runCli } from '../robustness/cli.js';
+import { root } from '../robustness/cli.js';
+import { runCliHere } from '../support/cli-in-process.js';
 
 const folder = mkdtempSync(join(tmpdir(), 'stratotrend-documents-'));
 const samples = join(root, 'sample-data');
@@ -30,16 +31,16 @@ let fit: Json;
 let comparison: Json;
 let power: Json;
 
-function written(args: string[]): Json {
-  const run = runCli(args, folder);
+async function written(args: string[]): Promise<Json> {
+  const run = await runCliHere(args, folder);
   expect(run.status).toBe(0);
   return JSON.parse(run.stdout) as Json;
 }
 
-beforeAll(() => {
-  fit = written(['fit', join(samples, 'shell-length.csv'), '--json', '--no-intervals']);
-  comparison = written(['compare', join(samples, 'locality-heights.csv'), '--age-model', join(samples, 'locality-ties.csv'), '--json', '--composite', '--no-intervals']);
-  power = written(['power', join(samples, 'shell-length.csv'), '--json', '--replicates', '20', '--drifts', '0,0.5', '--no-coverage', '--threads', '1', '--quiet']);
+beforeAll(async () => {
+  fit = await written(['fit', join(samples, 'shell-length.csv'), '--json', '--no-intervals']);
+  comparison = await written(['compare', join(samples, 'locality-heights.csv'), '--age-model', join(samples, 'locality-ties.csv'), '--json', '--composite', '--no-intervals']);
+  power = await written(['power', join(samples, 'shell-length.csv'), '--json', '--replicates', '20', '--drifts', '0,0.5', '--no-coverage', '--threads', '1', '--quiet']);
 });
 
 afterAll(() => rmSync(folder, { recursive: true, force: true }));
@@ -65,19 +66,19 @@ function damaged(document: Json, damage: (copy: Json) => void): Json {
 }
 
 describe('documents written by the tool pass', () => {
-  it('fit.json (with and without intervals, extended models with rates, heights with an age model), compare.json with composites, power JSON', () => {
+  it('fit.json (with and without intervals, extended models with rates, heights with an age model), compare.json with composites, power JSON', async () => {
     expect(messageOf(checkFitDocument, fit, 'fit.json')).toBe('(accepted)');
     expect(messageOf(checkComparisonDocument, comparison, 'compare.json')).toBe('(accepted)');
     expect(messageOf(checkPowerDocument, power, 'power.json')).toBe('(accepted)');
-    const withIntervals = written(['fit', join(samples, 'shell-length.csv'), '--json']);
+    const withIntervals = await written(['fit', join(samples, 'shell-length.csv'), '--json']);
     expect(messageOf(checkFitDocument, withIntervals, 'fit.json')).toBe('(accepted)');
-    const extended = written(['fit', join(samples, 'pulsed-width.csv'), '--models', 'extended', '--json', '--rates', '--no-intervals', '--covariate-file', join(samples, 'pulsed-width-proxy.csv')]);
+    const extended = await written(['fit', join(samples, 'pulsed-width.csv'), '--models', 'extended', '--json', '--rates', '--no-intervals', '--covariate-file', join(samples, 'pulsed-width-proxy.csv')]);
     expect(messageOf(checkFitDocument, extended, 'fit.json')).toBe('(accepted)');
-    const heights = written(['fit', join(samples, 'locality-heights.csv'), '--age-model', join(samples, 'locality-ties.csv'), '--json', '--no-intervals']);
+    const heights = await written(['fit', join(samples, 'locality-heights.csv'), '--age-model', join(samples, 'locality-ties.csv'), '--json', '--no-intervals']);
     expect(messageOf(checkFitDocument, heights, 'fit.json')).toBe('(accepted)');
   });
 
-  it('a fit.json written before trait_unit, first_age and extrapolated_horizons existed passes', () => {
+  it('a fit.json written before trait_unit, first_age and extrapolated_horizons existed passes', async () => {
     const older = damaged(fit, (copy) => {
       for (const lineage of copy.lineages) {
         delete lineage.trait_unit;
@@ -123,16 +124,16 @@ describe('a hand-edited fit.json: one message naming the file and the field path
     ['an embedded comparison with a bad weight', (d) => { d.comparison = { traits: [{ trait: 't', horizons: 3, time_unit: 'Myr', sections: [], best: null, hypotheses: [{ id: 'shared', model: 'stasis', k: 2, logLik: 1, aicc: 2, delta_aicc: 0, weight: 'x', compared: true }], tests: [] }] }; }, 'comparison.traits[0].hypotheses[0].weight: expected a number or null, got "x"'],
   ];
 
-  it.each(cases)('%s', (_what, damage, message) => {
+  it.each(cases)('%s', async (_what, damage, message) => {
     expect(messageOf(checkFitDocument, damaged(fit, damage), 'fit.json')).toBe(`fit.json: ${message}`);
   });
 
-  it('a compare.json or power JSON given as a fit.json is named for what it is', () => {
+  it('a compare.json or power JSON given as a fit.json is named for what it is', async () => {
     expect(messageOf(checkFitDocument, comparison, 'compare.json')).toBe('compare.json: is the JSON of "compare" (it has "traits"), not a fit.json; show it in a report with --attach');
     expect(messageOf(checkFitDocument, power, 'power.json')).toBe('power.json: is the JSON of "power" (it has "grid"), not a fit.json; show it in a report with --attach');
   });
 
-  it('the whole document not an object; a long value is cut at 60 characters', () => {
+  it('the whole document not an object; a long value is cut at 60 characters', async () => {
     expect(messageOf(checkFitDocument, [1, 2], 'fit.json')).toBe('fit.json: the document: expected an object, got [1,2]');
     // ["xxx…"] of 104 characters: the first 59 and an ellipsis.
     expect(messageOf(checkFitDocument, damaged(fit, (d) => { d.provenance.tool = ['x'.repeat(100)]; }), 'fit.json')).toBe(`fit.json: provenance.tool: expected text, got ["${'x'.repeat(57)}…`);
@@ -184,7 +185,7 @@ function fuzzOneField(document: Json, check: (value: unknown, file: string) => v
 }
 
 describe('fuzz: one field replaced by a value of another kind', () => {
-  it('fit.json: refused naming the field, or the report page, the figure input and the sketches read it to the end', () => {
+  it('fit.json: refused naming the field, or the report page, the figure input and the sketches read it to the end', async () => {
     const refused = fuzzOneField(fit, checkFitDocument, (edited) => {
       const view = asFitDocument(edited);
       reportPage({ document: view, run: { date: '2026-01-01T00:00:00Z' } });
@@ -198,7 +199,7 @@ describe('fuzz: one field replaced by a value of another kind', () => {
     expect(refused).toBeGreaterThan(200);
   });
 
-  it('compare.json and power JSON attached to a report: refused naming the field, or shown to the end', () => {
+  it('compare.json and power JSON attached to a report: refused naming the field, or shown to the end', async () => {
     const view = asFitDocument(fit);
     const comparisonRefused = fuzzOneField(comparison, checkComparisonDocument, (edited) => {
       reportPage({ document: view, comparison: edited, run: { date: '2026-01-01T00:00:00Z' } });
@@ -219,7 +220,7 @@ describe('a hand-edited compare.json or power JSON', () => {
     ['a composite lineage whose models are not a list', (d) => { d.composite[0].models = 5; }, 'composite[0].models: expected a list, got 5'],
     ['a section count as text', (d) => { d.traits[0].sections[1].horizons = '12'; }, 'traits[0].sections[1].horizons: expected a whole number, got "12"'],
   ];
-  it.each(comparisonCases)('compare.json: %s', (_what, damage, message) => {
+  it.each(comparisonCases)('compare.json: %s', async (_what, damage, message) => {
     expect(messageOf(checkComparisonDocument, damaged(comparison, damage), 'compare.json')).toBe(`compare.json: ${message}`);
   });
 
@@ -230,7 +231,7 @@ describe('a hand-edited compare.json or power JSON', () => {
     ['an empty grid', (d) => { d.grid = []; }, 'grid: expected a non-empty list, got []'],
     ['a lineage name with an escape', (d) => { d.input.lineage = 'A\u001b]0;x\u0007'; }, 'input.lineage: expected text without control characters, got "A\\u001b]0;x\\u0007" (U+001B (ESC) at character 2)'],
   ];
-  it.each(powerCases)('power JSON: %s', (_what, damage, message) => {
+  it.each(powerCases)('power JSON: %s', async (_what, damage, message) => {
     expect(messageOf(checkPowerDocument, damaged(power, damage), 'power.json')).toBe(`power.json: ${message}`);
   });
 });
@@ -242,48 +243,48 @@ describe('the commands: exit 1 with the one message, nothing written', () => {
     return path;
   }
 
-  it('report and redraw on a fit.json with a weight "bad" (today an internal error, exit 70)', () => {
+  it('report and redraw on a fit.json with a weight "bad" (today an internal error, exit 70)', async () => {
     const path = save('weight-bad.json', damaged(fit, (d) => { d.lineages[0].models[0].weight = 'bad'; }));
     const page = join(folder, 'weight-bad.html');
-    const report = runCli(['report', path, '--out', page], folder);
+    const report = await runCliHere(['report', path, '--out', page], folder);
     expect(report.stderr).toBe(`stratotrend: ${path}: lineages[0].models[0].weight: expected a number or null, got "bad"\n`);
     expect(report.status).toBe(1);
     expect(() => readFileSync(page)).toThrow();
-    const redraw = runCli(['redraw', path, '--out', join(folder, 'weight-bad-figures')], folder);
+    const redraw = await runCliHere(['redraw', path, '--out', join(folder, 'weight-bad-figures')], folder);
     expect(redraw.stderr).toBe(`stratotrend: ${path}: lineages[0].models[0].weight: expected a number or null, got "bad"\n`);
     expect(redraw.status).toBe(1);
   });
 
-  it('report on a fit.json whose models are not a list, and one with a number beyond double precision', () => {
+  it('report on a fit.json whose models are not a list, and one with a number beyond double precision', async () => {
     const path = save('models-object.json', damaged(fit, (d) => { d.lineages[0].models = {}; }));
-    const run = runCli(['report', path, '--out', join(folder, 'models-object.html')], folder);
+    const run = await runCliHere(['report', path, '--out', join(folder, 'models-object.html')], folder);
     expect(run.stderr).toBe(`stratotrend: ${path}: lineages[0].models: expected a list, got {}\n`);
     expect(run.status).toBe(1);
     // JSON.parse reads 1e999 as Infinity: refused with what it became.
     const text = JSON.stringify(fit).replace(/"aicc":[^,]+,/, '"aicc":1e999,');
     const huge = join(folder, 'huge.json');
     writeFileSync(huge, text);
-    const second = runCli(['report', huge, '--out', join(folder, 'huge.html')], folder);
+    const second = await runCliHere(['report', huge, '--out', join(folder, 'huge.html')], folder);
     expect(second.stderr).toBe(`stratotrend: ${huge}: lineages[0].models[0].aicc: expected a number or null, got Infinity (a number beyond double precision)\n`);
     expect(second.status).toBe(1);
   });
 
-  it('a fit.json that is not JSON names the file', () => {
+  it('a fit.json that is not JSON names the file', async () => {
     const path = join(folder, 'cut.json');
     writeFileSync(path, JSON.stringify(fit).slice(0, 200));
-    const run = runCli(['redraw', path], folder);
+    const run = await runCliHere(['redraw', path], folder);
     expect(run.status).toBe(1);
     expect(run.stderr).toMatch(new RegExp(`^stratotrend: ${path.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')}: is not JSON \\(.*\\); expected the fit.json written by "fit --out"\\n$`));
   });
 
-  it('report --attach of a damaged compare.json and power JSON', () => {
+  it('report --attach of a damaged compare.json and power JSON', async () => {
     const good = save('fit-good.json', fit);
     const badComparison = save('compare-bad.json', damaged(comparison, (d) => { d.traits[0].hypotheses[0].weight = 'x'; }));
-    const first = runCli(['report', good, '--attach', badComparison, '--out', join(folder, 'attach-1.html')], folder);
+    const first = await runCliHere(['report', good, '--attach', badComparison, '--out', join(folder, 'attach-1.html')], folder);
     expect(first.stderr).toBe(`stratotrend: ${badComparison}: traits[0].hypotheses[0].weight: expected a number or null, got "x"\n`);
     expect(first.status).toBe(1);
     const badPower = save('power-bad.json', damaged(power, (d) => { d.settings.replicates = 'many'; }));
-    const second = runCli(['report', good, '--attach', badPower, '--out', join(folder, 'attach-2.html')], folder);
+    const second = await runCliHere(['report', good, '--attach', badPower, '--out', join(folder, 'attach-2.html')], folder);
     expect(second.stderr).toBe(`stratotrend: ${badPower}: settings.replicates: expected a whole number, got "many"\n`);
     expect(second.status).toBe(1);
   });

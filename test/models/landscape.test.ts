@@ -11,8 +11,8 @@ import { optimumShift } from '../../src/models/optimum-shift.js';
 import { ornsteinUhlenbeck } from '../../src/models/ou.js';
 import { randomWalk } from '../../src/models/random-walk.js';
 import { findModel } from '../../src/models/registry.js';
-import { createRandom } from '../../src/simulate/random.js';
-import { simulateMeans, withMeans } from '../../src/simulate/simulate-lineage.js';
+import { createRandom } from '../../src/random/random.js';
+import { simulateMeans, withMeans } from '../../src/random/simulate-lineage.js';
 
 // The three models of issue 16 (accelerating-walk, moving-optimum,
 // optimum-shift): the filter against a dense multivariate-normal reference

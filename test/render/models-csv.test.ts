@@ -6,7 +6,6 @@
  * extrapolated exactly when its height lies outside the range of its
  * section's ties), and must also equal fit.json's count and per-horizon flags.
  */
-import { spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -15,10 +14,11 @@ import { lineageFromArrays } from '../../src/lineage.js';
 import { fitLineage } from '../../src/fit/fit-lineage.js';
 import { findModel } from '../../src/models/registry.js';
 import { modelsCsv } from '../../src/render/models-csv.js';
+import { root } from '../robustness/cli.js';
+import { runCliHere } from '../support/cli-in-process.js';
 
 const heights = new URL('../../sample-data/locality-heights.csv', import.meta.url).pathname;
 const ties = new URL('../../sample-data/locality-ties.csv', import.meta.url).pathname;
-const launcher = new URL('../../bin/stratotrend', import.meta.url).pathname;
 const folder = mkdtempSync(join(tmpdir(), 'stratotrend-models-csv-'));
 
 type Json = Record<string, any>;
@@ -30,12 +30,12 @@ function table(text: string): Record<string, string>[] {
 }
 
 describe('models.csv: extrapolated_horizons', () => {
-  it('with a shortened age model and --extrapolate, counts the horizons outside the ties, as fit.json does', () => {
+  it('with a shortened age model and --extrapolate, counts the horizons outside the ties, as fit.json does', async () => {
     // Quarrel Hollow loses its top tie (120 m), so its ties end at 80 m and higher horizons are extrapolated.
     const shortTies = join(folder, 'short-ties.csv');
     writeFileSync(shortTies, readFileSync(ties, 'utf8').replace('Quarrel Hollow,120,5.60,0.04\n', ''));
     const out = join(folder, 'out');
-    const run = spawnSync(process.execPath, [launcher, 'fit', heights, '--age-model', shortTies, '--extrapolate', '--no-intervals', '--models', 'random-walk', '--no-figures', '--out', out], { encoding: 'utf8' });
+    const run = await runCliHere(['fit', heights, '--age-model', shortTies, '--extrapolate', '--no-intervals', '--models', 'random-walk', '--no-figures', '--out', out], root);
     expect(run.status, run.stderr).toBe(0);
 
     // Expected counts from the inputs: per section × trait, heights outside [lowest tie, highest tie].
@@ -76,7 +76,7 @@ describe('models.csv: extrapolated_horizons', () => {
     }
   });
 
-  it('is 0 for a lineage placed without an age model', () => {
+  it('is 0 for a lineage placed without an age model', async () => {
     // Invented lineage: ages given directly, nothing extrapolated.
     const time = [0, 0.5, 1.1, 1.4, 2.0, 2.6];
     const lineage = lineageFromArrays({ time, mean: [1, 1.1, 1.05, 1.2, 1.3, 1.25], samplingVariance: time.map(() => 0.01), section: 'Tarn Spur', trait: 'rib count' });

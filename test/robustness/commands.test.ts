@@ -5,7 +5,8 @@
  * quick; test/robustness/malformed.test.ts holds the full table for `fit`.
  */
 import { describe, expect, it } from 'vitest';
-import { runCli } from './cli.js';
+import { corpus } from './cli.js';
+import { runCliHere } from '../support/cli-in-process.js';
 
 const files: Array<[string, number, string]> = [
   ['empty.csv', 1, 'empty.csv: the file is empty, expected a header line and data rows'],
@@ -26,8 +27,8 @@ const commands: string[][] = [
 
 describe('every samples-reading command refuses malformed files like fit', () => {
   for (const command of commands) {
-    it.each(files)(`${command[0]} %s`, (file, exitCode, message) => {
-      const run = runCli([command[0], file, ...command.slice(1)]);
+    it.each(files)(`${command[0]} %s`, async (file, exitCode, message) => {
+      const run = await runCliHere([command[0], file, ...command.slice(1)], corpus);
       expect(run.stderr).toBe(`stratotrend: ${message}\n`);
       expect(run.status).toBe(exitCode);
     });

@@ -25,7 +25,7 @@ import { simulateCommand } from '../../src/cli/simulate-command.js';
 import { comparisonCsv, comparisonTable } from '../../src/render/comparison-output.js';
 import { lineageTable } from '../../src/render/text-table.js';
 import { modelsCsv } from '../../src/render/models-csv.js';
-import { runCli } from './cli.js';
+import { runCliHere } from '../support/cli-in-process.js';
 import { nonFinitePaths, nonFiniteText } from './finite.js';
 import { sweepSize } from '../support/sweep.js';
 
@@ -286,16 +286,16 @@ describe('fuzzing: mutated files end in a finite result or one InputError', () =
     expect(outcomes.refused).toBeGreaterThan(20);
   });
 
-  it('through the real command line (12 mutated files)', () => {
-    fc.assert(
-      fc.property(caseArbitrary, ({ base, mutations, flags }) => {
+  it('through the real command line (12 mutated files)', async () => {
+    await fc.assert(
+      fc.asyncProperty(caseArbitrary, async ({ base, mutations, flags }) => {
         const { text, options } = bases[base];
         const path = writeCase(mutate(text, mutations));
         const args = ['fit', path, '--no-intervals'];
         if (options.decimalComma) args.push('--decimal-comma');
         if (flags.log) args.push('--log');
         if (flags.pool) args.push('--pool');
-        const run = runCli(args, folder);
+        const run = await runCliHere(args, folder);
         expect([0, 1, 2]).toContain(run.status);
         expect(run.stderr).not.toMatch(/internal error|\n\s+at /);
         if (run.status === 0) expect(run.stdout).not.toMatch(nonFiniteText);

@@ -23,7 +23,8 @@ import { InputError } from '../../src/data/errors.js';
 import { WarningLog } from '../../src/data/warnings.js';
 import { loadLineages, readInput } from '../../src/analyses/input.js';
 import { neutraliseFormula } from '../../src/data/names.js';
-import { root, runCli } from './cli.js';
+import { root } from './cli.js';
+import { runCliHere } from '../support/cli-in-process.js';
 
 const folder = mkdtempSync(join(tmpdir(), 'stratotrend-hostile-names-'));
 
@@ -64,9 +65,9 @@ describe('control characters in names are refused with line and column', () => {
     ['bell-section.csv', 'Korrin\u0007', 'length', ' line 2, column "section": contains the control character U+0007 (BEL) at character 7, got "Korrin\\u0007"; names must be printable text (a terminal would act on the character)'],
   ];
 
-  it.each(cases)('%s: the streaming reader (CLI) and the whole-file reader give the same one line, exit 1', (file, section, trait, message) => {
+  it.each(cases)('%s: the streaming reader (CLI) and the whole-file reader give the same one line, exit 1', async (file, section, trait, message) => {
     const path = write(file, `section,trait,age,n,mean,sd\n${sampleRows(section, trait).join('\n')}\n`);
-    const run = runCli(['fit', path, '--no-intervals'], folder);
+    const run = await runCliHere(['fit', path, '--no-intervals'], folder);
     expect(run.status).toBe(1);
     expect(run.stdout).toBe('');
     expect(run.stderr).toBe(`stratotrend: ${path}${message}\n`);
@@ -74,9 +75,9 @@ describe('control characters in names are refused with line and column', () => {
     expect(wholeFileMessage(path)).toBe(`${path}${message}`);
   });
 
-  it('a carriage return inside a quoted name (which could overwrite the line a terminal shows) is refused too', () => {
+  it('a carriage return inside a quoted name (which could overwrite the line a terminal shows) is refused too', async () => {
     const path = write('cr-section.csv', `section,trait,age,n,mean,sd\n${sampleRows('Korrin\rGap', 'length').join('\n')}\n`);
-    const run = runCli(['fit', path], folder);
+    const run = await runCliHere(['fit', path], folder);
     expect(run.status).toBe(1);
     // The line is that of csv-parse's record count, which ends the quoted record on the line after the CR (both readers alike).
     expect(run.stderr).toContain('column "section": contains the control character U+000D (CR) at character 7, got "Korrin\\rGap"');
@@ -84,41 +85,41 @@ describe('control characters in names are refused with line and column', () => {
     expect(wholeFileMessage(path)).toBe(run.stderr.slice('stratotrend: '.length, -1));
   });
 
-  it('a later row is named by its own line (the first rows are clean)', () => {
+  it('a later row is named by its own line (the first rows are clean)', async () => {
     const rows = sampleRows('Korrin', 'length');
     rows[6] = rows[6].replace('Korrin', 'Korrin\u001b]0;title\u0007');
     const path = write('late.csv', `section,trait,age,n,mean,sd\n${rows.join('\n')}\n`);
-    const run = runCli(['fit', path], folder);
+    const run = await runCliHere(['fit', path], folder);
     expect(run.status).toBe(1);
     expect(run.stderr).toContain(`${path} line 8, column "section": contains the control character U+001B (ESC) at character 7`);
     expect(run.stderr.slice(0, -1)).not.toMatch(anyControl);
   });
 
-  it('an age model whose section name holds ESC is refused naming its line', () => {
+  it('an age model whose section name holds ESC is refused naming its line', async () => {
     const ties = write('ties-esc.csv', 'section,height,age\n\u001b[2JA,0,10\n\u001b[2JA,50,8\n');
     const samples = write('heights.csv', 'section,trait,height,n,mean,sd\nA,len,0,5,1,0.2\nA,len,10,5,1.1,0.2\nA,len,20,5,1.3,0.2\n');
-    const run = runCli(['fit', samples, '--age-model', ties], folder);
+    const run = await runCliHere(['fit', samples, '--age-model', ties], folder);
     expect(run.status).toBe(1);
     expect(run.stderr).toBe(`stratotrend: ${ties} line 2, column "section": contains the control character U+001B (ESC) at character 1, got "\\u001b[2JA"; names must be printable text (a terminal would act on the character)\n`);
   });
 
-  it('a covariate file whose section name holds a C1 character is refused naming its line', () => {
+  it('a covariate file whose section name holds a C1 character is refused naming its line', async () => {
     const covariates = write('covariates-c1.csv', 'section,age,covariate\nKorrin\u0085,12.4,1\n');
     const samples = write('clean.csv', `section,trait,age,n,mean,sd\n${sampleRows('Korrin', 'length').join('\n')}\n`);
-    const run = runCli(['fit', samples, '--covariate-file', covariates, '--models', 'covariate-stasis', '--no-intervals'], folder);
+    const run = await runCliHere(['fit', samples, '--covariate-file', covariates, '--models', 'covariate-stasis', '--no-intervals'], folder);
     expect(run.status).toBe(1);
     expect(run.stderr).toContain(`${covariates} line 2, column "section": contains the control character U+0085 at character 7, got "Korrin\\u0085"`);
   });
 
-  it('--time-unit and --trait-unit labels with a control character are usage errors (exit 2), printed escaped', () => {
+  it('--time-unit and --trait-unit labels with a control character are usage errors (exit 2), printed escaped', async () => {
     const samples = write('clean-units.csv', `section,trait,age,n,mean,sd\n${sampleRows('Korrin', 'length').join('\n')}\n`);
-    const time = runCli(['fit', samples, '--time-unit', 'Myr\u001b[8m'], folder);
+    const time = await runCliHere(['fit', samples, '--time-unit', 'Myr\u001b[8m'], folder);
     expect(time.status).toBe(2);
     expect(time.stderr).toBe('stratotrend: --time-unit must be one line of text without control characters, got "Myr\\u001b[8m"\n');
-    const trait = runCli(['fit', samples, '--trait-unit', 'mm\u009b8m'], folder);
+    const trait = await runCliHere(['fit', samples, '--trait-unit', 'mm\u009b8m'], folder);
     expect(trait.status).toBe(2);
     expect(trait.stderr).toBe('stratotrend: --trait-unit must be one line of text without control characters, got "mm\\u009b8m"\n');
-    const simulated = runCli(['simulate', '--time-unit', 'kyr\u001b[8m', '--parameters', 'ancestral_mean=0,drift=0.1,step_variance=0.01'], folder);
+    const simulated = await runCliHere(['simulate', '--time-unit', 'kyr\u001b[8m', '--parameters', 'ancestral_mean=0,drift=0.1,step_variance=0.01'], folder);
     expect(simulated.status).toBe(2);
     expect(simulated.stderr).toBe('stratotrend: --time-unit must be one line of text without control characters, got "kyr\\u001b[8m"\n');
   });
@@ -128,14 +129,14 @@ describe('CSV outputs: text cells that a spreadsheet would run as a formula get 
   const hostileSection = '=HYPERLINK("http://example.invalid","open")';
   const samples = write('formula-names.csv', `section,trait,age,n,mean,sd\n${[...sampleRows(hostileSection, '-width'), ...sampleRows('@Tor', '-width')].join('\n')}\n`);
 
-  it('neutraliseFormula: the OWASP starts =, +, -, @, tab, CR get an apostrophe; other text is unchanged', () => {
+  it('neutraliseFormula: the OWASP starts =, +, -, @, tab, CR get an apostrophe; other text is unchanged', async () => {
     for (const start of ['=', '+', '-', '@', '\t', '\r']) expect(neutraliseFormula(`${start}x`)).toBe(`'${start}x`);
     for (const text of ['Korrin Gap', "'quoted", ' =spaced', '', 'a=b', 'x-1']) expect(neutraliseFormula(text)).toBe(text);
   });
 
-  it('fit --out: models.csv cells are neutralised, negative numbers stay numbers, fit.json keeps the names exactly', () => {
+  it('fit --out: models.csv cells are neutralised, negative numbers stay numbers, fit.json keeps the names exactly', async () => {
     const out = join(folder, 'fit-out');
-    const run = runCli(['fit', samples, '--out', out, '--no-figures', '--no-intervals', '--quiet'], folder);
+    const run = await runCliHere(['fit', samples, '--out', out, '--no-figures', '--no-intervals', '--quiet'], folder);
     expect(run.status).toBe(0);
     const rows = parse(readFileSync(join(out, 'models.csv'), 'utf8'), { columns: true }) as Record<string, string>[];
     expect(new Set(rows.map((row) => row.section))).toEqual(new Set([`'${hostileSection}`, "'@Tor"]));
@@ -154,10 +155,10 @@ describe('CSV outputs: text cells that a spreadsheet would run as a formula get 
     }
   });
 
-  it('compare --out: compare.csv and compare-estimates.csv neutralise the trait name; estimates below 0 stay numbers', () => {
+  it('compare --out: compare.csv and compare-estimates.csv neutralise the trait name; estimates below 0 stay numbers', async () => {
     const two = write('formula-two-sections.csv', `section,trait,age,n,mean,sd\n${[...sampleRows('Korrin', '+width'), ...sampleRows('Tor', '+width')].join('\n')}\n`);
     const out = join(folder, 'compare-out');
-    const run = runCli(['compare', two, '--out', out, '--no-figure', '--no-intervals', '--models', 'stasis,random-walk'], folder);
+    const run = await runCliHere(['compare', two, '--out', out, '--no-figure', '--no-intervals', '--models', 'stasis,random-walk'], folder);
     expect(run.status).toBe(0);
     const comparison = parse(readFileSync(join(out, 'compare.csv'), 'utf8'), { columns: true }) as Record<string, string>[];
     expect(new Set(comparison.map((row) => row.trait))).toEqual(new Set(["'+width"]));
@@ -168,8 +169,8 @@ describe('CSV outputs: text cells that a spreadsheet would run as a formula get 
     for (const cell of logLiks) expect(Number.isFinite(Number(cell))).toBe(true);
   });
 
-  it('simulate: the samples CSV neutralises names too, and its negative means stay numbers', () => {
-    const run = runCli(['simulate', samples, '--model', 'random-walk', '--parameters', 'ancestral_mean=-5,step_variance=0.01', '--seed', '3'], folder);
+  it('simulate: the samples CSV neutralises names too, and its negative means stay numbers', async () => {
+    const run = await runCliHere(['simulate', samples, '--model', 'random-walk', '--parameters', 'ancestral_mean=-5,step_variance=0.01', '--seed', '3'], folder);
     expect(run.status).toBe(0);
     const rows = parse(run.stdout, { columns: true }) as Record<string, string>[];
     expect(new Set(rows.map((row) => row.section))).toEqual(new Set([`'${hostileSection}`, "'@Tor"]));

@@ -15,6 +15,7 @@ import { InputError } from '../../src/data/errors.js';
 import { WarningLog } from '../../src/data/warnings.js';
 import { loadLineages, readInput, type SampleFileOptions } from '../../src/analyses/input.js';
 import { corpus, runCli } from './cli.js';
+import { runCliHere } from '../support/cli-in-process.js';
 
 const reads = 'section, trait, age, time, height, depth, n, mean, sd, var, value, covariate';
 
@@ -99,8 +100,8 @@ function wholeFileMessage(path: string, name: string, args: readonly string[]): 
 }
 
 describe('malformed corpus through the real CLI (streaming reader)', () => {
-  it.each(cases)('%s', (file, args, exitCode, message) => {
-    const run = runCli(['fit', file, ...args]);
+  it.each(cases)('%s', async (file, args, exitCode, message) => {
+    const run = await runCliHere(['fit', file, ...args], corpus);
     expect(run.stderr).toBe(`stratotrend: ${message}\n`);
     expect(run.status).toBe(exitCode);
     expect(run.stdout).toBe('');
@@ -109,7 +110,7 @@ describe('malformed corpus through the real CLI (streaming reader)', () => {
 });
 
 describe('malformed corpus through the whole-file reader (same messages)', () => {
-  it.each(cases.filter(([file]) => file !== 'missing-file.csv'))('%s', (file, args, exitCode, message) => {
+  it.each(cases.filter(([file]) => file !== 'missing-file.csv'))('%s', async (file, args, exitCode, message) => {
     const { message: got, kind } = wholeFileMessage(join(corpus, file), file, args);
     expect(got).toBe(message);
     expect(kind).toBe(exitCode === 2 ? 'usage' : 'data');
@@ -119,33 +120,33 @@ describe('malformed corpus through the whole-file reader (same messages)', () =>
 describe('refusals of files made at test time', () => {
   const folder = mkdtempSync(join(tmpdir(), 'stratotrend-malformed-'));
 
-  it('a line longer than 1,000,000 characters is refused with its line number', () => {
+  it('a line longer than 1,000,000 characters is refused with its line number', async () => {
     const path = join(folder, 'long-line.csv');
     writeFileSync(path, `age,n,mean,sd\n1,5,2,0.1\n2,5,${'9'.repeat(1_000_001)},0.1\n3,5,2,0.1\n`);
     const message = 'long-line.csv line 3: line is longer than 1000000 characters, too long to be a record';
-    const run = runCli(['fit', 'long-line.csv'], folder);
+    const run = await runCliHere(['fit', 'long-line.csv'], folder);
     expect(run.stderr).toBe(`stratotrend: ${message}\n`);
     expect(run.status).toBe(1);
     expect(wholeFileMessage(path, 'long-line.csv', []).message).toBe(message);
   });
 
-  it('a NUL byte far into a large file is found by the streaming reader', () => {
+  it('a NUL byte far into a large file is found by the streaming reader', async () => {
     const path = join(folder, 'late-nul.csv');
     const rows = Array.from({ length: 40_000 }, (_, i) => `${(i % 7) + 1},${(i % 13) / 10}`).join('\n');
     writeFileSync(path, `age,value\n${rows}\n\u0000\n`);
-    const run = runCli(['fit', 'late-nul.csv'], folder);
+    const run = await runCliHere(['fit', 'late-nul.csv'], folder);
     expect(run.stderr).toBe('stratotrend: late-nul.csv: looks like a binary file (contains NUL bytes), expected comma-separated text\n');
     expect(run.status).toBe(1);
   });
 
-  it('stdin is read the same way ("-" names it stdin)', () => {
+  it('stdin is read the same way ("-" names it stdin)', async () => {
     const run = runCli(['fit', '-'], folder, 'age,n,mean,sd\n1,5,2,-1\n');
     expect(run.stderr).toBe('stratotrend: stdin line 2, column "sd": must be zero or positive, got "-1"\n');
     expect(run.status).toBe(1);
   });
 
-  it('a stack trace appears only with --debug', () => {
-    const run = runCli(['fit', 'negative-sd.csv', '--debug']);
+  it('a stack trace appears only with --debug', async () => {
+    const run = await runCliHere(['fit', 'negative-sd.csv', '--debug'], corpus);
     expect(run.status).toBe(1);
     expect(run.stderr.split('\n')[0]).toBe('stratotrend: negative-sd.csv line 7, column "sd": must be zero or positive, got "-0.4"');
     expect(run.stderr).toMatch(/\n\s+at /);

@@ -27,6 +27,7 @@ import {
   type OutputFileSystem,
 } from '../../src/io/write-output.js';
 import { corpus, runCli } from './cli.js';
+import { runCliHere } from '../support/cli-in-process.js';
 
 function freshFolder(): string {
   return mkdtempSync(join(tmpdir(), 'stratotrend-sets-'));
@@ -183,7 +184,7 @@ describe('stale temporary files and the folder lock', () => {
   it('fit refuses a folder another running stratotrend holds (exit 2, naming it) and takes over a stale lock', () => {
     const folder = freshFolder();
     mkdirSync(join(folder, 'out'));
-    // The vitest process stands for the other run: it is certainly running.
+    // The vitest process stands for the other run: it is certainly running (so this run must be a child process, runCli).
     writeFileSync(join(folder, 'out', lockFileName), `pid ${process.pid}\nstarted 2026-01-02T03:04:05.000Z\ncommand stratotrend fit other.csv --out out\n`);
     const refused = runCli(['fit', join(corpus, 'clean.csv'), '--out', 'out', '--no-intervals', '--quiet'], folder);
     expect(refused.status).toBe(2);
@@ -204,28 +205,28 @@ describe('stale temporary files and the folder lock', () => {
 });
 
 describe('the report is protected like every other output name', () => {
-  it('fit --out o --report o/report.html refuses a report.html stratotrend did not write, before fitting (exit 2)', () => {
+  it('fit --out o --report o/report.html refuses a report.html stratotrend did not write, before fitting (exit 2)', async () => {
     const folder = freshFolder();
     copyFileSync(join(corpus, 'clean.csv'), join(folder, 'clean.csv'));
     mkdirSync(join(folder, 'o'));
     writeFileSync(join(folder, 'o', 'report.html'), '<p>my own notes</p>\n');
-    const run = runCli(['fit', 'clean.csv', '--out', 'o', '--report', 'o/report.html', '--no-intervals', '--no-figures'], folder);
+    const run = await runCliHere(['fit', 'clean.csv', '--out', 'o', '--report', 'o/report.html', '--no-intervals', '--no-figures'], folder);
     expect(run.status).toBe(2);
     expect(run.stderr).toBe('stratotrend: output folder "o" already has "report.html", which stratotrend did not write; choose another --report file or move that file away\n');
     expect(readFileSync(join(folder, 'o', 'report.html'), 'utf8')).toBe('<p>my own notes</p>\n');
     expect(existsSync(join(folder, 'o', 'fit.json'))).toBe(false);
   });
 
-  it('report --out refuses a foreign file, and rewrites its own report on a re-run', () => {
+  it('report --out refuses a foreign file, and rewrites its own report on a re-run', async () => {
     const folder = freshFolder();
     copyFileSync(join(corpus, 'clean.csv'), join(folder, 'clean.csv'));
     writeFileSync(join(folder, 'mine.html'), 'mine\n');
-    const refused = runCli(['report', 'clean.csv', '--out', 'mine.html', '--no-intervals'], folder);
+    const refused = await runCliHere(['report', 'clean.csv', '--out', 'mine.html', '--no-intervals'], folder);
     expect(refused.status).toBe(2);
     expect(refused.stderr).toBe('stratotrend: output folder "." already has "mine.html", which stratotrend did not write; choose another --out file or move that file away\n');
     expect(readFileSync(join(folder, 'mine.html'), 'utf8')).toBe('mine\n');
     for (let run = 0; run < 2; run++) {
-      const written = runCli(['report', 'clean.csv', '--out', 'ours.html', '--no-intervals', '--quiet'], folder);
+      const written = await runCliHere(['report', 'clean.csv', '--out', 'ours.html', '--no-intervals', '--quiet'], folder);
       expect(written.stderr).toBe('');
       expect(written.status).toBe(0);
     }

@@ -10,7 +10,8 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../../src/data/errors.js';
 import { ownFilesList, prepareOutputFolder, writeAtomically } from '../../src/io/write-output.js';
-import { corpus, runCli } from './cli.js';
+import { corpus } from './cli.js';
+import { runCliHere } from '../support/cli-in-process.js';
 
 const sha = (path: string): string => createHash('sha256').update(readFileSync(path)).digest('hex');
 
@@ -19,7 +20,7 @@ function freshFolder(): string {
 }
 
 describe('writeAtomically', () => {
-  it('writes the contents and leaves no temporary file', () => {
+  it('writes the contents and leaves no temporary file', async () => {
     const folder = freshFolder();
     writeAtomically(join(folder, 'a.txt'), 'first\n');
     writeAtomically(join(folder, 'a.txt'), 'second\n');
@@ -27,7 +28,7 @@ describe('writeAtomically', () => {
     expect(readdirSync(folder)).toEqual(['a.txt']);
   });
 
-  it('a failed write is an InputError naming the path, and leaves the old file and no temporary file', () => {
+  it('a failed write is an InputError naming the path, and leaves the old file and no temporary file', async () => {
     const folder = freshFolder();
     mkdirSync(join(folder, 'taken'));
     writeFileSync(join(folder, 'taken', 'keep.txt'), 'keep');
@@ -40,7 +41,7 @@ describe('writeAtomically', () => {
 });
 
 describe('prepareOutputFolder', () => {
-  it('creates the folder, records the names it will write, and reuses it for those names', () => {
+  it('creates the folder, records the names it will write, and reuses it for those names', async () => {
     const folder = join(freshFolder(), 'out');
     prepareOutputFolder(folder, [], ['fit.json', 'models.csv']);
     expect(readFileSync(join(folder, ownFilesList), 'utf8')).toBe('# files written here by stratotrend; it overwrites only these\nfit.json\nmodels.csv\n');
@@ -48,7 +49,7 @@ describe('prepareOutputFolder', () => {
     expect(() => prepareOutputFolder(folder, [], ['fit.json', 'models.csv'])).not.toThrow();
   });
 
-  it('refuses to overwrite a file it did not write, and touches nothing else', () => {
+  it('refuses to overwrite a file it did not write, and touches nothing else', async () => {
     const folder = freshFolder();
     writeFileSync(join(folder, 'models.csv'), 'my own table');
     writeFileSync(join(folder, 'notes.txt'), 'notes');
@@ -69,7 +70,7 @@ describe('prepareOutputFolder', () => {
     );
   });
 
-  it('refuses an output file that is an input, and an input file as the folder', () => {
+  it('refuses an output file that is an input, and an input file as the folder', async () => {
     const folder = freshFolder();
     const input = join(folder, 'models.csv');
     writeFileSync(input, 'age,n,mean,sd\n');
@@ -80,13 +81,13 @@ describe('prepareOutputFolder', () => {
 });
 
 describe('fit through the real CLI', () => {
-  it('writes byte-identical fit.json and models.csv on separate runs, and never modifies the input', () => {
+  it('writes byte-identical fit.json and models.csv on separate runs, and never modifies the input', async () => {
     const folder = freshFolder();
     copyFileSync(join(corpus, 'clean.csv'), join(folder, 'clean.csv'));
     const before = sha(join(folder, 'clean.csv'));
-    const first = runCli(['fit', 'clean.csv', '--out', 'first', '--quiet'], folder);
-    const second = runCli(['fit', 'clean.csv', '--out', 'second', '--quiet'], folder);
-    const again = runCli(['fit', 'clean.csv', '--out', 'first', '--quiet'], folder);
+    const first = await runCliHere(['fit', 'clean.csv', '--out', 'first', '--quiet'], folder);
+    const second = await runCliHere(['fit', 'clean.csv', '--out', 'second', '--quiet'], folder);
+    const again = await runCliHere(['fit', 'clean.csv', '--out', 'first', '--quiet'], folder);
     for (const run of [first, second, again]) expect(run.status).toBe(0);
     for (const name of ['fit.json', 'models.csv']) {
       expect(existsSync(join(folder, 'first', name))).toBe(true);
@@ -96,34 +97,34 @@ describe('fit through the real CLI', () => {
     expect(readdirSync(join(folder, 'first')).filter((name) => name.endsWith('.tmp'))).toEqual([]);
   });
 
-  it('refuses --out that would overwrite the input file (exit 2), leaving it unchanged', () => {
+  it('refuses --out that would overwrite the input file (exit 2), leaving it unchanged', async () => {
     const folder = freshFolder();
     copyFileSync(join(corpus, 'clean.csv'), join(folder, 'models.csv'));
     const before = sha(join(folder, 'models.csv'));
-    const run = runCli(['fit', 'models.csv', '--out', '.'], folder);
+    const run = await runCliHere(['fit', 'models.csv', '--out', '.'], folder);
     expect(run.status).toBe(2);
     expect(run.stderr).toBe('stratotrend: refusing to write "models.csv": it is an input file; choose another --out folder\n');
     expect(sha(join(folder, 'models.csv'))).toBe(before);
   });
 
-  it('refuses a folder holding a file of the same name that it did not write (exit 2)', () => {
+  it('refuses a folder holding a file of the same name that it did not write (exit 2)', async () => {
     const folder = freshFolder();
     copyFileSync(join(corpus, 'clean.csv'), join(folder, 'clean.csv'));
     mkdirSync(join(folder, 'results'));
     writeFileSync(join(folder, 'results', 'fit.json'), 'precious');
-    const run = runCli(['fit', 'clean.csv', '--out', 'results'], folder);
+    const run = await runCliHere(['fit', 'clean.csv', '--out', 'results'], folder);
     expect(run.status).toBe(2);
     expect(run.stderr).toBe('stratotrend: output folder "results" already has "fit.json", which stratotrend did not write; choose another --out folder or move that file away\n');
     expect(readFileSync(join(folder, 'results', 'fit.json'), 'utf8')).toBe('precious');
   });
 
-  it('never overwrites the age model or covariate file, even in a folder it wrote before (exit 2)', () => {
+  it('never overwrites the age model or covariate file, even in a folder it wrote before (exit 2)', async () => {
     // The folder was written by stratotrend (models.csv and fit.json are its own names there), then the
     // user put an input under one of those names: the input wins, whichever command would write it.
     // (That first run draws no figures: none of the names below is a figure's.)
     const folder = freshFolder();
     const samples = join(process.cwd(), 'sample-data');
-    expect(runCli(['fit', join(samples, 'locality-heights.csv'), '--age-model', join(samples, 'locality-ties.csv'), '--out', 'results', '--no-intervals', '--no-figures', '--quiet'], folder).status).toBe(0);
+    expect((await runCliHere(['fit', join(samples, 'locality-heights.csv'), '--age-model', join(samples, 'locality-ties.csv'), '--out', 'results', '--no-intervals', '--no-figures', '--quiet'], folder)).status).toBe(0);
     const cases: Array<[string, string, string[]]> = [
       ['models.csv', 'locality-ties.csv', ['fit', join(samples, 'locality-heights.csv'), '--age-model', 'results/models.csv', '--out', 'results']],
       ['fit.json', 'pulsed-width-proxy.csv', ['fit', join(samples, 'pulsed-width.csv'), '--models', 'extended', '--covariate-file', 'results/fit.json', '--out', 'results']],
@@ -132,16 +133,16 @@ describe('fit through the real CLI', () => {
     for (const [name, source, args] of cases) {
       copyFileSync(join(samples, source), join(folder, 'results', name));
       const before = sha(join(folder, 'results', name));
-      const run = runCli([...args, '--no-intervals', '--quiet'], folder);
+      const run = await runCliHere([...args, '--no-intervals', '--quiet'], folder);
       expect(run.stderr, args.join(' ')).toMatch(new RegExp(`^stratotrend: refusing to write "results/${name.replace('.', '\\.')}": it is an input file`));
       expect(run.status).toBe(2);
       expect(sha(join(folder, 'results', name))).toBe(before);
     }
   });
 
-  it('JSON on stdout is byte-identical across runs', () => {
-    const first = runCli(['fit', 'clean.csv', '--json']);
-    const second = runCli(['fit', 'clean.csv', '--json']);
+  it('JSON on stdout is byte-identical across runs', async () => {
+    const first = await runCliHere(['fit', 'clean.csv', '--json'], corpus);
+    const second = await runCliHere(['fit', 'clean.csv', '--json'], corpus);
     expect(first.status).toBe(0);
     expect(second.stdout).toBe(first.stdout);
   });

@@ -14,8 +14,9 @@
  * file is still fitted once with the default intervals.
  */
 import { join } from 'node:path';
-import { describe, expect, it } from 'vitest';
-import { corpus, runCli } from './cli.js';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { corpus, type CliRun } from './cli.js';
+import { runCliHere } from '../support/cli-in-process.js';
 import { nonFiniteText } from './finite.js';
 
 type Doc = { lineages: Array<Record<string, unknown> & { data: Record<string, unknown> }>; warnings: unknown[] };
@@ -30,10 +31,13 @@ function comparable(stdout: string): unknown {
 }
 
 describe('tolerated dialects give the same fit as the clean file', () => {
-  const clean = runCli(['fit', 'clean.csv', '--json', '--no-intervals']);
+  let clean: CliRun;
+  beforeAll(async () => {
+    clean = await runCliHere(['fit', 'clean.csv', '--json', '--no-intervals'], corpus);
+  });
 
-  it('the clean file fits, with and without intervals', () => {
-    const withIntervals = runCli(['fit', 'clean.csv', '--json']);
+  it('the clean file fits, with and without intervals', async () => {
+    const withIntervals = await runCliHere(['fit', 'clean.csv', '--json'], corpus);
     for (const run of [clean, withIntervals]) {
       expect(run.status).toBe(0);
       expect(run.stderr).toBe('');
@@ -54,8 +58,8 @@ describe('tolerated dialects give the same fit as the clean file', () => {
     ['tab.csv', ['--delimiter', 'tab']],
     ['extra-columns.csv', []],
     ...['core', 'site', 'hole', 'borehole', 'locality', 'outcrop'].map((name): [string, string[]] => [`section-named-${name}.csv`, []]),
-  ])('%s %s', (file, args) => {
-    const run = runCli(['fit', join('tolerated', file), '--json', '--no-intervals', ...args], corpus);
+  ])('%s %s', async (file, args) => {
+    const run = await runCliHere(['fit', join('tolerated', file), '--json', '--no-intervals', ...args], corpus);
     expect(run.stderr).toBe('');
     expect(run.status).toBe(0);
     expect(comparable(run.stdout)).toEqual(comparable(clean.stdout));

@@ -4,7 +4,6 @@
  * and under the upper end of its 95% interval, both are shown and named, and
  * a coverage check whose truth sits on the bound is reported as vacuous.
  */
-import { spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -18,10 +17,11 @@ import { directionalWalk } from '../../src/models/directional-walk.js';
 import { assumedVarianceWords, powerAssumptionCaption, powerCurvePlan } from '../../src/render/figures/power-curve.js';
 import { vacuousBoundWords } from '../../src/simulate/power.js';
 import { formatNumber } from '../../src/render/units.js';
+import { root } from '../robustness/cli.js';
+import { runCliHere } from '../support/cli-in-process.js';
 
 type Json = Record<string, any>;
 const shells = new URL('../../sample-data/shell-length.csv', import.meta.url).pathname;
-const launcher = new URL('../../bin/stratotrend', import.meta.url).pathname;
 const lineage = loadLineages(readInput(shells), {}, new WarningLog())[0];
 
 /**
@@ -47,12 +47,12 @@ describe('power under the step variance the data allow', () => {
     document = run.document as Json;
   }, 120_000);
 
-  it('the first lineage of the demo file has its step variance at 0 (the case of the issue)', () => {
+  it('the first lineage of the demo file has its step variance at 0 (the case of the issue)', async () => {
     expect(fitted.estimates.step_variance).toBe(0);
     expect(fitted.parameters.step_variance.upper).toBeGreaterThan(0);
   });
 
-  it('runs under the estimate and the upper end of its 95% interval, the larger on top', () => {
+  it('runs under the estimate and the upper end of its 95% interval, the larger on top', async () => {
     const upper = fitted.parameters.step_variance.upper!;
     expect(run.assumptions.map((entry) => entry.stepVariance)).toEqual([0, upper]);
     expect(document.assumptions.map((entry: Json) => entry.settings.step_variance)).toEqual([0, upper]);
@@ -64,7 +64,7 @@ describe('power under the step variance the data allow', () => {
     expect(document.assumptions[0].grid.map((point: Json) => point.drift)).toEqual(document.assumptions[1].grid.map((point: Json) => point.drift));
   });
 
-  it('each analysis uses the drift standard error of its own step variance (GLS closed form, ml-matrix)', () => {
+  it('each analysis uses the drift standard error of its own step variance (GLS closed form, ml-matrix)', async () => {
     for (const entry of run.assumptions) {
       expect(entry.driftStandardError).toBeCloseTo(driftStandardError(lineage.time, lineage.samplingVariance, entry.stepVariance), 10);
     }
@@ -73,7 +73,7 @@ describe('power under the step variance the data allow', () => {
     expect(grid[grid.length - 1]).toBeCloseTo(5 * run.assumptions[1].driftStandardError, 12);
   });
 
-  it('the table names each assumed step variance beside its own numbers', () => {
+  it('the table names each assumed step variance beside its own numbers', async () => {
     const text = powerTable(run);
     const blocks = text.split('\n  Assumed step variance ').slice(1);
     expect(blocks).toHaveLength(2);
@@ -100,7 +100,7 @@ describe('power under the step variance the data allow', () => {
     );
   });
 
-  it('the figure prints the assumed step variances and draws three curves for each', () => {
+  it('the figure prints the assumed step variances and draws three curves for each', async () => {
     const input = {
       grid: run.report.grid, lineage: 'x', horizons: 24, replicates: 20, timeUnit: 'Myr', weightThreshold: 0.5, targetPower: 0.8, level: 0.05, withinSd: 1,
       assumptions: run.assumptions.map((entry) => ({ stepVariance: entry.stepVariance, source: entry.source, grid: entry.report.grid })),
@@ -120,7 +120,7 @@ describe('power under the step variance the data allow', () => {
 
 describe('when to add the upper end', () => {
   // A well-determined estimate (upper end < 4 x estimate) keeps one analysis; a given list is used as given.
-  it('keeps the estimate alone when it is well determined, and a given list as given', () => {
+  it('keeps the estimate alone when it is well determined, and a given list as given', async () => {
     const fit = fitModel(directionalWalk, lineage, { intervals: true, intervalMethod: 'integrated' });
     const upper = fit.parameters.step_variance.upper!;
     expect(assumedStepVariances(lineage, upper / 2, undefined, [])).toHaveLength(1);
@@ -146,18 +146,18 @@ describe('coverage when the truth sits on the bound', () => {
 });
 
 describe('report --power-step-variance', () => {
-  it('passes the assumed step variance to the power analyses and names it in the figure caption', () => {
+  it('passes the assumed step variance to the power analyses and names it in the figure caption', async () => {
     const folder = mkdtempSync(join(tmpdir(), 'stratotrend-power-assumption-'));
     const out = join(folder, 'report.html');
     // One lineage (the first section of the demo file), so the report runs one power analysis.
     const lines = readFileSync(shells, 'utf8').trim().split('\n');
     const single = join(folder, 'one-lineage.csv');
     writeFileSync(single, [lines[0], ...lines.slice(1).filter((line) => line.startsWith('Varnek Draw,'))].join('\n') + '\n');
-    const result = spawnSync(process.execPath, [launcher, 'report', single, '--no-intervals', '--power', '--power-replicates', '20', '--power-step-variance', '0.02', '--out', out, '--quiet'], { encoding: 'utf8' });
+    const result = await runCliHere(['report', single, '--no-intervals', '--power', '--power-replicates', '20', '--power-step-variance', '0.02', '--out', out, '--quiet'], root);
     expect(result.status, result.stderr).toBe(0);
     const html = readFileSync(out, 'utf8');
     expect(html).toContain('Assumed step variance 0.02.');
-    const help = spawnSync(process.execPath, [launcher, 'report', '--help'], { encoding: 'utf8' });
+    const help = await runCliHere(['report', '--help'], root);
     expect(help.stdout).toMatch(/--power-step-variance <list>/);
   }, 180_000);
 });

@@ -23,11 +23,24 @@ function readBack(text: string) {
   return lineages;
 }
 
+// One simulated file per form, read back once (issue 22: the specimen form's
+// within-horizon variances are checked on the same draws as its endpoint;
+// for normal specimens the sample variance is independent of the sample
+// mean, so sharing the draws leaves both checks' power as it was).
+const readBackByForm = new Map<'summary' | 'specimen', ReturnType<typeof readBack>>();
+function simulatedLineages(form: 'summary' | 'specimen') {
+  let lineages = readBackByForm.get(form);
+  if (!lineages) {
+    lineages = readBack(simulatedTable({ model: directionalWalk, designs: [designLineage(design)], parameters: [truth], replicates, seed: 5, form }));
+    readBackByForm.set(form, lineages);
+  }
+  return lineages;
+}
+
 describe('simulated samples files', () => {
   for (const form of ['summary', 'specimen'] as const) {
     it(`${form} form: reads back and its endpoint has mean a + delta t and variance sigma2 t + v/n`, () => {
-      const text = simulatedTable({ model: directionalWalk, designs: [designLineage(design)], parameters: [truth], replicates, seed: 5, form });
-      const lineages = readBack(text);
+      const lineages = simulatedLineages(form);
       expect(Array.from(lineages[0].time)).toEqual(design.time);
       const last = design.time.length - 1;
       const t = design.time[last];
@@ -45,8 +58,7 @@ describe('simulated samples files', () => {
   }
 
   it('specimen form: the within-horizon sample variances average to v (unbiased, n - 1 divisor)', () => {
-    const text = simulatedTable({ model: directionalWalk, designs: [designLineage(design)], parameters: [truth], replicates, seed: 6, form: 'specimen' });
-    const lineages = readBack(text);
+    const lineages = simulatedLineages('specimen');
     const variances = lineages.flatMap((lineage) => Array.from(lineage.withinVariance));
     const average = variances.reduce((sum, value) => sum + value, 0) / variances.length;
     // Var(s^2) = 2 v^2 / (n - 1) for normal specimens: SE of the average = v sqrt(2 / ((n - 1) K)).

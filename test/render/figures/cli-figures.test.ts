@@ -6,18 +6,27 @@ import { describe, expect, it } from 'vitest';
 import { pngInfo } from '../../../src/render/figures/index.js';
 import { decodePng, isBlank } from './figure-probes.js';
 import { svgText } from './figure-probes.js';
+import { runCliHere } from '../../support/cli-in-process.js';
 
 const root = resolve(import.meta.dirname, '../../..');
 const cli = join(root, 'bin', 'stratotrend');
 
+/** A child process, for what only one shows (which modules a run loads). */
 function run(args: string[], extra: string[] = []): string {
   return execFileSync(process.execPath, [...extra, cli, ...args], { cwd: root, encoding: 'utf8' });
+}
+
+/** The command line in the test process (runCliHere): its stdout, or a failure showing stderr, like execFileSync. */
+async function runHere(args: string[]): Promise<string> {
+  const result = await runCliHere(args, root);
+  if (result.status !== 0) throw new Error(`stratotrend ${args.join(' ')} exited with ${result.status}: ${result.stderr}`);
+  return result.stdout;
 }
 
 describe('figures from the command line', () => {
   it('fit --out writes a trajectory and a model-support PNG per lineage and the sections figure; redraw redraws without refitting', async () => {
     const out = mkdtempSync(join(tmpdir(), 'stratotrend-figures-'));
-    const printed = run(['fit', 'sample-data/shell-length.csv', '--out', out]);
+    const printed = await runHere(['fit', 'sample-data/shell-length.csv', '--out', out]);
     expect(printed).toMatch(/and 5 figure files to/);
     const files = readdirSync(out).sort();
     expect(files).toEqual(
@@ -45,7 +54,7 @@ describe('figures from the command line', () => {
     }
 
     const fitJson = readFileSync(join(out, 'fit.json'), 'utf8');
-    const redrawn = run(['redraw', join(out, 'fit.json'), '--figure-format', 'svg,pdf', '--orientation', 'horizontal', '--only', 'trajectory', '--lineage', 'Varnek Draw', '--draw-model', 'random-walk']);
+    const redrawn = await runHere(['redraw', join(out, 'fit.json'), '--figure-format', 'svg,pdf', '--orientation', 'horizontal', '--only', 'trajectory', '--lineage', 'Varnek Draw', '--draw-model', 'random-walk']);
     expect(redrawn.trim().split('\n')).toEqual([join(out, 'varnek-draw_shell-length.trajectory.svg'), join(out, 'varnek-draw_shell-length.trajectory.pdf')]);
     const { text } = svgText(readFileSync(join(out, 'varnek-draw_shell-length.trajectory.svg'), 'utf8'));
     expect(text).toContain('Expected trajectory, unbiased random walk');
@@ -54,37 +63,23 @@ describe('figures from the command line', () => {
     expect(readFileSync(join(out, 'fit.json'), 'utf8')).toBe(fitJson);
   });
 
-  it('fit --out --no-figures writes no figures; bad figure options are usage errors (exit 2)', () => {
+  it('fit --out --no-figures writes no figures; bad figure options are usage errors (exit 2)', async () => {
     const out = mkdtempSync(join(tmpdir(), 'stratotrend-figures-'));
-    run(['fit', 'sample-data/shell-length.csv', '--out', out, '--no-figures', '--quiet', '--no-intervals']);
+    await runHere(['fit', 'sample-data/shell-length.csv', '--out', out, '--no-figures', '--quiet', '--no-intervals']);
     expect(readdirSync(out).filter((file) => /\.(png|svg|pdf)$/.test(file))).toEqual([]);
-    let status = 0;
-    let stderr = '';
-    try {
-      execFileSync(process.execPath, [cli, 'redraw', join(out, 'fit.json'), '--dpi', 'many'], { cwd: root, encoding: 'utf8', stdio: 'pipe' });
-    } catch (error) {
-      status = (error as { status: number }).status;
-      stderr = String((error as { stderr: string }).stderr);
-    }
+    const { status, stderr } = await runCliHere(['redraw', join(out, 'fit.json'), '--dpi', 'many'], root);
     expect(status).toBe(2);
     expect(stderr).toMatch(/--dpi: expected a number/);
   });
 
-  it('a damaged fit.json is a data error (exit 1) whose one line names the file and the bad field', () => {
+  it('a damaged fit.json is a data error (exit 1) whose one line names the file and the bad field', async () => {
     const out = mkdtempSync(join(tmpdir(), 'stratotrend-figures-'));
-    run(['fit', 'sample-data/shell-length.csv', '--out', out, '--no-figures', '--quiet', '--no-intervals']);
+    await runHere(['fit', 'sample-data/shell-length.csv', '--out', out, '--no-figures', '--quiet', '--no-intervals']);
     const document = JSON.parse(readFileSync(join(out, 'fit.json'), 'utf8'));
     document.lineages[0].data.time = 'x';
     const damaged = join(out, 'damaged.json');
     writeFileSync(damaged, JSON.stringify(document));
-    let status = 0;
-    let stderr = '';
-    try {
-      execFileSync(process.execPath, [cli, 'redraw', damaged], { cwd: root, encoding: 'utf8', stdio: 'pipe' });
-    } catch (error) {
-      status = (error as { status: number }).status;
-      stderr = String((error as { stderr: string }).stderr);
-    }
+    const { status, stderr } = await runCliHere(['redraw', damaged], root);
     expect(status).toBe(1);
     // The document is checked on reading (src/data/documents.ts): the path counts from the document's root.
     expect(stderr.trim()).toBe(`stratotrend: ${damaged}: lineages[0].data.time: expected a list, got "x"`);

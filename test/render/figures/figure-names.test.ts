@@ -5,15 +5,14 @@
  * lineages keeps the names fit gave, so it never overwrites another
  * lineage's figure.
  */
-import { execFileSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, readdirSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { figureJobs } from '../../../src/render/figures/figure-set.js';
+import { runCliHere } from '../../support/cli-in-process.js';
 
 const root = resolve(import.meta.dirname, '../../..');
-const cli = process.env.STRATOTREND_TEST_BIN ?? join(root, 'bin', 'stratotrend');
 
 describe('figure file names', () => {
   const documents = [
@@ -52,7 +51,7 @@ describe('figure file names', () => {
     expect(figureJobs(documents, ['sections'], (index) => index !== 0).map((job) => job.stem)).toEqual(['y-z-2.sections']);
   });
 
-  it('redraw --lineage "A-B" rewrites the file fit gave A-B and leaves A/B\'s file alone', () => {
+  it('redraw --lineage "A-B" rewrites the file fit gave A-B and leaves A/B\'s file alone', async () => {
     const folder = mkdtempSync(join(tmpdir(), 'stratotrend-names-'));
     const samples = join(folder, 'samples.csv');
     // Invented numbers: two sections of one trait whose names clean to the same file name.
@@ -62,11 +61,14 @@ describe('figure file names', () => {
     });
     writeFileSync(samples, rows.join('\n') + '\n');
     const out = join(folder, 'out');
-    execFileSync(process.execPath, [cli, 'fit', samples, '--models', 'random-walk,stasis', '--no-intervals', '--out', out, '--figure-format', 'svg'], { cwd: root, encoding: 'utf8' });
+    const fitted = await runCliHere(['fit', samples, '--models', 'random-walk,stasis', '--no-intervals', '--out', out, '--figure-format', 'svg'], root);
+    expect(fitted.status, fitted.stderr).toBe(0);
     const files = readdirSync(out).filter((file) => file.endsWith('.svg')).sort();
     expect(files).toEqual(['a-b_x-2.model-support.svg', 'a-b_x-2.trajectory.svg', 'a-b_x.model-support.svg', 'a-b_x.trajectory.svg', 'x.sections.svg']);
     const before = readFileSync(join(out, 'a-b_x.trajectory.svg'), 'utf8');
-    const printed = execFileSync(process.execPath, [cli, 'redraw', join(out, 'fit.json'), '--lineage', 'A-B', '--only', 'trajectory', '--figure-format', 'svg', '--figure-width', '12cm'], { cwd: root, encoding: 'utf8' });
+    const redrawn = await runCliHere(['redraw', join(out, 'fit.json'), '--lineage', 'A-B', '--only', 'trajectory', '--figure-format', 'svg', '--figure-width', '12cm'], root);
+    expect(redrawn.status, redrawn.stderr).toBe(0);
+    const printed = redrawn.stdout;
     expect(printed.trim()).toBe(join(out, 'a-b_x-2.trajectory.svg'));
     expect(readFileSync(join(out, 'a-b_x.trajectory.svg'), 'utf8')).toBe(before);
     // Redrawn at 12 cm: 12 / 2.54 × 72 = 340 pt wide (the definition of the point).

@@ -6,8 +6,8 @@ import { optimumShift } from '../../../src/models/optimum-shift.js';
 import { lineageDocument } from '../../../src/render/fit-document.js';
 import { readFigureLineage } from '../../../src/render/figures/figure-input.js';
 import { modelCurve, timeAxisFor } from '../../../src/render/figures/geometry.js';
-import { createRandom } from '../../../src/simulate/random.js';
-import { simulateMeans } from '../../../src/simulate/simulate-lineage.js';
+import { createRandom } from '../../../src/random/random.js';
+import { simulateMeans } from '../../../src/random/simulate-lineage.js';
 
 // The dashed guides of the issue-16 figures: the moving optimum drawn at
 // theta(t) = optimum + optimum_drift t, and the optimum of optimum-shift as a

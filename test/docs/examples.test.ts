@@ -1,0 +1,215 @@
+/**
+ * The `@example` blocks of the TSDoc in `src/engine/`, `src/statistics/`,
+ * `src/data/` and `src/lineage.ts` are run here, so an example can never go
+ * stale. Conventions (see DEVELOPERS.md, "Examples in the TSDoc"):
+ *
+ * - `expression; // value` checks that the expression equals the JavaScript
+ *   literal `value` (deep equality, as vitest's `toEqual`); a parenthetical
+ *   note after the value is prose, except `(to 1e-12)` or `(to 1e-12; why)`,
+ *   which gives that number's absolute tolerance.
+ * - a line `// message: text` (or `// throws: text`) after a statement checks
+ *   that the statement throws an error whose message is `text`.
+ * - other lines run as they are; a block without any check is only compiled
+ *   (it may name files that do not exist here).
+ *
+ * Every exported name of those modules is in scope, as in the examples.
+ * Source of each expected value: the example itself, which states what the
+ * function returns; where it is a published value or closed form, the
+ * example's note says which (e.g. exp(-1), -0.5 ln 2 pi).
+ */
+import { readdirSync, readFileSync } from 'node:fs';
+import { join, relative } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { describe, expect, it } from 'vitest';
+
+const root = fileURLToPath(new URL('../..', import.meta.url));
+
+/** The documented source files whose examples run here. */
+function documentedFiles(): string[] {
+  const files: string[] = [];
+  for (const folder of ['src/engine', 'src/statistics', 'src/data']) {
+    for (const name of readdirSync(join(root, folder)).sort()) if (name.endsWith('.ts') && !name.endsWith('.d.ts')) files.push(join(root, folder, name));
+  }
+  files.push(join(root, 'src', 'lineage.ts'));
+  return files;
+}
+
+/** One `@example` block: the documented export's name and the block's lines (comment stars removed). */
+export interface ExampleBlock {
+  readonly file: string;
+  readonly name: string;
+  readonly lines: readonly string[];
+}
+
+/** Every `@example` block of a source text, with the name declared after its comment. */
+export function exampleBlocks(text: string, file: string): ExampleBlock[] {
+  const blocks: ExampleBlock[] = [];
+  const comment = /\/\*\*([\s\S]*?)\*\/\s*(?:export\s+)?(?:async\s+)?(?:function|class|const|interface|type)?\s*([A-Za-z_$][\w$]*)?/g;
+  for (const match of text.matchAll(comment)) {
+    const body = match[1].split('\n').map((line) => line.replace(/^\s*\* ?/, ''));
+    let current: string[] | null = null;
+    for (const line of body) {
+      if (/^@example\b/.test(line.trim())) {
+        current = [];
+        blocks.push({ file, name: match[2] ?? '(unnamed)', lines: current });
+      } else if (/^@\w+/.test(line.trim())) current = null;
+      else if (current) current.push(line);
+    }
+  }
+  return blocks.map((block) => ({ ...block, lines: block.lines.filter((line) => line.trim() !== '') }));
+}
+
+/** Split a line into its code and its trailing `//` comment (strings and template literals respected). */
+export function splitComment(line: string): { code: string; comment: string | null } {
+  let quote: string | null = null;
+  for (let i = 0; i < line.length; i++) {
+    const character = line[i];
+    if (quote) {
+      if (character === '\\') i += 1;
+      else if (character === quote) quote = null;
+    } else if (character === "'" || character === '"' || character === '`') quote = character;
+    else if (character === '/' && line[i + 1] === '/') return { code: line.slice(0, i).trim(), comment: line.slice(i + 2).trim() };
+  }
+  return { code: line.trim(), comment: null };
+}
+
+/** The value a `// value (note)` comment states, and its tolerance; null when the comment is not a value. */
+export function statedValue(comment: string): { value: unknown; tolerance: number | null } | null {
+  const parse = (text: string): { value: unknown } | null => {
+    try {
+      return { value: new Function(`return (${text});`)() };
+    } catch {
+      return null;
+    }
+  };
+  const whole = parse(comment);
+  if (whole) return { value: whole.value, tolerance: null };
+  // A value followed by a note in parentheses: "(to 1e-15)" is a tolerance, anything else prose.
+  for (let at = comment.indexOf(' ('); at >= 0; at = comment.indexOf(' (', at + 1)) {
+    const note = comment.slice(at + 1).trim();
+    if (!note.endsWith(')')) continue;
+    const value = parse(comment.slice(0, at));
+    if (!value) continue;
+    const stated = /^\(to ([^\s,;()]+)(?:[,;].*)?\)$/.exec(note);
+    return { value: value.value, tolerance: stated ? Number(stated[1]) : null };
+  }
+  return null;
+}
+
+/** The body of an async function that runs a block and checks its stated values through `check` and `throws`. */
+export function exampleProgram(block: ExampleBlock): { source: string; checks: number; problems: string[] } {
+  const out: string[] = [];
+  const problems: string[] = [];
+  let checks = 0;
+  for (let i = 0; i < block.lines.length; i++) {
+    const { code, comment } = splitComment(block.lines[i]);
+    if (code === '') continue;
+    const next = i + 1 < block.lines.length ? splitComment(block.lines[i + 1]) : null;
+    const thrown = next && next.code === '' && next.comment !== null ? /^(?:message|throws):\s*(.*)$/.exec(next.comment) : null;
+    if (thrown) {
+      out.push(`await throws(async () => { ${code} }, ${JSON.stringify(thrown[1])}, ${JSON.stringify(block.lines[i])});`);
+      checks += 1;
+      i += 1;
+      continue;
+    }
+    if (comment === null) {
+      out.push(code);
+      continue;
+    }
+    const stated = statedValue(comment);
+    if (stated === null) {
+      problems.push(`"${comment}" after "${code}" is not a value (write the value, then any note in parentheses)`);
+      continue;
+    }
+    const expression = code.replace(/;\s*$/, '');
+    // Statements before the last ';' on the line run first; the last one is the checked expression.
+    const cut = lastTopLevelSemicolon(expression);
+    if (cut >= 0) out.push(expression.slice(0, cut + 1));
+    out.push(`check(${cut >= 0 ? expression.slice(cut + 1) : expression}, ${JSON.stringify(comment)}, ${JSON.stringify(block.lines[i])});`);
+    checks += 1;
+  }
+  return { source: out.join('\n'), checks, problems };
+}
+
+function lastTopLevelSemicolon(code: string): number {
+  let depth = 0;
+  let quote: string | null = null;
+  let last = -1;
+  for (let i = 0; i < code.length; i++) {
+    const character = code[i];
+    if (quote) {
+      if (character === '\\') i += 1;
+      else if (character === quote) quote = null;
+    } else if (character === "'" || character === '"' || character === '`') quote = character;
+    else if ('([{'.includes(character)) depth += 1;
+    else if (')]}'.includes(character)) depth -= 1;
+    else if (character === ';' && depth === 0) last = i;
+  }
+  return last;
+}
+
+const AsyncFunction = Object.getPrototypeOf(async () => {}).constructor as new (...args: string[]) => (...values: unknown[]) => Promise<void>;
+
+function sameValue(actual: unknown, expected: unknown, tolerance: number | null, where: string): void {
+  if (tolerance !== null && typeof expected === 'number') {
+    expect(typeof actual, where).toBe('number');
+    expect(Math.abs((actual as number) - expected), where).toBeLessThanOrEqual(tolerance);
+  } else expect(actual, where).toEqual(expected);
+}
+
+describe('@example blocks of the documented modules', async () => {
+  const files = documentedFiles();
+  const scope = new Map<string, unknown>();
+  for (const file of files) {
+    const module = (await import(file)) as Record<string, unknown>;
+    for (const [name, value] of Object.entries(module)) {
+      if (scope.has(name) && scope.get(name) !== value) throw new Error(`${name} is exported by two documented modules; the examples' scope would be ambiguous`);
+      scope.set(name, value);
+    }
+  }
+  const blocks = files.flatMap((file) => exampleBlocks(readFileSync(file, 'utf8'), relative(root, file)));
+
+  it('finds the examples (the parser sees every block the sources hold)', () => {
+    const written = files.reduce((count, file) => count + (readFileSync(file, 'utf8').match(/@example\b/g)?.length ?? 0), 0);
+    expect(blocks.length).toBe(written);
+    expect(blocks.length).toBeGreaterThan(0);
+  });
+
+  for (const block of blocks) {
+    it(`${block.file}: ${block.name}`, async () => {
+      const program = exampleProgram(block);
+      expect(program.problems).toEqual([]);
+      const names = [...scope.keys()];
+      const check = (actual: unknown, comment: string, line: string): void => {
+        const stated = statedValue(comment)!;
+        sameValue(actual, stated.value, stated.tolerance, `${block.file} (${block.name}): ${line}`);
+      };
+      const throws = async (run: () => Promise<void>, message: string, line: string): Promise<void> => {
+        await expect(run(), `${block.file} (${block.name}): ${line}`).rejects.toThrow(message);
+      };
+      const compiled = new AsyncFunction('check', 'throws', ...names, program.source);
+      // A block without checks is only compiled: it may read files that exist only on a user's machine.
+      if (program.checks > 0) await compiled(check, throws, ...names.map((name) => scope.get(name)));
+    });
+  }
+});
+
+describe('the example runner itself', () => {
+  const block = (lines: string[]): ExampleBlock => ({ file: 'x.ts', name: 'x', lines });
+  it('checks a stated value, reads a tolerance and sees a throw', () => {
+    expect(statedValue("{ option: 'ka' } (a note)")).toEqual({ value: { option: 'ka' }, tolerance: null });
+    expect(statedValue('0.05 (to 1e-15)')).toEqual({ value: 0.05, tolerance: 1e-15 });
+    expect(statedValue('-2.8 (to 1e-12; = -ln 2 pi - 1)')).toEqual({ value: -2.8, tolerance: 1e-12 });
+    expect(statedValue('m per Myr')).toBeNull();
+    expect(splitComment("f('a // b'); // 2")).toEqual({ code: "f('a // b');", comment: '2' });
+    const program = exampleProgram(block(['const a = 1; a + 1; // 2', 'throw new Error("no");', '// message: no']));
+    expect(program.checks).toBe(2);
+    expect(program.source).toContain('check( a + 1, "2"');
+  });
+  it('fails a wrong stated value (the runner is not vacuous)', async () => {
+    const program = exampleProgram(block(['1 + 1; // 3']));
+    const run = new AsyncFunction('check', 'throws', program.source);
+    const check = (actual: unknown, comment: string): void => sameValue(actual, statedValue(comment)!.value, null, 'self-test');
+    await expect(run(check, async () => {})).rejects.toThrow();
+  });
+});
