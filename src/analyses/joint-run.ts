@@ -75,7 +75,8 @@ export async function runJoint(file: string, options: JointOptions): Promise<Joi
   const lineages = selectTraits(lineagesOf(samples, options, warnings, extra), options.traits, input.name);
   const specimens = readSpecimens(table, samples, { log: options.log, decimalComma: options.decimalComma });
   const groups = jointGroups(lineages, input.name, warnings, specimens);
-  const fits = groups.map((group) => fitGroup(group, models, warnings));
+  const intervals = options.intervals !== false;
+  const fits = groups.map((group) => fitGroup(group, models, warnings, intervals));
   const provenance = {
     tool: 'stratotrend',
     version: toolVersion(),
@@ -88,7 +89,7 @@ export async function runJoint(file: string, options: JointOptions): Promise<Joi
       trait_unit: options.traitUnit === undefined ? null : options.traitUnit,
       traits: options.traits ?? null,
       models: models.map((model) => model.id),
-      intervals: 'none',
+      intervals: intervals ? 'profile' : 'none',
       likelihood: 'exact (joint) with known sampling covariances, vector Kalman filter',
       criterion: 'AICc (N = observed trait values)',
       ...(options.ageModel ? { age_model: options.ageModel, extrapolate: options.extrapolate === true } : {}),
@@ -97,8 +98,8 @@ export async function runJoint(file: string, options: JointOptions): Promise<Joi
   return { fits, document: jointDocument(fits, provenance, warnings.list()), warnings };
 }
 
-function fitGroup(group: JointGroup, models: readonly JointModel[], warnings: WarningLog): JointGroupFit {
-  const { models: ranked, best } = fitJointModels(models, group.data);
+function fitGroup(group: JointGroup, models: readonly JointModel[], warnings: WarningLog, intervals: boolean): JointGroupFit {
+  const { models: ranked, best } = fitJointModels(models, group.data, { intervals });
   const name = group.section === '' ? group.traits.join(' + ') : `${group.section} (${group.traits.join(' + ')})`;
   for (const model of ranked) {
     for (const flag of model.flags) warnings.add('at-bound', `${name}, ${model.id}: ${flag}`);

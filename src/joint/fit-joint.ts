@@ -8,6 +8,7 @@ import {
   parameterCount,
   type JointModel,
 } from './joint-models.js';
+import { profileIntervals, type JointInterval, type JointIntervals } from './joint-intervals.js';
 import { profileFromWhitened, whitenJoint, type JointData, type JointProfile } from './vector-filter.js';
 
 /**
@@ -40,6 +41,8 @@ export interface JointModelFit {
   /** Maximised logL, or null when not fitted. */
   readonly logLik: number | null;
   readonly parameters: JointParameters | null;
+  /** 95% profile-likelihood intervals in the layout of `parameters`, or null (not asked for, or not fitted). */
+  readonly intervals: JointIntervals | null;
   /** Where an estimate sits at a bound or limit, in words (also sent to the warning channel by the caller). */
   readonly flags: string[];
   /** Why the model was not fitted, when it was not. */
@@ -210,6 +213,8 @@ function startingValues(model: JointModel, data: JointData): number[] {
 export interface JointFitOptions {
   /** Starting process values (standardised scale), e.g. the independent model's maximum for its correlated counterpart. */
   readonly start?: readonly number[];
+  /** Compute the 95% profile-likelihood intervals (default false). */
+  readonly intervals?: boolean;
 }
 
 /**
@@ -223,7 +228,7 @@ export interface JointFitOptions {
 export function fitJointModel(model: JointModel, data: JointData, options: JointFitOptions = {}): JointModelFit {
   const k = data.traits;
   const count = parameterCount(model, k);
-  const unfitted = (message: string): JointModelFit => ({ id: model.id, label: model.label, k: count, logLik: null, parameters: null, flags: [], message, process: [] });
+  const unfitted = (message: string): JointModelFit => ({ id: model.id, label: model.label, k: count, logLik: null, parameters: null, intervals: null, flags: [], message, process: [] });
   const scaling = scalingOf(data);
   const standard = standardise(data, scaling);
   const [lowAlpha, highAlpha] = model.process === 'ou' ? alphaRange(standard) : [0, 0];
@@ -310,12 +315,40 @@ export function fitJointModel(model: JointModel, data: JointData, options: Joint
     optimum: model.mean === 'ou' ? Array.from({ length: k }, (_, j) => (alphaAtLow[j] ? null : back(j, location(j, 1)))) : null,
     alpha,
   };
+  let intervals: JointIntervals | null = null;
+  if (options.intervals) {
+    const found = profileIntervals(model, standard, { covariance: parts.covariance, alpha: parts.alpha, locations: profile.coefficients, logLik: profile.logLik, alphaRange: [lowAlpha, highAlpha] });
+    const varianceUnit = (j: number, l: number): number => (scaling.scale[j] * scaling.scale[l]) / (model.process === 'stasis' ? 1 : scaling.span);
+    const scaled = (interval: JointInterval, factor: number, shift = 0): JointInterval => ({
+      lower: interval.lower === null ? null : shift + factor * interval.lower,
+      upper: interval.upper === null ? null : shift + factor * interval.upper,
+    });
+    const locationIntervals = (which: 0 | 1, kind: 'level' | 'rate'): JointInterval[] => Array.from({ length: k }, (_, j) => {
+      const interval = found.locations[j * per + which];
+      return kind === 'level' ? scaled(interval, scaling.scale[j], scaling.centre[j]) : scaled(interval, scaling.scale[j] / scaling.span);
+    });
+    const covarianceIntervals = Array.from({ length: k }, (_, j) => Array.from({ length: k }, (_, l) => (j === l ? scaled(found.variances[j], varianceUnit(j, j)) : null)));
+    intervals = {
+      method: 'profile',
+      level: 0.95,
+      ancestral_mean: model.process === 'stasis' ? null : locationIntervals(0, 'level'),
+      drift: model.mean === 'drift' ? locationIntervals(1, 'rate') : null,
+      stasis_mean: model.process === 'stasis' ? locationIntervals(0, 'level') : null,
+      // alpha's interval reaching its random-walk limit leaves the optimum unbounded (it can run away as alpha -> 0): open ends.
+      optimum: model.mean === 'ou' ? locationIntervals(1, 'level').map((interval, j) => (alphaAtLow[j] || found.alphas?.[j].lower === null ? { lower: null, upper: null } : interval)) : null,
+      alpha: found.alphas ? found.alphas.map((interval) => scaled(interval, 1 / scaling.span)) : null,
+      step_covariance: model.process === 'stasis' ? null : covarianceIntervals,
+      stasis_covariance: model.process === 'stasis' ? covarianceIntervals : null,
+      step_correlation: model.process === 'stasis' ? null : found.correlations.map((row, j) => row.map((interval, l) => (j === l || !model.correlated ? null : interval))),
+    };
+  }
   return {
     id: model.id,
     label: model.label,
     k: count,
     logLik: profile.logLik - logScale,
     parameters,
+    intervals,
     flags,
     message: null,
     process: bounded(best),
@@ -364,7 +397,7 @@ export function observedValues(data: JointData): number {
  * starts (also) from its independent counterpart's maximum, so its logL is
  * never below that model's (they are nested: R diagonal is a special case).
  */
-export function fitJointModels(models: readonly JointModel[], data: JointData): { models: RankedJointFit[]; best: string | null } {
+export function fitJointModels(models: readonly JointModel[], data: JointData, options: { intervals?: boolean } = {}): { models: RankedJointFit[]; best: string | null } {
   const fits: JointModelFit[] = [];
   const done = new Map<string, JointModelFit>();
   // Independent models first, so the correlated ones can start from them.
@@ -372,7 +405,7 @@ export function fitJointModels(models: readonly JointModel[], data: JointData): 
   for (const model of order) {
     const partner = done.get(`${model.process}/${model.mean}`);
     const start = model.correlated && partner && partner.logLik !== null ? diagonalToFactor(partner.process, data.traits, model.process === 'ou') : undefined;
-    const fit = fitJointModel(model, data, { start });
+    const fit = fitJointModel(model, data, { start, intervals: options.intervals === true });
     done.set(`${model.process}/${model.mean}`, fit);
     fits.push(fit);
   }

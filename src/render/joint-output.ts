@@ -1,5 +1,6 @@
 import type { Warning } from '../data/warnings.js';
 import type { JointParameters, RankedJointFit } from '../joint/fit-joint.js';
+import type { JointInterval, JointIntervals } from '../joint/joint-intervals.js';
 import type { JointGroup } from '../joint/joint-groups.js';
 import { finiteOrNull, type Provenance } from './fit-document.js';
 import { csvField } from './models-csv.js';
@@ -26,6 +27,27 @@ function paramsDocument(parameters: JointParameters | null): Record<string, unkn
     stasis_covariance: matrix(parameters.stasis_covariance),
     optimum: vector(parameters.optimum),
     alpha: vector(parameters.alpha),
+  };
+}
+
+const end = (value: number | null): number | null => finiteOrNull(value);
+const pairOf = (interval: JointInterval | null): [number | null, number | null] | null => (interval ? [end(interval.lower), end(interval.upper)] : null);
+
+function intervalsDocument(intervals: JointIntervals | null): Record<string, unknown> | null {
+  if (!intervals) return null;
+  const list = (values: readonly JointInterval[] | null) => (values ? values.map(pairOf) : null);
+  const grid = (rows: readonly (readonly (JointInterval | null)[])[] | null) => (rows ? rows.map((row) => row.map(pairOf)) : null);
+  return {
+    method: intervals.method,
+    level: intervals.level,
+    ancestral_mean: list(intervals.ancestral_mean),
+    drift: list(intervals.drift),
+    step_covariance: grid(intervals.step_covariance),
+    step_correlation: grid(intervals.step_correlation),
+    stasis_mean: list(intervals.stasis_mean),
+    stasis_covariance: grid(intervals.stasis_covariance),
+    optimum: list(intervals.optimum),
+    alpha: list(intervals.alpha),
   };
 }
 
@@ -67,7 +89,7 @@ export function jointDocument(fits: readonly JointGroupFit[], provenance: Proven
         compared: model.aicc !== null,
         not_compared: model.notCompared,
         params: paramsDocument(model.parameters),
-        intervals: null,
+        intervals: intervalsDocument(model.intervals),
         flags: model.flags,
       })),
     })),
@@ -119,14 +141,16 @@ function number(value: number | null, digits = 4): string {
  * @example
  * correlationWords(['length', 'width'], [[1, 0.82], [0.82, 1]], 'steps'); // ['steps of length and width are correlated: 0.82']
  */
-export function correlationWords(traits: readonly string[], correlation: readonly (readonly (number | null)[])[], what: string): string[] {
+export function correlationWords(traits: readonly string[], correlation: readonly (readonly (number | null)[])[], what: string, intervals: readonly (readonly (JointInterval | null)[])[] | null = null): string[] {
   const lines: string[] = [];
   for (let j = 0; j < traits.length; j++) {
     for (let l = j + 1; l < traits.length; l++) {
       const value = correlation[j][l];
       if (value === null) continue;
       const strength = Math.abs(value) < 0.1 ? 'nearly uncorrelated' : value > 0 ? 'correlated' : 'negatively correlated';
-      lines.push(`${what} of ${traits[j] || `trait ${j + 1}`} and ${traits[l] || `trait ${l + 1}`} are ${strength}: ${number(value, 2)}`);
+      const interval = intervals?.[j]?.[l] ?? null;
+      const ends = interval ? ` [${number(interval.lower, 2)}, ${number(interval.upper, 2)}]` : '';
+      lines.push(`${what} of ${traits[j] || `trait ${j + 1}`} and ${traits[l] || `trait ${l + 1}`} are ${strength}: ${number(value, 2)}${ends}`);
     }
   }
   return lines;
@@ -152,7 +176,7 @@ export function jointText(fits: readonly JointGroupFit[]): string {
     }
     lines.push(`  Best supported: ${winner.id} (Akaike weight ${winner.weight === null ? '—' : winner.weight.toFixed(2)}).`);
     const parameters = winner.parameters;
-    if (parameters?.step_correlation && winner.id.startsWith('correlated')) lines.push(...correlationWords(group.traits, parameters.step_correlation, '  Steps').map((line) => line));
+    if (parameters?.step_correlation && winner.id.startsWith('correlated')) lines.push(...correlationWords(group.traits, parameters.step_correlation, '  Steps', winner.intervals?.step_correlation ?? null));
     if (parameters?.stasis_covariance && winner.id.startsWith('correlated')) {
       const correlation = parameters.stasis_covariance.map((row, j) => row.map((value, l) => value / Math.sqrt(parameters.stasis_covariance![j][j] * parameters.stasis_covariance![l][l])));
       lines.push(...correlationWords(group.traits, correlation, '  Fluctuations'));
