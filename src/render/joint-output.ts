@@ -51,6 +51,24 @@ function intervalsDocument(intervals: JointIntervals | null): Record<string, unk
   };
 }
 
+/**
+ * The data of a group as the figures and the report read them: the vertical
+ * axis ("age" before present, or "time" elapsed), each horizon's position on
+ * it, the trait means (null where missing) and the sampling covariance E_i.
+ */
+function seriesDocument(group: JointGroup): Record<string, unknown> {
+  const k = group.traits.length;
+  const agesKnown = group.positionKind !== 'time';
+  return {
+    axis: agesKnown ? 'age' : 'time',
+    position: Array.from(group.data.time, (t) => (agesKnown ? group.firstAge - t : t)),
+    time: Array.from(group.data.time),
+    mean: Array.from(group.data.time, (_, i) => Array.from({ length: k }, (_, j) => finiteOrNull(group.data.values[i * k + j]))),
+    count: Array.from(group.data.time, (_, i) => Array.from({ length: k }, (_, j) => group.count[i * k + j])),
+    sampling_covariance: Array.from(group.data.time, (_, i) => Array.from({ length: k }, (_, j) => Array.from({ length: k }, (_, l) => group.data.sampling[i * k * k + j * k + l]))),
+  };
+}
+
 /** Number of observed trait values of a group (N of AICc). */
 export function observationsOf(group: JointGroup): number {
   let count = 0;
@@ -78,6 +96,7 @@ export function jointDocument(fits: readonly JointGroupFit[], provenance: Proven
       observations: observationsOf(group),
       sampling_covariance: group.samplingCovariance,
       best_model: best,
+      series: seriesDocument(group),
       models: models.map((model) => ({
         id: model.id,
         label: model.label,

@@ -79,7 +79,7 @@ describe('stratotrend joint: input', () => {
 describe('stratotrend joint: outputs', () => {
   it('--json has the documented layout; --out writes joint.json and joint-models.csv', () => {
     const out = join(folder, 'out');
-    const text = execFileSync('node', [bin, 'joint', 'sample-data/shell-shape.csv', '--json', '--out', out, '--models', 'independent-random-walks,correlated-random-walk'], { encoding: 'utf8' });
+    const text = execFileSync('node', [bin, 'joint', 'sample-data/shell-shape.csv', '--json', '--out', out, '--models', 'independent-random-walks,correlated-random-walk', '--no-figures', '--no-intervals'], { encoding: 'utf8' });
     const document = JSON.parse(text);
     const group = document.groups[0];
     expect(Object.keys(group)).toEqual(expect.arrayContaining(['section', 'traits', 'horizons', 'observations', 'sampling_covariance', 'best_model', 'models']));
