@@ -65,16 +65,8 @@ function selectTraits(lineages: readonly Lineage[], traits: string | undefined, 
  * runJoint('sample-data/shell-shape.csv', {}).fits[0].group.traits; // ['length', 'width']
  */
 export async function runJoint(file: string, options: JointOptions): Promise<JointRun> {
-  const warnings = new WarningLog();
   const models = jointModelsOption(options.models);
-  const input = readInput(file);
-  const table = readTable(input.text, input.name, { delimiter: delimiterOption(options.delimiter) });
-  const samples = readSamples(table, { log: options.log, decimalComma: options.decimalComma });
-  const { ageModelHook } = await import('../cli/age-model-options.js');
-  const { extra, age } = ageModelHook(file, options, samples.timeKind, warnings);
-  const lineages = selectTraits(lineagesOf(samples, options, warnings, extra), options.traits, input.name);
-  const specimens = readSpecimens(table, samples, { log: options.log, decimalComma: options.decimalComma });
-  const groups = jointGroups(lineages, input.name, warnings, specimens);
+  const { input, groups, warnings, age } = await loadJointGroups(file, options);
   const intervals = options.intervals !== false;
   const fits = groups.map((group) => fitGroup(group, models, warnings, intervals));
   const provenance = {
@@ -96,6 +88,22 @@ export async function runJoint(file: string, options: JointOptions): Promise<Joi
     },
   };
   return { fits, document: jointDocument(fits, provenance, warnings.list()), warnings };
+}
+
+/**
+ * Read a samples file and group its traits by section (no fitting): the
+ * input record, the groups, the warnings raised and the age model.
+ */
+export async function loadJointGroups(file: string, options: JointOptions): Promise<{ input: { name: string; sha256: string }; groups: JointGroup[]; warnings: WarningLog; age: { input: { name: string; sha256: string } } | null }> {
+  const warnings = new WarningLog();
+  const input = readInput(file);
+  const table = readTable(input.text, input.name, { delimiter: delimiterOption(options.delimiter) });
+  const samples = readSamples(table, { log: options.log, decimalComma: options.decimalComma });
+  const { ageModelHook } = await import('../cli/age-model-options.js');
+  const { extra, age } = ageModelHook(file, options, samples.timeKind, warnings);
+  const lineages = selectTraits(lineagesOf(samples, options, warnings, extra), options.traits, input.name);
+  const specimens = readSpecimens(table, samples, { log: options.log, decimalComma: options.decimalComma });
+  return { input: { name: input.name, sha256: input.sha256 }, groups: jointGroups(lineages, input.name, warnings, specimens), warnings, age };
 }
 
 function fitGroup(group: JointGroup, models: readonly JointModel[], warnings: WarningLog, intervals: boolean): JointGroupFit {

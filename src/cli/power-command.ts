@@ -31,6 +31,8 @@ export interface PowerCommandOptions extends SampleFileOptions, AgeModelOptions 
   json?: boolean;
   figure?: string;
   quiet?: boolean;
+  /** Joint path: true step correlations between the first two traits of a section, comma-separated. */
+  correlations?: string;
 }
 
 /** A whole number option within a range, or a usage error naming the option. */
@@ -322,6 +324,13 @@ function wrap(text: string, width: number): string[] {
 
 /** `stratotrend power FILE`. */
 export async function powerCommand(file: string, options: PowerCommandOptions): Promise<void> {
+  if (options.correlations !== undefined) {
+    // Power to detect an evolutionary correlation between two traits (issue 17, the joint models).
+    const { jointPowerCommand } = await import('../analyses/joint-simulate.js');
+    const { threads: _threads, ...rest } = options;
+    await jointPowerCommand(file, { ...rest, correlations: options.correlations }, { replicates: (text) => wholeOption(text, '--replicates', 200, 1, 100000), seed: seedOption });
+    return;
+  }
   if (options.figure) refuseInputPath(options.figure, [file]);
   const reporter = stageProgress(options.quiet);
   let run: PowerRun;

@@ -48,6 +48,16 @@ export function parseParameters(text: string | undefined, known: readonly string
  * are taken from the model fitted to each lineage of FILE.
  */
 export async function simulateCommand(file: string | undefined, options: SimulateCommandOptions): Promise<void> {
+  const joint = await import('../analyses/joint-simulate.js');
+  if (joint.isJointModel(options.model)) {
+    // The joint models (issue 17) simulate on the design of a file's sections with two or more traits.
+    const text = await joint.jointSimulation(file, { ...options, replicates: wholeOption(options.replicates, '--replicates', 1, 1, 100000), seed: seedOption(options.seed) });
+    if (options.out) {
+      refuseInputPath(options.out, [file as string]);
+      writeAtomically(options.out, text);
+    } else process.stdout.write(text);
+    return;
+  }
   const model = findModel(options.model ?? 'directional-walk');
   if (!model) throw usageError(`--model: unknown model "${options.model}"`);
   const names = model.parameters.map((spec) => spec.name);
