@@ -184,7 +184,7 @@ export function profileIntervals(model: JointModel, data: JointData, start: Inte
     };
     const objective = (x: number[]): number => -logLikAt(model, data, full(x), ordering, held);
     if (free.length === 0) return { value: -objective([]), at: coordinates };
-    const result = nelderMead(objective, free.map((index) => coordinates[index]), { step: free.map(() => 0.3), tolerance: 1e-10, maxEvaluations: 400 * free.length, restarts: 1 });
+    const result = nelderMead(objective, free.map((index) => coordinates[index]), { step: free.map(() => 0.3), tolerance: 1e-9, maxEvaluations: 250 * free.length, restarts: 0 });
     return { value: -result.value, at: full(result.at) };
   };
   /** One end: walk from the estimate along `direction` until the profile drops below the cut-off or `limit` is reached; then a root. */
@@ -195,7 +195,7 @@ export function profileIntervals(model: JointModel, data: JointData, start: Inte
       let next = inside + direction * step;
       if ((next - limit) * direction >= 0) next = limit;
       const value = profile(next);
-      if (!(value > target)) return findRoot((x) => profile(x) - target, Math.min(inside, next), Math.max(inside, next), 1e-8 * (Math.abs(next) + 1));
+      if (!(value > target)) return findRoot((x) => profile(x) - target, Math.min(inside, next), Math.max(inside, next), 1e-6 * (Math.abs(next) + 1));
       if (next === limit) return null;
       inside = next;
       step *= 2;
