@@ -105,3 +105,20 @@ describe('stratotrend joint: outputs', () => {
     expect(result.stderr.trim().split('\n')).toHaveLength(1);
   });
 });
+
+describe('report --joint', () => {
+  it('adds a "Traits together" block with the joint table, the correlation in words and both figures', () => {
+    const out = join(folder, 'report.html');
+    execFileSync('node', [bin, 'report', 'sample-data/shell-shape.csv', '--joint', '--no-intervals', '--out', out, '--quiet'], { encoding: 'utf8' });
+    const html = readFileSync(out, 'utf8');
+    expect(html).toContain('<h2>Traits together</h2>');
+    expect(html).toContain('<code>correlated-random-walk</code>');
+    expect(html).toMatch(/Steps of shell length and shell width are correlated: 0\.\d+/);
+    expect(html).toContain('data-kind="joint-panels"');
+    expect(html).toContain('data-kind="joint-trajectory"');
+    // Without --joint the page has no such block (behaviour unchanged).
+    const plain = join(folder, 'plain.html');
+    execFileSync('node', [bin, 'report', 'sample-data/shell-shape.csv', '--no-intervals', '--out', plain, '--quiet'], { encoding: 'utf8' });
+    expect(readFileSync(plain, 'utf8')).not.toContain('Traits together');
+  });
+});
