@@ -446,7 +446,7 @@ async function main(): Promise<void> {
   const sweep = smoke ? null : runSweep();
   process.stderr.write('  joint models (3 traits)...\n');
   const { measureJoint } = await import('./joint.js');
-  const joint = measureJoint(smoke ? 20 : 100, !smoke);
+  const joint = measureJoint(smoke ? 12 : 100, !smoke);
 
   const at1000 = likelihood.filter((row) => row.horizons === (smoke ? 200 : 1000));
   const worstRatio = Math.min(...at1000.map((row) => row.ratio ?? Number.POSITIVE_INFINITY));

@@ -2,7 +2,7 @@ import { InputError } from '../data/errors.js';
 import { readTable } from '../data/read-table.js';
 import { readSamples } from '../data/samples.js';
 import { WarningLog } from '../data/warnings.js';
-import { fitJointModels } from '../joint/fit-joint.js';
+import { fitJointModelsOnPool } from '../joint/fit-joint-pool.js';
 import { jointGroups, readSpecimens, type JointGroup } from '../joint/joint-groups.js';
 import { jointModel, jointModels, type JointModel } from '../joint/joint-models.js';
 import type { Lineage } from '../lineage.js';
@@ -19,6 +19,7 @@ export interface JointOptions extends SampleFileOptions, AgeModelOptions {
   models?: string;
   /** false for --no-intervals. */
   intervals?: boolean;
+  /** Worker threads, one joint model per task (1 = this thread); default every core with intervals, 1 without. */
   threads?: number;
 }
 
@@ -68,7 +69,10 @@ export async function runJoint(file: string, options: JointOptions): Promise<Joi
   const models = jointModelsOption(options.models);
   const { input, groups, warnings, age } = await loadJointGroups(file, options);
   const intervals = options.intervals !== false;
-  const fits = groups.map((group) => fitGroup(group, models, warnings, intervals));
+  // Intervals are the slow part: then every core by default (one model per task); without them one thread.
+  const threads = options.threads ?? (intervals ? undefined : 1);
+  const fits: JointGroupFit[] = [];
+  for (const group of groups) fits.push(await fitGroup(group, models, warnings, intervals, threads));
   const provenance = {
     tool: 'stratotrend',
     version: toolVersion(),
@@ -106,8 +110,8 @@ export async function loadJointGroups(file: string, options: JointOptions): Prom
   return { input: { name: input.name, sha256: input.sha256 }, groups: jointGroups(lineages, input.name, warnings, specimens), warnings, age };
 }
 
-function fitGroup(group: JointGroup, models: readonly JointModel[], warnings: WarningLog, intervals: boolean): JointGroupFit {
-  const { models: ranked, best } = fitJointModels(models, group.data, { intervals });
+async function fitGroup(group: JointGroup, models: readonly JointModel[], warnings: WarningLog, intervals: boolean, threads: number | undefined): Promise<JointGroupFit> {
+  const { models: ranked, best } = await fitJointModelsOnPool(models, group.data, { intervals, threads });
   const name = group.section === '' ? group.traits.join(' + ') : `${group.section} (${group.traits.join(' + ')})`;
   for (const model of ranked) {
     for (const flag of model.flags) warnings.add('at-bound', `${name}, ${model.id}: ${flag}`);

@@ -409,7 +409,14 @@ export function fitJointModels(models: readonly JointModel[], data: JointData, o
     done.set(`${model.process}/${model.mean}`, fit);
     fits.push(fit);
   }
-  const ordered = models.map((model) => fits.find((fit) => fit.id === model.id) as JointModelFit);
+  return rankJointFits(models.map((model) => fits.find((fit) => fit.id === model.id) as JointModelFit), data);
+}
+
+/**
+ * Rank fits (in the order given) by AICc with N = the number of observed
+ * trait values, with Akaike weights and the best model's id.
+ */
+export function rankJointFits(ordered: readonly JointModelFit[], data: JointData): { models: RankedJointFit[]; best: string | null } {
   const observed = observedValues(data);
   const criteria = ordered.map((fit) => (fit.logLik === null ? null : aicc(fit.logLik, fit.k, observed)));
   const { delta, weight } = akaikeWeights(criteria);
@@ -425,7 +432,7 @@ export function fitJointModels(models: readonly JointModel[], data: JointData, o
 }
 
 /** An independent model's process values (k log variances [+ k ln alpha]) as a correlated model's (Cholesky entries with log diagonal). */
-function diagonalToFactor(process: readonly number[], k: number, ou: boolean): number[] {
+export function diagonalToFactor(process: readonly number[], k: number, ou: boolean): number[] {
   const start: number[] = [];
   for (let j = 0; j < k; j++) for (let l = 0; l <= j; l++) start.push(j === l ? process[j] : 0);
   if (ou) for (let j = 0; j < k; j++) start.push(process[k + j]);

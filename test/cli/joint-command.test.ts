@@ -77,6 +77,13 @@ describe('stratotrend joint: input', () => {
 });
 
 describe('stratotrend joint: outputs', () => {
+  it('--threads 2 gives the same document as --threads 1 (one model per worker task)', async () => {
+    const options = { models: 'independent-random-walks,correlated-random-walk,correlated-stasis', intervals: false };
+    const pooled = await runJoint('sample-data/shell-shape.csv', { ...options, threads: 2 });
+    const inline = await runJoint('sample-data/shell-shape.csv', { ...options, threads: 1 });
+    expect(JSON.stringify(pooled.document)).toBe(JSON.stringify(inline.document));
+  });
+
   it('--json has the documented layout; --out writes joint.json and joint-models.csv', () => {
     const out = join(folder, 'out');
     const text = execFileSync('node', [bin, 'joint', 'sample-data/shell-shape.csv', '--json', '--out', out, '--models', 'independent-random-walks,correlated-random-walk', '--no-figures', '--no-intervals'], { encoding: 'utf8' });

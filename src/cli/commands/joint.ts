@@ -19,7 +19,7 @@ export function defineJointCommand(program: Command): void {
     .option('--no-figures', 'with --out, write no figures (by default each section gets a panels figure and one trait-against-trait trajectory per pair of traits)')
     .option('--quiet', 'print nothing but errors and warnings')
     .option('--no-intervals', 'skip the 95% profile-likelihood intervals (faster)')
-    .option('--threads <count>', 'worker threads (accepted; this version fits the groups in the main thread)', parseThreads)
+    .option('--threads <count>', 'worker threads, one model per task (1 = no workers; default: every core when intervals are computed, else 1); results do not depend on it', parseThreads)
     .addHelpText('after', `
 Joint models (k traits; t from the section's oldest horizon; R the step covariance per time unit):
   independent-random-walks       each trait an unbiased random walk, R diagonal (K = 2k)
