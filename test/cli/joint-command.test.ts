@@ -121,6 +121,7 @@ describe('report --joint', () => {
     expect(html).toContain('<h2>Traits together</h2>');
     expect(html).toContain('<code>correlated-random-walk</code>');
     expect(html).toMatch(/Steps of shell length and shell width are correlated: 0\.\d+/);
+    expect(html).toContain('data-block="joint-methods"');
     expect(html).toContain('data-kind="joint-panels"');
     expect(html).toContain('data-kind="joint-trajectory"');
     // Without --joint the page has no such block (behaviour unchanged).

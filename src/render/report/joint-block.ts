@@ -34,7 +34,9 @@ const shown = (value: number | null | undefined, digits = 4): string => (typeof 
  */
 export function jointBlock(document: unknown, figures: (group: number) => string): string {
   const view = document as JointDocumentView;
-  return (view.groups ?? []).map((group, index) => {
+  const intervals = (view as { provenance?: { options?: { intervals?: string } } }).provenance?.options?.intervals === 'profile';
+  const methods = `<p class="methods" data-block="joint-methods">Traits measured in the same section were also fitted together: independent and correlated multivariate random walks, directional walks, stasis and Ornstein–Uhlenbeck models (Voje 2023, Paleobiology 49:747–764), by maximum likelihood with the exact likelihood of a vector Kalman filter over the trait means with their sampling covariances (missing trait values left out, none imputed); locations were estimated by generalised least squares and covariance matrices through a Cholesky factor with a log diagonal. Models were compared by AICc (Hurvich & Tsai 1989) with N the number of observed trait values, and Akaike weights (Burnham & Anderson 2002)${intervals ? '; 95% intervals are profile-likelihood intervals, evolutionary correlations R_jl / √(R_jj R_ll) included' : ''}.</p>`;
+  return methods + '\n' + (view.groups ?? []).map((group, index) => {
     const traits = group.traits ?? [];
     const rows = (group.models ?? []).map((model) => `<tr${model.id === group.best_model ? ' class="best"' : ''}><td><code>${escapeHtml(model.id)}</code></td><td>${escapeHtml(model.k)}</td><td>${shown(model.logLik, 6)}</td><td>${shown(model.aicc, 6)}</td><td>${shown(model.delta_aicc, 3)}</td><td>${typeof model.weight === 'number' ? model.weight.toFixed(3) : '—'}</td></tr>`).join('');
     const best = (group.models ?? []).find((model) => model.id === group.best_model);
