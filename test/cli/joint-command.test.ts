@@ -25,6 +25,17 @@ describe('stratotrend joint: input', () => {
     expect(run.warnings.list().some((warning) => warning.category === 'input' && warning.message.includes('section "B" has one trait'))).toBe(true);
   });
 
+  it('horizons are the union of the traits\' ages, t from the group\'s oldest (a trait starting later is offset), missing values NaN', async () => {
+    const file = write('late.csv', ['section,trait,age,n,mean,sd', 'S,a,10,10,5,1', 'S,a,9,10,5.5,1', 'S,b,9,10,2.2,0.5', 'S,a,8,10,6,1', 'S,b,7.5,10,2.1,0.5', 'S,a,7,10,6.2,1', 'S,b,7,10,2.4,0.5'].join('\n'));
+    const run = await runJoint(file, { models: 'independent-stasis', intervals: false });
+    const { data, position } = run.fits[0].group;
+    // Hand-computed: ages 10, 9, 8, 7.5, 7 → t = 10 - age.
+    expect([...position]).toEqual([10, 9, 8, 7.5, 7]);
+    expect([...data.time]).toEqual([0, 1, 2, 2.5, 3]);
+    expect([...data.values].map((value) => (Number.isNaN(value) ? null : value))).toEqual([5, null, 5.5, 2.2, 6, null, null, 2.1, 6.2, 2.4]);
+    expect(run.fits[0].models[0].k).toBe(4);
+  });
+
   it('traits without a common horizon: one error naming file, line and the traits', async () => {
     const file = write('apart.csv', ['section,trait,age,n,mean,sd', 'A,len,6,10,5,1', 'A,len,5,10,5,1', 'A,len,4,10,5,1', 'A,wid,3,10,2,0.5', 'A,wid,2,10,2,0.5', 'A,wid,1,10,2,0.5'].join('\n'));
     await expect(runJoint(file, {})).rejects.toThrow(/apart\.csv line 5, column "trait": traits "len" and "wid" of section "A" share no horizon/);
