@@ -1,6 +1,6 @@
 #!/usr/bin/env node
 // Writes the invented two-trait demonstration data for `stratotrend joint`
-// (fictional section "Quillan Wash"; nothing here is real). Deterministic:
+// (fictional section "Marrowind Wash"; nothing here is real). Deterministic:
 // run it again and the files come out byte-identical.
 //
 // Scenario: a fictional bivalve lineage measured for shell length and shell
@@ -46,15 +46,15 @@ for (let i = 0; i < 24; i++) {
   const rows = [];
   for (let s = 0; s < n; s++) {
     const [el, ew] = pair(within.length, within.width, within.correlation);
-    rows.push({ id: `QW-${String(i + 1).padStart(2, '0')}-${String(s + 1).padStart(2, '0')}`, length: length + el, width: width + ew });
+    rows.push({ id: `MW-${String(i + 1).padStart(2, '0')}-${String(s + 1).padStart(2, '0')}`, length: length + el, width: width + ew });
   }
   for (const trait of ['length', 'width']) {
     if (trait === 'width' && missingWidth.has(i)) continue;
     const values = rows.map((row) => row[trait]);
     const mean = values.reduce((sum, value) => sum + value, 0) / n;
     const sd = Math.sqrt(values.reduce((sum, value) => sum + (value - mean) ** 2, 0) / (n - 1));
-    summary.push(`Quillan Wash,shell ${trait},${ageText},${n},${mean.toFixed(4)},${sd.toFixed(4)}`);
-    for (const row of rows) specimens.push(`Quillan Wash,shell ${trait},${ageText},${row.id},${row[trait].toFixed(3)}`);
+    summary.push(`Marrowind Wash,shell ${trait},${ageText},${n},${mean.toFixed(4)},${sd.toFixed(4)}`);
+    for (const row of rows) specimens.push(`Marrowind Wash,shell ${trait},${ageText},${row.id},${row[trait].toFixed(3)}`);
   }
 }
 writeFileSync(join(folder, 'shell-shape.csv'), summary.join('\n') + '\n');

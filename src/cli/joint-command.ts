@@ -61,7 +61,7 @@ export async function jointCommand(file: string, options: JointCommandOptions): 
 /**
  * The figure files of `joint --out`: per group a panels figure and one
  * trajectory per pair of traits, named from the section and traits, e.g.
- * joint-quillan-wash-panels.png, joint-quillan-wash-shell-length-shell-width.png.
+ * joint-marrowind-wash-panels.png, joint-marrowind-wash-shell-length-shell-width.png.
  */
 export function jointFigureNames(groups: readonly JointFigureGroup[]): { name: string; group: number; pair: [number, number] | null }[] {
   const names: { name: string; group: number; pair: [number, number] | null }[] = [];

@@ -55,6 +55,6 @@ describe('power to detect a correlation', () => {
     const path = join(folder, 'simulated-2.csv');
     writeFileSync(path, execFileSync('node', [bin, 'simulate', 'sample-data/shell-shape.csv', '--model', 'independent-stasis', '--replicates', '2'], { encoding: 'utf8' }));
     const run = await runJoint(path, { models: 'independent-stasis', intervals: false });
-    expect(run.fits.map((fit) => fit.group.section)).toEqual(['Quillan Wash r1', 'Quillan Wash r2']);
+    expect(run.fits.map((fit) => fit.group.section)).toEqual(['Marrowind Wash r1', 'Marrowind Wash r2']);
   });
 });
