@@ -13,7 +13,7 @@ export function defineJointCommand(program: Command): void {
       .argument('<file>', 'samples CSV with a trait column (summary rows: n, mean, sd or var; specimen rows: value, and a "specimen" column to estimate the covariance between traits); "-" reads stdin'),
   ), { draws: false })
     .option('--traits <names>', 'comma-separated traits to fit together, in this set (default: every trait of the file); file order is kept')
-    .option('--models <ids>', 'all (default) or a comma-separated list of joint model ids (see below)', 'all')
+    .option('--models <ids>', 'all, or a comma-separated list of joint model ids (see below)', 'all')
     .option('--json', 'print one JSON document to stdout instead of the tables')
     .option('--out <folder>', 'write joint.json, joint-models.csv and the figures into this folder (created if needed)')
     .option('--no-figures', 'with --out, write no figures (by default each section gets a panels figure and one trait-against-trait trajectory per pair of traits)')
