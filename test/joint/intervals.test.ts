@@ -45,3 +45,27 @@ describe('joint profile-likelihood intervals against the dense scipy profile', (
     });
   });
 });
+
+describe('three traits: every correlation interval is found with its pair put first', () => {
+  it('each interval contains its estimate and is the same for (j, l) and (l, j)', async () => {
+    const { simulateJoint } = await import('../../src/joint/simulate-joint.js');
+    const { createRandom } = await import('../../src/simulate/random.js');
+    const horizons = 20;
+    const k = 3;
+    const time = Float64Array.from({ length: horizons }, (_, i) => i);
+    const sampling = new Float64Array(horizons * k * k);
+    for (let i = 0; i < horizons; i++) for (let j = 0; j < k; j++) sampling[i * k * k + j * k + j] = 0.05;
+    const model = jointModel('correlated-random-walk') as JointModel;
+    const truth = { locations: [0, 0, 0], covariance: Float64Array.of(1, 0.6, 0.3, 0.6, 1, -0.2, 0.3, -0.2, 1), alpha: null };
+    const data = simulateJoint(model, { traits: k, time, values: new Float64Array(horizons * k), sampling }, truth, createRandom(9));
+    const fit = fitJointModel(model, data, { intervals: true });
+    const correlation = fit.parameters!.step_correlation!;
+    for (const [j, l] of [[0, 1], [0, 2], [1, 2]]) {
+      const interval = fit.intervals!.step_correlation![j][l]!;
+      // A profile interval contains the maximum-likelihood estimate (common practice).
+      expect(interval.lower as number).toBeLessThan(correlation[j][l] as number);
+      expect(interval.upper as number).toBeGreaterThan(correlation[j][l] as number);
+      expect(fit.intervals!.step_correlation![l][j]).toEqual(interval);
+    }
+  });
+});
