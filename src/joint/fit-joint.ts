@@ -268,17 +268,10 @@ export function fitJointModel(model: JointModel, data: JointData, options: Joint
   if (!profile || !Number.isFinite(profile.logLik)) {
     return unfitted('not fitted: the covariance of the observed means is singular for these data (e.g. a walk whose first horizon has zero sampling variance)');
   }
-  let observed = 0;
   let logScale = 0;
   for (let i = 0; i < data.time.length; i++) {
-    for (let j = 0; j < k; j++) {
-      if (!Number.isNaN(data.values[i * k + j])) {
-        observed += 1;
-        logScale += Math.log(scaling.scale[j]);
-      }
-    }
+    for (let j = 0; j < k; j++) if (!Number.isNaN(data.values[i * k + j])) logScale += Math.log(scaling.scale[j]);
   }
-  void observed;
   const parts = processParts(model, k, bounded(best));
   const flags: string[] = [];
   const variance: number[][] = Array.from({ length: k }, (_, j) => Array.from({ length: k }, (_, l) => parts.covariance[j * k + l] * scaling.scale[j] * scaling.scale[l] / (model.process === 'stasis' ? 1 : scaling.span)));

@@ -1,6 +1,6 @@
 import { chiSquare1At95 } from '../fit/model-choice.js';
 import { findRoot, nelderMead } from '../fit/optimise.js';
-import { covarianceParameterCount, jointDesign, jointDynamics, locationsPerTrait, type JointModel } from './joint-models.js';
+import { jointDesign, jointDynamics, locationsPerTrait, type JointModel } from './joint-models.js';
 import { profileFromWhitened, whitenJoint, type JointData } from './vector-filter.js';
 
 /**
@@ -260,6 +260,5 @@ export function profileIntervals(model: JointModel, data: JointData, start: Inte
     const upper = end(estimate, 1, standardError, estimate + 1e6 * standardError, profile);
     return { lower, upper };
   });
-  void covarianceParameterCount;
   return { locations, variances, correlations, alphas };
 }
