@@ -444,6 +444,9 @@ async function main(): Promise<void> {
   // Smoke mode: 40 horizons (two sections of 20), so the six commands' fits take seconds, not half a minute.
   const streaming = measureStreaming(smoke ? 20_000 : 1_000_000, smoke ? 40 : 200);
   const sweep = smoke ? null : runSweep();
+  process.stderr.write('  joint models (3 traits)...\n');
+  const { measureJoint } = await import('./joint.js');
+  const joint = measureJoint(smoke ? 12 : 100, !smoke);
 
   const at1000 = likelihood.filter((row) => row.horizons === (smoke ? 200 : 1000));
   const worstRatio = Math.min(...at1000.map((row) => row.ratio ?? Number.POSITIVE_INFINITY));
@@ -464,7 +467,7 @@ async function main(): Promise<void> {
     { name: `batch speedup on ${batch.rows[1].threads} threads`, target: '>= 1.6', measured: batch.speedup, met: batch.speedup >= 1.6 },
     { name: '`stratotrend --help` / `node -e 0`', target: '<= 2', measured: startup.ratio, met: startup.ratio <= 2 },
   ];
-  const results = { mode: smoke ? 'smoke' : 'full', date: new Date().toISOString(), machine, likelihood, fits, batch, startup, figures, streaming, calibration, sweep, targets };
+  const results = { mode: smoke ? 'smoke' : 'full', date: new Date().toISOString(), machine, likelihood, fits, batch, startup, figures, streaming, calibration, sweep, joint, targets };
   if (outFile) writeFileSync(outFile, JSON.stringify(results, null, 2) + '\n');
 
   const lines: string[] = [];
@@ -503,6 +506,8 @@ async function main(): Promise<void> {
   lines.push('', `Streaming a specimen-form file (issue 6): ${streaming.rows} rows, ${format(streaming.megabytes)} MB, read and summarised in ${format(streaming.seconds)} s, peak resident memory ${format(streaming.peakResidentMiB)} MiB (own process)`);
   lines.push('Every command that reads the samples file, on the same file (each in its own process):');
   lines.push(table([['command', 'seconds', 'peak resident MiB'], ...streaming.commands.map((row) => [row.command, format(row.seconds), format(row.peakResidentMiB)])]));
+  lines.push('', `Joint models (issue 17): ${joint.traits} traits, ${joint.horizons} horizons, every model`);
+  lines.push(table([['model', 'fit seconds', 'with intervals seconds', 'logL'], ...joint.rows.map((row) => [row.model, format(row.seconds), format(row.intervalSeconds), format(row.logLik, 6)])]));
   if (!smoke) lines.push('', `Calibration: ${JSON.stringify(calibration).slice(0, 200)}`);
   if (sweep) lines.push('', `Exhaustive sweeps (${sweep.files.join(', ')}, STRATOTREND_SWEEP=full): ${sweep.passed ? 'passed' : 'FAILED'} in ${format(sweep.seconds)} s (${sweep.summary})`);
   lines.push('', 'Targets (issue 7)');

@@ -32,6 +32,8 @@ export interface PowerCommandOptions extends SampleFileOptions, AgeModelOptions 
   figure?: string;
   /** Models fitted to every replicate (`--models`, default classic). */
   models?: string;
+  /** Joint path: true step correlations between the first two traits of a section, comma-separated. */
+  correlations?: string;
   quiet?: boolean;
 }
 

@@ -20,6 +20,8 @@ export interface ReportCommandOptions extends FitCommandOptions {
   figureFormat?: string;
   /** Saved results of other analyses (compare --json, power --json) to show in the report. */
   attach?: string[];
+  /** Also fit the joint models of several traits (`stratotrend joint`) and show them. */
+  joint?: boolean;
   /** Figure layout: "stratigraphic" (default) or "horizontal". */
   orientation?: string;
   /** Model whose expected trajectory is drawn (default: each lineage's best). */
@@ -219,7 +221,7 @@ async function runAnalyses(
   options: ReportCommandOptions,
   read?: StreamedInput,
   selection?: ModelSelection,
-): Promise<{ comparison?: unknown; power: unknown[]; seeds: Record<string, unknown> }> {
+): Promise<{ comparison?: unknown; power: unknown[]; seeds: Record<string, unknown>; joint?: unknown }> {
   const sampleOptions = { log: options.log, pool: options.pool, timeUnit: options.timeUnit, traitUnit: options.traitUnit, delimiter: options.delimiter, decimalComma: options.decimalComma };
   const seeds: Record<string, unknown> = {};
   let comparison: unknown;
@@ -253,7 +255,33 @@ async function runAnalyses(
       reporter.stop();
     }
   }
-  return { comparison, power, seeds };
+  let joint: unknown;
+  if (options.joint) {
+    if (file === '-') throw usageError('--joint reads the samples file again for the joint models; give a file name, not "-" (stdin)');
+    // The joint models of several traits (issue 17), with the fit's intervals choice.
+    const { runJoint } = await import('./joint-run.js');
+    joint = (await runJoint(file, { ...sampleOptions, ageModel: options.ageModel, extrapolate: options.extrapolate, intervals: options.intervals !== false })).document;
+  }
+  return { comparison, power, seeds, joint };
+}
+
+/** The figures of `report --joint`: per group its panels and one trajectory per pair of traits, placed in the "Traits together" block. */
+async function jointFigures(document: unknown, format: 'svg' | 'png'): Promise<ReportFigure[]> {
+  const { renderJointPanels, renderJointTrajectory } = await import('../render/figures/joint.js');
+  const groups = (document as { groups: import('../render/figures/joint.js').JointFigureGroup[] }).groups;
+  const figures: ReportFigure[] = [];
+  groups.forEach((group, index) => {
+    const place = `joint:${index}`;
+    const panels = renderJointPanels(group, { format });
+    figures.push({ lineage: null, kind: 'joint-panels', caption: `${group.section ? `${group.section}: ` : ''}${group.traits.join(', ')} on one time axis (horizon means, 95% sampling intervals).`, mime: panels.mime, bytes: panels.bytes, width: panels.width, height: panels.height, place });
+    for (let j = 0; j < group.traits.length; j++) {
+      for (let l = j + 1; l < group.traits.length; l++) {
+        const trajectory = renderJointTrajectory(group, j, l, { format });
+        figures.push({ lineage: null, kind: 'joint-trajectory', caption: `${group.traits[l]} against ${group.traits[j]}: horizon means in time order (light to dark), 95% sampling ellipses.`, mime: trajectory.mime, bytes: trajectory.bytes, width: trajectory.width, height: trajectory.height, place });
+      }
+    }
+  });
+  return figures;
 }
 
 /** The provenance entry of --power: on which lineages it ran (and which it could not), with the replicates. */
@@ -277,19 +305,21 @@ function parseFormat(value: string | undefined): 'svg' | 'png' {
 export async function buildReport(
   document: FitDocumentView,
   options: ReportCommandOptions,
-  extra: { source?: { file: string; sha256: string }; analyses?: { comparison?: unknown; power: unknown[]; seeds: Record<string, unknown> } } = {},
+  extra: { source?: { file: string; sha256: string }; analyses?: { comparison?: unknown; power: unknown[]; seeds: Record<string, unknown>; joint?: unknown } } = {},
 ): Promise<string> {
   const format = parseFormat(options.figureFormat);
   const attachments = readAttachments(options.attach ?? []);
   const { figures, note } = await reportFigures(document, { format, orientation: options.orientation, drawModel: options.drawModel, smoothedBand: options.smoothedBand });
   const power = [...(extra.analyses?.power ?? []), ...attachments.power];
   figures.push(...(await powerFigures(power, format)));
+  if (extra.analyses?.joint !== undefined) figures.push(...(await jointFigures(extra.analyses.joint, format)));
   const reportOptions: Record<string, unknown> = {
     figure_format: format,
     orientation: options.orientation ?? 'stratigraphic',
     draw_model: options.drawModel ?? 'best supported',
     smoothed_band: options.smoothedBand === true,
     compare: options.compare === true,
+    ...(options.joint ? { joint: true } : {}),
     power: options.power === true ? powerOptionWords(extra.analyses?.power ?? [], options.powerReplicates, options.powerStepVariance) : false,
   };
   if (extra.source) reportOptions.source = `${extra.source.file} (saved fit document, SHA-256 ${extra.source.sha256}; not refitted)`;
@@ -307,6 +337,7 @@ export async function buildReport(
     comparison: extra.analyses?.comparison ?? attachments.comparison,
     power: power.length > 0 ? power : undefined,
     adequacy: attachments.adequacy,
+    ...(extra.analyses?.joint !== undefined ? { joint: extra.analyses.joint } : {}),
     run: {
       date: new Date().toISOString(),
       command: ['stratotrend', ...process.argv.slice(2)].map((part) => (/^[\w@%+=:,./-]+$/.test(part) ? part : `'${part.replace(/'/g, "'\\''")}'`)).join(' '),
@@ -370,7 +401,7 @@ export async function runReport(file: string, options: ReportCommandOptions): Pr
       seedOption(options.seed);
     }
     // The fit options pass through unchanged, so the page shows exactly what `fit` with the same options computes.
-    const { out: _out, figureFormat: _format, attach: _attach, compare: _compare, power: _power, powerReplicates: _replicates, seed: _seed, ...fitOptions } = options;
+    const { out: _out, figureFormat: _format, attach: _attach, compare: _compare, joint: _joint, power: _power, powerReplicates: _replicates, seed: _seed, ...fitOptions } = options;
     const run = await runFitStreamed(file, { ...fitOptions, quiet: true });
     const document = run.document;
     // The comparison and power analyses reuse the horizons the fit read (the file, or stdin, is read once).

@@ -2,6 +2,7 @@ import { Command, CommanderError } from 'commander';
 import { InputError } from '../data/errors.js';
 import { defineCompareCommand } from './commands/compare.js';
 import { defineFitCommand } from './commands/fit.js';
+import { defineJointCommand } from './commands/joint.js';
 import { definePowerCommand } from './commands/power.js';
 import { defineBootstrapCommand } from './commands/bootstrap.js';
 import { defineSimulateCommand } from './commands/simulate.js';
@@ -79,6 +80,7 @@ export function buildProgram(): Command {
 
   defineFitCommand(program);
   defineCompareCommand(program);
+  defineJointCommand(program);
   defineReportCommand(program);
   definePowerCommand(program);
   defineSimulateCommand(program);

@@ -1,4 +1,5 @@
 import { powerTable, runPower, sourceWords, traitUnitOf, type PowerCommandOptions, type PowerRun } from '../analyses/power-run.js';
+import { seedOption, wholeOption } from '../analyses/option-values.js';
 import { stageProgress } from '../io/progress.js';
 import { refuseInputPath, writeAtomically } from '../io/write-output.js';
 import { lineageName } from '../lineage.js';
@@ -8,6 +9,13 @@ import { lineageName } from '../lineage.js';
 
 /** `stratotrend power FILE`. */
 export async function powerCommand(file: string, options: PowerCommandOptions): Promise<void> {
+  if (options.correlations !== undefined) {
+    // Power to detect an evolutionary correlation between two traits (issue 17, the joint models).
+    const { jointPowerCommand } = await import('../analyses/joint-simulate.js');
+    const { threads: _threads, ...rest } = options;
+    await jointPowerCommand(file, { ...rest, correlations: options.correlations }, { replicates: (text) => wholeOption(text, '--replicates', 200, 1, 100000), seed: seedOption });
+    return;
+  }
   if (options.figure) refuseInputPath(options.figure, [file]);
   const reporter = stageProgress(options.quiet);
   let run: PowerRun;

@@ -1,4 +1,5 @@
 import { runSimulate, type SimulateCommandOptions } from '../analyses/simulate-run.js';
+import { seedOption, wholeOption } from '../analyses/option-values.js';
 import { refuseInputPath, writeAtomically } from '../io/write-output.js';
 
 // `stratotrend simulate`: the data are made by runSimulate
@@ -14,6 +15,16 @@ export { parseParameters } from '../analyses/simulate-run.js';
  * are taken from the model fitted to each lineage of FILE.
  */
 export async function simulateCommand(file: string | undefined, options: SimulateCommandOptions): Promise<void> {
+  const joint = await import('../analyses/joint-simulate.js');
+  if (joint.isJointModel(options.model)) {
+    // The joint models (issue 17) simulate on the design of a file's sections with two or more traits.
+    const text = await joint.jointSimulation(file, { ...options, replicates: wholeOption(options.replicates, '--replicates', 1, 1, 100000), seed: seedOption(options.seed) });
+    if (options.out) {
+      refuseInputPath(options.out, [file as string]);
+      writeAtomically(options.out, text);
+    } else process.stdout.write(text);
+    return;
+  }
   const text = await runSimulate(file, options, (warnings) => {
     for (const warning of warnings) process.stderr.write(`warning (${warning.category}): ${warning.message}\n`);
   });

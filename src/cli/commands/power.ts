@@ -21,6 +21,7 @@ export function definePowerCommand(program: Command): void {
     .option('--no-coverage', 'skip the check of interval coverage on this design')
     .option('--threads <k>', 'worker threads (default: every core; results do not depend on it)')
     .option('--figure <file>', 'write the power curve (png, or svg/pdf by extension)')
+    .option('--correlations <list>', 'instead: the power to detect a correlation between the steps of the first two traits of a section (--lineage SECTION; default the first with two or more traits) on this design, for these true correlations (0 is added: the false-correlation rate); see "stratotrend joint"')
     .option('--json', 'print one JSON document instead of the table')
     .option('--quiet', 'no table and no progress bar')
     .action(async (file: string, options) => {

@@ -18,6 +18,7 @@ export function defineReportCommand(program: Command): void {
     .option('--draw-model <id>', "model whose expected trajectory and 95% envelope are drawn (default: each lineage's best-supported model)")
     .option('--smoothed-band', 'also draw the smoothed lineage mean with its 95% band')
     .option('--compare', 'also compare the sections of every trait measured in two or more (shared against separate processes, as "compare" does)')
+    .option('--joint', 'also fit the joint models of several traits of one lineage to every section with two or more traits (as "joint" does), with their figures')
     .option('--power', 'also estimate the power of every lineage\'s design to detect a trend (simulations, as "power" does; takes a while)')
     .option('--power-replicates <R>', 'simulated lineages per drift value for --power', '200')
     .option('--power-step-variance <list>', 'step variance(s) the --power simulations assume, comma-separated, as "power --step-variance" (default: the fitted estimate, and the upper end of its 95% interval when the estimate is 0 or poorly determined)')

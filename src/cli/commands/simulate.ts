@@ -10,8 +10,8 @@ export function defineSimulateCommand(program: Command): void {
       .argument('[file]', 'samples CSV whose design (times, n, within-horizon variances) is used; parameters not given are fitted to it'),
     { traitUnit: false },
   ), { draws: false })
-    .option('--model <id>', 'generating model: any model id of "stratotrend fit --help", e.g. random-walk, ou or accelerating-walk (a shift model takes its shift position from the fit to FILE)', 'directional-walk')
-    .option('--parameters <list>', 'parameter values, e.g. "ancestral_mean=5,drift=0.2,step_variance=0.01" (names as in the fit JSON)')
+    .option('--model <id>', 'generating model: any model id of "stratotrend fit --help", e.g. random-walk, ou or accelerating-walk (a shift model takes its shift position from the fit to FILE); or a joint model of "stratotrend joint" (e.g. correlated-random-walk: needs a FILE with two or more traits per section, writes summary rows)', 'directional-walk')
+    .option('--parameters <list>', 'parameter values, e.g. "ancestral_mean=5,drift=0.2,step_variance=0.01" (names as in the fit JSON); for a joint model entries by trait number, e.g. "step_correlation[1][2]=0.8,ancestral_mean[2]=18" (names as in joint.json)')
     .option('--horizons <N>', 'design without a file: number of horizons (default 25)')
     .option('--spacing <dt>', 'design without a file: time between horizons (default 0.1)')
     .option('--n <n>', 'design without a file: specimens per horizon (default 20)')

@@ -1,5 +1,6 @@
 import { formatNumber } from '../units.js';
 import { lineageTitle, type FitDocumentView } from './document-view.js';
+import { jointBlock } from './joint-block.js';
 import { escapeHtml, exactValue, slug } from './html.js';
 import { figureHtml, lineageSection, type ReportFigure } from './lineage-section.js';
 import { methodsParagraphs, methodsPlainText, methodsText, renderSentence, type AnalysesRun, type MethodsText, type PowerRun } from './methods.js';
@@ -40,6 +41,8 @@ export interface ReportInput {
   readonly power?: unknown;
   /** Adequacy checks of the whole run (per-lineage checks may also sit in each lineage document). */
   readonly adequacy?: unknown;
+  /** `joint --json` result (`report --joint`), shown as "Traits together". */
+  readonly joint?: unknown;
   readonly analyses?: AnalysesRun;
   readonly run: RunRecord;
 }
@@ -170,6 +173,7 @@ export function reportPage(input: ReportInput): string {
     const composite = (lineage: Record<string, unknown>): string => `<p><strong>${escapeHtml(lineageTitle(lineage as unknown as LineageView))}</strong></p>${supportTable(lineage as unknown as LineageView)}`;
     blocks.push({ id: 'comparison', title: 'Comparison of sections', html: `${comparisonDocumentBlock(comparison, composite)}\n${placed('comparison')}` });
   }
+  if (input.joint !== undefined) blocks.push({ id: 'joint', title: 'Traits together', html: jointBlock(input.joint, (group) => placed(`joint:${group}`)) });
   if (powerList.length > 0) {
     blocks.push({ id: 'power', title: 'Power of this design', html: powerList.map((entry, index) => `${powerDocumentBlock(entry)}\n${placed(`power:${index}`)}`).join('\n') });
   }
