@@ -1,5 +1,5 @@
 import { allocateSums, whiten, workSize, type WhitenedSums } from '../engine/kalman-filter.js';
-import { logLikAt, profileOut, profileWithFixedCoefficient, type ProfileResult } from '../engine/gls.js';
+import { logLikAt, profileLogLik, profileOut, profileWithFixedCoefficient, type ProfileResult } from '../engine/gls.js';
 import { allocateStateSpace, type StateSpace } from '../engine/state-space.js';
 import type { Lineage } from '../lineage.js';
 import type { EvolutionModel } from '../models/model.js';
@@ -66,7 +66,7 @@ export class LikelihoodEvaluator {
 
   /** Profile log-likelihood at these process values (location parameters at their GLS estimate). */
   profile(process: ArrayLike<number>): number {
-    return profileOut(this.whiten(process)).logLik;
+    return profileLogLik(this.whiten(process));
   }
 
   /** GLS details at these process values, with coefficients on the trait's own scale. */
@@ -187,8 +187,13 @@ class WhitenCache {
   }
 
   private reset(capacity: number): void {
-    this.capacity = capacity;
     this.count = 0;
+    if (capacity === this.capacity) {
+      // Starting afresh at the same size: only the occupancy marks need clearing (stale keys and values are never read).
+      this.used.fill(0);
+      return;
+    }
+    this.capacity = capacity;
     this.keys = new Float64Array(capacity * this.keyWidth);
     this.values = new Float64Array(capacity * this.valueWidth);
     this.used = new Uint8Array(capacity);
@@ -204,8 +209,8 @@ class WhitenCache {
       const target = -1 - this.find(key);
       this.used[target] = 1;
       this.count += 1;
-      this.keys.set(key, target * keyWidth);
-      this.values.set(values.subarray(slot * valueWidth, (slot + 1) * valueWidth), target * valueWidth);
+      for (let i = 0; i < keyWidth; i++) this.keys[target * keyWidth + i] = key[i];
+      for (let j = 0; j < valueWidth; j++) this.values[target * valueWidth + j] = values[slot * valueWidth + j];
     }
   }
 }

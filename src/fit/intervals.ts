@@ -1,5 +1,5 @@
 import { usageError } from '../data/errors.js';
-import { profileOut, reducedProfile } from '../engine/gls.js';
+import { informationLogDet, profileLogLik, reducedProfileSummary } from '../engine/gls.js';
 import type { WhitenedSums } from '../engine/kalman-filter.js';
 import type { Lineage } from '../lineage.js';
 import type { EvolutionModel } from '../models/model.js';
@@ -65,9 +65,9 @@ export interface IntervalEnds {
  * only error contrasts. Biometrika 61:383-385.
  */
 export function restrictedLogLik(sums: WhitenedSums): number {
-  const result = profileOut(sums);
-  if (!Number.isFinite(result.logLik)) return Number.NEGATIVE_INFINITY;
-  return result.logLik - 0.5 * result.logDetInformation;
+  const logLik = profileLogLik(sums);
+  if (!Number.isFinite(logLik)) return Number.NEGATIVE_INFINITY;
+  return logLik - 0.5 * informationLogDet(sums);
 }
 
 /**
@@ -80,7 +80,7 @@ export function restrictedLogLik(sums: WhitenedSums): number {
  * Patterson & Thompson 1971).
  */
 export function fixedCoefficientLogLik(sums: WhitenedSums, index: number, value: number, adjusted: boolean): number {
-  const result = reducedProfile(sums, index, value);
+  const result = reducedProfileSummary(sums, index, value);
   if (!adjusted || !Number.isFinite(result.logLik)) return result.logLik;
   return result.logLik - 0.5 * result.logDetInformation;
 }
@@ -122,7 +122,7 @@ export function parameterProfile(
   if (axisIndex >= 0) {
     const evaluate = (process: number[]): number => {
       const sums = evaluator.whiten(process);
-      return adjusted ? restrictedLogLik(sums) : profileOut(sums).logLik;
+      return adjusted ? restrictedLogLik(sums) : profileLogLik(sums);
     };
     const best = maximiseProcess(evaluate, model.process, lineage, { points: Math.max(points, 24) });
     return { at, maximum: best.logLik, maximiser: best.process[axisIndex], process: best.process };
@@ -142,11 +142,11 @@ function locationSupremum(evaluator: LikelihoodEvaluator, name: string, adjusted
   const model = evaluator.model;
   return (process: number[]): number => {
     const sums = evaluator.whiten(process);
-    const result = profileOut(sums);
-    if (!adjusted || !Number.isFinite(result.logLik)) return result.logLik;
+    const logLik = profileLogLik(sums);
+    if (!adjusted || !Number.isFinite(logLik)) return logLik;
     const { index } = model.fixLocation(name, 0, process, evaluator.lineage);
-    const logDet = reducedProfile(sums, index, 0).logDetInformation;
-    return Number.isFinite(logDet) ? result.logLik - 0.5 * logDet : Number.NEGATIVE_INFINITY;
+    const logDet = reducedProfileSummary(sums, index, 0).logDetInformation;
+    return Number.isFinite(logDet) ? logLik - 0.5 * logDet : Number.NEGATIVE_INFINITY;
   };
 }
 
@@ -186,7 +186,7 @@ export function profileFunction(evaluator: LikelihoodEvaluator, name: string, ad
   if (axisIndex >= 0) {
     const evaluate = (process: number[]): number => {
       const sums = evaluator.whiten(process);
-      return adjusted ? restrictedLogLik(sums) : profileOut(sums).logLik;
+      return adjusted ? restrictedLogLik(sums) : profileLogLik(sums);
     };
     return (value: number): number => {
       if (model.process.length === 1) return evaluate([value]);
@@ -277,7 +277,7 @@ export function intervalsByProfile(
     if (axisIndex >= 0) {
       const evaluate = (process: number[]): number => {
         const sums = evaluator.whiten(process);
-        return request.adjusted ? restrictedLogLik(sums) : profileOut(sums).logLik;
+        return request.adjusted ? restrictedLogLik(sums) : profileLogLik(sums);
       };
       const best = maximiseProcess(evaluate, model.process, evaluator.lineage, { points: 24 });
       result[name] = processEnds(evaluate, best.process, axisIndex, best.logLik - drop);
