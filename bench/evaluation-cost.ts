@@ -10,6 +10,7 @@
  */
 import { median } from 'simple-statistics';
 import { fitLineage } from '../src/fit/fit-lineage.js';
+import { intervalOptions } from '../src/fit/intervals.js';
 import type { Lineage } from '../src/lineage.js';
 import { classicModels, extendedModels } from '../src/models/registry.js';
 import { bootstrapTests } from '../src/simulate/bootstrap-test.js';
@@ -113,7 +114,9 @@ export async function measureEvaluationCost(quick: boolean): Promise<EvaluationC
     const met = targetEquivalents !== null ? evaluationEquivalents <= targetEquivalents : cpuMilliseconds <= (targetSeconds as number) * 1000;
     rows.push({ work, cpuMilliseconds, evaluationEquivalents, targetEquivalents, targetSeconds, met });
   };
-  add('five classic models, default intervals', perLineage((lineage) => fitLineage(lineage, classicModels)), 5000, null);
+  // The `fit` command's default (intervalOptions(undefined): the integrated method, ou falling back to the adjusted profile), and the plain profile.
+  add('five classic models, default intervals (as `fit`)', perLineage((lineage) => fitLineage(lineage, classicModels, intervalOptions(undefined))), 5000, null);
+  add('five classic models, profile intervals', perLineage((lineage) => fitLineage(lineage, classicModels, { intervals: true, intervalMethod: 'profile' })), 5000, null);
   add('five classic models, no intervals', perLineage((lineage) => fitLineage(lineage, classicModels, { intervals: false })), 1000, null);
   add('extended set, no intervals', perLineage((lineage) => fitLineage(lineage, extendedModels, { intervals: false })), 50_000, null);
   // The replicate loops on one thread (inline: no worker start-up in the time).
