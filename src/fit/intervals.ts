@@ -5,7 +5,7 @@ import type { Lineage } from '../lineage.js';
 import type { EvolutionModel } from '../models/model.js';
 import type { LikelihoodEvaluator } from './evaluator.js';
 import { findRoot } from './optimise.js';
-import { maximiseProcess } from './search.js';
+import { maximiseProcess, type ProcessMaximum } from './search.js';
 
 /**
  * How the 95% intervals of a fit were made:
@@ -270,16 +270,19 @@ export function intervalsByProfile(
 ): Record<string, IntervalEnds> {
   const model = evaluator.model;
   const result: Record<string, IntervalEnds> = {};
+  const evaluate = (process: number[]): number => {
+    const sums = evaluator.whiten(process);
+    return request.adjusted ? restrictedLogLik(sums) : profileLogLik(sums);
+  };
+  // The maximum over every process parameter is the same for each of them: searched once.
+  let processBest: ProcessMaximum | null = null;
   for (const name of names) {
     // A bootstrap cut-off can be 0 when the truth sits on a bound; a tiny floor keeps the root search bracketed.
     const drop = Math.max(request.ratioCutoff(name), 1e-6) / 2;
     const axisIndex = model.process.findIndex((axis) => axis.name === name);
     if (axisIndex >= 0) {
-      const evaluate = (process: number[]): number => {
-        const sums = evaluator.whiten(process);
-        return request.adjusted ? restrictedLogLik(sums) : profileLogLik(sums);
-      };
-      const best = maximiseProcess(evaluate, model.process, evaluator.lineage, { points: 24 });
+      processBest ??= maximiseProcess(evaluate, model.process, evaluator.lineage, { points: 24 });
+      const best = processBest;
       result[name] = processEnds(evaluate, best.process, axisIndex, best.logLik - drop);
       continue;
     }
