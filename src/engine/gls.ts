@@ -103,19 +103,92 @@ export function logLikAt(sums: WhitenedSums, coefficients: ArrayLike<number>): n
  * reducedProfile(sums, 1, 2).coefficients[0]; // 1 (to 1e-12; slope 2: mean of 1 - 0, 3 - 2)
  */
 export function reducedProfile(sums: WhitenedSums, index: number, value: number): ProfileResult {
+  const reducedWidth = sums.width - 1;
+  const reduced = allocateReduced(sums.size, reducedWidth);
+  reduceInto(sums, index, value, reduced, new Float64Array(reducedWidth + 1));
+  return profileOut(reduced);
+}
+
+/**
+ * Profile log-likelihood with design coefficient `index` held at `value` and
+ * the others profiled out by GLS: the `logLik` of {@link reducedProfile},
+ * bit for bit, without allocating (the searches call this tens of thousands
+ * of times per fit).
+ * @example
+ * const space = allocateStateSpace(2, 1, Float64Array.of(1, 1)); space.design.fill(1);
+ * const sums = whiten(space, Float64Array.of(1, 3), allocateSums(2, 1), new Float64Array(workSize(1)));
+ * profileWithFixedCoefficient(sums, 0, 0); // -6.837877066409345 (to 1e-12; the one coefficient held: logLikAt(sums, [0]))
+ */
+export function profileWithFixedCoefficient(sums: WhitenedSums, index: number, value: number): number {
+  const scratch = reducedScratch(sums.size, sums.width - 1);
+  reduceInto(sums, index, value, scratch.reduced, scratch.row);
+  return profileLogLik(scratch.reduced);
+}
+
+/**
+ * `logLik` and `logDetInformation` of {@link reducedProfile}, bit for bit,
+ * without allocating; `logDetInformation` is NaN when `logLik` is -Infinity.
+ */
+export function reducedProfileSummary(sums: WhitenedSums, index: number, value: number): { logLik: number; logDetInformation: number } {
+  const scratch = reducedScratch(sums.size, sums.width - 1);
+  reduceInto(sums, index, value, scratch.reduced, scratch.row);
+  const logLik = profileLogLik(scratch.reduced);
+  return { logLik, logDetInformation: logLik === Number.NEGATIVE_INFINITY ? Number.NaN : informationLogDet(scratch.reduced) };
+}
+
+/**
+ * The profile log-likelihood of {@link profileOut} alone, bit for bit, without
+ * allocating: -Infinity when V is singular or R has a negligible diagonal.
+ */
+export function profileLogLik(sums: WhitenedSums): number {
+  if (sums.singular || !fullRank(sums)) return Number.NEGATIVE_INFINITY;
+  return -0.5 * (sums.size * logTwoPi + sums.sumLogVariance + sums.residual);
+}
+
+/** ln det(X' V^-1 X) = 2 sum ln |R_jj| as {@link profileOut} sums it (call only when {@link profileLogLik} is finite). */
+export function informationLogDet(sums: WhitenedSums): number {
+  const width = sums.width;
+  let logDetInformation = 0;
+  for (let j = 0; j < width; j++) logDetInformation += 2 * Math.log(Math.abs(sums.triangle[j * width + j]));
+  return logDetInformation;
+}
+
+/** The rank test of {@link profileOut}: every |R_jj| above 1e-14 of the largest. */
+function fullRank(sums: WhitenedSums): boolean {
+  const width = sums.width;
+  const triangle = sums.triangle;
+  let largest = 0;
+  for (let j = 0; j < width; j++) largest = Math.max(largest, Math.abs(triangle[j * width + j]));
+  for (let j = 0; j < width; j++) {
+    if (!(Math.abs(triangle[j * width + j]) > largest * 1e-14)) return false;
+  }
+  return true;
+}
+
+function allocateReduced(size: number, width: number): WhitenedSums {
+  return { size, width, sumLogVariance: 0, triangle: new Float64Array(width * width), projected: new Float64Array(width), residual: 0, singular: false };
+}
+
+/** Scratch of the allocation-free reduced profiles, one per (size, width) last used. */
+let scratchKept: { reduced: WhitenedSums; row: Float64Array } | null = null;
+
+function reducedScratch(size: number, width: number): { reduced: WhitenedSums; row: Float64Array } {
+  if (scratchKept === null || scratchKept.reduced.size !== size || scratchKept.reduced.width !== width) {
+    scratchKept = { reduced: allocateReduced(size, width), row: new Float64Array(width + 1) };
+  }
+  return scratchKept;
+}
+
+/** Fill `reduced` (width - 1 columns) with the QR factor of the problem with coefficient `index` held at `value`. */
+function reduceInto(sums: WhitenedSums, index: number, value: number, reduced: WhitenedSums, row: Float64Array): void {
   const width = sums.width;
   const reducedWidth = width - 1;
-  const reduced: WhitenedSums = {
-    size: sums.size,
-    width: reducedWidth,
-    sumLogVariance: sums.sumLogVariance,
-    triangle: new Float64Array(reducedWidth * reducedWidth),
-    projected: new Float64Array(reducedWidth),
-    residual: sums.residual,
-    singular: sums.singular,
-  };
-  if (sums.singular) return profileOut(reduced);
-  const row = new Float64Array(reducedWidth + 1);
+  reduced.sumLogVariance = sums.sumLogVariance;
+  reduced.residual = sums.residual;
+  reduced.singular = sums.singular;
+  reduced.triangle.fill(0);
+  reduced.projected.fill(0);
+  if (sums.singular) return;
   for (let i = 0; i < width; i++) {
     let column = 0;
     for (let k = 0; k < width; k++) {
@@ -126,17 +199,4 @@ export function reducedProfile(sums: WhitenedSums, index: number, value: number)
     row[reducedWidth] = sums.projected[i] - value * (index >= i ? sums.triangle[i * width + index] : 0);
     foldRow(reduced, row, 0);
   }
-  return profileOut(reduced);
-}
-
-/**
- * Profile log-likelihood with design coefficient `index` held at `value` and
- * the others profiled out by GLS ({@link reducedProfile}).
- * @example
- * const space = allocateStateSpace(2, 1, Float64Array.of(1, 1)); space.design.fill(1);
- * const sums = whiten(space, Float64Array.of(1, 3), allocateSums(2, 1), new Float64Array(workSize(1)));
- * profileWithFixedCoefficient(sums, 0, 0); // -6.837877066409345 (to 1e-12; the one coefficient held: logLikAt(sums, [0]))
- */
-export function profileWithFixedCoefficient(sums: WhitenedSums, index: number, value: number): number {
-  return reducedProfile(sums, index, value).logLik;
 }

@@ -1,5 +1,5 @@
 import { allocateSums, whiten, workSize, type WhitenedSums } from '../engine/kalman-filter.js';
-import { logLikAt, profileOut, profileWithFixedCoefficient, type ProfileResult } from '../engine/gls.js';
+import { logLikAt, profileLogLik, profileOut, profileWithFixedCoefficient, type ProfileResult } from '../engine/gls.js';
 import { allocateStateSpace, type StateSpace } from '../engine/state-space.js';
 import type { Lineage } from '../lineage.js';
 import type { EvolutionModel } from '../models/model.js';
@@ -64,9 +64,20 @@ export class LikelihoodEvaluator {
     return sums;
   }
 
+  /**
+   * Hand the filter cache's storage to the next evaluator of the same shape
+   * (a fit calls this when it is done: replicate loops and shift searches
+   * make thousands of short-lived evaluators, whose caches would otherwise be
+   * allocated and grown afresh each time). The evaluator stays usable, with
+   * an empty cache; results never depend on what the cache holds.
+   */
+  release(): void {
+    this.cache.release();
+  }
+
   /** Profile log-likelihood at these process values (location parameters at their GLS estimate). */
   profile(process: ArrayLike<number>): number {
-    return profileOut(this.whiten(process)).logLik;
+    return profileLogLik(this.whiten(process));
   }
 
   /** GLS details at these process values, with coefficients on the trait's own scale. */
@@ -93,6 +104,11 @@ export class LikelihoodEvaluator {
     return logLikAt(this.whiten(process), centred);
   }
 }
+
+/** Storage of released caches by shape (key width : value width), per thread. */
+const spareTables = new Map<string, Array<{ capacity: number; keys: Float64Array<ArrayBuffer>; values: Float64Array<ArrayBuffer>; used: Uint8Array<ArrayBuffer> }>>();
+/** Released tables kept per shape (each at most {@link whitenCacheSize} slots). */
+const sparesKept = 4;
 
 /** Most filter results one evaluator keeps (each is a few dozen numbers); then the cache starts afresh. */
 export const whitenCacheSize = 1 << 14;
@@ -169,7 +185,9 @@ class WhitenCache {
     if (process.length !== this.keyWidth || this.keyWidth === 0) return;
     for (let i = 0; i < this.keyWidth; i++) if (Number.isNaN(process[i])) return;
     if (2 * (this.count + 1) > this.capacity) {
-      if (this.capacity >= whitenCacheSize) this.reset(this.capacity);
+      if (this.capacity === 0 && this.takeSpare()) {
+        // Storage of a released cache of the same shape, emptied.
+      } else if (this.capacity >= whitenCacheSize) this.reset(this.capacity);
       else this.grow();
     }
     const found = this.find(process);
@@ -186,9 +204,41 @@ class WhitenCache {
     for (let j = 0; j < sums.projected.length; j++) values[base + 3 + sums.triangle.length + j] = sums.projected[j];
   }
 
-  private reset(capacity: number): void {
-    this.capacity = capacity;
+  /** Give this cache's storage to {@link spareTables} (at most {@link sparesKept} per shape) and start empty. */
+  release(): void {
+    if (this.capacity === 0) return;
+    const shape = `${this.keyWidth}:${this.valueWidth}`;
+    const spares = spareTables.get(shape) ?? [];
+    if (spares.length < sparesKept) spares.push({ capacity: this.capacity, keys: this.keys, values: this.values, used: this.used });
+    spareTables.set(shape, spares);
+    this.capacity = 0;
     this.count = 0;
+    this.keys = new Float64Array(0);
+    this.values = new Float64Array(0);
+    this.used = new Uint8Array(0);
+  }
+
+  /** Take the storage of a released cache of the same shape, emptied; false when there is none. */
+  private takeSpare(): boolean {
+    const spare = spareTables.get(`${this.keyWidth}:${this.valueWidth}`)?.pop();
+    if (spare === undefined) return false;
+    spare.used.fill(0);
+    this.capacity = spare.capacity;
+    this.count = 0;
+    this.keys = spare.keys;
+    this.values = spare.values;
+    this.used = spare.used;
+    return true;
+  }
+
+  private reset(capacity: number): void {
+    this.count = 0;
+    if (capacity === this.capacity) {
+      // Starting afresh at the same size: only the occupancy marks need clearing (stale keys and values are never read).
+      this.used.fill(0);
+      return;
+    }
+    this.capacity = capacity;
     this.keys = new Float64Array(capacity * this.keyWidth);
     this.values = new Float64Array(capacity * this.valueWidth);
     this.used = new Uint8Array(capacity);
@@ -204,8 +254,8 @@ class WhitenCache {
       const target = -1 - this.find(key);
       this.used[target] = 1;
       this.count += 1;
-      this.keys.set(key, target * keyWidth);
-      this.values.set(values.subarray(slot * valueWidth, (slot + 1) * valueWidth), target * valueWidth);
+      for (let i = 0; i < keyWidth; i++) this.keys[target * keyWidth + i] = key[i];
+      for (let j = 0; j < valueWidth; j++) this.values[target * valueWidth + j] = values[slot * valueWidth + j];
     }
   }
 }

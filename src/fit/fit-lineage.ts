@@ -80,6 +80,7 @@ export function smoothUnderEstimates(model: EvolutionModel, estimates: Readonly<
 export function smoothUnder(model: EvolutionModel, fit: Pick<ModelFit, 'process'>, lineage: Lineage): SmoothedLineage {
   const evaluator = new LikelihoodEvaluator(model, lineage);
   const details = evaluator.details(fit.process);
+  evaluator.release();
   model.fillSpace(lineage, fit.process, evaluator.space);
   const size = lineage.mean.length;
   const width = evaluator.space.width;

@@ -129,6 +129,16 @@ function fitStandardised(model: EvolutionModel, lineage: Lineage, options: FitOp
   // Models with discrete configurations (shift positions): exhaustive loop over them (fit-configurations.ts).
   if (model.configurations) return fitOverConfigurations(model, lineage, options, fitStandardised);
   const evaluator = new LikelihoodEvaluator(model, lineage);
+  try {
+    return fitWithEvaluator(model, lineage, options, evaluator);
+  } finally {
+    evaluator.release();
+  }
+}
+
+/** The body of {@link fitStandardised} for a model without configurations, on its evaluator. */
+function fitWithEvaluator(model: EvolutionModel, lineage: Lineage, options: FitOptions, evaluator: LikelihoodEvaluator): ModelFit {
+  const size = lineage.mean.length;
   const evaluate = (process: number[]): number => evaluator.profile(process);
   const maximum = maximiseProcess(evaluate, model.process, lineage, { points: options.gridPoints, polish: true });
   if (!Number.isFinite(maximum.logLik)) {

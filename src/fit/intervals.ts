@@ -1,11 +1,11 @@
 import { usageError } from '../data/errors.js';
-import { profileOut, reducedProfile } from '../engine/gls.js';
+import { informationLogDet, profileLogLik, reducedProfileSummary } from '../engine/gls.js';
 import type { WhitenedSums } from '../engine/kalman-filter.js';
 import type { Lineage } from '../lineage.js';
 import { axisIndexOf, type EvolutionModel, type ParameterSpec } from '../models/model.js';
 import type { LikelihoodEvaluator } from './evaluator.js';
 import { findRoot } from './optimise.js';
-import { maximiseProcess } from './search.js';
+import { maximiseProcess, type ProcessMaximum } from './search.js';
 
 /**
  * How the 95% intervals of a fit were made:
@@ -65,9 +65,9 @@ export interface IntervalEnds {
  * only error contrasts. Biometrika 61:383-385.
  */
 export function restrictedLogLik(sums: WhitenedSums): number {
-  const result = profileOut(sums);
-  if (!Number.isFinite(result.logLik)) return Number.NEGATIVE_INFINITY;
-  return result.logLik - 0.5 * result.logDetInformation;
+  const logLik = profileLogLik(sums);
+  if (!Number.isFinite(logLik)) return Number.NEGATIVE_INFINITY;
+  return logLik - 0.5 * informationLogDet(sums);
 }
 
 /**
@@ -80,7 +80,7 @@ export function restrictedLogLik(sums: WhitenedSums): number {
  * Patterson & Thompson 1971).
  */
 export function fixedCoefficientLogLik(sums: WhitenedSums, index: number, value: number, adjusted: boolean): number {
-  const result = reducedProfile(sums, index, value);
+  const result = reducedProfileSummary(sums, index, value);
   if (!adjusted || !Number.isFinite(result.logLik)) return result.logLik;
   return result.logLik - 0.5 * result.logDetInformation;
 }
@@ -122,7 +122,7 @@ export function parameterProfile(
   if (axisIndex >= 0) {
     const evaluate = (process: number[]): number => {
       const sums = evaluator.whiten(process);
-      return adjusted ? restrictedLogLik(sums) : profileOut(sums).logLik;
+      return adjusted ? restrictedLogLik(sums) : profileLogLik(sums);
     };
     const best = maximiseProcess(evaluate, model.process, lineage, { points: Math.max(points, 24) });
     const through = model.parameters.find((spec) => spec.name === name)?.searchedAs;
@@ -144,11 +144,11 @@ function locationSupremum(evaluator: LikelihoodEvaluator, name: string, adjusted
   const model = evaluator.model;
   return (process: number[]): number => {
     const sums = evaluator.whiten(process);
-    const result = profileOut(sums);
-    if (!adjusted || !Number.isFinite(result.logLik)) return result.logLik;
+    const logLik = profileLogLik(sums);
+    if (!adjusted || !Number.isFinite(logLik)) return logLik;
     const { index } = model.fixLocation(name, 0, process, evaluator.lineage);
-    const logDet = reducedProfile(sums, index, 0).logDetInformation;
-    return Number.isFinite(logDet) ? result.logLik - 0.5 * logDet : Number.NEGATIVE_INFINITY;
+    const logDet = reducedProfileSummary(sums, index, 0).logDetInformation;
+    return Number.isFinite(logDet) ? logLik - 0.5 * logDet : Number.NEGATIVE_INFINITY;
   };
 }
 
@@ -206,7 +206,7 @@ export function profileFunction(evaluator: LikelihoodEvaluator, name: string, ad
   if (axisIndex >= 0) {
     const evaluate = (process: number[]): number => {
       const sums = evaluator.whiten(process);
-      return adjusted ? restrictedLogLik(sums) : profileOut(sums).logLik;
+      return adjusted ? restrictedLogLik(sums) : profileLogLik(sums);
     };
     const through = model.parameters.find((spec) => spec.name === name)?.searchedAs;
     return (parameterValue: number): number => {
@@ -293,16 +293,19 @@ export function intervalsByProfile(
 ): Record<string, IntervalEnds> {
   const model = evaluator.model;
   const result: Record<string, IntervalEnds> = {};
+  const evaluate = (process: number[]): number => {
+    const sums = evaluator.whiten(process);
+    return request.adjusted ? restrictedLogLik(sums) : profileLogLik(sums);
+  };
+  // The maximum over every process parameter is the same for each of them: searched once.
+  let processBest: ProcessMaximum | null = null;
   for (const name of names) {
     // A bootstrap cut-off can be 0 when the truth sits on a bound; a tiny floor keeps the root search bracketed.
     const drop = Math.max(request.ratioCutoff(name), 1e-6) / 2;
     const axisIndex = axisIndexOf(model, name);
     if (axisIndex >= 0) {
-      const evaluate = (process: number[]): number => {
-        const sums = evaluator.whiten(process);
-        return request.adjusted ? restrictedLogLik(sums) : profileOut(sums).logLik;
-      };
-      const best = maximiseProcess(evaluate, model.process, evaluator.lineage, { points: 24 });
+      processBest ??= maximiseProcess(evaluate, model.process, evaluator.lineage, { points: 24 });
+      const best = processBest;
       const spec = model.parameters.find((candidate) => candidate.name === name);
       result[name] = parameterEnds(spec, evaluator.lineage, processEnds(evaluate, best.process, axisIndex, best.logLik - drop));
       continue;

@@ -54,6 +54,15 @@ const warmHalfWidth = 1.5;
 const gridBasinMargin = 1;
 /** Relative x-tolerance of Brent's method on the ln scale. */
 const brentTolerance = 1e-9;
+/**
+ * Screening of the grid's secondary local maxima: Brent to this relative
+ * x-tolerance first, and the full refinement only when the value reached is
+ * within {@link screenMargin} of the best peak's refined value. Stopping
+ * within 1e-3 (relative, ln scale) of a smooth peak leaves its value short
+ * by about half the curvature times 1e-6, far below the margin.
+ */
+const screenTolerance = 1e-3;
+const screenMargin = 0.05;
 
 /**
  * Maximise a log-likelihood over the process (nonlinear) parameters by a
@@ -141,7 +150,12 @@ export function maximiseProcess(
         for (const k of gridPeaks(values, bestIndex)) {
           const innerHint = level + 1 < depth ? innerBest[k]?.process ?? hint : hint;
           const centre = gridAt(k);
-          const refined = brentMaximize((x) => innerAt(x, innerHint), Math.max(logLower, centre - step), Math.min(logUpper, centre + step), brentTolerance);
+          const left = Math.max(logLower, centre - step);
+          const right = Math.min(logUpper, centre + step);
+          // Another local maximum of the grid is first located coarsely; one that then stays clearly below the
+          // best peak's refined value cannot win and is not refined further.
+          if (k !== bestIndex && brentMaximize((x) => innerAt(x, innerHint), left, right, screenTolerance).value < atValue - screenMargin) continue;
+          const refined = brentMaximize((x) => innerAt(x, innerHint), left, right, brentTolerance);
           if (k === bestIndex ? refined.value >= atValue : refined.value > atValue) {
             at = refined.at;
             atValue = refined.value;

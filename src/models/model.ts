@@ -329,6 +329,17 @@ export function sliceLineage(lineage: Lineage, start: number, end: number): Line
  * and the average sampling variance (never 0 unless the data are constant).
  */
 export function varianceScale(lineage: Lineage): number {
+  // The searches ask for it on every range lookup (an O(N) pass each): kept per pair of arrays, which nothing writes to after a lineage is built.
+  const kept = varianceScales.get(lineage.mean);
+  if (kept !== undefined && kept.samplingVariance === lineage.samplingVariance) return kept.scale;
+  const scale = computeVarianceScale(lineage);
+  varianceScales.set(lineage.mean, { samplingVariance: lineage.samplingVariance, scale });
+  return scale;
+}
+
+const varianceScales = new WeakMap<Float64Array, { samplingVariance: Float64Array; scale: number }>();
+
+function computeVarianceScale(lineage: Lineage): number {
   const n = lineage.mean.length;
   let mean = 0;
   for (let i = 0; i < n; i++) mean += lineage.mean[i];
@@ -356,6 +367,17 @@ export function stasisVarianceRange(lineage: Lineage): readonly [number, number]
 
 /** Total time span t_m and the shortest interval between horizons. */
 export function timeSpan(lineage: Lineage): { span: number; shortest: number } {
+  // Kept per time array, like varianceScale.
+  const kept = timeSpans.get(lineage.time);
+  if (kept !== undefined) return { span: kept.span, shortest: kept.shortest };
+  const found = computeTimeSpan(lineage);
+  timeSpans.set(lineage.time, found);
+  return { span: found.span, shortest: found.shortest };
+}
+
+const timeSpans = new WeakMap<Float64Array, { span: number; shortest: number }>();
+
+function computeTimeSpan(lineage: Lineage): { span: number; shortest: number } {
   const time = lineage.time;
   let shortest = Number.POSITIVE_INFINITY;
   for (let i = 1; i < time.length; i++) shortest = Math.min(shortest, time[i] - time[i - 1]);

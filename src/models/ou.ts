@@ -23,6 +23,44 @@ export function fillAttractionDynamics(lineage: Lineage, alpha: number, stepVari
   }
 }
 
+/** The alpha-dependent factors of ou's state space over one time axis. */
+interface AlphaFactors {
+  alpha: number;
+  /** exp(-alpha t_i) and (1 - exp(-alpha t_i)) / alpha: the design. */
+  readonly decay: Float64Array;
+  readonly relaxed: Float64Array;
+  /** exp(-alpha dt_i) and (1 - exp(-2 alpha dt_i)) / (2 alpha): transition, process variance per unit step variance. */
+  readonly transition: Float64Array;
+  readonly varianceTime: Float64Array;
+}
+
+/**
+ * The factors at the last alpha asked for, per time axis. The searches hold
+ * alpha fixed while they vary step_variance (the inner axis), so most fills
+ * reuse the exponentials of the previous one: the same numbers, computed once.
+ */
+const factorsByTime = new WeakMap<Float64Array, AlphaFactors>();
+
+function alphaFactors(time: Float64Array, alpha: number): AlphaFactors {
+  let factors = factorsByTime.get(time);
+  if (factors === undefined || factors.decay.length !== time.length) {
+    const size = time.length;
+    factors = { alpha: Number.NaN, decay: new Float64Array(size), relaxed: new Float64Array(size), transition: new Float64Array(size), varianceTime: new Float64Array(size) };
+    factorsByTime.set(time, factors);
+  } else if (factors.alpha === alpha) return factors;
+  for (let i = 0; i < time.length; i++) {
+    factors.decay[i] = Math.exp(-alpha * time[i]);
+    factors.relaxed[i] = relaxedTime(alpha, time[i]);
+    if (i > 0) {
+      const interval = time[i] - time[i - 1];
+      factors.transition[i] = Math.exp(-alpha * interval);
+      factors.varianceTime[i] = relaxedTime(2 * alpha, interval);
+    }
+  }
+  factors.alpha = alpha;
+  return factors;
+}
+
 /** Ranges of alpha searched: alpha * span = 1e-5 (the random-walk limit) to alpha * shortest interval = 40 (the stasis-like limit). */
 export function alphaRange(lineage: Lineage): readonly [number, number] {
   const { span, shortest } = timeSpan(lineage);
@@ -90,12 +128,17 @@ export const ornsteinUhlenbeck: EvolutionModel = {
   width: () => 2,
   parameterCount: () => 4,
   fillSpace(lineage, process, space) {
-    const alpha = process[0];
-    const time = lineage.time;
-    fillAttractionDynamics(lineage, alpha, process[1], space);
+    const stepVariance = process[1];
+    const factors = alphaFactors(lineage.time, process[0]);
+    space.transition[0] = 0;
+    space.processVariance[0] = 0;
     for (let i = 0; i < space.size; i++) {
-      space.design[2 * i] = Math.exp(-alpha * time[i]);
-      space.design[2 * i + 1] = relaxedTime(alpha, time[i]);
+      space.design[2 * i] = factors.decay[i];
+      space.design[2 * i + 1] = factors.relaxed[i];
+      if (i > 0) {
+        space.transition[i] = factors.transition[i];
+        space.processVariance[i] = stepVariance * factors.varianceTime[i];
+      }
     }
   },
   // At alpha = 0 the optimum is not finite (it ran away with (optimum - a) alpha -> drift); it is reported as null.

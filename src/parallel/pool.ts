@@ -94,7 +94,6 @@ export async function runTasks<T = Task, R = unknown>(
   const workers: Worker[] = [];
   try {
     await new Promise<void>((resolve, reject) => {
-      let finished = 0;
       let failed = false;
       const fail = (error: Error): void => {
         if (failed) return;
@@ -102,11 +101,7 @@ export async function runTasks<T = Task, R = unknown>(
         reject(error);
       };
       const sendNext = (worker: Worker): void => {
-        if (nextChunk >= chunkCount) {
-          finished += 1;
-          if (finished === workerCount) resolve();
-          return;
-        }
+        if (nextChunk >= chunkCount) return;
         const start = nextChunk * chunkSize;
         nextChunk += 1;
         const request: WorkerRequest = { start, tasks: tasks.slice(start, start + chunkSize) };
@@ -124,12 +119,16 @@ export async function runTasks<T = Task, R = unknown>(
           for (let j = 0; j < reply.results.length; j++) results[reply.start + j] = reply.results[j] as R;
           done += reply.results.length;
           options.onProgress?.(done, total);
-          sendNext(worker);
+          if (done === total) resolve();
+          else sendNext(worker);
         });
         worker.on('error', (error) => fail(error));
         worker.on('exit', (code) => {
           if (code !== 0 && !failed && done < total) fail(new Error(`worker thread stopped with exit code ${code}`));
         });
+        // Two chunks in flight per worker: the next one is already queued when a worker posts its results, so it
+        // never waits for the main thread to read them and answer.
+        sendNext(worker);
         sendNext(worker);
       }
     });

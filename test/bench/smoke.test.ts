@@ -27,6 +27,11 @@ describe('npm run bench -- --smoke', () => {
         // (closed-form identity: both are the exact Gaussian density; 1e-8 is rounding headroom).
         expect(row.differenceFromDense).toBeLessThan(1e-8);
       }
+      // Issue 14's rows: every piece of work measured, in units of the bare filter timed in the same run.
+      expect(results.evaluationCost.unitNanoseconds).toBeGreaterThan(0);
+      expect(results.evaluationCost.rows).toHaveLength(6);
+      for (const row of results.evaluationCost.rows) expect(row.evaluationEquivalents).toBeGreaterThan(1);
+      expect(printed).toContain('evaluation-equivalents');
       expect(results.fits.map((row: { horizons: number }) => row.horizons)).toEqual([100, 1000, 100]);
       for (const row of results.fits) expect(row.evaluations).toBeGreaterThan(0);
       expect(results.batch.rows).toHaveLength(2);
