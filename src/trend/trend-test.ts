@@ -1,5 +1,7 @@
 import type { LineageFit, RankedFit } from '../fit/fit-lineage.js';
+import { LikelihoodEvaluator } from '../fit/evaluator.js';
 import { fitModel } from '../fit/fit-model.js';
+import { restrictedEstimates } from '../fit/intervals.js';
 import { aicc, lowestCriterion } from '../fit/model-choice.js';
 import type { Lineage } from '../lineage.js';
 import type { EvolutionModel } from '../models/model.js';
@@ -211,7 +213,8 @@ export function trendTest(fit: LineageFit, options: TrendTestOptions = {}): Tren
   let replicates = 0;
   let rateBest: (string | null)[] = [];
   for (const generator of generators) {
-    const parameters = { ...byId.get(generator)!.estimates };
+    // Drawn from the restricted (REML) fit: the ML step variance of a short walk is biased low, often to 0, which made the bootstrap too liberal.
+    const parameters = restrictedEstimates(new LikelihoodEvaluator(modelById(generator), fit.lineage));
     const outcomes: ReplicateOutcome[] = [];
     const draw = (index: number): ReplicateOutcome => {
       if (outcomes[index] === undefined) outcomes[index] = replicate(design, generator, parameters, models, generator === bestNull.id && index < rateMinimum ? compared : null, replicateSeed(seed, streamOf[generator], index));
