@@ -19,7 +19,7 @@ import type { FigureCommandOptions } from './render-command.js';
 import { toolVersion } from './version.js';
 import { trendTests } from '../trend/run-trend-tests.js';
 import type { TrendTest, TrendTestOptions } from '../trend/trend-test.js';
-import { trendText, weakOuWin } from '../render/trend-text.js';
+import { summariseTrends, trendSummaryText, trendText, weakOuWin } from '../render/trend-text.js';
 import { parseSeed } from '../simulate/seeds.js';
 import { checkOutputFile, inputPaths, OutputSet, prepareOutputFolder, releaseOutputLocks } from './write-output.js';
 
@@ -242,6 +242,8 @@ async function fitAndWrite(file: string, options: FitCommandOptions): Promise<vo
   }
   const compilation = options.summary ? await import('./compilation-output.js') : null;
   const summary = compilation ? compilation.addCompilation(run) : null;
+  const trendSummary = summary && run.trends ? summariseTrends(run.fits, run.trends) : null;
+  if (trendSummary) (run.document.compilation as Record<string, unknown>).trend_tests = trendSummary;
   // Figures load their module (and, when drawing, the chart stack) only with --out.
   const figures = options.out && options.figures !== false ? await import('./render-command.js') : null;
   const lineageDocuments = (run.document as { lineages: unknown[] }).lineages;
@@ -256,7 +258,7 @@ async function fitAndWrite(file: string, options: FitCommandOptions): Promise<vo
     // The whole set is written first and put in place at the end: a full disk leaves the previous run's set whole.
     const set = new OutputSet(folder, options.out);
     try {
-      set.add('models.csv', modelsCsv(run.fits));
+      set.add('models.csv', modelsCsv(run.fits, run.trends));
       set.add('fit.json', JSON.stringify(run.document, null, 2) + '\n');
       if (compilation && summary) await compilation.writeCompilationFigure(summary, set);
       if (figures && figurePlan) figures.writeFigureFiles(lineageDocuments, figurePlan, set, { quiet: options.quiet });
@@ -270,7 +272,7 @@ async function fitAndWrite(file: string, options: FitCommandOptions): Promise<vo
     process.stdout.write(JSON.stringify(run.document, null, 2) + '\n');
   } else if (!options.quiet) {
     const tables = run.fits.map((fit, j) => [lineageTable(fit), ...extrasText(fit, run.extras?.[j]), ...(run.trends ? trendText(fit, run.trends[j]) : [])].join('\n'));
-    process.stdout.write(modelSetLine(run.selection) + (compilation && summary ? compilation.compilationText(summary) : tables.join('\n\n')) + '\n');
+    process.stdout.write(modelSetLine(run.selection) + (compilation && summary ? compilation.compilationText(summary) + (trendSummary ? '\n\n' + trendSummaryText(trendSummary) : '') : tables.join('\n\n')) + '\n');
     if (options.out) process.stdout.write(`\nWrote models.csv${summary ? ', compilation.png' : ''} and fit.json${figurePlan ? ` and ${figurePlan.names.length} figure files` : ''} to ${options.out}\n`);
   }
   if (ageText && !options.json && !options.quiet) process.stdout.write('\n' + ageText + '\n');

@@ -55,3 +55,41 @@ export function trendText(fit: LineageFit, test: TrendTest): string[] {
   if (test.supported) lines.push(`  ${trendCaution}`);
   return lines;
 }
+
+/** The trend verdicts of a batch in counts (fit --summary: the JSON `compilation.trend_tests`). */
+export interface TrendSummary {
+  readonly level: number;
+  readonly tested: number;
+  readonly supported: number;
+  readonly increase: number;
+  readonly decrease: number;
+  /** Lineages whose AICc ranks the directional walk first. */
+  readonly aicc_directional_first: number;
+  /** Of those, how many the test does not support. */
+  readonly aicc_first_not_supported: number;
+}
+
+/** Count the verdicts of a batch. */
+export function summariseTrends(fits: readonly LineageFit[], trends: readonly TrendTest[]): TrendSummary {
+  const tested = trends.filter((test) => test.p_value !== null);
+  const aiccFirst = fits.map((fit, j) => ({ fit, test: trends[j] })).filter(({ fit }) => fit.best === 'directional-walk');
+  return {
+    level: trends[0]?.level ?? 0.05,
+    tested: tested.length,
+    supported: tested.filter((test) => test.supported).length,
+    increase: tested.filter((test) => test.direction === 'increase').length,
+    decrease: tested.filter((test) => test.direction === 'decrease').length,
+    aicc_directional_first: aiccFirst.length,
+    aicc_first_not_supported: aiccFirst.filter(({ test }) => test.p_value !== null && !test.supported).length,
+  };
+}
+
+/** The summary's trend lines (fit --summary). */
+export function trendSummaryText(summary: TrendSummary): string {
+  const levelText = `${Number((summary.level * 100).toPrecision(3))}%`;
+  return [
+    `Trend test (level ${levelText}): a directional trend is supported in ${summary.supported} of ${summary.tested} lineages tested (${summary.increase} increase, ${summary.decrease} decrease).`,
+    `AICc ranks the directional walk first in ${summary.aicc_directional_first}; the test does not support ${summary.aicc_first_not_supported} of those.`,
+    trendCaution,
+  ].join('\n');
+}
