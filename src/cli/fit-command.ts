@@ -101,11 +101,13 @@ export async function runFitStreamed(file: string, options: FitCommandOptions): 
   // Shift searches grow with the square of the horizons: refuse what cannot be held, announce a long run with its estimate.
   const { checkShiftSearchCost } = await import('./run-cost.js');
   checkShiftSearchCost(lineages, models, { minimumSegment: extensionSettings(options).minimumSegment, threads: options.threads, warnings });
+  // Checked before fitting: a bad --trend-level or --seed should not cost a fit.
+  const trendOptions = options.trendTest === false ? null : trendOptionsOf(options, models);
   const fits = await fitLineages(lineages, models, fitOptionsOf(options, lineages.length), {
     threads: options.threads,
     onProgress: fittingProgress(lineages.length, options),
   });
-  const trends = options.trendTest === false ? null : await trendTests(fits, trendOptionsOf(options, models), { threads: options.threads });
+  const trends = trendOptions === null ? null : await trendTests(fits, trendOptions, { threads: options.threads });
   const run = fitLoaded(input, lineages, options, selection, warnings, fits, trends);
   if (age) {
     // The age model is part of the result (fit, and the report made from the same run): its file, its options, its ties and rates.
