@@ -1,3 +1,4 @@
+import { availableParallelism } from 'node:os';
 import { isMainThread } from 'node:worker_threads';
 import { fitLineage } from '../src/fit/fit-lineage.js';
 import { classicModels, findModel } from '../src/models/registry.js';
@@ -7,6 +8,7 @@ import { createRandom } from '../src/simulate/random.js';
 import { replicateSeed } from '../src/simulate/seeds.js';
 import { simulateMeans, withMeans } from '../src/simulate/simulate-lineage.js';
 import { chiSquareSurvival } from '../src/statistics/chi-square.js';
+import { trendTests } from '../src/trend/run-trend-tests.js';
 import { trendTest } from '../src/trend/trend-test.js';
 
 /** The simulated truths of the calibration (issue 15). */
@@ -73,7 +75,8 @@ export function trendCalibrationLineage(task: TrendCalibrationTask): TrendCalibr
   const lineage = withMeans(shape, simulateMeans(findModel(model)!, shape, parameters, createRandom(lineageSeed ^ 0x2545f491)));
   const started = performance.now();
   const fit = fitLineage(lineage, classicModels, { intervals: false });
-  const verdict = trendTest(fit, { seed: task.index + 1 });
+  // The AICc rates are not read here; leaving them out keeps the calibration to the test's own cost.
+  const verdict = trendTest(fit, { seed: task.index + 1, rateReplicates: 0 });
   const byId = new Map(fit.models.map((entry) => [entry.id, entry]));
   const ratio = 2 * ((byId.get('directional-walk')?.logLik ?? Number.NaN) - (byId.get('random-walk')?.logLik ?? Number.NaN));
   return {
@@ -153,11 +156,57 @@ export async function runTrendCalibration(options: TrendCalibrationOptions = {})
   return rows;
 }
 
-// Run alone: node dist/bench/trend-calibration.js [lineages] [sizes...] [--scenarios a,b]
+/** One row of the verdict's cost: seconds for one lineage (defaults: with the AICc rates), or for a batch. */
+export interface TrendCostRow {
+  readonly case: string;
+  readonly horizons: number;
+  readonly lineages: number;
+  readonly threads: number;
+  readonly seconds: number;
+  readonly replicates: number;
+}
+
+/**
+ * What the verdict costs as `fit` runs it (default options, AICc rates
+ * included): one unbiased walk and one clear trend at 14, 25 and 100
+ * horizons in this thread, then a batch of 200 lineages of 20 horizons
+ * (half walks, half trends) on every core.
+ */
+export async function measureTrendCost(print: (line: string) => void = (line) => console.log(line)): Promise<TrendCostRow[]> {
+  const rows: TrendCostRow[] = [];
+  const lineageOf = (scenario: TrendScenario, horizons: number, index: number) => {
+    const lineageSeed = replicateSeed(77, horizons, trendScenarios.indexOf(scenario), index);
+    const design = trendDesign(horizons, lineageSeed);
+    const { model, parameters } = truth(scenario, design);
+    const shape = designLineage(design);
+    return fitLineage(withMeans(shape, simulateMeans(findModel(model)!, shape, parameters, createRandom(lineageSeed ^ 0x2545f491))), classicModels, { intervals: false });
+  };
+  print('Trend verdict cost (default options, AICc rates included)');
+  for (const horizons of [14, 25, 100]) {
+    for (const scenario of ['random-walk', 'clear-trend'] as const) {
+      const fit = lineageOf(scenario, horizons, 0);
+      const started = performance.now();
+      const result = trendTest(fit, { seed: 1 });
+      const row = { case: scenario, horizons, lineages: 1, threads: 1, seconds: (performance.now() - started) / 1000, replicates: result.replicates };
+      rows.push(row);
+      print(`  ${scenario.padEnd(12)} ${String(horizons).padStart(4)} horizons: ${row.seconds.toFixed(2)} s (${row.replicates} replicates)`);
+    }
+  }
+  const batch = Array.from({ length: 200 }, (_, index) => lineageOf(index % 2 === 0 ? 'random-walk' : 'clear-trend', 20, index));
+  const started = performance.now();
+  const results = await trendTests(batch, { seed: 1 });
+  const row = { case: 'batch (half walks, half trends)', horizons: 20, lineages: 200, threads: availableParallelism(), seconds: (performance.now() - started) / 1000, replicates: results.reduce((sum, result) => sum + result.replicates, 0) };
+  rows.push(row);
+  print(`  200 lineages of 20 horizons on ${row.threads} threads: ${row.seconds.toFixed(1)} s`);
+  return rows;
+}
+
+// Run alone: node dist/bench/trend-calibration.js [lineages] [sizes...] [--scenarios a,b], or --cost
 if (isMainThread && process.argv[1] && import.meta.url.endsWith(process.argv[1].replace(/\\/g, '/'))) {
   const args = process.argv.slice(2);
   const scenarioAt = args.indexOf('--scenarios');
   const scenarios = scenarioAt >= 0 ? (args.splice(scenarioAt, 2)[1].split(',') as TrendScenario[]) : undefined;
-  const [count, ...sizes] = args.map(Number);
-  await runTrendCalibration({ lineages: count || undefined, sizes: sizes.length > 0 ? sizes : undefined, scenarios });
+  const [count, ...sizes] = args.filter((arg) => arg !== '--cost').map(Number);
+  if (args.includes('--cost')) await measureTrendCost();
+  else await runTrendCalibration({ lineages: count || undefined, sizes: sizes.length > 0 ? sizes : undefined, scenarios });
 }

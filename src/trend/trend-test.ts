@@ -18,7 +18,7 @@ export const nonDirectionalModels: readonly string[] = ['random-walk', 'stasis',
 export const directionalModel = 'directional-walk';
 
 /** The method, in the words every output uses. */
-export const trendTestMethod = 'parametric bootstrap of the likelihood ratio, directional walk against the best non-directional model, sequential Monte Carlo p-value';
+export const trendTestMethod = 'null-variance Wald statistic of drift (step variance from the random walk\'s REML fit), parametric bootstrap from the REML-fitted non-directional models, sequential Monte Carlo p-value';
 
 /** Options of {@link trendTest}; every field has a default. */
 export interface TrendTestOptions {
@@ -32,6 +32,13 @@ export interface TrendTestOptions {
   readonly maxReplicates?: number;
   /** Fewest replicates from the fitted null, for `aicc_false_trend_rate` (default 99). */
   readonly rateReplicates?: number;
+  /**
+   * Factors applied to the random walk's REML step variance, one bootstrap
+   * each; the p-value is the largest (default [1, 3]).
+   */
+  readonly varianceFactors?: readonly number[];
+  /** 'score' (default): {@link nullVarianceWald}; 'ratio': the ML likelihood ratio {@link trendStatistic} (kept for the calibration benchmark, where it is too liberal). */
+  readonly statistic?: 'score' | 'ratio';
   /** Model ids the user's AICc table compares (default the classic five); the false-trend rate uses those of the classic five among them. */
   readonly models?: readonly string[];
 }
@@ -39,7 +46,7 @@ export interface TrendTestOptions {
 /** The trend verdict of one lineage: plain data, written as fit.json's `trend_test`. */
 export interface TrendTest {
   readonly method: string;
-  /** Observed T = 2 (logL_directional - max logL over the non-directional models); may be negative. */
+  /** Observed statistic: the null-variance Wald statistic W0 ({@link nullVarianceWald}), or with `statistic: 'ratio'` the likelihood ratio {@link trendStatistic}. */
   readonly statistic: number | null;
   readonly p_value: number | null;
   readonly level: number;
@@ -89,6 +96,29 @@ export function trendStatistic(logLik: Readonly<Record<string, number | null | u
   return Number.isFinite(reduced) ? 2 * (full - reduced) : null;
 }
 
+/**
+ * The null-variance Wald (score-type) statistic of drift: the step
+ * variance estimated under the null, by the random walk's restricted
+ * likelihood (REML), held fixed; the drift by GLS at that variance and
+ * W0 = drift² / Var(drift). The variance cannot collapse to 0 under the
+ * alternative, the cause of the heavy null tails of the ML ratio and of
+ * the directional walk's own REML Wald statistic on short walks.
+ */
+export function nullVarianceWald(lineage: Lineage): { statistic: number; drift: number } | null {
+  const walk = modelById('random-walk');
+  const stepVariance = restrictedEstimates(new LikelihoodEvaluator(walk, lineage)).step_variance;
+  const model = modelById(directionalModel);
+  const evaluator = new LikelihoodEvaluator(model, lineage);
+  const process = model.processFrom({ step_variance: stepVariance }, lineage);
+  const details = evaluator.details(process);
+  const { index } = model.fixLocation('drift', 0, process, lineage);
+  const width = details.coefficients.length;
+  const variance = details.coefficientCovariance[index * width + index];
+  const drift = details.coefficients[index];
+  if (!Number.isFinite(details.logLik) || !(variance > 0) || !Number.isFinite(drift)) return null;
+  return { statistic: (drift * drift) / variance, drift };
+}
+
 function modelById(id: string): EvolutionModel {
   const model = findModel(id);
   if (!model) throw new Error(`unknown model "${id}"`);
@@ -101,17 +131,19 @@ function modelById(id: string): EvolutionModel {
  * other models of the user's table (ou on a 16-point grid, for speed: only
  * its AICc rank is used) and return the AICc winner among `compared`.
  */
-function replicate(design: Lineage, generator: string, parameters: Record<string, number>, models: readonly EvolutionModel[], compared: readonly string[] | null, seed: number): ReplicateOutcome {
+function replicate(design: Lineage, generator: string, parameters: Record<string, number>, models: readonly EvolutionModel[], compared: readonly string[] | null, seed: number, kind: 'score' | 'ratio'): ReplicateOutcome {
   const random = createRandom(seed);
   const lineage = withMeans(design, simulateMeans(modelById(generator), design, parameters, random));
   const logLik: Record<string, number | null> = {};
   const size = lineage.mean.length;
   const criteria: (number | null)[] = [];
-  for (const model of models) {
-    const fit = fitModel(model, lineage, { intervals: false });
-    logLik[model.id] = fit.converged && Number.isFinite(fit.logLik) ? fit.logLik : null;
+  if (kind === 'ratio' || compared !== null) {
+    for (const model of models) {
+      const fit = fitModel(model, lineage, { intervals: false });
+      logLik[model.id] = fit.converged && Number.isFinite(fit.logLik) ? fit.logLik : null;
+    }
   }
-  const statistic = trendStatistic(logLik);
+  const statistic = kind === 'ratio' ? trendStatistic(logLik) : (nullVarianceWald(lineage)?.statistic ?? null);
   if (compared === null) return { statistic, best: null };
   for (const id of compared) {
     if (!(id in logLik)) {
@@ -123,6 +155,16 @@ function replicate(design: Lineage, generator: string, parameters: Record<string
   }
   const lowest = lowestCriterion(criteria);
   return { statistic, best: lowest === -1 ? null : compared[lowest] };
+}
+
+/**
+ * The parameters a null generator draws from: its restricted (REML) fit
+ * (Patterson & Thompson 1971). The ML step variance of a short walk is
+ * biased low, often to 0, and the statistic's null distribution grows
+ * with the step variance, so a bootstrap from the ML fit rejects too often.
+ */
+function generatorParameters(generator: string, lineage: Lineage): Record<string, number> {
+  return restrictedEstimates(new LikelihoodEvaluator(modelById(generator), lineage));
 }
 
 /** Stream number of each generator in the replicate seeds (fixed, so a seed means the same draws in every version of the model list). */
@@ -158,17 +200,21 @@ export function sequentialPValue(draw: (index: number) => number | null, observe
 /**
  * The trend verdict of one fitted lineage: is there directional change?
  *
- * Statistic: T = 2 (logL_directional-walk - max logL over random-walk,
- * stasis and strict-stasis) on the data. Null distribution: parametric
- * bootstrap (Davison & Hinkley 1997, ch. 4) from the fitted random walk and
- * from the best non-directional model by AICc when that is another one
- * (replicates on the lineage's own times and sampling variances, every
- * model refitted); the reported p-value is the larger of the two, so the
- * test keeps its level whichever of the non-directional models is true.
- * Each p-value is the sequential one of Besag & Clifford (1991), so clear
- * cases stop early. `aicc_false_trend_rate` is the share of replicates
- * from the best non-directional model in which AICc alone ranks the
- * directional walk first (at least `rateReplicates` of them are drawn).
+ * Statistic: W0 = drift² / Var(drift) by GLS under the directional walk with
+ * the step variance held at the random walk's REML estimate
+ * ({@link nullVarianceWald}); large |drift| in either direction counts.
+ * Null distribution: parametric bootstrap (Davison & Hinkley 1997, ch. 4)
+ * on the lineage's own times and sampling variances, from the REML fit of
+ * the random walk at its step variance and at `varianceFactors` times it,
+ * and from the best non-directional model by AICc (random walk, stasis,
+ * strict stasis) when that is another one; the reported p-value is the
+ * largest, so the test keeps its level whichever of them is true and when
+ * the step variance is underestimated (W0's null distribution grows with
+ * the step variance; measured in bench/trend-calibration.ts). Each p-value
+ * is the sequential one of Besag & Clifford (1991), so clear cases stop
+ * early. `aicc_false_trend_rate` is the share of replicates from the best
+ * non-directional model in which AICc alone ranks the directional walk
+ * first among the user's models (at least `rateReplicates` drawn).
  *
  * Pure: no files, no printing; the same seed gives the same result on any
  * thread. Returns a verdict with `note` set (and no p-value) when the
@@ -177,7 +223,8 @@ export function sequentialPValue(draw: (index: number) => number | null, observe
  *
  * Besag, J. & Clifford, P. (1991). Sequential Monte Carlo p-values.
  * Biometrika 78:301-304. Davison, A. C. & Hinkley, D. V. (1997). Bootstrap
- * Methods and their Application. Cambridge University Press.
+ * Methods and their Application. Cambridge University Press. Patterson,
+ * H. D. & Thompson, R. (1971). Biometrika 58:545-554 (REML).
  *
  * @example
  * trendTest(fitLineage(lineage, classicModels, { intervals: false }), { seed: 1 }).p_value; // e.g. 0.37
@@ -200,10 +247,20 @@ export function trendTest(fit: LineageFit, options: TrendTestOptions = {}): Tren
   if (nulls.length === 0) return empty('no trend test: no non-directional model was fitted');
   const logLik: Record<string, number> = {};
   for (const model of [full, ...nulls]) logLik[model.id] = model.logLik;
-  const statistic = trendStatistic(logLik)!;
+  const kind = options.statistic ?? 'score';
+  const wald = kind === 'score' ? nullVarianceWald(fit.lineage) : null;
+  if (kind === 'score' && wald === null) return empty('no trend test: the drift could not be estimated at the random walk\'s restricted step variance (singular covariance?)');
+  const statistic = kind === 'score' ? wald!.statistic : trendStatistic(logLik)!;
   const criteria = nulls.map((model) => model.aicc);
   const bestNull = lowestCriterion(criteria) === -1 ? nulls[0] : nulls[lowestCriterion(criteria)];
-  const generators = [...new Set([...(nulls.some((model) => model.id === 'random-walk') ? ['random-walk'] : []), bestNull.id])];
+  // The random walk is drawn at its REML step variance and at `varianceFactors` times it; the best non-directional model at its REML fit.
+  const factors = options.varianceFactors ?? [1, 3];
+  const generators: { key: string; model: string; factor: number; stream: number }[] = [];
+  if (nulls.some((model) => model.id === 'random-walk')) {
+    factors.forEach((factor, k) => generators.push({ key: factor === 1 ? 'random-walk' : `random-walk (step variance × ${Number(factor.toPrecision(3))})`, model: 'random-walk', factor, stream: streamOf['random-walk'] + 10 * k }));
+  }
+  if (bestNull.id !== 'random-walk') generators.push({ key: bestNull.id, model: bestNull.id, factor: 1, stream: streamOf[bestNull.id] });
+  const rateKey = bestNull.id;
   // Replicates fit the test's models, plus ou when the user's table compares it (for the rates).
   const testIds = [directionalModel, ...nulls.map((model) => model.id)];
   const compared = ['strict-stasis', 'stasis', 'random-walk', 'directional-walk', 'ou'].filter((id) => userModels.includes(id) && (id === 'ou' ? byId.get('ou')?.aicc !== null && byId.get('ou') !== undefined : testIds.includes(id)));
@@ -213,16 +270,17 @@ export function trendTest(fit: LineageFit, options: TrendTestOptions = {}): Tren
   let replicates = 0;
   let rateBest: (string | null)[] = [];
   for (const generator of generators) {
-    // Drawn from the restricted (REML) fit: the ML step variance of a short walk is biased low, often to 0, which made the bootstrap too liberal.
-    const parameters = restrictedEstimates(new LikelihoodEvaluator(modelById(generator), fit.lineage));
+    const parameters = generatorParameters(generator.model, fit.lineage);
+    if (generator.factor !== 1) parameters.step_variance *= generator.factor;
+    const forRates = generator.key === rateKey;
     const outcomes: ReplicateOutcome[] = [];
     const draw = (index: number): ReplicateOutcome => {
-      if (outcomes[index] === undefined) outcomes[index] = replicate(design, generator, parameters, models, generator === bestNull.id && index < rateMinimum ? compared : null, replicateSeed(seed, streamOf[generator], index));
+      if (outcomes[index] === undefined) outcomes[index] = replicate(design, generator.model, parameters, models, forRates && index < rateMinimum ? compared : null, replicateSeed(seed, generator.stream, index), kind);
       return outcomes[index];
     };
     const result = sequentialPValue((index) => draw(index).statistic, statistic, exceedances, most);
-    pByNull[generator] = result.p;
-    if (generator === bestNull.id) {
+    pByNull[generator.key] = result.p;
+    if (forRates) {
       for (let index = outcomes.length; index < rateMinimum; index++) draw(index);
       rateBest = outcomes.map((outcome) => outcome.best);
     }
@@ -232,7 +290,7 @@ export function trendTest(fit: LineageFit, options: TrendTestOptions = {}): Tren
   const counted = rateBest.filter((best) => best !== null);
   const share = (id: string): number | null => (counted.length === 0 ? null : counted.filter((best) => best === id).length / counted.length);
   const supported = p < level;
-  const drift = full.estimates.drift;
+  const drift = wald ? wald.drift : full.estimates.drift;
   return {
     method: trendTestMethod,
     statistic,
