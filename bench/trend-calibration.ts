@@ -8,6 +8,8 @@ import { createRandom } from '../src/simulate/random.js';
 import { replicateSeed } from '../src/simulate/seeds.js';
 import { simulateMeans, withMeans } from '../src/simulate/simulate-lineage.js';
 import { chiSquareSurvival } from '../src/statistics/chi-square.js';
+import { bootstrapTests } from '../src/simulate/bootstrap-test.js';
+import { poolRunner } from '../src/simulate/run-replicates.js';
 import { trendTests } from '../src/trend/run-trend-tests.js';
 import { trendTest } from '../src/trend/trend-test.js';
 
@@ -21,6 +23,8 @@ export interface TrendCalibrationTask {
   readonly horizons: number;
   readonly seed: number;
   readonly index: number;
+  /** Also run the `bootstrap` command's nested likelihood-ratio test (199 replicates; slow). */
+  readonly bootstrapLrt?: boolean;
 }
 
 /** What each rule decided on one lineage. */
@@ -33,6 +37,8 @@ export interface TrendCalibrationResult {
   readonly chiSquare: boolean;
   readonly replicates: number;
   readonly milliseconds: number;
+  /** The `bootstrap` command's nested test (directional vs random walk, 199 replicates from the ML random walk) rejects at 5%; null when not run. */
+  readonly bootstrapLrt: boolean | null;
 }
 
 /**
@@ -67,7 +73,7 @@ function truth(scenario: TrendScenario, design: Design): { model: string; parame
 }
 
 /** Simulate one lineage, fit the classic five, and apply the three rules (run on a worker). */
-export function trendCalibrationLineage(task: TrendCalibrationTask): TrendCalibrationResult {
+export async function trendCalibrationLineage(task: TrendCalibrationTask): Promise<TrendCalibrationResult> {
   const lineageSeed = replicateSeed(task.seed, task.horizons, trendScenarios.indexOf(task.scenario), task.index);
   const design = trendDesign(task.horizons, lineageSeed);
   const { model, parameters } = truth(task.scenario, design);
@@ -85,7 +91,14 @@ export function trendCalibrationLineage(task: TrendCalibrationTask): TrendCalibr
     chiSquare: Number.isFinite(ratio) && chiSquareSurvival(Math.max(0, ratio), 1) < 0.05,
     replicates: verdict.replicates,
     milliseconds: performance.now() - started,
+    bootstrapLrt: task.bootstrapLrt ? await bootstrapRejects(fit, task.index + 1) : null,
   };
+}
+
+/** The `bootstrap` command's nested test on one fit (src/simulate/bootstrap-test.ts), in this thread. */
+async function bootstrapRejects(fit: ReturnType<typeof fitLineage>, seed: number): Promise<boolean | null> {
+  const report = await bootstrapTests(fit, 199, seed, poolRunner({ threads: 1 }), undefined, { nonNested: false });
+  return report.nested === null ? null : report.nested.p_bootstrap < 0.05;
 }
 
 /** Options of {@link runTrendCalibration}. */
@@ -98,6 +111,8 @@ export interface TrendCalibrationOptions {
   readonly seed?: number;
   readonly threads?: number;
   readonly print?: (line: string) => void;
+  /** Also run the `bootstrap` command's likelihood-ratio test on each lineage (slow: 199 replicates, two fits each). */
+  readonly bootstrapLrt?: boolean;
 }
 
 /** One row of the calibration table: rejection rates with binomial standard errors. */
@@ -108,6 +123,8 @@ export interface TrendCalibrationRow {
   readonly verdict: number;
   readonly aicc: number;
   readonly chi_square: number;
+  /** The `bootstrap` command's LRT (null when not run). */
+  readonly bootstrap_lrt: number | null;
   /** Binomial standard error of the verdict's rate, sqrt(r (1 - r) / lineages). */
   readonly verdict_se: number;
   readonly mean_replicates: number;
@@ -131,10 +148,10 @@ export async function runTrendCalibration(options: TrendCalibrationOptions = {})
   const module = new URL(import.meta.url);
   const rows: TrendCalibrationRow[] = [];
   print(`Trend verdict calibration: share of ${lineages} lineages per row called a trend at 5% (seed ${seed}); ± binomial standard error`);
-  print('horizons  truth           verdict          AICc    chi-square  replicates  s/lineage');
+  print(`horizons  truth           verdict          AICc    chi-square  replicates  s/lineage${options.bootstrapLrt ? '  bootstrap LRT' : ''}`);
   for (const horizons of sizes) {
     for (const scenario of scenarios) {
-      const tasks = Array.from({ length: lineages }, (_, index): TrendCalibrationTask => ({ scenario, horizons, seed, index }));
+      const tasks = Array.from({ length: lineages }, (_, index): TrendCalibrationTask => ({ scenario, horizons, seed, index, bootstrapLrt: options.bootstrapLrt }));
       const results = await runTasks<TrendCalibrationTask, TrendCalibrationResult>(module, 'trendCalibrationLineage', tasks, { threads: options.threads });
       const rate = (pick: (result: TrendCalibrationResult) => boolean): number => results.filter(pick).length / results.length;
       const verdict = rate((result) => result.verdict);
@@ -145,12 +162,13 @@ export async function runTrendCalibration(options: TrendCalibrationOptions = {})
         verdict,
         aicc: rate((result) => result.aicc),
         chi_square: rate((result) => result.chiSquare),
+        bootstrap_lrt: options.bootstrapLrt ? rate((result) => result.bootstrapLrt === true) : null,
         verdict_se: Math.sqrt((verdict * (1 - verdict)) / results.length),
         mean_replicates: results.reduce((sum, result) => sum + result.replicates, 0) / results.length,
         seconds_per_lineage: results.reduce((sum, result) => sum + result.milliseconds, 0) / results.length / 1000,
       };
       rows.push(row);
-      print(`${String(horizons).padStart(8)}  ${scenario.padEnd(14)}  ${row.verdict.toFixed(3)} ± ${row.verdict_se.toFixed(3)}  ${row.aicc.toFixed(3).padStart(6)}  ${row.chi_square.toFixed(3).padStart(10)}  ${row.mean_replicates.toFixed(0).padStart(10)}  ${row.seconds_per_lineage.toFixed(2).padStart(9)}`);
+      print(`${String(horizons).padStart(8)}  ${scenario.padEnd(14)}  ${row.verdict.toFixed(3)} ± ${row.verdict_se.toFixed(3)}  ${row.aicc.toFixed(3).padStart(6)}  ${row.chi_square.toFixed(3).padStart(10)}  ${row.mean_replicates.toFixed(0).padStart(10)}  ${row.seconds_per_lineage.toFixed(2).padStart(9)}${row.bootstrap_lrt === null ? '' : row.bootstrap_lrt.toFixed(3).padStart(15)}`);
     }
   }
   return rows;
@@ -201,12 +219,12 @@ export async function measureTrendCost(print: (line: string) => void = (line) =>
   return rows;
 }
 
-// Run alone: node dist/bench/trend-calibration.js [lineages] [sizes...] [--scenarios a,b], or --cost
+// Run alone: node dist/bench/trend-calibration.js [lineages] [sizes...] [--scenarios a,b] [--bootstrap-lrt], or --cost
 if (isMainThread && process.argv[1] && import.meta.url.endsWith(process.argv[1].replace(/\\/g, '/'))) {
   const args = process.argv.slice(2);
   const scenarioAt = args.indexOf('--scenarios');
   const scenarios = scenarioAt >= 0 ? (args.splice(scenarioAt, 2)[1].split(',') as TrendScenario[]) : undefined;
-  const [count, ...sizes] = args.filter((arg) => arg !== '--cost').map(Number);
+  const [count, ...sizes] = args.filter((arg) => !arg.startsWith('--')).map(Number);
   if (args.includes('--cost')) await measureTrendCost();
-  else await runTrendCalibration({ lineages: count || undefined, sizes: sizes.length > 0 ? sizes : undefined, scenarios });
+  else await runTrendCalibration({ lineages: count || undefined, sizes: sizes.length > 0 ? sizes : undefined, scenarios, bootstrapLrt: args.includes('--bootstrap-lrt') });
 }

@@ -36,7 +36,7 @@ export function weakOuWin(fit: LineageFit): string | null {
  * often AICc alone does so on this design without a trend.
  *
  * @example
- * trendText(fit, test)[0]; // 'Trend test: p = 0.005 (parametric bootstrap ..., 199 replicates); a directional trend (increase) is supported at the 5% level.'
+ * trendText(fit, test)[0]; // 'Trend test: p = 0.005 (drift against its standard error ..., 398 replicates); a directional trend (increase) is supported at the 5% level.'
  */
 export function trendText(fit: LineageFit, test: TrendTest): string[] {
   const levelText = `${Number((test.level * 100).toPrecision(3))}%`;
@@ -44,7 +44,7 @@ export function trendText(fit: LineageFit, test: TrendTest): string[] {
   const verdict = test.supported
     ? `a directional trend (${test.direction ?? 'no direction'}) is supported at the ${levelText} level`
     : `no directional trend is supported at the ${levelText} level`;
-  const lines = [`  Trend test: p ${formatPValue(test.p_value)} (parametric bootstrap of the likelihood ratio of the directional walk against the best non-directional model, sequential p-value, ${test.replicates} replicates); ${verdict}.`];
+  const lines = [`  Trend test: p ${formatPValue(test.p_value)} (drift against its standard error at the random walk's step variance, parametric bootstrap from the fitted non-directional models, sequential p-value, ${test.replicates} replicates); ${verdict}.`];
   if (fit.best === 'directional-walk' && !test.supported && test.aicc_false_trend_rate !== null) {
     lines.push(`  AICc ranks the directional walk first, but the test does not support a trend: on this design AICc alone picks the directional walk in ${percent(test.aicc_false_trend_rate)} of sequences simulated from the fitted ${test.null_model} (no trend).`);
   }

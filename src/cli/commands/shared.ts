@@ -65,8 +65,8 @@ export function addFittingOptions(command: Command): Command {
     .option('--adequacy', 'check the adequacy of the best-supported model (one-step prediction errors, parametric bootstrap)')
     .option('--adequacy-draws <n>', 'simulated data sets for --adequacy (default 199)')
     .option('--adequacy-seed <n>', 'seed of the --adequacy simulation (default 1)')
-    .option('--trend-level <p>', 'level of the trend test every lineage gets (parametric bootstrap of directional walk against the best non-directional model; see "Trend verdict" in the README): a trend is supported when p < this (default 0.05)')
-    .option('--no-trend-test', 'skip the trend test (faster: it simulates up to 199 data sets per lineage, seeded by --seed)')
+    .option('--trend-level <p>', 'level of the trend test every lineage gets (drift against its standard error, p-value by parametric bootstrap from the fitted non-directional models; see "Trend verdict" in the README): a trend is supported when p < this (default 0.05)')
+    .option('--no-trend-test', 'skip the trend test (faster: it simulates up to 199 data sets per null model and lineage, seeded by --seed)')
     .option('--no-intervals', 'skip the 95% intervals (faster)')
     .option('--intervals <method>', 'how the 95% intervals are made: integrated (default: integrated likelihood, best calibrated; ou and shift models use adjusted, or profile where adjusted would leave out the estimate), adjusted (restricted profile likelihood), profile (plain profile likelihood, asymptotic) or bootstrap (profile with a parametric-bootstrap cut-off, slower; profile where the bootstrap cannot calibrate). A fit whose intervals fell back says so in interval_method and a warning');
 }
