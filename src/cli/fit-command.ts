@@ -107,7 +107,7 @@ export async function runFitStreamed(file: string, options: FitCommandOptions): 
     threads: options.threads,
     onProgress: fittingProgress(lineages.length, options),
   });
-  const trends = trendOptions === null ? null : await trendTests(fits, trendOptions, { threads: options.threads });
+  const trends = trendOptions === null ? null : await trendTests(fits, trendOptions, { threads: options.threads, onProgress: fittingProgress(fits.length, options, process.stderr, 'trend tests') });
   const run = fitLoaded(input, lineages, options, selection, warnings, fits, trends);
   if (age) {
     // The age model is part of the result (fit, and the report made from the same run): its file, its options, its ties and rates.
