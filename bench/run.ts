@@ -300,6 +300,19 @@ async function measureCalibration(): Promise<unknown> {
   return { seconds: (performance.now() - started) / 1000, result: JSON.parse(JSON.stringify(result ?? null)) };
 }
 
+/** bench/trend-calibration.ts (issue 15): the trend verdict's size, power and cost; full run only. */
+async function measureTrendVerdict(): Promise<unknown> {
+  if (smoke) return { skipped: 'smoke mode' };
+  const compiled = new URL('bench/trend-calibration.js', distRoot);
+  if (!existsSync(compiled)) return { skipped: 'bench/trend-calibration.ts not built' };
+  process.stderr.write('  trend verdict: cost, then calibration (bench/trend-calibration.ts)...\n');
+  const module = (await import(compiled.href)) as { measureTrendCost: () => Promise<unknown>; runTrendCalibration: (options: Record<string, unknown>) => Promise<unknown> };
+  const cost = await module.measureTrendCost();
+  const started = performance.now();
+  const calibration = await module.runTrendCalibration({});
+  return { cost, calibration, seconds: (performance.now() - started) / 1000 };
+}
+
 /**
  * Test files whose exhaustive sweep `npm test` runs only as a seeded sample;
  * with STRATOTREND_SWEEP=full they run every seed (issue 22).
@@ -443,6 +456,7 @@ async function main(): Promise<void> {
   process.stderr.write('  figures...\n');
   const figures = await measureFigures();
   const calibration = await measureCalibration();
+  const trendVerdict = await measureTrendVerdict();
   process.stderr.write('  streaming a large specimen file...\n');
   // Smoke mode: 40 horizons (two sections of 20), so the six commands' fits take seconds, not half a minute.
   const streaming = measureStreaming(smoke ? 20_000 : 1_000_000, smoke ? 40 : 200);
@@ -476,7 +490,7 @@ async function main(): Promise<void> {
     })),
     { name: '`stratotrend --help` / `node -e 0`', target: '<= 2', measured: startup.ratio, met: startup.ratio <= 2 },
   ];
-  const results = { mode: smoke ? 'smoke' : 'full', date: new Date().toISOString(), machine, likelihood, evaluationCost, fits, batch, startup, figures, streaming, calibration, sweep, joint, targets };
+  const results = { mode: smoke ? 'smoke' : 'full', date: new Date().toISOString(), machine, likelihood, evaluationCost, fits, batch, startup, figures, streaming, calibration, trend_verdict: trendVerdict, sweep, joint, targets };
   if (outFile) writeFileSync(outFile, JSON.stringify(results, null, 2) + '\n');
 
   const lines: string[] = [];

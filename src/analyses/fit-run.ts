@@ -13,6 +13,12 @@ import { intervalOptions } from '../fit/intervals.js';
 import { attachCovariates, extensionSettings, extrasDocument, lineageExtras, modelsForLineage, type ExtensionOptions, type LineageExtras } from './fit-extensions.js';
 import type { FigureCommandOptions } from './figure-files.js';
 import { toolVersion } from '../io/version.js';
+import { usageError } from '../data/errors.js';
+import type { EvolutionModel } from '../models/model.js';
+import { trendTests } from '../trend/run-trend-tests.js';
+import type { TrendTest, TrendTestOptions } from '../trend/trend-test.js';
+import { weakOuWin } from '../render/trend-text.js';
+import { parseSeed } from '../random/seeds.js';
 
 /** Options of `stratotrend fit`. */
 export interface FitCommandOptions extends AgeModelOptions, SampleFileOptions, FigureCommandOptions, ExtensionOptions {
@@ -28,6 +34,10 @@ export interface FitCommandOptions extends AgeModelOptions, SampleFileOptions, F
   threads?: number;
   /** Print (and add to the JSON, and draw with --out) the cross-lineage summary instead of one table per lineage. */
   summary?: boolean;
+  /** false for --no-trend-test. */
+  trendTest?: boolean;
+  /** --trend-level (default 0.05). */
+  trendLevel?: string | number;
 }
 
 
@@ -48,6 +58,8 @@ export interface FitRun {
   readonly age?: LoadedAgeModel | null;
   /** `--models`, resolved once at the start of the run. */
   readonly selection: ModelSelection;
+  /** The trend verdict per lineage, in `fits` order (null with --no-trend-test). */
+  readonly trends?: readonly TrendTest[] | null;
 }
 
 /**
@@ -86,11 +98,14 @@ export async function runFitStreamed(file: string, options: FitCommandOptions): 
   // Shift searches grow with the square of the horizons: refuse what cannot be held, announce a long run with its estimate.
   const { checkShiftSearchCost } = await import('./run-cost.js');
   checkShiftSearchCost(lineages, models, { minimumSegment: extensionSettings(options).minimumSegment, threads: options.threads, warnings });
+  // Checked before fitting: a bad --trend-level or --seed should not cost a fit.
+  const trendOptions = options.trendTest === false ? null : trendOptionsOf(options, models);
   const fits = await fitLineages(lineages, models, fitOptionsOf(options, lineages.length), {
     threads: options.threads,
     onProgress: fittingProgress(lineages.length, options),
   });
-  const run = fitLoaded(input, lineages, options, selection, warnings, fits);
+  const trends = trendOptions === null ? null : await trendTests(fits, trendOptions, { threads: options.threads, onProgress: fittingProgress(fits.length, options, process.stderr, 'trend tests') });
+  const run = fitLoaded(input, lineages, options, selection, warnings, fits, trends);
   if (age) {
     // The age model is part of the result (fit, and the report made from the same run): its file, its options, its ties and rates.
     const { parseDrawOptions, ageModelDocument } = await import('./compare-run.js');
@@ -116,7 +131,7 @@ export async function runFitStreamed(file: string, options: FitCommandOptions): 
  * @example
  * fitLoaded(input, lineages, options, resolveModels('random-walk,ou'), new WarningLog()).fits[0].models.length; // 2
  */
-export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lineage[], options: FitCommandOptions, selection: ModelSelection, warnings: WarningLog, given?: LineageFit[]): FitRun {
+export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lineage[], options: FitCommandOptions, selection: ModelSelection, warnings: WarningLog, given?: LineageFit[], trends?: readonly TrendTest[] | null): FitRun {
   const { name, models } = selection;
   const settings = extensionSettings(options);
   const fitted = given ?? lineages.map((lineage) => fitLineage(lineage, models, fitOptionsOf(options, lineages.length)));
@@ -129,6 +144,7 @@ export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lin
       if (model.notCompared) warnings.add('not-compared', `${fit.lineage.section || 'lineage'}${fit.lineage.trait ? ' / ' + fit.lineage.trait : ''}, ${model.id}: ${model.notCompared}`);
     }
   }
+  if (trends) addTrendWarnings(fits, trends, warnings);
   const provenance: Provenance = {
     tool: 'stratotrend',
     version: toolVersion(),
@@ -147,12 +163,49 @@ export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lin
       generation_time_years: settings.generationTime,
       ...(options.covariateFile ? { covariate_file: options.covariateFile } : {}),
       ...(settings.adequacy ? { adequacy_draws: settings.adequacyDraws, adequacy_seed: settings.adequacySeed } : {}),
+      trend_test: trends ? { level: trends[0]?.level ?? trendLevelOf(options), seed: trends[0]?.seed ?? trendSeedOf(options) } : null,
     },
   };
   const extras = fits.map((fit, j) => lineageExtras(fit, settings, kept[j].leftOut));
   const built = fitDocument(fits, provenance, warnings.list(), name);
-  const document: FitDocument = { ...built, lineages: built.lineages.map((lineage, j) => ({ ...lineage, ...extrasDocument(extras[j]) })) };
-  return { fits, document, warnings, extras, selection };
+  const document: FitDocument = { ...built, lineages: built.lineages.map((lineage, j) => ({ ...lineage, ...extrasDocument(extras[j]), ...(trends ? { trend_test: trends[j] } : {}) })) };
+  return { fits, document, warnings, extras, selection, trends: trends ?? null };
+}
+
+/** --trend-level as a number in (0, 1). @throws InputError (usage) otherwise. */
+function trendLevelOf(options: FitCommandOptions): number {
+  if (options.trendLevel === undefined) return 0.05;
+  const level = Number(options.trendLevel);
+  if (!(level > 0 && level < 1)) throw usageError(`--trend-level must be a number between 0 and 1, e.g. 0.05, got "${options.trendLevel}"`);
+  return level;
+}
+
+/** --seed as the trend test's seed. @throws InputError (usage) when it is not a whole number from 0 to 2^32 - 1. */
+function trendSeedOf(options: FitCommandOptions): number {
+  if (options.seed === undefined) return 1;
+  const seed = parseSeed(String(options.seed));
+  if (seed === null) throw usageError(`--seed must be a whole number from 0 to 4294967295, got "${options.seed}"`);
+  return seed;
+}
+
+/** The trend test's options from the command's. */
+function trendOptionsOf(options: FitCommandOptions, models: readonly EvolutionModel[]): TrendTestOptions {
+  return { level: trendLevelOf(options), seed: trendSeedOf(options), models: models.map((model) => model.id) };
+}
+
+/** Warnings where AICc's first place and the trend verdict disagree (category trend-check). */
+function addTrendWarnings(fits: readonly LineageFit[], trends: readonly TrendTest[], warnings: WarningLog): void {
+  fits.forEach((fit, j) => {
+    const test = trends[j];
+    const name = `${fit.lineage.section || 'lineage'}${fit.lineage.trait ? ' / ' + fit.lineage.trait : ''}`;
+    if (fit.best === 'directional-walk' && test.p_value !== null && !test.supported && test.aicc_false_trend_rate !== null) {
+      warnings.add('trend-check', `${name}: AICc ranks the directional walk first but the trend test does not support a trend (p = ${Number(test.p_value.toPrecision(2))}); AICc alone picks it in ${Math.round(test.aicc_false_trend_rate * 100)}% of trendless sequences on this design`);
+    }
+    const ouReason = weakOuWin(fit);
+    if (ouReason && test.aicc_ou_rate !== null) {
+      warnings.add('trend-check', `${name}: ou ranks first but ${ouReason}; ou often wins on short unbiased walks (AICc picks it in ${Math.round(test.aicc_ou_rate * 100)}% of trendless sequences on this design)`);
+    }
+  });
 }
 
 /** Fit options from the command's options: interval method, minimum segment, and a search progress bar for a single lineage (fitted in this thread). */

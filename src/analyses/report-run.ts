@@ -402,7 +402,8 @@ export async function runReport(file: string, options: ReportCommandOptions): Pr
     }
     // The fit options pass through unchanged, so the page shows exactly what `fit` with the same options computes.
     const { out: _out, figureFormat: _format, attach: _attach, compare: _compare, joint: _joint, power: _power, powerReplicates: _replicates, seed: _seed, ...fitOptions } = options;
-    const run = await runFitStreamed(file, { ...fitOptions, quiet: true });
+    // --seed also seeds the trend verdict (the report has no age draws, the other use of fit's --seed).
+    const run = await runFitStreamed(file, { ...fitOptions, seed: _seed, quiet: true });
     const document = run.document;
     // The comparison and power analyses reuse the horizons the fit read (the file, or stdin, is read once).
     const analyses = await runAnalyses(file, document, options, run.read, run.selection);

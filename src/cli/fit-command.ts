@@ -7,6 +7,7 @@ import { checkOutputFile, inputPaths, OutputSet, prepareOutputFolder, releaseOut
 import { adequacyText, ratesText } from '../render/extensions-text.js';
 import { modelsCsv } from '../render/models-csv.js';
 import { lineageTable } from '../render/text-table.js';
+import { summariseTrends, trendSummaryText, trendText } from '../render/trend-text.js';
 
 // `stratotrend fit`: the fit run is src/analyses/fit-run.ts; this file prints
 // its tables (or JSON) and writes models.csv, fit.json, the figures and the
@@ -42,6 +43,8 @@ async function fitAndWrite(file: string, options: FitCommandOptions): Promise<vo
   }
   const compilation = options.summary ? await import('../analyses/compilation-output.js') : null;
   const summary = compilation ? compilation.addCompilation(run) : null;
+  const trendSummary = summary && run.trends ? summariseTrends(run.fits, run.trends) : null;
+  if (trendSummary && run.document.compilation) (run.document.compilation as Record<string, unknown>).trend_tests = trendSummary;
   // Figures load their module (and, when drawing, the chart stack) only with --out.
   const figures = options.out && options.figures !== false ? await import('../analyses/figure-files.js') : null;
   const lineageDocuments = run.document.lineages;
@@ -56,7 +59,7 @@ async function fitAndWrite(file: string, options: FitCommandOptions): Promise<vo
     // The whole set is written first and put in place at the end: a full disk leaves the previous run's set whole.
     const set = new OutputSet(folder, options.out);
     try {
-      set.add('models.csv', modelsCsv(run.fits));
+      set.add('models.csv', modelsCsv(run.fits, run.trends));
       set.add('fit.json', JSON.stringify(run.document, null, 2) + '\n');
       if (compilation && summary) await compilation.writeCompilationFigure(summary, set);
       if (figures && figurePlan) figures.writeFigureFiles(lineageDocuments, figurePlan, set, { quiet: options.quiet });
@@ -69,8 +72,8 @@ async function fitAndWrite(file: string, options: FitCommandOptions): Promise<vo
   if (options.json) {
     process.stdout.write(JSON.stringify(run.document, null, 2) + '\n');
   } else if (!options.quiet) {
-    const tables = run.fits.map((fit, j) => [lineageTable(fit), ...extrasText(fit, run.extras?.[j])].join('\n'));
-    process.stdout.write(modelSetLine(run.selection) + (compilation && summary ? compilation.compilationText(summary) : tables.join('\n\n')) + '\n');
+    const tables = run.fits.map((fit, j) => [lineageTable(fit), ...extrasText(fit, run.extras?.[j]), ...(run.trends ? trendText(fit, run.trends[j]) : [])].join('\n'));
+    process.stdout.write(modelSetLine(run.selection) + (compilation && summary ? compilation.compilationText(summary) + (trendSummary ? '\n\n' + trendSummaryText(trendSummary) : '') : tables.join('\n\n')) + '\n');
     if (options.out) process.stdout.write(`\nWrote models.csv${summary ? ', compilation.png' : ''} and fit.json${figurePlan ? ` and ${figurePlan.names.length} figure files` : ''} to ${options.out}\n`);
   }
   if (ageText && !options.json && !options.quiet) process.stdout.write('\n' + ageText + '\n');
@@ -80,8 +83,9 @@ async function fitAndWrite(file: string, options: FitCommandOptions): Promise<vo
     if (!options.quiet && !options.json) process.stdout.write(`Wrote the report to ${options.report}\n`);
   }
   for (const warning of run.warnings.list()) {
-    // at-bound and not-compared are in the tables; long-run was printed before fitting.
+    // at-bound and not-compared are in the tables (trend-check too, unless only the summary was printed); long-run was printed before fitting.
     if (warning.category === 'at-bound' || warning.category === 'not-compared' || warning.category === 'long-run') continue;
+    if (warning.category === 'trend-check' && !options.summary && !options.json && !options.quiet) continue;
     process.stderr.write(`warning (${warning.category}): ${warning.message}${warning.count > 1 ? ` (${warning.count} times)` : ''}\n`);
   }
 }

@@ -183,6 +183,8 @@ const lineage: Check = (value, path) => {
       first_age: nullableNumber,
       trait_unit: nullableName,
       models_left_out: list(text()),
+      // The trend verdict (issue 15): the fields the report reads.
+      trend_test: nullOr(object({ p_value: number({ min: 0, max: 1, nullable: true }), level: number({ min: 0, max: 1 }), supported: boolean, replicates: number({ whole: true, min: 0 }) }, { direction: text({ nullable: true }), aicc_false_trend_rate: number({ min: 0, max: 1, nullable: true }), note: text({ nullable: true }) }), 'an object'),
     },
   )(value, path);
   const document = value as Record<string, unknown>;

@@ -15,6 +15,8 @@ export type WarningCategory =
   | 'duplicate-time'
   | 'time-axis'
   | 'long-run'
+  /** AICc's first place (directional walk, or ou with a long half-life or open optimum) is not backed by the trend test. */
+  | 'trend-check'
   | 'input';
 
 /** A folded warning: what, about which lineage, and how often it was raised. */

@@ -104,9 +104,9 @@ function keepUnreferenced(bar: SingleBar): void {
  * @example
  * fitLineages(lineages, models, fitOptions, { onProgress: fittingProgress(lineages.length, { quiet: false }) });
  */
-export function fittingProgress(total: number, options: { quiet?: boolean } = {}, stream: NodeJS.WriteStream = process.stderr): ((done: number, total: number) => void) | undefined {
+export function fittingProgress(total: number, options: { quiet?: boolean } = {}, stream: NodeJS.WriteStream = process.stderr, label = 'fitting lineages'): ((done: number, total: number) => void) | undefined {
   if (total < 2) return undefined;
-  const bar = terminalBar('fitting lineages', { quiet: options.quiet, stream, delayMs: 500, eta: true });
+  const bar = terminalBar(label, { quiet: options.quiet, stream, delayMs: 500, eta: true });
   if (bar === null) return undefined;
   return (done) => (done >= total ? bar.stop() : bar.update(done, total));
 }

@@ -108,7 +108,7 @@ export async function runTasks<T = Task, R = unknown>(
         worker.postMessage(request);
       };
       for (let w = 0; w < workerCount; w++) {
-        const worker = new Worker(script, { workerData: { module: moduleHref, exportName } });
+        const worker = new Worker(script, { workerData: { module: moduleHref, exportName }, execArgv: workerExecArgv() });
         workers.push(worker);
         worker.on('message', (reply: WorkerReply) => {
           if (failed) return;
@@ -155,3 +155,24 @@ async function runInline<T, R>(module: string | URL, exportName: string, tasks: 
   }
   return results;
 }
+
+/**
+ * The Node options a worker inherits: the parent's, without those that only
+ * make sense for the main script (`--input-type`, `--eval`/`-e`, `--print`/`-p`
+ * and the evaluated text). A parent started as `node --input-type=module -e
+ * ...` (the benchmark's child processes) otherwise fails to start any worker.
+ */
+function workerExecArgv(): string[] {
+  const kept: string[] = [];
+  for (let i = 0; i < process.execArgv.length; i++) {
+    const arg = process.execArgv[i];
+    if (arg === '-e' || arg === '-p' || arg === '--eval' || arg === '--print') {
+      i++;
+      continue;
+    }
+    if (arg.startsWith('--input-type') || arg.startsWith('--eval=') || arg.startsWith('--print=')) continue;
+    kept.push(arg);
+  }
+  return kept;
+}
+

@@ -1,6 +1,10 @@
 import type { LineageFit } from '../fit/fit-lineage.js';
 import { neutraliseFormula } from '../data/names.js';
 import { finiteOrNull } from './fit-document.js';
+import type { TrendTest } from '../trend/trend-test.js';
+
+/** The trend verdict's columns (fit with the trend test): lineage-level, repeated on each of the lineage's model rows like `horizons`. */
+export const trendColumns = ['trend_statistic', 'trend_p_value', 'trend_level', 'trend_supported', 'trend_direction', 'trend_replicates', 'trend_seed', 'trend_aicc_false_trend_rate'] as const;
 
 /**
  * One CSV field: numbers and booleans as written by `String`, null as an
@@ -19,9 +23,10 @@ export function csvField(value: string | number | boolean | null): string {
  * of parameter names, empty where a model lacks a parameter. Numbers are
  * written in full precision. `extrapolated_horizons` counts the lineage's
  * horizons whose age an age model extrapolated beyond its outermost ties
- * (0 when none; fit.json's `extrapolated_horizons`).
+ * (0 when none; fit.json's `extrapolated_horizons`). With `trends` (one per
+ * fit), the trend verdict's {@link trendColumns} follow the parameters.
  */
-export function modelsCsv(fits: readonly LineageFit[]): string {
+export function modelsCsv(fits: readonly LineageFit[], trends?: readonly TrendTest[] | null): string {
   const parameterNames: string[] = [];
   for (const fit of fits) {
     for (const model of fit.models) {
@@ -33,9 +38,14 @@ export function modelsCsv(fits: readonly LineageFit[]): string {
   const header = [
     'section', 'trait', 'horizons', 'extrapolated_horizons', 'time_unit', 'model', 'k', 'logLik', 'aicc', 'delta_aicc', 'weight', 'best', 'compared', 'flags',
     ...parameterNames.flatMap((name) => [`${name}_estimate`, `${name}_lower`, `${name}_upper`]),
+    ...(trends ? trendColumns : []),
   ];
   const rows = [header.join(',')];
-  for (const fit of fits) {
+  fits.forEach((fit, j) => {
+    const test = trends?.[j];
+    const trendCells = test
+      ? [finiteOrNull(test.statistic), finiteOrNull(test.p_value), test.level, test.p_value === null ? null : test.supported, test.direction, test.replicates, test.seed, finiteOrNull(test.aicc_false_trend_rate)]
+      : [];
     for (const model of fit.models) {
       const estimates = { ...model.parameters, ...model.derived };
       rows.push([
@@ -46,8 +56,9 @@ export function modelsCsv(fits: readonly LineageFit[]): string {
           const estimate = estimates[name];
           return estimate ? [finiteOrNull(estimate.estimate), finiteOrNull(estimate.lower), finiteOrNull(estimate.upper)] : [null, null, null];
         }),
+        ...trendCells,
       ].map(csvField).join(','));
     }
-  }
+  });
   return rows.join('\n') + '\n';
 }

@@ -5,7 +5,7 @@ import { allocateSums, whiten, workSize } from '../../src/engine/kalman-filter.j
 import { allocateStateSpace } from '../../src/engine/state-space.js';
 import { lineageFromArrays } from '../../src/lineage.js';
 import { findModel } from '../../src/models/registry.js';
-import { createRandom } from '../../src/simulate/random.js';
+import { createRandom } from '../../src/random/random.js';
 
 // The allocation-free logL paths of gls.ts (what the searches call) against
 // (1) the dense GLS solution with one coefficient held fixed, written from

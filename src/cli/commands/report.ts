@@ -22,7 +22,7 @@ export function defineReportCommand(program: Command): void {
     .option('--power', 'also estimate the power of every lineage\'s design to detect a trend (simulations, as "power" does; takes a while)')
     .option('--power-replicates <R>', 'simulated lineages per drift value for --power', '200')
     .option('--power-step-variance <list>', 'step variance(s) the --power simulations assume, comma-separated, as "power --step-variance" (default: the fitted estimate, and the upper end of its 95% interval when the estimate is 0 or poorly determined)')
-    .option('--seed <integer>', 'seed of the --power simulations (same seed, same report numbers)', '1')
+    .option('--seed <integer>', 'seed of the trend test and the --power simulations (same seed, same report numbers)', '1')
     .option('--attach <json...>', 'also show saved results of other analyses: a section comparison (compare --json) or power results (power --json)')
     .option('--quiet', 'print nothing but errors and warnings')
     .addHelpText('after', `

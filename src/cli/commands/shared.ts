@@ -39,15 +39,16 @@ export function addAgeModelOptions(command: Command, { draws = true }: { draws?:
   if (!draws) return command;
   return command
     .option('--age-draws <count>', 'redraw the tie-point ages from their age_sd this many times (kept in stratigraphic order), refit, and report the spread')
-    .option('--seed <integer>', 'seed of the age redraws (same seed, same draws)', '1');
+    .option('--seed <integer>', 'seed of the age redraws, and in fit of the trend test (same seed, same draws and p-values on any number of threads)', '1');
 }
 
 /**
  * The fitting options, one definition for `fit` and `report` (the report
  * fits exactly as `fit` does, so each option means the same in both and its
  * help text says so once): `--models`, `--min-segment`, `--covariate-file`,
- * `--rates`, `--generation-time`, `--adequacy` with its draws and seed, and
- * the intervals (`--no-intervals`, `--intervals`). The actions read them
+ * `--rates`, `--generation-time`, `--adequacy` with its draws and seed, the
+ * trend test (`--trend-level`, `--no-trend-test`; seeded by the command's
+ * `--seed`) and the intervals (`--no-intervals`, `--intervals`). The actions read them
  * through `resolveModels` (`src/cli/model-selection.ts`),
  * `extensionSettings` (`src/cli/fit-extensions.ts`) and `intervalOptions`.
  *
@@ -64,6 +65,8 @@ export function addFittingOptions(command: Command): Command {
     .option('--adequacy', 'check the adequacy of the best-supported model (one-step prediction errors, parametric bootstrap)')
     .option('--adequacy-draws <n>', 'simulated data sets for --adequacy (default 199)')
     .option('--adequacy-seed <n>', 'seed of the --adequacy simulation (default 1)')
+    .option('--trend-level <p>', 'level of the trend test every lineage gets (drift against its standard error, p-value by parametric bootstrap from the fitted non-directional models; see "Trend verdict" in the README): a trend is supported when p < this (default 0.05)')
+    .option('--no-trend-test', 'skip the trend test (faster: it simulates up to 199 data sets per null model and lineage, seeded by --seed)')
     .option('--no-intervals', 'skip the 95% intervals (faster)')
     .option('--intervals <method>', 'how the 95% intervals are made: integrated (default: integrated likelihood, best calibrated; ou, the shift models and the other models with two searched parameters (accelerating-walk, moving-optimum) use adjusted, or profile where adjusted would leave out the estimate), adjusted (restricted profile likelihood), profile (plain profile likelihood, asymptotic) or bootstrap (profile with a parametric-bootstrap cut-off, slower; profile where the bootstrap cannot calibrate). A fit whose intervals fell back says so in interval_method and a warning');
 }

@@ -1,5 +1,6 @@
 import { findModel } from '../../models/registry.js';
 import { formatNumber, traitUnitLabel } from '../units.js';
+import { formatPValue, trendCaution } from '../trend-text.js';
 import { boundCaution, closeSupportCaution, directionalCaution, stasisCaution } from './cautions.js';
 import { summariseData, type DataSummary } from './data-summary.js';
 import { lineageTitle, type FitDocumentView, type LineageView } from './document-view.js';
@@ -24,7 +25,7 @@ export interface ReportFigure {
 }
 
 /** Lineage-document keys the report shows in its own blocks; anything else appears under "further results". */
-const shownKeys = new Set(['section', 'trait', 'horizons', 'time_unit', 'position_kind', 'transform', 'sampling_variance', 'best_model', 'models', 'data', 'smoothed', 'trait_unit', 'adequacy', 'rates', 'models_left_out', 'extrapolated_horizons', 'first_age']);
+const shownKeys = new Set(['section', 'trait', 'horizons', 'time_unit', 'position_kind', 'transform', 'sampling_variance', 'best_model', 'models', 'data', 'smoothed', 'trait_unit', 'adequacy', 'rates', 'models_left_out', 'extrapolated_horizons', 'first_age', 'trend_test']);
 
 /** An image element holding the figure's bytes as a data URL (no file or network access when opened). */
 export function figureHtml(figure: ReportFigure): string {
@@ -146,6 +147,19 @@ export function lineageWarnings(lineage: LineageView, summary: DataSummary, docu
   return warnings;
 }
 
+/** The trend verdict of a lineage (fit.json `trend_test`), in words; empty when the fit made none. */
+function trendBlock(lineage: LineageView): string {
+  const test = lineage.trend_test as { p_value?: number | null; supported?: boolean; direction?: string | null; level?: number; replicates?: number; aicc_false_trend_rate?: number | null; note?: string | null } | null | undefined;
+  if (!test) return '';
+  if (typeof test.p_value !== 'number') return `<div class="conclusion" data-block="trend-test"><p><strong>Trend test:</strong> ${escapeHtml(test.note ?? 'not made')}.</p></div>`;
+  const level = `${Number(((test.level ?? 0.05) * 100).toPrecision(3))}%`;
+  const verdict = test.supported ? `a directional trend (${test.direction ?? 'no direction'}) is supported at the ${level} level` : `no directional trend is supported at the ${level} level`;
+  const rate = typeof test.aicc_false_trend_rate === 'number'
+    ? ` On this lineage's design, AICc alone ranks the directional walk first in ${Math.round(test.aicc_false_trend_rate * 100)}% of sequences simulated from the fitted non-directional model.`
+    : '';
+  return `<div class="conclusion" data-block="trend-test"><p><strong>Trend test:</strong> p <span data-field="trend_p_value" data-value="${exactValue(test.p_value)}">${escapeHtml(formatPValue(test.p_value))}</span> (parametric bootstrap, ${test.replicates ?? 0} replicates); ${escapeHtml(verdict)}.${escapeHtml(rate)}</p>${test.supported ? `<p class="note">${escapeHtml(trendCaution)}</p>` : ''}</div>`;
+}
+
 function conclusion(lineage: LineageView): string {
   const compared = lineage.models.filter((model) => model.compared && model.weight !== null);
   const best = lineage.models.find((model) => model.id === lineage.best_model);
@@ -209,6 +223,7 @@ ${warnings.length > 0 ? `<div class="warnings" role="note"><strong>Warnings</str
 ${supportTable(lineage)}
 ${leftOut.length > 0 ? `<p class="note">Not fitted to this lineage (its data do not allow them): ${escapeHtml(leftOut.join(', '))}.</p>` : ''}
 ${conclusion(lineage)}
+${trendBlock(lineage)}
 ${own.length > 0 ? `<h3>Figures</h3>\n${own.map(figureHtml).join('\n')}` : ''}
 <h3>Estimates</h3>
 ${estimatesTable(lineage)}

@@ -320,6 +320,7 @@ export function methodsText(document: FitDocumentView, analyses: AnalysesRun = {
       cites: ['rauchTungStriebel1965'], paragraph: 'choice',
     });
   }
+  sentences.push(...trendSentences(document));
   sentences.push(...ageModelSentences(document).filter((sentence) => sentence.paragraph === 'choice'));
   if (analyses.comparison) {
     const hypotheses = analyses.comparisonHypotheses ?? ['separate', 'shared'];
@@ -390,4 +391,18 @@ export function methodsParagraphs(methods: MethodsText): MethodsSentence[][] {
   return (['data', 'models', 'choice'] as const)
     .map((paragraph) => methods.sentences.filter((sentence) => sentence.paragraph === paragraph))
     .filter((sentences) => sentences.length > 0);
+}
+
+/**
+ * The trend test's methods sentences, when the fit made it (fit.json
+ * `provenance.options.trend_test`, a lineage's `trend_test`).
+ */
+function trendSentences(document: FitDocumentView): MethodsSentence[] {
+  const options = document.provenance.options.trend_test as { level?: number; seed?: number } | null | undefined;
+  if (!options || !document.lineages.some((lineage) => lineage.trend_test !== undefined && lineage.trend_test !== null)) return [];
+  const level = typeof options.level === 'number' ? options.level : 0.05;
+  return [{
+    text: `Directional change was tested in every lineage against the null hypothesis of no directional change (unbiased random walk, stasis or strict stasis): the statistic was the squared generalised-least-squares drift of the directional walk divided by its variance, both computed at the step variance of the random walk's restricted-likelihood (REML) fit, and its null distribution was simulated by a parametric bootstrap on each lineage's own times and sampling variances from the REML fits of the random walk (at its step variance and at three times it) and of the best-supported non-directional model, the largest p-value being reported, with sequential Monte Carlo p-values (at most 199 replicates per null model, stopping at 10 exceedances${typeof options.seed === 'number' ? `; random seed ${options.seed}` : ''}); a trend was called supported when p < ${shortNumber(level)}. A supported trend describes the net pattern on this design; by itself it says nothing about selection versus drift, and it depends on the age model and time-averaging.`,
+    cites: ['davisonHinkley1997', 'pattersonThompson1971', 'besagClifford1991'], paragraph: 'choice',
+  }];
 }

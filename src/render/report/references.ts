@@ -144,6 +144,21 @@ export const referenceCatalogue: Readonly<Record<string, Reference>> = {
     cite: 'Efron & Tibshirani 1993',
     entry: 'Efron, B. & Tibshirani, R. J. (1993). An Introduction to the Bootstrap. Chapman & Hall, New York.',
   },
+  besagClifford1991: {
+    key: 'besagClifford1991',
+    cite: 'Besag & Clifford 1991',
+    entry: 'Besag, J. & Clifford, P. (1991). Sequential Monte Carlo p-values. Biometrika 78:301–304.',
+  },
+  pattersonThompson1971: {
+    key: 'pattersonThompson1971',
+    cite: 'Patterson & Thompson 1971',
+    entry: 'Patterson, H. D. & Thompson, R. (1971). Recovery of inter-block information when block sizes are unequal. Biometrika 58:545–554.',
+  },
+  davisonHinkley1997: {
+    key: 'davisonHinkley1997',
+    cite: 'Davison & Hinkley 1997',
+    entry: 'Davison, A. C. & Hinkley, D. V. (1997). Bootstrap Methods and their Application. Cambridge University Press, Cambridge.',
+  },
 };
 
 /**

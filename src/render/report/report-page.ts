@@ -1,4 +1,5 @@
 import { formatNumber } from '../units.js';
+import { formatPValue } from '../trend-text.js';
 import { lineageTitle, type FitDocumentView } from './document-view.js';
 import { jointBlock } from './joint-block.js';
 import { escapeHtml, exactValue, slug } from './html.js';
@@ -61,7 +62,16 @@ export function methodsHtml(methods: MethodsText): string {
     .join('\n');
 }
 
+/** The overview's trend-test cell: verdict and p-value (fit.json `trend_test`). */
+function trendCell(lineage: FitDocumentView['lineages'][number]): string {
+  const test = lineage.trend_test as { p_value?: number | null; supported?: boolean; direction?: string | null } | null | undefined;
+  if (!test || typeof test.p_value !== 'number') return '<td>not made</td>';
+  const verdict = test.supported ? `trend (${test.direction ?? 'no direction'})` : 'no trend supported';
+  return `<td data-field="trend_p_value" data-value="${exactValue(test.p_value)}">${escapeHtml(verdict)}, p ${escapeHtml(formatPValue(test.p_value))}</td>`;
+}
+
 function overview(document: FitDocumentView): string {
+  const tested = document.lineages.some((lineage) => lineage.trend_test !== undefined && lineage.trend_test !== null);
   const rows = document.lineages.map((lineage, index) => {
     const best = lineage.models.find((model) => model.id === lineage.best_model);
     const span = (lineage.data.time[lineage.data.time.length - 1] ?? 0) - (lineage.data.time[0] ?? 0);
@@ -69,9 +79,10 @@ function overview(document: FitDocumentView): string {
       + `<td class="number" data-field="horizons" data-value="${lineage.horizons}">${lineage.horizons}</td>`
       + `<td class="number">${escapeHtml(formatNumber(span))} ${escapeHtml(lineage.time_unit)}</td>`
       + `<td>${best ? escapeHtml(best.label) : 'none compared'}</td>`
-      + `<td class="number" data-field="weight" data-value="${exactValue(best?.weight ?? null)}">${best?.weight === null || best === undefined ? '—' : best.weight.toFixed(3)}</td></tr>`;
+      + `<td class="number" data-field="weight" data-value="${exactValue(best?.weight ?? null)}">${best?.weight === null || best === undefined ? '—' : best.weight.toFixed(3)}</td>`
+      + (tested ? trendCell(lineage) : '') + '</tr>';
   });
-  return `<table aria-label="overview"><thead><tr><th>lineage</th><th class="number">horizons</th><th class="number">time span</th><th>best supported</th><th class="number">Akaike weight</th></tr></thead><tbody>
+  return `<table aria-label="overview"><thead><tr><th>lineage</th><th class="number">horizons</th><th class="number">time span</th><th>best supported</th><th class="number">Akaike weight</th>${tested ? '<th>trend test</th>' : ''}</tr></thead><tbody>
 ${rows.join('\n')}
 </tbody></table>
 <div class="cautions"><p><strong>Reading these results</strong></p><ul>${supportCautions.map((caution) => `<li>${escapeHtml(caution)}</li>`).join('')}</ul></div>`;

@@ -1,0 +1,35 @@
+import { availableParallelism } from 'node:os';
+import type { LineageFit } from '../fit/fit-lineage.js';
+import { runTasks } from '../parallel/pool.js';
+import { trendTest, type TrendTest, type TrendTestOptions } from './trend-test.js';
+
+/** One lineage's trend test as plain data for a worker. */
+export interface TrendTestTask {
+  readonly fit: LineageFit;
+  readonly options: TrendTestOptions;
+}
+
+/** Worker entry: the trend test of one fitted lineage. Exported for the pool. */
+export function trendTestTask(task: TrendTestTask): TrendTest {
+  return trendTest(task.fit, task.options);
+}
+
+/**
+ * The trend test of every fitted lineage, in input order: on worker threads
+ * when there are two or more lineages (each test simulates for about a
+ * second), else in this thread. Each lineage's test is seeded by
+ * `options.seed` alone, so its p-value does not depend on the thread count
+ * or on the other lineages of the file.
+ *
+ * @example
+ * (await trendTests(run.fits, { seed: 1 }, { threads: 1 }))[0].p_value; // same number for every threads value
+ */
+export async function trendTests(fits: readonly LineageFit[], options: TrendTestOptions, batch: { threads?: number; onProgress?: (done: number, total: number) => void } = {}): Promise<TrendTest[]> {
+  const threads = batch.threads ?? Math.min(fits.length, availableParallelism());
+  if (threads <= 1 || fits.length < 2) return fits.map((fit) => trendTest(fit, options));
+  // The smoothed lineage is not needed by the test; leaving it out makes the copies to the workers smaller.
+  const tasks = fits.map((fit): TrendTestTask => ({ fit: { ...fit, smoothed: null }, options }));
+  const here = import.meta.url;
+  const module = new URL(`./run-trend-tests${here.endsWith('.ts') ? '.ts' : '.js'}`, here);
+  return runTasks<TrendTestTask, TrendTest>(module, 'trendTestTask', tasks, { threads, chunkSize: 1, onProgress: batch.onProgress });
+}
