@@ -4,6 +4,7 @@ import type { JointInterval, JointIntervals } from '../joint/joint-intervals.js'
 import type { JointGroup } from '../joint/joint-groups.js';
 import { finiteOrNull, type Provenance } from './fit-document.js';
 import { csvField } from './models-csv.js';
+import { formatFixed } from './units.js';
 
 /** One group's fits, as `stratotrend joint` computed them. */
 export interface JointGroupFit {
@@ -182,7 +183,8 @@ export function jointText(fits: readonly JointGroupFit[]): string {
     const title = group.section === '' ? 'Traits' : `Section ${group.section}`;
     lines.push(`${title}: ${group.traits.join(', ')} (${group.data.time.length} horizons, ${observationsOf(group)} observed values; sampling covariance ${group.samplingCovariance === 'diagonal' ? 'diagonal: summary rows give no covariance between traits, taken as 0' : 'estimated from specimens measured for several traits'})`);
     const header = ['model', 'K', 'logL', 'AICc', 'ΔAICc', 'weight'];
-    const table = models.map((model) => [model.id, String(model.k), number(model.logLik, 6), number(model.aicc, 6), number(model.deltaAicc, 3), model.weight === null ? '—' : model.weight.toFixed(3)]);
+    // The same columns and decimals as fit's table (render/text-table.ts); models by id, as --models takes them.
+    const table = models.map((model) => [model.id, String(model.k), formatFixed(model.logLik, 3), formatFixed(model.aicc, 3), formatFixed(model.deltaAicc, 3), model.weight === null ? '—' : model.weight.toFixed(3)]);
     const widths = header.map((name, c) => Math.max(name.length, ...table.map((row) => row[c].length)));
     const format = (row: string[]): string => '  ' + row.map((cell, c) => (c === 0 ? cell.padEnd(widths[c]) : cell.padStart(widths[c]))).join('  ');
     lines.push(format(header));
@@ -193,7 +195,7 @@ export function jointText(fits: readonly JointGroupFit[]): string {
       lines.push('  No model could be compared.');
       return lines.join('\n');
     }
-    lines.push(`  Best supported: ${winner.id} (Akaike weight ${winner.weight === null ? '—' : winner.weight.toFixed(2)}).`);
+    lines.push(`  Best supported: ${winner.id} (Akaike weight ${winner.weight === null ? '—' : winner.weight.toFixed(3)}).`);
     const parameters = winner.parameters;
     if (parameters?.step_correlation && winner.id.startsWith('correlated')) lines.push(...correlationWords(group.traits, parameters.step_correlation, '  Steps', winner.intervals?.step_correlation ?? null));
     if (parameters?.stasis_covariance && winner.id.startsWith('correlated')) {
