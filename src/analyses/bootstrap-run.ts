@@ -44,7 +44,7 @@ export function nestingModels(text: string | undefined): EvolutionModel[] {
   return ids.map((id) => {
     const model = findModel(id);
     if (!model) throw usageError(`--models: unknown model "${id}"; bootstrap tests these against the model they nest: ${testable}`);
-    if (!model.nests) throw usageError(`--models: model "${id}" nests no other model, so there is no likelihood-ratio test to run; models that nest one: ${testable}`);
+    if (!model.nests) throw usageError(`--models: model "${id}" declares no classic model it nests, so bootstrap has no likelihood-ratio test for it; give one or more of ${testable} (directional-walk vs random-walk is always tested)`);
     return model;
   });
 }
