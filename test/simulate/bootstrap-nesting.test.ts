@@ -8,6 +8,7 @@ import { InputError } from '../../src/data/errors.js';
 import type { ModelFit } from '../../src/fit/fit-results.js';
 import { allModels } from '../../src/models/registry.js';
 import { nullGenerator, type NestingTest } from '../../src/simulate/bootstrap-test.js';
+import { runCliHere } from '../support/cli-in-process.js';
 
 // `bootstrap --models` (issue 16): each newer model against the classic model
 // it nests, by a parametric-bootstrap likelihood ratio. Replicates run on the
@@ -76,6 +77,14 @@ describe('bootstrap --models: newer models against the classic models they nest'
     await expect(runBootstrap(file, { ...base, threads: '1', models: 'random-walk' })).rejects.toMatchObject({ kind: 'usage' });
     expect(nestingModels(undefined)).toEqual([]);
     expect(nestingModels('optimum-shift, accelerating-walk,optimum-shift').map((model) => model.id)).toEqual(['optimum-shift', 'accelerating-walk']);
+  });
+
+  it('lists the declared models in --help and exits 2 on a model that nests none, through the command line', async () => {
+    const help = (await runCliHere(['bootstrap', '--help'], folder)).stdout.replace(/\s+/g, ' ');
+    for (const model of allModels().filter((entry) => entry.nests)) expect(help).toContain(`${model.id} (${model.nests!.condition}: ${model.nests!.model})`);
+    const refused = await runCliHere(['bootstrap', 'invented.csv', '--models', 'stasis', '--replicates', '19', '--threads', '1'], folder);
+    expect(refused.status).toBe(2);
+    expect(refused.stderr).toMatch(/^stratotrend: --models: model "stasis" declares no classic model it nests/);
   });
 
   it('draws from the directional walk an ou fitted at its alpha -> 0 limit equals (MODELS.md)', () => {

@@ -1,5 +1,11 @@
 import type { Command } from 'commander';
+import { allModels } from '../../models/registry.js';
 import { addAgeModelOptions, addSampleOptions } from './shared.js';
+
+/** The `--models` choices as the models declare them (`EvolutionModel.nests`): "id (restriction: nested id)". */
+function nestingChoices(): string {
+  return allModels().flatMap((model) => (model.nests ? [`${model.id} (${model.nests.condition}: ${model.nests.model})`] : [])).join(', ');
+}
 
 /** Define `stratotrend bootstrap`; the action loads the simulation code only when run. */
 export function defineBootstrapCommand(program: Command): void {
@@ -13,7 +19,7 @@ export function defineBootstrapCommand(program: Command): void {
     .option('--replicates <R>', 'replicates drawn from each fitted null model', '200')
     .option('--seed <s>', 'seed (same seed, same results on any number of threads)', '1')
     .option('--threads <k>', 'worker threads (default: every core)')
-    .option('--models <ids>', 'also test newer models against the classic model each nests, by the same likelihood-ratio bootstrap (ids separated by commas): accelerating-walk (rate_change = 0: random-walk), moving-optimum (optimum_drift = 0: ou), optimum-shift (equal optima: ou; shift position searched in every replicate)')
+    .option('--models <ids>', `also test newer models against the classic model each nests, by the same likelihood-ratio bootstrap, chi-square(1) p beside (ids separated by commas; a shift position is searched in every replicate): ${nestingChoices()}`)
     .option('--json', 'print one JSON document instead of the text')
     .option('--quiet', 'no text and no progress bar')
     .action(async (file: string, options) => {
