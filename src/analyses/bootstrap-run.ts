@@ -2,6 +2,7 @@ import { WarningLog, type Warning } from '../data/warnings.js';
 import { fitLineage } from '../fit/fit-lineage.js';
 import { lineageName } from '../lineage.js';
 import { usageError } from '../data/errors.js';
+import { extensionSettings } from './fit-extensions.js';
 import type { EvolutionModel } from '../models/model.js';
 import { allModels, classicModels, findModel } from '../models/registry.js';
 import { bootstrapTests, type BootstrapTestReport } from '../simulate/bootstrap-test.js';
@@ -20,6 +21,8 @@ export interface BootstrapCommandOptions extends SampleFileOptions, AgeModelOpti
   threads?: string;
   /** Comma-separated ids of newer models, each tested against the classic model it nests. */
   models?: string;
+  /** Fewest horizons per segment of a shift model among `models` (as `fit --min-segment`). */
+  minSegment?: string;
   json?: boolean;
   quiet?: boolean;
 }
@@ -76,6 +79,8 @@ export async function runBootstrap(
   const { lineages } = lineagesWithAgeModel(file, samples, options, warnings);
   hooks.onRead?.(warnings.list().filter((warning) => warning.category === 'time-axis' || warning.category === 'input'));
   const nesting = nestingModels(options.models);
+  // Validated as fit validates it, so the observed statistic is the one `fit --min-segment` gives.
+  const minimumSegment = extensionSettings({ minSegment: options.minSegment }).minimumSegment;
   const replicates = wholeOption(options.replicates, '--replicates', 200, 19, 100000);
   const seed = seedOption(options.seed);
   const threads = options.threads === undefined ? undefined : wholeOption(options.threads, '--threads', 1, 1, 256);
@@ -83,10 +88,10 @@ export async function runBootstrap(
   const results: { name: string; report: BootstrapTestReport }[] = [];
   for (const lineage of lineages) {
     // The newer models join the classic fit; each model's logL and AICc do not depend on the set, so the default tests are unchanged.
-    const fit = fitLineage(lineage, nesting.length > 0 ? [...classicModels, ...nesting] : classicModels, { intervals: false });
+    const fit = fitLineage(lineage, nesting.length > 0 ? [...classicModels, ...nesting] : classicModels, { intervals: false, minimumSegment });
     const progress = hooks.progress;
     const stage = progress ? (label: string, total: number) => progress.stage(`${lineageName(lineage)}: ${label}`.slice(0, 40), total) : undefined;
-    results.push({ name: lineageName(lineage), report: await bootstrapTests(fit, replicates, seed, runner, stage, { nesting: nesting.map((model) => model.id) }) });
+    results.push({ name: lineageName(lineage), report: await bootstrapTests(fit, replicates, seed, runner, stage, { nesting: nesting.map((model) => model.id), minimumSegment }) });
   }
   const document = {
     tool: 'stratotrend',

@@ -91,12 +91,15 @@ export function nestingStream(id: string): number {
 export function nullGenerator(fitted: ModelFit): { model: string; parameters: Record<string, number> } | null {
   const definition = findModel(fitted.id);
   if (!definition) return null;
+  // A parameter that is not finite at a limit (ou's optimum at alpha = 0, NaN in the fit) is absent, as in the JSON the figures read.
+  const estimates: Record<string, number> = {};
+  for (const [name, value] of Object.entries(fitted.estimates)) if (Number.isFinite(value)) estimates[name] = value;
   const derived: Record<string, number> = {};
-  for (const [name, value] of Object.entries(fitted.derived)) if (value.estimate !== null) derived[name] = value.estimate;
+  for (const [name, value] of Object.entries(fitted.derived)) if (value.estimate !== null && Number.isFinite(value.estimate)) derived[name] = value.estimate;
   const rule = definition.limitDrawing;
-  const atLimit = rule !== undefined && rule.applies(fitted.estimates, derived);
+  const atLimit = rule !== undefined && rule.applies(estimates, derived);
   const model = atLimit ? findModel(rule.drawnAs) : definition;
-  const parameters = atLimit ? rule.parameters(fitted.estimates, derived) : { ...fitted.estimates };
+  const parameters = atLimit ? rule.parameters(estimates, derived) : estimates;
   if (!model || !model.parameters.every((spec) => Number.isFinite(parameters[spec.name]))) return null;
   return { model: model.id, parameters };
 }
@@ -128,7 +131,7 @@ export async function bootstrapTests(
   seed: number,
   runner: ReplicateRunner,
   stage?: (label: string, total: number) => BatchProgress,
-  which: { nested?: boolean; nonNested?: boolean; nesting?: readonly string[] } = {},
+  which: { nested?: boolean; nonNested?: boolean; nesting?: readonly string[]; minimumSegment?: number } = {},
 ): Promise<BootstrapTestReport> {
   const design = designOf(fit.lineage);
   const byId = new Map(fit.models.map((model) => [model.id, model]));
@@ -177,7 +180,7 @@ export async function bootstrapTests(
   }
   const nesting: NestingTest[] = [];
   for (const id of which.nesting ?? []) {
-    nesting.push(await nestingTest(fit, id, replicates, seed, runner, stage));
+    nesting.push(await nestingTest(fit, id, replicates, seed, runner, stage, which.minimumSegment));
   }
   return which.nesting !== undefined && which.nesting.length > 0
     ? { nested, non_nested: nonNested, nested_models: nesting, replicates, seed }
@@ -193,6 +196,7 @@ export async function bootstrapTests(
  * logL*_reduced), p = (1 + #{T* ≥ T}) / (R + 1) (Davison & Hinkley 1997,
  * ch. 4), with the chi-square(1) p-value beside it for reference.
  *
+ * @param minimumSegment fewest horizons per segment of a shift model, as the observed fit used (absent: the model's default)
  * @throws Error when `id` is not a model that nests another (the CLI checks first)
  */
 export async function nestingTest(
@@ -202,6 +206,7 @@ export async function nestingTest(
   seed: number,
   runner: ReplicateRunner,
   stage?: (label: string, total: number) => BatchProgress,
+  minimumSegment?: number,
 ): Promise<NestingTest> {
   const nests = findModel(id)?.nests;
   if (!nests) throw new Error(`model "${id}" nests no other model`);
@@ -213,7 +218,8 @@ export async function nestingTest(
   const fitted = (model: ModelFit | undefined): model is ModelFit => model !== undefined && model.converged && Number.isFinite(model.logLik);
   if (!fitted(full) || !fitted(reduced)) {
     const [name, absent] = !fitted(full) ? [id, full] : [nests.model, reduced];
-    return { ...base, ...missing, not_tested: `${name} was not fitted${absent?.message ? ` (${absent.message})` : ''}` };
+    // The fitter's message already starts "not fitted: …" when the model could not be fitted at all.
+    return { ...base, ...missing, not_tested: absent?.message ? `${name}: ${absent.message}` : `${name} was not fitted` };
   }
   const generator = nullGenerator(reduced);
   if (!generator) return { ...base, ...missing, not_tested: `the fitted ${nests.model} has no finite parameters to draw replicates from` };
@@ -221,7 +227,7 @@ export async function nestingTest(
   const design = designOf(fit.lineage);
   const stream = nestingStream(id);
   const tasks: FitReplicateTask[] = Array.from({ length: replicates }, (_, index) => ({
-    design, generator: generator.model, parameters: generator.parameters, fit: [nests.model, id], seed, stream, index,
+    design, generator: generator.model, parameters: generator.parameters, fit: [nests.model, id], seed, stream, index, minimumSegment,
   }));
   const results = await runner.fits(tasks, stage?.(`${id}: replicates from fitted ${nests.model}`, replicates));
   const values = results.map((result) => ratioStatistic(result, id, nests.model)).filter((value): value is number => value !== null);

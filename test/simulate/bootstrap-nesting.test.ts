@@ -79,6 +79,27 @@ describe('bootstrap --models: newer models against the classic models they nest'
     expect(nestingModels('optimum-shift, accelerating-walk,optimum-shift').map((model) => model.id)).toEqual(['optimum-shift', 'accelerating-walk']);
   });
 
+  it('tests optimum-shift on a short lineage with --min-segment 3, drawing from the walk its ou fit at alpha = 0 equals', async () => {
+    // The first 8 horizons: no shift position with segments of 5 (the default), 3 with segments of 3.
+    const short = join(folder, 'short.csv');
+    writeFileSync(short, ['section,trait,time,n,mean,sd', ...means.slice(0, 8).map((mean, i) => `Marl Gully,width,${(0.5 * i).toFixed(1)},15,${mean.toFixed(2)},0.80`)].join('\n') + '\n');
+    const options = { ...base, threads: '1', models: 'optimum-shift' };
+    const [refused] = (await runBootstrap(short, options)).results[0].report.nested_models!;
+    expect(refused.not_tested).toMatch(/^optimum-shift: not fitted: 8 horizons leave no admissible shift position/);
+    expect(refused.p_bootstrap).toBeNull();
+
+    const fitted = runFit(short, { intervals: false, models: 'ou,optimum-shift', minSegment: '3' });
+    const ou = fitted.fits[0].models.find((model) => model.id === 'ou')!;
+    expect(ou.estimates.alpha).toBe(0); // the precondition: ou at its alpha -> 0 limit on these data
+    const [test] = (await runBootstrap(short, { ...options, minSegment: '3' })).results[0].report.nested_models!;
+    expect(test.generator).toBe('directional-walk');
+    const optimumShift = fitted.fits[0].models.find((model) => model.id === 'optimum-shift')!;
+    // Identity: 2 (logL_full − logL_reduced) of `fit --min-segment 3` on the same lineage.
+    expect(test.statistic!).toBeCloseTo(Math.max(0, 2 * (optimumShift.logLik - ou.logLik)), 9);
+    expect(test.p_bootstrap!).toBeGreaterThanOrEqual(1 / 20);
+    expect(test.p_bootstrap!).toBeLessThanOrEqual(1);
+  }, 60_000);
+
   it('lists the declared models in --help and exits 2 on a model that nests none, through the command line', async () => {
     const help = (await runCliHere(['bootstrap', '--help'], folder)).stdout.replace(/\s+/g, ' ');
     for (const model of allModels().filter((entry) => entry.nests)) expect(help).toContain(`${model.id} (${model.nests!.condition}: ${model.nests!.model})`);
@@ -94,7 +115,8 @@ describe('bootstrap --models: newer models against the classic models they nest'
     const atLimit = {
       id: 'ou', label: 'ou', k: 4, horizons: 12, logLik: -3, converged: true, message: null,
       parameters: {}, derived: { limit_drift: estimate(0.25) }, process: [0, 0.01],
-      estimates: { ancestral_mean: 10, alpha: 0, step_variance: 0.01 }, flags: [], intervalMethod: 'profile', evaluations: 1,
+      // The fit keeps the optimum as NaN at the limit (the JSON writes null).
+      estimates: { ancestral_mean: 10, optimum: Number.NaN, alpha: 0, step_variance: 0.01 }, flags: [], intervalMethod: 'profile', evaluations: 1,
     } as ModelFit;
     expect(nullGenerator(atLimit)).toEqual({ model: 'directional-walk', parameters: { ancestral_mean: 10, drift: 0.25, step_variance: 0.01 } });
     // Away from the limit the fitted model itself is the generator.
