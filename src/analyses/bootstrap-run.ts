@@ -60,8 +60,9 @@ export interface BootstrapRun {
 
 /**
  * Parametric-bootstrap tests for every lineage of FILE: read (streamed),
- * place the horizons with the age-model options, fit the classic models,
- * and run the tests on the worker pool.
+ * place the horizons with the age-model options, fit the classic models
+ * (and the `--models` ones), and run the tests on the worker pool: the two
+ * fixed tests, then each `--models` model against the model it nests.
  *
  * @param onRead called with the reading's time-axis and input warnings as soon as the file is read (before the options are checked and the replicates run)
  * @example
