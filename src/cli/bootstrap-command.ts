@@ -1,7 +1,7 @@
 import { caution, runBootstrap, type BootstrapCommandOptions } from '../analyses/bootstrap-run.js';
 import { stageProgress } from '../io/progress.js';
 import { formatNumber } from '../render/units.js';
-import type { BootstrapTestReport } from '../simulate/bootstrap-test.js';
+import type { BootstrapTestReport, NestingTest } from '../simulate/bootstrap-test.js';
 
 // `stratotrend bootstrap`: the tests are run by runBootstrap
 // (src/analyses/bootstrap-run.ts); this file prints them as text or JSON.
@@ -23,7 +23,20 @@ export function bootstrapTable(name: string, report: BootstrapTestReport): strin
     lines.push(`    under fitted stasis: ${q(other.under_stasis)}; P(at least the observed) = ${formatNumber(other.p_under_stasis)}`);
     lines.push(`    under the fitted random walk: ${q(other.under_random_walk)}; P(at most the observed) = ${formatNumber(other.p_under_random_walk)}`);
   } else lines.push('  random walk vs stasis: not tested (a model was not fitted or not compared)');
+  for (const test of report.nested_models ?? []) lines.push(...nestingLines(test));
   return lines.join('\n');
+}
+
+/** The text of one `--models` test: a newer model against the classic model it nests. */
+function nestingLines(test: NestingTest): string[] {
+  const heading = `  ${test.full} vs ${test.reduced} (nested, ${test.condition} under the null)`;
+  if (test.not_tested !== null) return [`${heading}: not tested (${test.not_tested})`];
+  const lines = [`${heading}:`];
+  lines.push(`    likelihood ratio 2 ΔlogL = ${formatNumber(test.statistic)}; bootstrap p = ${formatNumber(test.p_bootstrap)}; chi-square(1) p = ${formatNumber(test.p_chi_square)}${test.chi_square_exact ? '' : ' (for reference only)'}`);
+  lines.push(`    bootstrap 95% critical value ${formatNumber(test.critical_value)} (chi-square(1): 3.841)`);
+  if (test.chi_square_note !== null) lines.push(`    chi-square(1) reference ${test.chi_square_note}`);
+  if (test.generator !== test.reduced) lines.push(`    replicates drawn from ${test.generator}: the fitted ${test.reduced} sits at a limit where it equals that model`);
+  return lines;
 }
 
 /** `stratotrend bootstrap FILE`: parametric-bootstrap tests for every lineage. */

@@ -51,6 +51,7 @@ export const acceleratingWalk: EvolutionModel = {
   referenceKeys: ['voje2023'],
   plainWords: 'the trait mean wandered without a preferred direction, in steps that grew or shrank in size over time',
   // rate_change is searched relative to the lineage's span, and each section of a shared fit has its own span.
+  nests: { model: 'random-walk', condition: 'rate_change = 0' },
   notShared: 'the rate of change is searched relative to each lineage\'s own span, so sections with their own times cannot share it; compare it as separate or shared-offset',
   methodsNotes: [{
     key: 'accelerating-walk',

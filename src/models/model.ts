@@ -86,6 +86,25 @@ export interface HelpEntry {
   readonly lines: readonly string[];
 }
 
+/**
+ * The classic model a newer model reduces to when one of its parameters
+ * takes a fixed value (e.g. accelerating-walk at rate_change = 0 is
+ * random-walk): `bootstrap --models` tests the model against it by a
+ * parametric-bootstrap likelihood ratio.
+ */
+export interface NestedModel {
+  /** Id of the nested (null) model. */
+  readonly model: string;
+  /** The restriction in words, e.g. "rate_change = 0". */
+  readonly condition: string;
+  /**
+   * Why the chi-square(1) reference of the likelihood ratio is not exact
+   * even asymptotically (e.g. a parameter that exists only under the
+   * alternative), or absent when it is (a regular interior restriction).
+   */
+  readonly chiSquareCaveat?: string;
+}
+
 /** A sentence the report's methods paragraph adds when a model is fitted; models sharing `key` add it once. */
 export interface MethodsNote {
   readonly key: string;
@@ -166,6 +185,8 @@ export interface EvolutionModel {
   readonly plainWords?: string;
   /** Its entry in `stratotrend fit --help` (a family's other members leave it out). */
   readonly help?: HelpEntry;
+  /** The classic model this one reduces to under a restriction, for `bootstrap --models` (absent: it nests none). */
+  readonly nests?: NestedModel;
   /** Sentences the report's methods paragraph adds when the model is fitted (each once per key, shared by a family). */
   readonly methodsNotes?: readonly MethodsNote[];
   /** The report's reading caution when this model is best supported: a trend, or a form of stasis. */

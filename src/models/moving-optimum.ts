@@ -53,6 +53,7 @@ export const movingOptimum: EvolutionModel = {
   citation: 'Hansen, T. F., Pienaar, J. & Orzack, S. H. (2008). A comparative method for studying adaptation to a randomly evolving environment. Evolution 62:1965-1977.',
   referenceKeys: ['hansenPienaarOrzack2008', 'estesArnold2007', 'voje2023'],
   plainWords: 'the trait mean followed an optimum that moved steadily in one direction',
+  nests: { model: 'ou', condition: 'optimum_drift = 0' },
   methodsNotes: [{
     key: 'moving-optimum',
     sentence: () => 'In the moving-optimum model the lineage mean is attracted toward an optimum that moves linearly in time, which it follows with a lag of (drift of the optimum)/α; with a fixed optimum it is the Ornstein–Uhlenbeck model.',

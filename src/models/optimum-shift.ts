@@ -52,6 +52,12 @@ export const optimumShift: EvolutionModel = {
   citation: 'Hansen, T. F. (1997). Stabilizing selection and the comparative analysis of adaptation. Evolution 51:1341-1351.',
   referenceKeys: ['voje2023', 'hansen1997'],
   plainWords: 'the trait mean moved toward an optimum that shifted once during the sequence',
+  nests: {
+    model: 'ou',
+    condition: 'optimum_before = optimum_after',
+    // Davies, R. B. (1987). Hypothesis testing when a nuisance parameter is present only under the alternative. Biometrika 74:33-43.
+    chiSquareCaveat: 'not exact: the shift position exists only under the alternative and is searched, so the chi-square(1) p-value is too small (Davies 1987)',
+  },
   methodsNotes: [shiftMethodsNote, {
     key: 'optimum-shift',
     sentence: () => 'In the optimum-shift model the optimum of the Ornstein–Uhlenbeck process moves once, at the last horizon before the shift, with one strength of attraction α and one step variance throughout.',

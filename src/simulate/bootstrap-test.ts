@@ -1,4 +1,6 @@
 import type { LineageFit } from '../fit/fit-lineage.js';
+import type { ModelFit } from '../fit/fit-results.js';
+import { allModels, findModel } from '../models/registry.js';
 import { orderQuantile } from '../statistics/quantiles.js';
 import { chiSquareSurvival } from '../statistics/chi-square.js';
 import { designOf } from './design.js';
@@ -38,8 +40,68 @@ export interface BootstrapTestReport {
     readonly under_stasis: DistributionSummary;
     readonly under_random_walk: DistributionSummary;
   } | null;
+  /**
+   * `bootstrap --models`: each listed newer model against the classic model
+   * it nests (absent when none was asked for, so the default document is
+   * unchanged).
+   */
+  readonly nested_models?: readonly NestingTest[];
   readonly replicates: number;
   readonly seed: number;
+}
+
+/** A newer model against the classic model it nests: a parametric-bootstrap likelihood-ratio test. */
+export interface NestingTest {
+  readonly full: string;
+  readonly reduced: string;
+  /** The restriction that turns `full` into `reduced`, in words (e.g. "rate_change = 0"). */
+  readonly condition: string;
+  /** Why not tested (a model not fitted, or the null fit has no finite parameters to draw from); null when tested. */
+  readonly not_tested: string | null;
+  /** Model the replicates are drawn from: `reduced`, or the model a fit at a limit equals there (ou at alpha → 0: directional-walk). */
+  readonly generator: string | null;
+  /** Observed 2 (logL_full - logL_reduced), floored at 0. */
+  readonly statistic: number | null;
+  /** (1 + #{T* >= T}) / (R + 1) over the usable replicates from the fitted reduced model. */
+  readonly p_bootstrap: number | null;
+  /** Chi-square(1) upper-tail probability of the statistic, for reference. */
+  readonly p_chi_square: number | null;
+  /** False when the chi-square(1) reference is not exact even asymptotically; `chi_square_note` says why. */
+  readonly chi_square_exact: boolean;
+  readonly chi_square_note: string | null;
+  readonly critical_value: number | null;
+  readonly null_distribution: DistributionSummary | null;
+}
+
+/**
+ * Stream of the replicate seeds of the nesting test of `id`: 41 + the
+ * model's place among the models that declare `nests`, in registry order
+ * (models registered later get later streams, so a seed keeps its draws).
+ */
+export function nestingStream(id: string): number {
+  return 41 + allModels().filter((model) => model.nests !== undefined).findIndex((model) => model.id === id);
+}
+
+/**
+ * The model and parameters replicates are drawn from for a fitted null
+ * model: its own estimates, or, when it was fitted at a limit where some of
+ * its parameters are not finite, the model it equals there (as figures draw
+ * it: `EvolutionModel.limitDrawing`). Null when neither gives finite values.
+ */
+export function nullGenerator(fitted: ModelFit): { model: string; parameters: Record<string, number> } | null {
+  const definition = findModel(fitted.id);
+  if (!definition) return null;
+  // A parameter that is not finite at a limit (ou's optimum at alpha = 0, NaN in the fit) is absent, as in the JSON the figures read.
+  const estimates: Record<string, number> = {};
+  for (const [name, value] of Object.entries(fitted.estimates)) if (Number.isFinite(value)) estimates[name] = value;
+  const derived: Record<string, number> = {};
+  for (const [name, value] of Object.entries(fitted.derived)) if (value.estimate !== null && Number.isFinite(value.estimate)) derived[name] = value.estimate;
+  const rule = definition.limitDrawing;
+  const atLimit = rule !== undefined && rule.applies(estimates, derived);
+  const model = atLimit ? findModel(rule.drawnAs) : definition;
+  const parameters = atLimit ? rule.parameters(estimates, derived) : estimates;
+  if (!model || !model.parameters.every((spec) => Number.isFinite(parameters[spec.name]))) return null;
+  return { model: model.id, parameters };
 }
 
 const levels = [0.025, 0.05, 0.5, 0.95, 0.975];
@@ -69,7 +131,7 @@ export async function bootstrapTests(
   seed: number,
   runner: ReplicateRunner,
   stage?: (label: string, total: number) => BatchProgress,
-  which: { nested?: boolean; nonNested?: boolean } = {},
+  which: { nested?: boolean; nonNested?: boolean; nesting?: readonly string[]; minimumSegment?: number } = {},
 ): Promise<BootstrapTestReport> {
   const design = designOf(fit.lineage);
   const byId = new Map(fit.models.map((model) => [model.id, model]));
@@ -116,5 +178,68 @@ export async function bootstrapTests(
       under_random_walk: summary(fromWalk),
     };
   }
-  return { nested, non_nested: nonNested, replicates, seed };
+  const nesting: NestingTest[] = [];
+  for (const id of which.nesting ?? []) {
+    nesting.push(await nestingTest(fit, id, replicates, seed, runner, stage, which.minimumSegment));
+  }
+  return which.nesting !== undefined && which.nesting.length > 0
+    ? { nested, non_nested: nonNested, nested_models: nesting, replicates, seed }
+    : { nested, non_nested: nonNested, replicates, seed };
+}
+
+/**
+ * The parametric-bootstrap likelihood-ratio test of model `id` against the
+ * classic model it nests (`EvolutionModel.nests`), on a lineage fit that
+ * holds both: R replicates drawn from the fitted nested model on the
+ * lineage's design, both models refitted to each (a shift position searched
+ * in each replicate as in the observed fit), T* = 2 (logL*_full −
+ * logL*_reduced), p = (1 + #{T* ≥ T}) / (R + 1) (Davison & Hinkley 1997,
+ * ch. 4), with the chi-square(1) p-value beside it for reference.
+ *
+ * @param minimumSegment fewest horizons per segment of a shift model, as the observed fit used (absent: the model's default)
+ * @throws Error when `id` is not a model that nests another (the CLI checks first)
+ */
+export async function nestingTest(
+  fit: LineageFit,
+  id: string,
+  replicates: number,
+  seed: number,
+  runner: ReplicateRunner,
+  stage?: (label: string, total: number) => BatchProgress,
+  minimumSegment?: number,
+): Promise<NestingTest> {
+  const nests = findModel(id)?.nests;
+  if (!nests) throw new Error(`model "${id}" nests no other model`);
+  const caveat = nests.chiSquareCaveat ?? null;
+  const base = { full: id, reduced: nests.model, condition: nests.condition, chi_square_exact: caveat === null, chi_square_note: caveat };
+  const missing = { generator: null, statistic: null, p_bootstrap: null, p_chi_square: null, critical_value: null, null_distribution: null };
+  const full = fit.models.find((model) => model.id === id);
+  const reduced = fit.models.find((model) => model.id === nests.model);
+  const fitted = (model: ModelFit | undefined): model is ModelFit => model !== undefined && model.converged && Number.isFinite(model.logLik);
+  if (!fitted(full) || !fitted(reduced)) {
+    const [name, absent] = !fitted(full) ? [id, full] : [nests.model, reduced];
+    // The fitter's message already starts "not fitted: …" when the model could not be fitted at all.
+    return { ...base, ...missing, not_tested: absent?.message ? `${name}: ${absent.message}` : `${name} was not fitted` };
+  }
+  const generator = nullGenerator(reduced);
+  if (!generator) return { ...base, ...missing, not_tested: `the fitted ${nests.model} has no finite parameters to draw replicates from` };
+  const statistic = Math.max(0, 2 * (full.logLik - reduced.logLik));
+  const design = designOf(fit.lineage);
+  const stream = nestingStream(id);
+  const tasks: FitReplicateTask[] = Array.from({ length: replicates }, (_, index) => ({
+    design, generator: generator.model, parameters: generator.parameters, fit: [nests.model, id], seed, stream, index, minimumSegment,
+  }));
+  const results = await runner.fits(tasks, stage?.(`${id}: replicates from fitted ${nests.model}`, replicates));
+  const values = results.map((result) => ratioStatistic(result, id, nests.model)).filter((value): value is number => value !== null);
+  const sorted = [...values].sort((a, b) => a - b);
+  return {
+    ...base,
+    not_tested: null,
+    generator: generator.model,
+    statistic,
+    p_bootstrap: (1 + values.filter((value) => value >= statistic).length) / (values.length + 1),
+    p_chi_square: chiSquareSurvival(statistic, 1),
+    critical_value: sorted.length > 0 ? orderQuantile(sorted, 0.95) : null,
+    null_distribution: summary(values),
+  };
 }

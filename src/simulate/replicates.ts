@@ -21,6 +21,8 @@ export interface FitReplicateTask {
   /** Which family of replicates (grid point, null set, design size...): part of the replicate's seed. */
   readonly stream: number;
   readonly index: number;
+  /** Fewest horizons per segment of a shift model in `fit` (absent: the model's default, as `fit` without `--min-segment`). */
+  readonly minimumSegment?: number;
 }
 
 /** What one replicate returns: per fitted model, logL, AICc and Akaike weight (null when not compared). */
@@ -50,7 +52,7 @@ export function fitReplicate(task: FitReplicateTask): FitReplicateResult {
   const design = designLineage(task.design);
   const random = createRandom(replicateSeed(task.seed, task.stream, task.index));
   const lineage = withMeans(design, simulateMeans(generator, design, { ...task.parameters }, random));
-  const fitted = fitLineage(lineage, task.fit.map(modelById), { intervals: false });
+  const fitted = fitLineage(lineage, task.fit.map(modelById), { intervals: false, minimumSegment: task.minimumSegment });
   const logLik: Record<string, number | null> = {};
   const aicc: Record<string, number | null> = {};
   const weight: Record<string, number | null> = {};
