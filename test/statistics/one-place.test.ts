@@ -63,9 +63,9 @@ describe('one progress bar', () => {
 });
 
 describe('--models is resolved once per run', () => {
-  it('resolveModels is called only where a run starts (runFit, runFitStreamed, runCompare) and sets are looked up only there', () => {
+  it('resolveModels is called only where a run starts (runFit, runFitStreamed, runCompare, runPower) and sets are looked up only there', () => {
     const calls = files.flatMap((file) => [...file.code.matchAll(/\bresolveModels\(/g)].map(() => file.path)).filter((path) => path !== 'analyses/model-selection.ts');
-    expect(calls.sort()).toEqual(['analyses/compare-run.ts', 'analyses/fit-run.ts', 'analyses/fit-run.ts']);
+    expect(calls.sort()).toEqual(['analyses/compare-run.ts', 'analyses/fit-run.ts', 'analyses/fit-run.ts', 'analyses/power-run.ts']);
     expect(files.filter((file) => /\bmodelSets\[/.test(file.code)).map((file) => file.path)).toEqual(['analyses/model-selection.ts']);
   });
 });
