@@ -201,9 +201,10 @@ export interface JointPowerOptions extends Omit<JointOptions, 'threads'> {
  * `power FILE --correlations r1,r2,...`: the power to detect an
  * evolutionary correlation between the first two traits of a section
  * (`--lineage` names the section; default the first group) on the file's own
- * design. Prints a table, or JSON with --json.
+ * design. Returns the text to print: a table, JSON with --json, nothing with
+ * --quiet (the command prints it).
  */
-export async function jointPowerCommand(file: string, options: JointPowerOptions, parse: { replicates: (text: string | undefined) => number; seed: (text: string | undefined) => number }): Promise<void> {
+export async function runJointPower(file: string, options: JointPowerOptions, parse: { replicates: (text: string | undefined) => number; seed: (text: string | undefined) => number }): Promise<string> {
   const correlations = options.correlations.split(',').map((part) => part.trim()).filter((part) => part !== '').map((part) => {
     const value = Number(part);
     if (!(Math.abs(value) < 1)) throw usageError(`--correlations: each value must lie strictly between -1 and 1, got "${part}"`);
@@ -218,20 +219,19 @@ export async function jointPowerCommand(file: string, options: JointPowerOptions
   if (!group) throw usageError(`--lineage: no section "${options.lineage}" with two or more traits; the sections are ${groups.map((entry) => `"${entry.section}"`).join(', ')}`);
   const { rows, stepVariances } = jointCorrelationPower(group, correlations, replicates, seed);
   if (options.json) {
-    process.stdout.write(JSON.stringify({
+    return JSON.stringify({
       provenance: { tool: 'stratotrend', command: 'power', inputs: [input], options: { correlations, replicates, seed, section: group.section, traits: group.traits.slice(0, 2) } },
       design: { section: group.section, traits: group.traits, horizons: group.data.time.length, step_variances: stepVariances },
       criterion: 'correlated-random-walk has a lower AICc than independent-random-walks',
       rows: rows.map((row) => ({ correlation: row.correlation, power: row.power, mean_estimate: row.meanEstimate })),
-    }, null, 2) + '\n');
-    return;
+    }, null, 2) + '\n';
   }
-  if (options.quiet) return;
+  if (options.quiet) return '';
   const lines = [
     `Power to detect a correlation between the steps of ${group.traits[0]} and ${group.traits[1]} (${group.section || 'the file'}: ${group.data.time.length} horizons, its own times, missing values and sampling variances; step variances ${stepVariances.slice(0, 2).map((value) => formatValue(value)).join(' and ')} from independent-random-walks fitted to it; ${replicates} replicates each).`,
     'Detected: correlated-random-walk has a lower AICc than independent-random-walks. At correlation 0 this is the false-correlation rate.',
     '  correlation  detected  mean estimate',
     ...rows.map((row) => `  ${row.correlation.toFixed(2).padStart(11)}  ${row.power.toFixed(3).padStart(8)}  ${row.meanEstimate.toFixed(3).padStart(13)}`),
   ];
-  process.stdout.write(lines.join('\n') + '\n');
+  return lines.join('\n') + '\n';
 }

@@ -11,9 +11,9 @@ import { lineageName } from '../lineage.js';
 export async function powerCommand(file: string, options: PowerCommandOptions): Promise<void> {
   if (options.correlations !== undefined) {
     // Power to detect an evolutionary correlation between two traits (issue 17, the joint models).
-    const { jointPowerCommand } = await import('../analyses/joint-simulate.js');
+    const { runJointPower } = await import('../analyses/joint-simulate.js');
     const { threads: _threads, ...rest } = options;
-    await jointPowerCommand(file, { ...rest, correlations: options.correlations }, { replicates: (text) => wholeOption(text, '--replicates', 200, 1, 100000), seed: seedOption });
+    process.stdout.write(await runJointPower(file, { ...rest, correlations: options.correlations }, { replicates: (text) => wholeOption(text, '--replicates', 200, 1, 100000), seed: seedOption }));
     return;
   }
   if (options.figure) refuseInputPath(options.figure, [file]);

@@ -143,6 +143,13 @@ describe('no circles in src/', () => {
     expect(crossing).toEqual([]);
   });
 
+  it('analyses/ print nothing: they return documents and text, the command files write them to standard output (issue 13)', () => {
+    const analyses = sources(join(sourceRoot, 'analyses'));
+    expect(analyses.length).toBeGreaterThan(0);
+    const printing = analyses.filter((path) => /process\.stdout\.write/.test(readFileSync(path, 'utf8'))).map((path) => relative(sourceRoot, path));
+    expect(printing).toEqual([]);
+  });
+
   it('fit/ imports neither simulate/ nor parallel/ (random numbers and simulation under a model live below it, in random/)', () => {
     const crossing = [...fileGraph].flatMap(([from, targets]) => (folderOf(from) === 'fit' ? targets.filter((target) => ['simulate', 'parallel'].includes(folderOf(target))).map((target) => `${from} → ${target}`) : []));
     expect(crossing).toEqual([]);
