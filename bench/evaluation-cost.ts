@@ -67,13 +67,12 @@ export function bareRandomWalkLogLik(time: Float64Array, mean: Float64Array, sam
 }
 
 /**
- * CPU nanoseconds per call: after one warm-up call (unless `warm` is false),
- * repeated until `budgetMs` of wall time has passed in each of `rounds`
- * rounds; the fastest round. On a shared machine other jobs only ever slow a
- * round down (cache and core sharing inflate even CPU time), so the fastest
- * round is the least disturbed, for the unit and the work alike.
+ * CPU nanoseconds per call of each of `rounds` rounds: after one warm-up call
+ * (unless `warm` is false), `run` is repeated until `budgetMs` of wall time has
+ * passed in each round. The benchmark takes the median round (bench/run.ts) or
+ * the fastest ({@link cpuNanoseconds}).
  */
-function cpuNanoseconds(run: () => void, budgetMs: number, rounds: number, warm = true): number {
+export function cpuNanosecondsPerRound(run: () => void, budgetMs: number, rounds: number, warm = true): number[] {
   const perRound: number[] = [];
   if (warm) run();
   for (let round = 0; round < rounds; round++) {
@@ -87,7 +86,17 @@ function cpuNanoseconds(run: () => void, budgetMs: number, rounds: number, warm 
     const used = process.cpuUsage(cpu);
     perRound.push(((used.user + used.system) * 1e3) / calls);
   }
-  return Math.min(...perRound);
+  return perRound;
+}
+
+/**
+ * CPU nanoseconds per call: the fastest round of {@link cpuNanosecondsPerRound}.
+ * On a shared machine other jobs only ever slow a round down (cache and core
+ * sharing inflate even CPU time), so the fastest round is the least disturbed,
+ * for the unit and the work alike.
+ */
+function cpuNanoseconds(run: () => void, budgetMs: number, rounds: number, warm = true): number {
+  return Math.min(...cpuNanosecondsPerRound(run, budgetMs, rounds, warm));
 }
 
 /** CPU milliseconds of one async run, the fastest of `repeats` runs. */

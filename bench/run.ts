@@ -29,7 +29,7 @@ import type { Lineage } from '../src/lineage.js';
 import type { EvolutionModel } from '../src/models/model.js';
 import { classicModels, findModel } from '../src/models/registry.js';
 import { lineageDocument } from '../src/render/fit-document.js';
-import { evaluationCostLines, measureEvaluationCost } from './evaluation-cost.js';
+import { cpuNanosecondsPerRound, evaluationCostLines, measureEvaluationCost } from './evaluation-cost.js';
 import { benchLineage } from './workload.js';
 
 const distRoot = new URL('../', import.meta.url); // dist/
@@ -46,20 +46,7 @@ const outFile = outIndex >= 0 ? process.argv[outIndex + 1] : smoke ? null : file
  * repeated until `budgetMs` of wall time has passed, median of `rounds` rounds.
  */
 function nanosecondsPerCall(run: () => void, budgetMs: number, rounds = 5): number {
-  const perRound: number[] = [];
-  run();
-  for (let round = 0; round < rounds; round++) {
-    let calls = 0;
-    const started = performance.now();
-    const cpu = process.cpuUsage();
-    do {
-      run();
-      calls += 1;
-    } while (performance.now() - started < budgetMs / rounds);
-    const used = process.cpuUsage(cpu);
-    perRound.push(((used.user + used.system) * 1e3) / calls);
-  }
-  return median(perRound);
+  return median(cpuNanosecondsPerRound(run, budgetMs, rounds));
 }
 
 function generatingParameters(model: EvolutionModel, lineage: Lineage): Record<string, number> {

@@ -34,8 +34,8 @@ function estimateDocument(estimate: ParameterEstimate): EstimateView {
   };
 }
 
-/** The JSON form of one ranked model fit. */
-export function modelDocument(model: RankedFit): ModelView {
+/** What a ranked model of any kind (one trait, or several traits in `joint`) reports of its place in the AICc table, as JSON fields in this order. */
+export function rankingDocument(model: { id: string; label: string; k: number; logLik: number | null; aicc: number | null; deltaAicc: number | null; weight: number | null }): { id: string; label: string; k: number; logLik: number | null; aicc: number | null; delta_aicc: number | null; weight: number | null } {
   return {
     id: model.id,
     label: model.label,
@@ -44,6 +44,13 @@ export function modelDocument(model: RankedFit): ModelView {
     aicc: finiteOrNull(model.aicc),
     delta_aicc: finiteOrNull(model.deltaAicc),
     weight: finiteOrNull(model.weight),
+  };
+}
+
+/** The JSON form of one ranked model fit. */
+export function modelDocument(model: RankedFit): ModelView {
+  return {
+    ...rankingDocument(model),
     converged: model.converged,
     compared: model.aicc !== null,
     not_compared_reason: model.notCompared,

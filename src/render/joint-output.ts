@@ -2,7 +2,7 @@ import type { Warning } from '../data/warnings.js';
 import type { JointParameters, RankedJointFit } from '../joint/fit-joint.js';
 import type { JointInterval, JointIntervals } from '../joint/joint-intervals.js';
 import type { JointGroup } from '../joint/joint-groups.js';
-import { finiteOrNull, type Provenance } from './fit-document.js';
+import { finiteOrNull, rankingDocument, type Provenance } from './fit-document.js';
 import { csvField } from './models-csv.js';
 import { formatFixed } from './units.js';
 
@@ -99,13 +99,7 @@ export function jointDocument(fits: readonly JointGroupFit[], provenance: Proven
       best_model: best,
       series: seriesDocument(group),
       models: models.map((model) => ({
-        id: model.id,
-        label: model.label,
-        k: model.k,
-        logLik: finiteOrNull(model.logLik),
-        aicc: finiteOrNull(model.aicc),
-        delta_aicc: finiteOrNull(model.deltaAicc),
-        weight: finiteOrNull(model.weight),
+        ...rankingDocument(model),
         compared: model.aicc !== null,
         not_compared: model.notCompared,
         params: paramsDocument(model.parameters),
