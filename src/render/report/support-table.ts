@@ -49,12 +49,15 @@ function boundText(estimate: EstimateView): string {
 }
 
 function unitOf(modelId: string, name: string, lineage: LineageView): string {
-  const spec = findModel(modelId)?.parameters.find((parameter) => parameter.name === name);
+  const parameters = findModel(modelId)?.parameters ?? [];
+  const spec = parameters.find((parameter) => parameter.name === name);
+  // A quantity reported at a limit (ou's limit_drift at alpha = 0) has the unit its parameter's `runaway` declares.
+  const unit = spec?.unit ?? parameters.find((parameter) => parameter.runaway?.derived === name)?.runaway?.unit;
   const logged = lineage.transform === 'ln';
   // Without a trait unit: "ln units" / "trait units", as before --trait-unit existed.
   const traitLabel = traitUnitLabel(lineage.trait_unit, logged, logged ? 'ln units' : 'trait units');
-  if (!spec) return name === 'half_life' ? lineage.time_unit : '';
-  return unitLabel(spec.unit, lineage.time_unit, traitLabel);
+  if (!unit) return name === 'half_life' ? lineage.time_unit : '';
+  return unitLabel(unit, lineage.time_unit, traitLabel);
 }
 
 /** A shift as a reader wants it: the horizon where the new segment starts, with its age (and height or depth). */
