@@ -35,13 +35,17 @@ export class InputError extends Error {
  * Make a message one line whatever the offending value holds: line breaks,
  * tabs and other control characters (C0, DEL and C1, and the Unicode line and
  * paragraph separators) are written as escapes (\n, \t, \u001b, \u009b), so
- * nothing a file holds reaches the terminal as a control character.
+ * nothing a file holds reaches the terminal as a control character; so are
+ * the bidirectional embedding, override and isolate controls (U+202A–U+202E,
+ * U+2066–U+2069), which would reorder the rest of the message as displayed,
+ * and the invisible U+200B, U+2060 and U+FEFF.
  *
  * @example
  * oneLine('got "a\nb"'); // 'got "a\\nb"'
+ * oneLine('got "a\u202eb"'); // 'got "a\\u202eb"'
  */
 export function oneLine(text: string): string {
-  return text.replace(/[\u0000-\u001f\u007f-\u009f\u2028\u2029]/g, (character) => {
+  return text.replace(/[\u0000-\u001f\u007f-\u009f\u2028\u2029\u202a-\u202e\u2066-\u2069\u200b\u2060\ufeff]/g, (character) => {
     if (character === '\n') return '\\n';
     if (character === '\r') return '\\r';
     if (character === '\t') return '\\t';

@@ -48,6 +48,39 @@ export function describeControlCharacter(code: number): string {
 }
 
 /**
+ * Invisible formatting characters with no place in a name (Unicode general
+ * category Cf): the bidirectional embedding, override and isolate controls
+ * U+202A–U+202E and U+2066–U+2069 reorder the text a terminal or a table
+ * shows after them (the "Trojan Source" display attack, Boucher & Anderson
+ * 2021), and the zero-width space U+200B, word joiner U+2060 and zero-width
+ * no-break space U+FEFF make two different names look the same, so one
+ * lineage could silently become two. The zero-width joiners U+200C/U+200D and
+ * the marks U+200E/U+200F/U+061C are left alone: scripts such as Persian and
+ * Arabic use them in ordinary words.
+ */
+const invisibleFormat = /[\u202a-\u202e\u2066-\u2069\u200b\u2060\ufeff]/;
+
+/** Names of the invisible formatting characters refused in names, for messages. */
+const formatNames: Readonly<Record<number, string>> = {
+  0x202a: 'LEFT-TO-RIGHT EMBEDDING', 0x202b: 'RIGHT-TO-LEFT EMBEDDING', 0x202c: 'POP DIRECTIONAL FORMATTING', 0x202d: 'LEFT-TO-RIGHT OVERRIDE', 0x202e: 'RIGHT-TO-LEFT OVERRIDE',
+  0x2066: 'LEFT-TO-RIGHT ISOLATE', 0x2067: 'RIGHT-TO-LEFT ISOLATE', 0x2068: 'FIRST STRONG ISOLATE', 0x2069: 'POP DIRECTIONAL ISOLATE',
+  0x200b: 'ZERO WIDTH SPACE', 0x2060: 'WORD JOINER', 0xfeff: 'ZERO WIDTH NO-BREAK SPACE',
+};
+
+/**
+ * The first invisible formatting character refused in names (see
+ * {@link invisibleFormat}), or null.
+ *
+ * @example
+ * firstInvisibleFormat('Korrin\u202eGap'); // { position: 7, code: 8238 }
+ * firstInvisibleFormat('Korrin Gap'); // null
+ */
+export function firstInvisibleFormat(text: string): ControlCharacterAt | null {
+  const match = invisibleFormat.exec(text);
+  return match === null ? null : { position: match.index + 1, code: text.charCodeAt(match.index) };
+}
+
+/**
  * Check a name read from input (a section, a trait, a tie file's section):
  * it must hold no control character, since names are printed to terminals
  * and written into every output. The message names the file, line, column,
@@ -64,6 +97,14 @@ export function checkName(name: string, where: { file?: string; line?: number; c
   if (found !== null) {
     throw new InputError(
       `contains the control character ${describeControlCharacter(found.code)} at character ${found.position}, got "${name}"; names must be printable text (a terminal would act on the character)`,
+      where,
+    );
+  }
+  const hidden = firstInvisibleFormat(name);
+  if (hidden !== null) {
+    const hex = `U+${hidden.code.toString(16).toUpperCase().padStart(4, '0')}`;
+    throw new InputError(
+      `contains the invisible formatting character ${hex} (${formatNames[hidden.code]}) at character ${hidden.position}, got "${name}"; names must be visible text (it would reorder what is shown after it, or make two different names look the same)`,
       where,
     );
   }

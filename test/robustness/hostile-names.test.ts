@@ -181,3 +181,34 @@ describe('CSV outputs: text cells that a spreadsheet would run as a formula get 
     }
   });
 });
+
+// Invisible formatting characters (Unicode general category Cf): the
+// bidirectional embedding/override/isolate controls U+202A–U+202E and
+// U+2066–U+2069 reorder the text displayed after them (Boucher & Anderson 2021,
+// "Trojan Source", CVE-2021-42574), and U+200B / U+2060 / U+FEFF are invisible,
+// so two different names would look the same. Code points from the Unicode
+// Standard's Cf list (from memory, common practice).
+describe('invisible formatting characters in names are refused with line and column', () => {
+  const invisible = /[\u202a-\u202e\u2066-\u2069\u200b\u2060\ufeff]/;
+  const cases: Array<[string, string, string, string]> = [
+    ['rlo-section.csv', 'Korrin\u202eGap', 'length', ' line 2, column "section": contains the invisible formatting character U+202E (RIGHT-TO-LEFT OVERRIDE) at character 7, got "Korrin\\u202eGap"; names must be visible text (it would reorder what is shown after it, or make two different names look the same)'],
+    ['isolate-trait.csv', 'Korrin', '\u2066length', ' line 2, column "trait": contains the invisible formatting character U+2066 (LEFT-TO-RIGHT ISOLATE) at character 1, got "\\u2066length"; names must be visible text (it would reorder what is shown after it, or make two different names look the same)'],
+    ['zwsp-section.csv', 'Korrin\u200b', 'length', ' line 2, column "section": contains the invisible formatting character U+200B (ZERO WIDTH SPACE) at character 7, got "Korrin\\u200b"; names must be visible text (it would reorder what is shown after it, or make two different names look the same)'],
+  ];
+
+  it.each(cases)('%s: both readers give the same one line, with the character escaped, exit 1', async (file, section, trait, message) => {
+    const path = write(file, `section,trait,age,n,mean,sd\n${sampleRows(section, trait).join('\n')}\n`);
+    const run = await runCliHere(['fit', path, '--no-intervals'], folder);
+    expect(run.status).toBe(1);
+    expect(run.stdout).toBe('');
+    expect(run.stderr).toBe(`stratotrend: ${path}${message}\n`);
+    expect(run.stderr).not.toMatch(invisible);
+    expect(wholeFileMessage(path)).toBe(`${path}${message}`);
+  });
+
+  it('names in scripts that use the zero-width joiners and direction marks in ordinary words are accepted', () => {
+    // U+200C ZERO WIDTH NON-JOINER is part of ordinary Persian spelling; U+200F RIGHT-TO-LEFT MARK of right-to-left text.
+    const path = write('persian.csv', `section,trait,age,n,mean,sd\n${sampleRows('\u0645\u06cc\u200c\u0631\u0648\u062f', 'length \u200f').join('\n')}\n`);
+    expect(wholeFileMessage(path)).toBe('(accepted)');
+  });
+});
