@@ -105,7 +105,8 @@ export function jointTrajectoryPlan(group: JointFigureGroup, first: number, seco
   const oldest = group.series.position[both[0]?.i ?? 0];
   const youngest = group.series.position[both[both.length - 1]?.i ?? 0];
   const axisWord = group.series.axis === 'age' ? 'age' : 'time';
-  const subtitle = `Horizon means joined in time order, light (oldest, ${axisWord} ${oldest}) to dark (youngest, ${axisWord} ${youngest} ${group.time_unit}); ellipses: 95% sampling region of each pair of means${both.length < group.series.mean.length ? `; ${group.series.mean.length - both.length} horizon(s) lacking one of the traits left out` : ''}.`;
+  const missing = group.series.mean.length - both.length;
+  const subtitle = `Horizon means joined in time order, light (oldest, ${axisWord} ${oldest} ${group.time_unit}) to dark (youngest, ${axisWord} ${youngest} ${group.time_unit}); ellipses: 95% sampling region of each pair of means${missing > 0 ? `; ${missing} ${missing === 1 ? 'horizon' : 'horizons'} lacking one of the traits left out` : ''}.`;
   const header = titleBlock(title, subtitle, widthPoints - 2 * margin);
   const heightPoints = Math.round(widthPoints * 0.85 + header.height);
   const plugin: Plugin<'scatter'> = {
