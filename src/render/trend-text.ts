@@ -1,6 +1,7 @@
 import type { LineageFit } from '../fit/fit-lineage.js';
 import type { TrendTest } from '../trend/trend-test.js';
 import { formatNumber } from './units.js';
+import { capitalised } from './words.js';
 
 /** The cautions every trend verdict carries (text, README and report say the same). */
 export const trendCaution = 'A supported trend describes the net pattern on this design; by itself it says nothing about selection versus drift, and it depends on the age model and time-averaging.';
@@ -40,7 +41,8 @@ export function weakOuWin(fit: LineageFit): string | null {
  */
 export function trendText(fit: LineageFit, test: TrendTest): string[] {
   const levelText = `${Number((test.level * 100).toPrecision(3))}%`;
-  if (test.p_value === null) return [`  Trend test: ${test.note ?? 'not made'}.`];
+  // The note says why no test was made ("no trend test: …"); shown as it stands.
+  if (test.p_value === null) return [`  ${capitalised(test.note ?? 'no trend test')}.`];
   const verdict = test.supported
     ? `a directional trend (${test.direction ?? 'no direction'}) is supported at the ${levelText} level`
     : `no directional trend is supported at the ${levelText} level`;

@@ -242,7 +242,8 @@ export function trendTest(fit: LineageFit, options: TrendTestOptions = {}): Tren
     aicc_false_trend_rate: null, aicc_ou_rate: null, rate_replicates: 0, null_model: null, p_by_null: {}, note,
   });
   const full = byId.get(directionalModel);
-  if (!fitted(full) || full.aicc === null) return empty('no trend test: the directional walk was not fitted or not compared (too few horizons?)');
+  if (full === undefined) return empty('no trend test: the directional walk is not among the models fitted (add directional-walk to --models to test for a trend)');
+  if (!fitted(full) || full.aicc === null) return empty(`no trend test: the directional walk was not fitted or not compared${full.message ? ` (${full.message})` : ''}`);
   const nulls = nonDirectionalModels.map((id) => byId.get(id)).filter(fitted);
   if (nulls.length === 0) return empty('no trend test: no non-directional model was fitted');
   const logLik: Record<string, number> = {};

@@ -135,3 +135,22 @@ describe('size under the null of no directional change (binomial bound, common p
     });
   }
 });
+
+// Common practice: a test of the directional walk against the non-directional
+// models needs the directional walk to be fitted; when `--models` leaves it out,
+// the note says so and how to ask for it (it used to guess "too few horizons?").
+describe('trend test without the directional walk', () => {
+  it('says the directional walk was not asked for, and makes no test', async () => {
+    const { fitLineage } = await import('../../src/fit/fit-lineage.js');
+    const { findModel } = await import('../../src/models/registry.js');
+    const { lineageFromArrays } = await import('../../src/lineage.js');
+    const { trendTest } = await import('../../src/trend/trend-test.js');
+    const time = Array.from({ length: 12 }, (_, i) => i);
+    const lineage = lineageFromArrays({ time, mean: time.map((t) => 5 + 0.1 * t + (t % 2) * 0.05), samplingVariance: time.map(() => 0.01) });
+    const fit = fitLineage(lineage, [findModel('stasis')!, findModel('random-walk')!], { intervals: false });
+    const test = trendTest(fit, { seed: 1 });
+    expect(test.p_value).toBeNull();
+    expect(test.replicates).toBe(0);
+    expect(test.note).toBe('no trend test: the directional walk is not among the models fitted (add directional-walk to --models to test for a trend)');
+  });
+});

@@ -5,6 +5,7 @@ import { drawLegend, font, layoutLegend, withOpacity, wrapText, type LegendLayou
 import { ink, lineWidth, seriesStyles, typeSize, type MarkerShape } from './style.js';
 import { drawableLimits, fittedTicks, tickLabel, type RoundStep } from './ticks.js';
 import { squaredLabel, traitUnitLabel } from '../units.js';
+import { capitalised } from '../words.js';
 
 /** What the power-curve figure needs: the grid of `power --json` and a few words about the design. */
 export interface PowerCurveInput {
@@ -252,8 +253,4 @@ export function powerCurvePlan(input: PowerCurveInput, options: FigureOptions = 
 export function renderPowerCurve(input: PowerCurveInput, options: FigureOptions = {}): RenderedFigure {
   const { plan, resolved } = powerCurvePlan(input, options);
   return drawFigure(plan, resolved);
-}
-
-function capitalised(text: string): string {
-  return text.charAt(0).toUpperCase() + text.slice(1);
 }

@@ -7,6 +7,7 @@ import { horizonMarks, modelCurve, paddedLimits, timeAxisFor, traitAxisTitle, ty
 import { drawInterval, drawMarker, drawStyledLine, fillBetween, font, hasEmphasis, styledWords, wrapStyled, wrapText, type Context } from './marks.js';
 import { ink, lineWidth, modelInk, typeSize } from './style.js';
 import { drawableLimits, fittedTicks, tickLabel } from './ticks.js';
+import { capitalised } from '../words.js';
 
 /**
  * The sections figure for many sections: one small panel per section on
@@ -298,8 +299,4 @@ export function smallMultiplesPlan(lineages: readonly FigureLineage[], options: 
   });
   const title = `${capitalised(lineages[0].trait || 'trait')}: ${lineages.length} sections`;
   return { widthPoints, heightPoints, title, configuration, panels, columns, limits, reversed };
-}
-
-function capitalised(text: string): string {
-  return text.charAt(0).toUpperCase() + text.slice(1);
 }

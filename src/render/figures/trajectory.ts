@@ -25,6 +25,7 @@ import {
 } from './marks.js';
 import { ink, lineWidth, markerRadius, modelInk, seriesStyle, smoothedInk, typeSize, type SeriesStyle } from './style.js';
 import { drawableLimits, fittedTicks, roundStep, tickLabel, type RoundStep } from './ticks.js';
+import { capitalised } from '../words.js';
 
 /** The first part of a model label, before any gloss in parentheses: "directional walk (random walk with drift)" → "directional walk". */
 export function shortModelLabel(label: string): string {
@@ -313,10 +314,6 @@ function countLegend(scaling: { reference: number; smallest: number; largest: nu
       text: `Marker area proportional to n (this size: median n = ${round(scaling.reference)}; n from ${round(scaling.smallest)} to ${round(scaling.largest)})${clamped ? ', areas held within ¼ to 4 times this' : ''}`,
     },
   ];
-}
-
-function capitalised(text: string): string {
-  return text.charAt(0).toUpperCase() + text.slice(1);
 }
 
 // The round-tick helpers (1–2–5 × 10^k steps, labels that fit) live in ticks.ts, shared with the power curve.

@@ -2,6 +2,7 @@ import type { MethodsNote } from '../../models/model.js';
 import { findModel } from '../../models/registry.js';
 import type { FitDocumentView, LineageView, ModelView } from './document-view.js';
 import { findReference, modelReferenceKeys, uniqueKeys, type Reference } from './references.js';
+import { capitalised } from '../words.js';
 
 /**
  * One sentence of the methods text. `text` may cite inline with markers
@@ -87,10 +88,6 @@ function listInWords(items: readonly string[]): string {
 function countWords(count: number): string {
   const words = ['no', 'one', 'two', 'three', 'four', 'five', 'six', 'seven', 'eight', 'nine', 'ten', 'eleven', 'twelve', 'thirteen', 'fourteen', 'fifteen', 'sixteen', 'seventeen', 'eighteen', 'nineteen', 'twenty'];
   return words[count] ?? String(count);
-}
-
-function capitalised(text: string): string {
-  return text.charAt(0).toUpperCase() + text.slice(1);
 }
 
 function plural(count: number, word: string, many = `${word}s`): string {
