@@ -10,6 +10,7 @@ import { formatFixed, formatNumber } from './units.js';
 import type { CandidateSpread, Spread } from '../compare/age-uncertainty.js';
 import { candidateKey, type HypothesisFit, type LeftOutHypothesis, type TraitComparison } from '../compare/compare-sections.js';
 import { commonTime } from '../compare/stack.js';
+import { listWords } from './words.js';
 
 /** Words for each hypothesis id. */
 export const hypothesisWords: Record<string, string> = {
@@ -156,10 +157,6 @@ export function intervalWords(method: string): string {
   if (method === 'none' || method === '') return 'no intervals';
   const described = method.split(' / ').map((part) => intervalMethodWords[part] ?? part).join(' / ');
   return `95% ${described} intervals where computed`;
-}
-
-function listWords(items: readonly string[]): string {
-  return items.length <= 2 ? items.join(' and ') : `${items.slice(0, -1).join(', ')} and ${items[items.length - 1]}`;
 }
 
 /** The left-out hypotheses in words, one line per reason: "Left out, never ranked — shared and shared-offset of a, b: reason". */

@@ -7,6 +7,7 @@ import { lineageTitle, type FitDocumentView, type LineageView } from './document
 import { escapeHtml, exactValue, slug } from './html.js';
 import { adequacyBlock, jsonBlock, ratesBlock } from './optional-blocks.js';
 import { estimatesTable, supportTable } from './support-table.js';
+import { listWords } from '../words.js';
 
 /** One figure ready for the page: already-rendered bytes of an image. */
 export interface ReportFigure {
@@ -102,11 +103,6 @@ export function plainSummary(lineage: LineageView, summary: DataSummary): string
   if (summary.samplingShare !== null && summary.samplingShare >= 0.5) sentences.push('Sampling error is large against the differences between horizons, so smaller changes would not be visible in these data.');
   if (summary.extrapolatedHorizons > 0) sentences.push(`${summary.extrapolatedHorizons} horizon ages rest on extrapolation beyond the age model.`);
   return sentences.join(' ');
-}
-
-function listWords(items: readonly string[]): string {
-  if (items.length <= 1) return items.join('');
-  return `${items.slice(0, -1).join(', ')} and ${items[items.length - 1]}`;
 }
 
 function fact(term: string, value: string, field?: string, exact?: number | null): string {
