@@ -1,9 +1,11 @@
-import { execFileSync, spawnSync } from 'node:child_process';
+import { spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { runJoint } from '../../src/analyses/joint-run.js';
+import { root } from '../robustness/cli.js';
+import { runCliHere } from '../support/cli-in-process.js';
 
 const folder = mkdtempSync(join(tmpdir(), 'stratotrend-joint-'));
 const write = (name: string, text: string): string => {
@@ -95,9 +97,12 @@ describe('stratotrend joint: outputs', () => {
     expect(JSON.stringify(pooled.document)).toBe(JSON.stringify(inline.document));
   });
 
-  it('--json has the documented layout; --out writes joint.json and joint-models.csv', () => {
+  // In the test process (runCliHere, issue 22); the bad-input test below keeps a real child process.
+  it('--json has the documented layout; --out writes joint.json and joint-models.csv', async () => {
     const out = join(folder, 'out');
-    const text = execFileSync('node', [bin, 'joint', 'sample-data/shell-shape.csv', '--json', '--out', out, '--models', 'independent-random-walks,correlated-random-walk', '--no-figures', '--no-intervals'], { encoding: 'utf8' });
+    const run = await runCliHere(['joint', 'sample-data/shell-shape.csv', '--json', '--out', out, '--models', 'independent-random-walks,correlated-random-walk', '--no-figures', '--no-intervals'], root);
+    expect(run.status, run.stderr).toBe(0);
+    const text = run.stdout;
     const document = JSON.parse(text);
     const group = document.groups[0];
     expect(Object.keys(group)).toEqual(expect.arrayContaining(['section', 'traits', 'horizons', 'observations', 'sampling_covariance', 'best_model', 'models']));
@@ -125,9 +130,12 @@ describe('stratotrend joint: outputs', () => {
 });
 
 describe('report --joint', () => {
-  it('adds a "Traits together" block with the joint table, the correlation in words and both figures', () => {
+  // In the test process (runCliHere) and --no-trend-test: the checks read the joint block and its
+  // absence, never the per-lineage trend verdict (issue 22).
+  it('adds a "Traits together" block with the joint table, the correlation in words and both figures', async () => {
     const out = join(folder, 'report.html');
-    execFileSync('node', [bin, 'report', 'sample-data/shell-shape.csv', '--joint', '--no-intervals', '--out', out, '--quiet'], { encoding: 'utf8' });
+    const joint = await runCliHere(['report', 'sample-data/shell-shape.csv', '--joint', '--no-intervals', '--no-trend-test', '--out', out, '--quiet'], root);
+    expect(joint.status, joint.stderr).toBe(0);
     const html = readFileSync(out, 'utf8');
     expect(html).toContain('<h2>Traits together</h2>');
     expect(html).toContain('<code>correlated-random-walk</code>');
@@ -137,7 +145,8 @@ describe('report --joint', () => {
     expect(html).toContain('data-kind="joint-trajectory"');
     // Without --joint the page has no such block (behaviour unchanged).
     const plain = join(folder, 'plain.html');
-    execFileSync('node', [bin, 'report', 'sample-data/shell-shape.csv', '--no-intervals', '--out', plain, '--quiet'], { encoding: 'utf8' });
+    const without = await runCliHere(['report', 'sample-data/shell-shape.csv', '--no-intervals', '--no-trend-test', '--out', plain, '--quiet'], root);
+    expect(without.status, without.stderr).toBe(0);
     expect(readFileSync(plain, 'utf8')).not.toContain('Traits together');
   });
 });

@@ -124,7 +124,8 @@ describe('fit through the real CLI', () => {
     // (That first run draws no figures: none of the names below is a figure's.)
     const folder = freshFolder();
     const samples = join(process.cwd(), 'sample-data');
-    expect((await runCliHere(['fit', join(samples, 'locality-heights.csv'), '--age-model', join(samples, 'locality-ties.csv'), '--out', 'results', '--no-intervals', '--no-figures', '--quiet'], folder)).status).toBe(0);
+    // --no-trend-test: this run only makes the folder; its contents are not compared (issue 22).
+    expect((await runCliHere(['fit', join(samples, 'locality-heights.csv'), '--age-model', join(samples, 'locality-ties.csv'), '--out', 'results', '--no-intervals', '--no-figures', '--no-trend-test', '--quiet'], folder)).status).toBe(0);
     const cases: Array<[string, string, string[]]> = [
       ['models.csv', 'locality-ties.csv', ['fit', join(samples, 'locality-heights.csv'), '--age-model', 'results/models.csv', '--out', 'results']],
       ['fit.json', 'pulsed-width-proxy.csv', ['fit', join(samples, 'pulsed-width.csv'), '--models', 'extended', '--covariate-file', 'results/fit.json', '--out', 'results']],

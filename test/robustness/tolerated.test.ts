@@ -32,8 +32,11 @@ function comparable(stdout: string): unknown {
 
 describe('tolerated dialects give the same fit as the clean file', () => {
   let clean: CliRun;
+  // --no-trend-test in the clean reference and every dialect (issue 22): a dialect is a matter of
+  // reading, and the verdict is a seeded function of the data and fits compared here; the clean
+  // file's fit with intervals below keeps the trend test on (stderr empty, every number finite).
   beforeAll(async () => {
-    clean = await runCliHere(['fit', 'clean.csv', '--json', '--no-intervals'], corpus);
+    clean = await runCliHere(['fit', 'clean.csv', '--json', '--no-intervals', '--no-trend-test'], corpus);
   });
 
   it('the clean file fits, with and without intervals', async () => {
@@ -59,7 +62,7 @@ describe('tolerated dialects give the same fit as the clean file', () => {
     ['extra-columns.csv', []],
     ...['core', 'site', 'hole', 'borehole', 'locality', 'outcrop'].map((name): [string, string[]] => [`section-named-${name}.csv`, []]),
   ])('%s %s', async (file, args) => {
-    const run = await runCliHere(['fit', join('tolerated', file), '--json', '--no-intervals', ...args], corpus);
+    const run = await runCliHere(['fit', join('tolerated', file), '--json', '--no-intervals', '--no-trend-test', ...args], corpus);
     expect(run.stderr).toBe('');
     expect(run.status).toBe(0);
     expect(comparable(run.stdout)).toEqual(comparable(clean.stdout));

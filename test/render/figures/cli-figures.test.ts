@@ -23,10 +23,22 @@ async function runHere(args: string[]): Promise<string> {
   return result.stdout;
 }
 
+// --no-trend-test in these fits (issue 22): no figure draws the trend verdict (src/render/figures/
+// never reads it), and no check here reads it. The lazy-loading check keeps the trend test on in the
+// fit without --out, so that the trend test's code path is watched too.
 describe('figures from the command line', () => {
+  // One fit without figures (and without intervals) for the two tests that only need a fit.json.
+  let plainFit: Promise<string> | undefined;
+  const fitWithoutFigures = (): Promise<string> =>
+    (plainFit ??= (async () => {
+      const out = mkdtempSync(join(tmpdir(), 'stratotrend-figures-'));
+      await runHere(['fit', 'sample-data/shell-length.csv', '--out', out, '--no-figures', '--quiet', '--no-intervals', '--no-trend-test']);
+      return out;
+    })());
+
   it('fit --out writes a trajectory and a model-support PNG per lineage and the sections figure; redraw redraws without refitting', async () => {
     const out = mkdtempSync(join(tmpdir(), 'stratotrend-figures-'));
-    const printed = await runHere(['fit', 'sample-data/shell-length.csv', '--out', out]);
+    const printed = await runHere(['fit', 'sample-data/shell-length.csv', '--out', out, '--no-trend-test']);
     expect(printed).toMatch(/and 5 figure files to/);
     const files = readdirSync(out).sort();
     expect(files).toEqual(
@@ -64,8 +76,7 @@ describe('figures from the command line', () => {
   });
 
   it('fit --out --no-figures writes no figures; bad figure options are usage errors (exit 2)', async () => {
-    const out = mkdtempSync(join(tmpdir(), 'stratotrend-figures-'));
-    await runHere(['fit', 'sample-data/shell-length.csv', '--out', out, '--no-figures', '--quiet', '--no-intervals']);
+    const out = await fitWithoutFigures();
     expect(readdirSync(out).filter((file) => /\.(png|svg|pdf)$/.test(file))).toEqual([]);
     const { status, stderr } = await runCliHere(['redraw', join(out, 'fit.json'), '--dpi', 'many'], root);
     expect(status).toBe(2);
@@ -73,8 +84,7 @@ describe('figures from the command line', () => {
   });
 
   it('a damaged fit.json is a data error (exit 1) whose one line names the file and the bad field', async () => {
-    const out = mkdtempSync(join(tmpdir(), 'stratotrend-figures-'));
-    await runHere(['fit', 'sample-data/shell-length.csv', '--out', out, '--no-figures', '--quiet', '--no-intervals']);
+    const out = await fitWithoutFigures();
     const document = JSON.parse(readFileSync(join(out, 'fit.json'), 'utf8'));
     document.lineages[0].data.time = 'x';
     const damaged = join(out, 'damaged.json');
@@ -98,7 +108,7 @@ describe('figures from the command line', () => {
     expect(JSON.parse(readFileSync(join(folder, 'loaded.json'), 'utf8'))).toEqual([]);
     // The watch itself works: drawing loads the stack (chartjs-node-canvas drops chart.js itself from the cache after loading it).
     const out = join(folder, 'out');
-    run(['fit', 'sample-data/shell-length.csv', '--quiet', '--no-intervals', '--out', out], ['--require', preload]);
+    run(['fit', 'sample-data/shell-length.csv', '--quiet', '--no-intervals', '--no-trend-test', '--out', out], ['--require', preload]);
     expect(JSON.parse(readFileSync(join(folder, 'loaded.json'), 'utf8')).some((key: string) => key.includes('chartjs-node-canvas'))).toBe(true);
   });
 });

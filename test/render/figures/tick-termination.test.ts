@@ -106,7 +106,8 @@ describe('redraw and report on a fit.json with subnormal times end with one mess
   it('exit 1, one line, no hang', () => {
     const folder = mkdtempSync(join(tmpdir(), 'stratotrend-subnormal-'));
     copyFileSync(join(root, 'sample-data', 'shell-length.csv'), join(folder, 'shell-length.csv'));
-    expect(runCli(['fit', 'shell-length.csv', '--out', 'fitted', '--no-intervals', '--no-figures', '--quiet'], folder).status).toBe(0);
+    // --no-trend-test: this fit only makes the fit.json whose times are then damaged (issue 22).
+    expect(runCli(['fit', 'shell-length.csv', '--out', 'fitted', '--no-intervals', '--no-figures', '--no-trend-test', '--quiet'], folder).status).toBe(0);
     const document = JSON.parse(readFileSync(join(folder, 'fitted', 'fit.json'), 'utf8')) as { lineages: { data: { time: number[]; position: number[] } }[] };
     for (const lineage of document.lineages) {
       lineage.data.time = lineage.data.time.map((t) => t * 1e-310);
