@@ -8,7 +8,7 @@ export default defineConfig({
     // (test/support/cli-in-process.ts) change the working folder, which a
     // worker thread cannot. (forks is vitest 4's default; stated so it stays.)
     pool: 'forks',
-    // One test file per core (issue 22). Vitest's own default for \`vitest run\`
+    // One test file per core (issue 22). Vitest's own default for `vitest run`
     // is cores − 1, which on a 2-core machine is ONE fork: the whole suite ran
     // file after file and used 135% of 2 cores. Most files wait on child
     // processes, worker threads or Chromium part of the time, so a fork per
