@@ -144,22 +144,27 @@ export function jointTrajectoryPlan(group: JointFigureGroup, first: number, seco
       pointBorderColor: ink.text,
       pointBorderWidth: 0.4,
     }];
-    return {
-      type: 'scatter',
-      data: { datasets },
-      options: {
-        locale: 'en-US',
-        layout: { padding: { left: margin, right: margin + 2, top: header.height + margin, bottom: margin } },
-        scales: {
-          x: { type: 'linear', min: xLimits.min, max: xLimits.max, ...axisStyle(unitOf(group, first), xLimits) },
-          y: { type: 'linear', min: yLimits.min, max: yLimits.max, ...axisStyle(unitOf(group, second), yLimits) },
-        },
-        plugins: { legend: { display: false }, tooltip: { enabled: false }, title: { display: false } },
-      },
-      plugins: [plugin as Plugin],
-    };
+    return scatterConfiguration(datasets, {
+      x: { type: 'linear', min: xLimits.min, max: xLimits.max, ...axisStyle(unitOf(group, first), xLimits) },
+      y: { type: 'linear', min: yLimits.min, max: yLimits.max, ...axisStyle(unitOf(group, second), yLimits) },
+    }, header.height, plugin);
   };
   return { widthPoints, heightPoints, title, configuration };
+}
+
+/** The chart both joint figures draw: a scatter chart on the given axes, below a title block `headerHeight` high, with our drawing plugin and none of chart.js's own legend, tooltip or title. */
+function scatterConfiguration(datasets: unknown[], scales: Record<string, unknown>, headerHeight: number, plugin: Plugin): ChartConfiguration {
+  return {
+    type: 'scatter',
+    data: { datasets: datasets as never },
+    options: {
+      locale: 'en-US',
+      layout: { padding: { left: margin, right: margin + 2, top: headerHeight + margin, bottom: margin } },
+      scales: scales as never,
+      plugins: { legend: { display: false }, tooltip: { enabled: false }, title: { display: false } },
+    },
+    plugins: [plugin],
+  };
 }
 
 /** Plan the stratigraphic panels: one per trait, side by side, sharing the vertical time axis (older at the bottom). */
@@ -232,17 +237,7 @@ export function jointPanelsPlan(group: JointFigureGroup, options: ResolvedFigure
       const limits = limitsOf(j);
       scales[`x${j}`] = { type: 'linear', position: 'bottom', stack: 'traits', min: limits.min, max: limits.max, ...axisStyle(unitOf(group, j), limits, k > 2 ? 3 : 4) };
     });
-    return {
-      type: 'scatter',
-      data: { datasets },
-      options: {
-        locale: 'en-US',
-        layout: { padding: { left: margin, right: margin + 2, top: header.height + margin, bottom: margin } },
-        scales: scales as never,
-        plugins: { legend: { display: false }, tooltip: { enabled: false }, title: { display: false } },
-      },
-      plugins: [plugin as Plugin],
-    };
+    return scatterConfiguration(datasets, scales, header.height, plugin);
   };
   return { widthPoints, heightPoints, title, configuration };
 }
