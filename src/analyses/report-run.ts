@@ -4,8 +4,10 @@ import { checkComparisonDocument, checkFitDocument, checkPowerDocument, readJson
 import { InputError, usageError } from '../data/errors.js';
 import { asFitDocument, lineageTitle, type FitDocumentView } from '../render/report/document-view.js';
 import { reportPage, type ReportFigure, type ReportInput } from '../render/report/report-page.js';
+import { reportFigure } from '../render/report/lineage-section.js';
 import { sketchTrajectory } from '../render/report/sketch-figure.js';
 import { traitUnitLabel } from '../render/units.js';
+import { capitalised } from '../render/words.js';
 import { runFitStreamed, type FitCommandOptions, type FitRun } from './fit-run.js';
 import type { StreamedInput } from './input.js';
 import type { ModelSelection } from './model-selection.js';
@@ -155,15 +157,7 @@ export async function reportFigures(document: FitDocumentView, choices: ReportFi
       const caption = job.kind === 'trajectory'
         ? `${lineageTitle(lineages[0])}: horizon means with 95% sampling intervals (±1.96 √eᵢ), the expected trajectory of ${modelWords(lineages[0], choices.drawModel)} with its 95% envelope${options.smoothed ? ', and the smoothed lineage mean with its 95% band' : ''}; ${direction}.`
         : `${lineages[0].trait || 'trait'}: ${lineages.map((lineage) => lineage.section || 'lineage').join(', ')} on one time axis, each with the expected trajectory of its ${choices.drawModel ? 'chosen' : 'best-supported'} model and its 95% envelope shaded (none where the model's variance is 0); ${direction}.`;
-      figures.push({
-        lineage: job.kind === 'trajectory' ? job.lineages[0] : null,
-        kind: job.kind,
-        caption: caption.charAt(0).toUpperCase() + caption.slice(1),
-        mime: drawn.mime,
-        bytes: drawn.bytes,
-        width: drawn.width,
-        height: drawn.height,
-      });
+      figures.push(reportFigure({ lineage: job.kind === 'trajectory' ? job.lineages[0] : null, kind: job.kind, caption: capitalised(caption) }, drawn));
     }
   } catch (error) {
     if ((error as { name?: string }).name === 'InputError') throw error;
@@ -196,16 +190,12 @@ async function powerFigures(powers: readonly unknown[], format: 'svg' | 'png'): 
         stepVariance: typeof settings.step_variance === 'number' ? settings.step_variance : undefined,
         assumptions: powerCurveAssumptions(doc),
       }, { format, width: 'double', dpi: 200 });
-      figures.push({
+      figures.push(reportFigure({
         lineage: null,
         place: `power:${index}`,
         kind: 'power-curve',
         caption: `${doc.input?.lineage ?? 'lineage'}: probability of each decision rule against the true drift, from simulations on this design. ${powerAssumptionCaption(doc)}`.trimEnd(),
-        mime: drawn.mime,
-        bytes: drawn.bytes,
-        width: drawn.width,
-        height: drawn.height,
-      });
+      }, drawn));
     } catch (error) {
       if ((error as { name?: string }).name === 'InputError') throw error;
       // A power result without a drawable grid keeps its table; the figure is left out.
@@ -273,11 +263,11 @@ async function jointFigures(document: unknown, format: 'svg' | 'png'): Promise<R
   groups.forEach((group, index) => {
     const place = `joint:${index}`;
     const panels = renderJointPanels(group, { format });
-    figures.push({ lineage: null, kind: 'joint-panels', caption: `${group.section ? `${group.section}: ` : ''}${group.traits.join(', ')} on one time axis (horizon means, 95% sampling intervals).`, mime: panels.mime, bytes: panels.bytes, width: panels.width, height: panels.height, place });
+    figures.push(reportFigure({ lineage: null, kind: 'joint-panels', caption: `${group.section ? `${group.section}: ` : ''}${group.traits.join(', ')} on one time axis (horizon means, 95% sampling intervals).`, place }, panels));
     for (let j = 0; j < group.traits.length; j++) {
       for (let l = j + 1; l < group.traits.length; l++) {
         const trajectory = renderJointTrajectory(group, j, l, { format });
-        figures.push({ lineage: null, kind: 'joint-trajectory', caption: `${group.traits[l]} against ${group.traits[j]}: horizon means in time order (light to dark), 95% sampling ellipses.`, mime: trajectory.mime, bytes: trajectory.bytes, width: trajectory.width, height: trajectory.height, place });
+        figures.push(reportFigure({ lineage: null, kind: 'joint-trajectory', caption: `${group.traits[l]} against ${group.traits[j]}: horizon means in time order (light to dark), 95% sampling ellipses.`, place }, trajectory));
       }
     }
   });

@@ -25,6 +25,17 @@ export interface ReportFigure {
   readonly place?: string;
 }
 
+/**
+ * A figure for the page from a drawn figure (its mime type, bytes and size)
+ * and what the page says about it.
+ *
+ * @example
+ * reportFigure({ lineage: 0, kind: 'trajectory', caption: 'Means.' }, { mime: 'image/png', bytes: new Uint8Array(0), width: 10, height: 5 }).width; // 10
+ */
+export function reportFigure(about: Omit<ReportFigure, 'mime' | 'bytes' | 'width' | 'height'>, drawn: Pick<ReportFigure, 'mime' | 'bytes' | 'width' | 'height'>): ReportFigure {
+  return { ...about, mime: drawn.mime, bytes: drawn.bytes, width: drawn.width, height: drawn.height };
+}
+
 /** Lineage-document keys the report shows in its own blocks; anything else appears under "further results". */
 const shownKeys = new Set(['section', 'trait', 'horizons', 'time_unit', 'position_kind', 'transform', 'sampling_variance', 'best_model', 'models', 'data', 'smoothed', 'trait_unit', 'adequacy', 'rates', 'models_left_out', 'extrapolated_horizons', 'first_age', 'trend_test']);
 
