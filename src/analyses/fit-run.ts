@@ -18,7 +18,7 @@ import type { EvolutionModel } from '../models/model.js';
 import { trendTests } from '../trend/run-trend-tests.js';
 import type { TrendTest, TrendTestOptions } from '../trend/trend-test.js';
 import { weakOuWin } from '../render/trend-text.js';
-import { parseSeed } from '../random/seeds.js';
+import { seedOption } from './option-values.js';
 
 /** Options of `stratotrend fit`. */
 export interface FitCommandOptions extends AgeModelOptions, SampleFileOptions, FigureCommandOptions, ExtensionOptions {
@@ -180,12 +180,9 @@ function trendLevelOf(options: FitCommandOptions): number {
   return level;
 }
 
-/** --seed as the trend test's seed. @throws InputError (usage) when it is not a whole number from 0 to 2^32 - 1. */
+/** --seed as the trend test's seed (the shared seed option). @throws InputError (usage) when it is not a whole number from 0 to 2^32 - 1. */
 function trendSeedOf(options: FitCommandOptions): number {
-  if (options.seed === undefined) return 1;
-  const seed = parseSeed(String(options.seed));
-  if (seed === null) throw usageError(`--seed must be a whole number from 0 to 4294967295, got "${options.seed}"`);
-  return seed;
+  return seedOption(options.seed === undefined ? undefined : String(options.seed));
 }
 
 /** The trend test's options from the command's. */
