@@ -1,4 +1,5 @@
 import { usageError } from '../data/errors.js';
+import { invisibleFormatWords } from '../data/names.js';
 import {
   figureJobs,
   figureKinds,
@@ -102,6 +103,8 @@ function traitTitleOption(text: string): string {
   const trimmed = text.trim();
   if (trimmed === '') throw usageError('--trait-title: empty title');
   if (/[\u0000-\u001f\u007f-\u009f]/.test(trimmed)) throw usageError(`--trait-title: control characters are not allowed, got ${JSON.stringify(trimmed)}`);
+  const hidden = invisibleFormatWords(trimmed);
+  if (hidden !== null) throw usageError(`--trait-title must be visible text; it holds ${hidden}, got ${JSON.stringify(trimmed)}`);
   return trimmed;
 }
 

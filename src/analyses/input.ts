@@ -1,7 +1,7 @@
 import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import { InputError } from '../data/errors.js';
-import { firstControlCharacter } from '../data/names.js';
+import { firstControlCharacter, invisibleFormatWords } from '../data/names.js';
 import { readSamples, type SampleOptions, type SampleSet } from '../data/samples.js';
 import { decodeText, readTable } from '../data/read-table.js';
 import { streamSampleFile, type StreamProgress } from '../data/stream-samples.js';
@@ -56,6 +56,8 @@ export function timeUnitOption(value: string | undefined): ReturnType<typeof tim
   if (value !== undefined && firstControlCharacter(value) !== null) {
     throw new InputError(`--time-unit must be one line of text without control characters, got ${JSON.stringify(value)}`, { kind: 'usage' });
   }
+  const hiddenInTime = value === undefined ? null : invisibleFormatWords(value);
+  if (hiddenInTime !== null) throw new InputError(`--time-unit must be visible text; it holds ${hiddenInTime}, got ${JSON.stringify(value)}`, { kind: 'usage' });
   return timeUnit(value ?? 'Myr');
 }
 
@@ -76,6 +78,8 @@ function unitLabelText(label: string, given: string): string {
   const trimmed = label.trim();
   if (trimmed === '') throw new InputError(`--trait-unit must name a unit (e.g. mm, µm² or "whorl width=mm"), got ${JSON.stringify(given)}`, { kind: 'usage' });
   if (firstControlCharacter(trimmed) !== null) throw new InputError(`--trait-unit must be one line of text without control characters, got ${JSON.stringify(given)}`, { kind: 'usage' });
+  const hidden = invisibleFormatWords(trimmed);
+  if (hidden !== null) throw new InputError(`--trait-unit must be visible text; it holds ${hidden}, got ${JSON.stringify(given)}`, { kind: 'usage' });
   return trimmed;
 }
 

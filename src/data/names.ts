@@ -100,15 +100,30 @@ export function checkName(name: string, where: { file?: string; line?: number; c
       where,
     );
   }
-  const hidden = firstInvisibleFormat(name);
+  const hidden = invisibleFormatWords(name);
   if (hidden !== null) {
-    const hex = `U+${hidden.code.toString(16).toUpperCase().padStart(4, '0')}`;
     throw new InputError(
-      `contains the invisible formatting character ${hex} (${formatNames[hidden.code]}) at character ${hidden.position}, got "${name}"; names must be visible text (it would reorder what is shown after it, or make two different names look the same)`,
+      `contains ${hidden}, got "${name}"; names must be visible text (it would reorder what is shown after it, or make two different names look the same)`,
       where,
     );
   }
   return name;
+}
+
+/**
+ * Words naming the first invisible formatting character of a text (see
+ * {@link invisibleFormat}) and where it sits, for messages about names and
+ * option labels; null when there is none.
+ *
+ * @example
+ * invisibleFormatWords('mm\u202e'); // 'the invisible formatting character U+202E (RIGHT-TO-LEFT OVERRIDE) at character 3'
+ * invisibleFormatWords('mm'); // null
+ */
+export function invisibleFormatWords(text: string): string | null {
+  const hidden = firstInvisibleFormat(text);
+  if (hidden === null) return null;
+  const hex = `U+${hidden.code.toString(16).toUpperCase().padStart(4, '0')}`;
+  return `the invisible formatting character ${hex} (${formatNames[hidden.code]}) at character ${hidden.position}`;
 }
 
 /**

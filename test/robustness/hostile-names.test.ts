@@ -206,6 +206,20 @@ describe('invisible formatting characters in names are refused with line and col
     expect(wholeFileMessage(path)).toBe(`${path}${message}`);
   });
 
+  it('--time-unit, --trait-unit and --trait-title labels holding one are usage errors (exit 2), printed escaped', async () => {
+    const samples = write('clean-labels.csv', `section,trait,age,n,mean,sd\n${sampleRows('Korrin', 'length').join('\n')}\n`);
+    const time = await runCliHere(['fit', samples, '--no-intervals', '--time-unit', 'Myr\u202e'], folder);
+    expect(time.status).toBe(2);
+    expect(time.stderr).toBe('stratotrend: --time-unit must be visible text; it holds the invisible formatting character U+202E (RIGHT-TO-LEFT OVERRIDE) at character 4, got "Myr\\u202e"\n');
+    const trait = await runCliHere(['fit', samples, '--no-intervals', '--trait-unit', 'length=m\u200bm'], folder);
+    expect(trait.status).toBe(2);
+    expect(trait.stderr).toBe('stratotrend: --trait-unit must be visible text; it holds the invisible formatting character U+200B (ZERO WIDTH SPACE) at character 2, got "length=m\\u200bm"\n');
+    const title = await runCliHere(['fit', samples, '--no-intervals', '--out', join(folder, 'titled'), '--trait-title', '\u2066Shell length'], folder);
+    expect(title.status).toBe(2);
+    expect(title.stderr).toBe('stratotrend: --trait-title must be visible text; it holds the invisible formatting character U+2066 (LEFT-TO-RIGHT ISOLATE) at character 1, got "\\u2066Shell length"\n');
+    for (const run of [time, trait, title]) expect(run.stderr).not.toMatch(invisible);
+  });
+
   it('names in scripts that use the zero-width joiners and direction marks in ordinary words are accepted', () => {
     // U+200C ZERO WIDTH NON-JOINER is part of ordinary Persian spelling; U+200F RIGHT-TO-LEFT MARK of right-to-left text.
     const path = write('persian.csv', `section,trait,age,n,mean,sd\n${sampleRows('\u0645\u06cc\u200c\u0631\u0648\u062f', 'length \u200f').join('\n')}\n`);
