@@ -24,15 +24,45 @@ import { describe, expect, it } from 'vitest';
 
 const root = fileURLToPath(new URL('../..', import.meta.url));
 
+/** The folders whose `@example` blocks run here (with their subfolders), and the files directly in `src/`. */
+const documentedFolders = ['src/engine', 'src/statistics', 'src/data', 'src/random', 'src/trend', 'src/compare', 'src/render', 'src/models', 'src/joint', 'src/analyses', 'src/io'];
+
 /** The documented source files whose examples run here. */
 function documentedFiles(): string[] {
   const files: string[] = [];
-  for (const folder of ['src/engine', 'src/statistics', 'src/data']) {
-    for (const name of readdirSync(join(root, folder)).sort()) if (name.endsWith('.ts') && !name.endsWith('.d.ts')) files.push(join(root, folder, name));
-  }
+  const walk = (folder: string): void => {
+    for (const entry of readdirSync(folder, { withFileTypes: true }).sort((a, b) => a.name.localeCompare(b.name))) {
+      if (entry.isDirectory()) walk(join(folder, entry.name));
+      else if (entry.name.endsWith('.ts') && !entry.name.endsWith('.d.ts')) files.push(join(folder, entry.name));
+    }
+  };
+  for (const folder of documentedFolders) walk(join(root, folder));
   files.push(join(root, 'src', 'lineage.ts'));
   return files;
 }
+
+/**
+ * Files whose examples are compiled but not yet run: other sessions were rewriting them when the examples of their
+ * folders were written (issue 22). Their exports are in scope for the other examples.
+ */
+const compiledOnly = new Set([
+  'src/random/simulate-lineage.ts',
+  'src/models/ou.ts',
+  'src/models/punctuated.ts',
+  'src/models/punctuated-separate.ts',
+  'src/models/punctuated-shifts.ts',
+  'src/models/mode-shift.ts',
+  'src/models/optimum-shift.ts',
+  'src/render/fit-document.ts',
+  'src/analyses/fit-run.ts',
+  'src/analyses/figure-files.ts',
+  'src/analyses/redraw-run.ts',
+  'src/analyses/fit-extensions.ts',
+  'src/analyses/compilation-output.ts',
+]);
+
+/** Folders whose exports are in the examples' scope (fitting, simulation) though their own examples do not run here. */
+const scopeOnlyFolders = ['src/fit', 'src/simulate', 'src/parallel'];
 
 /** One `@example` block: the documented export's name and the block's lines (comment stars removed). */
 export interface ExampleBlock {
@@ -159,14 +189,21 @@ function sameValue(actual: unknown, expected: unknown, tolerance: number | null,
 
 describe('@example blocks of the documented modules', async () => {
   const files = documentedFiles();
+  // Every exported name is in scope; a name two modules export with different values is in scope only in the
+  // examples of the modules that export it (each block sees its own module's exports first).
+  const modules = new Map<string, Record<string, unknown>>();
   const scope = new Map<string, unknown>();
-  for (const file of files) {
+  const ambiguous = new Set<string>();
+  const scopeOnly = scopeOnlyFolders.flatMap((folder) => readdirSync(join(root, folder)).filter((name) => name.endsWith('.ts')).map((name) => join(root, folder, name)));
+  for (const file of [...files, ...scopeOnly]) {
     const module = (await import(file)) as Record<string, unknown>;
+    modules.set(relative(root, file), module);
     for (const [name, value] of Object.entries(module)) {
-      if (scope.has(name) && scope.get(name) !== value) throw new Error(`${name} is exported by two documented modules; the examples' scope would be ambiguous`);
+      if (scope.has(name) && scope.get(name) !== value) ambiguous.add(name);
       scope.set(name, value);
     }
   }
+  for (const name of ambiguous) scope.delete(name);
   const blocks = files.flatMap((file) => exampleBlocks(readFileSync(file, 'utf8'), relative(root, file)));
 
   it('finds the examples (the parser sees every block the sources hold)', () => {
@@ -178,8 +215,10 @@ describe('@example blocks of the documented modules', async () => {
   for (const block of blocks) {
     it(`${block.file}: ${block.name}`, async () => {
       const program = exampleProgram(block);
-      expect(program.problems).toEqual([]);
-      const names = [...scope.keys()];
+      // A compiled-only file's checks are not yet in the checked form (see compiledOnly).
+      if (!compiledOnly.has(block.file)) expect(program.problems).toEqual([]);
+      const own = new Map([...scope, ...Object.entries(modules.get(block.file) ?? {})]);
+      const names = [...own.keys()];
       const check = (actual: unknown, comment: string, line: string): void => {
         const stated = statedValue(comment)!;
         sameValue(actual, stated.value, stated.tolerance, `${block.file} (${block.name}): ${line}`);
@@ -189,7 +228,7 @@ describe('@example blocks of the documented modules', async () => {
       };
       const compiled = new AsyncFunction('check', 'throws', ...names, program.source);
       // A block without checks is only compiled: it may read files that exist only on a user's machine.
-      if (program.checks > 0) await compiled(check, throws, ...names.map((name) => scope.get(name)));
+      if (program.checks > 0 && !compiledOnly.has(block.file)) await compiled(check, throws, ...names.map((name) => own.get(name)));
     });
   }
 });
