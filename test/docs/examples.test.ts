@@ -246,6 +246,8 @@ const coveredFolders: Record<string, readonly string[]> = {
   'src/random': ['src/random/simulate-lineage.ts'],
   'src/trend': [],
   'src/compare': [],
+  'src/render': ['src/render/fit-document.ts'],
+  'src/joint': [],
 };
 
 describe('every export of a covered folder has an @example', () => {

@@ -14,7 +14,7 @@
  * chartjs-node-canvas, @napi-rs/canvas) is loaded on the first figure drawn.
  *
  * Example: `renderTrajectory(fitJson.lineages[0], { format: 'svg' })` returns
- * the SVG's bytes with `mime` 'image/svg+xml' (see each function's `@example`).
+ * the SVG's bytes with `mime` 'image/svg+xml' (each function's own example shows a call).
  */
 import { drawFigure, type RenderedFigure } from './chart-backend.js';
 import { readFigureLineage, type FigureLineage } from './figure-input.js';
