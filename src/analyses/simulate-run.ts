@@ -24,7 +24,14 @@ export interface SimulateCommandOptions extends SampleFileOptions, AgeModelOptio
   out?: string;
 }
 
-/** Parse "name=value,name=value" into natural parameters, checking names against the model. */
+/**
+ * Parse "name=value,name=value" into natural parameters, checking names against the model.
+ *
+ * @example
+ * parseParameters('step_variance=0.01, ancestral_mean=5', ['ancestral_mean', 'step_variance']); // { step_variance: 0.01, ancestral_mean: 5 }
+ * parseParameters('drift=1', ['step_variance']);
+ * // throws: --parameters: "drift" is not a parameter of this model; its parameters are step_variance
+ */
 export function parseParameters(text: string | undefined, known: readonly string[]): Record<string, number> {
   const values: Record<string, number> = {};
   if (text === undefined) return values;
