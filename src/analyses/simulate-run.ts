@@ -54,8 +54,13 @@ export function parseParameters(text: string | undefined, known: readonly string
  * each lineage of FILE.
  *
  * @param onRead called with the reading's time-axis and input warnings as soon as FILE is read
+ *
  * @example
- * runSimulate(undefined, { model: 'random-walk', parameters: 'ancestral_mean=5,step_variance=0.01', seed: '7' }); // resolves to 'section,trait,time,n,mean,sd\n...' (one row per horizon)
+ * const text = await runSimulate(undefined, { model: 'random-walk', parameters: 'ancestral_mean=5,step_variance=0.01', seed: '7' });
+ * text.split('\n')[0]; // 'section,trait,time,n,mean,sd'
+ * text.split('\n')[1]; // 'simulated,trait,0,20,5.095820306,1' (seed 7)
+ * await runSimulate(undefined, { model: 'random-walk', parameters: 'step_variance=-1' });
+ * // throws: --parameters: step_variance must be at least 0, got -1
  */
 export async function runSimulate(file: string | undefined, options: SimulateCommandOptions, onRead?: (warnings: readonly Warning[]) => void): Promise<string> {
   const model = findModel(options.model ?? 'directional-walk');
