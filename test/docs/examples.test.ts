@@ -248,6 +248,7 @@ const coveredFolders: Record<string, readonly string[]> = {
   'src/compare': [],
   'src/render': ['src/render/fit-document.ts'],
   'src/joint': [],
+  'src/analyses': ['src/analyses/fit-run.ts', 'src/analyses/figure-files.ts', 'src/analyses/redraw-run.ts', 'src/analyses/fit-extensions.ts', 'src/analyses/compilation-output.ts'],
   'src/models': ['src/models/ou.ts', 'src/models/punctuated.ts', 'src/models/punctuated-separate.ts', 'src/models/punctuated-shifts.ts', 'src/models/mode-shift.ts', 'src/models/optimum-shift.ts'],
 };
 
