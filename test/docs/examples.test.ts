@@ -12,12 +12,16 @@
  * - other lines run as they are; a block without any check is only compiled
  *   (it may name files that do not exist here).
  *
- * Every exported name of those modules is in scope, as in the examples.
+ * Every exported name of those modules is in scope, as in the examples, and
+ * a few Node functions for a scratch folder (mkdtempSync, readdirSync,
+ * readFileSync, writeFileSync, existsSync, rmSync from node:fs; tmpdir from
+ * node:os).
  * Source of each expected value: the example itself, which states what the
  * function returns; where it is a published value or closed form, the
  * example's note says which (e.g. exp(-1), -0.5 ln 2 pi).
  */
-import { readdirSync, readFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
 import { join, relative } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
@@ -206,6 +210,9 @@ describe('@example blocks of the documented modules', async () => {
     }
   }
   for (const name of ambiguous) scope.delete(name);
+  // The few Node functions the examples of src/io use for a scratch folder, as a reader would import them.
+  const nodeNames = { mkdtempSync, readdirSync, readFileSync, writeFileSync, existsSync, rmSync, tmpdir };
+  for (const [name, value] of Object.entries(nodeNames)) if (!scope.has(name)) scope.set(name, value);
   const blocks = files.flatMap((file) => exampleBlocks(readFileSync(file, 'utf8'), relative(root, file)));
 
   it('finds the examples (the parser sees every block the sources hold)', () => {
@@ -249,6 +256,7 @@ const coveredFolders: Record<string, readonly string[]> = {
   'src/render': ['src/render/fit-document.ts'],
   'src/joint': [],
   'src/analyses': ['src/analyses/fit-run.ts', 'src/analyses/figure-files.ts', 'src/analyses/redraw-run.ts', 'src/analyses/fit-extensions.ts', 'src/analyses/compilation-output.ts'],
+  'src/io': [],
   'src/models': ['src/models/ou.ts', 'src/models/punctuated.ts', 'src/models/punctuated-separate.ts', 'src/models/punctuated-shifts.ts', 'src/models/mode-shift.ts', 'src/models/optimum-shift.ts'],
 };
 
