@@ -38,8 +38,7 @@ export function fitJointTask(task: JointFitTask): JointModelFit {
  * const data = { traits: 2, time: Float64Array.from(time), values: Float64Array.from(time.flatMap((_, i) => [x[i], y[i]])), sampling: Float64Array.from(time.flatMap(() => [0.01, 0, 0, 0.01])) };
  * const models = [jointModel('independent-random-walks'), jointModel('correlated-random-walk')];
  * const { best } = await fitJointModelsOnPool(models, data, { intervals: false, threads: 1 });
- * best; // 'correlated-random-walk'
- * best === fitJointModels(models, data).best; // true (the same computation as in this thread)
+ * best; // 'correlated-random-walk' (as fitJointModels finds in this thread)
  */
 export async function fitJointModelsOnPool(models: readonly JointModel[], data: JointData, options: { intervals: boolean; threads?: number }): Promise<{ models: RankedJointFit[]; best: string | null }> {
   const key = (model: JointModel): string => `${model.process}/${model.mean}`;
