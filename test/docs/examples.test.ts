@@ -1,7 +1,8 @@
 /**
- * The `@example` blocks of the TSDoc in `src/engine/`, `src/statistics/`,
- * `src/data/` and `src/lineage.ts` are run here, so an example can never go
- * stale. Conventions (see DEVELOPERS.md, "Examples in the TSDoc"):
+ * The `@example` blocks of the TSDoc in the folders of `documentedFolders`
+ * (with `src/lineage.ts`) are run here, so an example can never go stale; and
+ * the folders of `coveredFolders` must have one on every exported function
+ * and class (scripts/example-coverage.mjs counts them). Conventions (see DEVELOPERS.md, "Examples in the TSDoc"):
  *
  * - `expression; // value` checks that the expression equals the JavaScript
  *   literal `value` (deep equality, as vitest's `toEqual`); a parenthetical
