@@ -10,8 +10,8 @@
  *   which gives that number's absolute tolerance.
  * - a line `// message: text` (or `// throws: text`) after a statement checks
  *   that the statement throws an error whose message is `text`.
- * - other lines run as they are; a block without any check is only compiled
- *   (it may name files that do not exist here).
+ * - other lines run as they are; every block has at least one check (the
+ *   blocks of `compiledOnly` files are compiled, not run).
  *
  * Every exported name of those modules is in scope, as in the examples, and
  * a few Node functions for a scratch folder (mkdtempSync, readdirSync,
@@ -226,7 +226,11 @@ describe('@example blocks of the documented modules', async () => {
     it(`${block.file}: ${block.name}`, async () => {
       const program = exampleProgram(block);
       // A compiled-only file's checks are not yet in the checked form (see compiledOnly).
-      if (!compiledOnly.has(block.file)) expect(program.problems).toEqual([]);
+      if (!compiledOnly.has(block.file)) {
+        expect(program.problems).toEqual([]);
+        // An example states what it returns (a value or a throw), so a wrong one fails here.
+        expect(program.checks, `${block.file} (${block.name}): no \`// value\` or \`// throws:\` check`).toBeGreaterThan(0);
+      }
       const own = new Map([...scope, ...Object.entries(modules.get(block.file) ?? {})]);
       const names = [...own.keys()];
       const check = (actual: unknown, comment: string, line: string): void => {
@@ -237,7 +241,7 @@ describe('@example blocks of the documented modules', async () => {
         await expect(run(), `${block.file} (${block.name}): ${line}`).rejects.toThrow(message);
       };
       const compiled = new AsyncFunction('check', 'throws', ...names, program.source);
-      // A block without checks is only compiled: it may read files that exist only on a user's machine.
+      // A compiled-only file's blocks are not run (see compiledOnly).
       if (program.checks > 0 && !compiledOnly.has(block.file)) await compiled(check, throws, ...names.map((name) => own.get(name)));
     });
   }

@@ -237,8 +237,7 @@ const ligatures = ['ff', 'fi', 'fl', 'ffi', 'ffl', 'ſt', 'st'];
  * text reads and searches as drawn.
  *
  * @example
- * wholeTextElements('<text fill="#000" x="1, 5, " y="9, ">ab</text><text fill="#000" x="" y=""></text><text fill="#000" x="14, " y="9, ">c</text>');
- * // '<text fill="#000" x="1" y="9">ab c</text>'
+ * wholeTextElements('<text fill="#000" x="1, 5, " y="9, ">ab</text><text fill="#000" x="" y=""></text><text fill="#000" x="14, " y="9, ">c</text>'); // '<text fill="#000" x="1" y="9">ab c</text>'
  */
 export function wholeTextElements(svg: string): string {
   const element = /<text([^>]*?) x="([^"]*)" y="([^"]*)"([^>]*)>([^<]*)<\/text>/g;

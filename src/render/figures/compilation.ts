@@ -180,8 +180,11 @@ export function compilationPlan(summary: CompilationSummary, options: ResolvedFi
  * @param summary - the cross-lineage summary
  * @param options - format (png default, svg, pdf), width ('single' 9 cm default, 'double', or cm), dpi (PNG)
  * @returns the file's bytes, MIME type and size
+ *
  * @example
- * writeFileSync('compilation.png', renderCompilation(summariseCompilation(fits)).bytes);
+ * const lineage = lineageFromArrays({ time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const figure = renderCompilation(summariseCompilation([fitLineage(lineage, [strictStasis], { intervals: false })]), { format: 'svg' });
+ * [figure.mime, figure.width]; // ['image/svg+xml', 255] (9 cm at 72 points an inch)
  */
 export function renderCompilation(summary: CompilationSummary, options: FigureOptions = {}): RenderedFigure {
   const resolved = resolveFigureOptions(options);

@@ -89,8 +89,9 @@ export function timeAxisFor(lineages: readonly FigureLineage[]): TimeAxis {
  * natural-log scale, with the trait unit when the document has one.
  *
  * @example
- * // trait "shell length", no unit: "Shell length (mean per horizon)"
- * // trait unit "mm": "Shell length (mm, mean per horizon)"; with --log: "ln shell length (ln mm, mean per horizon)"
+ * traitAxisTitle({ trait: 'shell length', transform: 'none' }); // 'Shell length (mean per horizon)'
+ * traitAxisTitle({ trait: 'shell length', transform: 'none', traitUnit: 'mm' }); // 'Shell length (mm, mean per horizon)'
+ * traitAxisTitle({ trait: 'shell length', transform: 'ln', traitUnit: 'mm' }); // 'ln shell length (ln mm, mean per horizon)'
  */
 export function traitAxisTitle(lineage: Pick<FigureLineage, 'trait' | 'transform'> & { readonly traitUnit?: string | null }): string {
   const name = lineage.trait === '' ? 'trait' : lineage.trait;

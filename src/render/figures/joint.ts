@@ -262,7 +262,10 @@ export function jointPanelsPlan(group: JointFigureGroup, options: ResolvedFigure
  * Draw the trajectory of trait `second` against trait `first` of a joint.json group.
  *
  * @example
- * writeFileSync('trajectory.png', renderJointTrajectory(document.groups[0], 0, 1).bytes);
+ * const covariance = [[0.04, 0], [0, 0.04]];
+ * const group = { section: 'A', traits: ['length', 'width'], time_unit: 'Myr', series: { axis: 'time', position: [0, 1, 2], mean: [[1, 2], [2, 2.5], [3, 3]], sampling_covariance: [covariance, covariance, covariance] } };
+ * const figure = renderJointTrajectory(group, 0, 1, { format: 'svg' });
+ * [figure.mime, figure.width]; // ['image/svg+xml', 255]
  */
 export function renderJointTrajectory(group: JointFigureGroup, first: number, second: number, options: FigureOptions = {}): RenderedFigure {
   const resolved = resolveFigureOptions(options);
@@ -273,7 +276,10 @@ export function renderJointTrajectory(group: JointFigureGroup, first: number, se
  * Draw the stratigraphic panels of a joint.json group.
  *
  * @example
- * writeFileSync('panels.png', renderJointPanels(document.groups[0]).bytes);
+ * const covariance = [[0.04, 0], [0, 0.04]];
+ * const group = { section: 'A', traits: ['length', 'width'], time_unit: 'Myr', series: { axis: 'time', position: [0, 1, 2], mean: [[1, 2], [2, 2.5], [3, 3]], sampling_covariance: [covariance, covariance, covariance] } };
+ * const figure = renderJointPanels(group, { format: 'svg' });
+ * [figure.mime, figure.width]; // ['image/svg+xml', 255]
  */
 export function renderJointPanels(group: JointFigureGroup, options: FigureOptions = {}): RenderedFigure {
   const resolved = resolveFigureOptions(options);
