@@ -32,6 +32,11 @@ export interface LoadedAgeModel {
  *
  * @param samplesKind the position column of the samples ("height" or "depth"), when known: a tie
  *   file in the other one is refused with a message saying so (before its ages are checked).
+ *
+ * @example
+ * const { input, model } = loadAgeModel('sample-data/locality-ties.csv', {}, 'height');
+ * input.name; // 'sample-data/locality-ties.csv'
+ * [...model.sections.keys()]; // ['Quarrel Hollow', 'Brisk Fen Cut', 'Ostry Scarp']
  */
 export function loadAgeModel(path: string, options: SampleFileOptions, samplesKind?: TimeKind): LoadedAgeModel {
   const input = readInput(path);
@@ -40,7 +45,15 @@ export function loadAgeModel(path: string, options: SampleFileOptions, samplesKi
   return { input, model };
 }
 
-/** Parse `--age-draws` and `--seed` (absent on commands without age draws: 0 draws, seed 1). */
+/**
+ * Parse `--age-draws` and `--seed` (absent on commands without age draws: 0 draws, seed 1).
+ *
+ * @example
+ * parseDrawOptions({}); // { draws: 0, seed: 1 }
+ * parseDrawOptions({ ageModel: 'ties.csv', ageDraws: '20', seed: '7' }); // { draws: 20, seed: 7 }
+ * parseDrawOptions({ ageDraws: '5' });
+ * // throws: --age-draws redraws the ages of an age model: give one with --age-model FILE
+ */
 export function parseDrawOptions(options: AgeModelOptions): { draws: number; seed: number } {
   const draws = options.ageDraws === undefined ? 0 : Number(options.ageDraws);
   if (!Number.isInteger(draws) || draws < 0 || draws > 100_000) throw usageError(`--age-draws must be a whole number from 0 to 100000, got "${options.ageDraws}"`);
@@ -54,6 +67,11 @@ export function parseDrawOptions(options: AgeModelOptions): { draws: number; see
  * Usage checks of the age-model options that need no file (run before reading a large samples file).
  *
  * @throws InputError (usage) for --extrapolate without --age-model.
+ *
+ * @example
+ * checkAgeModelUsage({ ageModel: 'ties.csv', extrapolate: true }); // undefined
+ * checkAgeModelUsage({ extrapolate: true });
+ * // throws: --extrapolate extends an age model: give one with --age-model FILE
  */
 export function checkAgeModelUsage(options: AgeModelOptions): void {
   if (!options.ageModel && options.extrapolate) throw usageError('--extrapolate extends an age model: give one with --age-model FILE');
@@ -67,6 +85,12 @@ export function checkAgeModelUsage(options: AgeModelOptions): void {
  * ({@link warnImplausibleRates}).
  *
  * @throws InputError (usage) for --extrapolate without --age-model; the tie reader's errors.
+ *
+ * @example
+ * const { age, extra } = ageModelHook('heights.csv', { ageModel: 'sample-data/locality-ties.csv' }, 'height', new WarningLog());
+ * age.input.name; // 'sample-data/locality-ties.csv'
+ * extra.ageOf('Quarrel Hollow', 35, 3); // { age: 8.1, extrapolated: false } (the tie at 35 m)
+ * ageModelHook('heights.csv', {}); // { age: null, extra: {} }
  */
 export function ageModelHook(
   file: string,
@@ -86,6 +110,13 @@ export function ageModelHook(
  * file (if any) against the samples' position column, then assemble. What
  * `power`, `bootstrap` and `simulate` call; `fit` and `compare` do the same
  * in two steps because they keep the age model for draws and outputs.
+ *
+ * @example
+ * // Ties of Quarrel Hollow: 9.00 at 0 m, 8.10 at 35 m, so 10 m above the base lies 0.9 × 10 / 35 Myr later (linear interpolation).
+ * const table = readTable('section,trait,height,n,mean,sd\nQuarrel Hollow,x,0,5,1,0.5\nQuarrel Hollow,x,10,5,2,0.5\nQuarrel Hollow,x,20,5,3,0.5\n', 'h.csv');
+ * const { lineages } = lineagesWithAgeModel('h.csv', readSamples(table), { ageModel: 'sample-data/locality-ties.csv' }, new WarningLog());
+ * lineages[0].firstAge; // 9
+ * lineages[0].time[1]; // 0.2571428571428571 (to 1e-12; 0.9 × 10 / 35)
  */
 export function lineagesWithAgeModel(
   file: string,
@@ -99,7 +130,14 @@ export function lineagesWithAgeModel(
   return { lineages, age };
 }
 
-/** An age model only places heights and depths: say so when the samples already give ages or times. */
+/**
+ * An age model only places heights and depths: say so when the samples already give ages or times.
+ *
+ * @example
+ * const warnings = new WarningLog();
+ * warnUnusedAgeModel([{ positionKind: 'age' }], readAgeModel(readTable('height,age\n0,10\n50,8\n', 'ties.csv')), warnings);
+ * warnings.list()[0].message; // 'the samples give "age", so the age model ties.csv is not used (it places heights and depths only)'
+ */
 export function warnUnusedAgeModel(lineages: readonly Lineage[], model: AgeModel, warnings: { add(category: 'input', message: string): void }): void {
   const kind = lineages[0]?.positionKind;
   if (kind === 'age' || kind === 'time') warnings.add('input', `the samples give "${kind}", so the age model ${model.file} is not used (it places heights and depths only)`);
@@ -120,6 +158,12 @@ export const plausibleSedimentationRate = { lowest: 0.1, highest: 10_000 } as co
  * outside {@link plausibleSedimentationRate} in the stated time unit, naming
  * the `--time-unit` that would make it plausible. Silent for a unit the tool
  * cannot convert (a custom label).
+ *
+ * @example
+ * // 50 m in 2 kyr is 25,000 m/Myr: beyond the plausible range, and plausible if the ages were in Myr.
+ * const warnings = new WarningLog();
+ * warnImplausibleRates(readAgeModel(readTable('height,age\n0,10\n50,8\n', 'ties.csv')), timeUnit('kyr'), warnings);
+ * warnings.list()[0].message.endsWith('if the ages are in Myr, give --time-unit Ma'); // true
  */
 export function warnImplausibleRates(model: AgeModel, unit: { label: string; years: number | null }, warnings: Pick<WarningLog, 'add'>): void {
   if (unit.years === null) return;

@@ -37,7 +37,12 @@ export interface CompareCommandOptions extends SampleFileOptions, AgeModelOption
   quiet?: boolean;
 }
 
-/** The age model in words: ties and sedimentation rates per section. */
+/**
+ * The age model in words: ties and sedimentation rates per section.
+ *
+ * @example
+ * ageModelWords(readAgeModel(readTable('height,age,age_sd\n0,10,0.1\n50,8,0\n', 'ties.csv')), 'Myr').split('\n')[1]; // '  every section: 2 ties, sedimentation rates 25; 1 with age_sd' (50 m in 2 Myr)
+ */
 export function ageModelWords(model: AgeModel, unit: string): string {
   const lines = [`Age model ${model.file} (ages by linear interpolation between ties; rates in m per ${unit}):`];
   for (const [section, ties] of model.sections) {
@@ -48,7 +53,13 @@ export function ageModelWords(model: AgeModel, unit: string): string {
   return lines.join('\n');
 }
 
-/** Extrapolated horizons of fitted lineages in words (empty when none). */
+/**
+ * Extrapolated horizons of fitted lineages in words (empty when none).
+ *
+ * @example
+ * const lineage = { ...lineageFromArrays({ section: 'A', trait: 'x', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [1, 1, 1] }), extrapolated: [false, true, true] };
+ * extrapolatedLineageWords([lineage]); // 'EXTRAPOLATED AGES (beyond the outermost ties) — A / x: 2 (input lines 3, 4)'
+ */
 export function extrapolatedLineageWords(lineages: readonly Lineage[]): string {
   const parts = lineages
     .map((lineage) => ({ name: lineageName(lineage), lines: lineage.lines.filter((_, i) => lineage.extrapolated[i]) }))
@@ -64,8 +75,17 @@ export function extrapolatedLineageWords(lineages: readonly Lineage[]): string {
  * `age_model` runFitStreamed wrote) and returns the text block for the terminal (empty without draws).
  *
  * @example
- * const run = await runFitStreamed(file, { ageModel: ties, ageDraws: '3', quiet: true });
- * fitAgeDraws(file, { ageModel: ties, ageDraws: '3' }, run, run.document, run.read!.samples, run.age ?? null); // the ties, rates and spread text
+ * const table = readTable('section,trait,height,n,mean,sd\nQuarrel Hollow,x,0,5,1,0.5\nQuarrel Hollow,x,10,5,2,0.5\nQuarrel Hollow,x,20,5,3,0.5\nQuarrel Hollow,x,30,5,3.5,0.5\n', 'h.csv');
+ * const samples = readSamples(table);
+ * const age = loadAgeModel('sample-data/locality-ties.csv', {}, 'height');
+ * const selection = resolveModels('strict-stasis,random-walk');
+ * const options = { ageModel: 'sample-data/locality-ties.csv', ageDraws: '3' };
+ * const fits = lineagesOf(samples, options, new WarningLog(), { ageOf: ageFunction(age.model) }).map((lineage) => fitLineage(lineage, selection.models, { intervals: false }));
+ * const document = {};
+ * const text = fitAgeDraws('h.csv', options, { fits, selection }, document, samples, age).split('\n');
+ * text[0]; // 'Age model sample-data/locality-ties.csv (ages by linear interpolation between ties; rates in m per Myr):'
+ * text[4]; // 'Age uncertainty for "Quarrel Hollow / x": 3 redraws of the tie-point ages (seed 1); Akaike weight median [2.5%, 97.5%] and how often best:'
+ * document.age_uncertainty.draws; // 3
  */
 export function fitAgeDraws(
   file: string,
@@ -136,7 +156,12 @@ function spreadWords(spread: { median: number | null; lower: number | null; uppe
   return `${show(spread.median)} [${show(spread.lower)}, ${show(spread.upper)}]`;
 }
 
-/** The age model as JSON: ties and sedimentation rates per section. */
+/**
+ * The age model as JSON: ties and sedimentation rates per section.
+ *
+ * @example
+ * ageModelDocument(readAgeModel(readTable('height,age\n0,10\n50,8\n', 'ties.csv'))).sections[0].sedimentation_rates; // [{ from_height: 0, to_height: 50, rate: 25 }]
+ */
 export function ageModelDocument(model: AgeModel): Record<string, unknown> {
   return {
     file: model.file,
@@ -166,7 +191,15 @@ export interface CompareRun {
   readonly selection: ModelSelection;
 }
 
-/** One draw's hypotheses as age-draw candidates; every member of a tied best (identical fits) counts as best. */
+/**
+ * One draw's hypotheses as age-draw candidates; every member of a tied best (identical fits) counts as best.
+ *
+ * @example
+ * const a = { ...lineageFromArrays({ section: 'A', trait: 'x', time: [0, 1, 2, 3], mean: [1, 1.5, 1.2, 2], samplingVariance: [0.05, 0.05, 0.05, 0.05] }), firstAge: 10 };
+ * const b = { ...lineageFromArrays({ section: 'B', trait: 'x', time: [0, 1, 2, 3], mean: [3.5, 3.1, 4, 4.2], samplingVariance: [0.05, 0.05, 0.05, 0.05] }), firstAge: 9.5 };
+ * const comparison = compareSections([a, b], [randomWalk], { intervals: false });
+ * candidates(comparison).map((candidate) => [candidate.key, candidate.best]); // [['separate random-walk', false], ['shared random-walk', false], ['shared-offset random-walk', true]]
+ */
 export function candidates(comparison: TraitComparison): RankedCandidate[] {
   return comparison.hypotheses.map((hypothesis) => ({
     key: candidateKey(hypothesis),
@@ -183,7 +216,15 @@ export interface EstimatedOffsets {
   readonly offsets: readonly number[];
 }
 
-/** The offsets of the lowest-AICc shared-offset hypothesis of a comparison, or null when no shared-offset hypothesis was compared. */
+/**
+ * The offsets of the lowest-AICc shared-offset hypothesis of a comparison, or null when no shared-offset hypothesis was compared.
+ *
+ * @example
+ * const a = { ...lineageFromArrays({ section: 'A', trait: 'x', time: [0, 1, 2, 3], mean: [1, 1.5, 1.2, 2], samplingVariance: [0.05, 0.05, 0.05, 0.05] }), firstAge: 10 };
+ * const b = { ...lineageFromArrays({ section: 'B', trait: 'x', time: [0, 1, 2, 3], mean: [3.5, 3.1, 4, 4.2], samplingVariance: [0.05, 0.05, 0.05, 0.05] }), firstAge: 9.5 };
+ * const comparison = compareSections([a, b], [randomWalk], { intervals: false });
+ * estimatedOffsets(comparison); // { model: 'random-walk', offsets: [0, 2.1655872976933774] } (section B sits 2.17 above A)
+ */
 export function estimatedOffsets(comparison: TraitComparison): EstimatedOffsets | null {
   let chosen: TraitComparison['hypotheses'][number] | null = null;
   for (const hypothesis of comparison.hypotheses) {
@@ -201,6 +242,13 @@ export function estimatedOffsets(comparison: TraitComparison): EstimatedOffsets 
  * means minus c_s, so every section sits at the first section's level):
  * what `--composite` merges. The offsets are taken as known, so the
  * composite's intervals leave out their uncertainty.
+ *
+ * @example
+ * const a = { ...lineageFromArrays({ section: 'A', trait: 'x', time: [0, 1, 2, 3], mean: [1, 1.5, 1.2, 2], samplingVariance: [0.05, 0.05, 0.05, 0.05] }), firstAge: 10 };
+ * const b = { ...lineageFromArrays({ section: 'B', trait: 'x', time: [0, 1, 2, 3], mean: [3.5, 3.1, 4, 4.2], samplingVariance: [0.05, 0.05, 0.05, 0.05] }), firstAge: 9.5 };
+ * const comparison = compareSections([a, b], [randomWalk], { intervals: false });
+ * const [, shifted] = withoutOffsets([a, b], { model: 'random-walk', offsets: [0, 2] });
+ * Array.from(shifted.mean); // [1.5, 1.1, 2, 2.2000000000000002] (B's means minus 2)
  */
 export function withoutOffsets(sections: readonly Lineage[], offsets: EstimatedOffsets): Lineage[] {
   return sections.map((section, s) => (offsets.offsets[s] === 0 ? section : { ...section, mean: section.mean.map((value) => value - offsets.offsets[s]) }));
@@ -316,7 +364,10 @@ export async function runCompare(file: string, options: CompareCommandOptions, r
  * so the sections line up on the common timescale.
  *
  * @example
- * sectionDocuments(run.run.comparisons[0], run.selection.models).map((document) => document.section); // one document per section of the trait
+ * const a = { ...lineageFromArrays({ section: 'A', trait: 'x', time: [0, 1, 2, 3], mean: [1, 1.5, 1.2, 2], samplingVariance: [0.05, 0.05, 0.05, 0.05] }), firstAge: 10 };
+ * const b = { ...lineageFromArrays({ section: 'B', trait: 'x', time: [0, 1, 2, 3], mean: [3.5, 3.1, 4, 4.2], samplingVariance: [0.05, 0.05, 0.05, 0.05] }), firstAge: 9.5 };
+ * const comparison = compareSections([a, b], [randomWalk], { intervals: false });
+ * sectionDocuments(comparison, [randomWalk]).map((document) => [document.section, document.curve_origin]); // [['A', 0], ['B', 0.5]] (shared-offset: B joins the common process 0.5 Myr later)
  */
 export function sectionDocuments(comparison: TraitComparison, models: ModelSelection['models']): Record<string, unknown>[] {
   const winner = comparison.best === null ? undefined : comparison.hypotheses.find((hypothesis) => hypothesis.id === comparison.best!.id && hypothesis.model === comparison.best!.model);
@@ -340,7 +391,15 @@ export function sectionDocuments(comparison: TraitComparison, models: ModelSelec
   });
 }
 
-/** The sections figure's words for its lines: the winning hypothesis and model. */
+/**
+ * The sections figure's words for its lines: the winning hypothesis and model.
+ *
+ * @example
+ * const a = { ...lineageFromArrays({ section: 'A', trait: 'x', time: [0, 1, 2, 3], mean: [1, 1.5, 1.2, 2], samplingVariance: [0.05, 0.05, 0.05, 0.05] }), firstAge: 10 };
+ * const b = { ...lineageFromArrays({ section: 'B', trait: 'x', time: [0, 1, 2, 3], mean: [3.5, 3.1, 4, 4.2], samplingVariance: [0.05, 0.05, 0.05, 0.05] }), firstAge: 9.5 };
+ * const comparison = compareSections([a, b], [randomWalk], { intervals: false });
+ * hypothesisCaption(comparison, 'random walk'); // 'the random walk model as one lineage on the common timescale, each section shifted by its own offset (the best-supported hypothesis)'
+ */
 export function hypothesisCaption(comparison: TraitComparison, label: string): string {
   const best = comparison.best;
   if (!best || best.id === 'separate') return `the ${label} model fitted to each section separately (the best-supported hypothesis)`;

@@ -15,7 +15,16 @@ export interface InputText {
   readonly sha256: string;
 }
 
-/** Read a file (or stdin for "-") as UTF-8 text. */
+/**
+ * Read a file (or stdin for "-") as UTF-8 text.
+ *
+ * @example
+ * const input = readInput('sample-data/shell-length.csv');
+ * input.text.split('\n')[0]; // 'section,trait,age,n,mean,sd'
+ * input.sha256.length; // 64 (hexadecimal SHA-256)
+ * readInput('no-such-file.csv');
+ * // throws: no such file
+ */
 export function readInput(path: string): InputText {
   let buffer: Buffer;
   try {
@@ -34,6 +43,12 @@ export function readInput(path: string): InputText {
  * comma / semicolon, or one character.
  *
  * @throws InputError (usage) for anything else.
+ *
+ * @example
+ * delimiterOption('tab'); // '\t'
+ * delimiterOption('semicolon'); // ';'
+ * delimiterOption('ab');
+ * // throws: --delimiter must be one character, "tab", "comma" or "semicolon", got "ab"
  */
 export function delimiterOption(value: string | undefined): string | undefined {
   if (value === undefined) return undefined;
@@ -48,6 +63,11 @@ export function delimiterOption(value: string | undefined): string | undefined {
  * The `--time-unit` value as a unit (default Myr).
  *
  * @throws InputError (usage) for an empty label or one holding a control character (it is printed with every rate).
+ *
+ * @example
+ * timeUnitOption('ka'); // { label: 'kyr', years: 1000 }
+ * timeUnitOption('');
+ * // throws: --time-unit must name a unit (Ma, ka, yr or any label), got ""
  */
 export function timeUnitOption(value: string | undefined): ReturnType<typeof timeUnit> {
   if (value !== undefined && value.trim() === '') {
@@ -113,7 +133,14 @@ export function traitUnitOption(value: string | readonly string[] | undefined): 
   return { all, byTrait };
 }
 
-/** The unit of one trait under parsed `--trait-unit` values: its own entry, else the label for all, else null. */
+/**
+ * The unit of one trait under parsed `--trait-unit` values: its own entry, else the label for all, else null.
+ *
+ * @example
+ * const units = traitUnitOption(['mm', 'shell width=cm']);
+ * traitUnitFor(units, 'Shell Width'); // 'cm' (trait names compared without case)
+ * traitUnitFor(units, 'shell length'); // 'mm' (the label for every other trait)
+ */
 export function traitUnitFor(units: TraitUnits, trait: string): string | null {
   return units.byTrait.get(trait.trim().normalize('NFC').toLowerCase())?.label ?? units.all;
 }
@@ -132,7 +159,13 @@ export interface SampleFileOptions {
   decimalComma?: boolean;
 }
 
-/** Read, validate and assemble the lineages of a samples file. */
+/**
+ * Read, validate and assemble the lineages of a samples file.
+ *
+ * @example
+ * const lineages = loadLineages(readInput('sample-data/shell-length.csv'), {}, new WarningLog());
+ * lineages.map((lineage) => lineage.section); // ['Varnek Draw', 'Tolloway Bluff']
+ */
 export function loadLineages(
   input: InputText,
   options: SampleFileOptions,
@@ -157,6 +190,11 @@ export interface StreamedInput {
  * {@link lineagesOf} assembles into lineages as often as needed (once per
  * age-model draw in `compare` and `fit --age-draws`). Same messages and line
  * numbers as {@link readInput} + {@link loadLineages}; "-" reads stdin.
+ *
+ * @example
+ * const streamed = await loadSamplesStreamed('sample-data/shell-length.csv', {});
+ * streamed.input.sha256 === readInput('sample-data/shell-length.csv').sha256; // true
+ * streamed.samples.form; // 'summary'
  */
 export async function loadSamplesStreamed(path: string, options: SampleFileOptions, onProgress?: (progress: StreamProgress) => void): Promise<StreamedInput> {
   const name = path === '-' ? 'stdin' : path;
@@ -174,7 +212,13 @@ export async function loadSamplesStreamed(path: string, options: SampleFileOptio
   return { input: { name, sha256: streamed.sha256 }, samples: streamed.samples };
 }
 
-/** Assemble the lineages of read samples (pooling, time unit, trait unit, the age model's `ageOf`). */
+/**
+ * Assemble the lineages of read samples (pooling, time unit, trait unit, the age model's `ageOf`).
+ *
+ * @example
+ * const { samples } = await loadSamplesStreamed('sample-data/shell-length.csv', {});
+ * lineagesOf(samples, { timeUnit: 'ka' }, new WarningLog())[0].timeUnit; // { label: 'kyr', years: 1000 }
+ */
 export function lineagesOf(samples: SampleSet, options: SampleFileOptions, warnings: WarningLog, extra: Pick<LineageOptions, 'ageOf'> = {}): Lineage[] {
   const units = traitUnitOption(options.traitUnit);
   const lineages = buildLineages(samples, {
@@ -195,7 +239,13 @@ export function lineagesOf(samples: SampleSet, options: SampleFileOptions, warni
   return lineages;
 }
 
-/** {@link loadSamplesStreamed} then {@link lineagesOf}. */
+/**
+ * {@link loadSamplesStreamed} then {@link lineagesOf}.
+ *
+ * @example
+ * const { lineages } = await loadLineagesStreamed('sample-data/shell-length.csv', { traitUnit: 'mm' }, new WarningLog());
+ * lineages.map((lineage) => lineage.traitUnit); // ['mm', 'mm']
+ */
 export async function loadLineagesStreamed(
   path: string,
   options: SampleFileOptions,

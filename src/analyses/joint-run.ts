@@ -35,6 +35,12 @@ export interface JointRun {
  * separated by commas.
  *
  * @throws InputError (usage) naming an unknown id and the known ones.
+ *
+ * @example
+ * jointModelsOption(undefined).length; // 8 (all)
+ * jointModelsOption('correlated-ou, independent-ou').map((model) => model.id); // ['correlated-ou', 'independent-ou']
+ * jointModelsOption('ou');
+ * // throws: --models: unknown joint model "ou"
  */
 export function jointModelsOption(value: string | undefined): JointModel[] {
   if (value === undefined || value.trim() === '' || value.trim() === 'all') return [...jointModels];
@@ -63,7 +69,9 @@ function selectTraits(lineages: readonly Lineage[], traits: string | undefined, 
  * covariance; specimen rows with a `specimen` column an estimated one.
  *
  * @example
- * runJoint('sample-data/shell-shape.csv', {}).fits[0].group.traits; // ['length', 'width']
+ * const run = await runJoint('sample-data/shell-shape.csv', { models: 'independent-random-walks', intervals: false });
+ * run.fits[0].group.traits; // ['shell length', 'shell width']
+ * run.fits[0].best; // 'independent-random-walks'
  */
 export async function runJoint(file: string, options: JointOptions): Promise<JointRun> {
   const models = jointModelsOption(options.models);
@@ -97,6 +105,11 @@ export async function runJoint(file: string, options: JointOptions): Promise<Joi
 /**
  * Read a samples file and group its traits by section (no fitting): the
  * input record, the groups, the warnings raised and the age model.
+ *
+ * @example
+ * const { groups } = await loadJointGroups('sample-data/shell-shape.csv', {});
+ * groups.map((group) => group.traits); // [['shell length', 'shell width']]
+ * groups[0].data.time.length; // 24
  */
 export async function loadJointGroups(file: string, options: JointOptions): Promise<{ input: { name: string; sha256: string }; groups: JointGroup[]; warnings: WarningLog; age: { input: { name: string; sha256: string } } | null }> {
   const warnings = new WarningLog();

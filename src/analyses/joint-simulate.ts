@@ -15,7 +15,13 @@ import { loadJointGroups, type JointOptions } from './joint-run.js';
  * covariances), parameters from the model fitted to each group unless given.
  */
 
-/** Whether a model id names a joint model (the simulate command's switch). */
+/**
+ * Whether a model id names a joint model (the simulate command's switch).
+ *
+ * @example
+ * isJointModel('correlated-ou'); // true
+ * isJointModel('ou'); // false (the single-trait model)
+ */
 export function isJointModel(id: string | undefined): boolean {
   return id !== undefined && jointModel(id) !== undefined;
 }
@@ -28,6 +34,16 @@ export function isJointModel(id: string | undefined): boolean {
  * variances and sets the covariance).
  *
  * @throws InputError (usage) for an unknown name, an index out of range, a value out of bounds or a covariance that is not positive semi-definite.
+ *
+ * @example
+ * const rows = ['A,length,3,5,1,0.5', 'A,width,3,5,2,0.5', 'A,length,2,5,1.4,0.5', 'A,width,2,5,2.3,0.5', 'A,length,1,5,2,0.5', 'A,width,1,5,3,0.5', 'A,length,0,5,2.2,0.5', 'A,width,0,5,3.5,0.5'];
+ * const [group] = jointGroups(buildLineages(readSamples(readTable(['section,trait,age,n,mean,sd', ...rows].join('\n'), 's.csv'))), 's.csv', new WarningLog());
+ * const model = jointModel('correlated-random-walk');
+ * const fit = fitJointModel(model, group.data);
+ * const truth = jointTruth(model, fit, 2, 'step_correlation[1][2]=0.5');
+ * truth.covariance[1] / Math.sqrt(truth.covariance[0] * truth.covariance[3]); // 0.5 (to 1e-12; the variances kept, the covariance set)
+ * jointTruth(model, fit, 2, 'step_correlation[1][3]=0.5');
+ * // throws: step_correlation[1][3]
  */
 export function jointTruth(model: JointModel, fit: JointModelFit, k: number, overrides: string | undefined): JointTruth {
   const parameters = fit.parameters;
@@ -88,6 +104,16 @@ export function jointTruth(model: JointModel, fit: JointModelFit, k: number, ove
  * section ("<section> r1"...); a trait missing at a horizon of the design
  * is missing in every replicate; sd = sqrt(e_ij n_ij) reproduces the
  * design's sampling variances. Seeds from (seed, replicate, group) only.
+ *
+ * @example
+ * const rows = ['A,length,3,5,1,0.5', 'A,width,3,5,2,0.5', 'A,length,2,5,1.4,0.5', 'A,width,2,5,2.3,0.5', 'A,length,1,5,2,0.5', 'A,width,1,5,3,0.5', 'A,length,0,5,2.2,0.5', 'A,width,0,5,3.5,0.5'];
+ * const [group] = jointGroups(buildLineages(readSamples(readTable(['section,trait,age,n,mean,sd', ...rows].join('\n'), 's.csv'))), 's.csv', new WarningLog());
+ * const model = jointModel('independent-random-walks');
+ * const truth = jointTruth(model, fitJointModel(model, group.data), 2, undefined);
+ * const lines = jointSimulatedTable([group], model, [truth], 2, 1).split('\n');
+ * lines[0]; // 'section,trait,age,n,mean,sd'
+ * lines.length; // 18 (header, 2 replicates × 4 horizons × 2 traits, trailing newline)
+ * lines[1].startsWith('A r1,length,3,5,'); // true
  */
 export function jointSimulatedTable(groups: readonly JointGroup[], model: JointModel, truths: readonly JointTruth[], replicates: number, seed: number): string {
   const ages = groups.every((group) => group.positionKind !== 'time');
@@ -131,6 +157,12 @@ export interface JointSimulateOptions extends Omit<JointOptions, 'seed'> {
  * `replicates` draws per group as a samples CSV.
  *
  * @throws InputError (usage) without FILE, or with --form specimen.
+ *
+ * @example
+ * const text = await jointSimulation('sample-data/shell-shape.csv', { model: 'independent-random-walks', replicates: 1, seed: 1 });
+ * text.split('\n').length; // 48 (header, 46 means: 24 horizons × 2 traits less the design's 2 missing values, trailing newline)
+ * await jointSimulation(undefined, { model: 'independent-random-walks', replicates: 1, seed: 1 });
+ * // throws: --model independent-random-walks is a joint model: give a samples FILE
  */
 export async function jointSimulation(file: string | undefined, options: JointSimulateOptions): Promise<string> {
   const model = jointModel(options.model ?? '') as JointModel;
@@ -159,6 +191,13 @@ export interface JointPowerRow {
  * times; each is fitted by independent-random-walks and
  * correlated-random-walk, and the share where the correlated model has the
  * lower AICc is the power (at correlation 0: the false-correlation rate).
+ *
+ * @example
+ * const rows = ['A,length,3,5,1,0.5', 'A,width,3,5,2,0.5', 'A,length,2,5,1.4,0.5', 'A,width,2,5,2.3,0.5', 'A,length,1,5,2,0.5', 'A,width,1,5,3,0.5', 'A,length,0,5,2.2,0.5', 'A,width,0,5,3.5,0.5'];
+ * const [group] = jointGroups(buildLineages(readSamples(readTable(['section,trait,age,n,mean,sd', ...rows].join('\n'), 's.csv'))), 's.csv', new WarningLog());
+ * const power = jointCorrelationPower(group, [0], 2, 1);
+ * power.rows.map((row) => [row.correlation, row.power]); // [[0, 0]]
+ * power.stepVariances[0] / fitJointModel(jointModel('independent-random-walks'), group.data).parameters.step_covariance[0][0]; // 1 (to 1e-9; the independent walks' fitted step variances)
  */
 export function jointCorrelationPower(group: JointGroup, correlations: readonly number[], replicates: number, seed: number): { rows: JointPowerRow[]; stepVariances: number[] } {
   const independent = jointModels.find((model) => model.id === 'independent-random-walks') as JointModel;
@@ -203,6 +242,11 @@ export interface JointPowerOptions extends Omit<JointOptions, 'threads'> {
  * (`--lineage` names the section; default the first group) on the file's own
  * design. Returns the text to print: a table, JSON with --json, nothing with
  * --quiet (the command prints it).
+ *
+ * @example
+ * const parse = { replicates: (text) => Number(text ?? 2), seed: (text) => Number(text ?? 1) };
+ * await runJointPower('sample-data/shell-shape.csv', { correlations: '0.5,1' }, parse);
+ * // throws: --correlations: each value must lie strictly between -1 and 1, got "1"
  */
 export async function runJointPower(file: string, options: JointPowerOptions, parse: { replicates: (text: string | undefined) => number; seed: (text: string | undefined) => number }): Promise<string> {
   const correlations = options.correlations.split(',').map((part) => part.trim()).filter((part) => part !== '').map((part) => {

@@ -21,9 +21,13 @@ export type ModelsOption = string | ModelSelection;
  * entry and hands the result on.
  *
  * @throws InputError (usage) naming an unknown id, or when no model is named
+ *
  * @example
- * resolveModels('random-walk, ou'); // { request: 'random-walk, ou', name: 'custom', models: [random walk, ou] }
+ * resolveModels('random-walk, ou').models.map((model) => model.id); // ['random-walk', 'ou']
+ * resolveModels('random-walk, ou').name; // 'custom'
  * resolveModels(undefined).name; // 'classic'
+ * resolveModels('random-walk,brownian');
+ * // throws: --models: unknown model "brownian"
  */
 export function resolveModels(option: ModelsOption | undefined): ModelSelection {
   if (typeof option === 'object') return option;

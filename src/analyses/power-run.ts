@@ -37,7 +37,16 @@ export interface PowerCommandOptions extends SampleFileOptions, AgeModelOptions 
   quiet?: boolean;
 }
 
-/** Pick the lineage named by --lineage ("section / trait", or a section or trait alone), else the first. */
+/**
+ * Pick the lineage named by --lineage ("section / trait", or a section or trait alone), else the first.
+ *
+ * @example
+ * const lineages = loadLineages(readInput('sample-data/shell-length.csv'), {}, new WarningLog());
+ * chooseLineage(lineages, undefined, 'shell-length.csv').note; // 'shell-length.csv has 2 lineages; using the first, "Varnek Draw / shell length" (choose another with --lineage)'
+ * chooseLineage(lineages, 'tolloway bluff', 'shell-length.csv').lineage.section; // 'Tolloway Bluff' (a section name alone, any case)
+ * chooseLineage(lineages, 'nowhere', 'shell-length.csv');
+ * // throws: --lineage: no lineage "nowhere" in shell-length.csv
+ */
 export function chooseLineage(lineages: readonly Lineage[], request: string | undefined, file: string): { lineage: Lineage; note: string | null } {
   if (request === undefined) {
     const note = lineages.length > 1 ? `${file} has ${lineages.length} lineages; using the first, "${lineageName(lineages[0])}" (choose another with --lineage)` : null;
@@ -50,7 +59,14 @@ export function chooseLineage(lineages: readonly Lineage[], request: string | un
 }
 
 
-/** The lineage's trait unit as power prints it ("mm"; "ln mm" with --log), or null without --trait-unit. */
+/**
+ * The lineage's trait unit as power prints it ("mm"; "ln mm" with --log), or null without --trait-unit.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1], mean: [1, 2], samplingVariance: [0.1, 0.1], traitUnit: 'mm' });
+ * traitUnitOf({ ...lineage, logTransformed: true }); // 'ln mm'
+ * traitUnitOf({ ...lineage, traitUnit: null }); // null
+ */
 export function traitUnitOf(lineage: Lineage): string | null {
   return lineage.traitUnit ? traitUnitLabel(lineage.traitUnit, lineage.logTransformed, '') : null;
 }
@@ -90,6 +106,10 @@ export const poorlyDeterminedRatio = 4;
  * The step variances to simulate with: the given list; else the fitted
  * estimate, plus the upper end of its 95% interval (the project's default
  * interval method) when the estimate is 0 or poorly determined.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.1, 0.1, 0.1] });
+ * assumedStepVariances(lineage, 0.1, [0.2, 0.05, 0.2], []); // [{ stepVariance: 0.05, source: 'given' }, { stepVariance: 0.2, source: 'given' }] (given: sorted, repeats dropped)
  */
 export function assumedStepVariances(lineage: Lineage, estimate: number, given: readonly number[] | undefined, notes: string[]): { stepVariance: number; source: string }[] {
   if (given) return [...new Set(given)].sort((a, b) => a - b).map((stepVariance) => ({ stepVariance, source: 'given' }));
@@ -107,7 +127,13 @@ export function assumedStepVariances(lineage: Lineage, estimate: number, given: 
   ];
 }
 
-/** Short words for an assumption's source: "fitted estimate", "upper end of its 95% interval" or "given". */
+/**
+ * Short words for an assumption's source: "fitted estimate", "upper end of its 95% interval" or "given".
+ *
+ * @example
+ * sourceWords('upper end of its 95% interval (restricted profile likelihood)'); // 'upper end of its 95% interval'
+ * sourceWords('given'); // 'given'
+ */
 export function sourceWords(source: string): string {
   return source.startsWith('upper end') ? 'upper end of its 95% interval' : source;
 }
@@ -119,6 +145,11 @@ export function sourceWords(source: string): string {
  * largest one (the cautious reading) and `assumptions` lists them all.
  *
  * @param read the samples file already read (the report's fit read it), so it is not read again
+ *
+ * @example
+ * // A real run is in powerTable's example; the replicates are checked before the file is read.
+ * await runPower('sample-data/shell-length.csv', { replicates: '9' });
+ * // throws: --replicates must be a whole number from 20 to 100000, got "9"
  */
 export async function runPower(file: string, options: PowerCommandOptions, progress?: PowerProgress, read?: StreamedInput): Promise<PowerRun> {
   const warnings = new WarningLog();
@@ -219,7 +250,16 @@ export async function runPower(file: string, options: PowerCommandOptions, progr
 const caution =
   'Power and false-trend rates hold for the assumed step variance and for this design taken at face value. Model support also depends on sampling, time-averaging and the age model, and a good fit to a random walk says nothing by itself about drift versus selection: weigh these numbers with the specialist’s judgement.';
 
-/** The power report as a terminal table: one block per assumed step variance, each naming it. */
+/**
+ * The power report as a terminal table: one block per assumed step variance, each naming it.
+ *
+ * @example
+ * const run = await runPower('sample-data/shell-length.csv', { replicates: '20', drifts: '0', stepVariance: '0.05', threads: '1', models: 'random-walk,directional-walk' });
+ * const lines = powerTable(run).split('\n');
+ * lines[0]; // 'Power to detect a directional trend: "Varnek Draw / shell length", 24 horizons over 4.3 Myr'
+ * lines[2]; // '  Assumed step variance 0.05 (trait units)² per Myr (given):'
+ * run.report.grid[0].replicates; // 20
+ */
 export function powerTable(run: PowerRun): string {
   const { lineage } = run;
   const unit = lineage.timeUnit.label;

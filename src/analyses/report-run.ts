@@ -79,6 +79,10 @@ function readAttachments(files: readonly string[]): Attachments {
  * field by field first.
  *
  * @throws InputError naming the file and the first field that does not fit (e.g. `lineages[0].models[0].weight: expected a number or null, got "bad"`)
+ *
+ * @example
+ * readFitJson('sample-data/shell-length.csv');
+ * // throws: sample-data/shell-length.csv
  */
 export function readFitJson(file: string): { document: FitDocumentView; sha256: string } {
   const { value, sha256 } = readJsonFile(file, 'the fit.json written by "fit --out"');
@@ -127,6 +131,13 @@ function modelWords(lineage: FitDocumentView['lineages'][number], requested: str
  * trait with two or more sections the sections-together figure. If the
  * chart stack cannot be loaded, plain SVG sketches drawn from the document
  * stand in, and the page says so.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const provenance = { tool: 'stratotrend', version: '0.1.0', inputs: [{ file: 'a.csv', sha256: '0' }], options: {} };
+ * const document = asFitDocument(fitDocument([fitLineage(lineage, [strictStasis], { intervals: false })], provenance, [], 'classic'));
+ * const { figures } = await reportFigures(document, { format: 'svg' });
+ * figures.map((figure) => [figure.kind, figure.mime]); // [['trajectory', 'image/svg+xml']]
  */
 export async function reportFigures(document: FitDocumentView, choices: ReportFigureChoices): Promise<{ figures: ReportFigure[]; note?: string }> {
   let figuresModule: typeof import('../render/figures/index.js');
@@ -291,6 +302,14 @@ function parseFormat(value: string | undefined): 'svg' | 'png' {
 /**
  * Build the report page of a document: figures, attached analyses and the
  * run record (date, command, runtime, report options). Nothing is written.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const provenance = { tool: 'stratotrend', version: '0.1.0', inputs: [{ file: 'a.csv', sha256: '0' }], options: {} };
+ * const document = asFitDocument(fitDocument([fitLineage(lineage, [strictStasis], { intervals: false })], provenance, [], 'classic'));
+ * (await buildReport(document, {})).startsWith('<!DOCTYPE html>'); // true
+ * await buildReport(document, { figureFormat: 'gif' });
+ * // throws: --figure-format: expected "svg" or "png", got "gif"
  */
 export async function buildReport(
   document: FitDocumentView,
@@ -341,7 +360,14 @@ export async function buildReport(
   return reportPage(input);
 }
 
-/** Write a report for a finished fit (used by `fit --report FILE`). */
+/**
+ * Write a report for a finished fit (used by `fit --report FILE`).
+ *
+ * @example
+ * // Refused before anything is drawn or written: the report would overwrite the input.
+ * await writeReportForRun({ document: {} }, 'sample-data/shell-length.csv', ['sample-data/shell-length.csv']);
+ * // throws: refusing to write "sample-data/shell-length.csv": it is an input file
+ */
 export async function writeReportForRun(
   run: FitRun,
   path: string,
@@ -367,7 +393,9 @@ export interface ReportRun {
  * analyses asked for; or a saved fit.json, drawn as saved): the page, not yet written.
  *
  * @example
- * (await runReport('sample-data/shell-length.csv', { quiet: true })).html.startsWith('<!DOCTYPE html>'); // true
+ * // A run fits the file first (see buildReport for the page itself); a missing file is named.
+ * await runReport('no-such-file.csv', { quiet: true });
+ * // throws: no-such-file.csv
  */
 export async function runReport(file: string, options: ReportCommandOptions): Promise<ReportRun> {
   let html: string;

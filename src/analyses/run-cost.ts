@@ -43,6 +43,10 @@ export function placementCount(horizons: number, shifts: number, minimumSegment:
  * invented walks of 400 and 800 horizons on the development machine: 10.4 s
  * and 25.1 s); they also predict the 35 s measured at 1,000 horizons.
  * Intervals add to this; other machines differ, so it is an estimate only.
+ *
+ * @example
+ * shiftSearchSeconds(400, 10); // 10.384 (to 1e-9; 0.0206 × 400 + 1.34e-5 × 400², the measured 10.4 s)
+ * shiftSearchSeconds(800, 10); // 25.056 (to 1e-9; measured 25.1 s)
  */
 export function shiftSearchSeconds(horizons: number, shiftModels: number): number {
   const linear = 0.0206;
@@ -50,7 +54,14 @@ export function shiftSearchSeconds(horizons: number, shiftModels: number): numbe
   return ((linear * horizons + quadratic * horizons * horizons) * shiftModels) / 10;
 }
 
-/** A duration in words: seconds, minutes or hours, rounded. */
+/**
+ * A duration in words: seconds, minutes or hours, rounded.
+ *
+ * @example
+ * durationWords(30); // '30 seconds'
+ * durationWords(600); // '10 minutes'
+ * durationWords(20000); // '6 hours'
+ */
 export function durationWords(seconds: number): string {
   if (seconds < 90) return `${Math.max(1, Math.round(seconds))} seconds`;
   if (seconds < 90 * 60) return `${Math.round(seconds / 60)} minutes`;
@@ -66,6 +77,15 @@ export function durationWords(seconds: number): string {
  * once, before the run).
  *
  * @throws InputError (usage) when a lineage is too long for a requested model.
+ *
+ * @example
+ * const walk = (horizons) => lineageFromArrays({ time: Array.from({ length: horizons }, (_, i) => i), mean: new Array(horizons).fill(1), samplingVariance: new Array(horizons).fill(0.1) });
+ * const warnings = new WarningLog();
+ * const written = [];
+ * checkShiftSearchCost([walk(1500)], extendedModels, { warnings, write: (text) => written.push(text) });
+ * warnings.list().map((warning) => warning.category); // ['long-run']
+ * checkShiftSearchCost([walk(3000)], extendedModels, { warnings });
+ * // throws: --models: lineage "lineage" has 3,000 horizons; punctuated-2, punctuated-2-separate would search 4,459,591 placements
  */
 export function checkShiftSearchCost(
   lineages: readonly Lineage[],

@@ -24,7 +24,14 @@ export interface SimulateCommandOptions extends SampleFileOptions, AgeModelOptio
   out?: string;
 }
 
-/** Parse "name=value,name=value" into natural parameters, checking names against the model. */
+/**
+ * Parse "name=value,name=value" into natural parameters, checking names against the model.
+ *
+ * @example
+ * parseParameters('step_variance=0.01, ancestral_mean=5', ['ancestral_mean', 'step_variance']); // { step_variance: 0.01, ancestral_mean: 5 }
+ * parseParameters('drift=1', ['step_variance']);
+ * // throws: --parameters: "drift" is not a parameter of this model; its parameters are step_variance
+ */
 export function parseParameters(text: string | undefined, known: readonly string[]): Record<string, number> {
   const values: Record<string, number> = {};
   if (text === undefined) return values;
@@ -47,8 +54,13 @@ export function parseParameters(text: string | undefined, known: readonly string
  * each lineage of FILE.
  *
  * @param onRead called with the reading's time-axis and input warnings as soon as FILE is read
+ *
  * @example
- * runSimulate(undefined, { model: 'random-walk', parameters: 'ancestral_mean=5,step_variance=0.01', seed: '7' }); // resolves to 'section,trait,time,n,mean,sd\n...' (one row per horizon)
+ * const text = await runSimulate(undefined, { model: 'random-walk', parameters: 'ancestral_mean=5,step_variance=0.01', seed: '7' });
+ * text.split('\n')[0]; // 'section,trait,time,n,mean,sd'
+ * text.split('\n')[1]; // 'simulated,trait,0,20,5.095820306,1' (seed 7)
+ * await runSimulate(undefined, { model: 'random-walk', parameters: 'step_variance=-1' });
+ * // throws: --parameters: step_variance must be at least 0, got -1
  */
 export async function runSimulate(file: string | undefined, options: SimulateCommandOptions, onRead?: (warnings: readonly Warning[]) => void): Promise<string> {
   const model = findModel(options.model ?? 'directional-walk');

@@ -14,8 +14,12 @@ import { quantileOfSorted } from '../statistics/quantiles.js';
  * @param attempts redraws allowed per section before giving up (default 10000)
  * @throws InputError when no ordered draw is found (age_sd far larger than the
  *   age gaps between ties), naming the section.
+ *
  * @example
- * redrawAgeModel(model, createRandom(1)); // same sections, ties with age_sd > 0 at drawn ages
+ * const model = readAgeModel(readTable('section,height,age,age_sd\nA,0,10,0.1\nA,50,8,0.1\nB,0,9,0\nB,20,7,0\n', 'ties.csv'));
+ * const drawn = redrawAgeModel(model, createRandom(1));
+ * drawn.sections.get('A').map((tie) => tie.age); // [10.081616807010514, 7.931955547672515] (seed 1; still older below)
+ * drawn.sections.get('B').map((tie) => tie.age); // [9, 7] (age_sd = 0: unchanged)
  */
 export function redrawAgeModel(model: AgeModel, random: RandomSource, attempts = 10_000): AgeModel {
   const sections = new Map<string, readonly TiePoint[]>();
@@ -54,7 +58,9 @@ export function redrawAgeModel(model: AgeModel, random: RandomSource, attempts =
  * @throws InputError from `redrawAgeModel` when no ordered draw exists
  *
  * @example
- * ageMonteCarlo(ties, 3, 1, (drawn) => drawn.sections.size); // [2, 2, 2] for a model of two sections
+ * const model = readAgeModel(readTable('section,height,age,age_sd\nA,0,10,0.1\nA,50,8,0.1\nB,0,9,0\nB,20,7,0\n', 'ties.csv'));
+ * ageMonteCarlo(model, 3, 1, (drawn) => drawn.sections.size); // [2, 2, 2]
+ * ageMonteCarlo(model, 3, 1, (drawn) => drawn.sections.get('A')[0].age)[0] === redrawAgeModel(model, createRandom(1)).sections.get('A')[0].age; // true (one seeded stream)
  */
 export function ageMonteCarlo<T>(ageModel: AgeModel, draws: number, seed: number, refit: (model: AgeModel) => T, onDraw?: (done: number, total: number) => void): T[] {
   const random = createRandom(seed);
@@ -110,6 +116,15 @@ export interface CandidateSpread {
  * Summarise the draws of one ranked set (one lineage's models, or one
  * trait's hypotheses): per candidate, the spread of its Akaike weight, how
  * often it was best, and the spread of its point estimates.
+ *
+ * @example
+ * const draws = [
+ *   [{ key: 'a', weight: 0.7, best: true, estimates: { x: 1 } }, { key: 'b', weight: 0.3, best: false, estimates: {} }],
+ *   [{ key: 'a', weight: 0.4, best: false, estimates: { x: 3 } }, { key: 'b', weight: 0.6, best: true, estimates: {} }],
+ * ];
+ * const [a] = summariseDraws(draws);
+ * a.bestFraction; // 0.5
+ * a.estimates.x; // { median: 2, lower: 1.05, upper: 2.95, count: 2 } (type-7 quantiles of [1, 3])
  */
 export function summariseDraws(draws: readonly (readonly RankedCandidate[])[]): CandidateSpread[] {
   const keys: string[] = [];

@@ -95,7 +95,13 @@ export interface CompareOptions extends FitOptions {
  */
 export const sameFitTolerance = 1e-6;
 
-/** Whether two maximised fits are identical at their estimates (equal K, logL equal to {@link sameFitTolerance}). */
+/**
+ * Whether two maximised fits are identical at their estimates (equal K, logL equal to {@link sameFitTolerance}).
+ *
+ * @example
+ * sameFit({ k: 2, logLik: -10 }, { k: 2, logLik: -10.000001 }); // true (1e-7 relative)
+ * sameFit({ k: 2, logLik: -10 }, { k: 3, logLik: -10 }); // false
+ */
 export function sameFit(a: { k: number; logLik: number }, b: { k: number; logLik: number }): boolean {
   if (a.k !== b.k || !Number.isFinite(a.logLik) || !Number.isFinite(b.logLik)) return false;
   return Math.abs(a.logLik - b.logLik) <= sameFitTolerance * Math.max(1, Math.abs(a.logLik), Math.abs(b.logLik));
@@ -115,6 +121,10 @@ export const sharedShiftReason =
  * Whether shared-offset is a distinct hypothesis for a family: with no
  * process at all (strict stasis) a common mean plus offsets is exactly
  * "every section its own mean", i.e. separate, so it is left out.
+ *
+ * @example
+ * offsetApplies(strictStasis); // false
+ * offsetApplies(randomWalk); // true
  */
 export function offsetApplies(base: EvolutionModel): boolean {
   return base.process.length > 0;
@@ -210,6 +220,17 @@ export const offsetCovariateReason = 'not fitted: the common timeline of all sec
  * likelihood-ratio test of shared against separate.
  *
  * @param sections lineages of one trait from two or more sections
+ *
+ * @example
+ * // Strict stasis with unit sampling variances: separate means 2 and 4 fit exactly, so
+ * // logL = -2 ln 2 pi - 1; shared (one mean, 3) adds residuals 4 + 0 + 1 + 1, logL = -2 ln 2 pi - 3 (closed forms).
+ * const a = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * const b = lineageFromArrays({ section: 'B', trait: 'length', time: [0, 1], mean: [4, 4], samplingVariance: [1, 1] });
+ * const comparison = compareSections([a, b], [strictStasis], { intervals: false });
+ * comparison.hypotheses.map((h) => h.logLik); // [-4.675754132818691, -6.675754132818691] (to 1e-12; separate, shared)
+ * comparison.tests[0].statistic; // 4 (to 1e-12)
+ * comparison.tests[0].pValue; // 0.0455002638963584 (to 1e-12; P(chi2_1 > 4))
+ * comparison.best; // { id: 'shared', model: 'strict-stasis' } (AICc 17.35 against 25.35)
  */
 export function compareSections(sections: readonly Lineage[], models: readonly EvolutionModel[], options: CompareOptions = {}): TraitComparison {
   if (sections.length < 2) throw new Error('compareSections needs two or more sections');
@@ -263,7 +284,12 @@ export function compareSections(sections: readonly Lineage[], models: readonly E
   return { trait: sections[0].trait, sections, horizons, hypotheses, best, bestGroup, tests, leftOut };
 }
 
-/** "hypothesis model", the key of a hypothesis in age-draw summaries and `sameFitAs`. */
+/**
+ * "hypothesis model", the key of a hypothesis in age-draw summaries and `sameFitAs`.
+ *
+ * @example
+ * candidateKey({ id: 'shared-offset', model: 'ou' }); // 'shared-offset ou'
+ */
 export function candidateKey(hypothesis: Pick<HypothesisFit, 'id' | 'model'>): string {
   return `${hypothesis.id} ${hypothesis.model}`;
 }
@@ -274,7 +300,16 @@ export interface ComparisonRun {
   readonly skipped: readonly { trait: string; reason: string }[];
 }
 
-/** Group lineages by trait (order of first appearance). */
+/**
+ * Group lineages by trait (order of first appearance).
+ *
+ * @example
+ * const length = (section) => lineageFromArrays({ section, trait: 'length', time: [0, 1], mean: [1, 2], samplingVariance: [1, 1] });
+ * const width = lineageFromArrays({ section: 'A', trait: 'width', time: [0, 1], mean: [1, 2], samplingVariance: [1, 1] });
+ * const groups = lineagesByTrait([length('A'), width, length('B')]);
+ * [...groups.keys()]; // ['length', 'width']
+ * groups.get('length').map((lineage) => lineage.section); // ['A', 'B']
+ */
 export function lineagesByTrait(lineages: readonly Lineage[]): Map<string, Lineage[]> {
   const groups = new Map<string, Lineage[]>();
   for (const lineage of lineages) {
@@ -285,7 +320,16 @@ export function lineagesByTrait(lineages: readonly Lineage[]): Map<string, Linea
   return groups;
 }
 
-/** {@link compareSections} for every trait measured in two or more sections. */
+/**
+ * {@link compareSections} for every trait measured in two or more sections.
+ *
+ * @example
+ * const length = (section, mean) => lineageFromArrays({ section, trait: 'length', time: [0, 1], mean, samplingVariance: [1, 1] });
+ * const width = lineageFromArrays({ section: 'A', trait: 'width', time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * const run = compareTraits([length('A', [1, 3]), width, length('B', [4, 4])], [strictStasis], { intervals: false });
+ * run.comparisons.map((comparison) => comparison.trait); // ['length']
+ * run.skipped; // [{ trait: 'width', reason: 'measured in one section only (A); nothing to compare' }]
+ */
 export function compareTraits(lineages: readonly Lineage[], models: readonly EvolutionModel[], options: CompareOptions = {}): ComparisonRun {
   const comparisons: TraitComparison[] = [];
   const skipped: { trait: string; reason: string }[] = [];

@@ -19,7 +19,12 @@ export interface JointModel {
   sectionParameters(estimates: Record<string, number>, s: number): Record<string, number>;
 }
 
-/** Name of a per-section parameter: `ancestral_mean[Section name]`. */
+/**
+ * Name of a per-section parameter: `ancestral_mean[Section name]`.
+ *
+ * @example
+ * perSectionName('ancestral_mean', 'Upper cliff'); // 'ancestral_mean[Upper cliff]'
+ */
 export function perSectionName(name: string, section: string): string {
   return `${name}[${section}]`;
 }
@@ -56,6 +61,14 @@ function uniqueSectionNames(sections: readonly Lineage[]): string[] {
  * horizon, so the covariance is block-diagonal with the base model's blocks
  * and the log-likelihood at given parameters is the sum of the sections'.
  * K = K_base + (S - 1) x (number of per-section parameters).
+ *
+ * @example
+ * const a = lineageFromArrays({ section: 'A', time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * const b = lineageFromArrays({ section: 'B', time: [0, 1], mean: [4, 4], samplingVariance: [1, 1] });
+ * const joint = sharedModel(randomWalk, [a, b]);
+ * joint.model.parameters.map((parameter) => parameter.name); // ['ancestral_mean[A]', 'ancestral_mean[B]', 'step_variance']
+ * Array.from(joint.lineage.time); // [0, 1, 0, 1] (each section keeps its own clock)
+ * joint.sectionParameters({ 'ancestral_mean[A]': 1, 'ancestral_mean[B]': 4, step_variance: 2 }, 1); // { ancestral_mean: 4, step_variance: 2 }
  */
 export function sharedModel(base: EvolutionModel, sections: readonly Lineage[]): JointModel {
   const names = uniqueSectionNames(sections);
@@ -183,6 +196,13 @@ export function sharedModel(base: EvolutionModel, sections: readonly Lineage[]):
  * including horizons of different sections (T = common time; coeval horizons
  * are separate observations of the same latent state).
  * K = K_base + (S - 1).
+ *
+ * @example
+ * const a = { ...lineageFromArrays({ section: 'A', time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] }), firstAge: 10 };
+ * const b = { ...lineageFromArrays({ section: 'B', time: [0, 1], mean: [4, 4], samplingVariance: [1, 1] }), firstAge: 9 };
+ * const joint = offsetModel(randomWalk, [a, b]);
+ * joint.model.parameters.map((parameter) => parameter.name); // ['ancestral_mean', 'step_variance', 'offset[B]']
+ * Array.from(joint.lineage.time); // [0, 1, 1, 2] (common time from age 10)
  */
 export function offsetModel(base: EvolutionModel, sections: readonly Lineage[]): JointModel {
   const names = uniqueSectionNames(sections);

@@ -13,7 +13,14 @@ export interface CommonTime {
   readonly starts: readonly number[];
 }
 
-/** The common timescale of a set of sections (see {@link CommonTime}). */
+/**
+ * The common timescale of a set of sections (see {@link CommonTime}).
+ *
+ * @example
+ * const a = { ...lineageFromArrays({ section: 'A', time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] }), firstAge: 10 };
+ * const b = { ...lineageFromArrays({ section: 'B', time: [0, 1], mean: [4, 4], samplingVariance: [1, 1] }), firstAge: 9 };
+ * commonTime([a, b]); // { origin: 10, starts: [0, 1] }
+ */
 export function commonTime(sections: readonly Lineage[]): CommonTime {
   const ages = sections.map((section) => section.firstAge ?? 0);
   const origin = Math.max(...ages);
@@ -32,7 +39,13 @@ function concatenate(parts: readonly ArrayLike<number>[]): Float64Array {
   return out;
 }
 
-/** Display name of several sections together. */
+/**
+ * Display name of several sections together.
+ *
+ * @example
+ * const section = (name) => lineageFromArrays({ section: name, time: [0, 1], mean: [1, 2], samplingVariance: [1, 1] });
+ * sectionsName([section('A'), section('')]); // 'A + lineage'
+ */
 export function sectionsName(sections: readonly Lineage[]): string {
   return sections.map((section) => section.section || 'lineage').join(' + ');
 }
@@ -42,6 +55,14 @@ export function sectionsName(sections: readonly Lineage[]): string {
  * 0 at each section's first horizon (each section keeps its own time axis).
  * Used by the shared hypothesis, where the latent process restarts per
  * section (a block-diagonal covariance). `rows[s]` is the first row of section s.
+ *
+ * @example
+ * const a = lineageFromArrays({ section: 'A', time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * const b = lineageFromArrays({ section: 'B', time: [0, 1, 2], mean: [4, 4, 5], samplingVariance: [1, 1, 1] });
+ * const stacked = stackSections([a, b]);
+ * stacked.rows; // [0, 2]
+ * Array.from(stacked.lineage.time); // [0, 1, 0, 1, 2]
+ * stacked.lineage.section; // 'A + B'
  */
 export function stackSections(sections: readonly Lineage[]): { lineage: Lineage; rows: number[] } {
   const rows: number[] = [];
@@ -91,6 +112,16 @@ export interface MergedSections {
  * variance = (sum (n_k - 1) v_k + sum n_k (x_k - mean)^2) / (n - 1) — the
  * sample variance of the pooled specimens (common practice) — and sampling
  * variance v / n. A merged row belongs to the first of its sections.
+ *
+ * @example
+ * // Coeval horizons at common time 1: n = 1 + 1, mean (3 + 4) / 2, variance ((3 - 3.5)^2 + (4 - 3.5)^2) / 1 = 0.5.
+ * const a = { ...lineageFromArrays({ section: 'A', time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] }), firstAge: 10 };
+ * const b = { ...lineageFromArrays({ section: 'B', time: [0, 1], mean: [4, 4], samplingVariance: [1, 1] }), firstAge: 9 };
+ * mergeSections([a, b]).sectionOf; // [0, 0, 1, 1]
+ * const merged = mergeSections([a, b], { mergeCoeval: true }).lineage;
+ * Array.from(merged.time); // [0, 1, 2]
+ * Array.from(merged.mean); // [1, 3.5, 4]
+ * Array.from(merged.withinVariance); // [1, 0.5, 1]
  */
 export function mergeSections(sections: readonly Lineage[], options: { mergeCoeval?: boolean } = {}): MergedSections {
   const { starts } = commonTime(sections);
@@ -160,6 +191,10 @@ export function mergeSections(sections: readonly Lineage[], options: { mergeCoev
 /**
  * The lineage with repeated times removed (first row of each time kept), so
  * search ranges built from the shortest interval stay finite.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 1, 3], mean: [4, 4, 1, 2], samplingVariance: [1, 1, 1, 1] });
+ * Array.from(distinctTimes(lineage).mean); // [4, 4, 2] (the first row of time 1 kept)
  */
 export function distinctTimes(lineage: Lineage): Lineage {
   const keep: number[] = [];
@@ -184,6 +219,11 @@ export function distinctTimes(lineage: Lineage): Lineage {
  * times: fits a composite with coeval horizons kept as separate samples (a
  * zero interval is legitimate there — no process change between coeval
  * samples — but would make range ends infinite). Everything else is the model itself.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 1, 3], mean: [4, 4, 1, 2], samplingVariance: [1, 1, 1, 1] });
+ * toleratingCoeval(randomWalk).process[0].range(lineage, []); // [4.4444444444444443e-10, 1333.3333333333333] (the walk's range on times 0, 1, 3)
+ * randomWalk.process[0].range(distinctTimes(lineage), []); // [4.4444444444444443e-10, 1333.3333333333333]
  */
 export function toleratingCoeval(model: EvolutionModel): EvolutionModel {
   return {
@@ -196,6 +236,13 @@ export function toleratingCoeval(model: EvolutionModel): EvolutionModel {
  * Search axes of a joint model: the base model's axes, each range the union
  * of the ranges over the given lineages (so every section's plausible values
  * are searched). Limit names are kept.
+ *
+ * @example
+ * const a = lineageFromArrays({ time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * const b = lineageFromArrays({ time: [0, 2], mean: [4, 4], samplingVariance: [1, 1] });
+ * randomWalk.process[0].range(a, []); // [2e-9, 2000]
+ * randomWalk.process[0].range(b, []); // [5e-10, 500]
+ * unionAxes(randomWalk, [a, b])[0].range(a, []); // [5e-10, 2000]
  */
 export function unionAxes(base: EvolutionModel, lineages: readonly Lineage[]): ProcessAxis[] {
   return base.process.map((axis): ProcessAxis => ({

@@ -44,10 +44,17 @@ const require = createRequire(import.meta.url);
  * process alive.
  *
  * @param label text before the bar, e.g. "fitting lineages"
+ *
  * @example
- * const bar = terminalBar('fitting lineages', { quiet: options.quiet, eta: true });
- * bar?.update(3, 10); // stderr, on a terminal: "fitting lineages [█████░░░…] 3/10, about 2 s left"
- * bar?.stop();
+ * // A stand-in terminal that records what is drawn (a bar is drawn only on a terminal).
+ * const written = [];
+ * const stream = { isTTY: true, columns: 80, write: (text) => { written.push(text); return true; }, cursorTo() {}, clearLine() {}, moveCursor() {}, on() {}, removeListener() {} };
+ * const bar = terminalBar('fitting lineages', { stream });
+ * bar.update(3, 10);
+ * bar.stop();
+ * written.includes('fitting lineages [█████████░░░░░░░░░░░░░░░░░░░░░] 3/10'); // true (3/10 of 30 cells)
+ * terminalBar('fitting lineages', { stream: { isTTY: false } }); // null (a pipe or file: no bar)
+ * terminalBar('fitting lineages', { stream, quiet: true }); // null
  */
 export function terminalBar(label: string, options: TerminalBarOptions = {}): TerminalBar | null {
   const stream = options.stream ?? process.stderr;
@@ -102,7 +109,10 @@ function keepUnreferenced(bar: SingleBar): void {
  * for a single lineage.
  *
  * @example
- * fitLineages(lineages, models, fitOptions, { onProgress: fittingProgress(lineages.length, { quiet: false }) });
+ * fittingProgress(1); // undefined (a single lineage gets no bar)
+ * fittingProgress(5, { quiet: true }); // undefined
+ * const stream = { isTTY: true, columns: 80, write: () => true, cursorTo() {}, clearLine() {}, moveCursor() {}, on() {}, removeListener() {} };
+ * typeof fittingProgress(5, {}, stream); // 'function' (called with (done, total); the last call clears the bar)
  */
 export function fittingProgress(total: number, options: { quiet?: boolean } = {}, stream: NodeJS.WriteStream = process.stderr, label = 'fitting lineages'): ((done: number, total: number) => void) | undefined {
   if (total < 2) return undefined;
@@ -125,7 +135,8 @@ interface ShiftSearchProgress {
  * search ends.
  *
  * @example
- * fitModel(model, lineage, { onProgress: searchProgress({ quiet: false }) });
+ * searchProgress({ quiet: true }); // undefined
+ * searchProgress({}, { isTTY: false }); // undefined (not a terminal)
  */
 export function searchProgress(options: { quiet?: boolean } = {}, stream: NodeJS.WriteStream = process.stderr): ((progress: ShiftSearchProgress) => void) | undefined {
   const bar = terminalBar('', { quiet: options.quiet, stream, delayMs: 1000 });
@@ -150,7 +161,8 @@ interface ReadingProgress {
  * the rows alone, as the count); cleared when reading ends.
  *
  * @example
- * await loadSamplesStreamed(file, options, readingProgress(file, { quiet: options.quiet }));
+ * readingProgress('samples.csv', { quiet: true }); // undefined
+ * readingProgress('samples.csv', {}, { isTTY: false }); // undefined (not a terminal)
  */
 export function readingProgress(file: string, options: { quiet?: boolean } = {}, stream: NodeJS.WriteStream = process.stderr): ((progress: ReadingProgress) => void) | undefined {
   const bar = terminalBar(`reading ${file}`, { quiet: options.quiet, stream, detail: true });
@@ -172,8 +184,13 @@ export function readingProgress(file: string, options: { quiet?: boolean } = {},
  * dpi); the last state is left on its line.
  *
  * @example
- * const progress = drawingProgress(plan.names.length, { quiet: options.quiet });
- * progress?.(1); // ... progress?.(total) ends the bar
+ * const written = [];
+ * const stream = { isTTY: true, columns: 80, write: (text) => { written.push(text); return true; }, cursorTo() {}, clearLine() {}, moveCursor() {}, on() {}, removeListener() {} };
+ * drawingProgress(12, {}, stream); // undefined (12 figures or fewer: no bar)
+ * const progress = drawingProgress(20, {}, stream);
+ * progress(1);
+ * progress(20);
+ * written.includes('drawing figures [██████████████████████████████] 20/20'); // true (left on its line as a record)
  */
 export function drawingProgress(total: number, options: { quiet?: boolean } = {}, stream: NodeJS.WriteStream = process.stderr): ((done: number) => void) | undefined {
   if (total <= 12) return undefined;
@@ -196,9 +213,11 @@ export interface StageProgress {
  * with `quiet`, `progress` is undefined and `stop` does nothing.
  *
  * @example
- * const reporter = stageProgress(options.quiet);
- * await powerAnalysis(plan, runner, reporter.progress);
- * reporter.stop();
+ * const quiet = stageProgress(true);
+ * quiet.progress; // undefined
+ * quiet.stop(); // undefined (does nothing)
+ * const stream = { isTTY: true, columns: 80, write: () => true, cursorTo() {}, clearLine() {}, moveCursor() {}, on() {}, removeListener() {} };
+ * typeof stageProgress(false, stream).progress.stage; // 'function'
  */
 export function stageProgress(quiet: boolean | undefined, stream: NodeJS.WriteStream = process.stderr): { progress: StageProgress | undefined; stop(): void } {
   if (quiet || !stream.isTTY) return { progress: undefined, stop: () => {} };

@@ -85,6 +85,23 @@ function stageFile(path: string, contents: string | Uint8Array, fileSystem: Outp
  *
  * @param fileSystem - the calls to make (tests inject a failing disk)
  * @throws InputError naming the path when the file cannot be written.
+ *
+ * @example
+ * // An in-memory disk (the calls of OutputFileSystem), so nothing is written here.
+ * const files = new Map();
+ * const open = new Map();
+ * const disk = {
+ *   createExclusive: (path) => { open.set(open.size + 3, path); files.set(path, ''); return open.size + 2; },
+ *   write: (descriptor, bytes, offset, length) => { const path = open.get(descriptor); files.set(path, files.get(path) + Buffer.from(bytes.subarray(offset, offset + length)).toString()); return length; },
+ *   fsync: () => {}, close: () => {},
+ *   rename: (from, to) => { files.set(to, files.get(from)); files.delete(from); },
+ *   unlink: (path) => { files.delete(path); },
+ * };
+ * writeAtomically('out/fit.json', '{}', disk);
+ * [...files]; // [['out/fit.json', '{}']] (the temporary file renamed over the target)
+ * const full = { ...disk, write: () => { throw Object.assign(new Error('full'), { code: 'ENOSPC' }); } };
+ * writeAtomically('out/models.csv', 'x', full);
+ * // throws: cannot write "out/models.csv": no space left on the device; nothing was changed there
  */
 export function writeAtomically(path: string, contents: string | Uint8Array, fileSystem: OutputFileSystem = nodeFileSystem): void {
   let temporary: string | null = null;
@@ -109,10 +126,15 @@ export function writeAtomically(path: string, contents: string | Uint8Array, fil
  * the previous run's.
  *
  * @example
- * const set = new OutputSet('out');
- * set.add('fit.json', text);
- * set.add('models.csv', table);
+ * // mkdtempSync, readdirSync, rmSync from node:fs, tmpdir from node:os (a scratch folder)
+ * const folder = mkdtempSync(`${tmpdir()}/stratotrend-example-`);
+ * const set = new OutputSet(folder);
+ * set.add('fit.json', '{}');
+ * set.add('models.csv', 'section,trait\n');
+ * readdirSync(folder).filter((name) => !name.endsWith('.tmp')); // [] (nothing in place before commit)
  * set.commit(); // ['fit.json', 'models.csv']
+ * readdirSync(folder).sort(); // ['fit.json', 'models.csv']
+ * rmSync(folder, { recursive: true });
  */
 export class OutputSet {
   private readonly staged: { name: string; temporary: string }[] = [];
@@ -221,6 +243,13 @@ function sameFile(left: string, right: string): boolean {
  *
  * @param option - the option that chose the place, for the advice in the message
  * @throws InputError (usage) naming the folder and the file.
+ *
+ * @example
+ * checkOutputNames('no-such-folder', [], ['fit.json']); // undefined (a new folder: nothing to refuse)
+ * checkOutputNames('sample-data', [], ['README.md']);
+ * // throws: output folder "sample-data" already has "README.md", which stratotrend did not write
+ * checkOutputNames('sample-data', ['sample-data/shell-length.csv'], ['shell-length.csv']);
+ * // throws: refusing to write "sample-data/shell-length.csv": it is an input file; choose another --out folder
  */
 export function checkOutputNames(folder: string, inputs: readonly string[], names: readonly string[], option = '--out folder'): void {
   const target = resolve(folder);
@@ -274,6 +303,17 @@ function pathTaken(path: string): boolean {
  *
  * @param option - the option that chose the place, for the advice in messages
  * @throws InputError (usage) naming the folder and the file, or the other run.
+ *
+ * @example
+ * // mkdtempSync, readdirSync, rmSync from node:fs, tmpdir from node:os (a scratch folder)
+ * const folder = mkdtempSync(`${tmpdir()}/stratotrend-example-`);
+ * const target = prepareOutputFolder(`${folder}/out`, [], ['fit.json']);
+ * readdirSync(target).sort(); // ['.stratotrend-files', '.stratotrend-lock'] (the list of its own names, and the run's lock)
+ * [...readOwnFiles(target)]; // ['fit.json']
+ * releaseOutputFolder(target);
+ * rmSync(folder, { recursive: true });
+ * prepareOutputFolder('sample-data/shell-length.csv', ['sample-data/shell-length.csv']);
+ * // throws: output folder "sample-data/shell-length.csv" is an input file
  */
 export function prepareOutputFolder(folder: string, inputs: readonly string[], names: readonly string[] = [], option = '--out folder'): string {
   const target = resolve(folder);
@@ -308,6 +348,15 @@ export function prepareOutputFolder(folder: string, inputs: readonly string[], n
  *
  * @param option - the option that named the file, for the advice in messages
  * @returns the absolute path to write
+ *
+ * @example
+ * // mkdtempSync, rmSync from node:fs, tmpdir from node:os (a scratch folder)
+ * const folder = mkdtempSync(`${tmpdir()}/stratotrend-example-`);
+ * prepareOutputFile(`${folder}/report.html`, [], '--report file') === `${folder}/report.html`; // true
+ * releaseOutputFolder(folder);
+ * rmSync(folder, { recursive: true });
+ * prepareOutputFile('sample-data/shell-length.csv', ['sample-data/shell-length.csv'], '--report file');
+ * // throws: refusing to write "sample-data/shell-length.csv": it is an input file
  */
 export function prepareOutputFile(path: string, inputs: readonly string[], option: string): string {
   for (const input of inputs) {
@@ -319,7 +368,14 @@ export function prepareOutputFile(path: string, inputs: readonly string[], optio
   return join(folder, basename(path));
 }
 
-/** {@link checkOutputNames} for one file: may the command write `path`? */
+/**
+ * {@link checkOutputNames} for one file: may the command write `path`?
+ *
+ * @example
+ * checkOutputFile('no-such-folder/report.html', ['sample-data/shell-length.csv'], '--report file'); // undefined
+ * checkOutputFile('sample-data/README.md', [], '--report file');
+ * // throws: output folder "sample-data" already has "README.md", which stratotrend did not write; choose another --report file
+ */
 export function checkOutputFile(path: string, inputs: readonly string[], option: string): void {
   for (const input of inputs) {
     if (input !== '-' && existsSync(input) && sameFile(input, path)) {
@@ -339,6 +395,15 @@ const heldLocks = new Set<string>();
  * Give up every output-folder lock this process holds. Commands call it when
  * they end, so a process that runs several commands (a test, a library
  * caller) does not keep its folders locked; process exit does it too.
+ *
+ * @example
+ * // mkdtempSync, readdirSync, rmSync from node:fs, tmpdir from node:os (a scratch folder)
+ * const folder = mkdtempSync(`${tmpdir()}/stratotrend-example-`);
+ * lockOutputFolder(folder);
+ * readdirSync(folder); // ['.stratotrend-lock']
+ * releaseOutputLocks();
+ * readdirSync(folder); // []
+ * rmSync(folder, { recursive: true });
  */
 export function releaseOutputLocks(): void {
   releaseHeldLocks();
@@ -351,14 +416,30 @@ function releaseHeldLocks(): void {
   heldLocks.clear();
 }
 
-/** Give up this process's lock of a folder (done for every held lock when the process exits). */
+/**
+ * Give up this process's lock of a folder (done for every held lock when the process exits).
+ *
+ * @example
+ * // mkdtempSync, readdirSync, rmSync from node:fs, tmpdir from node:os (a scratch folder)
+ * const folder = mkdtempSync(`${tmpdir()}/stratotrend-example-`);
+ * lockOutputFolder(folder);
+ * releaseOutputFolder(folder);
+ * readdirSync(folder); // [] (the lock file removed)
+ * rmSync(folder, { recursive: true });
+ */
 export function releaseOutputFolder(folder: string): void {
   const target = resolve(folder);
   if (!heldLocks.delete(target)) return;
   try { unlinkSync(join(target, lockFileName)); } catch { /* already gone */ }
 }
 
-/** Whether a process of this id is running (EPERM: it runs, under another user). */
+/**
+ * Whether a process of this id is running (EPERM: it runs, under another user).
+ *
+ * @example
+ * processAlive(process.pid); // true
+ * processAlive(0); // false (not a process id)
+ */
 export function processAlive(pid: number): boolean {
   if (!Number.isInteger(pid) || pid <= 0) return false;
   try {
@@ -378,6 +459,15 @@ export function processAlive(pid: number): boolean {
  *
  * @param label - the folder as the user wrote it, for messages
  * @throws InputError (usage) naming the other run when one holds the lock.
+ *
+ * @example
+ * // mkdtempSync, readFileSync, rmSync from node:fs, tmpdir from node:os (a scratch folder)
+ * const folder = mkdtempSync(`${tmpdir()}/stratotrend-example-`);
+ * lockOutputFolder(folder);
+ * readFileSync(`${folder}/.stratotrend-lock`, 'utf8').startsWith(`pid ${process.pid}\n`); // true
+ * lockOutputFolder(folder); // undefined (held already: nothing to do)
+ * releaseOutputFolder(folder);
+ * rmSync(folder, { recursive: true });
  */
 export function lockOutputFolder(folder: string, label: string = folder): void {
   const target = resolve(folder);
@@ -433,6 +523,17 @@ function readLock(path: string): { pid: number | null; started: string; command:
  * left alone. A link at such a name is removed itself, never followed.
  *
  * @returns the names removed
+ *
+ * @example
+ * // A temporary file of an interrupted run (process 999999999, not running) for a name stratotrend wrote there.
+ * // mkdtempSync, writeFileSync, readdirSync, rmSync from node:fs, tmpdir from node:os (a scratch folder)
+ * const folder = mkdtempSync(`${tmpdir()}/stratotrend-example-`);
+ * writeFileSync(`${folder}/.stratotrend-files`, 'fit.json\n');
+ * writeFileSync(`${folder}/.fit.json.999999999-0123456789ab.tmp`, '{');
+ * writeFileSync(`${folder}/.notes.txt.999999999-0123456789ab.tmp`, 'x');
+ * removeStaleTemporaryFiles(folder); // ['.fit.json.999999999-0123456789ab.tmp'] (notes.txt is not stratotrend's: left alone)
+ * readdirSync(folder).sort(); // ['.notes.txt.999999999-0123456789ab.tmp', '.stratotrend-files']
+ * rmSync(folder, { recursive: true });
  */
 export function removeStaleTemporaryFiles(folder: string): string[] {
   const removed: string[] = [];
@@ -463,6 +564,13 @@ export function removeStaleTemporaryFiles(folder: string): string[] {
  * file systems, e.g. under /proc, instead of failing.)
  *
  * @throws the file-system error of the first level that cannot be made.
+ *
+ * @example
+ * // mkdtempSync, existsSync, rmSync from node:fs, tmpdir from node:os (a scratch folder)
+ * const folder = mkdtempSync(`${tmpdir()}/stratotrend-example-`);
+ * makeFolder(`${folder}/a/b/c`);
+ * existsSync(`${folder}/a/b/c`); // true
+ * rmSync(folder, { recursive: true });
  */
 export function makeFolder(path: string): void {
   const missing: string[] = [];
@@ -476,7 +584,12 @@ export function makeFolder(path: string): void {
   for (const folder of missing.reverse()) mkdirSync(folder);
 }
 
-/** The names listed in a folder's {@link ownFilesList} (empty when there is none). */
+/**
+ * The names listed in a folder's {@link ownFilesList} (empty when there is none).
+ *
+ * @example
+ * readOwnFiles('sample-data'); // new Set() (no list there: stratotrend wrote nothing in it)
+ */
 export function readOwnFiles(folder: string): Set<string> {
   try {
     const text = readFileSync(join(folder, ownFilesList), 'utf8');
@@ -489,12 +602,22 @@ export function readOwnFiles(folder: string): Set<string> {
 /**
  * Every file a command reads: the samples file and, when given, the age
  * model and the covariate file, which outputs must never overwrite.
+ *
+ * @example
+ * inputPaths('samples.csv', { ageModel: 'ties.csv', attach: ['power.json'] }); // ['samples.csv', 'ties.csv', 'power.json']
  */
 export function inputPaths(file: string, options: { ageModel?: string; covariateFile?: string; attach?: readonly string[] } = {}): string[] {
   return [file, options.ageModel, options.covariateFile, ...(options.attach ?? [])].filter((path): path is string => typeof path === 'string' && path !== '');
 }
 
-/** Refuse to write an output file over one of the inputs. */
+/**
+ * Refuse to write an output file over one of the inputs.
+ *
+ * @example
+ * refuseInputPath('out/fit.json', ['sample-data/shell-length.csv']); // undefined
+ * refuseInputPath('sample-data/./shell-length.csv', ['sample-data/shell-length.csv']);
+ * // throws: refusing to write "sample-data/./shell-length.csv": it is an input file
+ */
 export function refuseInputPath(path: string, inputs: readonly string[]): void {
   for (const input of inputs) {
     if (input !== '-' && existsSync(input) && sameFile(input, path)) {

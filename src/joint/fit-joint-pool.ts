@@ -11,7 +11,16 @@ export interface JointFitTask {
   readonly start?: number[];
 }
 
-/** Worker entry: fit one joint model (see {@link fitJointModel}). */
+/**
+ * Worker entry: fit one joint model (see {@link fitJointModel}).
+ *
+ * @example
+ * const time = [0, 1, 2, 3, 4, 5];
+ * const x = [0, 0.5, 0.2, 1.1, 1.6, 1.2];
+ * const y = [1, 1.4, 1.1, 1.9, 2.6, 2.0];
+ * const data = { traits: 2, time: Float64Array.from(time), values: Float64Array.from(time.flatMap((_, i) => [x[i], y[i]])), sampling: Float64Array.from(time.flatMap(() => [0.01, 0, 0, 0.01])) };
+ * fitJointTask({ model: 'independent-random-walks', data, intervals: false }).logLik; // -5.807239873520929 (to 1e-9; the sum of the two traits' random-walk fits, see fitJointModel)
+ */
 export function fitJointTask(task: JointFitTask): JointModelFit {
   return fitJointModel(jointModel(task.model) as JointModel, task.data, { intervals: task.intervals, start: task.start });
 }
@@ -21,6 +30,15 @@ export function fitJointTask(task: JointFitTask): JointModelFit {
  * the independent models first, then each correlated model from its
  * independent counterpart's maximum, one task per model. Same numbers as
  * the sequential run (each task is the same deterministic computation).
+ *
+ * @example
+ * const time = [0, 1, 2, 3, 4, 5];
+ * const x = [0, 0.5, 0.2, 1.1, 1.6, 1.2];
+ * const y = [1, 1.4, 1.1, 1.9, 2.6, 2.0];
+ * const data = { traits: 2, time: Float64Array.from(time), values: Float64Array.from(time.flatMap((_, i) => [x[i], y[i]])), sampling: Float64Array.from(time.flatMap(() => [0.01, 0, 0, 0.01])) };
+ * const models = [jointModel('independent-random-walks'), jointModel('correlated-random-walk')];
+ * const { best } = await fitJointModelsOnPool(models, data, { intervals: false, threads: 1 });
+ * best; // 'correlated-random-walk' (as fitJointModels finds in this thread)
  */
 export async function fitJointModelsOnPool(models: readonly JointModel[], data: JointData, options: { intervals: boolean; threads?: number }): Promise<{ models: RankedJointFit[]; best: string | null }> {
   const key = (model: JointModel): string => `${model.process}/${model.mean}`;

@@ -42,6 +42,12 @@ export type SpecimenTable = Map<string, Map<string, Map<string, number>>>;
  * (natural log with `log`).
  *
  * @throws InputError naming file, line, column and value for a specimen measured twice for one trait.
+ *
+ * @example
+ * const table = readTable('section,trait,age,specimen,value\nA,length,1,s1,1\nA,width,1,s1,2\nA,length,0,s2,2\nA,width,0,s2,3\n', 's.csv');
+ * const specimens = readSpecimens(table, readSamples(table), {});
+ * specimens.get('A\u00001').get('s1'); // new Map([['length', 1], ['width', 2]])
+ * readSpecimens(table, readSamples(readTable('age,n,mean,sd\n1,5,3,0.5\n', 'a.csv')), {}); // null (summary form: no specimens)
  */
 export function readSpecimens(table: Table, samples: SampleSet, options: { log?: boolean; decimalComma?: boolean }): SpecimenTable | null {
   const at = (name: string): number => table.header.indexOf(name);
@@ -84,6 +90,16 @@ export function readSpecimens(table: Table, samples: SampleSet, options: { log?:
  * measured for both (= S_i / n_i when every specimen has every trait).
  *
  * @throws InputError when two traits of a group share no horizon, or no group has two traits.
+ *
+ * @example
+ * // Three horizons, two or three specimens each measured for both traits: the within-horizon covariance is estimated.
+ * const rows = ['A,length,2,s1,1', 'A,width,2,s1,2', 'A,length,2,s2,1.5', 'A,width,2,s2,2.4', 'A,length,2,s3,1.2', 'A,width,2,s3,2.1', 'A,length,1,s4,2', 'A,width,1,s4,3', 'A,length,1,s5,2.4', 'A,width,1,s5,3.3', 'A,length,0,s6,2', 'A,width,0,s6,3', 'A,length,0,s7,2.6', 'A,width,0,s7,3.5'];
+ * const table = readTable(['section,trait,age,specimen,value', ...rows].join('\n'), 's.csv');
+ * const samples = readSamples(table);
+ * const [group] = jointGroups(buildLineages(samples), 's.csv', new WarningLog(), readSpecimens(table, samples, {}));
+ * group.traits; // ['length', 'width']
+ * group.samplingCovariance; // 'estimated'
+ * group.data.sampling[0]; // 0.021111111111111112 (to 1e-15; the sample variance of 1, 1.5, 1.2 is 0.0633..., over n = 3)
  */
 export function jointGroups(lineages: readonly Lineage[], file: string, warnings: WarningLog, specimens: SpecimenTable | null = null): JointGroup[] {
   const sections = new Map<string, Lineage[]>();

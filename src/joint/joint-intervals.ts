@@ -148,6 +148,17 @@ export interface IntervalStart {
  * (the caller converts them back). Ends that the profile never crosses
  * within the search range are the bound (0 for a variance, ±1 for a
  * correlation) or null (open: alpha, a location whose profile stays high).
+ *
+ * @example
+ * // One trait: the joint profile intervals equal the scalar fitter's profile-likelihood intervals (an outside check).
+ * const time = [0, 1, 2, 3, 4, 5];
+ * const x = [0, 0.5, 0.2, 1.1, 1.6, 1.2];
+ * const single = fitModel(randomWalk, lineageFromArrays({ time, mean: x, samplingVariance: Array(6).fill(0.01) }), { intervalMethod: 'profile' });
+ * const data = { traits: 1, time: Float64Array.from(time), values: Float64Array.from(x), sampling: Float64Array.from(Array(6).fill(0.01)) };
+ * const start = { covariance: Float64Array.of(single.estimates.step_variance), alpha: null, locations: Float64Array.of(single.estimates.ancestral_mean), logLik: single.logLik, alphaRange: [1, 1] };
+ * const found = profileIntervals(jointModel('independent-random-walks'), data, start);
+ * found.locations[0].lower - single.parameters.ancestral_mean.lower; // 0 (to 1e-8)
+ * found.variances[0].upper / single.parameters.step_variance.upper; // 1 (to 1e-6)
  */
 export function profileIntervals(model: JointModel, data: JointData, start: IntervalStart): {
   locations: JointInterval[];

@@ -52,17 +52,35 @@ export const jointModels: readonly JointModel[] = [
   { id: 'correlated-ou', label: 'Correlated Ornstein–Uhlenbeck', summary: 'each trait approaches its own optimum at its own rate alpha; steps correlated (R full)', mean: 'ou', process: 'ou', correlated: true },
 ];
 
-/** The joint model of an id, or undefined. */
+/**
+ * The joint model of an id, or undefined.
+ *
+ * @example
+ * jointModel('correlated-ou').label; // 'Correlated Ornstein–Uhlenbeck'
+ * jointModel('ou'); // undefined
+ */
 export function jointModel(id: string): JointModel | undefined {
   return jointModels.find((model) => model.id === id);
 }
 
-/** Location parameters per trait: 1 (a or theta), 2 (a and drift; a and optimum). */
+/**
+ * Location parameters per trait: 1 (a or theta), 2 (a and drift; a and optimum).
+ *
+ * @example
+ * locationsPerTrait(jointModel('independent-random-walks')); // 1 (the ancestral mean)
+ * locationsPerTrait(jointModel('correlated-ou')); // 2 (the ancestral mean and the optimum)
+ */
 export function locationsPerTrait(model: JointModel): number {
   return model.mean === 'constant' ? 1 : 2;
 }
 
-/** Covariance parameters: k (diagonal) or k(k+1)/2 (full). */
+/**
+ * Covariance parameters: k (diagonal) or k(k+1)/2 (full).
+ *
+ * @example
+ * covarianceParameterCount(jointModel('correlated-ou'), 3); // 6 (3 × 4 / 2)
+ * covarianceParameterCount(jointModel('independent-ou'), 3); // 3
+ */
 export function covarianceParameterCount(model: JointModel, k: number): number {
   return model.correlated ? (k * (k + 1)) / 2 : k;
 }
@@ -71,7 +89,7 @@ export function covarianceParameterCount(model: JointModel, k: number): number {
  * K, the number of estimated parameters: location + covariance (+ k alphas for ou).
  *
  * @example
- * parameterCount(jointModel('correlated-ou')!, 2); // 3·2 + 3 = 9
+ * parameterCount(jointModel('correlated-ou'), 2); // 9 (2 × 2 locations + 3 covariances + 2 alphas)
  */
 export function parameterCount(model: JointModel, k: number): number {
   return k * locationsPerTrait(model) + covarianceParameterCount(model, k) + (model.process === 'ou' ? k : 0);
@@ -81,6 +99,9 @@ export function parameterCount(model: JointModel, k: number): number {
  * The design columns (N × k each, horizon-major), trait by trait: the
  * constant (a_j or theta_j), then drift_j t, or for ou exp(-alpha_j t)
  * (a_j) and 1 - exp(-alpha_j t) (optimum_j).
+ *
+ * @example
+ * jointDesign(jointModel('independent-directional-walks'), { traits: 1, time: Float64Array.of(0, 1, 2) }, null); // [Float64Array.of(1, 1, 1), Float64Array.of(0, 1, 2)] (the constant, then t)
  */
 export function jointDesign(model: JointModel, data: JointData, alpha: readonly number[] | null): Float64Array[] {
   const k = data.traits;
@@ -112,6 +133,11 @@ export function jointDesign(model: JointModel, data: JointData, alpha: readonly 
  * Walks: phi = 1, Q_i = R tau_i; ou: phi_j = exp(-alpha_j tau_i),
  * Q_jl = R_jl (1 - exp(-(alpha_j + alpha_l) tau_i)) / (alpha_j + alpha_l);
  * stasis: phi = 0, Q_i = Sigma (also at the first horizon).
+ *
+ * @example
+ * const dynamics = jointDynamics(jointModel('correlated-random-walk'), { traits: 2, time: Float64Array.of(0, 2) }, Float64Array.of(1, 0.5, 0.5, 2), null);
+ * Array.from(dynamics.process.subarray(4)); // [2, 1, 1, 4] (Q_1 = R tau, tau = 2)
+ * Array.from(dynamics.transition); // [0, 0, 1, 1]
  */
 export function jointDynamics(model: JointModel, data: JointData, covariance: Float64Array, alpha: readonly number[] | null): VectorDynamics {
   const k = data.traits;
@@ -146,6 +172,9 @@ export function jointDynamics(model: JointModel, data: JointData, covariance: Fl
  * form): the dense reference the filter is tested against. Locations in
  * the design's order (trait by trait). Returns the N k mean vector and the
  * N k × N k covariance, horizon-major, without sampling error.
+ *
+ * @example
+ * jointMeanCovariance(jointModel('correlated-random-walk'), [1, 2], 1, [5], Float64Array.of(2), null); // { mean: [5, 5], covariance: [[2, 2], [2, 4]] } (R min(t, s))
  */
 export function jointMeanCovariance(
   model: JointModel,

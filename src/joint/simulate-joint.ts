@@ -19,7 +19,14 @@ export interface JointTruth {
  * `jointDynamics`), then sampling error N(0, E_i). Seeded through `random`.
  *
  * @example
- * simulateJoint(jointModel('correlated-random-walk')!, design, truth, createRandom(1)).values.length; // N k
+ * const time = [0, 1, 2, 3, 4, 5];
+ * const x = [0, 0.5, 0.2, 1.1, 1.6, 1.2];
+ * const y = [1, 1.4, 1.1, 1.9, 2.6, 2.0];
+ * const data = { traits: 2, time: Float64Array.from(time), values: Float64Array.from(time.flatMap((_, i) => [x[i], y[i]])), sampling: Float64Array.from(time.flatMap(() => [0.01, 0, 0, 0.01])) };
+ * const truth = { locations: [0, 1], covariance: Float64Array.of(1, 0.5, 0.5, 1), alpha: null };
+ * const drawn = simulateJoint(jointModel('correlated-random-walk'), data, truth, createRandom(1));
+ * drawn.values.length; // 12 (N k)
+ * Array.from(drawn.values.subarray(0, 2)); // [-0.07400966231842124, 1.0979706764730728] (seed 1)
  */
 export function simulateJoint(model: JointModel, design: JointData, truth: JointTruth, random: RandomSource): JointData {
   const k = design.traits;

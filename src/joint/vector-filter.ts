@@ -55,6 +55,12 @@ export interface WhitenedRegression {
 /**
  * Cholesky factor of the m × m symmetric matrix `a` (row-major) in place
  * (lower triangle). Returns false when `a` is not positive definite.
+ *
+ * @example
+ * const a = Float64Array.of(4, 2, 2, 5);
+ * choleskyInPlace(a, 2); // true
+ * [a[0], a[2], a[3]]; // [2, 1, 2] (L = [[2, 0], [1, 2]], L L' = [[4, 2], [2, 5]])
+ * choleskyInPlace(Float64Array.of(1, 2, 2, 1), 2); // false (not positive definite)
  */
 export function choleskyInPlace(a: Float64Array, m: number): boolean {
   for (let j = 0; j < m; j++) {
@@ -100,9 +106,10 @@ function foldRow(factor: Float64Array, columns: number, row: Float64Array): void
  * start with zero sampling variance).
  *
  * @example
- * // one trait, two horizons, a walk with unit step variance, no sampling error at t = 1
- * whitenJoint({ traits: 1, time: Float64Array.of(0, 1), values: Float64Array.of(0, 1), sampling: Float64Array.of(1, 0) },
- *   { transition: Float64Array.of(0, 1), process: Float64Array.of(0, 1) }, []).logDet; // ln 1 + ln 2
+ * // One trait, two horizons, a walk with unit step variance from an exactly known start (Q_0 = 0), sampling
+ * // variances 1 and 0: V = diag(1, 1), so ln det V = 0 (closed form).
+ * const data = { traits: 1, time: Float64Array.of(0, 1), values: Float64Array.of(0, 1), sampling: Float64Array.of(1, 0) };
+ * whitenJoint(data, { transition: Float64Array.of(0, 1), process: Float64Array.of(0, 1) }, []).logDet; // 0
  */
 export function whitenJoint(data: JointData, dynamics: VectorDynamics, design: readonly Float64Array[]): WhitenedRegression | null {
   const k = data.traits;
@@ -202,6 +209,14 @@ export interface JointProfile {
  * logL = -0.5 (n ln 2 pi + ln det V + min_beta |L^-1 (x - X beta)|^2), n the
  * number of observed values. Null when the design is rank-deficient for the
  * observed data (relative pivot below 1e-12).
+ *
+ * @example
+ * // V = diag(1, 2) and a constant mean: GLS mean (0 + 1/2) / (1 + 1/2) = 1/3, residual squares 1/9 + (2/3)^2 / 2 = 1/3,
+ * // logL = -0.5 (2 ln 2 pi + ln 2 + 1/3) (closed forms).
+ * const data = { traits: 1, time: Float64Array.of(0, 1), values: Float64Array.of(0, 1), sampling: Float64Array.of(1, 1) };
+ * const profile = profileFromWhitened(whitenJoint(data, { transition: Float64Array.of(0, 1), process: Float64Array.of(0, 1) }, [Float64Array.of(1, 1)]));
+ * profile.coefficients[0]; // 0.3333333333333333 (to 1e-15)
+ * profile.logLik; // -2.3511173233559846 (to 1e-12)
  */
 export function profileFromWhitened(whitened: WhitenedRegression): JointProfile | null {
   const { factor, columns } = whitened;

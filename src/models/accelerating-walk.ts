@@ -11,7 +11,13 @@ import { stepVarianceRange } from './walk-dynamics.js';
  */
 const growthEnd = 40;
 
-/** (exp(r t) - 1) / r, the variance accumulated from t = 0 per unit step variance; t at r = 0, exact near it. */
+/**
+ * (exp(r t) - 1) / r, the variance accumulated from t = 0 per unit step variance; t at r = 0, exact near it.
+ *
+ * @example
+ * acceleratedTime(0, 2); // 2 (a constant step variance: plain elapsed time)
+ * acceleratedTime(Math.log(2), 1); // 1.4426950408889634 (to 1e-15; (2 - 1) / ln 2)
+ */
 export function acceleratedTime(rate: number, t: number): number {
   return rate === 0 ? t : Math.expm1(rate * t) / rate;
 }

@@ -13,6 +13,12 @@ export const covariateMethodsNote: MethodsNote = {
 /**
  * Why a lineage's covariate cannot be used, or null: it must be present at
  * every horizon (a `covariate` column or `--covariate-file`).
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 3], mean: [1, 2, 4], samplingVariance: [0.1, 0.1, 0.1] });
+ * covariateProblem(lineage); // 'not fitted: no covariate (give a "covariate" column or --covariate-file)'
+ * covariateProblem({ ...lineage, covariate: Float64Array.of(1, NaN, 2) }); // 'not fitted: the covariate is missing at the horizon of input line 3'
+ * covariateProblem({ ...lineage, covariate: Float64Array.of(1, 1.5, 2) }); // null
  */
 export function covariateProblem(lineage: Lineage): string | null {
   const covariate = lineage.covariate;
@@ -28,6 +34,11 @@ export function covariateProblem(lineage: Lineage): string | null {
  * is then not identifiable and the covariate models reduce exactly to their
  * covariate-free counterparts (the slope column is dropped, slope reported
  * as not estimable).
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 3], mean: [1, 2, 4], samplingVariance: [0.1, 0.1, 0.1] });
+ * covariateIsConstant({ ...lineage, covariate: Float64Array.of(3, 3, 3) }); // true
+ * covariateIsConstant({ ...lineage, covariate: Float64Array.of(3, 3, 4) }); // false
  */
 export function covariateIsConstant(lineage: Lineage): boolean {
   const covariate = lineage.covariate;

@@ -59,6 +59,11 @@ export interface SearchedAs {
 /**
  * Index of the searched axis behind parameter `name` (the axis of that name,
  * or the one it is searched through), or -1 for a location parameter.
+ *
+ * @example
+ * axisIndexOf(randomWalk, 'step_variance'); // 0
+ * axisIndexOf(randomWalk, 'ancestral_mean'); // -1 (a location: never searched)
+ * axisIndexOf(acceleratingWalk, 'rate_change'); // 0 (searched through variance_growth)
  */
 export function axisIndexOf(model: Pick<EvolutionModel, 'process' | 'parameters'>, name: string): number {
   const own = model.process.findIndex((axis) => axis.name === name);
@@ -328,7 +333,14 @@ export function bindConfiguration(model: EvolutionModel, configuration: Configur
   };
 }
 
-/** The horizons [start, end) of a lineage as a lineage of their own, time restarted at 0. */
+/**
+ * The horizons [start, end) of a lineage as a lineage of their own, time restarted at 0.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 3], mean: [1, 2, 4], samplingVariance: [0.1, 0.1, 0.1] });
+ * Array.from(sliceLineage(lineage, 1, 3).time); // [0, 2] (time restarted at the slice's first horizon)
+ * Array.from(sliceLineage(lineage, 1, 3).mean); // [2, 4]
+ */
 export function sliceLineage(lineage: Lineage, start: number, end: number): Lineage {
   const origin = lineage.time[start];
   return {
@@ -348,6 +360,10 @@ export function sliceLineage(lineage: Lineage, start: number, end: number): Line
 /**
  * A scale for searching variances: the larger of the variance of the means
  * and the average sampling variance (never 0 unless the data are constant).
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 3], mean: [1, 2, 4], samplingVariance: [0.1, 0.1, 0.1] });
+ * varianceScale(lineage); // 2.333333333333333 (to 1e-15; the variance of 1, 2, 4 is 7/3, above the mean sampling variance 0.1)
  */
 export function varianceScale(lineage: Lineage): number {
   // The searches ask for it on every range lookup (an O(N) pass each): kept per pair of arrays, which nothing writes to after a lineage is built.
@@ -380,13 +396,22 @@ function computeVarianceScale(lineage: Lineage): number {
 /**
  * Search range for a stasis (or segment) variance, in trait^2: from far below
  * anything the data could resolve to far above the spread of the means.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 3], mean: [1, 2, 4], samplingVariance: [0.1, 0.1, 0.1] });
+ * stasisVarianceRange(lineage); // [2.333333333333333e-9, 2333.333333333333] (1e-9 and 1e3 × varianceScale)
  */
 export function stasisVarianceRange(lineage: Lineage): readonly [number, number] {
   const scale = varianceScale(lineage);
   return [1e-9 * scale, 1e3 * scale];
 }
 
-/** Total time span t_m and the shortest interval between horizons. */
+/**
+ * Total time span t_m and the shortest interval between horizons.
+ *
+ * @example
+ * timeSpan(lineageFromArrays({ time: [0, 1, 3], mean: [1, 2, 4], samplingVariance: [0.1, 0.1, 0.1] })); // { span: 3, shortest: 1 }
+ */
 export function timeSpan(lineage: Lineage): { span: number; shortest: number } {
   // Kept per time array, like varianceScale.
   const kept = timeSpans.get(lineage.time);
@@ -405,7 +430,12 @@ function computeTimeSpan(lineage: Lineage): { span: number; shortest: number } {
   return { span: time[time.length - 1], shortest };
 }
 
-/** A process covariance matrix built entry by entry. */
+/**
+ * A process covariance matrix built entry by entry.
+ *
+ * @example
+ * buildCovariance(2, (i, j) => Math.min(i, j) + 1); // [[1, 1], [1, 2]]
+ */
 export function buildCovariance(size: number, entry: (i: number, j: number) => number): number[][] {
   return Array.from({ length: size }, (_, i) => Array.from({ length: size }, (_, j) => entry(i, j)));
 }

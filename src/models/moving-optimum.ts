@@ -5,6 +5,10 @@ import { fillAttractionDynamics, ornsteinUhlenbeck, relaxedTime } from './ou.js'
  * (t - (1 - exp(-alpha t)) / alpha) / alpha, the design column of the
  * optimum's drift: equal to t^2 / 2 at alpha = 0 and computed from its
  * series where alpha t is small (the difference cancels there).
+ *
+ * @example
+ * driftResponse(0, 2); // 2 (t^2 / 2 at alpha = 0)
+ * driftResponse(1, 2); // 1.1353352832366128 (to 1e-15; 2 - (1 - exp(-2)))
  */
 export function driftResponse(alpha: number, t: number): number {
   const x = alpha * t;
@@ -137,7 +141,12 @@ export const movingOptimum: EvolutionModel = {
   },
 };
 
-/** The optimum theta(t) = optimum + optimum_drift t of a fitted moving-optimum model at given times (figures draw it dashed). */
+/**
+ * The optimum theta(t) = optimum + optimum_drift t of a fitted moving-optimum model at given times (figures draw it dashed).
+ *
+ * @example
+ * movingOptimumPath({ optimum: 1, optimum_drift: 0.5 }, [0, 2]); // Float64Array.of(1, 2)
+ */
 export function movingOptimumPath(parameters: Record<string, number>, time: ArrayLike<number>): Float64Array {
   return Float64Array.from(time, (t) => parameters.optimum + parameters.optimum_drift * t);
 }

@@ -25,17 +25,34 @@ export const modelSets: Record<string, () => readonly EvolutionModel[]> = {
   extended: () => extendedModels,
 };
 
-/** Register a model (extended models call this from their registry module). */
+/**
+ * Register a model (extended models call this from their registry module).
+ *
+ * @example
+ * registerModel(randomWalk); // undefined (registering a model again under its id changes nothing)
+ * findModel('random-walk') === randomWalk; // true
+ */
 export function registerModel(model: EvolutionModel): void {
   registry.set(model.id, model);
 }
 
-/** A model by id, or undefined. */
+/**
+ * A model by id, or undefined.
+ *
+ * @example
+ * findModel('directional-walk') === directionalWalk; // true
+ * findModel('no-such-model'); // undefined
+ */
 export function findModel(id: string): EvolutionModel | undefined {
   return registry.get(id);
 }
 
-/** Every model, classic and extended, in table order. */
+/**
+ * Every model, classic and extended, in table order.
+ *
+ * @example
+ * allModels().slice(0, 5).map((model) => model.id); // ['strict-stasis', 'stasis', 'random-walk', 'directional-walk', 'ou'] (the classic five first)
+ */
 export function allModels(): EvolutionModel[] {
   return [...registry.values()];
 }

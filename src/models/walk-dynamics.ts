@@ -5,6 +5,13 @@ import { timeSpan, varianceScale } from './model.js';
 /**
  * Latent dynamics of a Brownian walk started exactly at the ancestral mean:
  * transition 1, process variance stepVariance * tau_i, no variance at t_0.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 3], mean: [1, 2, 4], samplingVariance: [0.1, 0.1, 0.1] });
+ * const space = allocateStateSpace(3, 1, lineage.samplingVariance);
+ * fillWalkDynamics(lineage, 2, space);
+ * Array.from(space.transition); // [0, 1, 1]
+ * Array.from(space.processVariance); // [0, 2, 4] (step variance × interval: 2 × 1, 2 × 2)
  */
 export function fillWalkDynamics(lineage: Lineage, stepVariance: number, space: StateSpace): void {
   const time = lineage.time;
@@ -20,6 +27,10 @@ export function fillWalkDynamics(lineage: Lineage, stepVariance: number, space: 
  * Search range for a step variance (trait^2 per time unit): from far below
  * anything the data could resolve to far above the spread of the means per
  * shortest interval.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 3], mean: [1, 2, 4], samplingVariance: [0.1, 0.1, 0.1] });
+ * stepVarianceRange(lineage); // [7.777777777777777e-10, 2333.333333333333] (1e-9 × scale / span 3, 1e3 × scale / shortest interval 1)
  */
 export function stepVarianceRange(lineage: Lineage): readonly [number, number] {
   const scale = varianceScale(lineage);

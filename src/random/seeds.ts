@@ -11,7 +11,8 @@
  * @returns a 32-bit unsigned seed for {@link createRandom}
  *
  * @example
- * replicateSeed(1, 0, 5) === replicateSeed(1, 0, 5); // true, and differs from replicateSeed(1, 0, 6)
+ * replicateSeed(1, 0, 5) === replicateSeed(1, 0, 5); // true
+ * replicateSeed(1, 0, 5) === replicateSeed(1, 0, 6); // false
  */
 export function replicateSeed(seed: number, ...parts: number[]): number {
   let hash = finalise((seed >>> 0) ^ 0x5bd1e995);
@@ -29,7 +30,14 @@ function finalise(value: number): number {
   return h >>> 0;
 }
 
-/** Check a user's seed: an integer from 0 to 2^32 - 1. Returns null when it is not one. */
+/**
+ * Check a user's seed: an integer from 0 to 2^32 - 1. Returns null when it is not one.
+ *
+ * @example
+ * parseSeed(' 42 '); // 42
+ * parseSeed('4294967296'); // null (2^32 is one too many)
+ * parseSeed('-1'); // null
+ */
 export function parseSeed(text: string): number | null {
   if (!/^\d+$/.test(text.trim())) return null;
   const value = Number(text);

@@ -48,7 +48,16 @@ function spreadText(spread: Spread, digits = 3): string {
   return `${show(spread.median)} [${show(spread.lower)}, ${show(spread.upper)}]`;
 }
 
-/** Horizons whose ages are extrapolated, per section, in words (empty when none). */
+/**
+ * Horizons whose ages are extrapolated, per section, in words (empty when none).
+ *
+ * @example
+ * const a = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * const b = lineageFromArrays({ section: 'B', trait: 'length', time: [0, 1], mean: [4, 4], samplingVariance: [1, 1] });
+ * const comparison = compareSections([a, b], [strictStasis], { intervals: false });
+ * extrapolatedWords(comparison); // ''
+ * extrapolatedWords({ ...comparison, sections: [{ ...a, extrapolated: [false, true] }, b] }); // 'EXTRAPOLATED AGES (beyond the outermost ties) — A: 1 (input line 3)'
+ */
 export function extrapolatedWords(comparison: TraitComparison): string {
   const parts = comparison.sections
     .map((section) => ({ name: section.section, count: section.extrapolated.filter(Boolean).length, lines: section.lines.filter((_, i) => section.extrapolated[i]) }))
@@ -63,7 +72,11 @@ export function extrapolatedWords(comparison: TraitComparison): string {
  * against separate, the estimates of the best-supported hypothesis, and the caution.
  *
  * @example
- * comparisonTable(run.comparisons[0]); // the ranked table, tests, estimates and caution compare prints for one trait
+ * const a = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * const b = lineageFromArrays({ section: 'B', trait: 'length', time: [0, 1], mean: [4, 4], samplingVariance: [1, 1] });
+ * const lines = comparisonTable(compareSections([a, b], [strictStasis], { intervals: false })).split('\n');
+ * lines[2]; // '  shared         strict-stasis  1  -6.676  17.352  0.000   0.982  <- best supported' (weight 1 / (1 + exp(-4)))
+ * lines[7]; // '    strict-stasis  4.000   1  0.0455' (G = 4 on 1 df)
  */
 export function comparisonTable(comparison: TraitComparison, ageDraws: { draws: number; seed: number; spreads: readonly CandidateSpread[]; tiedDraws?: number } | null = null): string {
   const unit = comparison.sections[0].timeUnit.label;
@@ -152,14 +165,26 @@ export function comparisonTable(comparison: TraitComparison, ageDraws: { draws: 
   return lines.join('\n');
 }
 
-/** "95% integrated-likelihood intervals where computed", or "no intervals" for a fit without them. */
+/**
+ * "95% integrated-likelihood intervals where computed", or "no intervals" for a fit without them.
+ *
+ * @example
+ * intervalWords('profile / integrated'); // '95% profile-likelihood (asymptotic) / integrated-likelihood intervals where computed'
+ * intervalWords('none'); // 'no intervals'
+ */
 export function intervalWords(method: string): string {
   if (method === 'none' || method === '') return 'no intervals';
   const described = method.split(' / ').map((part) => intervalMethodWords[part] ?? part).join(' / ');
   return `95% ${described} intervals where computed`;
 }
 
-/** The left-out hypotheses in words, one line per reason: "Left out, never ranked — shared and shared-offset of a, b: reason". */
+/**
+ * The left-out hypotheses in words, one line per reason: "Left out, never ranked — shared and shared-offset of a, b: reason".
+ *
+ * @example
+ * const reason = 'not fitted: a shift shared by several sections is not defined here';
+ * leftOutWords([{ id: 'shared', model: 'punctuated-1', reason }, { id: 'shared-offset', model: 'punctuated-1', reason }]); // ['Left out, never ranked — shared and shared-offset of punctuated-1: not fitted: a shift shared by several sections is not defined here']
+ */
 export function leftOutWords(leftOut: readonly LeftOutHypothesis[]): string[] {
   const byReason = new Map<string, Map<string, string[]>>();
   for (const entry of leftOut) {
@@ -192,7 +217,13 @@ function spreadDocument(spread: Spread): Record<string, unknown> {
   return { median: finiteOrNull(spread.median), lower: finiteOrNull(spread.lower), upper: finiteOrNull(spread.upper), draws: spread.count };
 }
 
-/** JSON form of age-draw summaries. */
+/**
+ * JSON form of age-draw summaries.
+ *
+ * @example
+ * const draws = [[{ key: 'a', weight: 0.7, best: true, estimates: { x: 1 } }], [{ key: 'a', weight: 0.4, best: false, estimates: { x: 3 } }]];
+ * spreadsDocument(summariseDraws(draws))[0].estimates; // { x: { median: 2, lower: 1.05, upper: 2.95, draws: 2 } }
+ */
 export function spreadsDocument(spreads: readonly CandidateSpread[]): Record<string, unknown>[] {
   return spreads.map((spread) => ({
     key: spread.key,
@@ -207,7 +238,11 @@ export function spreadsDocument(spreads: readonly CandidateSpread[]): Record<str
  * `{trait, sections, horizons, best, hypotheses: [{id, model, label, k, logLik, aicc, delta_aicc, weight, ...}], tests}`.
  *
  * @example
- * comparisonDocument(run.comparisons[0]).best; // { id: 'shared-offset', model: 'ou' } for whorl width in sample-data/locality-heights.csv
+ * const a = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * const b = lineageFromArrays({ section: 'B', trait: 'length', time: [0, 1], mean: [4, 4], samplingVariance: [1, 1] });
+ * const document = comparisonDocument(compareSections([a, b], [strictStasis], { intervals: false }));
+ * document.best; // { id: 'shared', model: 'strict-stasis' }
+ * document.horizons; // 4
  */
 export function comparisonDocument(comparison: TraitComparison, spreads: readonly CandidateSpread[] | null = null, tiedDraws = 0): Record<string, unknown> {
   const { origin, starts } = commonTime(comparison.sections);
@@ -272,7 +307,11 @@ export function comparisonDocument(comparison: TraitComparison, spreads: readonl
  * and the fraction of draws in which the row was best.
  *
  * @example
- * comparisonCsv(run.comparisons).split('\n')[0]; // 'trait,hypothesis,model,k,horizons,logLik,aicc,…'
+ * const a = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * const b = lineageFromArrays({ section: 'B', trait: 'length', time: [0, 1], mean: [4, 4], samplingVariance: [1, 1] });
+ * const rows = comparisonCsv([compareSections([a, b], [strictStasis], { intervals: false })]).split('\n');
+ * rows[0]; // 'trait,hypothesis,model,k,horizons,logLik,aicc,delta_aicc,weight,best,compared,lrt_statistic,lrt_df,lrt_p_value,extrapolated_horizons,message,same_fit_as'
+ * rows[2]; // 'length,shared,strict-stasis,1,4,-6.675754132818691,17.35150826563738,0,0.9820137900379085,true,true,4,1,0.04550026389635842,0,,'
  */
 export function comparisonCsv(comparisons: readonly TraitComparison[], spreads: ReadonlyMap<string, readonly CandidateSpread[]> | null = null): string {
   const withDraws = spreads !== null && spreads.size > 0;
@@ -304,7 +343,9 @@ function drawColumns(spread: CandidateSpread | undefined): (number | null)[] {
  * Tidy CSV of the estimates: one row per trait × hypothesis × model × parameter.
  *
  * @example
- * estimatesCsv(run.comparisons).split('\n').length; // 1 + one row per trait × hypothesis × model × parameter (+ trailing newline)
+ * const a = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * const b = lineageFromArrays({ section: 'B', trait: 'length', time: [0, 1], mean: [4, 4], samplingVariance: [1, 1] });
+ * estimatesCsv([compareSections([a, b], [strictStasis], { intervals: false })]).split('\n'); // ['trait,hypothesis,model,parameter,estimate,lower,upper,at_bound', 'length,separate,strict-stasis,stasis_mean[A],2,,,', 'length,separate,strict-stasis,stasis_mean[B],4,,,', 'length,shared,strict-stasis,stasis_mean,3,,,', '']
  */
 export function estimatesCsv(comparisons: readonly TraitComparison[]): string {
   const rows = ['trait,hypothesis,model,parameter,estimate,lower,upper,at_bound'];

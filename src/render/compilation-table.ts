@@ -20,6 +20,13 @@ function spread(value: Distribution, format: (x: number | null) => string = (x) 
  * The terminal table of a compilation: one row per model with its wins, its
  * share of the lineages, and the median [quartiles] and mean of its Akaike
  * weight; then the drift estimates' distribution.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [1, 1, 1] });
+ * const fit = fitLineage(lineage, [strictStasis], { intervals: false });
+ * const lines = compilationTable(summariseCompilation([fit, fit])).split('\n');
+ * lines[0]; // 'Compilation of 2 lineages (2 with models compared by AICc)'
+ * lines[3]; // '  strict stasis     2  100.0%          1.00 [1.00, 1.00]         1.00         2'
  */
 export function compilationTable(summary: CompilationSummary): string {
   const weight = (x: number | null): string => (x === null ? '—' : x.toFixed(2));
@@ -64,7 +71,15 @@ export function compilationTable(summary: CompilationSummary): string {
   return lines.join('\n');
 }
 
-/** The JSON form of a compilation summary (snake_case like fit.json). */
+/**
+ * The JSON form of a compilation summary (snake_case like fit.json).
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [1, 1, 1] });
+ * const fit = fitLineage(lineage, [strictStasis], { intervals: false });
+ * const document = compilationDocument(summariseCompilation([fit, fit]));
+ * document.models[0]; // { id: 'strict-stasis', label: 'strict stasis', wins: 2, win_share: 1, compared: 2, weight: { count: 2, mean: 1, minimum: 1, lower_quartile: 1, median: 1, upper_quartile: 1, maximum: 1 } }
+ */
 export function compilationDocument(summary: CompilationSummary): Record<string, unknown> {
   const distributionDocument = (value: Distribution) => ({
     count: value.count,

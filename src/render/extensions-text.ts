@@ -4,7 +4,12 @@ import { neutralAssumptions, neutralDivergenceRange, type LineageRates } from '.
 import { alignColumns } from './text-table.js';
 import { formatNumber, squaredLabel, traitUnitLabel, unitLabel } from './units.js';
 
-/** Wrap words to lines of at most `width` characters, each line indented. */
+/**
+ * Wrap words to lines of at most `width` characters, each line indented.
+ *
+ * @example
+ * wrapWords('one two three four', '  ', 11); // ['  one two', '  three', '  four']
+ */
 export function wrapWords(text: string, indent: string, width = 100): string[] {
   const lines: string[] = [];
   let line = '';
@@ -35,6 +40,14 @@ function shownModels(fit: LineageFit): Set<string> {
  * (Haldane 1949, Evolution 3:51-56; Gingerich 1993, Am. J. Sci.
  * 293-A:453-478; Lynch 1990, Am. Nat. 136:727-741) and stay as they are.
  * Without a unit the text is what it was before the option existed.
+ *
+ * @example
+ * // Means already on the ln scale rising by 1 per Myr: 1 darwin over every interval (Haldane 1949's unit, ln change per Myr).
+ * const lineage = { ...lineageFromArrays({ time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [1, 1, 1] }), logTransformed: true };
+ * const fit = fitLineage(lineage, [strictStasis], { intervals: false });
+ * const lines = ratesText(fit, lineageRates(lineage, fit.models, null)).split('\n');
+ * lines[2]; // '    whole sequence (horizons 0-2)             2          2        1         —'
+ * lines[3]; // '    horizons 0-1                              1          1        1         —'
  */
 export function ratesText(fit: LineageFit, rates: LineageRates): string {
   const lines: string[] = [];
@@ -85,7 +98,14 @@ export function ratesText(fit: LineageFit, rates: LineageRates): string {
   return lines.join('\n');
 }
 
-/** Adequacy of the best model as text: one line per check with its p-value and verdict. */
+/**
+ * Adequacy of the best model as text: one line per check with its p-value and verdict.
+ *
+ * @example
+ * const row = { label: 'autocorrelation', statistic: 0.12, pValue: 0.4, adequate: true };
+ * const result = { model: 'stasis', draws: 99, seed: 1, level: 0.05, checks: [row], failedDraws: 0, adequate: true, note: 'One check shown.' };
+ * adequacyText(result).split('\n').slice(0, 3); // ['  Adequacy of stasis (parametric bootstrap, 99 draws, seed 1; not adequate when p < 0.05):', '    check            statistic  p-value   verdict', '    autocorrelation       0.12    0.400  adequate']
+ */
 export function adequacyText(result: AdequacyResult): string {
   const lines: string[] = [`  Adequacy of ${result.model} (parametric bootstrap, ${result.draws} draws, seed ${result.seed}; not adequate when p < ${result.level}):`];
   const rows: string[][] = [['check', 'statistic', 'p-value', 'verdict']];

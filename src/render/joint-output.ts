@@ -70,7 +70,15 @@ function seriesDocument(group: JointGroup): Record<string, unknown> {
   };
 }
 
-/** Number of observed trait values of a group (N of AICc). */
+/**
+ * Number of observed trait values of a group (N of AICc).
+ *
+ * @example
+ * const rows = ['A,length,2,5,1,0.5', 'A,width,2,5,2,0.5', 'A,length,1,5,2,0.5', 'A,width,1,5,3,0.5', 'A,length,0,5,2,0.5', 'A,width,0,5,3.5,0.5'];
+ * const table = readTable(['section,trait,age,n,mean,sd', ...rows].join('\n'), 's.csv');
+ * const [group] = jointGroups(buildLineages(readSamples(table)), 's.csv', new WarningLog());
+ * observationsOf(group); // 6 (3 horizons × 2 traits, none missing)
+ */
 export function observationsOf(group: JointGroup): number {
   let count = 0;
   for (const value of group.data.values) if (!Number.isNaN(value)) count += 1;
@@ -83,6 +91,15 @@ export function observationsOf(group: JointGroup): number {
  * observed values, how the sampling covariance was obtained, the best
  * model and every model with its estimates (`params`), `intervals` (null
  * when not computed) and flags.
+ *
+ * @example
+ * const rows = ['A,length,2,5,1,0.5', 'A,width,2,5,2,0.5', 'A,length,1,5,2,0.5', 'A,width,1,5,3,0.5', 'A,length,0,5,2,0.5', 'A,width,0,5,3.5,0.5'];
+ * const table = readTable(['section,trait,age,n,mean,sd', ...rows].join('\n'), 's.csv');
+ * const [group] = jointGroups(buildLineages(readSamples(table)), 's.csv', new WarningLog());
+ * const fitted = { group, ...fitJointModels([jointModel('independent-stasis')], group.data) };
+ * const document = jointDocument([fitted], { tool: 'stratotrend', version: '0.1.0', inputs: [], options: {} }, []);
+ * document.groups[0].best_model; // 'independent-stasis'
+ * document.groups[0].observations; // 6
  */
 export function jointDocument(fits: readonly JointGroupFit[], provenance: Provenance, warnings: readonly Warning[]): Record<string, unknown> {
   return {
@@ -117,6 +134,13 @@ export function jointDocument(fits: readonly JointGroupFit[], provenance: Proven
  * traits it concerns (one, or two for a covariance or correlation entry)
  * and its estimate; the model's logL, AICc, weight and whether it is the
  * best are repeated on each row.
+ *
+ * @example
+ * const rows = ['A,length,2,5,1,0.5', 'A,width,2,5,2,0.5', 'A,length,1,5,2,0.5', 'A,width,1,5,3,0.5', 'A,length,0,5,2,0.5', 'A,width,0,5,3.5,0.5'];
+ * const table = readTable(['section,trait,age,n,mean,sd', ...rows].join('\n'), 's.csv');
+ * const [group] = jointGroups(buildLineages(readSamples(table)), 's.csv', new WarningLog());
+ * const fitted = { group, ...fitJointModels([jointModel('independent-stasis')], group.data) };
+ * jointModelsCsv([fitted]).split('\n')[1]; // 'A,independent-stasis,4,-4.840822690802348,57.681645381604696,0,1,true,stasis_mean,length,,1.6666666666666667' (equal weights: the mean of 1, 2, 2)
  */
 export function jointModelsCsv(fits: readonly JointGroupFit[]): string {
   const header = ['section', 'model', 'k', 'logLik', 'aicc', 'delta_aicc', 'weight', 'best', 'parameter', 'trait', 'trait_2', 'estimate'];
@@ -170,7 +194,16 @@ export function correlationWords(traits: readonly string[], correlation: readonl
   return lines;
 }
 
-/** The terminal text of `stratotrend joint`: per group a model table, the best model and its correlations in words. */
+/**
+ * The terminal text of `stratotrend joint`: per group a model table, the best model and its correlations in words.
+ *
+ * @example
+ * const rows = ['A,length,2,5,1,0.5', 'A,width,2,5,2,0.5', 'A,length,1,5,2,0.5', 'A,width,1,5,3,0.5', 'A,length,0,5,2,0.5', 'A,width,0,5,3.5,0.5'];
+ * const table = readTable(['section,trait,age,n,mean,sd', ...rows].join('\n'), 's.csv');
+ * const [group] = jointGroups(buildLineages(readSamples(table)), 's.csv', new WarningLog());
+ * const fitted = { group, ...fitJointModels([jointModel('independent-stasis')], group.data) };
+ * jointText([fitted]).split('\n')[2]; // '  independent-stasis  4  -4.841  57.682  0.000   1.000' (AICc = -2 logL + 8 + 2 × 4 × 5 / (6 - 4 - 1))
+ */
 export function jointText(fits: readonly JointGroupFit[]): string {
   const blocks = fits.map(({ group, models, best }) => {
     const lines: string[] = [];

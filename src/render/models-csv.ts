@@ -10,6 +10,12 @@ export const trendColumns = ['trend_statistic', 'trend_p_value', 'trend_level', 
  * One CSV field: numbers and booleans as written by `String`, null as an
  * empty field, text neutralised against formulas ({@link neutraliseFormula}),
  * then quoted when it needs it (RFC 4180).
+ *
+ * @example
+ * csvField('shared, offset'); // '"shared, offset"'
+ * csvField('=1+2'); // "'=1+2" (a formula neutralised)
+ * csvField(null); // ''
+ * csvField(0.1); // '0.1'
  */
 export function csvField(value: string | number | boolean | null): string {
   if (value === null) return '';
@@ -25,6 +31,12 @@ export function csvField(value: string | number | boolean | null): string {
  * horizons whose age an age model extrapolated beyond its outermost ties
  * (0 when none; fit.json's `extrapolated_horizons`). With `trends` (one per
  * fit), the trend verdict's {@link trendColumns} follow the parameters.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [1, 1, 1] });
+ * const csv = modelsCsv([fitLineage(lineage, [strictStasis], { intervals: false })]).split('\n');
+ * csv[0]; // 'section,trait,horizons,extrapolated_horizons,time_unit,model,k,logLik,aicc,delta_aicc,weight,best,compared,flags,stasis_mean_estimate,stasis_mean_lower,stasis_mean_upper'
+ * csv[1]; // 'A,length,3,0,Myr,strict-stasis,1,-3.7568155996140176,13.513631199228035,0,1,true,true,,2,,' (logL = -1.5 ln 2 pi - 1)
  */
 export function modelsCsv(fits: readonly LineageFit[], trends?: readonly TrendTest[] | null): string {
   const parameterNames: string[] = [];

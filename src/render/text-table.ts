@@ -11,7 +11,12 @@ export const intervalMethodWords: Readonly<Record<string, string>> = {
   integrated: 'integrated-likelihood',
 };
 
-/** Pad a row of cells to column widths (first column left-aligned, the rest right-aligned). */
+/**
+ * Pad a row of cells to column widths (first column left-aligned, the rest right-aligned).
+ *
+ * @example
+ * alignColumns([['model', 'K'], ['strict stasis', '1'], ['ou', '4']]); // ['  model          K', '  strict stasis  1', '  ou             4']
+ */
 export function alignColumns(rows: readonly (readonly string[])[], indent = '  '): string[] {
   const widths = rows[0].map((_, column) => Math.max(...rows.map((row) => [...row[column]].length)));
   return rows.map((row) => indent + row.map((cell, column) => {
@@ -20,7 +25,13 @@ export function alignColumns(rows: readonly (readonly string[])[], indent = '  '
   }).join('  ').trimEnd());
 }
 
-/** How the lineage's numbers were made, in words, for the table heading. */
+/**
+ * How the lineage's numbers were made, in words, for the table heading.
+ *
+ * @example
+ * const lineage = { ...lineageFromArrays({ time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [1, 1, 1], traitUnit: 'mm' }), logTransformed: true };
+ * treatmentWords(fitLineage(lineage, [strictStasis], { intervals: false })); // 'per-horizon sampling variance, natural-log trait in ln mm'
+ */
 export function treatmentWords(fit: LineageFit): string {
   const { lineage } = fit;
   const variance = lineage.pooled ? 'pooled within-horizon variance' : 'per-horizon sampling variance';
@@ -34,6 +45,14 @@ export function treatmentWords(fit: LineageFit): string {
  * The terminal table for one lineage: one row per model (K, logL, AICc,
  * ΔAICc, Akaike weight), the best-supported model marked in words, then the
  * estimates with their 95% intervals and units.
+ *
+ * @example
+ * // Strict stasis with unit sampling variances: mean 2, logL = -1.5 ln 2 pi - 1, AICc = -2 logL + 2 + 4 (closed forms).
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [1, 1, 1] });
+ * const lines = lineageTable(fitLineage(lineage, [strictStasis], { intervals: false })).split('\n');
+ * lines[0]; // 'Lineage "A / length": 3 horizons over 2 Myr (per-horizon sampling variance, untransformed trait)'
+ * lines[2]; // '  strict stasis  1  -3.757  13.514  0.000   1.000  <- best supported'
+ * lines[4]; // '    strict stasis: stasis_mean 2 [—, —]' (no intervals asked for)
  */
 export function lineageTable(fit: LineageFit): string {
   const { lineage } = fit;

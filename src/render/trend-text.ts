@@ -6,7 +6,13 @@ import { capitalised } from './words.js';
 /** The cautions every trend verdict carries (text, README and report say the same). */
 export const trendCaution = 'A supported trend describes the net pattern on this design; by itself it says nothing about selection versus drift, and it depends on the age model and time-averaging.';
 
-/** A p-value as printed: 2 significant digits, "< 0.001" below that. */
+/**
+ * A p-value as printed: 2 significant digits, "< 0.001" below that.
+ *
+ * @example
+ * formatPValue(0.04550026); // '= 0.046'
+ * formatPValue(0.0004); // '< 0.001'
+ */
 export function formatPValue(p: number): string {
   return p < 0.001 ? '< 0.001' : `= ${Number(p.toPrecision(2))}`;
 }
@@ -18,6 +24,11 @@ const percent = (share: number): string => `${Math.round(share * 100)}%`;
  * Why ou's first place should be read with care, or null: ou ranked first
  * with a half-life longer than the span of the sequence, or with its
  * optimum's interval open (it reaches the alpha -> 0 limit).
+ *
+ * @example
+ * const fit = { best: 'ou', lineage: { time: [0, 10], timeUnit: { label: 'Myr' } }, models: [{ id: 'ou', derived: { half_life: { estimate: 25 } }, parameters: {} }] };
+ * weakOuWin(fit); // 'its half-life (25 Myr) exceeds the span of the sequence (10 Myr)'
+ * weakOuWin({ ...fit, best: 'stasis' }); // null
  */
 export function weakOuWin(fit: LineageFit): string | null {
   if (fit.best !== 'ou') return null;
@@ -37,7 +48,12 @@ export function weakOuWin(fit: LineageFit): string | null {
  * often AICc alone does so on this design without a trend.
  *
  * @example
- * trendText(fit, test)[0]; // 'Trend test: p = 0.005 (drift against its standard error ..., 398 replicates); a directional trend (increase) is supported at the 5% level.'
+ * const lineage = lineageFromArrays({ time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [1, 1, 1] });
+ * const fit = fitLineage(lineage, [strictStasis], { intervals: false });
+ * const test = { level: 0.05, p_value: 0.005, supported: true, direction: 'increase', replicates: 398, aicc_false_trend_rate: null, aicc_ou_rate: null, null_model: 'random-walk' };
+ * trendText(fit, test).length; // 2 (the verdict, then the caution every supported trend carries)
+ * trendText(fit, test)[0].endsWith('398 replicates); a directional trend (increase) is supported at the 5% level.'); // true
+ * trendText(fit, { ...test, p_value: null, note: 'no trend test: too few horizons' }); // ['  No trend test: too few horizons.']
  */
 export function trendText(fit: LineageFit, test: TrendTest): string[] {
   const levelText = `${Number((test.level * 100).toPrecision(3))}%`;
@@ -71,7 +87,15 @@ export interface TrendSummary {
   readonly aicc_first_not_supported: number;
 }
 
-/** Count the verdicts of a batch. */
+/**
+ * Count the verdicts of a batch.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [1, 1, 1] });
+ * const fit = fitLineage(lineage, [strictStasis], { intervals: false });
+ * const test = { level: 0.05, p_value: 0.005, supported: true, direction: 'increase' };
+ * summariseTrends([fit, fit], [test, { ...test, p_value: null }]); // { level: 0.05, tested: 1, supported: 1, increase: 1, decrease: 0, aicc_directional_first: 0, aicc_first_not_supported: 0 }
+ */
 export function summariseTrends(fits: readonly LineageFit[], trends: readonly TrendTest[]): TrendSummary {
   const tested = trends.filter((test) => test.p_value !== null);
   const aiccFirst = fits.map((fit, j) => ({ fit, test: trends[j] })).filter(({ fit }) => fit.best === 'directional-walk');
@@ -86,7 +110,13 @@ export function summariseTrends(fits: readonly LineageFit[], trends: readonly Tr
   };
 }
 
-/** The summary's trend lines (fit --summary). */
+/**
+ * The summary's trend lines (fit --summary).
+ *
+ * @example
+ * const summary = { level: 0.05, tested: 4, supported: 1, increase: 1, decrease: 0, aicc_directional_first: 2, aicc_first_not_supported: 1 };
+ * trendSummaryText(summary).split('\n')[0]; // 'Trend test (level 5%): a directional trend is supported in 1 of 4 lineages tested (1 increase, 0 decrease).'
+ */
 export function trendSummaryText(summary: TrendSummary): string {
   const levelText = `${Number((summary.level * 100).toPrecision(3))}%`;
   return [

@@ -47,7 +47,14 @@ export function traitUnitLabel(traitUnit: string | null | undefined, logTransfor
   return logTransformed ? `ln ${traitUnit}` : traitUnit;
 }
 
-/** A number in a table: 4 significant digits, exponent form for very large or small values. */
+/**
+ * A number in a table: 4 significant digits, exponent form for very large or small values.
+ *
+ * @example
+ * formatNumber(0.0123456); // '0.01235'
+ * formatNumber(2.5e-4); // '2.500e-4'
+ * formatNumber(null); // '—'
+ */
 export function formatNumber(value: number | null, digits = 4): string {
   if (value === null || !Number.isFinite(value)) return '—';
   if (value === 0) return '0';
@@ -56,7 +63,13 @@ export function formatNumber(value: number | null, digits = 4): string {
   return Number(value.toPrecision(digits)).toString();
 }
 
-/** A number with fixed decimals (logL, AICc), or "—". */
+/**
+ * A number with fixed decimals (logL, AICc), or "—".
+ *
+ * @example
+ * formatFixed(-3.75681, 3); // '-3.757'
+ * formatFixed(Number.NaN, 3); // '—'
+ */
 export function formatFixed(value: number | null, decimals: number): string {
   if (value === null || !Number.isFinite(value)) return '—';
   return value.toFixed(decimals);

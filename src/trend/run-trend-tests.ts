@@ -9,7 +9,14 @@ export interface TrendTestTask {
   readonly options: TrendTestOptions;
 }
 
-/** Worker entry: the trend test of one fitted lineage. Exported for the pool. */
+/**
+ * Worker entry: the trend test of one fitted lineage. Exported for the pool.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 2, 3, 4, 5, 6, 7], mean: [0, 1.1, 1.9, 3.2, 3.9, 5.1, 6, 7.2], samplingVariance: Array(8).fill(0.01) });
+ * const fit = fitLineage(lineage, classicModels, { intervals: false });
+ * trendTestTask({ fit, options: { seed: 1, maxReplicates: 19, rateReplicates: 9 } }).p_value; // 0.05 (no replicate reached the observed statistic: (0 + 1) / (19 + 1))
+ */
 export function trendTestTask(task: TrendTestTask): TrendTest {
   return trendTest(task.fit, task.options);
 }
@@ -22,7 +29,10 @@ export function trendTestTask(task: TrendTestTask): TrendTest {
  * or on the other lineages of the file.
  *
  * @example
- * (await trendTests(run.fits, { seed: 1 }, { threads: 1 }))[0].p_value; // same number for every threads value
+ * const lineage = lineageFromArrays({ time: [0, 1, 2, 3, 4, 5, 6, 7], mean: [0, 1.1, 1.9, 3.2, 3.9, 5.1, 6, 7.2], samplingVariance: Array(8).fill(0.01) });
+ * const fit = fitLineage(lineage, classicModels, { intervals: false });
+ * const [test] = await trendTests([fit], { seed: 1, maxReplicates: 19, rateReplicates: 9 }, { threads: 1 });
+ * test.p_value; // 0.05 (no replicate reached the observed statistic: (0 + 1) / (19 + 1))
  */
 export async function trendTests(fits: readonly LineageFit[], options: TrendTestOptions, batch: { threads?: number; onProgress?: (done: number, total: number) => void } = {}): Promise<TrendTest[]> {
   const threads = batch.threads ?? Math.min(fits.length, availableParallelism());

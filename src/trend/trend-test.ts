@@ -84,6 +84,10 @@ const fitted = (model: RankedFit | undefined): model is RankedFit =>
  * T = 2 (logL_directional - max over the non-directional models of logL).
  * The directional walk nests the random walk and strict stasis, not stasis,
  * so T may be negative; the bootstrap needs no sign.
+ *
+ * @example
+ * trendStatistic({ 'directional-walk': -3, 'random-walk': -5, stasis: -4 }); // 2 (2 × (-3 - (-4)))
+ * trendStatistic({ 'directional-walk': null, stasis: -4 }); // null
  */
 export function trendStatistic(logLik: Readonly<Record<string, number | null | undefined>>): number | null {
   const full = logLik[directionalModel];
@@ -103,6 +107,13 @@ export function trendStatistic(logLik: Readonly<Record<string, number | null | u
  * W0 = drift² / Var(drift). The variance cannot collapse to 0 under the
  * alternative, the cause of the heavy null tails of the ML ratio and of
  * the directional walk's own REML Wald statistic on short walks.
+ *
+ * @example
+ * // Nearly exact means: increments 1, 2, 1 are independent N(drift, s), so drift = 4/3, the walk's REML s = (1 + 4 + 1) / 3 = 2,
+ * // Var(drift) = s / 3 and W0 = (16/9) / (2/3) = 8/3 (closed form).
+ * const lineage = lineageFromArrays({ time: [0, 1, 2, 3], mean: [0, 1, 3, 4], samplingVariance: [1e-12, 1e-12, 1e-12, 1e-12] });
+ * nullVarianceWald(lineage).statistic; // 2.6666666667 (to 1e-9; 8/3)
+ * nullVarianceWald(lineage).drift; // 1.3333333333 (to 1e-9; 4/3)
  */
 export function nullVarianceWald(lineage: Lineage): { statistic: number; drift: number } | null {
   const walk = modelById('random-walk');
@@ -181,7 +192,8 @@ const streamOf: Readonly<Record<string, number>> = { 'random-walk': 151, stasis:
  * Biometrika 78:301-304.
  *
  * @example
- * sequentialPValue(() => 1, 0.5, 10, 99); // { p: 1, drawn: 10 }: ten draws, each at least 0.5
+ * sequentialPValue(() => 1, 0.5, 10, 99); // { p: 1, drawn: 10 } (ten draws, each at least 0.5: stop at h = 10)
+ * sequentialPValue(() => 0, 0.5, 10, 99); // { p: 0.01, drawn: 99 } (none reached 0.5: (0 + 1) / (99 + 1))
  */
 export function sequentialPValue(draw: (index: number) => number | null, observed: number, exceedances: number, most: number): { p: number; drawn: number } {
   let reached = 0;
@@ -227,7 +239,10 @@ export function sequentialPValue(draw: (index: number) => number | null, observe
  * H. D. & Thompson, R. (1971). Biometrika 58:545-554 (REML).
  *
  * @example
- * trendTest(fitLineage(lineage, classicModels, { intervals: false }), { seed: 1 }).p_value; // e.g. 0.37
+ * const lineage = lineageFromArrays({ time: [0, 1, 2, 3, 4, 5, 6, 7], mean: [0, 1.1, 1.9, 3.2, 3.9, 5.1, 6, 7.2], samplingVariance: Array(8).fill(0.01) });
+ * const test = trendTest(fitLineage(lineage, classicModels, { intervals: false }), { seed: 1, maxReplicates: 19, rateReplicates: 9 });
+ * test.p_value; // 0.05 (no replicate reached the observed statistic: (0 + 1) / (19 + 1), the smallest p of 19 replicates)
+ * test.null_model; // 'random-walk'
  */
 export function trendTest(fit: LineageFit, options: TrendTestOptions = {}): TrendTest {
   const level = options.level ?? 0.05;

@@ -149,6 +149,14 @@ function prepared(plan: FigurePlan, ratio: number, background: boolean, store: {
  * device pixel ratio that gives round(width_cm / 2.54 × dpi) pixels across,
  * with a pHYs chunk stating the dpi. SVG: width and height in pt with a
  * viewBox in points, text kept as text. PDF: one page of the figure's size.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const figureLineage = readFigureLineage(lineageDocument(fitLineage(lineage, [strictStasis], { intervals: false })));
+ * const options = resolveFigureOptions({ format: 'svg' });
+ * const figure = drawFigure(trajectoryPlan([figureLineage], options, false), options);
+ * figure.mime; // 'image/svg+xml'
+ * figure.width; // 255 (9 cm at 72 points an inch: 9 / 2.54 × 72, rounded)
  */
 export function drawFigure(plan: FigurePlan, options: ResolvedFigureOptions): RenderedFigure {
   const chartStack = loadChartStack();
@@ -229,8 +237,7 @@ const ligatures = ['ff', 'fi', 'fl', 'ffi', 'ffl', 'ſt', 'st'];
  * text reads and searches as drawn.
  *
  * @example
- * wholeTextElements('<text fill="#000" x="1, 5, " y="9, ">ab</text><text fill="#000" x="" y=""></text><text fill="#000" x="14, " y="9, ">c</text>');
- * // '<text fill="#000" x="1" y="9">ab c</text>'
+ * wholeTextElements('<text fill="#000" x="1, 5, " y="9, ">ab</text><text fill="#000" x="" y=""></text><text fill="#000" x="14, " y="9, ">c</text>'); // '<text fill="#000" x="1" y="9">ab c</text>'
  */
 export function wholeTextElements(svg: string): string {
   const element = /<text([^>]*?) x="([^"]*)" y="([^"]*)"([^>]*)>([^<]*)<\/text>/g;
@@ -294,7 +301,13 @@ function requireFrame(store: { frame: FigureFrame | null }): FigureFrame {
   return store.frame;
 }
 
-/** Text width in points for a CSS font string, measured with the same type engine that draws the figures. */
+/**
+ * Text width in points for a CSS font string, measured with the same type engine that draws the figures.
+ *
+ * @example
+ * measureText(font(10), 'iiii') < measureText(font(10), 'WWWW'); // true
+ * measureText(font(10), ''); // 0
+ */
 export function measureText(font: string, text: string): number {
   const { canvas } = loadChartStack();
   measuringContext ??= canvas.createCanvas(10, 10).getContext('2d');

@@ -17,13 +17,28 @@ import { shortModelLabel } from './trajectory.js';
 const margin = 6;
 const labelGap = 6;
 
-/** A deterministic spread in [-0.5, 0.5) for the i-th dot of a row (golden-ratio sequence: even, no clumps). */
+/**
+ * A deterministic spread in [-0.5, 0.5) for the i-th dot of a row (golden-ratio sequence: even, no clumps).
+ *
+ * @example
+ * dotOffset(0); // -0.5
+ * dotOffset(1); // 0.1180339887498949 (the golden-ratio fraction 0.618... - 0.5)
+ */
 export function dotOffset(index: number): number {
   const fraction = (index * 0.6180339887498949) % 1;
   return fraction - 0.5;
 }
 
-/** Plan the compilation figure. */
+/**
+ * Plan the compilation figure.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const fit = fitLineage(lineage, [strictStasis, randomWalk], { intervals: false });
+ * const plan = compilationPlan(summariseCompilation([fit, fit]), resolveFigureOptions({}));
+ * plan.title; // 'Model support across 2 lineages'
+ * plan.widthPoints; // 255.11811023622047 (to 1e-9; 9 cm in points, 9 / 2.54 × 72)
+ */
 export function compilationPlan(summary: CompilationSummary, options: ResolvedFigureOptions): FigurePlan {
   const widthPoints = options.widthCm * pointsPerCm;
   const inner = widthPoints - 2 * margin;
@@ -165,8 +180,11 @@ export function compilationPlan(summary: CompilationSummary, options: ResolvedFi
  * @param summary - the cross-lineage summary
  * @param options - format (png default, svg, pdf), width ('single' 9 cm default, 'double', or cm), dpi (PNG)
  * @returns the file's bytes, MIME type and size
+ *
  * @example
- * writeFileSync('compilation.png', renderCompilation(summariseCompilation(fits)).bytes);
+ * const lineage = lineageFromArrays({ time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const figure = renderCompilation(summariseCompilation([fitLineage(lineage, [strictStasis], { intervals: false })]), { format: 'svg' });
+ * [figure.mime, figure.width]; // ['image/svg+xml', 255] (9 cm at 72 points an inch)
  */
 export function renderCompilation(summary: CompilationSummary, options: FigureOptions = {}): RenderedFigure {
   const resolved = resolveFigureOptions(options);

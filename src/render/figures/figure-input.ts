@@ -88,6 +88,14 @@ function text(value: unknown, fallback = ''): string {
  * @param document - one entry of fit.json's `lineages`
  * @param where - how to name the document in errors, e.g. `fit.json lineages[1]`
  * @throws InputError naming the field when data are missing or not numbers
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const figureLineage = readFigureLineage(lineageDocument(fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })));
+ * figureLineage.models.map((model) => model.id); // ['strict-stasis', 'random-walk']
+ * figureLineage.mean; // [1, 2, 3]
+ * readFigureLineage([]);
+ * // throws: lineage: must be a lineage object
  */
 export function readFigureLineage(document: unknown, where = 'lineage'): FigureLineage {
   if (document === null || typeof document !== 'object' || Array.isArray(document)) fail(where, 'must be a lineage object');
@@ -162,7 +170,13 @@ export function readFigureLineage(document: unknown, where = 'lineage'): FigureL
   };
 }
 
-/** "section / trait" with empty parts left out (as the tables name a lineage). */
+/**
+ * "section / trait" with empty parts left out (as the tables name a lineage).
+ *
+ * @example
+ * figureLineageName({ section: 'A', trait: 'length' }); // 'A / length'
+ * figureLineageName({ section: '', trait: '' }); // 'lineage'
+ */
 export function figureLineageName(lineage: { section: string; trait: string }): string {
   const parts = [lineage.section, lineage.trait].filter((part) => part !== '');
   return parts.length === 0 ? 'lineage' : parts.join(' / ');

@@ -61,9 +61,9 @@ function nameOf(document: unknown): NamedLineage {
  * @param documents - fit.json `lineages`
  * @param kinds - kinds to include (default all)
  * @param selected - whether the lineage at an index is drawn (default all); a sections figure keeps the selected sections and is left out when fewer than two remain
+ *
  * @example
- * figureJobs([{ section: 'A/B', trait: 'x' }, { section: 'A-B', trait: 'x' }], ['trajectory']).map((job) => job.stem);
- * // ["a-b_x.trajectory", "a-b_x-2.trajectory"]
+ * figureJobs([{ section: 'A/B', trait: 'x' }, { section: 'A-B', trait: 'x' }], ['trajectory']).map((job) => job.stem); // ['a-b_x.trajectory', 'a-b_x-2.trajectory'] (equal slugs numbered)
  */
 export function figureJobs(documents: readonly unknown[], kinds: readonly FigureKind[] = figureKinds, selected: (index: number) => boolean = () => true): FigureJob[] {
   const names = documents.map(nameOf);

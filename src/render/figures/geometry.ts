@@ -26,7 +26,14 @@ export interface TimeAxis {
   toAxis(lineage: FigureLineage, elapsed: number): number;
 }
 
-/** Unit label for ages before present: Myr → Ma, kyr → ka, yr → yr BP (common practice); any other label as given. */
+/**
+ * Unit label for ages before present: Myr → Ma, kyr → ka, yr → yr BP (common practice); any other label as given.
+ *
+ * @example
+ * ageUnitLabel('Myr'); // 'Ma'
+ * ageUnitLabel('yr'); // 'yr BP'
+ * ageUnitLabel('varves'); // 'varves'
+ */
 export function ageUnitLabel(timeUnit: string): string {
   const key = timeUnit.trim().toLowerCase();
   if (key === 'myr' || key === 'ma') return 'Ma';
@@ -41,6 +48,12 @@ export function ageUnitLabel(timeUnit: string): string {
  * are drawn at the ages their age model gave them (`first_age` − t) when the
  * document carries `first_age`, and as time since the oldest horizon
  * otherwise.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const figureLineage = readFigureLineage(lineageDocument(fitLineage(lineage, [strictStasis], { intervals: false })));
+ * timeAxisFor([figureLineage]).title; // 'Time (Myr)'
+ * timeAxisFor([figureLineage]).toAxis(figureLineage, 2); // 2
  */
 export function timeAxisFor(lineages: readonly FigureLineage[]): TimeAxis {
   const unit = lineages[0]?.timeUnit ?? 'Myr';
@@ -76,8 +89,9 @@ export function timeAxisFor(lineages: readonly FigureLineage[]): TimeAxis {
  * natural-log scale, with the trait unit when the document has one.
  *
  * @example
- * // trait "shell length", no unit: "Shell length (mean per horizon)"
- * // trait unit "mm": "Shell length (mm, mean per horizon)"; with --log: "ln shell length (ln mm, mean per horizon)"
+ * traitAxisTitle({ trait: 'shell length', transform: 'none' }); // 'Shell length (mean per horizon)'
+ * traitAxisTitle({ trait: 'shell length', transform: 'none', traitUnit: 'mm' }); // 'Shell length (mm, mean per horizon)'
+ * traitAxisTitle({ trait: 'shell length', transform: 'ln', traitUnit: 'mm' }); // 'ln shell length (ln mm, mean per horizon)'
  */
 export function traitAxisTitle(lineage: Pick<FigureLineage, 'trait' | 'transform'> & { readonly traitUnit?: string | null }): string {
   const name = lineage.trait === '' ? 'trait' : lineage.trait;
@@ -95,7 +109,16 @@ export interface HorizonMark {
   readonly upper: number;
 }
 
-/** Horizon means with their 95% sampling intervals (±1.96 √e_i), on the axis' time scale. */
+/**
+ * Horizon means with their 95% sampling intervals (±1.96 √e_i), on the axis' time scale.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const figureLineage = readFigureLineage(lineageDocument(fitLineage(lineage, [strictStasis], { intervals: false })));
+ * const [first] = horizonMarks(figureLineage, timeAxisFor([figureLineage]));
+ * first.lower; // 0.6080072030919892 (to 1e-12; 1 - 1.959964 × 0.2, z of the normal 97.5% quantile)
+ * first.upper; // 1.3919927969080108 (to 1e-12; 1 + 1.959964 × 0.2)
+ */
 export function horizonMarks(lineage: FigureLineage, axis: TimeAxis): HorizonMark[] {
   return lineage.mean.map((mean, i) => {
     const half = normal95 * Math.sqrt(Math.max(0, lineage.samplingVariance[i]));
@@ -135,7 +158,15 @@ export type ModelCurveResult = { readonly curve: ModelCurve; readonly reason: nu
 /** Number of samples of a model curve between the first and last horizon (besides the horizons themselves). */
 export const curveSamples = 160;
 
-/** The model to draw: the one asked for, else the best-supported one. */
+/**
+ * The model to draw: the one asked for, else the best-supported one.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const figureLineage = readFigureLineage(lineageDocument(fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })));
+ * chosenModel(figureLineage, null).model.id; // 'strict-stasis' (the best supported)
+ * chosenModel(figureLineage, 'ou'); // { model: null, reason: 'model "ou" is not in this fit' }
+ */
 export function chosenModel(lineage: FigureLineage, requested: string | null): { model: FigureModel | null; reason: string | null } {
   const id = requested ?? lineage.bestModel;
   if (id === null) return { model: null, reason: 'no model was compared' };
@@ -160,6 +191,13 @@ export function chosenModel(lineage: FigureLineage, requested: string | null): {
  * (`alpha-zero`) as the directional walk with drift `limit_drift` =
  * (optimum − a) alpha (MODELS.md; the optimum is then infinite and fit.json
  * reports it as null).
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const figureLineage = readFigureLineage(lineageDocument(fitLineage(lineage, [strictStasis], { intervals: false })));
+ * const { curve } = modelCurve(figureLineage, timeAxisFor([figureLineage]), null);
+ * curve.id; // 'strict-stasis'
+ * new Set(curve.mean); // new Set([2]) (strict stasis: the mean 2 everywhere)
  */
 export function modelCurve(lineage: FigureLineage, axis: TimeAxis, requested: string | null): ModelCurveResult {
   const { model, reason } = chosenModel(lineage, requested);
@@ -209,7 +247,15 @@ export function modelCurve(lineage: FigureLineage, axis: TimeAxis, requested: st
   };
 }
 
-/** The smoothed lineage mean with its 95% band (mean ± 1.96 standard errors) at each horizon, or null. */
+/**
+ * The smoothed lineage mean with its 95% band (mean ± 1.96 standard errors) at each horizon, or null.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const figureLineage = readFigureLineage(lineageDocument(fitLineage(lineage, [strictStasis], { intervals: false })));
+ * smoothedBand(figureLineage, timeAxisFor([figureLineage])).mean; // [2, 2, 2] (strict stasis: no process, the fitted mean)
+ * smoothedBand({ ...figureLineage, smoothed: null }, timeAxisFor([figureLineage])); // null
+ */
 export function smoothedBand(lineage: FigureLineage, axis: TimeAxis): { model: string; time: number[]; mean: number[]; lower: number[]; upper: number[] } | null {
   const smoothed = lineage.smoothed;
   if (!smoothed) return null;

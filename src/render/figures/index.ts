@@ -13,9 +13,8 @@
  * Importing this module is cheap: the chart stack (chart.js,
  * chartjs-node-canvas, @napi-rs/canvas) is loaded on the first figure drawn.
  *
- * @example
- * const figure = renderTrajectory(fitJson.lineages[0], { format: 'svg' });
- * writeFileSync('trajectory.svg', figure.bytes); // figure.mime === 'image/svg+xml'
+ * Example: `renderTrajectory(fitJson.lineages[0], { format: 'svg' })` returns
+ * the SVG's bytes with `mime` 'image/svg+xml' (each function's own example shows a call).
  */
 import { drawFigure, type RenderedFigure } from './chart-backend.js';
 import { readFigureLineage, type FigureLineage } from './figure-input.js';
@@ -46,6 +45,14 @@ function asLineage(document: unknown, where: string): FigureLineage {
  *   model (id to draw; default the best-supported), smoothed (band on/off, default off)
  * @returns the file's bytes, MIME type, size (pixels for PNG, points for vector) and where the plot landed
  * @throws InputError when the document lacks the horizon data or an option is out of range
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const figure = renderTrajectory(lineageDocument(fitLineage(lineage, [strictStasis], { intervals: false })), { format: 'svg' });
+ * figure.mime; // 'image/svg+xml'
+ * figure.width; // 255 (9 cm at 72 points an inch)
+ * renderTrajectory({ section: 'A' });
+ * // throws: lineage
  */
 export function renderTrajectory(lineageDocument: unknown, options: FigureOptions = {}): RenderedFigure {
   const resolved = resolveFigureOptions(options);
@@ -61,6 +68,11 @@ export function renderTrajectory(lineageDocument: unknown, options: FigureOption
  * smoothed bands are left to the one-lineage figures so the sections stay legible.
  *
  * @param lineageDocuments - the lineage documents of the sections, in legend order
+ *
+ * @example
+ * const section = (name) => lineageDocument(fitLineage(lineageFromArrays({ section: name, trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] }), [strictStasis], { intervals: false }));
+ * const figure = renderSectionsTogether([section('A'), section('B')], { format: 'svg' });
+ * [figure.mime, figure.width]; // ['image/svg+xml', 255]
  */
 export function renderSectionsTogether(lineageDocuments: readonly unknown[], options: FigureOptions = {}): RenderedFigure {
   const resolved = resolveFigureOptions(options);
@@ -75,6 +87,11 @@ export function renderSectionsTogether(lineageDocuments: readonly unknown[], opt
  * The model-support figure of one lineage: K, logL, AICc, ΔAICc and the
  * Akaike weight (as a bar) of every model, best marked, models not compared
  * shown as such. Width, format and dpi options as for `renderTrajectory`.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const figure = renderModelSupport(lineageDocument(fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })), { format: 'svg' });
+ * [figure.mime, figure.width]; // ['image/svg+xml', 255]
  */
 export function renderModelSupport(lineageDocument: unknown, options: FigureOptions = {}): RenderedFigure {
   const resolved = resolveFigureOptions(options);

@@ -94,7 +94,16 @@ const axisStyle = (title: string, limits: { min: number; max: number }, target =
   border: { display: true, color: ink.axis, width: lineWidth.axis },
 });
 
-/** Plan the trajectory of trait `second` against trait `first` (indices into the group's traits). */
+/**
+ * Plan the trajectory of trait `second` against trait `first` (indices into the group's traits).
+ *
+ * @example
+ * const covariance = [[0.04, 0], [0, 0.04]];
+ * const group = { section: 'A', traits: ['length', 'width'], time_unit: 'Myr', series: { axis: 'time', position: [0, 1, 2], mean: [[1, 2], [2, 2.5], [3, 3]], sampling_covariance: [covariance, covariance, covariance] } };
+ * const plan = jointTrajectoryPlan(group, 0, 1, resolveFigureOptions({}));
+ * plan.title; // 'A: width against length'
+ * plan.widthPoints; // 255.11811023622047 (to 1e-9; 9 cm in points)
+ */
 export function jointTrajectoryPlan(group: JointFigureGroup, first: number, second: number, options: ResolvedFigureOptions): FigurePlan {
   const widthPoints = options.widthCm * pointsPerCm;
   const both = group.series.mean.map((row, i) => ({ i, x: row[first], y: row[second] })).filter((point): point is { i: number; x: number; y: number } => point.x !== null && point.y !== null);
@@ -167,7 +176,14 @@ function scatterConfiguration(datasets: unknown[], scales: Record<string, unknow
   };
 }
 
-/** Plan the stratigraphic panels: one per trait, side by side, sharing the vertical time axis (older at the bottom). */
+/**
+ * Plan the stratigraphic panels: one per trait, side by side, sharing the vertical time axis (older at the bottom).
+ *
+ * @example
+ * const covariance = [[0.04, 0], [0, 0.04]];
+ * const group = { section: 'A', traits: ['length', 'width'], time_unit: 'Myr', series: { axis: 'time', position: [0, 1, 2], mean: [[1, 2], [2, 2.5], [3, 3]], sampling_covariance: [covariance, covariance, covariance] } };
+ * jointPanelsPlan(group, resolveFigureOptions({})).title; // 'A: length, width through the section'
+ */
 export function jointPanelsPlan(group: JointFigureGroup, options: ResolvedFigureOptions): FigurePlan {
   const k = group.traits.length;
   const widthPoints = options.widthCm * pointsPerCm;
@@ -246,7 +262,10 @@ export function jointPanelsPlan(group: JointFigureGroup, options: ResolvedFigure
  * Draw the trajectory of trait `second` against trait `first` of a joint.json group.
  *
  * @example
- * writeFileSync('trajectory.png', renderJointTrajectory(document.groups[0], 0, 1).bytes);
+ * const covariance = [[0.04, 0], [0, 0.04]];
+ * const group = { section: 'A', traits: ['length', 'width'], time_unit: 'Myr', series: { axis: 'time', position: [0, 1, 2], mean: [[1, 2], [2, 2.5], [3, 3]], sampling_covariance: [covariance, covariance, covariance] } };
+ * const figure = renderJointTrajectory(group, 0, 1, { format: 'svg' });
+ * [figure.mime, figure.width]; // ['image/svg+xml', 255]
  */
 export function renderJointTrajectory(group: JointFigureGroup, first: number, second: number, options: FigureOptions = {}): RenderedFigure {
   const resolved = resolveFigureOptions(options);
@@ -257,7 +276,10 @@ export function renderJointTrajectory(group: JointFigureGroup, first: number, se
  * Draw the stratigraphic panels of a joint.json group.
  *
  * @example
- * writeFileSync('panels.png', renderJointPanels(document.groups[0]).bytes);
+ * const covariance = [[0.04, 0], [0, 0.04]];
+ * const group = { section: 'A', traits: ['length', 'width'], time_unit: 'Myr', series: { axis: 'time', position: [0, 1, 2], mean: [[1, 2], [2, 2.5], [3, 3]], sampling_covariance: [covariance, covariance, covariance] } };
+ * const figure = renderJointPanels(group, { format: 'svg' });
+ * [figure.mime, figure.width]; // ['image/svg+xml', 255]
  */
 export function renderJointPanels(group: JointFigureGroup, options: FigureOptions = {}): RenderedFigure {
   const resolved = resolveFigureOptions(options);

@@ -4,12 +4,27 @@ import { capHalfLength, fontFamily, ink, lineWidth, markerRadius, typeSize } fro
 /** The 2D drawing context the figures draw on (chart.js hands over the canvas context). */
 export type Context = CanvasRenderingContext2D;
 
-/** A CSS font string in points-as-pixels (the figures' drawing unit is the point). */
+/**
+ * A CSS font string in points-as-pixels (the figures' drawing unit is the point).
+ *
+ * @example
+ * font(8); // "8px 'DejaVu Sans', sans-serif"
+ * font(9, 'bold', 'italic'); // "italic bold 9px 'DejaVu Sans', sans-serif"
+ */
 export function font(size: number, weight: 'normal' | 'bold' = 'normal', style: 'normal' | 'italic' = 'normal'): string {
   return `${style === 'italic' ? 'italic ' : ''}${weight === 'bold' ? 'bold ' : ''}${size}px ${fontFamily}`;
 }
 
-/** Trace a marker's outline centred at (x, y) with radius r (shapes of about equal area). */
+/**
+ * Trace a marker's outline centred at (x, y) with radius r (shapes of about equal area).
+ *
+ * @example
+ * const calls = [];
+ * // records the drawing calls
+ * const context = new Proxy({}, { get: (_, name) => (...args) => { calls.push(name); }, set: () => true });
+ * traceMarker(context, 'circle', 10, 20, 3);
+ * calls; // ['beginPath', 'arc']
+ */
 export function traceMarker(context: Context, shape: MarkerShape, x: number, y: number, r: number): void {
   context.beginPath();
   switch (shape) {
@@ -55,7 +70,16 @@ export function traceMarker(context: Context, shape: MarkerShape, x: number, y: 
   }
 }
 
-/** Draw a marker: filled in `color` with a thin white halo, or open (white inside, coloured edge). */
+/**
+ * Draw a marker: filled in `color` with a thin white halo, or open (white inside, coloured edge).
+ *
+ * @example
+ * const calls = [];
+ * // records the drawing calls
+ * const context = new Proxy({}, { get: (_, name) => (...args) => { calls.push(name); }, set: () => true });
+ * drawMarker(context, 'square', 10, 20, '#000000');
+ * calls; // ['save', 'setLineDash', 'beginPath', 'rect', 'fill', 'stroke', 'beginPath', 'rect', 'fill', 'restore']
+ */
 export function drawMarker(context: Context, shape: MarkerShape, x: number, y: number, color: string, filled = true, r = markerRadius): void {
   context.save();
   context.setLineDash([]);
@@ -73,7 +97,16 @@ export function drawMarker(context: Context, shape: MarkerShape, x: number, y: n
   context.restore();
 }
 
-/** Draw an interval from (x1, y1) to (x2, y2) with end caps across it. */
+/**
+ * Draw an interval from (x1, y1) to (x2, y2) with end caps across it.
+ *
+ * @example
+ * const calls = [];
+ * // records the drawing calls
+ * const context = new Proxy({}, { get: (_, name) => (...args) => { calls.push(name); }, set: () => true });
+ * drawInterval(context, 10, 20, 10, 40, '#000000');
+ * calls.filter((name) => name === 'moveTo').length; // 3 (the line and its two caps)
+ */
 export function drawInterval(context: Context, x1: number, y1: number, x2: number, y2: number, color: string, width: number = lineWidth.interval): void {
   const length = Math.hypot(x2 - x1, y2 - y1);
   context.save();
@@ -95,7 +128,16 @@ export function drawInterval(context: Context, x1: number, y1: number, x2: numbe
   context.restore();
 }
 
-/** Fill the region between two lines given as point lists (same order), e.g. an envelope. */
+/**
+ * Fill the region between two lines given as point lists (same order), e.g. an envelope.
+ *
+ * @example
+ * const calls = [];
+ * // records the drawing calls
+ * const context = new Proxy({}, { get: (_, name) => (...args) => { calls.push(name); }, set: () => true });
+ * fillBetween(context, [{ x: 0, y: 1 }, { x: 1, y: 1 }], [{ x: 0, y: 2 }, { x: 1, y: 2 }], '#cccccc');
+ * calls; // ['save', 'beginPath', 'moveTo', 'lineTo', 'lineTo', 'lineTo', 'closePath', 'fill', 'restore']
+ */
 export function fillBetween(context: Context, lower: readonly { x: number; y: number }[], upper: readonly { x: number; y: number }[], fill: string, edge?: { color: string; width: number; dash?: readonly number[] }): void {
   if (lower.length < 2) return;
   context.save();
@@ -188,6 +230,13 @@ export interface LegendLayout {
  *
  * @param width - room for the legend in points
  * @param measure - text width in points for the legend font
+ *
+ * @example
+ * // 5 points a character
+ * const measure = (text) => 5 * text.length;
+ * const entries = [{ text: 'horizon mean', key: { marker: { shape: 'circle', color: '#000000' } } }, { text: 'model', key: { line: { color: '#000000', width: 1 } } }];
+ * layoutLegend(entries, 100, measure).rows.map((row) => row.entries.map((placed) => placed.entry.text)); // [['horizon mean'], ['model']] (16 + 4 + 60 + 10 leaves too little room)
+ * layoutLegend(entries, 200, measure).rows.length; // 1
  */
 export function layoutLegend(entries: readonly LegendEntry[], width: number, measure: (text: string) => number): LegendLayout {
   const rows: { entries: PlacedLegendEntry[]; lines: number }[] = [];
@@ -215,7 +264,17 @@ export function layoutLegend(entries: readonly LegendEntry[], width: number, mea
   return { rows, height };
 }
 
-/** Draw a legend laid out by `layoutLegend` with its top-left corner at (left, top). */
+/**
+ * Draw a legend laid out by `layoutLegend` with its top-left corner at (left, top).
+ *
+ * @example
+ * const calls = [];
+ * // records the drawing calls
+ * const context = new Proxy({}, { get: (_, name) => (...args) => { calls.push(name); }, set: () => true });
+ * const layout = layoutLegend([{ text: 'horizon mean', key: { marker: { shape: 'circle', color: '#000000' } } }], 200, (text) => 5 * text.length);
+ * drawLegend(context, layout, 0, 0);
+ * calls.filter((name) => name === 'fillText').length; // 1
+ */
 export function drawLegend(context: Context, layout: LegendLayout, left: number, top: number): void {
   context.save();
   context.font = font(typeSize.legend);
@@ -273,7 +332,10 @@ export function drawLegend(context: Context, layout: LegendLayout, left: number,
  * @param measure - text width in points for the font the text is drawn in
  *
  * @example
- * wrapText('Horizon mean with interval', 60, measure); // ["Horizon mean", "with interval"] (depending on the font)
+ * // 5 points a character
+ * const measure = (text) => 5 * text.length;
+ * wrapText('Horizon mean with interval', 60, measure); // ['Horizon mean', 'with', 'interval']
+ * wrapText('Horizonmeanwith', 30, measure, { breakWords: true }); // ['Horizo', 'nmeanw', 'ith']
  */
 export function wrapText(text: string, width: number, measure: (text: string) => number, options: { readonly breakWords?: boolean } = {}): string[] {
   const words = text.split(/\s+/).filter((word) => word !== '');
@@ -318,7 +380,13 @@ export interface StyledWord {
   readonly glued?: boolean;
 }
 
-/** True when the text marks a part in italics with asterisks (`*Invented taxon*`). */
+/**
+ * True when the text marks a part in italics with asterisks (`*Invented taxon*`).
+ *
+ * @example
+ * hasEmphasis('*Invented taxon* length'); // true
+ * hasEmphasis('length'); // false
+ */
 export function hasEmphasis(text: string): boolean {
   return /\*[^*]+\*/.test(text);
 }
@@ -351,7 +419,12 @@ export function styledWords(text: string): StyledWord[] {
   return words;
 }
 
-/** The title without its asterisks. */
+/**
+ * The title without its asterisks.
+ *
+ * @example
+ * plainTitle('*Invented taxon* length'); // 'Invented taxon length'
+ */
 export function plainTitle(text: string): string {
   return text.replace(/\*([^*]+)\*/g, '$1');
 }
@@ -360,12 +433,26 @@ function wordFont(size: number, word: StyledWord): string {
   return font(size, 'normal', word.italic ? 'italic' : 'normal');
 }
 
-/** Width of a line of styled words in points (a space between words unless glued). */
+/**
+ * Width of a line of styled words in points (a space between words unless glued).
+ *
+ * @example
+ * // 5 points a character in every font
+ * const measure = (font, text) => 5 * text.length;
+ * styledWidth(styledWords('*Aus* length'), 8)(measure); // 50 (15 + a space of 5 + 30)
+ */
 export function styledWidth(line: readonly StyledWord[], size: number): (measure: (font: string, text: string) => number) => number {
   return (measure) => line.reduce((sum, word, i) => sum + measure(wordFont(size, word), word.text) + (i > 0 && !word.glued ? measure(font(size), ' ') : 0), 0);
 }
 
-/** Break styled words into lines no wider than `width` (a word wider than the line keeps a line of its own). */
+/**
+ * Break styled words into lines no wider than `width` (a word wider than the line keeps a line of its own).
+ *
+ * @example
+ * // 5 points a character in every font
+ * const measure = (font, text) => 5 * text.length;
+ * wrapStyled(styledWords('*Aus bus* shell length'), 40, 8, measure).map((line) => line.map((word) => word.text).join(' ')); // ['Aus bus', 'shell', 'length']
+ */
 export function wrapStyled(words: readonly StyledWord[], width: number, size: number, measure: (font: string, text: string) => number): StyledWord[][] {
   const lines: StyledWord[][] = [];
   let line: StyledWord[] = [];
@@ -382,7 +469,16 @@ export function wrapStyled(words: readonly StyledWord[], width: number, size: nu
   return lines;
 }
 
-/** Draw one line of styled words centred on x at baseline y, one run of text per change of slant (the space between runs is left as a gap, so no run starts or ends with a space). */
+/**
+ * Draw one line of styled words centred on x at baseline y, one run of text per change of slant (the space between runs is left as a gap, so no run starts or ends with a space).
+ *
+ * @example
+ * const calls = [];
+ * // records the drawing calls
+ * const context = new Proxy({}, { get: (_, name) => (...args) => { calls.push(name); }, set: () => true });
+ * drawStyledLine(context, styledWords('*Aus* length'), 50, 10, 8, '#000000', (font, text) => 5 * text.length);
+ * calls; // ['save', 'fillText', 'fillText', 'restore'] (one run in italics, one upright)
+ */
 export function drawStyledLine(context: Context, line: readonly StyledWord[], x: number, y: number, size: number, color: string, measure: (font: string, text: string) => number): void {
   const runs: { text: string; italic: boolean; spaced: boolean }[] = [];
   line.forEach((word, i) => {

@@ -20,7 +20,14 @@ const markerColumn = 8;
 const bestMark = '▸';
 const dagger = '†';
 
-/** A number with a true minus sign, fixed decimals, "—" when absent. */
+/**
+ * A number with a true minus sign, fixed decimals, "—" when absent.
+ *
+ * @example
+ * tableNumber(-0.5, 2); // '−0.50' (a true minus sign)
+ * tableNumber(-0.0001, 2); // '0.00' (no minus on a rounded zero)
+ * tableNumber(null, 2); // '—'
+ */
 export function tableNumber(value: number | null, decimals: number): string {
   if (value === null || !Number.isFinite(value)) return '—';
   const fixed = Math.abs(value).toFixed(decimals);
@@ -28,7 +35,14 @@ export function tableNumber(value: number | null, decimals: number): string {
   return value < 0 && !zero ? `−${fixed}` : fixed;
 }
 
-/** Models in table order: compared ones by AICc (lowest first), then the others in their original order. */
+/**
+ * Models in table order: compared ones by AICc (lowest first), then the others in their original order.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const figureLineage = readFigureLineage(lineageDocument(fitLineage(lineage, [randomWalk, strictStasis], { intervals: false })));
+ * supportRows(figureLineage).map((model) => model.id); // ['strict-stasis', 'random-walk'] (lowest AICc first)
+ */
 export function supportRows(lineage: FigureLineage): FigureModel[] {
   const compared = lineage.models.filter((model) => model.compared && model.aicc !== null).sort((a, b) => (a.aicc as number) - (b.aicc as number));
   const others = lineage.models.filter((model) => !(model.compared && model.aicc !== null));
@@ -116,7 +130,16 @@ interface TableLayout {
   readonly weightWidth: number;
 }
 
-/** Plan the model-support figure of one lineage. */
+/**
+ * Plan the model-support figure of one lineage.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const figureLineage = readFigureLineage(lineageDocument(fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })));
+ * const plan = modelSupportPlan(figureLineage, resolveFigureOptions({}));
+ * plan.title; // 'A / length: model support'
+ * plan.rowCentres.length; // 2 (one row per model)
+ */
 export function modelSupportPlan(lineage: FigureLineage, options: ResolvedFigureOptions): FigurePlan & { readonly rowCentres: readonly number[]; readonly setting: TableSetting } {
   const rows = supportRows(lineage);
   const widthPoints = options.widthCm * pointsPerCm;

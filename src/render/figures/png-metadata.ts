@@ -23,8 +23,14 @@ export interface PngChunk {
  * Split a PNG file into its chunks, checking the signature and each CRC.
  *
  * @throws Error when the bytes are not a well-formed PNG
+ *
  * @example
- * pngChunks(withPngMetadata(png, 600)).map((chunk) => chunk.type); // ['IHDR', 'pHYs', ..., 'IEND']
+ * // The smallest PNG: one pixel (IHDR, IDAT, IEND), written as base64.
+ * const png = Uint8Array.from(Buffer.from('iVBORw0KGgoAAAANSUhEUgAAAAEAAAABCAYAAAAfFcSJAAAADUlEQVR42mNkYPhfDwAChwGA60e6kgAAAABJRU5ErkJggg==', 'base64'));
+ * pngChunks(png).map((chunk) => chunk.type); // ['IHDR', 'IDAT', 'IEND']
+ * pngChunks(withPngMetadata(png, 600)).map((chunk) => chunk.type); // ['IHDR', 'pHYs', 'IDAT', 'IEND']
+ * pngChunks(png.subarray(1));
+ * // throws: not a PNG file (bad signature)
  */
 export function pngChunks(png: Uint8Array): PngChunk[] {
   if (png.length < 8 || signature.some((byte, i) => png[i] !== byte)) throw new Error('not a PNG file (bad signature)');
@@ -57,7 +63,12 @@ function encodeChunk(type: string, data: Uint8Array): Uint8Array {
   return out;
 }
 
-/** Pixels per metre for a dpi: round(dpi / 0.0254). */
+/**
+ * Pixels per metre for a dpi: round(dpi / 0.0254).
+ *
+ * @example
+ * pixelsPerMetre(600); // 23622 (600 / 0.0254, rounded)
+ */
 export function pixelsPerMetre(dpi: number): number {
   return Math.round(dpi / 0.0254);
 }
@@ -70,6 +81,12 @@ export function pixelsPerMetre(dpi: number): number {
  * @param png - a PNG file
  * @param dpi - dots per inch, stored as pixels per metre (unit 1)
  * @param text - keyword → text, e.g. { Software: 'stratotrend' }
+ *
+ * @example
+ * const png = Uint8Array.from(Buffer.from('iVBORw0KGgoAAAANSUhEUgAAAAEAAAABCAYAAAAfFcSJAAAADUlEQVR42mNkYPhfDwAChwGA60e6kgAAAABJRU5ErkJggg==', 'base64'));
+ * const tagged = withPngMetadata(png, 600, { Software: 'stratotrend' });
+ * pngInfo(tagged).text; // { Software: 'stratotrend' }
+ * pngInfo(tagged).dpiX; // 599.9988 (to 1e-9; 23622 pixels per metre × 0.0254)
  */
 export function withPngMetadata(png: Uint8Array, dpi: number, text: Readonly<Record<string, string>> = {}): Uint8Array {
   const chunks = pngChunks(png).filter((chunk) => chunk.type !== 'pHYs');
@@ -106,7 +123,13 @@ export interface PngInfo {
   readonly text: Readonly<Record<string, string>>;
 }
 
-/** Read the pixel size, pHYs density (as dpi) and tEXt chunks of a PNG. */
+/**
+ * Read the pixel size, pHYs density (as dpi) and tEXt chunks of a PNG.
+ *
+ * @example
+ * const png = Uint8Array.from(Buffer.from('iVBORw0KGgoAAAANSUhEUgAAAAEAAAABCAYAAAAfFcSJAAAADUlEQVR42mNkYPhfDwAChwGA60e6kgAAAABJRU5ErkJggg==', 'base64'));
+ * pngInfo(png); // { width: 1, height: 1, dpiX: null, dpiY: null, text: {} }
+ */
 export function pngInfo(png: Uint8Array): PngInfo {
   const chunks = pngChunks(png);
   const header = new DataView(chunks[0].data.buffer, chunks[0].data.byteOffset, chunks[0].data.byteLength);

@@ -44,6 +44,10 @@ export interface PowerCurveInput {
  * The assumed step variances of a `power --json` document for the figure
  * (`assumptions`: step variance, why it was assumed, its grid), or undefined
  * for a document written before they were recorded.
+ *
+ * @example
+ * powerCurveAssumptions({}); // undefined (a document from before assumptions were recorded)
+ * powerCurveAssumptions({ assumptions: [{ step_variance: 0.1, source: 'upper end of the 95% interval of the fitted step variance', grid: [] }] }); // [{ stepVariance: 0.1, source: 'upper end of its 95% interval', grid: [] }]
  */
 export function powerCurveAssumptions(document: { assumptions?: unknown }): PowerCurveInput['assumptions'] {
   if (!Array.isArray(document.assumptions)) return undefined;
@@ -54,7 +58,13 @@ export function powerCurveAssumptions(document: { assumptions?: unknown }): Powe
   }));
 }
 
-/** The assumed step variance(s) of a power document in words, for its figure caption (empty for a document without them). */
+/**
+ * The assumed step variance(s) of a power document in words, for its figure caption (empty for a document without them).
+ *
+ * @example
+ * powerAssumptionCaption({ settings: { step_variance: 0.05 } }); // 'Assumed step variance 0.05.'
+ * powerAssumptionCaption({ assumptions: [{ step_variance: 0.01, source: 'fitted', grid: [] }, { step_variance: 0.1, source: 'upper end', grid: [] }] }); // "Assumed step variance 0.01 (fitted) and 0.1 (upper end of its 95% interval); the smaller's curves are faded."
+ */
 export function powerAssumptionCaption(document: { settings?: Record<string, unknown>; assumptions?: unknown }): string {
   const assumptions = powerCurveAssumptions(document);
   const show = (value: number): string => String(Number(value.toPrecision(4)));
@@ -63,7 +73,14 @@ export function powerAssumptionCaption(document: { settings?: Record<string, unk
   return typeof value === 'number' ? `Assumed step variance ${show(value)}.` : '';
 }
 
-/** The assumed step variance(s) in words for the figure: "Assumed step variance 0.05 (trait units)² per Myr." */
+/**
+ * The assumed step variance(s) in words for the figure: "Assumed step variance 0.05 (trait units)² per Myr."
+ *
+ * @example
+ * const input = { grid: [], lineage: 'A / length', horizons: 12, replicates: 99, timeUnit: 'Myr', weightThreshold: 0.9, targetPower: 0.8, level: 0.05, withinSd: 0.5, stepVariance: 0.05 };
+ * assumedVarianceWords(input); // 'Assumed step variance 0.05 (trait units)² per Myr.'
+ * assumedVarianceWords({ ...input, traitUnit: 'mm' }); // 'Assumed step variance 0.05 mm² per Myr.'
+ */
 export function assumedVarianceWords(input: PowerCurveInput): string {
   const unit = `${squaredLabel(traitUnitLabel(input.traitUnit, false, 'trait units'))} per ${input.timeUnit}`;
   const show = (value: number): string => String(Number(value.toPrecision(4)));
@@ -116,6 +133,13 @@ function roundTickOptions(limits: { min: number; max: number }, target: number):
  * the bootstrap likelihood-ratio test rejecting the random walk) against the
  * true drift, with the target power and the test level as reference lines.
  * House look of `src/render/figures/` (palette, type sizes, lines).
+ *
+ * @example
+ * const grid = [{ drift: 0, drift_sd: 0, p_best: 0.1, p_weight: 0.05, p_lrt: 0.05 }, { drift: 0.5, drift_sd: 1, p_best: 0.8, p_weight: 0.7, p_lrt: 0.75 }];
+ * const input = { grid, lineage: 'A / length', horizons: 12, replicates: 99, timeUnit: 'Myr', weightThreshold: 0.9, targetPower: 0.8, level: 0.05, withinSd: 0.5, stepVariance: 0.05 };
+ * const { plan } = powerCurvePlan(input);
+ * plan.title; // 'Power to detect a trend: A / length'
+ * plan.heightPoints; // 267.8740157480315 (to 1e-9; 1.05 × the 9 cm width in points)
  */
 export function powerCurvePlan(input: PowerCurveInput, options: FigureOptions = {}): { plan: FigurePlan; resolved: ReturnType<typeof resolveFigureOptions> } {
   const resolved = resolveFigureOptions(options);
@@ -249,7 +273,15 @@ export function powerCurvePlan(input: PowerCurveInput, options: FigureOptions = 
   return { plan: { widthPoints, heightPoints, title, configuration }, resolved };
 }
 
-/** Draw the power curve (PNG by default; svg and pdf as the other figures). */
+/**
+ * Draw the power curve (PNG by default; svg and pdf as the other figures).
+ *
+ * @example
+ * const grid = [{ drift: 0, drift_sd: 0, p_best: 0.1, p_weight: 0.05, p_lrt: 0.05 }, { drift: 0.5, drift_sd: 1, p_best: 0.8, p_weight: 0.7, p_lrt: 0.75 }];
+ * const input = { grid, lineage: 'A / length', horizons: 12, replicates: 99, timeUnit: 'Myr', weightThreshold: 0.9, targetPower: 0.8, level: 0.05, withinSd: 0.5, stepVariance: 0.05 };
+ * const figure = renderPowerCurve(input, { format: 'svg' });
+ * [figure.mime, figure.width]; // ['image/svg+xml', 255]
+ */
 export function renderPowerCurve(input: PowerCurveInput, options: FigureOptions = {}): RenderedFigure {
   const { plan, resolved } = powerCurvePlan(input, options);
   return drawFigure(plan, resolved);

@@ -89,7 +89,13 @@ export const seriesStyles: readonly SeriesStyle[] = [
   { color: '#8a8f98', marker: 'hexagon', filled: true, dash: [7, 2] },
 ];
 
-/** The style of the i-th section (0-based). */
+/**
+ * The style of the i-th section (0-based).
+ *
+ * @example
+ * seriesStyle(0); // { color: '#1d3f7a', marker: 'circle', filled: true, dash: [] }
+ * seriesStyle(9).filled; // false (the cycle repeats with open markers)
+ */
 export function seriesStyle(index: number): SeriesStyle {
   const base = seriesStyles[index % seriesStyles.length];
   return index < seriesStyles.length ? base : { ...base, filled: false };

@@ -192,8 +192,11 @@ export const drawableRange = { smallest: 1e-200, largest: 1e200 } as const;
  *
  * @param axis - the axis in words, for the message ("time axis")
  * @throws InputError naming the axis and its ends when they cannot be drawn
+ *
  * @example
- * drawableLimits({ min: 0, max: 3e-311 }, 'time axis'); // throws: cannot draw the time axis …
+ * drawableLimits({ min: 0, max: 12 }, 'time axis'); // { min: 0, max: 12 }
+ * drawableLimits({ min: 0, max: 3e-311 }, 'time axis');
+ * // throws: cannot draw the time axis: its values run from 0 to 3e-311
  */
 export function drawableLimits(limits: { min: number; max: number }, axis: string): { min: number; max: number } {
   const span = limits.max - limits.min;

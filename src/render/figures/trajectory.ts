@@ -27,13 +27,24 @@ import { ink, lineWidth, markerRadius, modelInk, seriesStyle, smoothedInk, typeS
 import { drawableLimits, fittedTicks, roundStep, tickLabel, type RoundStep } from './ticks.js';
 import { capitalised } from '../words.js';
 
-/** The first part of a model label, before any gloss in parentheses: "directional walk (random walk with drift)" → "directional walk". */
+/**
+ * The first part of a model label, before any gloss in parentheses: "directional walk (random walk with drift)" → "directional walk".
+ *
+ * @example
+ * shortModelLabel('directional walk (random walk with drift)'); // 'directional walk'
+ */
 export function shortModelLabel(label: string): string {
   const cut = label.indexOf(' (');
   return cut > 0 ? label.slice(0, cut) : label;
 }
 
-/** A weight as the tables print it: two decimals, "< 0.01" below that. */
+/**
+ * A weight as the tables print it: two decimals, "< 0.01" below that.
+ *
+ * @example
+ * formatWeight(0.004); // '< 0.01'
+ * formatWeight(0.5); // '0.50'
+ */
 export function formatWeight(weight: number | null): string {
   if (weight === null) return '—';
   if (weight > 0 && weight < 0.005) return '< 0.01';
@@ -99,6 +110,13 @@ interface EnvelopeFill {
  * sections of one trait on a shared time axis (`together` true: each section
  * by colour, marker shape and dash pattern, its model's 95% envelope lightly
  * shaded in its colour).
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const figureLineage = readFigureLineage(lineageDocument(fitLineage(lineage, [strictStasis], { intervals: false })));
+ * const plan = trajectoryPlan([figureLineage], resolveFigureOptions({}), false);
+ * plan.title; // 'A / length'
+ * plan.widthPoints; // 255.11811023622047 (to 1e-9; 9 cm in points)
  */
 export function trajectoryPlan(lineages: readonly FigureLineage[], options: ResolvedFigureOptions, together: boolean): TrajectoryPlan {
   const axis = timeAxisFor(lineages);

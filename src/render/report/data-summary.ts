@@ -46,7 +46,13 @@ function numbers(values: readonly (number | null)[]): number[] {
  * the spread could be sampling error).
  *
  * @example
- * // means 1, 2, 4 at t = 0, 1, 3 with e_i = 0.01: net change 3, typical SE 0.1, changeToError 30
+ * // Means 1, 2, 4 at t = 0, 1, 3 with e_i = 0.01: net change 3, typical standard error 0.1, change to error 30.
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'x', time: [0, 1, 3], mean: [1, 2, 4], samplingVariance: [0.01, 0.01, 0.01] });
+ * const provenance = { tool: 'stratotrend', version: '0.1.0', inputs: [], options: {} };
+ * const document = asFitDocument(fitDocument([fitLineage(lineage, [strictStasis], { intervals: false })], provenance, [], 'classic'));
+ * const summary = summariseData(document.lineages[0]);
+ * [summary.netChange, summary.typicalStandardError, summary.changeToError]; // [3, 0.1, 30]
+ * summary.samplingShare; // 0.004285714285714286 (to 1e-15; 0.01 / (7/3), the variance of the means)
  */
 export function summariseData(lineage: LineageView): DataSummary {
   const time = numbers(lineage.data.time);

@@ -80,7 +80,17 @@ export interface FitDocumentView {
   readonly [extra: string]: unknown;
 }
 
-/** Read a document produced by `fitDocument` (or parsed from fit.json) as the report's view of it. */
+/**
+ * Read a document produced by `fitDocument` (or parsed from fit.json) as the report's view of it.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const provenance = { tool: 'stratotrend', version: '0.1.0', inputs: [{ file: 'a.csv', sha256: '0' }], options: {} };
+ * const document = asFitDocument(fitDocument([fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })], provenance, [], 'classic'));
+ * document.lineages.length; // 1
+ * asFitDocument({ lineages: [] });
+ * // throws: not a stratotrend fit document: expected "provenance" and "lineages"
+ */
 export function asFitDocument(document: Record<string, unknown>): FitDocumentView {
   const view = document as unknown as FitDocumentView;
   if (!view || typeof view !== 'object' || !Array.isArray(view.lineages) || !view.provenance) {
@@ -89,7 +99,13 @@ export function asFitDocument(document: Record<string, unknown>): FitDocumentVie
   return view;
 }
 
-/** "section / trait", leaving out empty parts (same rule as the terminal table). */
+/**
+ * "section / trait", leaving out empty parts (same rule as the terminal table).
+ *
+ * @example
+ * lineageTitle({ section: 'A', trait: 'length' }); // 'A / length'
+ * lineageTitle({ section: '', trait: '' }); // 'lineage'
+ */
 export function lineageTitle(lineage: Pick<LineageView, 'section' | 'trait'>): string {
   const parts = [lineage.section, lineage.trait].filter((part) => part !== '');
   return parts.length === 0 ? 'lineage' : parts.join(' / ');

@@ -31,6 +31,9 @@ const shown = (value: number | null | undefined, digits = 4): string => (typeof 
  * ΔAICc, Akaike weight), the best model and, when it is a correlated model
  * with step correlations, each correlation in words with its 95% interval.
  * `figures` is the HTML of the group's figures, placed after its table.
+ *
+ * @example
+ * jointBlock({ groups: [] }, () => '').startsWith('<p class="methods" data-block="joint-methods">Traits measured in the same section'); // true
  */
 export function jointBlock(document: unknown, figures: (group: number) => string): string {
   const view = document as JointDocumentView;

@@ -39,7 +39,13 @@ export function reportFigure(about: Omit<ReportFigure, 'mime' | 'bytes' | 'width
 /** Lineage-document keys the report shows in its own blocks; anything else appears under "further results". */
 const shownKeys = new Set(['section', 'trait', 'horizons', 'time_unit', 'position_kind', 'transform', 'sampling_variance', 'best_model', 'models', 'data', 'smoothed', 'trait_unit', 'adequacy', 'rates', 'models_left_out', 'extrapolated_horizons', 'first_age', 'trend_test']);
 
-/** An image element holding the figure's bytes as a data URL (no file or network access when opened). */
+/**
+ * An image element holding the figure's bytes as a data URL (no file or network access when opened).
+ *
+ * @example
+ * const figure = reportFigure({ lineage: 0, kind: 'trajectory', caption: 'Means.' }, { mime: 'image/png', bytes: Uint8Array.of(1, 2, 3), width: 10, height: 5 });
+ * figureHtml(figure); // '<figure data-kind="trajectory"><img src="data:image/png;base64,AQID" width="10" height="5" style="width:min(100%, 40rem)" alt="Means."><figcaption>Means.</figcaption></figure>'
+ */
 export function figureHtml(figure: ReportFigure): string {
   const source = `data:${figure.mime};base64,${Buffer.from(figure.bytes).toString('base64')}`;
   // Shown at most 40rem wide: a print-resolution PNG is far wider than the screen.
@@ -55,6 +61,12 @@ function ageUnit(timeUnit: string): string {
  * The positions of the oldest and youngest horizons in words, each in its
  * own unit: ages in Ma (ka, …), heights and depths in metres with the ages the
  * age model gave them beside them, elapsed times in the time unit.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const provenance = { tool: 'stratotrend', version: '0.1.0', inputs: [{ file: 'a.csv', sha256: '0' }], options: {} };
+ * const document = asFitDocument(fitDocument([fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })], provenance, [], 'classic'));
+ * positionWords(document.lineages[0], summariseData(document.lineages[0])); // 'time 0 to 2 Myr'
  */
 export function positionWords(lineage: LineageView, summary: DataSummary): string {
   const first = summary.firstPosition;
@@ -76,6 +88,12 @@ export function positionWords(lineage: LineageView, summary: DataSummary): strin
  * One row per horizon, oldest first: position as read, age (heights and
  * depths: from the age model), n, mean, sd (root of the within-horizon
  * variance), and whether the age was extrapolated beyond the ties.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const provenance = { tool: 'stratotrend', version: '0.1.0', inputs: [{ file: 'a.csv', sha256: '0' }], options: {} };
+ * const document = asFitDocument(fitDocument([fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })], provenance, [], 'classic'));
+ * horizonTable(document.lineages[0]).startsWith('<details class="horizons"><summary>Horizons (3, oldest first)</summary>'); // true
  */
 export function horizonTable(lineage: LineageView): string {
   const { data } = lineage;
@@ -101,6 +119,12 @@ ${rows.join('\n')}
  * best model says in words, and how large sampling error is. Written from the
  * document only; it interprets nothing beyond the numbers (the cautions say
  * what support does not show).
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const provenance = { tool: 'stratotrend', version: '0.1.0', inputs: [{ file: 'a.csv', sha256: '0' }], options: {} };
+ * const document = asFitDocument(fitDocument([fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })], provenance, [], 'classic'));
+ * plainSummary(document.lineages[0], summariseData(document.lineages[0])); // 'Of the models fitted, the data clearly favour strict stasis (Akaike weight 1.00): in plain words, the trait mean did not change at all: the horizon means differ by sampling error alone.'
  */
 export function plainSummary(lineage: LineageView, summary: DataSummary): string {
   const best = lineage.models.find((model) => model.id === lineage.best_model);
@@ -134,7 +158,15 @@ function samplingWords(summary: DataSummary): string {
   return `Average sampling variance is ${formatNumber(share * 100, 3)}% of the variance among horizon means: ${judgement}.`;
 }
 
-/** Per-lineage warnings: estimates at bounds, models not compared, extrapolated ages, exact horizons. */
+/**
+ * Per-lineage warnings: estimates at bounds, models not compared, extrapolated ages, exact horizons.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const provenance = { tool: 'stratotrend', version: '0.1.0', inputs: [{ file: 'a.csv', sha256: '0' }], options: {} };
+ * const document = asFitDocument(fitDocument([fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })], provenance, [], 'classic'));
+ * lineageWarnings(document.lineages[0], summariseData(document.lineages[0]), document); // ['unbiased random walk: not compared: N - K - 1 = 0 <= 0 (too few horizons for K = 2)']
+ */
 export function lineageWarnings(lineage: LineageView, summary: DataSummary, document: FitDocumentView): string[] {
   const warnings: string[] = [];
   for (const model of lineage.models) {
@@ -193,6 +225,12 @@ ${cautions.length > 0 ? `<div class="cautions"><p><strong>Reading this result</s
  * model-support table, the conclusion with its cautions, the figures, the
  * estimates, and any further results the document carries for it (rates,
  * adequacy checks, … added by later analyses).
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const provenance = { tool: 'stratotrend', version: '0.1.0', inputs: [{ file: 'a.csv', sha256: '0' }], options: {} };
+ * const document = asFitDocument(fitDocument([fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })], provenance, [], 'classic'));
+ * lineageSection(document.lineages[0], 0, document, []).split('\n').slice(0, 2); // ['<section class="lineage" id="lineage-1-a-length" data-lineage="0">', '<h2>A / length</h2>']
  */
 export function lineageSection(lineage: LineageView, index: number, document: FitDocumentView, figures: readonly ReportFigure[]): string {
   const summary = summariseData(lineage);

@@ -18,7 +18,12 @@ export interface MethodsSentence {
 
 const citeMarker = /\[\[([^\]]+)\]\]/g;
 
-/** Every source a sentence cites, inline markers first, then the end citations. */
+/**
+ * Every source a sentence cites, inline markers first, then the end citations.
+ *
+ * @example
+ * sentenceKeys({ text: 'Models were fitted [[hunt2006]].', cites: ['burnhamAnderson2002'] }); // ['hunt2006', 'burnhamAnderson2002']
+ */
 export function sentenceKeys(sentence: Pick<MethodsSentence, 'text' | 'cites'>): string[] {
   const inline = [...sentence.text.matchAll(citeMarker)].flatMap((match) => match[1].split(';'));
   return uniqueKeys([...inline, ...sentence.cites]);
@@ -27,6 +32,10 @@ export function sentenceKeys(sentence: Pick<MethodsSentence, 'text' | 'cites'>):
 /**
  * Render a sentence, replacing citation markers with `cite(keys)` and
  * adding the end citations in parentheses.
+ *
+ * @example
+ * const sentence = { text: 'Models were fitted [[hunt2006]].', cites: [], paragraph: 'models' };
+ * renderSentence(sentence, (text) => text, (keys) => keys.map((key) => findReference(key).cite).join('; ')); // 'Models were fitted Hunt 2006.'
  */
 export function renderSentence(sentence: MethodsSentence, text: (plain: string) => string, cite: (keys: readonly string[]) => string): string {
   let output = '';
@@ -94,7 +103,15 @@ function plural(count: number, word: string, many = `${word}s`): string {
   return `${count} ${count === 1 ? word : many}`;
 }
 
-/** The models fitted anywhere in the document, in table order, first occurrence kept. */
+/**
+ * The models fitted anywhere in the document, in table order, first occurrence kept.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const provenance = { tool: 'stratotrend', version: '0.1.0', inputs: [{ file: 'a.csv', sha256: '0' }], options: {} };
+ * const document = asFitDocument(fitDocument([fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })], provenance, [], 'classic'));
+ * modelsFitted(document).map((model) => model.id); // ['strict-stasis', 'random-walk']
+ */
 export function modelsFitted(document: FitDocumentView): ModelView[] {
   const seen = new Map<string, ModelView>();
   for (const lineage of document.lineages) for (const model of lineage.models) if (!seen.has(model.id)) seen.set(model.id, model);
@@ -220,8 +237,10 @@ function ageModelSentences(document: FitDocumentView): MethodsSentence[] {
  * source. The wording is the project's own; the user is expected to adapt it.
  *
  * @example
- * methodsText(asFitDocument(runFit('sample-data/shell-length.csv', {}).document)).sentences[0].text;
- * // "Trait means of 2 lineages (2 sections, 1 trait; 40 horizons in all) were analysed with stratotrend 0.1.0."
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const provenance = { tool: 'stratotrend', version: '0.1.0', inputs: [{ file: 'a.csv', sha256: '0' }], options: {} };
+ * const document = asFitDocument(fitDocument([fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })], provenance, [], 'classic'));
+ * methodsText(document).sentences[0].text; // 'Trait means of 1 lineage (1 section, 1 trait, 3 horizons in all) were analysed with stratotrend 0.1.0.'
  */
 export function methodsText(document: FitDocumentView, analyses: AnalysesRun = {}): MethodsText {
   const { lineages, provenance } = document;
@@ -376,14 +395,30 @@ export function methodsText(document: FitDocumentView, analyses: AnalysesRun = {
   return { sentences, references };
 }
 
-/** The methods text as plain paragraphs with author–year citations, ready to paste. */
+/**
+ * The methods text as plain paragraphs with author–year citations, ready to paste.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const provenance = { tool: 'stratotrend', version: '0.1.0', inputs: [{ file: 'a.csv', sha256: '0' }], options: {} };
+ * const document = asFitDocument(fitDocument([fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })], provenance, [], 'classic'));
+ * methodsPlainText(methodsText(document)).startsWith('Trait means of 1 lineage (1 section, 1 trait, 3 horizons in all) were analysed with stratotrend 0.1.0. The trait was analysed on its original scale'); // true
+ */
 export function methodsPlainText(methods: MethodsText): string {
   return methodsParagraphs(methods)
     .map((sentences) => sentences.map((sentence) => renderSentence(sentence, (text) => text, (keys) => keys.map((key) => findReference(key).cite).join('; '))).join(' '))
     .join('\n\n');
 }
 
-/** The sentences grouped into their paragraphs, in order (empty paragraphs left out). */
+/**
+ * The sentences grouped into their paragraphs, in order (empty paragraphs left out).
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const provenance = { tool: 'stratotrend', version: '0.1.0', inputs: [{ file: 'a.csv', sha256: '0' }], options: {} };
+ * const document = asFitDocument(fitDocument([fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })], provenance, [], 'classic'));
+ * methodsParagraphs(methodsText(document)).map((paragraph) => paragraph[0].paragraph); // ['data', 'models', 'choice']
+ */
 export function methodsParagraphs(methods: MethodsText): MethodsSentence[][] {
   return (['data', 'models', 'choice'] as const)
     .map((paragraph) => methods.sentences.filter((sentence) => sentence.paragraph === paragraph))

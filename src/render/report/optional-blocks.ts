@@ -25,7 +25,12 @@ function cell(value: Json, field: string): string {
   return `<td>${escapeHtml(scalarText(value))}</td>`;
 }
 
-/** A table of a list of flat records: one column per scalar field, in order of first appearance. */
+/**
+ * A table of a list of flat records: one column per scalar field, in order of first appearance.
+ *
+ * @example
+ * recordsTable([{ a: 1, b: 'x' }], 't'); // '<table aria-label="t"><thead><tr><th>a</th><th>b</th></tr></thead><tbody>\n<tr><td class="number" data-field="a" data-value="1">1</td><td>x</td></tr>\n</tbody></table>'
+ */
 export function recordsTable(records: readonly Record<string, Json>[], label: string): string {
   const columns: string[] = [];
   for (const record of records) for (const [key, value] of Object.entries(record)) if (isScalar(value) && !columns.includes(key)) columns.push(key);
@@ -41,6 +46,10 @@ export function recordsTable(records: readonly Record<string, Json>[], label: st
  * records as tables, nested objects as sub-blocks. Used for results of
  * analyses whose exact layout the report does not know in advance, so a new
  * analysis shows up in the report as soon as its results are in the document.
+ *
+ * @example
+ * jsonBlock({ n: 3, name: 'x' }); // '<dl class="facts"><dt>n</dt><dd data-field="n" data-value="3">3</dd><dt>name</dt><dd>x</dd></dl>'
+ * jsonBlock([1, 2]); // '<p>1, 2</p>'
  */
 export function jsonBlock(value: Json, depth = 0): string {
   if (isScalar(value)) return `<p>${escapeHtml(scalarText(value))}</p>`;
@@ -66,6 +75,10 @@ function percent(value: unknown): string {
  * Adequacy checks of one lineage's best model, from the lineage document's
  * `adequacy` (`fit --adequacy`): one row per check with its statistic,
  * bootstrap p-value and verdict.
+ *
+ * @example
+ * adequacyBlock({ model: 'stasis', checks: [] }).startsWith('<p>The best-supported model (<code>stasis</code>) was checked'); // true
+ * adequacyBlock(null); // '<p>—</p>' (another layout: shown as plain JSON)
  */
 export function adequacyBlock(adequacy: Json): string {
   if (!isRecord(adequacy) || !Array.isArray(adequacy.checks)) return jsonBlock(adequacy);
@@ -107,6 +120,9 @@ ${body.join('\n')}
  * unit; darwins, haldanes; drift in trait per time unit, step variance in
  * trait² per time unit, Lynch's Delta per generation), the interval rates
  * folded away, and the caution about the time-scale dependence of rates.
+ *
+ * @example
+ * ratesBlock(null); // '<p>—</p>' (another layout: shown as plain JSON)
  */
 export function ratesBlock(rates: Json, lineage?: RatesUnits): string {
   if (!isRecord(rates)) return jsonBlock(rates);
@@ -148,6 +164,9 @@ export type LineageRenderer = (lineage: Record<string, unknown>) => string;
  * Akaike weights, the likelihood-ratio tests of shared against separate,
  * and the comparison's own caution. Other layouts fall back to
  * {@link jsonBlock}.
+ *
+ * @example
+ * comparisonDocumentBlock(null); // '<p>—</p>' (another layout: shown as plain JSON)
  */
 export function comparisonDocumentBlock(comparison: Json, renderLineage?: LineageRenderer): string {
   if (!isRecord(comparison) || !Array.isArray(comparison.traits)) return jsonBlock(comparison);
@@ -221,6 +240,10 @@ ${tests.map((test) => `<tr><td>${escapeHtml(String(test.model))}</td><td>${escap
  * simulated generator, the power grid, the false-trend rate, the smallest
  * drift reaching the target power, interval coverage on the design, notes
  * and the analysis's own caution.
+ *
+ * @example
+ * const grid = [{ drift: 0, drift_sd: 0, p_best: 0.1, p_weight: 0.05, p_lrt: 0.05 }];
+ * powerDocumentBlock({ grid, input: { lineage: 'A / length' }, settings: { replicates: 99 } }).split('\n')[0]; // '<h3>A / length</h3>'
  */
 export function powerDocumentBlock(power: Json): string {
   if (!isRecord(power) || !Array.isArray(power.grid)) return jsonBlock(power);
@@ -251,6 +274,12 @@ export function powerDocumentBlock(power: Json): string {
  * (position, age, age_sd, input line) and the sedimentation rate of each
  * stretch between consecutive ties, in m per time unit. Another layout falls
  * back to {@link jsonBlock}.
+ *
+ * @example
+ * const ties = [{ height: 0, age: 10, age_sd: 0, line: 2 }, { height: 50, age: 8, age_sd: 0, line: 3 }];
+ * const html = ageModelBlock({ file: 'ties.csv', position_kind: 'height', sections: [{ section: 'A', ties, sedimentation_rates: [{ rate: 25 }] }] }, 'Myr');
+ * html.includes('<td class="number" data-field="rate" data-value="25">25</td>'); // true
+ * html.includes('age (Ma)'); // true
  */
 export function ageModelBlock(ageModel: Json, timeUnit: string): string {
   if (!isRecord(ageModel) || !Array.isArray(ageModel.sections)) return jsonBlock(ageModel);

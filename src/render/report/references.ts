@@ -188,6 +188,9 @@ export function modelReferenceKeys(id: string): readonly string[] {
  * by first author and year.
  *
  * @throws TypeError for a key that is neither
+ *
+ * @example
+ * findReference('hunt2006').cite; // 'Hunt 2006'
  */
 export function findReference(key: string): Reference {
   const known = referenceCatalogue[key];
@@ -201,7 +204,12 @@ export function findReference(key: string): Reference {
   return { key, cite, entry };
 }
 
-/** Citation keys in the order they first appear, without repeats. */
+/**
+ * Citation keys in the order they first appear, without repeats.
+ *
+ * @example
+ * uniqueKeys(['hunt2006', 'burnhamAnderson2002', 'hunt2006']); // ['hunt2006', 'burnhamAnderson2002']
+ */
 export function uniqueKeys(keys: readonly string[]): string[] {
   return [...new Set(keys)];
 }

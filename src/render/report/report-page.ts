@@ -55,7 +55,15 @@ function citationLinks(keys: readonly string[]): string {
   return keys.map((key) => `<a href="#ref-${slug(key)}" class="cite">${escapeHtml(findReference(key).cite)}</a>`).join('; ');
 }
 
-/** The methods text as HTML paragraphs, citations linked to the reference list. */
+/**
+ * The methods text as HTML paragraphs, citations linked to the reference list.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const provenance = { tool: 'stratotrend', version: '0.1.0', inputs: [{ file: 'a.csv', sha256: '0' }], options: {} };
+ * const document = asFitDocument(fitDocument([fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })], provenance, [], 'classic'));
+ * methodsHtml(methodsText(document)).startsWith('<p data-block="methods-paragraph">Trait means of 1 lineage'); // true
+ */
 export function methodsHtml(methods: MethodsText): string {
   return methodsParagraphs(methods)
     .map((sentences) => `<p data-block="methods-paragraph">${sentences.map((sentence) => renderSentence(sentence, escapeHtml, citationLinks)).join(' ')}</p>`)
@@ -112,6 +120,9 @@ ${rows.map(([term, value]) => `<tr><td>${escapeHtml(term)}</td><td><code>${escap
  * What the power documents say was done (`power --json` layout; an entry
  * with `power_not_run` is a lineage whose analysis failed): which lineages
  * ran, replicates, seed, drift grid, where the step variance came from.
+ *
+ * @example
+ * powerRunOf([{ lineage: 'A', grid: [{ drift: 0 }], settings: { replicates: 99, seed: 1 } }]).drifts; // { lowest: 0, highest: 0, count: 1, unit: 'time unit' }
  */
 export function powerRunOf(documents: readonly unknown[]): PowerRun {
   type PowerView = { power_not_run?: string; lineage?: string; input?: { lineage?: string }; grid?: { drift?: number }[]; settings?: { replicates?: number; seed?: number; time_unit?: string; weight_threshold?: number }; generator?: { step_variance_source?: string }; lrt?: { level?: number } };
@@ -141,7 +152,10 @@ export function powerRunOf(documents: readonly unknown[]): PowerRun {
  * the run's warnings, the methods text with its references, and provenance.
  *
  * @example
- * const html = reportPage({ document: asFitDocument(run.document), run: { date: new Date().toISOString() } });
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const provenance = { tool: 'stratotrend', version: '0.1.0', inputs: [{ file: 'a.csv', sha256: '0' }], options: {} };
+ * const document = asFitDocument(fitDocument([fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })], provenance, [], 'classic'));
+ * const html = reportPage({ document, run: { date: '2026-01-01T00:00:00Z' } });
  * html.startsWith('<!DOCTYPE html>'); // true
  */
 export function reportPage(input: ReportInput): string {

@@ -7,7 +7,13 @@ const width = 640;
 const height = 520;
 const margin = { left: 78, right: 24, top: 40, bottom: 56 };
 
-/** Round tick values spanning [low, high], about `count` of them (1-2-5 steps, common practice). */
+/**
+ * Round tick values spanning [low, high], about `count` of them (1-2-5 steps, common practice).
+ *
+ * @example
+ * niceTicks(0, 10); // [0, 2, 4, 6, 8, 10]
+ * niceTicks(0.13, 0.91); // [0.2, 0.4, 0.6, 0.8]
+ */
 export function niceTicks(low: number, high: number, count = 5): number[] {
   if (!(high > low)) return [low];
   const raw = (high - low) / count;
@@ -29,6 +35,12 @@ export function niceTicks(low: number, high: number, count = 5): number[] {
  * the page (oldest at the bottom), each horizon's mean with its 95% sampling
  * interval (±1.96 √e_i), and the smoothed lineage mean under the best model
  * with its 95% band when the document has it. Deterministic text output.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const provenance = { tool: 'stratotrend', version: '0.1.0', inputs: [{ file: 'a.csv', sha256: '0' }], options: {} };
+ * const document = asFitDocument(fitDocument([fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })], provenance, [], 'classic'));
+ * sketchTrajectory(document.lineages[0]).svg.startsWith('<svg'); // true
  */
 export function sketchTrajectory(lineage: LineageView): { svg: string; width: number; height: number } {
   const time = lineage.data.time.map((value) => value ?? Number.NaN);

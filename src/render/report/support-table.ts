@@ -14,6 +14,12 @@ function numberCell(field: string, value: number | null, text: string): string {
  * models not compared shown as such. Every number cell carries
  * `data-field` and `data-value` (the exact double from fit.json) so the
  * page can be checked against the document.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const provenance = { tool: 'stratotrend', version: '0.1.0', inputs: [{ file: 'a.csv', sha256: '0' }], options: {} };
+ * const document = asFitDocument(fitDocument([fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })], provenance, [], 'classic'));
+ * supportTable(document.lineages[0]).startsWith('<table class="support" aria-label="model support">'); // true
  */
 export function supportTable(lineage: LineageView): string {
   const rows = lineage.models.map((model) => {
@@ -60,7 +66,12 @@ function unitOf(modelId: string, name: string, lineage: LineageView): string {
   return unitLabel(unit, lineage.time_unit, traitLabel);
 }
 
-/** A shift as a reader wants it: the horizon where the new segment starts, with its age (and height or depth). */
+/**
+ * A shift as a reader wants it: the horizon where the new segment starts, with its age (and height or depth).
+ *
+ * @example
+ * shiftWords({ index: 4, age: 12.5, height: 30 }, 0, { time_unit: 'Myr' }); // 'shift 1 at horizon 5 of the sequence, counted from the oldest (age 12.5 Ma, height 30 m)'
+ */
 export function shiftWords(shift: Record<string, unknown>, k: number, lineage: Pick<LineageView, 'time_unit'>): string {
   const unit = lineage.time_unit;
   const ageUnit = unit === 'Myr' ? 'Ma' : unit === 'kyr' ? 'ka' : `${unit} before present`;
@@ -91,7 +102,15 @@ function extraText(model: ModelView, lineage: LineageView): string {
 /** Parameters that place a shift (its time and the time of the horizon before it): shown as the shift's position, not as estimates with intervals. */
 const shiftPlacement = /^shift_\d+_(previous_)?time$/;
 
-/** The estimates of every fitted model with their 95% intervals, units and bound flags. */
+/**
+ * The estimates of every fitted model with their 95% intervals, units and bound flags.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
+ * const provenance = { tool: 'stratotrend', version: '0.1.0', inputs: [{ file: 'a.csv', sha256: '0' }], options: {} };
+ * const document = asFitDocument(fitDocument([fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })], provenance, [], 'classic'));
+ * estimatesTable(document.lineages[0]).includes('<tr data-model="strict-stasis"'); // true
+ */
 export function estimatesTable(lineage: LineageView): string {
   const rows: string[] = [];
   for (const model of lineage.models) {
