@@ -4,7 +4,7 @@ import type { WhitenedSums } from '../engine/kalman-filter.js';
 import type { Lineage } from '../lineage.js';
 import { axisIndexOf, type EvolutionModel, type ParameterSpec } from '../models/model.js';
 import type { LikelihoodEvaluator } from './evaluator.js';
-import { findRoot } from './optimise.js';
+import { profileCrossing } from './root-find.js';
 import { maximiseProcess, type ProcessMaximum } from './search.js';
 
 /**
@@ -117,9 +117,9 @@ export function parameterProfile(
 ): ParameterProfile {
   const model = evaluator.model;
   const lineage = evaluator.lineage;
-  const at = profileFunction(evaluator, name, adjusted, points);
   const axisIndex = axisIndexOf(model, name);
   if (axisIndex >= 0) {
+    const at = profileFunction(evaluator, name, adjusted, points);
     const evaluate = (process: number[]): number => {
       const sums = evaluator.whiten(process);
       return adjusted ? restrictedLogLik(sums) : profileLogLik(sums);
@@ -132,6 +132,11 @@ export function parameterProfile(
   const whole = locationSupremum(evaluator, name, adjusted);
   const best = maximiseProcess(whole, model.process, lineage, { points: Math.max(points, 24) });
   const estimates = model.toParameters(evaluator.details(best.process).coefficients, best.process, lineage);
+  // The trial values' searches start from the maximum (issue 14b: a cold nested search at the first trial value cost thousands
+  // of filter passes), unless it lies at a bound or limit: a polish started there stays on that face (ou's step_variance 0
+  // at the maximum, interior a little away from it), so the first trial value then gets the full search.
+  const interior = best.positions.every((position) => position === 'interior');
+  const at = profileFunction(evaluator, name, adjusted, points, interior ? { process: best.process } : undefined);
   return { at, maximum: best.logLik, maximiser: estimates[name], process: best.process };
 }
 
@@ -198,8 +203,18 @@ export function openTowardTrendLimit(evaluator: LikelihoodEvaluator, name: strin
  * trial value: the other process parameters maximised by the nested search
  * (`points` grid points per axis), the other location parameters profiled
  * by GLS or, when adjusted, integrated out.
+ *
+ * @param start for a location parameter, process values to warm-start the
+ *   search at the first trial value from (the maximum of the profile);
+ *   without it the first trial gets the full nested search
  */
-export function profileFunction(evaluator: LikelihoodEvaluator, name: string, adjusted: boolean, points = 12): (value: number) => number {
+export function profileFunction(
+  evaluator: LikelihoodEvaluator,
+  name: string,
+  adjusted: boolean,
+  points = 12,
+  start?: { readonly process: readonly number[] },
+): (value: number) => number {
   const model = evaluator.model;
   const lineage = evaluator.lineage;
   const axisIndex = axisIndexOf(model, name);
@@ -215,7 +230,8 @@ export function profileFunction(evaluator: LikelihoodEvaluator, name: string, ad
       return maximiseProcess(evaluate, model.process, lineage, { fixed: new Map([[axisIndex, value]]), points }).logLik;
     };
   }
-  let previous: number[] | null = null;
+  // Warm start from the previous trial value's maximum (the maximum itself before the first): grid (mostly kept by the evaluator) + polish.
+  let previous: readonly number[] | undefined = start?.process;
   return (value: number): number => {
     const evaluate = (process: number[]): number => {
       const { index, coefficient } = model.fixLocation(name, value, process, lineage);
@@ -223,8 +239,7 @@ export function profileFunction(evaluator: LikelihoodEvaluator, name: string, ad
       return fixedCoefficientLogLik(evaluator.whiten(process), index, coefficient - evaluator.centre * constant[index], adjusted);
     };
     if (model.process.length === 0) return evaluate([]);
-    // Warm start from the previous trial value's maximum: grid (mostly kept by the evaluator) + simplex polish.
-    const found = maximiseProcess(evaluate, model.process, lineage, { points, start: previous ?? undefined });
+    const found = maximiseProcess(evaluate, model.process, lineage, { points, start: previous });
     previous = found.process;
     return found.logLik;
   };
@@ -232,25 +247,25 @@ export function profileFunction(evaluator: LikelihoodEvaluator, name: string, ad
 
 /**
  * Interval of a location parameter where a profile stays above `cutoff`:
- * steps out from `start` by doubling multiples of `scale` until the profile
- * falls below the cut-off, then Brent's root finder. An end that is never
- * crossed is open (null, `AtBound` true).
+ * from `start` (the profile's maximiser, where it is `peak`) each end by
+ * {@link profileCrossing}, the first trial value where the quadratic with
+ * the curvature 1/scale^2 of the GLS standard error `scale` falls to the
+ * cut-off (issue 14b: about half the trial values of stepping out by
+ * doubling multiples of `scale`, which this replaced, with the same ends to
+ * the root finder's tolerance). An end not crossed within 2^59 scales of
+ * the start is open (null, `AtBound` true).
+ *
+ * @param peak the profile at `start` (its maximum); default: evaluated
  */
-export function locationEnds(at: (value: number) => number, start: number, scale: number, cutoff: number): IntervalEnds {
+export function locationEnds(at: (value: number) => number, start: number, scale: number, cutoff: number, peak?: number): IntervalEnds {
   const gap = (value: number): number => at(value) - cutoff;
+  const fromGap = peak !== undefined && Number.isFinite(peak) ? peak - cutoff : gap(start);
   const end = (direction: 1 | -1): number | null => {
-    let inside = start;
-    let step = scale;
-    for (let attempt = 0; attempt < 60; attempt++) {
-      const outside = start + direction * step;
-      if (gap(outside) < 0) {
-        const root = findRoot(gap, Math.min(inside, outside), Math.max(inside, outside), 1e-12);
-        return Number.isFinite(root) ? root : null;
-      }
-      inside = outside;
-      step *= 2;
-    }
-    return null;
+    // Not above the cut-off at the start (a profile maximum that was not found): no interval around it, as before.
+    if (!(fromGap > 0)) return null;
+    const firstTrial = start + direction * Math.sqrt(2 * fromGap) * scale;
+    const root = profileCrossing(gap, start, fromGap, firstTrial, { tolerance: 1e-12, limit: start + direction * scale * 2 ** 59, maxSteps: 120 });
+    return root !== null && Number.isFinite(root) ? root : null;
   };
   const lower = end(-1);
   const upper = end(1);
@@ -312,7 +327,7 @@ export function intervalsByProfile(
     }
     const profile = parameterProfile(evaluator, name, request.adjusted);
     const scale = locationScale(evaluator, name, profile.process, profile.maximiser);
-    result[name] = openTowardTrendLimit(evaluator, name, locationEnds(profile.at, profile.maximiser, scale, profile.maximum - drop), profile.maximum - drop, request.adjusted);
+    result[name] = openTowardTrendLimit(evaluator, name, locationEnds(profile.at, profile.maximiser, scale, profile.maximum - drop, profile.maximum), profile.maximum - drop, request.adjusted);
   }
   return result;
 }
