@@ -4,7 +4,7 @@ import { LikelihoodEvaluator } from './evaluator.js';
 import { fitOverConfigurations, shiftRecords } from './fit-configurations.js';
 import { unfittedFit, type FitOptions, type ModelFit, type ParameterEstimate } from './fit-results.js';
 import { replaceIntervals, type IntervalMethod } from './intervals-method.js';
-import { locationEnds, openTowardTrendLimit, parameterEnds } from './intervals.js';
+import { locationEnds, openTowardTrendLimit, parameterEnds, trendLimitSide, WarmStarts } from './intervals.js';
 import { chiSquare1At95 } from './model-choice.js';
 import { profileCrossing } from './root-find.js';
 import { maximiseProcess, type AxisPosition } from './search.js';
@@ -376,13 +376,13 @@ function locationInterval(
   cutoff: number,
   gridPoints: number | undefined,
 ): IntervalEnds {
-  // Warm start from the previous trial value's maximum (search.ts: grid, mostly kept by the evaluator, + simplex polish).
-  let previous: readonly number[] = best;
+  // Warm start from the maximum at the nearest trial value on the estimate's side (WarmStarts; search.ts: grid, mostly kept by the evaluator, + polish).
+  const warm = new WarmStarts(model, lineage, { value: estimate, process: best });
   const profileAt = (value: number): number => {
     const evaluate = (process: number[]): number => evaluator.profileWithLocation(name, value, process);
     if (model.process.length === 0) return evaluate([]);
-    const found = maximiseProcess(evaluate, model.process, lineage, { points: Math.min(gridPoints ?? 12, 12), start: previous });
-    previous = found.process;
+    const found = maximiseProcess(evaluate, model.process, lineage, { points: Math.min(gridPoints ?? 12, 12), start: warm.startFor(value) });
+    warm.add(value, found.process);
     return found.logLik;
   };
   const index = model.fixLocation(name, estimate, best, lineage).index;
@@ -392,5 +392,5 @@ function locationInterval(
   const perUnit = coefficientPerUnit(model, name, best, lineage);
   if (perUnit > 0) scale /= perUnit;
   if (!(scale > 0) || !Number.isFinite(scale)) scale = Math.max(1e-8, Math.abs(estimate) * 1e-3);
-  return openTowardTrendLimit(evaluator, name, locationEnds(profileAt, estimate, scale, cutoff), cutoff, false);
+  return openTowardTrendLimit(evaluator, name, locationEnds(profileAt, estimate, scale, cutoff, cutoff + profileDrop, trendLimitSide(evaluator, name, cutoff, false)), cutoff, false);
 }

@@ -132,11 +132,8 @@ export function parameterProfile(
   const whole = locationSupremum(evaluator, name, adjusted);
   const best = maximiseProcess(whole, model.process, lineage, { points: Math.max(points, 24) });
   const estimates = model.toParameters(evaluator.details(best.process).coefficients, best.process, lineage);
-  // The trial values' searches start from the maximum (issue 14b: a cold nested search at the first trial value cost thousands
-  // of filter passes), unless it lies at a bound or limit: a polish started there stays on that face (ou's step_variance 0
-  // at the maximum, interior a little away from it), so the first trial value then gets the full search.
-  const interior = best.positions.every((position) => position === 'interior');
-  const at = profileFunction(evaluator, name, adjusted, points, interior ? { process: best.process } : undefined);
+  // The trial values' searches start from the maximum (issue 14b: a cold nested search at the first trial value cost thousands of filter passes).
+  const at = profileFunction(evaluator, name, adjusted, points, { value: estimates[name], process: best.process });
   return { at, maximum: best.logLik, maximiser: estimates[name], process: best.process };
 }
 
@@ -187,15 +184,26 @@ export function parameterEnds(spec: ParameterSpec | undefined, lineage: Lineage,
  * @param cutoff the profile value that defines the interval
  */
 export function openTowardTrendLimit(evaluator: LikelihoodEvaluator, name: string, ends: IntervalEnds, cutoff: number, adjusted: boolean): IntervalEnds {
+  const side = trendLimitSide(evaluator, name, cutoff, adjusted);
+  if (side > 0) return { ...ends, upper: null, upperAtBound: true };
+  if (side < 0) return { ...ends, lower: null, lowerAtBound: true };
+  return ends;
+}
+
+/**
+ * The side (1 upper, -1 lower, 0 neither) on which {@link openTowardTrendLimit}
+ * opens the interval of `name`. Known before the ends are searched, so the
+ * search can skip that end (issue 14b: ou's optimum then walks out to 2^59
+ * standard errors on one side only); the ends come out the same.
+ */
+export function trendLimitSide(evaluator: LikelihoodEvaluator, name: string, cutoff: number, adjusted: boolean): 1 | -1 | 0 {
   const model = evaluator.model;
   const runaway = model.parameters.find((spec) => spec.name === name)?.runaway;
-  if (!runaway || model.process[0]?.limitNames?.[0] !== runaway.limit || !model.process[0].allowZero) return ends;
+  if (!runaway || model.process[0]?.limitNames?.[0] !== runaway.limit || !model.process[0].allowZero) return 0;
   const limit = maximiseProcess(locationSupremum(evaluator, name, adjusted), model.process, evaluator.lineage, { fixed: new Map([[0, 0]]), points: 24 });
-  if (!(limit.logLik >= cutoff)) return ends;
+  if (!(limit.logLik >= cutoff)) return 0;
   const drift = evaluator.details(limit.process).coefficients[runaway.coefficient];
-  if (drift > 0) return { ...ends, upper: null, upperAtBound: true };
-  if (drift < 0) return { ...ends, lower: null, lowerAtBound: true };
-  return ends;
+  return drift > 0 ? 1 : drift < 0 ? -1 : 0;
 }
 
 /**
@@ -204,8 +212,8 @@ export function openTowardTrendLimit(evaluator: LikelihoodEvaluator, name: strin
  * (`points` grid points per axis), the other location parameters profiled
  * by GLS or, when adjusted, integrated out.
  *
- * @param start for a location parameter, process values to warm-start the
- *   search at the first trial value from (the maximum of the profile);
+ * @param start for a location parameter, its maximiser and the process
+ *   values there, to warm-start the searches from ({@link WarmStarts});
  *   without it the first trial gets the full nested search
  */
 export function profileFunction(
@@ -213,7 +221,7 @@ export function profileFunction(
   name: string,
   adjusted: boolean,
   points = 12,
-  start?: { readonly process: readonly number[] },
+  start?: { readonly value: number; readonly process: readonly number[] },
 ): (value: number) => number {
   const model = evaluator.model;
   const lineage = evaluator.lineage;
@@ -230,8 +238,7 @@ export function profileFunction(
       return maximiseProcess(evaluate, model.process, lineage, { fixed: new Map([[axisIndex, value]]), points }).logLik;
     };
   }
-  // Warm start from the previous trial value's maximum (the maximum itself before the first): grid (mostly kept by the evaluator) + polish.
-  let previous: readonly number[] | undefined = start?.process;
+  const warm = new WarmStarts(model, lineage, start);
   return (value: number): number => {
     const evaluate = (process: number[]): number => {
       const { index, coefficient } = model.fixLocation(name, value, process, lineage);
@@ -239,10 +246,90 @@ export function profileFunction(
       return fixedCoefficientLogLik(evaluator.whiten(process), index, coefficient - evaluator.centre * constant[index], adjusted);
     };
     if (model.process.length === 0) return evaluate([]);
-    const found = maximiseProcess(evaluate, model.process, lineage, { points, start: previous });
-    previous = found.process;
+    let found = maximiseProcess(evaluate, model.process, lineage, { points, start: warm.startFor(value) });
+    const second = warm.centreStart();
+    if (second) {
+      const other = maximiseProcess(evaluate, model.process, lineage, { points, start: second });
+      if (other.logLik > found.logLik) found = other;
+    }
+    warm.add(value, found.process);
     return found.logLik;
   };
+}
+
+/**
+ * Warm starts of a location profile's trial values (issue 14b): the search
+ * at a new value starts from the maximiser at the nearest value tried so
+ * far on the side of the profile's maximum (continuation outward from the
+ * maximum), or, when there is none on that side, from the nearest value.
+ * Starting from the previous trial instead, a trial beyond the end (which
+ * the root finder's bracket needs) could hand the next trials, back inside,
+ * a lower local maximum of the process parameters: the profile would then
+ * depend on the order of the trials, and an end found on those lower values
+ * would lie inside the true interval. A process value at its bound 0 starts
+ * from the geometric middle of its range instead: a polish started at 0
+ * stays on that face (ou's step_variance 0 at the maximum, small but
+ * positive a little away from it), while the warm search's grid still
+ * holds 0 itself.
+ */
+export class WarmStarts {
+  private readonly values: number[] = [];
+  private readonly processes: Array<readonly number[]> = [];
+  private centre: number;
+  private readonly model: EvolutionModel;
+  private readonly lineage: Lineage;
+
+  /** @param start the profile's maximiser and the process values there (omitted: the first trial gets the full search) */
+  constructor(model: EvolutionModel, lineage: Lineage, start?: { readonly value: number; readonly process: readonly number[] }) {
+    this.model = model;
+    this.lineage = lineage;
+    this.centre = start?.value ?? Number.NaN;
+    if (start && Number.isFinite(start.value)) this.add(start.value, start.process);
+  }
+
+  /** Keep the process values that maximised the profile at `value`. */
+  add(value: number, process: readonly number[]): void {
+    if (!Number.isFinite(value)) return;
+    this.values.push(value);
+    this.processes.push(process);
+    if (Number.isNaN(this.centre)) this.centre = value;
+  }
+
+  /**
+   * The maximum's process values (0 moved to the middle of its range), a second start that
+   * `profileFunction` tries beside {@link WarmStarts.startFor}, keeping the higher of the two
+   * maxima: on the locality sample's ou optimum the nearest-inside start alone stopped in a lower
+   * local maximum (an end 2.6e-4 inside the true one).
+   */
+  centreStart(): readonly number[] | undefined {
+    return this.processes.length > 0 ? this.processes[0].map((value, level) => {
+      const axis = this.model.process[level];
+      if (value !== 0 || !axis?.allowZero) return value;
+      const [lower, upper] = axis.range(this.lineage, this.processes[0].slice(0, level));
+      return Math.sqrt(lower * upper);
+    }) : undefined;
+  }
+
+  /** Where the search at `value` starts (undefined before anything is kept: the full search). */
+  startFor(value: number): readonly number[] | undefined {
+    let best = -1;
+    let bestInside = -1;
+    for (let k = 0; k < this.values.length; k++) {
+      const distance = Math.abs(this.values[k] - value);
+      if (best < 0 || distance < Math.abs(this.values[best] - value)) best = k;
+      const towardCentre = (this.values[k] - value) * (this.centre - value) >= 0;
+      if (towardCentre && (bestInside < 0 || distance < Math.abs(this.values[bestInside] - value))) bestInside = k;
+    }
+    const chosen = bestInside >= 0 ? bestInside : best;
+    if (chosen < 0) return undefined;
+    const process = this.processes[chosen];
+    return process.map((value, level) => {
+      const axis = this.model.process[level];
+      if (value !== 0 || !axis?.allowZero) return value;
+      const [lower, upper] = axis.range(this.lineage, process.slice(0, level));
+      return Math.sqrt(lower * upper);
+    });
+  }
 }
 
 /**
@@ -256,11 +343,13 @@ export function profileFunction(
  * the start is open (null, `AtBound` true).
  *
  * @param peak the profile at `start` (its maximum); default: evaluated
+ * @param open a side (1 upper, -1 lower) known to be open, not searched ({@link trendLimitSide})
  */
-export function locationEnds(at: (value: number) => number, start: number, scale: number, cutoff: number, peak?: number): IntervalEnds {
+export function locationEnds(at: (value: number) => number, start: number, scale: number, cutoff: number, peak?: number, open: 1 | -1 | 0 = 0): IntervalEnds {
   const gap = (value: number): number => at(value) - cutoff;
   const fromGap = peak !== undefined && Number.isFinite(peak) ? peak - cutoff : gap(start);
   const end = (direction: 1 | -1): number | null => {
+    if (direction === open) return null;
     // Not above the cut-off at the start (a profile maximum that was not found): no interval around it, as before.
     if (!(fromGap > 0)) return null;
     const firstTrial = start + direction * Math.sqrt(2 * fromGap) * scale;
@@ -327,7 +416,8 @@ export function intervalsByProfile(
     }
     const profile = parameterProfile(evaluator, name, request.adjusted);
     const scale = locationScale(evaluator, name, profile.process, profile.maximiser);
-    result[name] = openTowardTrendLimit(evaluator, name, locationEnds(profile.at, profile.maximiser, scale, profile.maximum - drop, profile.maximum), profile.maximum - drop, request.adjusted);
+    const open = trendLimitSide(evaluator, name, profile.maximum - drop, request.adjusted);
+    result[name] = openTowardTrendLimit(evaluator, name, locationEnds(profile.at, profile.maximiser, scale, profile.maximum - drop, profile.maximum, open), profile.maximum - drop, request.adjusted);
   }
   return result;
 }

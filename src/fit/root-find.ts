@@ -79,7 +79,7 @@ export function profileCrossing(gap: (x: number) => number, from: number, fromGa
     }
     inside = trial;
     insideGap = trialGap;
-    trial = from + direction * Math.max(next, (step === 0 ? 1.1 : 2) * distance);
+    trial = from + direction * Math.max(next, (step === 0 ? 1.1 : largestGrowth) * distance);
     if (beyond(trial)) trial = limit;
   }
   return null;
