@@ -54,7 +54,7 @@ const overshoot = 0.05;
  *
  * @example
  * // A normal-mean profile -(x - 1)^2 / 2 against the 95% cut-off 1.920729: the ends are 1 ± 1.959964.
- * profileCrossing((x) => -((x - 1) ** 2) / 2 + 1.920729410347062, 1, 1.920729410347062, 2, { tolerance: 1e-12 }); // 2.959963984540054
+ * profileCrossing((x) => -((x - 1) ** 2) / 2 + 1.920729410347062, 1, 1.920729410347062, 2, { tolerance: 1e-12 }); // 2.9599639845406585
  */
 export function profileCrossing(gap: (x: number) => number, from: number, fromGap: number, firstTrial: number, options: CrossingOptions): number | null {
   const direction = firstTrial >= from ? 1 : -1;
@@ -91,6 +91,9 @@ export function profileCrossing(gap: (x: number) => number, from: number, fromGa
  * to the tolerance of {@link CrossingOptions}. The same iteration as
  * Brent (1973), chapter 4, which `findRoot` in optimise.ts follows; here the
  * two end values are not evaluated again.
+ *
+ * @example
+ * bracketedRoot((x) => 2 - x * x, 0, 2, 2, -2, 1e-15); // 1.414213562373095
  */
 export function bracketedRoot(f: (x: number) => number, inside: number, insideValue: number, outside: number, outsideValue: number, tolerance: number, maxIterations = 200): number {
   let a = inside;
