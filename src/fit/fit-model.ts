@@ -4,7 +4,7 @@ import { LikelihoodEvaluator } from './evaluator.js';
 import { fitOverConfigurations, shiftRecords } from './fit-configurations.js';
 import { unfittedFit, type FitOptions, type ModelFit, type ParameterEstimate } from './fit-results.js';
 import { replaceIntervals, type IntervalMethod } from './intervals-method.js';
-import { locationEnds, openTowardTrendLimit, parameterEnds, trendLimitSide, WarmStarts } from './intervals.js';
+import { locationEnds, parameterEnds, trendLimitSide, WarmStarts } from './intervals.js';
 import { chiSquare1At95 } from './model-choice.js';
 import { profileCrossing } from './root-find.js';
 import { maximiseProcess, type AxisPosition } from './search.js';
@@ -381,7 +381,7 @@ function locationInterval(
   const profileAt = (value: number): number => {
     const evaluate = (process: number[]): number => evaluator.profileWithLocation(name, value, process);
     if (model.process.length === 0) return evaluate([]);
-    const found = maximiseProcess(evaluate, model.process, lineage, { points: Math.min(gridPoints ?? 12, 12), start: warm.startFor(value) });
+    const found = maximiseProcess(evaluate, model.process, lineage, { points: Math.min(gridPoints ?? 12, 12), start: warm.startsFor(value)[0] });
     warm.add(value, found.process);
     return found.logLik;
   };
@@ -392,5 +392,6 @@ function locationInterval(
   const perUnit = coefficientPerUnit(model, name, best, lineage);
   if (perUnit > 0) scale /= perUnit;
   if (!(scale > 0) || !Number.isFinite(scale)) scale = Math.max(1e-8, Math.abs(estimate) * 1e-3);
-  return openTowardTrendLimit(evaluator, name, locationEnds(profileAt, estimate, scale, cutoff, cutoff + profileDrop, trendLimitSide(evaluator, name, cutoff, false)), cutoff, false);
+  // The side the trend limit opens (openTowardTrendLimit) is known first and not searched.
+  return locationEnds(profileAt, estimate, scale, cutoff, cutoff + profileDrop, trendLimitSide(evaluator, name, cutoff, false));
 }

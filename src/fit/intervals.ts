@@ -246,12 +246,13 @@ export function profileFunction(
       return fixedCoefficientLogLik(evaluator.whiten(process), index, coefficient - evaluator.centre * constant[index], adjusted);
     };
     if (model.process.length === 0) return evaluate([]);
-    let found = maximiseProcess(evaluate, model.process, lineage, { points, start: warm.startFor(value) });
-    const second = warm.centreStart();
-    if (second) {
-      const other = maximiseProcess(evaluate, model.process, lineage, { points, start: second });
-      if (other.logLik > found.logLik) found = other;
+    // The higher of the warm searches from the nearest trial on the maximum's side and from the maximum (WarmStarts).
+    let found: ProcessMaximum | null = null;
+    for (const from of warm.startsFor(value)) {
+      const candidate = maximiseProcess(evaluate, model.process, lineage, { points, start: from });
+      if (found === null || candidate.logLik > found.logLik) found = candidate;
     }
+    found ??= maximiseProcess(evaluate, model.process, lineage, { points });
     warm.add(value, found.process);
     return found.logLik;
   };
@@ -296,22 +297,14 @@ export class WarmStarts {
   }
 
   /**
-   * The maximum's process values (0 moved to the middle of its range), a second start that
-   * `profileFunction` tries beside {@link WarmStarts.startFor}, keeping the higher of the two
-   * maxima: on the locality sample's ou optimum the nearest-inside start alone stopped in a lower
-   * local maximum (an end 2.6e-4 inside the true one).
+   * Where the searches at `value` start: the maximiser at the nearest value kept on the side of
+   * the profile's maximum (the nearest of all when there is none on that side), and the maximum's
+   * own when that is another; zeros moved to the middle of their range. Empty before anything is
+   * kept (the full search then). `profileFunction` keeps the higher of the maxima found from
+   * them: from the nearest-inside start alone the locality sample's ou optimum stopped in a
+   * lower local maximum (an end 2.6e-4 inside the true one).
    */
-  centreStart(): readonly number[] | undefined {
-    return this.processes.length > 0 ? this.processes[0].map((value, level) => {
-      const axis = this.model.process[level];
-      if (value !== 0 || !axis?.allowZero) return value;
-      const [lower, upper] = axis.range(this.lineage, this.processes[0].slice(0, level));
-      return Math.sqrt(lower * upper);
-    }) : undefined;
-  }
-
-  /** Where the search at `value` starts (undefined before anything is kept: the full search). */
-  startFor(value: number): readonly number[] | undefined {
+  startsFor(value: number): Array<readonly number[]> {
     let best = -1;
     let bestInside = -1;
     for (let k = 0; k < this.values.length; k++) {
@@ -321,8 +314,11 @@ export class WarmStarts {
       if (towardCentre && (bestInside < 0 || distance < Math.abs(this.values[bestInside] - value))) bestInside = k;
     }
     const chosen = bestInside >= 0 ? bestInside : best;
-    if (chosen < 0) return undefined;
-    const process = this.processes[chosen];
+    if (chosen < 0) return [];
+    return (chosen === 0 ? [0] : [chosen, 0]).map((k) => this.awayFromZero(this.processes[k]));
+  }
+
+  private awayFromZero(process: readonly number[]): number[] {
     return process.map((value, level) => {
       const axis = this.model.process[level];
       if (value !== 0 || !axis?.allowZero) return value;
@@ -416,8 +412,9 @@ export function intervalsByProfile(
     }
     const profile = parameterProfile(evaluator, name, request.adjusted);
     const scale = locationScale(evaluator, name, profile.process, profile.maximiser);
+    // The side the trend limit opens (openTowardTrendLimit) is known first and not searched.
     const open = trendLimitSide(evaluator, name, profile.maximum - drop, request.adjusted);
-    result[name] = openTowardTrendLimit(evaluator, name, locationEnds(profile.at, profile.maximiser, scale, profile.maximum - drop, profile.maximum, open), profile.maximum - drop, request.adjusted);
+    result[name] = locationEnds(profile.at, profile.maximiser, scale, profile.maximum - drop, profile.maximum, open);
   }
   return result;
 }
