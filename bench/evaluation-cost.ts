@@ -40,6 +40,8 @@ export interface EvaluationCost {
   /** CPU nanoseconds of one bare filter evaluation (the unit). */
   readonly unitNanoseconds: number;
   readonly rows: readonly EvaluationCostRow[];
+  /** Filter passes per classic model (median over the lineages) with the default intervals, profile intervals and none: where the interval work goes (issue 14b). */
+  readonly filterPasses?: ReadonlyArray<{ readonly model: string; readonly defaultIntervals: number; readonly profileIntervals: number; readonly noIntervals: number }>;
 }
 
 /**
@@ -151,7 +153,11 @@ export async function measureEvaluationCost(mode: CostMode): Promise<EvaluationC
   const powerMs = await cpuMillisecondsAsync(() => powerAnalysis(plan, runner), settings.repeats);
   add(`power, ${replicates} replicates: null set (two models) + drift 0 (five models), no coverage`, powerMs, null, replicateTarget);
   if (sink === 42) process.stdout.write('');
-  return { horizons, unitNanoseconds, rows };
+  const passes = (options: Parameters<typeof fitLineage>[2]): number[][] => lineages.map((lineage) => fitLineage(lineage, classicModels, options).models.map((model) => model.evaluations));
+  const medianPasses = (table: number[][], k: number): number => median(table.map((row) => row[k]));
+  const [byDefault, byProfile, byNone] = [passes(intervalOptions(undefined)), passes({ intervals: true, intervalMethod: 'profile' }), passes({ intervals: false })];
+  const filterPasses = classicModels.map((model, k) => ({ model: model.id, defaultIntervals: medianPasses(byDefault, k), profileIntervals: medianPasses(byProfile, k), noIntervals: medianPasses(byNone, k) }));
+  return { horizons, unitNanoseconds, rows, filterPasses };
 }
 
 /** The table as text lines. */
@@ -169,6 +175,10 @@ export function evaluationCostLines(cost: EvaluationCost): string[] {
   ]);
   const widths = header.map((_, j) => Math.max(...[header, ...body].map((row) => row[j].length)));
   for (const row of [header, ...body]) lines.push('  ' + row.map((cell, j) => (j === 0 ? cell.padEnd(widths[j]) : cell.padStart(widths[j]))).join('  '));
+  if (cost.filterPasses) {
+    lines.push('  filter passes per model (median over the lineages), default intervals / profile intervals / none:');
+    lines.push('    ' + cost.filterPasses.map((entry) => `${entry.model} ${[entry.defaultIntervals, entry.profileIntervals, entry.noIntervals].map((count) => count.toLocaleString('en-US')).join(' / ')}`).join('; '));
+  }
   return lines;
 }
 

@@ -4,9 +4,9 @@ import { LikelihoodEvaluator } from './evaluator.js';
 import { fitOverConfigurations, shiftRecords } from './fit-configurations.js';
 import { unfittedFit, type FitOptions, type ModelFit, type ParameterEstimate } from './fit-results.js';
 import { replaceIntervals, type IntervalMethod } from './intervals-method.js';
-import { locationEnds, openTowardTrendLimit, parameterEnds } from './intervals.js';
+import { locationEnds, parameterEnds, trendLimitSide, WarmStarts } from './intervals.js';
 import { chiSquare1At95 } from './model-choice.js';
-import { findRoot } from './optimise.js';
+import { profileCrossing } from './root-find.js';
 import { maximiseProcess, type AxisPosition } from './search.js';
 
 // The results types live in fit-results.ts (so fit-configurations.ts and the interval methods need not import this file); re-exported for the code that imports them from here.
@@ -320,27 +320,21 @@ export function processInterval(
   const [rangeLower, rangeUpper] = axis.range(lineage, best.slice(0, axisIndex));
   const estimate = best[axisIndex];
   const gap = (logValue: number): number => profileAt(Math.exp(logValue)) - cutoff;
+  // Each end by profileCrossing (root-find.ts) on the ln scale: first trial a factor 4 from the estimate, then quadratic steps
+  // aimed past the cut-off and Brent on the bracket (issue 14b; the same ends as stepping out by factors of 4, with fewer trials).
+  const atBest = evaluate([...best]) - cutoff;
   // Lower end.
   let lower: number | null;
   let lowerAtBound = false;
   const lowestValue = axis.allowZero ? 0 : rangeLower;
+  const lowerBound = axis.allowZero ? 0 : axis.limitNames?.[0] ? 0 : rangeLower;
   if (estimate <= rangeLower * (1 + 1e-8) || profileAt(lowestValue) >= cutoff) {
-    lower = axis.allowZero ? 0 : axis.limitNames?.[0] ? 0 : rangeLower;
+    lower = lowerBound;
     lowerAtBound = true;
   } else {
-    let inside = Math.log(estimate);
-    let outside = inside;
-    let found = false;
-    for (let step = 0; step < 80; step++) {
-      outside = Math.max(Math.log(rangeLower), outside - Math.LN2 * 2);
-      if (gap(outside) < 0) {
-        found = true;
-        break;
-      }
-      inside = outside;
-      if (outside <= Math.log(rangeLower)) break;
-    }
-    if (found) lower = Math.exp(findRoot(gap, outside, inside, 1e-10));
+    const from = Math.log(estimate);
+    const root = profileCrossing(gap, from, atBest, Math.max(Math.log(rangeLower), from - Math.LN2 * 2), { tolerance: 1e-10, limit: Math.log(rangeLower), maxSteps: 80 });
+    if (root !== null) lower = Math.exp(root);
     else {
       lower = axis.allowZero ? 0 : rangeLower;
       lowerAtBound = true;
@@ -354,19 +348,9 @@ export function processInterval(
     upper = null;
     upperAtBound = true;
   } else {
-    let inside = estimate > 0 ? Math.log(estimate) : Math.log(rangeLower);
-    let outside = inside;
-    let found = false;
-    for (let step = 0; step < 200; step++) {
-      outside = Math.min(ceiling, outside + Math.LN2 * 2);
-      if (gap(outside) < 0) {
-        found = true;
-        break;
-      }
-      inside = outside;
-      if (outside >= ceiling) break;
-    }
-    if (found) upper = Math.exp(findRoot(gap, inside, outside, 1e-10));
+    const from = estimate > 0 ? Math.log(estimate) : Math.log(rangeLower);
+    const root = profileCrossing(gap, from, atBest, Math.min(ceiling, from + Math.LN2 * 2), { tolerance: 1e-10, limit: ceiling, maxSteps: 200 });
+    if (root !== null) upper = Math.exp(root);
     else {
       upper = null;
       upperAtBound = true;
@@ -392,13 +376,13 @@ function locationInterval(
   cutoff: number,
   gridPoints: number | undefined,
 ): IntervalEnds {
-  // Warm start from the previous trial value's maximum (search.ts: grid, mostly kept by the evaluator, + simplex polish).
-  let previous: readonly number[] = best;
+  // Warm start from the maximum at the nearest trial value on the estimate's side (WarmStarts; search.ts: grid, mostly kept by the evaluator, + polish).
+  const warm = new WarmStarts(model, lineage, { value: estimate, process: best });
   const profileAt = (value: number): number => {
     const evaluate = (process: number[]): number => evaluator.profileWithLocation(name, value, process);
     if (model.process.length === 0) return evaluate([]);
-    const found = maximiseProcess(evaluate, model.process, lineage, { points: Math.min(gridPoints ?? 12, 12), start: previous });
-    previous = found.process;
+    const found = maximiseProcess(evaluate, model.process, lineage, { points: Math.min(gridPoints ?? 12, 12), start: warm.startsFor(value)[0] });
+    warm.add(value, found.process);
     return found.logLik;
   };
   const index = model.fixLocation(name, estimate, best, lineage).index;
@@ -408,5 +392,6 @@ function locationInterval(
   const perUnit = coefficientPerUnit(model, name, best, lineage);
   if (perUnit > 0) scale /= perUnit;
   if (!(scale > 0) || !Number.isFinite(scale)) scale = Math.max(1e-8, Math.abs(estimate) * 1e-3);
-  return openTowardTrendLimit(evaluator, name, locationEnds(profileAt, estimate, scale, cutoff), cutoff, false);
+  // The side the trend limit opens (openTowardTrendLimit) is known first and not searched.
+  return locationEnds(profileAt, estimate, scale, cutoff, cutoff + profileDrop, trendLimitSide(evaluator, name, cutoff, false));
 }

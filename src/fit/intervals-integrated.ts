@@ -117,44 +117,78 @@ export function integratedIntervals(
       continue;
     }
     const components = grid.map((point) => point.locations[name]);
-    const cdf = (x: number): number => {
-      let sum = 0;
-      for (let g = 0; g < components.length; g++) sum += weights[g] * normalCdf((x - components[g].mean) / Math.sqrt(components[g].variance));
-      return sum / total;
-    };
     const spread = Math.max(...components.map((component) => Math.sqrt(component.variance)));
     const centre = components[weights.indexOf(Math.max(...weights))].mean;
-    const quantile = (p: number): number => {
-      let low = centre - 40 * spread;
-      let high = centre + 40 * spread;
-      for (let step = 0; step < 200 && high - low > 1e-12 * (Math.abs(centre) + spread); step++) {
-        const middle = 0.5 * (low + high);
-        if (cdf(middle) < p) low = middle;
-        else high = middle;
-      }
-      return 0.5 * (low + high);
-    };
+    const quantile = mixtureQuantile(components, weights, total, centre, spread);
     result[name] = { lower: quantile(tail), upper: quantile(1 - tail), lowerAtBound: false, upperAtBound: false };
   }
   return result;
 }
 
 function gridPoint(evaluator: LikelihoodEvaluator, process: number[], locationNames: readonly string[], logStep: number): GridPoint | null {
-  const sums = evaluator.whiten(process);
-  const profile = profileOut(sums);
+  const profile = profileOut(evaluator.whiten(process));
   if (!Number.isFinite(profile.logLik) || !Number.isFinite(profile.logDetInformation)) return null;
-  const details = evaluator.details(process);
-  const width = Math.sqrt(details.coefficientCovariance.length);
-  const estimates = evaluator.model.toParameters(details.coefficients, process, evaluator.lineage);
+  // The GLS details of this one filter pass, as `evaluator.details` would give them (coefficients on the trait's own scale) without a second solve.
+  const constant = evaluator.model.constantCoefficients(process, evaluator.lineage);
+  const coefficients = Float64Array.from(profile.coefficients, (value, j) => value + evaluator.centre * constant[j]);
+  const width = Math.sqrt(profile.coefficientCovariance.length);
+  const estimates = evaluator.model.toParameters(coefficients, process, evaluator.lineage);
   const locations: GridPoint['locations'] = {};
   for (const name of locationNames) {
     const index = evaluator.model.fixLocation(name, estimates[name], process, evaluator.lineage).index;
-    locations[name] = { mean: estimates[name], variance: details.coefficientCovariance[index * width + index] };
+    locations[name] = { mean: estimates[name], variance: profile.coefficientCovariance[index * width + index] };
   }
   const value = process[0] ?? 0;
   // Restricted likelihood x prior s^(-1/2) x the cell width s d(log s) on a log grid.
   const logMass = profile.logLik - 0.5 * profile.logDetInformation + (value > 0 ? 0.5 * Math.log(value) : 0) + logStep;
   return { value, logMass, locations };
+}
+
+/**
+ * The p-quantile of a mixture of normals (cell weights / total), within
+ * centre ± 40 spread: Newton's method on cdf(x) - p with the mixture
+ * density as derivative, kept inside a bracket that every evaluation
+ * narrows, and bisection whenever a Newton step would leave it (issue 14b:
+ * about 6 evaluations of the mixture instead of the 45 of plain bisection
+ * to the same 1e-12 relative precision, which it replaced; the root is the
+ * same, of the same cdf).
+ */
+function mixtureQuantile(components: ReadonlyArray<{ mean: number; variance: number }>, weights: readonly number[], total: number, centre: number, spread: number): (p: number) => number {
+  const count = components.length;
+  const means = Float64Array.from(components, (component) => component.mean);
+  const deviations = Float64Array.from(components, (component) => Math.sqrt(component.variance));
+  const inverseRootTwoPi = 1 / Math.sqrt(2 * Math.PI);
+  let density = 0;
+  // The cdf (with the normalCdf of every component, as the equal-tailed interval is defined) and, beside it, the density.
+  const cdfAndDensity = (x: number): number => {
+    let sum = 0;
+    let slope = 0;
+    for (let g = 0; g < count; g++) {
+      const z = (x - means[g]) / deviations[g];
+      sum += weights[g] * normalCdf(z);
+      slope += (weights[g] * Math.exp(-0.5 * z * z) * inverseRootTwoPi) / deviations[g];
+    }
+    density = slope / total;
+    return sum / total;
+  };
+  const precision = 1e-12 * (Math.abs(centre) + spread);
+  return (p: number): number => {
+    let low = centre - 40 * spread;
+    let high = centre + 40 * spread;
+    let x = centre;
+    for (let step = 0; step < 200 && high - low > precision; step++) {
+      const excess = cdfAndDensity(x) - p;
+      if (excess === 0) return x;
+      const newtonStep = density > 0 ? excess / density : Number.NaN;
+      // Converged: a Newton step far below the precision, or down to the last bits of x (quadratic convergence leaves the error about its square).
+      if (Math.abs(newtonStep) <= Math.max(1e-3 * precision, 4 * Number.EPSILON * Math.abs(x))) return x - newtonStep;
+      if (excess < 0) low = x;
+      else high = x;
+      const newton = x - newtonStep;
+      x = newton > low && newton < high ? newton : 0.5 * (low + high);
+    }
+    return 0.5 * (low + high);
+  };
 }
 
 function buildGrid(evaluator: LikelihoodEvaluator, locationNames: readonly string[], logLower: number, logUpper: number, points: number): GridPoint[] {

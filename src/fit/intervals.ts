@@ -4,7 +4,7 @@ import type { WhitenedSums } from '../engine/kalman-filter.js';
 import type { Lineage } from '../lineage.js';
 import { axisIndexOf, type EvolutionModel, type ParameterSpec } from '../models/model.js';
 import type { LikelihoodEvaluator } from './evaluator.js';
-import { findRoot } from './optimise.js';
+import { profileCrossing } from './root-find.js';
 import { maximiseProcess, type ProcessMaximum } from './search.js';
 
 /**
@@ -117,9 +117,9 @@ export function parameterProfile(
 ): ParameterProfile {
   const model = evaluator.model;
   const lineage = evaluator.lineage;
-  const at = profileFunction(evaluator, name, adjusted, points);
   const axisIndex = axisIndexOf(model, name);
   if (axisIndex >= 0) {
+    const at = profileFunction(evaluator, name, adjusted, points);
     const evaluate = (process: number[]): number => {
       const sums = evaluator.whiten(process);
       return adjusted ? restrictedLogLik(sums) : profileLogLik(sums);
@@ -132,6 +132,8 @@ export function parameterProfile(
   const whole = locationSupremum(evaluator, name, adjusted);
   const best = maximiseProcess(whole, model.process, lineage, { points: Math.max(points, 24) });
   const estimates = model.toParameters(evaluator.details(best.process).coefficients, best.process, lineage);
+  // The trial values' searches start from the maximum (issue 14b: a cold nested search at the first trial value cost thousands of filter passes).
+  const at = profileFunction(evaluator, name, adjusted, points, { value: estimates[name], process: best.process });
   return { at, maximum: best.logLik, maximiser: estimates[name], process: best.process };
 }
 
@@ -182,15 +184,26 @@ export function parameterEnds(spec: ParameterSpec | undefined, lineage: Lineage,
  * @param cutoff the profile value that defines the interval
  */
 export function openTowardTrendLimit(evaluator: LikelihoodEvaluator, name: string, ends: IntervalEnds, cutoff: number, adjusted: boolean): IntervalEnds {
+  const side = trendLimitSide(evaluator, name, cutoff, adjusted);
+  if (side > 0) return { ...ends, upper: null, upperAtBound: true };
+  if (side < 0) return { ...ends, lower: null, lowerAtBound: true };
+  return ends;
+}
+
+/**
+ * The side (1 upper, -1 lower, 0 neither) on which {@link openTowardTrendLimit}
+ * opens the interval of `name`. Known before the ends are searched, so the
+ * search can skip that end (issue 14b: ou's optimum then walks out to 2^59
+ * standard errors on one side only); the ends come out the same.
+ */
+export function trendLimitSide(evaluator: LikelihoodEvaluator, name: string, cutoff: number, adjusted: boolean): 1 | -1 | 0 {
   const model = evaluator.model;
   const runaway = model.parameters.find((spec) => spec.name === name)?.runaway;
-  if (!runaway || model.process[0]?.limitNames?.[0] !== runaway.limit || !model.process[0].allowZero) return ends;
+  if (!runaway || model.process[0]?.limitNames?.[0] !== runaway.limit || !model.process[0].allowZero) return 0;
   const limit = maximiseProcess(locationSupremum(evaluator, name, adjusted), model.process, evaluator.lineage, { fixed: new Map([[0, 0]]), points: 24 });
-  if (!(limit.logLik >= cutoff)) return ends;
+  if (!(limit.logLik >= cutoff)) return 0;
   const drift = evaluator.details(limit.process).coefficients[runaway.coefficient];
-  if (drift > 0) return { ...ends, upper: null, upperAtBound: true };
-  if (drift < 0) return { ...ends, lower: null, lowerAtBound: true };
-  return ends;
+  return drift > 0 ? 1 : drift < 0 ? -1 : 0;
 }
 
 /**
@@ -198,8 +211,18 @@ export function openTowardTrendLimit(evaluator: LikelihoodEvaluator, name: strin
  * trial value: the other process parameters maximised by the nested search
  * (`points` grid points per axis), the other location parameters profiled
  * by GLS or, when adjusted, integrated out.
+ *
+ * @param start for a location parameter, its maximiser and the process
+ *   values there, to warm-start the searches from ({@link WarmStarts});
+ *   without it the first trial gets the full nested search
  */
-export function profileFunction(evaluator: LikelihoodEvaluator, name: string, adjusted: boolean, points = 12): (value: number) => number {
+export function profileFunction(
+  evaluator: LikelihoodEvaluator,
+  name: string,
+  adjusted: boolean,
+  points = 12,
+  start?: { readonly value: number; readonly process: readonly number[] },
+): (value: number) => number {
   const model = evaluator.model;
   const lineage = evaluator.lineage;
   const axisIndex = axisIndexOf(model, name);
@@ -215,7 +238,7 @@ export function profileFunction(evaluator: LikelihoodEvaluator, name: string, ad
       return maximiseProcess(evaluate, model.process, lineage, { fixed: new Map([[axisIndex, value]]), points }).logLik;
     };
   }
-  let previous: number[] | null = null;
+  const warm = new WarmStarts(model, lineage, start);
   return (value: number): number => {
     const evaluate = (process: number[]): number => {
       const { index, coefficient } = model.fixLocation(name, value, process, lineage);
@@ -223,34 +246,111 @@ export function profileFunction(evaluator: LikelihoodEvaluator, name: string, ad
       return fixedCoefficientLogLik(evaluator.whiten(process), index, coefficient - evaluator.centre * constant[index], adjusted);
     };
     if (model.process.length === 0) return evaluate([]);
-    // Warm start from the previous trial value's maximum: grid (mostly kept by the evaluator) + simplex polish.
-    const found = maximiseProcess(evaluate, model.process, lineage, { points, start: previous ?? undefined });
-    previous = found.process;
+    // The higher of the warm searches from the nearest trial on the maximum's side and from the maximum (WarmStarts).
+    let found: ProcessMaximum | null = null;
+    for (const from of warm.startsFor(value)) {
+      const candidate = maximiseProcess(evaluate, model.process, lineage, { points, start: from });
+      if (found === null || candidate.logLik > found.logLik) found = candidate;
+    }
+    found ??= maximiseProcess(evaluate, model.process, lineage, { points });
+    warm.add(value, found.process);
     return found.logLik;
   };
 }
 
 /**
- * Interval of a location parameter where a profile stays above `cutoff`:
- * steps out from `start` by doubling multiples of `scale` until the profile
- * falls below the cut-off, then Brent's root finder. An end that is never
- * crossed is open (null, `AtBound` true).
+ * Warm starts of a location profile's trial values (issue 14b): the search
+ * at a new value starts from the maximiser at the nearest value tried so
+ * far on the side of the profile's maximum (continuation outward from the
+ * maximum), or, when there is none on that side, from the nearest value.
+ * Starting from the previous trial instead, a trial beyond the end (which
+ * the root finder's bracket needs) could hand the next trials, back inside,
+ * a lower local maximum of the process parameters: the profile would then
+ * depend on the order of the trials, and an end found on those lower values
+ * would lie inside the true interval. A process value at its bound 0 starts
+ * from the geometric middle of its range instead: a polish started at 0
+ * stays on that face (ou's step_variance 0 at the maximum, small but
+ * positive a little away from it), while the warm search's grid still
+ * holds 0 itself.
  */
-export function locationEnds(at: (value: number) => number, start: number, scale: number, cutoff: number): IntervalEnds {
-  const gap = (value: number): number => at(value) - cutoff;
-  const end = (direction: 1 | -1): number | null => {
-    let inside = start;
-    let step = scale;
-    for (let attempt = 0; attempt < 60; attempt++) {
-      const outside = start + direction * step;
-      if (gap(outside) < 0) {
-        const root = findRoot(gap, Math.min(inside, outside), Math.max(inside, outside), 1e-12);
-        return Number.isFinite(root) ? root : null;
-      }
-      inside = outside;
-      step *= 2;
+export class WarmStarts {
+  private readonly values: number[] = [];
+  private readonly processes: Array<readonly number[]> = [];
+  private centre: number;
+  private readonly model: EvolutionModel;
+  private readonly lineage: Lineage;
+
+  /** @param start the profile's maximiser and the process values there (omitted: the first trial gets the full search) */
+  constructor(model: EvolutionModel, lineage: Lineage, start?: { readonly value: number; readonly process: readonly number[] }) {
+    this.model = model;
+    this.lineage = lineage;
+    this.centre = start?.value ?? Number.NaN;
+    if (start && Number.isFinite(start.value)) this.add(start.value, start.process);
+  }
+
+  /** Keep the process values that maximised the profile at `value`. */
+  add(value: number, process: readonly number[]): void {
+    if (!Number.isFinite(value)) return;
+    this.values.push(value);
+    this.processes.push(process);
+    if (Number.isNaN(this.centre)) this.centre = value;
+  }
+
+  /**
+   * Where the searches at `value` start: the maximiser at the nearest value kept on the side of
+   * the profile's maximum (the nearest of all when there is none on that side), and the maximum's
+   * own when that is another; zeros moved to the middle of their range. Empty before anything is
+   * kept (the full search then). `profileFunction` keeps the higher of the maxima found from
+   * them: from the nearest-inside start alone the locality sample's ou optimum stopped in a
+   * lower local maximum (an end 2.6e-4 inside the true one).
+   */
+  startsFor(value: number): Array<readonly number[]> {
+    let best = -1;
+    let bestInside = -1;
+    for (let k = 0; k < this.values.length; k++) {
+      const distance = Math.abs(this.values[k] - value);
+      if (best < 0 || distance < Math.abs(this.values[best] - value)) best = k;
+      const towardCentre = (this.values[k] - value) * (this.centre - value) >= 0;
+      if (towardCentre && (bestInside < 0 || distance < Math.abs(this.values[bestInside] - value))) bestInside = k;
     }
-    return null;
+    const chosen = bestInside >= 0 ? bestInside : best;
+    if (chosen < 0) return [];
+    return (chosen === 0 ? [0] : [chosen, 0]).map((k) => this.awayFromZero(this.processes[k]));
+  }
+
+  private awayFromZero(process: readonly number[]): number[] {
+    return process.map((value, level) => {
+      const axis = this.model.process[level];
+      if (value !== 0 || !axis?.allowZero) return value;
+      const [lower, upper] = axis.range(this.lineage, process.slice(0, level));
+      return Math.sqrt(lower * upper);
+    });
+  }
+}
+
+/**
+ * Interval of a location parameter where a profile stays above `cutoff`:
+ * from `start` (the profile's maximiser, where it is `peak`) each end by
+ * {@link profileCrossing}, the first trial value where the quadratic with
+ * the curvature 1/scale^2 of the GLS standard error `scale` falls to the
+ * cut-off (issue 14b: about half the trial values of stepping out by
+ * doubling multiples of `scale`, which this replaced, with the same ends to
+ * the root finder's tolerance). An end not crossed within 2^59 scales of
+ * the start is open (null, `AtBound` true).
+ *
+ * @param peak the profile at `start` (its maximum); default: evaluated
+ * @param open a side (1 upper, -1 lower) known to be open, not searched ({@link trendLimitSide})
+ */
+export function locationEnds(at: (value: number) => number, start: number, scale: number, cutoff: number, peak?: number, open: 1 | -1 | 0 = 0): IntervalEnds {
+  const gap = (value: number): number => at(value) - cutoff;
+  const fromGap = peak !== undefined && Number.isFinite(peak) ? peak - cutoff : gap(start);
+  const end = (direction: 1 | -1): number | null => {
+    if (direction === open) return null;
+    // Not above the cut-off at the start (a profile maximum that was not found): no interval around it, as before.
+    if (!(fromGap > 0)) return null;
+    const firstTrial = start + direction * Math.sqrt(2 * fromGap) * scale;
+    const root = profileCrossing(gap, start, fromGap, firstTrial, { tolerance: 1e-12, limit: start + direction * scale * 2 ** 59, maxSteps: 120 });
+    return root !== null && Number.isFinite(root) ? root : null;
   };
   const lower = end(-1);
   const upper = end(1);
@@ -312,7 +412,9 @@ export function intervalsByProfile(
     }
     const profile = parameterProfile(evaluator, name, request.adjusted);
     const scale = locationScale(evaluator, name, profile.process, profile.maximiser);
-    result[name] = openTowardTrendLimit(evaluator, name, locationEnds(profile.at, profile.maximiser, scale, profile.maximum - drop), profile.maximum - drop, request.adjusted);
+    // The side the trend limit opens (openTowardTrendLimit) is known first and not searched.
+    const open = trendLimitSide(evaluator, name, profile.maximum - drop, request.adjusted);
+    result[name] = locationEnds(profile.at, profile.maximiser, scale, profile.maximum - drop, profile.maximum, open);
   }
   return result;
 }
