@@ -10,7 +10,7 @@ import { comparisonCaution, comparisonDocument, spreadsDocument } from '../rende
 import { commonTime, mergeSections, toleratingCoeval } from '../compare/stack.js';
 import { fitLineage, type LineageFit } from '../fit/fit-lineage.js';
 import { lineageName, type Lineage } from '../lineage.js';
-import { lineageDocument, type Provenance } from '../render/fit-document.js';
+import { lineageDocument, type AgeModelDocument, type AgeUncertaintyDocument, type Provenance } from '../render/fit-document.js';
 import { alignColumns } from '../render/text-table.js';
 import { formatNumber } from '../render/units.js';
 import { resolveModels, type ModelSelection, type ModelsOption } from './model-selection.js';
@@ -57,41 +57,47 @@ export function extrapolatedLineageWords(lineages: readonly Lineage[]): string {
   return parts.length === 0 ? '' : `EXTRAPOLATED AGES (beyond the outermost ties) — ${parts.join('; ')}`;
 }
 
+/** What {@link fitAgeDraws} gives `fit`: the text block for the terminal, and the `age_uncertainty` block of the fit document (null without draws). */
+export interface AgeDrawsResult {
+  readonly text: string;
+  readonly document: AgeUncertaintyDocument | null;
+}
+
 /**
  * `fit --age-draws N`: redraw the tie-point ages N times, refit every lineage
  * (without intervals), and summarise per lineage how the Akaike weights and
- * point estimates move. Adds `age_uncertainty` to the fit document (whose
- * `age_model` runFitStreamed wrote) and returns the text block for the terminal (empty without draws).
+ * point estimates move. Returns the text block for the terminal (the ties and
+ * rates even without draws; empty without an age model) and the fit
+ * document's `age_uncertainty` block, which `runFitStreamed` gives the
+ * document when it builds it.
  *
  * @example
- * const run = await runFitStreamed(file, { ageModel: ties, ageDraws: '3', quiet: true });
- * fitAgeDraws(file, { ageModel: ties, ageDraws: '3' }, run, run.document, run.read!.samples, run.age ?? null); // the ties, rates and spread text
+ * const drawn = fitAgeDraws(file, { ageModel: ties, ageDraws: '3' }, { fits, selection }, samples, age);
+ * drawn.document?.draws; // 3
  */
 export function fitAgeDraws(
   file: string,
   options: AgeModelOptions & SampleFileOptions,
   run: { readonly fits: readonly LineageFit[]; readonly selection: ModelSelection },
-  document: Record<string, unknown>,
   samples: SampleSet,
   age: LoadedAgeModel | null,
   progress?: PowerProgress,
-): string {
+): AgeDrawsResult {
   const { draws, seed } = parseDrawOptions(options);
   const { fits, selection } = run;
-  if (!age) return '';
+  if (!age) return { text: '', document: null };
   const { model: ageModel } = age;
-  // runFitStreamed has put the age model, its input and options into the document.
   const lines: string[] = [];
   const kind = fits[0]?.lineage.positionKind;
   if (kind === 'age' || kind === 'time') {
     lines.push(`warning: the samples give "${kind}", so the age model ${ageModel.file} is not used (it places heights and depths only)`);
-    return lines.join('\n');
+    return { text: lines.join('\n'), document: null };
   }
   // The ties and sedimentation rates, as compare prints them.
   lines.push(ageModelWords(ageModel, fits[0]?.lineage.timeUnit.label ?? 'Myr'));
   const extrapolated = extrapolatedLineageWords(fits.map((fit) => fit.lineage));
   if (extrapolated) lines.push(extrapolated);
-  if (draws === 0) return lines.join('\n');
+  if (draws === 0) return { text: lines.join('\n'), document: null };
   // The horizons were read once (streamed); each draw only places them again.
   const samplesFile = file === '-' ? 'stdin' : file;
   const { models } = selection;
@@ -106,7 +112,7 @@ export function fitAgeDraws(
     }));
     return { fit, name, spreads };
   });
-  document.age_uncertainty = {
+  const document: AgeUncertaintyDocument = {
     draws,
     seed,
     method: 'tie ages redrawn from N(age, age_sd^2), kept in stratigraphic order; every lineage refitted without intervals',
@@ -127,7 +133,7 @@ export function fitAgeDraws(
     }
   }
   lines.push('Caution: these spreads show how the conclusion moves with the dating alone; they do not include sampling error, and the age model itself (choice of ties, constant rates between them) is assumed.');
-  return lines.join('\n');
+  return { text: lines.join('\n'), document };
 }
 
 function spreadWords(spread: { median: number | null; lower: number | null; upper: number | null }, digits: number): string {
@@ -137,7 +143,7 @@ function spreadWords(spread: { median: number | null; lower: number | null; uppe
 }
 
 /** The age model as JSON: ties and sedimentation rates per section. */
-export function ageModelDocument(model: AgeModel): Record<string, unknown> {
+export function ageModelDocument(model: AgeModel): AgeModelDocument {
   return {
     file: model.file,
     position_kind: model.positionKind,

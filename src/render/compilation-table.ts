@@ -1,4 +1,5 @@
 import type { CompilationSummary, Distribution } from '../compare/compilation.js';
+import type { TrendSummary } from './trend-text.js';
 import { alignColumns } from './text-table.js';
 import { formatNumber } from './units.js';
 
@@ -64,8 +65,11 @@ export function compilationTable(summary: CompilationSummary): string {
   return lines.join('\n');
 }
 
-/** The JSON form of a compilation summary (snake_case like fit.json). */
-export function compilationDocument(summary: CompilationSummary): Record<string, unknown> {
+/**
+ * The JSON form of a compilation summary (snake_case like fit.json), with the
+ * batch's trend verdicts in counts (`trend_tests`, last) when given.
+ */
+export function compilationDocument(summary: CompilationSummary, trends: TrendSummary | null = null) {
   const distributionDocument = (value: Distribution) => ({
     count: value.count,
     mean: value.mean,
@@ -104,5 +108,9 @@ export function compilationDocument(summary: CompilationSummary): Record<string,
       drift: summary.drift ? summary.drift.estimates[index] : null,
     })),
     caution: compilationCaution,
+    ...(trends ? { trend_tests: trends } : {}),
   };
 }
+
+/** fit.json's `compilation` block (`fit --summary`). */
+export type CompilationDocument = ReturnType<typeof compilationDocument>;
