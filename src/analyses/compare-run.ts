@@ -12,6 +12,7 @@ import { fitLineage, type LineageFit } from '../fit/fit-lineage.js';
 import { lineageName, type Lineage } from '../lineage.js';
 import { lineageDocument, type AgeModelDocument, type AgeUncertaintyDocument, type Provenance } from '../render/fit-document.js';
 import { alignColumns } from '../render/text-table.js';
+import type { FigureLineageDocument } from '../render/figures/figure-input.js';
 import { formatNumber } from '../render/units.js';
 import { resolveModels, type ModelSelection, type ModelsOption } from './model-selection.js';
 import { ageModelHook, parseDrawOptions, warnUnusedAgeModel, type AgeModelOptions } from './age-model-options.js';
@@ -324,7 +325,7 @@ export async function runCompare(file: string, options: CompareCommandOptions, r
  * @example
  * sectionDocuments(run.run.comparisons[0], run.selection.models).map((document) => document.section); // one document per section of the trait
  */
-export function sectionDocuments(comparison: TraitComparison, models: ModelSelection['models']): Record<string, unknown>[] {
+export function sectionDocuments(comparison: TraitComparison, models: ModelSelection['models']): FigureLineageDocument[] {
   const winner = comparison.best === null ? undefined : comparison.hypotheses.find((hypothesis) => hypothesis.id === comparison.best!.id && hypothesis.model === comparison.best!.model);
   const joint = winner?.joint ?? null;
   const { starts } = commonTime(comparison.sections);
