@@ -226,7 +226,8 @@ interface FigureRow {
 
 /** Time each PNG figure the project can draw; "not available" when its module is not built. */
 async function measureFigures(): Promise<FigureRow[]> {
-  const fit = fitLineage(benchLineage(40, 77, 4), classicModels);
+  // Smoke mode (issue 22): no intervals (no figure draws one) and a smaller batch for the compilation figure.
+  const fit = fitLineage(benchLineage(40, 77, 4), classicModels, smoke ? { intervals: false } : undefined);
   const document = lineageDocument(fit);
   const candidates: { figure: string; module: string; exportName: string; input: () => Promise<unknown> }[] = [
     { figure: 'trajectory', module: 'src/render/figures/index.js', exportName: 'renderTrajectory', input: async () => document },
@@ -237,7 +238,7 @@ async function measureFigures(): Promise<FigureRow[]> {
       exportName: 'renderCompilation',
       input: async () => {
         const { summariseCompilation } = await import('../src/compare/compilation.js');
-        const fits = Array.from({ length: 60 }, (_, k) => fitLineage(benchLineage(30, 900 + k, k), classicModels, { intervals: false }));
+        const fits = Array.from({ length: smoke ? 12 : 60 }, (_, k) => fitLineage(benchLineage(30, 900 + k, k), classicModels, { intervals: false }));
         return summariseCompilation(fits);
       },
     },
