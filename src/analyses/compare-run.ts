@@ -10,8 +10,9 @@ import { comparisonCaution, comparisonDocument, spreadsDocument } from '../rende
 import { commonTime, mergeSections, toleratingCoeval } from '../compare/stack.js';
 import { fitLineage, type LineageFit } from '../fit/fit-lineage.js';
 import { lineageName, type Lineage } from '../lineage.js';
-import { lineageDocument, type Provenance } from '../render/fit-document.js';
+import { lineageDocument, type AgeModelDocument, type AgeUncertaintyDocument, type Provenance } from '../render/fit-document.js';
 import { alignColumns } from '../render/text-table.js';
+import type { FigureLineageDocument } from '../render/figures/figure-input.js';
 import { formatNumber } from '../render/units.js';
 import { resolveModels, type ModelSelection, type ModelsOption } from './model-selection.js';
 import { ageModelHook, parseDrawOptions, warnUnusedAgeModel, type AgeModelOptions } from './age-model-options.js';
@@ -68,11 +69,19 @@ export function extrapolatedLineageWords(lineages: readonly Lineage[]): string {
   return parts.length === 0 ? '' : `EXTRAPOLATED AGES (beyond the outermost ties) — ${parts.join('; ')}`;
 }
 
+/** What {@link fitAgeDraws} gives `fit`: the text block for the terminal, and the `age_uncertainty` block of the fit document (null without draws). */
+export interface AgeDrawsResult {
+  readonly text: string;
+  readonly document: AgeUncertaintyDocument | null;
+}
+
 /**
  * `fit --age-draws N`: redraw the tie-point ages N times, refit every lineage
  * (without intervals), and summarise per lineage how the Akaike weights and
- * point estimates move. Adds `age_uncertainty` to the fit document (whose
- * `age_model` runFitStreamed wrote) and returns the text block for the terminal (empty without draws).
+ * point estimates move. Returns the text block for the terminal (the ties and
+ * rates even without draws; empty without an age model) and the fit
+ * document's `age_uncertainty` block, which `runFitStreamed` gives the
+ * document when it builds it.
  *
  * @example
  * const table = readTable('section,trait,height,n,mean,sd\nQuarrel Hollow,x,0,5,1,0.5\nQuarrel Hollow,x,10,5,2,0.5\nQuarrel Hollow,x,20,5,3,0.5\nQuarrel Hollow,x,30,5,3.5,0.5\n', 'h.csv');
@@ -81,37 +90,35 @@ export function extrapolatedLineageWords(lineages: readonly Lineage[]): string {
  * const selection = resolveModels('strict-stasis,random-walk');
  * const options = { ageModel: 'sample-data/locality-ties.csv', ageDraws: '3' };
  * const fits = lineagesOf(samples, options, new WarningLog(), { ageOf: ageFunction(age.model) }).map((lineage) => fitLineage(lineage, selection.models, { intervals: false }));
- * const document = {};
- * const text = fitAgeDraws('h.csv', options, { fits, selection }, document, samples, age).split('\n');
+ * const drawn = fitAgeDraws('h.csv', options, { fits, selection }, samples, age);
+ * const text = drawn.text.split('\n');
  * text[0]; // 'Age model sample-data/locality-ties.csv (ages by linear interpolation between ties; rates in m per Myr):'
  * text[4]; // 'Age uncertainty for "Quarrel Hollow / x": 3 redraws of the tie-point ages (seed 1); Akaike weight median [2.5%, 97.5%] and how often best:'
- * document.age_uncertainty.draws; // 3
+ * drawn.document?.draws; // 3
  */
 export function fitAgeDraws(
   file: string,
   options: AgeModelOptions & SampleFileOptions,
   run: { readonly fits: readonly LineageFit[]; readonly selection: ModelSelection },
-  document: Record<string, unknown>,
   samples: SampleSet,
   age: LoadedAgeModel | null,
   progress?: PowerProgress,
-): string {
+): AgeDrawsResult {
   const { draws, seed } = parseDrawOptions(options);
   const { fits, selection } = run;
-  if (!age) return '';
+  if (!age) return { text: '', document: null };
   const { model: ageModel } = age;
-  // runFitStreamed has put the age model, its input and options into the document.
   const lines: string[] = [];
   const kind = fits[0]?.lineage.positionKind;
   if (kind === 'age' || kind === 'time') {
     lines.push(`warning: the samples give "${kind}", so the age model ${ageModel.file} is not used (it places heights and depths only)`);
-    return lines.join('\n');
+    return { text: lines.join('\n'), document: null };
   }
   // The ties and sedimentation rates, as compare prints them.
   lines.push(ageModelWords(ageModel, fits[0]?.lineage.timeUnit.label ?? 'Myr'));
   const extrapolated = extrapolatedLineageWords(fits.map((fit) => fit.lineage));
   if (extrapolated) lines.push(extrapolated);
-  if (draws === 0) return lines.join('\n');
+  if (draws === 0) return { text: lines.join('\n'), document: null };
   // The horizons were read once (streamed); each draw only places them again.
   const samplesFile = file === '-' ? 'stdin' : file;
   const { models } = selection;
@@ -126,7 +133,7 @@ export function fitAgeDraws(
     }));
     return { fit, name, spreads };
   });
-  document.age_uncertainty = {
+  const document: AgeUncertaintyDocument = {
     draws,
     seed,
     method: 'tie ages redrawn from N(age, age_sd^2), kept in stratigraphic order; every lineage refitted without intervals',
@@ -147,7 +154,7 @@ export function fitAgeDraws(
     }
   }
   lines.push('Caution: these spreads show how the conclusion moves with the dating alone; they do not include sampling error, and the age model itself (choice of ties, constant rates between them) is assumed.');
-  return lines.join('\n');
+  return { text: lines.join('\n'), document };
 }
 
 function spreadWords(spread: { median: number | null; lower: number | null; upper: number | null }, digits: number): string {
@@ -162,7 +169,7 @@ function spreadWords(spread: { median: number | null; lower: number | null; uppe
  * @example
  * ageModelDocument(readAgeModel(readTable('height,age\n0,10\n50,8\n', 'ties.csv'))).sections[0].sedimentation_rates; // [{ from_height: 0, to_height: 50, rate: 25 }]
  */
-export function ageModelDocument(model: AgeModel): Record<string, unknown> {
+export function ageModelDocument(model: AgeModel): AgeModelDocument {
   return {
     file: model.file,
     position_kind: model.positionKind,
@@ -369,7 +376,7 @@ export async function runCompare(file: string, options: CompareCommandOptions, r
  * const comparison = compareSections([a, b], [randomWalk], { intervals: false });
  * sectionDocuments(comparison, [randomWalk]).map((document) => [document.section, document.curve_origin]); // [['A', 0], ['B', 0.5]] (shared-offset: B joins the common process 0.5 Myr later)
  */
-export function sectionDocuments(comparison: TraitComparison, models: ModelSelection['models']): Record<string, unknown>[] {
+export function sectionDocuments(comparison: TraitComparison, models: ModelSelection['models']): FigureLineageDocument[] {
   const winner = comparison.best === null ? undefined : comparison.hypotheses.find((hypothesis) => hypothesis.id === comparison.best!.id && hypothesis.model === comparison.best!.model);
   const joint = winner?.joint ?? null;
   const { starts } = commonTime(comparison.sections);

@@ -1,14 +1,24 @@
 import { existsSync } from 'node:fs';
 import { summariseCompilation, type CompilationSummary } from '../compare/compilation.js';
-import { compilationDocument, compilationTable } from '../render/compilation-table.js';
-import type { FitRun } from './fit-run.js';
+import { compilationDocument, compilationTable, type CompilationDocument } from '../render/compilation-table.js';
+import { summariseTrends, type TrendSummary } from '../render/trend-text.js';
+import type { LineageFit } from '../fit/fit-lineage.js';
+import type { TrendTest } from '../trend/trend-test.js';
 import type { OutputSet } from '../io/write-output.js';
 
-/** Summarise a batch fit across lineages and add it to the run's JSON document as `compilation`. */
-export function addCompilation(run: FitRun): CompilationSummary {
-  const summary = summariseCompilation(run.fits);
-  run.document.compilation = compilationDocument(summary);
-  return summary;
+/** `fit --summary`: the batch summarised across lineages, its trend verdicts in counts, and both as the fit document's `compilation` block. */
+export interface Compilation {
+  readonly summary: CompilationSummary;
+  /** null with --no-trend-test. */
+  readonly trends: TrendSummary | null;
+  readonly document: CompilationDocument;
+}
+
+/** Summarise a batch fit across lineages (and its trend verdicts, when tested) for the terminal, the figure and the JSON document. */
+export function compileFits(fits: readonly LineageFit[], trendTests: readonly TrendTest[] | null): Compilation {
+  const summary = summariseCompilation(fits);
+  const trends = trendTests ? summariseTrends(fits, trendTests) : null;
+  return { summary, trends, document: compilationDocument(summary, trends) };
 }
 
 /** The summary as terminal text. */

@@ -11,6 +11,7 @@ import {
   type FigureFormat,
   type FigureJob,
   type FigureKind,
+  type FigureLineageDocument,
   type FigureOptions,
 } from '../render/figures/index.js';
 import { durationWords } from './run-cost.js';
@@ -121,14 +122,14 @@ export interface FigurePlanForFolder {
  * narrow with `selected`.
  */
 export function planFigureFiles(
-  lineages: readonly unknown[],
+  lineages: readonly FigureLineageDocument[],
   options: FigureCommandOptions,
   kinds: readonly FigureKind[] = figureKinds,
   selected: (index: number) => boolean = () => true,
 ): FigurePlanForFolder {
   const request = figureRequest(options);
   if (request.options.model) {
-    const ids = new Set(lineages.filter((_document, index) => selected(index)).flatMap((document) => ((document as { models?: { id?: unknown }[] }).models ?? []).map((model) => String(model.id))));
+    const ids = new Set(lineages.filter((_document, index) => selected(index)).flatMap((document) => document.models.map((model) => model.id)));
     if (!ids.has(request.options.model)) {
       throw usageError(`--draw-model: no lineage was fitted with "${request.options.model}"; models in this fit: ${[...ids].join(', ') || 'none'}`);
     }
@@ -174,7 +175,7 @@ export function figureTimeWarning(plan: FigurePlanForFolder, advice: string): st
  * @example
  * writeFigureFiles(document.lineages, plan, set, { quiet: false }); // ['A_length.trajectory.png', 'A_length.model-support.png', …]
  */
-export function writeFigureFiles(lineages: readonly unknown[], plan: FigurePlanForFolder, set: OutputSet, options: { quiet?: boolean } = {}): string[] {
+export function writeFigureFiles(lineages: readonly FigureLineageDocument[], plan: FigurePlanForFolder, set: OutputSet, options: { quiet?: boolean } = {}): string[] {
   const written: string[] = [];
   const total = plan.names.length;
   const progress = drawingProgress(total, options);
@@ -206,22 +207,18 @@ export function writeFigureFiles(lineages: readonly unknown[], plan: FigurePlanF
  * or null when that cannot be done (the model was not fitted, or needs a
  * covariate the document does not carry); the figure then says why no band is drawn.
  */
-export function withSmootherOf(document: unknown, modelId: string): unknown {
-  const doc = document as { smoothed?: { model?: unknown } | null; models?: unknown; data?: Record<string, unknown>; time_unit?: unknown };
-  if (doc?.smoothed?.model === modelId) return document;
+export function withSmootherOf(document: FigureLineageDocument, modelId: string): FigureLineageDocument {
+  if (document.smoothed?.model === modelId) return document;
   let smoothed: { model: string; mean: number[]; standard_error: number[] } | null = null;
   try {
-    const entry = (Array.isArray(doc.models) ? doc.models : []).find((candidate: { id?: unknown }) => candidate?.id === modelId) as { params?: Record<string, { estimate?: unknown }> } | undefined;
+    const entry = document.models.find((candidate) => candidate.id === modelId);
     const definition = findModel(modelId);
-    const data = doc.data ?? {};
-    const numbers = (value: unknown) => (Array.isArray(value) && value.every((item) => typeof item === 'number' && Number.isFinite(item)) ? (value as number[]) : null);
-    const time = numbers(data.time);
-    const mean = numbers(data.mean);
-    const samplingVariance = numbers(data.sampling_variance);
-    if (entry && definition && time && mean && samplingVariance && mean.length === time.length && samplingVariance.length === time.length) {
+    // The data lists of a built document, or of one checked on reading (checkFitDocument), are finite numbers: not checked again.
+    const data = document.data as { readonly [list in 'time' | 'mean' | 'sampling_variance' | 'n']: readonly number[] };
+    if (entry && definition) {
       const estimates: Record<string, number> = {};
-      for (const [name, value] of Object.entries(entry.params ?? {})) if (typeof value?.estimate === 'number') estimates[name] = value.estimate;
-      const lineage = lineageFromArrays({ time, mean, samplingVariance, count: numbers(data.n) ?? undefined });
+      for (const [name, value] of Object.entries(entry.params)) if (value.estimate !== null) estimates[name] = value.estimate;
+      const lineage = lineageFromArrays({ time: data.time, mean: data.mean, samplingVariance: data.sampling_variance, count: data.n });
       const result = smoothUnderEstimates(definition, estimates, lineage);
       if (result.mean.every(Number.isFinite) && result.standardError.every(Number.isFinite)) {
         smoothed = { model: modelId, mean: Array.from(result.mean), standard_error: Array.from(result.standardError) };
@@ -230,5 +227,5 @@ export function withSmootherOf(document: unknown, modelId: string): unknown {
   } catch {
     smoothed = null;
   }
-  return { ...(document as object), smoothed };
+  return { ...document, smoothed };
 }

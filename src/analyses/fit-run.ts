@@ -2,12 +2,12 @@ import { WarningLog } from '../data/warnings.js';
 import { fitLineage, type LineageFit } from '../fit/fit-lineage.js';
 import { intervalFallbackPrefix, type FitOptions } from '../fit/fit-model.js';
 import { defaultMinimumSegment } from '../models/model.js';
-import { fitDocument, type FitDocument, type Provenance } from '../render/fit-document.js';
+import { fitDocument, type AgeModelDocument, type AgeUncertaintyDocument, type FitDocument, type Provenance } from '../render/fit-document.js';
 import { lineagesOf, loadLineages, loadSamplesStreamed, readInput, type InputText, type SampleFileOptions, type StreamedInput } from './input.js';
 import type { Lineage } from '../lineage.js';
 import { fitLineages } from '../parallel/fit-lineages.js';
 import { resolveModels, type ModelSelection, type ModelsOption } from './model-selection.js';
-import { fittingProgress, readingProgress, searchProgress } from '../io/progress.js';
+import { fittingProgress, readingProgress, searchProgress, type StageProgress } from '../io/progress.js';
 import type { AgeModelOptions, LoadedAgeModel } from './age-model-options.js';
 import { intervalOptions } from '../fit/intervals.js';
 import { attachCovariates, extensionSettings, extrasDocument, lineageExtras, modelsForLineage, type ExtensionOptions, type LineageExtras } from './fit-extensions.js';
@@ -19,6 +19,7 @@ import { trendTests } from '../trend/run-trend-tests.js';
 import type { TrendTest, TrendTestOptions } from '../trend/trend-test.js';
 import { weakOuWin } from '../render/trend-text.js';
 import { seedOption } from './option-values.js';
+import type { Compilation } from './compilation-output.js';
 
 /** Options of `stratotrend fit`. */
 export interface FitCommandOptions extends AgeModelOptions, SampleFileOptions, FigureCommandOptions, ExtensionOptions {
@@ -60,6 +61,16 @@ export interface FitRun {
   readonly selection: ModelSelection;
   /** The trend verdict per lineage, in `fits` order (null with --no-trend-test). */
   readonly trends?: readonly TrendTest[] | null;
+  /** The age model and `--age-draws` in words for the terminal, set by {@link runFitStreamed} (empty without `--age-model`). */
+  readonly ageText?: string;
+  /** `fit --summary`: the cross-lineage summary, set by {@link runFitStreamed} (null without `--summary`). */
+  readonly compilation?: Compilation | null;
+}
+
+/** Progress of the stages {@link runFitStreamed} runs after fitting. */
+export interface FitRunProgress {
+  /** `--age-draws`: one stage, ticked once per draw. */
+  readonly ageDraws?: StageProgress;
 }
 
 /**
@@ -83,7 +94,7 @@ export function runFit(file: string, options: FitCommandOptions): FitRun {
  * @example
  * (await runFitStreamed('sample-data/shell-length.csv', { quiet: true })).selection.name; // 'classic'
  */
-export async function runFitStreamed(file: string, options: FitCommandOptions): Promise<FitRun> {
+export async function runFitStreamed(file: string, options: FitCommandOptions, progress: FitRunProgress = {}): Promise<FitRun> {
   const warnings = new WarningLog();
   const { ageModelHook, checkAgeModelUsage } = await import('./age-model-options.js');
   checkAgeModelUsage(options);
@@ -100,29 +111,40 @@ export async function runFitStreamed(file: string, options: FitCommandOptions): 
   checkShiftSearchCost(lineages, models, { minimumSegment: extensionSettings(options).minimumSegment, threads: options.threads, warnings });
   // Checked before fitting: a bad --trend-level or --seed should not cost a fit.
   const trendOptions = options.trendTest === false ? null : trendOptionsOf(options, models);
-  const fits = await fitLineages(lineages, models, fitOptionsOf(options, lineages.length), {
+  const fitted = await fitLineages(lineages, models, fitOptionsOf(options, lineages.length), {
     threads: options.threads,
     onProgress: fittingProgress(lineages.length, options),
   });
-  const trends = trendOptions === null ? null : await trendTests(fits, trendOptions, { threads: options.threads, onProgress: fittingProgress(fits.length, options, process.stderr, 'trend tests') });
-  const run = fitLoaded(input, lineages, options, selection, warnings, fits, trends);
+  const trends = trendOptions === null ? null : await trendTests(fitted, trendOptions, { threads: options.threads, onProgress: fittingProgress(fitted.length, options, process.stderr, 'trend tests') });
+  const results = fitResults(input, lineages, options, selection, warnings, fitted, trends);
+  let { provenance } = results;
+  let ageModel: AgeModelDocument | undefined;
+  let ageUncertainty: AgeUncertaintyDocument | undefined;
+  let ageText = '';
   if (age) {
-    // The age model is part of the result (fit, and the report made from the same run): its file, its options, its ties and rates.
-    const { parseDrawOptions, ageModelDocument } = await import('./compare-run.js');
+    // The age model is part of the result (fit, and the report made from the same run): its file, its options, its ties and rates,
+    // and with --age-draws the spread over redrawn tie ages (the horizons read above are placed again, not read again).
+    const { parseDrawOptions, ageModelDocument, fitAgeDraws } = await import('./compare-run.js');
     const { draws, seed } = parseDrawOptions(options);
-    const { provenance } = run.document;
-    const document: FitDocument = {
-      ...run.document,
-      provenance: {
-        ...provenance,
-        inputs: [...provenance.inputs, { file: age.input.name, sha256: age.input.sha256 }],
-        options: { ...provenance.options, age_model: options.ageModel, extrapolate: options.extrapolate === true, age_draws: draws, seed: draws > 0 ? seed : null },
-      },
-      age_model: ageModelDocument(age.model),
+    provenance = {
+      ...provenance,
+      inputs: [...provenance.inputs, { file: age.input.name, sha256: age.input.sha256 }],
+      options: { ...provenance.options, age_model: options.ageModel, extrapolate: options.extrapolate === true, age_draws: draws, seed: draws > 0 ? seed : null },
     };
-    return { ...run, document, read: { input, samples }, age };
+    ageModel = ageModelDocument(age.model);
+    const drawn = fitAgeDraws(file, options, results, samples, age, progress.ageDraws);
+    ageText = drawn.text;
+    ageUncertainty = drawn.document ?? undefined;
   }
-  return { ...run, read: { input, samples }, age };
+  const compilation = options.summary ? (await import('./compilation-output.js')).compileFits(results.fits, trends) : null;
+  const document = fitDocument(results.fits, provenance, warnings.list(), selection.name, {
+    lineageBlocks: results.lineageBlocks,
+    ageModel,
+    ageUncertainty,
+    compilation: compilation?.document,
+  });
+  const { lineageBlocks: _blocks, provenance: _provenance, ...run } = results;
+  return { ...run, document, read: { input, samples }, age, ageText, compilation };
 }
 
 /**
@@ -132,6 +154,19 @@ export async function runFitStreamed(file: string, options: FitCommandOptions): 
  * fitLoaded(input, lineages, options, resolveModels('random-walk,ou'), new WarningLog()).fits[0].models.length; // 2
  */
 export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lineage[], options: FitCommandOptions, selection: ModelSelection, warnings: WarningLog, given?: LineageFit[], trends?: readonly TrendTest[] | null): FitRun {
+  const { lineageBlocks, provenance, ...run } = fitResults(input, lineages, options, selection, warnings, given, trends);
+  return { ...run, document: fitDocument(run.fits, provenance, warnings.list(), selection.name, { lineageBlocks }) };
+}
+
+/** A fit run before its document is built: the run's parts, the provenance and each lineage's added blocks. */
+interface FitResults extends Omit<FitRun, 'document'> {
+  readonly extras: readonly LineageExtras[];
+  readonly provenance: Provenance;
+  readonly lineageBlocks: readonly Readonly<Record<string, unknown>>[];
+}
+
+/** Fit read lineages (unless given), add the fits' warnings, and gather what the document is built from. */
+function fitResults(input: Omit<InputText, 'text'>, lineages: readonly Lineage[], options: FitCommandOptions, selection: ModelSelection, warnings: WarningLog, given?: LineageFit[], trends?: readonly TrendTest[] | null): FitResults {
   const { name, models } = selection;
   const settings = extensionSettings(options);
   const fitted = given ?? lineages.map((lineage) => fitLineage(lineage, models, fitOptionsOf(options, lineages.length)));
@@ -167,9 +202,8 @@ export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lin
     },
   };
   const extras = fits.map((fit, j) => lineageExtras(fit, settings, kept[j].leftOut));
-  const built = fitDocument(fits, provenance, warnings.list(), name);
-  const document: FitDocument = { ...built, lineages: built.lineages.map((lineage, j) => ({ ...lineage, ...extrasDocument(extras[j]), ...(trends ? { trend_test: trends[j] } : {}) })) };
-  return { fits, document, warnings, extras, selection, trends: trends ?? null };
+  const lineageBlocks = extras.map((extra, j) => ({ ...extrasDocument(extra), ...(trends ? { trend_test: trends[j] } : {}) }));
+  return { fits, warnings, extras, selection, trends: trends ?? null, provenance, lineageBlocks };
 }
 
 /** --trend-level as a number in (0, 1). @throws InputError (usage) otherwise. */

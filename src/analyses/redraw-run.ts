@@ -4,6 +4,7 @@ import { InputError, usageError } from '../data/errors.js';
 import { WarningLog } from '../data/warnings.js';
 import { OutputSet, prepareOutputFolder } from '../io/write-output.js';
 import { figureKinds, type FigureKind } from '../render/figures/index.js';
+import type { FitDocumentView, LineageView } from '../render/report/document-view.js';
 import { figureTimeWarning, planFigureFiles, writeFigureFiles, type FigureCommandOptions } from './figure-files.js';
 
 // The redraw job: a saved fit.json's figures drawn again, without refitting
@@ -17,11 +18,15 @@ export interface RedrawCommandOptions extends FigureCommandOptions {
   quiet?: boolean;
 }
 
-/** The lineages of a saved fit.json, after checking the whole document (one message naming the file and the field). */
-function readFitDocument(file: string): unknown[] {
+/**
+ * The lineages of a saved fit.json, after checking the whole document (one
+ * message naming the file and the field). This is the one check: from here
+ * on the lineages are typed and the figures take them as they are (issue 22).
+ */
+function readFitDocument(file: string): readonly LineageView[] {
   const { value } = readJsonFile(file, 'the fit.json written by "fit --out"');
   checkFitDocument(value, file);
-  return (value as { lineages: unknown[] }).lineages;
+  return (value as FitDocumentView).lineages;
 }
 
 function parseKinds(text: string): FigureKind[] {
@@ -33,16 +38,14 @@ function parseKinds(text: string): FigureKind[] {
   return kinds as FigureKind[];
 }
 
-function lineageMatches(document: unknown, wanted: readonly string[]): boolean {
+function lineageMatches(document: LineageView, wanted: readonly string[]): boolean {
   if (wanted.length === 0) return true;
-  const doc = document as { section?: unknown; trait?: unknown };
-  const section = typeof doc.section === 'string' ? doc.section : '';
-  const trait = typeof doc.trait === 'string' ? doc.trait : '';
+  const { section, trait } = document;
   const names = [section, trait, [section, trait].filter((part) => part !== '').join(' / ')].map((name) => name.normalize('NFC').toLowerCase());
   return wanted.some((name) => names.includes(name.trim().normalize('NFC').toLowerCase()));
 }
 
-/** Run `work`; a data error from the figure input (which knows no file) is re-raised naming the fit document. */
+/** Run `work`; a data error from the drawing (an axis that cannot be labelled, which knows no file) is re-raised naming the fit document. */
 function namingFile<T>(file: string, work: () => T): T {
   try {
     return work();

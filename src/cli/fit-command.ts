@@ -1,4 +1,4 @@
-import { runFitStreamed, type FitCommandOptions } from '../analyses/fit-run.js';
+import { runFitStreamed, type FitCommandOptions, type FitRun } from '../analyses/fit-run.js';
 import type { LineageExtras } from '../analyses/fit-extensions.js';
 import { modelSetLine } from '../analyses/model-selection.js';
 import type { LineageFit } from '../fit/fit-lineage.js';
@@ -7,7 +7,7 @@ import { checkOutputFile, inputPaths, OutputSet, prepareOutputFolder, releaseOut
 import { adequacyText, ratesText } from '../render/extensions-text.js';
 import { modelsCsv } from '../render/models-csv.js';
 import { lineageTable } from '../render/text-table.js';
-import { summariseTrends, trendSummaryText, trendText } from '../render/trend-text.js';
+import { trendSummaryText, trendText } from '../render/trend-text.js';
 
 // `stratotrend fit`: the fit run is src/analyses/fit-run.ts; this file prints
 // its tables (or JSON) and writes models.csv, fit.json, the figures and the
@@ -30,21 +30,20 @@ export async function fitCommand(file: string, options: FitCommandOptions): Prom
 async function fitAndWrite(file: string, options: FitCommandOptions): Promise<void> {
   // A report name that would overwrite an input or a file stratotrend did not write is refused before fitting.
   if (options.report) checkOutputFile(options.report, inputPaths(file, options), '--report file');
-  const run = await runFitStreamed(file, options);
-  // Age model: extrapolated horizons in words, and the Monte Carlo over tie ages (--age-draws).
-  const { fitAgeDraws } = await import('../analyses/compare-run.js');
-  // A progress bar for the age draws (stderr, terminal only, not with --quiet).
+  // A progress bar for the age draws (stderr, terminal only, not with --quiet); the run draws them before it builds its document.
   const reporter = options.ageDraws !== undefined ? stageProgress(options.quiet) : null;
-  let ageText: string;
+  let run: FitRun;
   try {
-    ageText = run.read ? fitAgeDraws(file, options, run, run.document, run.read.samples, run.age ?? null, reporter?.progress) : '';
+    run = await runFitStreamed(file, options, { ageDraws: reporter?.progress });
   } finally {
     reporter?.stop();
   }
+  // Age model: extrapolated horizons in words, and the Monte Carlo over tie ages (--age-draws).
+  const ageText = run.ageText ?? '';
+  // --summary: the summary module (and, with --out, the chart stack) is loaded only then.
   const compilation = options.summary ? await import('../analyses/compilation-output.js') : null;
-  const summary = compilation ? compilation.addCompilation(run) : null;
-  const trendSummary = summary && run.trends ? summariseTrends(run.fits, run.trends) : null;
-  if (trendSummary && run.document.compilation) (run.document.compilation as Record<string, unknown>).trend_tests = trendSummary;
+  const summary = run.compilation?.summary ?? null;
+  const trendSummary = run.compilation?.trends ?? null;
   // Figures load their module (and, when drawing, the chart stack) only with --out.
   const figures = options.out && options.figures !== false ? await import('../analyses/figure-files.js') : null;
   const lineageDocuments = run.document.lineages;

@@ -1,4 +1,5 @@
 import type { CompilationSummary, Distribution } from '../compare/compilation.js';
+import type { TrendSummary } from './trend-text.js';
 import { alignColumns } from './text-table.js';
 import { formatNumber } from './units.js';
 
@@ -72,7 +73,8 @@ export function compilationTable(summary: CompilationSummary): string {
 }
 
 /**
- * The JSON form of a compilation summary (snake_case like fit.json).
+ * The JSON form of a compilation summary (snake_case like fit.json), with the
+ * batch's trend verdicts in counts (`trend_tests`, last) when given.
  *
  * @example
  * const lineage = lineageFromArrays({ time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [1, 1, 1] });
@@ -80,7 +82,7 @@ export function compilationTable(summary: CompilationSummary): string {
  * const document = compilationDocument(summariseCompilation([fit, fit]));
  * document.models[0]; // { id: 'strict-stasis', label: 'strict stasis', wins: 2, win_share: 1, compared: 2, weight: { count: 2, mean: 1, minimum: 1, lower_quartile: 1, median: 1, upper_quartile: 1, maximum: 1 } }
  */
-export function compilationDocument(summary: CompilationSummary): Record<string, unknown> {
+export function compilationDocument(summary: CompilationSummary, trends: TrendSummary | null = null) {
   const distributionDocument = (value: Distribution) => ({
     count: value.count,
     mean: value.mean,
@@ -119,5 +121,9 @@ export function compilationDocument(summary: CompilationSummary): Record<string,
       drift: summary.drift ? summary.drift.estimates[index] : null,
     })),
     caution: compilationCaution,
+    ...(trends ? { trend_tests: trends } : {}),
   };
 }
+
+/** fit.json's `compilation` block (`fit --summary`). */
+export type CompilationDocument = ReturnType<typeof compilationDocument>;

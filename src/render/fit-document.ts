@@ -1,6 +1,7 @@
 import type { Warning } from '../data/warnings.js';
 import type { LineageFit, RankedFit } from '../fit/fit-lineage.js';
 import type { ParameterEstimate } from '../fit/fit-model.js';
+import type { CompilationDocument } from './compilation-table.js';
 import type { EstimateView, FitDocumentView, LineageView, ModelView } from './report/document-view.js';
 
 /** What produced a result: tool, inputs with checksums, and every option. */
@@ -100,23 +101,66 @@ export function lineageDocument(fit: LineageFit): LineageView {
   };
 }
 
+/** The age model as fit.json holds it (`age_model`): the tie file, and per section its ties and sedimentation rates. */
+export interface AgeModelDocument {
+  readonly file: string;
+  readonly position_kind: string;
+  readonly sections: readonly {
+    readonly section: string;
+    readonly ties: readonly { readonly height: number; readonly age: number; readonly age_sd: number; readonly line: number }[];
+    readonly sedimentation_rates: readonly { readonly from_height: number; readonly to_height: number; readonly rate: number }[];
+  }[];
+}
+
+/** `fit --age-draws` as fit.json holds it (`age_uncertainty`): per lineage, how the weights and estimates spread over the redrawn ages. */
+export interface AgeUncertaintyDocument {
+  readonly draws: number;
+  readonly seed: number;
+  readonly method: string;
+  readonly lineages: readonly { readonly section: string; readonly trait: string; readonly models: readonly Readonly<Record<string, unknown>>[] }[];
+}
+
+/**
+ * What `fit` adds to the document besides the fits, given when it is built
+ * (issue 22: the document is built once and never patched afterwards).
+ */
+export interface FitDocumentBlocks {
+  /** Per lineage, in `fits` order: blocks added after the lineage's own fields (models left out, rates, adequacy, trend test). */
+  readonly lineageBlocks?: readonly Readonly<Record<string, unknown>>[];
+  /** `--age-model`: the ties and rates. */
+  readonly ageModel?: AgeModelDocument;
+  /** `--age-draws`: the spread over redrawn tie ages. */
+  readonly ageUncertainty?: AgeUncertaintyDocument;
+  /** `--summary`: the cross-lineage summary. */
+  readonly compilation?: CompilationDocument;
+}
+
 /**
  * The fit document as `fit` builds it, typed once (issue 22): the shape the
  * report and the figures read (`FitDocumentView`), plus the blocks `fit` adds
- * after fitting (`--age-model`, `--age-draws`, `--summary`).
+ * (`--age-model`, `--age-draws`, `--summary`), each given at build time.
  */
 export interface FitDocument extends FitDocumentView {
-  age_model?: Record<string, unknown>;
-  age_uncertainty?: Record<string, unknown>;
-  compilation?: unknown;
+  readonly age_model?: AgeModelDocument;
+  readonly age_uncertainty?: AgeUncertaintyDocument;
+  readonly compilation?: CompilationDocument;
 }
 
-/** The whole `--json` / fit.json document. */
-export function fitDocument(fits: readonly LineageFit[], provenance: Provenance, warnings: readonly Warning[], modelSet: string): FitDocument {
-  return {
+/**
+ * The whole `--json` / fit.json document, built once: its top level is frozen,
+ * so a block cannot be added after the fact (give it in `blocks`).
+ * Keys in this order: provenance, model_set, lineages, warnings, then
+ * age_model, age_uncertainty and compilation when given.
+ */
+export function fitDocument(fits: readonly LineageFit[], provenance: Provenance, warnings: readonly Warning[], modelSet: string, blocks: FitDocumentBlocks = {}): FitDocument {
+  const { lineageBlocks, ageModel, ageUncertainty, compilation } = blocks;
+  return Object.freeze({
     provenance,
     model_set: modelSet,
-    lineages: fits.map(lineageDocument),
+    lineages: fits.map((fit, j) => (lineageBlocks?.[j] ? { ...lineageDocument(fit), ...lineageBlocks[j] } : lineageDocument(fit))),
     warnings: warnings.map((warning) => ({ category: warning.category, message: warning.message, count: warning.count })),
-  };
+    ...(ageModel ? { age_model: ageModel } : {}),
+    ...(ageUncertainty ? { age_uncertainty: ageUncertainty } : {}),
+    ...(compilation ? { compilation } : {}),
+  });
 }

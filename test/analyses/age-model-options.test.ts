@@ -7,7 +7,7 @@ import { readTable } from '../../src/data/read-table.js';
 import { WarningLog } from '../../src/data/warnings.js';
 import { warnImplausibleRates } from '../../src/analyses/age-model-options.js';
 import { runPower } from '../../src/analyses/power-run.js';
-import { runFitStreamed } from '../../src/analyses/fit-run.js';
+import { runFitStreamed, type FitRun } from '../../src/analyses/fit-run.js';
 import { root } from '../robustness/cli.js';
 import { runCliHere } from '../support/cli-in-process.js';
 
@@ -174,13 +174,8 @@ describe('progress of long jobs (drawn on a terminal only; here a recorder stand
   };
 
   it('fit --age-draws ticks once per draw up to the number of draws', async () => {
-    const { fitAgeDraws } = await import('../../src/analyses/compare-run.js');
-    // trendTest: false: the checks count the draws' progress ticks, not the verdict (issue 22).
-    const options = { ageModel: ties, ageDraws: '4', seed: '3', models: 'random-walk', intervals: false as const, quiet: true, trendTest: false };
-    const run = await runFitStreamed(heights, options);
-    const { stages, progress } = recorder();
-    fitAgeDraws(heights, options, run, run.document, run.read!.samples, run.age ?? null, progress);
-    expect(stages.map((stage) => [stage.total, stage.ticks])).toEqual([[4, [1, 2, 3, 4]]]);
+    await drawnRun();
+    expect(drawnStages.map((stage) => [stage.total, stage.ticks])).toEqual([[4, [1, 2, 3, 4]]]);
   });
 
   it('compare --age-draws ticks once per draw', async () => {
@@ -188,5 +183,35 @@ describe('progress of long jobs (drawn on a terminal only; here a recorder stand
     const { stages, progress } = recorder();
     await runCompare(heights, { ageModel: ties, ageDraws: '3', models: 'random-walk', intervals: false }, undefined, progress);
     expect(stages.map((stage) => [stage.total, stage.ticks])).toEqual([[3, [1, 2, 3]]]);
+  });
+});
+
+// One run shared by the age-draw progress check and the document checks below (fit once per file, issue 22):
+// the three blocks `fit` adds to its document, --age-model, --age-draws and --summary (with the trend verdicts it counts).
+const drawnStages: { label: string; total: number; ticks: number[] }[] = [];
+const drawnProgress = { stage(label: string, total: number) { const entry = { label, total, ticks: [] as number[] }; drawnStages.push(entry); return (done: number) => { entry.ticks.push(done); }; } };
+let drawn: Promise<FitRun> | undefined;
+const drawnRun = (): Promise<FitRun> => (drawn ??= runFitStreamed(heights, { ageModel: ties, ageDraws: '4', seed: '3', models: 'random-walk', intervals: false, quiet: true, summary: true, threads: 1 }, { ageDraws: drawnProgress }));
+
+describe('the fit document is built once (issue 22)', () => {
+  it('holds the age model, the age draws and the summary when the run returns, in the documented order', async () => {
+    const { document, fits } = await drawnRun();
+    // Key order of fit.json as the README's fit.json section lists it.
+    expect(Object.keys(document)).toEqual(['provenance', 'model_set', 'lineages', 'warnings', 'age_model', 'age_uncertainty', 'compilation']);
+    expect(document.age_model?.file).toBe(ties);
+    expect(document.age_uncertainty?.draws).toBe(4);
+    expect(document.age_uncertainty?.seed).toBe(3);
+    expect(document.age_uncertainty?.lineages.map((lineage) => `${lineage.section} / ${lineage.trait}`)).toEqual(fits.map((fit) => `${fit.lineage.section} / ${fit.lineage.trait}`));
+    // The trend verdicts are counted in the summary block itself, given when it was made (last key, as before).
+    expect(document.compilation?.lineages).toBe(fits.length);
+    expect(Object.keys(document.compilation ?? {}).at(-1)).toBe('trend_tests');
+    expect(document.compilation?.trend_tests?.tested).toBe(document.lineages.filter((lineage) => (lineage.trend_test as { p_value: number | null }).p_value !== null).length);
+  });
+
+  it('cannot be patched afterwards: its top level is frozen', async () => {
+    const { document } = await drawnRun();
+    expect(Object.isFrozen(document)).toBe(true);
+    // ES modules run in strict mode, where writing to a frozen object throws (ECMAScript, [[Set]] on a non-writable property).
+    expect(() => { (document as Record<string, unknown>).age_uncertainty = null; }).toThrow(TypeError);
   });
 });

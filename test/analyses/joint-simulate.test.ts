@@ -1,4 +1,3 @@
-import { execFileSync } from 'node:child_process';
 import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -7,15 +6,23 @@ import { jointCorrelationPower, jointTruth } from '../../src/analyses/joint-simu
 import { loadJointGroups, runJoint } from '../../src/analyses/joint-run.js';
 import { fitJointModel } from '../../src/joint/fit-joint.js';
 import { jointModel, type JointModel } from '../../src/joint/joint-models.js';
+import { root } from '../robustness/cli.js';
+import { runCliHere } from '../support/cli-in-process.js';
 
-const bin = new URL('../../bin/stratotrend', import.meta.url).pathname;
 const folder = mkdtempSync(join(tmpdir(), 'stratotrend-joint-simulate-'));
+
+/** `stratotrend ARGS` in the test process (runCliHere, issue 22), from the project folder: its stdout, or a failure showing stderr. */
+async function stratotrend(args: string[]): Promise<string> {
+  const run = await runCliHere(args, root);
+  if (run.status !== 0) throw new Error(`stratotrend ${args.join(' ')} exited with ${run.status}: ${run.stderr}`);
+  return run.stdout;
+}
 
 describe('simulate with a joint model', () => {
   it('writes summary rows on the file\'s design that read back as the same group; same seed, same bytes', async () => {
-    const args = [bin, 'simulate', 'sample-data/shell-shape.csv', '--model', 'correlated-random-walk', '--seed', '4'];
-    const text = execFileSync('node', args, { encoding: 'utf8' });
-    expect(execFileSync('node', args, { encoding: 'utf8' })).toBe(text);
+    const args = ['simulate', 'sample-data/shell-shape.csv', '--model', 'correlated-random-walk', '--seed', '4'];
+    const text = await stratotrend(args);
+    expect(await stratotrend(args)).toBe(text);
     const path = join(folder, 'simulated.csv');
     writeFileSync(path, text);
     const [original] = (await loadJointGroups('sample-data/shell-shape.csv', {})).groups;
@@ -53,7 +60,7 @@ describe('power to detect a correlation', () => {
 
   it('the joint command still fits what simulate wrote', async () => {
     const path = join(folder, 'simulated-2.csv');
-    writeFileSync(path, execFileSync('node', [bin, 'simulate', 'sample-data/shell-shape.csv', '--model', 'independent-stasis', '--replicates', '2'], { encoding: 'utf8' }));
+    writeFileSync(path, await stratotrend(['simulate', 'sample-data/shell-shape.csv', '--model', 'independent-stasis', '--replicates', '2']));
     const run = await runJoint(path, { models: 'independent-stasis', intervals: false });
     expect(run.fits.map((fit) => fit.group.section)).toEqual(['Marrowind Wash r1', 'Marrowind Wash r2']);
   });

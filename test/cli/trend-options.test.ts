@@ -2,7 +2,8 @@ import { describe, expect, it } from 'vitest';
 import { runFitStreamed } from '../../src/analyses/fit-run.js';
 import { checkFitDocument } from '../../src/data/documents.js';
 import { modelsCsv } from '../../src/render/models-csv.js';
-import { root, runCli } from '../robustness/cli.js';
+import { root } from '../robustness/cli.js';
+import { runCliHere } from '../support/cli-in-process.js';
 import { join } from 'node:path';
 
 // Issue 15: every fit carries a trend verdict; --no-trend-test, --trend-level and --seed steer it.
@@ -26,11 +27,12 @@ describe('fit with the trend test', () => {
     expect(header.slice(-8)).toEqual(['trend_statistic', 'trend_p_value', 'trend_level', 'trend_supported', 'trend_direction', 'trend_replicates', 'trend_seed', 'trend_aicc_false_trend_rate']);
   }, 120_000);
 
-  it('--no-trend-test leaves it out; a bad --trend-level is a usage error', () => {
-    const skipped = runCli(['fit', sample, '--no-intervals', '--no-trend-test', '--json']);
+  // Command lines in the test process (runCliHere, issue 22): the checks read the exit code and the output.
+  it('--no-trend-test leaves it out; a bad --trend-level is a usage error', async () => {
+    const skipped = await runCliHere(['fit', sample, '--no-intervals', '--no-trend-test', '--json'], root);
     expect(skipped.status).toBe(0);
     expect(JSON.parse(skipped.stdout).lineages[0].trend_test).toBeUndefined();
-    const bad = runCli(['fit', sample, '--no-intervals', '--trend-level', '5']);
+    const bad = await runCliHere(['fit', sample, '--no-intervals', '--trend-level', '5'], root);
     expect(bad.status).toBe(2);
     expect(bad.stderr).toMatch(/--trend-level must be a number between 0 and 1, e\.g\. 0\.05, got "5"/);
   }, 120_000);

@@ -16,7 +16,7 @@ import type { HypothesisFit, TraitComparison } from '../../src/compare/compare-s
 import { offsetModel, sharedModel } from '../../src/compare/joint-models.js';
 import { lineageFromArrays, type Lineage } from '../../src/lineage.js';
 import { randomWalk } from '../../src/models/random-walk.js';
-import { readFigureLineage } from '../../src/render/figures/figure-input.js';
+import { figureLineage } from '../../src/render/figures/figure-input.js';
 import { modelCurve, normal95, timeAxisFor } from '../../src/render/figures/geometry.js';
 
 function section(name: string, firstAge: number, means: number[]): Lineage {
@@ -37,7 +37,7 @@ function hypothesisFit(id: 'shared' | 'shared-offset', estimates: Record<string,
 
 function curvesOf(comparison: TraitComparison) {
   const documents = sectionDocuments(comparison, [randomWalk]);
-  const lineages = documents.map((document, i) => readFigureLineage(document, `lineages[${i}]`));
+  const lineages = documents.map((document) => figureLineage(document));
   const axis = timeAxisFor(lineages);
   return lineages.map((lineage) => ({ lineage, curve: modelCurve(lineage, axis, 'random-walk').curve! }));
 }

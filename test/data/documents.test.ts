@@ -15,7 +15,7 @@ import fc from 'fast-check';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { checkComparisonDocument, checkFitDocument, checkPowerDocument } from '../../src/data/documents.js';
 import { InputError } from '../../src/data/errors.js';
-import { figureJobs, readFigureLineage } from '../../src/render/figures/index.js';
+import { figureJobs, figureLineage } from '../../src/render/figures/index.js';
 import { asFitDocument } from '../../src/render/report/document-view.js';
 import { reportPage } from '../../src/render/report/report-page.js';
 import { sketchTrajectory } from '../../src/render/report/sketch-figure.js';
@@ -192,7 +192,7 @@ describe('fuzz: one field replaced by a value of another kind', () => {
       const view = asFitDocument(edited);
       reportPage({ document: view, run: { date: '2026-01-01T00:00:00Z' } });
       view.lineages.forEach((lineage, index) => {
-        readFigureLineage(lineage, `lineages[${index}]`);
+        figureLineage(lineage);
         sketchTrajectory(lineage);
       });
       figureJobs(view.lineages);

@@ -8,7 +8,7 @@ import { classicModels } from '../../src/models/registry.js';
 import { summariseCompilation } from '../../src/compare/compilation.js';
 import { compilationTable } from '../../src/render/compilation-table.js';
 import { lineageDocument } from '../../src/render/fit-document.js';
-import { readFigureLineage } from '../../src/render/figures/figure-input.js';
+import { figureLineage } from '../../src/render/figures/figure-input.js';
 import { traitAxisTitle } from '../../src/render/figures/geometry.js';
 import { renderTrajectory } from '../../src/render/figures/index.js';
 import { powerCurvePlan, type PowerCurveInput } from '../../src/render/figures/power-curve.js';
@@ -129,10 +129,10 @@ describe('fit.json document', () => {
   });
 
   it('is read back for figures (absent, null or blank: no unit)', () => {
-    expect(readFigureLineage(documentWith).traitUnit).toBe('mm');
-    expect(readFigureLineage(documentWithout).traitUnit).toBeNull();
-    expect(readFigureLineage(ridgeDocument()).traitUnit).toBeNull();
-    expect(readFigureLineage({ ...ridgeDocument(), trait_unit: '  ' }).traitUnit).toBeNull();
+    expect(figureLineage(documentWith).traitUnit).toBe('mm');
+    expect(figureLineage(documentWithout).traitUnit).toBeNull();
+    expect(figureLineage(ridgeDocument()).traitUnit).toBeNull();
+    expect(figureLineage({ ...ridgeDocument(), trait_unit: '  ' }).traitUnit).toBeNull();
   });
 });
 

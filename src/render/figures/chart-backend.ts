@@ -152,9 +152,9 @@ function prepared(plan: FigurePlan, ratio: number, background: boolean, store: {
  *
  * @example
  * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
- * const figureLineage = readFigureLineage(lineageDocument(fitLineage(lineage, [strictStasis], { intervals: false })));
+ * const view = figureLineage(lineageDocument(fitLineage(lineage, [strictStasis], { intervals: false })));
  * const options = resolveFigureOptions({ format: 'svg' });
- * const figure = drawFigure(trajectoryPlan([figureLineage], options, false), options);
+ * const figure = drawFigure(trajectoryPlan([view], options, false), options);
  * figure.mime; // 'image/svg+xml'
  * figure.width; // 255 (9 cm at 72 points an inch: 9 / 2.54 × 72, rounded)
  */

@@ -1,10 +1,8 @@
-import { InputError } from '../../data/errors.js';
+import type { LineageView, ModelView } from '../report/document-view.js';
 
 /**
  * The parts of one lineage document (as `lineageDocument` writes it into
- * fit.json) that the figures read. Only these fields are required; anything
- * else in the document is ignored, so older and newer fit.json files redraw
- * as long as these are present.
+ * fit.json) that the figures read, in the figures' terms (`figureLineage`).
  */
 export interface FigureLineage {
   readonly section: string;
@@ -27,7 +25,7 @@ export interface FigureLineage {
   readonly position: readonly number[];
   readonly mean: readonly number[];
   readonly samplingVariance: readonly number[];
-  /** Specimens per horizon (`data.n`), or null when the document has none. */
+  /** Specimens per horizon (`data.n`); null where a caller has none (the figures then draw every marker alike). */
   readonly count: readonly number[] | null;
   /** Horizons whose age the age model extrapolated beyond its ties (drawn open). */
   readonly extrapolated: readonly boolean[];
@@ -57,116 +55,80 @@ export interface FigureModel {
   readonly derived: Readonly<Record<string, number>>;
 }
 
-type Json = Record<string, unknown>;
+/**
+ * A lineage document as the figures take it: one entry of the fit document's
+ * `lineages` (`LineageView`), and for `compare`'s sections figure the time its
+ * curve starts on the model's clock (`curve_origin`, default 0).
+ */
+export type FigureLineageDocument = LineageView & { readonly curve_origin?: number };
 
-function fail(where: string, detail: string): never {
-  throw new InputError(`${where}: ${detail}`);
-}
-
-function numberList(value: unknown, where: string, length: number | null): number[] {
-  if (!Array.isArray(value)) fail(where, `must be a list of numbers, got ${JSON.stringify(value)?.slice(0, 40)}`);
-  if (length !== null && value.length !== length) fail(where, `must have ${length} entries (one per horizon), got ${value.length}`);
-  return value.map((entry, index) => {
-    if (typeof entry !== 'number' || !Number.isFinite(entry)) fail(`${where}[${index}]`, `must be a finite number, got ${JSON.stringify(entry)}`);
-    return entry;
-  });
-}
-
-function nullableNumber(value: unknown): number | null {
-  return typeof value === 'number' && Number.isFinite(value) ? value : null;
-}
-
-function text(value: unknown, fallback = ''): string {
-  return typeof value === 'string' ? value : fallback;
+/** A data list as numbers: a document built by `lineageDocument` or checked by `checkFitDocument` holds no null there. */
+function numbers(values: readonly (number | null)[]): readonly number[] {
+  return values as readonly number[];
 }
 
 /**
- * Read one lineage document (from fit.json or straight from
- * `lineageDocument`) into the figure's view of it, checking the fields the
- * figures need.
+ * One lineage document in the figures' terms. No checks here (issue 22): the
+ * document is either built by `lineageDocument` from a lineage the reader
+ * validated (`fit`, `report`, `compare`), or read from a saved fit.json and
+ * checked field by field once, on reading (`checkFitDocument` in `redraw` and
+ * `report FIT_JSON`). Fields a fit.json of an older version may lack
+ * (`trait_unit`, `first_age`) and `curve_origin` get their defaults.
  *
- * @param document - one entry of fit.json's `lineages`
- * @param where - how to name the document in errors, e.g. `fit.json lineages[1]`
- * @throws InputError naming the field when data are missing or not numbers
+ * @param document - one entry of fit.json's `lineages`, or `lineageDocument(fit)`
  *
  * @example
  * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
- * const figureLineage = readFigureLineage(lineageDocument(fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })));
- * figureLineage.models.map((model) => model.id); // ['strict-stasis', 'random-walk']
- * figureLineage.mean; // [1, 2, 3]
- * readFigureLineage([]);
- * // throws: lineage: must be a lineage object
+ * const view = figureLineage(lineageDocument(fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })));
+ * view.models.map((model) => model.id); // ['strict-stasis', 'random-walk']
+ * view.mean; // [1, 2, 3]
  */
-export function readFigureLineage(document: unknown, where = 'lineage'): FigureLineage {
-  if (document === null || typeof document !== 'object' || Array.isArray(document)) fail(where, 'must be a lineage object');
-  const doc = document as Json;
-  const data = doc.data as Json | undefined;
-  if (!data || typeof data !== 'object') fail(`${where}.data`, 'missing (this fit.json has no horizon data to draw)');
-  const time = numberList(data.time, `${where}.data.time`, null);
-  if (time.length < 1) fail(`${where}.data.time`, 'has no horizons');
-  const mean = numberList(data.mean, `${where}.data.mean`, time.length);
-  const samplingVariance = numberList(data.sampling_variance, `${where}.data.sampling_variance`, time.length);
-  const count = Array.isArray(data.n) && data.n.length === time.length && data.n.every((value) => typeof value === 'number' && value > 0 && Number.isFinite(value)) ? (data.n as number[]) : null;
-  const position = data.position === undefined ? time.slice() : numberList(data.position, `${where}.data.position`, time.length);
-  const rawModels = Array.isArray(doc.models) ? (doc.models as Json[]) : [];
-  const models: FigureModel[] = rawModels.map((model, index) => {
-    const params = (model.params ?? {}) as Record<string, { estimate?: unknown }>;
-    const estimates: Record<string, number> = {};
-    for (const [name, entry] of Object.entries(params)) {
-      const value = nullableNumber(entry?.estimate);
-      if (value !== null) estimates[name] = value;
-    }
-    const derived: Record<string, number> = {};
-    const rawDerived = model.derived && typeof model.derived === 'object' ? (model.derived as Record<string, { estimate?: unknown } | null>) : {};
-    for (const [name, entry] of Object.entries(rawDerived)) {
-      const value = nullableNumber(entry?.estimate);
-      if (value !== null) derived[name] = value;
-    }
-    const aicc = nullableNumber(model.aicc);
+export function figureLineage(document: FigureLineageDocument): FigureLineage {
+  const { data } = document;
+  const time = numbers(data.time);
+  const models: FigureModel[] = document.models.map((model) => {
+    const pointEstimates = (entries: ModelView['params']): Record<string, number> => {
+      const estimates: Record<string, number> = {};
+      for (const [name, entry] of Object.entries(entries)) if (entry.estimate !== null) estimates[name] = entry.estimate;
+      return estimates;
+    };
     return {
-      id: text(model.id, `model ${index + 1}`),
-      label: text(model.label, text(model.id, `model ${index + 1}`)),
-      k: nullableNumber(model.k),
-      logLik: nullableNumber(model.logLik),
-      aicc,
-      deltaAicc: nullableNumber(model.delta_aicc),
-      weight: nullableNumber(model.weight),
-      compared: model.compared === undefined ? aicc !== null : model.compared === true,
-      notComparedReason: typeof model.not_compared_reason === 'string' ? model.not_compared_reason : null,
-      estimates,
-      derived,
+      id: model.id,
+      label: model.label,
+      k: model.k,
+      logLik: model.logLik,
+      aicc: model.aicc,
+      deltaAicc: model.delta_aicc,
+      weight: model.weight,
+      compared: model.compared,
+      notComparedReason: model.not_compared_reason,
+      estimates: pointEstimates(model.params),
+      derived: pointEstimates(model.derived),
     };
   });
-  let smoothed: FigureLineage['smoothed'] = null;
-  const rawSmoothed = doc.smoothed as Json | null | undefined;
-  if (rawSmoothed && typeof rawSmoothed === 'object') {
-    const smoothedMean = rawSmoothed.mean;
-    const standardError = rawSmoothed.standard_error;
-    if (Array.isArray(smoothedMean) && Array.isArray(standardError) && smoothedMean.length === time.length && standardError.length === time.length) {
-      // A smoother that failed at a horizon writes null there; such a band is not drawn.
-      if (smoothedMean.every((v) => typeof v === 'number') && standardError.every((v) => typeof v === 'number')) {
-        smoothed = { model: text(rawSmoothed.model), mean: smoothedMean as number[], standardError: standardError as number[] };
-      }
-    }
-  }
+  const { smoothed } = document;
   return {
-    section: text(doc.section),
-    trait: text(doc.trait),
-    timeUnit: text(doc.time_unit, 'Myr'),
-    traitUnit: typeof doc.trait_unit === 'string' && doc.trait_unit.trim() !== '' ? doc.trait_unit : null,
-    positionKind: text(doc.position_kind, 'time'),
-    firstAge: nullableNumber(doc.first_age),
-    transform: text(doc.transform, 'none'),
-    bestModel: typeof doc.best_model === 'string' ? doc.best_model : null,
+    section: document.section,
+    trait: document.trait,
+    timeUnit: document.time_unit,
+    // A label of blanks is no label (the axis title stays without a unit).
+    traitUnit: typeof document.trait_unit === 'string' && document.trait_unit.trim() !== '' ? document.trait_unit : null,
+    positionKind: document.position_kind,
+    firstAge: typeof document.first_age === 'number' ? document.first_age : null,
+    transform: document.transform,
+    bestModel: document.best_model,
     models,
     time,
-    position,
-    mean,
-    samplingVariance,
-    count,
-    extrapolated: Array.isArray(data.extrapolated) && data.extrapolated.length === time.length ? data.extrapolated.map((flag) => flag === true) : time.map(() => false),
-    smoothed,
-    curveOrigin: nullableNumber(doc.curve_origin) ?? 0,
+    position: numbers(data.position),
+    mean: numbers(data.mean),
+    samplingVariance: numbers(data.sampling_variance),
+    count: numbers(data.n),
+    extrapolated: data.extrapolated,
+    // A smoother that failed at a horizon writes null there; such a band is not drawn.
+    smoothed: smoothed && smoothed.mean.every((value) => value !== null) && smoothed.standard_error.every((value) => value !== null)
+      ? { model: smoothed.model, mean: numbers(smoothed.mean), standardError: numbers(smoothed.standard_error) }
+      : null,
+    curveOrigin: document.curve_origin ?? 0,
   };
 }
 

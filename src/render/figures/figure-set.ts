@@ -34,14 +34,10 @@ export function fileSlug(text: string): string {
   return slug.slice(0, 80);
 }
 
+/** What the file names are made of: a lineage document's section and trait. */
 interface NamedLineage {
   readonly section: string;
   readonly trait: string;
-}
-
-function nameOf(document: unknown): NamedLineage {
-  const doc = (document ?? {}) as Record<string, unknown>;
-  return { section: typeof doc.section === 'string' ? doc.section : '', trait: typeof doc.trait === 'string' ? doc.trait : '' };
 }
 
 /**
@@ -65,8 +61,8 @@ function nameOf(document: unknown): NamedLineage {
  * @example
  * figureJobs([{ section: 'A/B', trait: 'x' }, { section: 'A-B', trait: 'x' }], ['trajectory']).map((job) => job.stem); // ['a-b_x.trajectory', 'a-b_x-2.trajectory'] (equal slugs numbered)
  */
-export function figureJobs(documents: readonly unknown[], kinds: readonly FigureKind[] = figureKinds, selected: (index: number) => boolean = () => true): FigureJob[] {
-  const names = documents.map(nameOf);
+export function figureJobs(documents: readonly NamedLineage[], kinds: readonly FigureKind[] = figureKinds, selected: (index: number) => boolean = () => true): FigureJob[] {
+  const names = documents.map((document) => ({ section: document.section, trait: document.trait }));
   const used = new Set<string>();
   const unique = (stem: string) => {
     let candidate = stem;

@@ -51,9 +51,9 @@ export function ageUnitLabel(timeUnit: string): string {
  *
  * @example
  * const lineage = lineageFromArrays({ time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
- * const figureLineage = readFigureLineage(lineageDocument(fitLineage(lineage, [strictStasis], { intervals: false })));
- * timeAxisFor([figureLineage]).title; // 'Time (Myr)'
- * timeAxisFor([figureLineage]).toAxis(figureLineage, 2); // 2
+ * const view = figureLineage(lineageDocument(fitLineage(lineage, [strictStasis], { intervals: false })));
+ * timeAxisFor([view]).title; // 'Time (Myr)'
+ * timeAxisFor([view]).toAxis(view, 2); // 2
  */
 export function timeAxisFor(lineages: readonly FigureLineage[]): TimeAxis {
   const unit = lineages[0]?.timeUnit ?? 'Myr';
@@ -114,8 +114,8 @@ export interface HorizonMark {
  *
  * @example
  * const lineage = lineageFromArrays({ time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
- * const figureLineage = readFigureLineage(lineageDocument(fitLineage(lineage, [strictStasis], { intervals: false })));
- * const [first] = horizonMarks(figureLineage, timeAxisFor([figureLineage]));
+ * const view = figureLineage(lineageDocument(fitLineage(lineage, [strictStasis], { intervals: false })));
+ * const [first] = horizonMarks(view, timeAxisFor([view]));
  * first.lower; // 0.6080072030919892 (to 1e-12; 1 - 1.959964 × 0.2, z of the normal 97.5% quantile)
  * first.upper; // 1.3919927969080108 (to 1e-12; 1 + 1.959964 × 0.2)
  */
@@ -163,9 +163,9 @@ export const curveSamples = 160;
  *
  * @example
  * const lineage = lineageFromArrays({ time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
- * const figureLineage = readFigureLineage(lineageDocument(fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })));
- * chosenModel(figureLineage, null).model.id; // 'strict-stasis' (the best supported)
- * chosenModel(figureLineage, 'ou'); // { model: null, reason: 'model "ou" is not in this fit' }
+ * const view = figureLineage(lineageDocument(fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })));
+ * chosenModel(view, null).model.id; // 'strict-stasis' (the best supported)
+ * chosenModel(view, 'ou'); // { model: null, reason: 'model "ou" is not in this fit' }
  */
 export function chosenModel(lineage: FigureLineage, requested: string | null): { model: FigureModel | null; reason: string | null } {
   const id = requested ?? lineage.bestModel;
@@ -194,8 +194,8 @@ export function chosenModel(lineage: FigureLineage, requested: string | null): {
  *
  * @example
  * const lineage = lineageFromArrays({ time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
- * const figureLineage = readFigureLineage(lineageDocument(fitLineage(lineage, [strictStasis], { intervals: false })));
- * const { curve } = modelCurve(figureLineage, timeAxisFor([figureLineage]), null);
+ * const view = figureLineage(lineageDocument(fitLineage(lineage, [strictStasis], { intervals: false })));
+ * const { curve } = modelCurve(view, timeAxisFor([view]), null);
  * curve.id; // 'strict-stasis'
  * new Set(curve.mean); // new Set([2]) (strict stasis: the mean 2 everywhere)
  */
@@ -252,9 +252,9 @@ export function modelCurve(lineage: FigureLineage, axis: TimeAxis, requested: st
  *
  * @example
  * const lineage = lineageFromArrays({ time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
- * const figureLineage = readFigureLineage(lineageDocument(fitLineage(lineage, [strictStasis], { intervals: false })));
- * smoothedBand(figureLineage, timeAxisFor([figureLineage])).mean; // [2, 2, 2] (strict stasis: no process, the fitted mean)
- * smoothedBand({ ...figureLineage, smoothed: null }, timeAxisFor([figureLineage])); // null
+ * const view = figureLineage(lineageDocument(fitLineage(lineage, [strictStasis], { intervals: false })));
+ * smoothedBand(view, timeAxisFor([view])).mean; // [2, 2, 2] (strict stasis: no process, the fitted mean)
+ * smoothedBand({ ...view, smoothed: null }, timeAxisFor([view])); // null
  */
 export function smoothedBand(lineage: FigureLineage, axis: TimeAxis): { model: string; time: number[]; mean: number[]; lower: number[]; upper: number[] } | null {
   const smoothed = lineage.smoothed;

@@ -1,7 +1,9 @@
 /**
  * Publication figures of a fit, drawn from the lineage documents exactly as
  * fit.json holds them (`lineageDocument` in src/render/fit-document.ts), so
- * a saved fit can be redrawn without refitting.
+ * a saved fit can be redrawn without refitting. The documents are typed and
+ * not checked again here: a saved fit.json is checked once, where it is read
+ * (`checkFitDocument`, in `redraw` and `report FIT_JSON`).
  *
  * - `renderTrajectory`: one lineage through its section: horizon means with
  *   95% sampling intervals (±1.96 √e_i), the chosen model's expected
@@ -17,24 +19,20 @@
  * the SVG's bytes with `mime` 'image/svg+xml' (each function's own example shows a call).
  */
 import { drawFigure, type RenderedFigure } from './chart-backend.js';
-import { readFigureLineage, type FigureLineage } from './figure-input.js';
+import { figureLineage, type FigureLineageDocument } from './figure-input.js';
 import { resolveFigureOptions, type FigureOptions } from './figure-options.js';
 import { modelSupportPlan } from './model-support.js';
 import { smallMultiplesFrom, smallMultiplesPlan } from './small-multiples.js';
 import { trajectoryPlan } from './trajectory.js';
 
 export type { FigureFrame, RenderedFigure } from './chart-backend.js';
-export type { FigureLineage, FigureModel } from './figure-input.js';
-export { readFigureLineage, figureLineageName } from './figure-input.js';
+export type { FigureLineage, FigureLineageDocument, FigureModel } from './figure-input.js';
+export { figureLineage, figureLineageName } from './figure-input.js';
 export type { FigureFormat, FigureOptions, FigureOrientation, ResolvedFigureOptions } from './figure-options.js';
 export { resolveFigureOptions, parseFigureWidth, singleColumnCm, doubleColumnCm, defaultDpi } from './figure-options.js';
 export { pngInfo, withPngMetadata } from './png-metadata.js';
 export { figureJobs, figureKinds, fileSlug, type FigureJob, type FigureKind } from './figure-set.js';
 export * as figureStyle from './style.js';
-
-function asLineage(document: unknown, where: string): FigureLineage {
-  return readFigureLineage(document, where);
-}
 
 /**
  * The trajectory figure of one lineage.
@@ -44,19 +42,17 @@ function asLineage(document: unknown, where: string): FigureLineage {
  *   dpi (600 default, PNG only), orientation ('stratigraphic' default or 'horizontal'),
  *   model (id to draw; default the best-supported), smoothed (band on/off, default off)
  * @returns the file's bytes, MIME type, size (pixels for PNG, points for vector) and where the plot landed
- * @throws InputError when the document lacks the horizon data or an option is out of range
+ * @throws InputError when an option is out of range or an axis cannot be labelled (the document itself is not checked here: it comes from a fit, or was checked when read)
  *
  * @example
  * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
  * const figure = renderTrajectory(lineageDocument(fitLineage(lineage, [strictStasis], { intervals: false })), { format: 'svg' });
  * figure.mime; // 'image/svg+xml'
  * figure.width; // 255 (9 cm at 72 points an inch)
- * renderTrajectory({ section: 'A' });
- * // throws: lineage
  */
-export function renderTrajectory(lineageDocument: unknown, options: FigureOptions = {}): RenderedFigure {
+export function renderTrajectory(lineageDocument: FigureLineageDocument, options: FigureOptions = {}): RenderedFigure {
   const resolved = resolveFigureOptions(options);
-  return drawFigure(trajectoryPlan([asLineage(lineageDocument, 'lineage')], resolved, false), resolved);
+  return drawFigure(trajectoryPlan([figureLineage(lineageDocument)], resolved, false), resolved);
 }
 
 /**
@@ -74,10 +70,10 @@ export function renderTrajectory(lineageDocument: unknown, options: FigureOption
  * const figure = renderSectionsTogether([section('A'), section('B')], { format: 'svg' });
  * [figure.mime, figure.width]; // ['image/svg+xml', 255]
  */
-export function renderSectionsTogether(lineageDocuments: readonly unknown[], options: FigureOptions = {}): RenderedFigure {
+export function renderSectionsTogether(lineageDocuments: readonly FigureLineageDocument[], options: FigureOptions = {}): RenderedFigure {
   const resolved = resolveFigureOptions(options);
   if (lineageDocuments.length === 0) throw new Error('renderSectionsTogether needs at least one lineage');
-  const lineages = lineageDocuments.map((document, index) => asLineage(document, `lineages[${index}]`));
+  const lineages = lineageDocuments.map(figureLineage);
   // Many sections: one panel each on shared axes, so none has to share a colour, marker or dash with another.
   if (lineages.length >= smallMultiplesFrom) return drawFigure(smallMultiplesPlan(lineages, resolved), resolved);
   return drawFigure(trajectoryPlan(lineages, resolved, true), resolved);
@@ -93,7 +89,7 @@ export function renderSectionsTogether(lineageDocuments: readonly unknown[], opt
  * const figure = renderModelSupport(lineageDocument(fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })), { format: 'svg' });
  * [figure.mime, figure.width]; // ['image/svg+xml', 255]
  */
-export function renderModelSupport(lineageDocument: unknown, options: FigureOptions = {}): RenderedFigure {
+export function renderModelSupport(lineageDocument: FigureLineageDocument, options: FigureOptions = {}): RenderedFigure {
   const resolved = resolveFigureOptions(options);
-  return drawFigure(modelSupportPlan(asLineage(lineageDocument, 'lineage'), resolved), resolved);
+  return drawFigure(modelSupportPlan(figureLineage(lineageDocument), resolved), resolved);
 }

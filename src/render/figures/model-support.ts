@@ -40,8 +40,8 @@ export function tableNumber(value: number | null, decimals: number): string {
  *
  * @example
  * const lineage = lineageFromArrays({ time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
- * const figureLineage = readFigureLineage(lineageDocument(fitLineage(lineage, [randomWalk, strictStasis], { intervals: false })));
- * supportRows(figureLineage).map((model) => model.id); // ['strict-stasis', 'random-walk'] (lowest AICc first)
+ * const view = figureLineage(lineageDocument(fitLineage(lineage, [randomWalk, strictStasis], { intervals: false })));
+ * supportRows(view).map((model) => model.id); // ['strict-stasis', 'random-walk'] (lowest AICc first)
  */
 export function supportRows(lineage: FigureLineage): FigureModel[] {
   const compared = lineage.models.filter((model) => model.compared && model.aicc !== null).sort((a, b) => (a.aicc as number) - (b.aicc as number));
@@ -135,8 +135,8 @@ interface TableLayout {
  *
  * @example
  * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
- * const figureLineage = readFigureLineage(lineageDocument(fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })));
- * const plan = modelSupportPlan(figureLineage, resolveFigureOptions({}));
+ * const view = figureLineage(lineageDocument(fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })));
+ * const plan = modelSupportPlan(view, resolveFigureOptions({}));
  * plan.title; // 'A / length: model support'
  * plan.rowCentres.length; // 2 (one row per model)
  */

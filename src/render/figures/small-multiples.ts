@@ -57,7 +57,7 @@ function shortLabel(label: string): string {
  * @param lineages - the sections of one trait, in panel order (left to right, top to bottom)
  *
  * @example
- * const section = (name) => readFigureLineage(lineageDocument(fitLineage(lineageFromArrays({ section: name, trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] }), [strictStasis], { intervals: false })));
+ * const section = (name) => figureLineage(lineageDocument(fitLineage(lineageFromArrays({ section: name, trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] }), [strictStasis], { intervals: false })));
  * const plan = smallMultiplesPlan([section('A'), section('B')], resolveFigureOptions({}));
  * plan.title; // 'Length: 2 sections'
  * plan.panels.length; // 2

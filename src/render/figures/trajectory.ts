@@ -113,8 +113,8 @@ interface EnvelopeFill {
  *
  * @example
  * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 2, 3], samplingVariance: [0.04, 0.04, 0.04] });
- * const figureLineage = readFigureLineage(lineageDocument(fitLineage(lineage, [strictStasis], { intervals: false })));
- * const plan = trajectoryPlan([figureLineage], resolveFigureOptions({}), false);
+ * const view = figureLineage(lineageDocument(fitLineage(lineage, [strictStasis], { intervals: false })));
+ * const plan = trajectoryPlan([view], resolveFigureOptions({}), false);
  * plan.title; // 'A / length'
  * plan.widthPoints; // 255.11811023622047 (to 1e-9; 9 cm in points)
  */

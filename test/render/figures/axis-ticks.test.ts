@@ -11,7 +11,7 @@ import { fitLineage } from '../../../src/fit/fit-lineage.js';
 import { lineageFromArrays } from '../../../src/lineage.js';
 import { classicModels } from '../../../src/models/registry.js';
 import { lineageDocument } from '../../../src/render/fit-document.js';
-import { readFigureLineage } from '../../../src/render/figures/figure-input.js';
+import { figureLineage } from '../../../src/render/figures/figure-input.js';
 import { resolveFigureOptions, type FigureOptions } from '../../../src/render/figures/figure-options.js';
 import { tickStep, trajectoryPlan } from '../../../src/render/figures/trajectory.js';
 import { ridgeDocument } from './documents.js';
@@ -20,7 +20,7 @@ import { ridgeDocument } from './documents.js';
 /** Draw the trajectory figure of each document and record every scale's ticks as chart.js laid them out. */
 function drawnTicks(documents: readonly unknown[], options: FigureOptions): Record<string, DrawnScale> {
   const resolved = resolveFigureOptions(options);
-  const lineages = documents.map((document, i) => readFigureLineage(document, `document ${i}`));
+  const lineages = documents.map((document) => figureLineage(document));
   const plan = trajectoryPlan(lineages, resolved, lineages.length > 1);
   return recordDrawnTicks(plan, resolved);
 }

@@ -7,7 +7,7 @@
 import { describe, expect, it } from 'vitest';
 import { parseLeaveOut } from '../../../src/analyses/figure-files.js';
 import { InputError } from '../../../src/data/errors.js';
-import { readFigureLineage } from '../../../src/render/figures/figure-input.js';
+import { figureLineage } from '../../../src/render/figures/figure-input.js';
 import { resolveFigureOptions, type FigureOptions } from '../../../src/render/figures/figure-options.js';
 import { renderTrajectory } from '../../../src/render/figures/index.js';
 import { styledWords } from '../../../src/render/figures/marks.js';
@@ -18,7 +18,7 @@ import { recordDrawnText, textProblems } from './drawn-text.js';
 
 function drawnStrings(options: FigureOptions, together = false) {
   const documents = together ? [ridgeDocument({ section: 'Test Ridge' }), ridgeDocument({ section: 'Fern Hollow', offset: 0.5, ageShift: -0.3 })] : [ridgeDocument()];
-  const lineages = documents.map((document, i) => readFigureLineage(document, `lineages[${i}]`));
+  const lineages = documents.map((document) => figureLineage(document));
   const resolved = resolveFigureOptions(options);
   return recordDrawnText(trajectoryPlan(lineages, resolved, together), resolved);
 }
@@ -77,7 +77,7 @@ describe('captions left out and the trait axis title', () => {
     }
     // Sections drawn as small multiples carry the italics too.
     const many = Array.from({ length: 7 }, (_, s) => ridgeDocument({ section: `Invented Gully ${s + 1}`, offset: 0.1 * s }));
-    const lineages = many.map((document, i) => readFigureLineage(document, `lineages[${i}]`));
+    const lineages = many.map((document) => figureLineage(document));
     const resolved = resolveFigureOptions({ traitTitle: title });
     const drawn = recordDrawnText(smallMultiplesPlan(lineages, resolved), resolved);
     expect(drawn.texts.filter((text) => text.font.startsWith('italic')).map((text) => text.text)).toEqual(['Inventa fictiva']);

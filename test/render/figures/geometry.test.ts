@@ -1,6 +1,7 @@
 import { cumulativeStdNormalProbability } from 'simple-statistics';
 import { describe, expect, it } from 'vitest';
-import { readFigureLineage } from '../../../src/render/figures/figure-input.js';
+import { checkFitDocument } from '../../../src/data/documents.js';
+import { figureLineage } from '../../../src/render/figures/figure-input.js';
 import { ageUnitLabel, horizonMarks, modelCurve, normal95, timeAxisFor } from '../../../src/render/figures/geometry.js';
 import { ridgeDocument } from './documents.js';
 
@@ -11,7 +12,7 @@ describe('figure geometry', () => {
   });
 
   it('horizon intervals are mean ± 1.96 √e_i on the age axis', () => {
-    const lineage = readFigureLineage(ridgeDocument());
+    const lineage = figureLineage(ridgeDocument());
     const axis = timeAxisFor([lineage]);
     expect(axis.title).toBe('Age (Ma)');
     expect(axis.reverse).toBe(true);
@@ -21,7 +22,7 @@ describe('figure geometry', () => {
   });
 
   it('random-walk envelope is a ± 1.96 √(σ² t) (closed form, MODELS.md)', () => {
-    const lineage = readFigureLineage(ridgeDocument());
+    const lineage = figureLineage(ridgeDocument());
     const axis = timeAxisFor([lineage]);
     const { curve } = modelCurve(lineage, axis, 'random-walk');
     expect(curve).not.toBeNull();
@@ -34,7 +35,7 @@ describe('figure geometry', () => {
   });
 
   it('OU mean approaches the optimum: θ + (a − θ) e^{−αt}, variance σ²(1 − e^{−2αt}) / 2α (closed form, MODELS.md)', () => {
-    const lineage = readFigureLineage(ridgeDocument());
+    const lineage = figureLineage(ridgeDocument());
     const { curve } = modelCurve(lineage, timeAxisFor([lineage]), 'ou');
     const last = curve!.time.length - 1;
     const t = 4;
@@ -45,7 +46,7 @@ describe('figure geometry', () => {
   });
 
   it('strict stasis has no envelope; a model not fitted or not in the fit gives a reason, not a curve', () => {
-    const lineage = readFigureLineage(ridgeDocument({ withOuNotCompared: true }));
+    const lineage = figureLineage(ridgeDocument({ withOuNotCompared: true }));
     const axis = timeAxisFor([lineage]);
     expect(modelCurve(lineage, axis, 'strict-stasis').curve?.hasEnvelope).toBe(false);
     expect(modelCurve(lineage, axis, 'ou').reason).toMatch(/not fitted/);
@@ -56,14 +57,14 @@ describe('figure geometry', () => {
     expect(ageUnitLabel('Myr')).toBe('Ma');
     expect(ageUnitLabel('kyr')).toBe('ka');
     const document = ridgeDocument();
-    const elapsed = readFigureLineage({ ...document, position_kind: 'height' });
+    const elapsed = figureLineage({ ...document, position_kind: 'height' });
     expect(timeAxisFor([elapsed]).title).toBe('Time since oldest horizon (Myr)');
     expect(timeAxisFor([elapsed]).reverse).toBe(false);
   });
 
   it('places heights on the age model\'s ages when the document has first_age (age_i = first_age - t_i)', () => {
     const document = ridgeDocument();
-    const heights = readFigureLineage({ ...document, position_kind: 'height', position: undefined, first_age: 9.25, data: { ...document.data, position: document.data.time.map((t) => 2 + 10 * t) } });
+    const heights = figureLineage({ ...document, position_kind: 'height', position: undefined, first_age: 9.25, data: { ...document.data, position: document.data.time.map((t) => 2 + 10 * t) } });
     const axis = timeAxisFor([heights]);
     expect(axis.title).toBe('Age (Ma)');
     expect(axis.reverse).toBe(true);
@@ -72,11 +73,21 @@ describe('figure geometry', () => {
     expect(marks[11].time).toBeCloseTo(9.25 - 4, 12);
   });
 
-  it('names the missing field of a broken document', () => {
+  it('a broken document is refused where it is read, naming the field (the figures take checked documents as they are, issue 22)', () => {
     const document = ridgeDocument();
-    expect(() => readFigureLineage({ ...document, data: { ...document.data, mean: document.data.mean.slice(1) } }, 'fit.json lineages[0]')).toThrow(
-      /fit\.json lineages\[0\]\.data\.mean: must have 12 entries/,
+    const saved = (lineage: object) => ({ provenance: { tool: 'stratotrend', version: '0', inputs: [], options: {} }, model_set: 'classic', lineages: [lineage], warnings: [] });
+    expect(() => checkFitDocument(saved({ ...document, data: { ...document.data, mean: document.data.mean.slice(1) } }), 'fit.json')).toThrow(
+      /fit\.json: lineages\[0\]\.data\.mean: expected 12 entries \(one per horizon, "horizons" is 12\), got 11/,
     );
-    expect(() => readFigureLineage({ ...document, data: { ...document.data, sampling_variance: [null, ...document.data.sampling_variance.slice(1)] } })).toThrow(/sampling_variance\[0\]/);
+    expect(() => checkFitDocument(saved({ ...document, data: { ...document.data, sampling_variance: [null, ...document.data.sampling_variance.slice(1)] } }), 'fit.json')).toThrow(/lineages\[0\]\.data\.sampling_variance\[0\]/);
+  });
+
+  it('reads a built or checked document as it is: its data lists are taken, not checked and copied again (issue 22)', () => {
+    const document = ridgeDocument();
+    const lineage = figureLineage(document);
+    expect(lineage.time).toBe(document.data.time);
+    expect(lineage.mean).toBe(document.data.mean);
+    expect(lineage.samplingVariance).toBe(document.data.sampling_variance);
+    expect(lineage.count).toBe(document.data.n);
   });
 });

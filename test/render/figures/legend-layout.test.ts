@@ -8,7 +8,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { measureText } from '../../../src/render/figures/chart-backend.js';
-import { readFigureLineage } from '../../../src/render/figures/figure-input.js';
+import { figureLineage } from '../../../src/render/figures/figure-input.js';
 import { pointsPerCm, resolveFigureOptions } from '../../../src/render/figures/figure-options.js';
 import { renderSectionsTogether, renderTrajectory } from '../../../src/render/figures/index.js';
 import { font, legendGap, legendKeyWidth, wrapText, type LegendLayout } from '../../../src/render/figures/marks.js';
@@ -29,7 +29,7 @@ function longNamedSections() {
 }
 
 function planOf(documents: readonly unknown[], widthCm: number, together: boolean, smoothed = false) {
-  const lineages = documents.map((document, i) => readFigureLineage(document, `lineages[${i}]`));
+  const lineages = documents.map((document) => figureLineage(document));
   return trajectoryPlan(lineages, resolveFigureOptions({ width: widthCm, smoothed }), together);
 }
 
@@ -78,7 +78,7 @@ describe('legend layout', () => {
   it('4 cm: the title and the horizontal axis title are wrapped to lines that fit (chart.js would squeeze them), 9 cm keeps them on one line', () => {
     for (const widthCm of [4, 9]) {
       for (const orientation of ['stratigraphic', 'horizontal'] as const) {
-        const lineages = longNamedSections().map((document, i) => readFigureLineage(document, `lineages[${i}]`));
+        const lineages = longNamedSections().map((document) => figureLineage(document));
         const plan = trajectoryPlan(lineages, resolveFigureOptions({ width: widthCm, orientation }), true);
         const configuration = plan.configuration() as unknown as {
           options: { plugins: { title: { text: string | string[] } }; scales: { x: { title: { text: string | string[] } } } };

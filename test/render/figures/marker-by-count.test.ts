@@ -7,7 +7,7 @@
  * the ratio of their radii.
  */
 import { describe, expect, it } from 'vitest';
-import { readFigureLineage } from '../../../src/render/figures/figure-input.js';
+import { figureLineage } from '../../../src/render/figures/figure-input.js';
 import { resolveFigureOptions } from '../../../src/render/figures/figure-options.js';
 import { renderTrajectory } from '../../../src/render/figures/index.js';
 import { trajectoryPlan } from '../../../src/render/figures/trajectory.js';
@@ -57,7 +57,7 @@ describe('marker area by n', () => {
   });
 
   it('says so in the legend, with the median n', () => {
-    const lineage = readFigureLineage(ridgeDocument(), 'lineage');
+    const lineage = figureLineage(ridgeDocument());
     const plan = trajectoryPlan([lineage], resolveFigureOptions({ markerByCount: true }), false);
     const texts = plan.legend.rows.flatMap((row) => row.entries.map((placed) => placed.entry.text));
     expect(texts.some((text) => text.startsWith('Marker area proportional to n (this size: median n = 20;'))).toBe(true);
@@ -65,7 +65,7 @@ describe('marker area by n', () => {
 
   it('small multiples (7 sections) say so in the subtitle, and only when asked', () => {
     const documents = Array.from({ length: 7 }, (_, s) => ridgeDocument({ section: `Invented Gully ${s + 1}`, offset: 0.1 * s }));
-    const lineages = documents.map((document, i) => readFigureLineage(document, `lineages[${i}]`));
+    const lineages = documents.map((document) => figureLineage(document));
     const words = (markerByCount: boolean) => {
       const resolved = resolveFigureOptions({ markerByCount });
       return recordDrawnText(smallMultiplesPlan(lineages, resolved), resolved).texts.map((text) => text.text).join(' ');

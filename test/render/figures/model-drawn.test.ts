@@ -12,7 +12,7 @@
 import { inverse, Matrix } from 'ml-matrix';
 import { describe, expect, it } from 'vitest';
 import { withSmootherOf } from '../../../src/analyses/figure-files.js';
-import { readFigureLineage } from '../../../src/render/figures/figure-input.js';
+import { figureLineage } from '../../../src/render/figures/figure-input.js';
 import { resolveFigureOptions } from '../../../src/render/figures/figure-options.js';
 import { modelCurve, normal95, timeAxisFor } from '../../../src/render/figures/geometry.js';
 import { trajectoryPlan } from '../../../src/render/figures/trajectory.js';
@@ -21,7 +21,7 @@ import { recordDrawnText } from './drawn-text.js';
 
 function drawnWords(document: unknown, options: Parameters<typeof resolveFigureOptions>[0]): string {
   const resolved = resolveFigureOptions(options);
-  return recordDrawnText(trajectoryPlan([readFigureLineage(document, 'lineage')], resolved, false), resolved).texts.map((item) => item.text).join(' ');
+  return recordDrawnText(trajectoryPlan([figureLineage(document)], resolved, false), resolved).texts.map((item) => item.text).join(' ');
 }
 
 describe('the model drawn', () => {
@@ -71,7 +71,7 @@ describe('the model drawn', () => {
     // As fit.json writes ou at its alpha-zero limit: alpha 0, optimum null, derived limit_drift.
     (ou as Record<string, unknown>).params = { ancestral_mean: entry(start), optimum: { ...entry(0), estimate: null }, alpha: { ...entry(0), at_bound: 'alpha-zero' }, step_variance: entry(stepVariance) };
     (ou as Record<string, unknown>).derived = { limit_drift: { ...entry(drift), at_bound: 'alpha-zero' }, half_life: { ...entry(0), estimate: null } };
-    const lineage = readFigureLineage(document, 'lineage');
+    const lineage = figureLineage(document);
     const axis = timeAxisFor([lineage]);
     const { curve, reason } = modelCurve(lineage, axis, 'ou');
     expect(reason).toBeNull();

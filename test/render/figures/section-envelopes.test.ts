@@ -11,7 +11,7 @@
 import type { ChartDataset } from 'chart.js';
 import { describe, expect, it } from 'vitest';
 import { renderSectionsTogether } from '../../../src/render/figures/index.js';
-import { readFigureLineage } from '../../../src/render/figures/figure-input.js';
+import { figureLineage } from '../../../src/render/figures/figure-input.js';
 import { resolveFigureOptions, type FigureOrientation } from '../../../src/render/figures/figure-options.js';
 import { envelopeLabels, trajectoryPlan } from '../../../src/render/figures/trajectory.js';
 import { ridgeDocument } from './documents.js';
@@ -55,7 +55,7 @@ function fourSections(): Document[] {
 }
 
 function datasetsOf(documents: readonly Document[], orientation: FigureOrientation) {
-  const lineages = documents.map((document, i) => readFigureLineage(document, `lineages[${i}]`));
+  const lineages = documents.map((document) => figureLineage(document));
   const plan = trajectoryPlan(lineages, resolveFigureOptions({ orientation }), true);
   return plan.configuration().data.datasets as ChartDataset<'scatter', { x: number; y: number }[]>[];
 }

@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { renderModelSupport, renderSectionsTogether } from '../../../src/render/figures/index.js';
 import { modelSupportPlan, supportRows, tableNumber } from '../../../src/render/figures/model-support.js';
 import { resolveFigureOptions } from '../../../src/render/figures/figure-options.js';
-import { readFigureLineage } from '../../../src/render/figures/figure-input.js';
+import { figureLineage } from '../../../src/render/figures/figure-input.js';
 import { seriesStyles } from '../../../src/render/figures/style.js';
 import { ridgeDocument } from './documents.js';
 import { darkestNear, decodePng, keepChanged, luma, scalePixel, svgText } from './figure-probes.js';
@@ -64,7 +64,7 @@ describe('sections drawn together', () => {
 
 describe('model-support figure', () => {
   it('ranks compared models by AICc and lists models not compared last', () => {
-    const rows = supportRows(readFigureLineage(ridgeDocument({ withOuNotCompared: true })));
+    const rows = supportRows(figureLineage(ridgeDocument({ withOuNotCompared: true })));
     expect(rows.map((row) => row.id)).toEqual(['random-walk', 'directional-walk', 'stasis', 'strict-stasis', 'ou']);
     expect(tableNumber(-2.9, 2)).toBe('−2.90');
     expect(tableNumber(-0.001, 2)).toBe('0.00');
@@ -75,9 +75,9 @@ describe('model-support figure', () => {
     const figure = renderModelSupport(document);
     expect(figure.width).toBe(2126);
     const pixels = await decodePng(figure.bytes);
-    const rows = supportRows(readFigureLineage(document));
+    const rows = supportRows(figureLineage(document));
     // Row centres in the table's own units (points from its top), placed on the page by the chart's y scale.
-    const centres = modelSupportPlan(readFigureLineage(document), resolveFigureOptions()).rowCentres;
+    const centres = modelSupportPlan(figureLineage(document), resolveFigureOptions()).rowCentres;
     const failures: string[] = [];
     const right = figure.frame.plotArea.right;
     rows.forEach((row, i) => {

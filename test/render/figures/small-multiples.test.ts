@@ -9,7 +9,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { drawFigure } from '../../../src/render/figures/chart-backend.js';
-import { readFigureLineage } from '../../../src/render/figures/figure-input.js';
+import { figureLineage } from '../../../src/render/figures/figure-input.js';
 import { resolveFigureOptions } from '../../../src/render/figures/figure-options.js';
 import { renderSectionsTogether } from '../../../src/render/figures/index.js';
 import { smallMultiplesFrom, smallMultiplesPlan } from '../../../src/render/figures/small-multiples.js';
@@ -28,7 +28,7 @@ describe('sections figure with many sections: small multiples', () => {
   for (const widthCm of [9, 18]) {
     it(`30 sections at ${widthCm} cm: one panel each, inside the page, clear of each other, named, no string past the margins or on another`, () => {
       const documents = manySections(30);
-      const lineages = documents.map((document, i) => readFigureLineage(document, `lineages[${i}]`));
+      const lineages = documents.map((document) => figureLineage(document));
       const resolved = resolveFigureOptions({ width: widthCm });
       const plan = smallMultiplesPlan(lineages, resolved);
       expect(plan.panels).toHaveLength(30);
@@ -52,7 +52,7 @@ describe('sections figure with many sections: small multiples', () => {
 
   it('30 sections at 9 cm: ink at every horizon mean of every panel', async () => {
     const documents = manySections(30);
-    const lineages = documents.map((document, i) => readFigureLineage(document, `lineages[${i}]`));
+    const lineages = documents.map((document) => figureLineage(document));
     const resolved = resolveFigureOptions({ width: 9, dpi: 300 });
     const plan = smallMultiplesPlan(lineages, resolved);
     const figure = drawFigure(plan, resolved);

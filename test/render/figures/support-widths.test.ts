@@ -8,7 +8,7 @@
  * model registry; the numbers are invented for drawing).
  */
 import { describe, expect, it } from 'vitest';
-import { readFigureLineage } from '../../../src/render/figures/figure-input.js';
+import { figureLineage } from '../../../src/render/figures/figure-input.js';
 import { resolveFigureOptions } from '../../../src/render/figures/figure-options.js';
 import { modelSupportPlan, supportLayoutSteps, tableNumber } from '../../../src/render/figures/model-support.js';
 import { formatWeight } from '../../../src/render/figures/trajectory.js';
@@ -52,7 +52,7 @@ describe('model-support figure at narrow widths', () => {
   for (const { name, document } of cases) {
     for (const widthCm of widths) {
       it(`${name}, ${widthCm} cm: every string inside the margins, none touching another, none lost`, () => {
-        const lineage = readFigureLineage(document(), 'lineage');
+        const lineage = figureLineage(document());
         const resolved = resolveFigureOptions({ width: widthCm });
         const plan = modelSupportPlan(lineage, resolved);
         const drawn = recordDrawnText(plan, resolved);
@@ -76,7 +76,7 @@ describe('model-support figure at narrow widths', () => {
   }
 
   it('9 cm with the classic models keeps the full table (K, logL, AICc, ΔAICc and weight bars); narrower figures step down the stated ladder', () => {
-    const lineage = readFigureLineage(ridgeDocument({ best: 'directional-walk' }), 'lineage');
+    const lineage = figureLineage(ridgeDocument({ best: 'directional-walk' }));
     const at = (widthCm: number) => modelSupportPlan(lineage, resolveFigureOptions({ width: widthCm })).setting;
     expect(at(9).columns).toEqual(['k', 'logL', 'aicc', 'delta']);
     expect(at(9).bars).toBe(true);
@@ -96,7 +96,7 @@ describe('model-support figure at narrow widths', () => {
   });
 
   it('leaving out title, subtitle and notes draws none of them and makes the figure shorter', () => {
-    const lineage = readFigureLineage(ridgeDocument(), 'lineage');
+    const lineage = figureLineage(ridgeDocument());
     const full = resolveFigureOptions({ width: 9 });
     const bare = resolveFigureOptions({ width: 9, leaveOut: ['title', 'subtitle', 'notes'] });
     const drawnFull = recordDrawnText(modelSupportPlan(lineage, full), full);

@@ -8,7 +8,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { wholeTextElements } from '../../../src/render/figures/chart-backend.js';
-import { readFigureLineage } from '../../../src/render/figures/figure-input.js';
+import { figureLineage } from '../../../src/render/figures/figure-input.js';
 import { resolveFigureOptions } from '../../../src/render/figures/figure-options.js';
 import { renderModelSupport, renderSectionsTogether, renderTrajectory } from '../../../src/render/figures/index.js';
 import { modelSupportPlan } from '../../../src/render/figures/model-support.js';
@@ -28,9 +28,9 @@ function textElements(svg: string): { x: string; y: string; text: string }[] {
 describe('SVG text as whole strings', () => {
   const sections = [ridgeDocument({ section: 'Test Ridge' }), ridgeDocument({ section: 'Fern Hollow', offset: 0.5, ageShift: -0.3 })];
   const cases = [
-    { name: 'trajectory', svg: () => renderTrajectory(sections[0], { format: 'svg', smoothed: true }), plan: () => trajectoryPlan([readFigureLineage(sections[0], 'l')], resolveFigureOptions({ smoothed: true }), false) },
-    { name: 'sections', svg: () => renderSectionsTogether(sections, { format: 'svg' }), plan: () => trajectoryPlan(sections.map((d) => readFigureLineage(d, 'l')), resolveFigureOptions({}), true) },
-    { name: 'model support', svg: () => renderModelSupport(sections[0], { format: 'svg' }), plan: () => modelSupportPlan(readFigureLineage(sections[0], 'l'), resolveFigureOptions({})) },
+    { name: 'trajectory', svg: () => renderTrajectory(sections[0], { format: 'svg', smoothed: true }), plan: () => trajectoryPlan([figureLineage(sections[0])], resolveFigureOptions({ smoothed: true }), false) },
+    { name: 'sections', svg: () => renderSectionsTogether(sections, { format: 'svg' }), plan: () => trajectoryPlan(sections.map((d) => figureLineage(d)), resolveFigureOptions({}), true) },
+    { name: 'model support', svg: () => renderModelSupport(sections[0], { format: 'svg' }), plan: () => modelSupportPlan(figureLineage(sections[0]), resolveFigureOptions({})) },
   ];
   for (const { name, svg, plan } of cases) {
     it(`${name}: one element per drawn string, placed by one x and one y, none empty`, () => {
