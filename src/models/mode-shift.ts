@@ -78,6 +78,7 @@ export function modeShift(first: SegmentMode, second: SegmentMode): EvolutionMod
   const varianceNames = variances.map((spec) => spec.name);
   const width = locations.length;
   const secondIsWalk = second !== 'stasis';
+  const firstIsStasis = first === 'stasis';
   const column = (name: string): number => locationNames.indexOf(name);
   /** Design row i, given the shift index s and t_p. */
   const designValue = (name: string, i: number, t: number, shift: number, previousTime: number): number => {
@@ -156,7 +157,7 @@ export function modeShift(first: SegmentMode, second: SegmentMode): EvolutionMod
       space.design.set(designAt(time, shift).subarray(0, space.size * width));
       for (let i = 0; i < space.size; i++) {
         const inFirst = i < shift;
-        const stasisMode = (inFirst ? first : second) === 'stasis';
+        const stasisMode = inFirst ? firstIsStasis : !secondIsWalk;
         const processValue = inFirst ? process[0] : process[1];
         if (stasisMode) {
           space.transition[i] = 0;
