@@ -7,7 +7,8 @@
  *
  * `node dist/bench/evaluation-cost.js [--smoke | --full]` prints the table
  * alone (by default a quick mode, for iterating on the fitter); bench/run.ts
- * includes it (full, or smoke with `--smoke`).
+ * includes it (full, or smoke with `--smoke`). With `--per-model` it prints
+ * instead the cost of each model of the extended set.
  */
 import { median } from 'simple-statistics';
 import { fitLineage } from '../src/fit/fit-lineage.js';
@@ -123,7 +124,7 @@ export type CostMode = 'smoke' | 'quick' | 'full';
  */
 export async function measureEvaluationCost(mode: CostMode): Promise<EvaluationCost> {
   const horizons = 30;
-  const settings = { smoke: { lineages: 1, budget: 20, rounds: 1, replicates: 19, repeats: 1 }, quick: { lineages: 3, budget: 150, rounds: 3, replicates: 199, repeats: 1 }, full: { lineages: 5, budget: 600, rounds: 3, replicates: 199, repeats: 3 } }[mode];
+  const settings = { smoke: { lineages: 1, budget: 20, rounds: 1, replicates: 19, repeats: 1 }, quick: { lineages: 3, budget: 150, rounds: 3, replicates: 199, repeats: 2 }, full: { lineages: 5, budget: 600, rounds: 3, replicates: 199, repeats: 3 } }[mode];
   const lineages: Lineage[] = Array.from({ length: settings.lineages }, (_, k) => benchLineage(horizons, 1400 + k, k));
   const unit = lineages[0];
   let sink = 0;
@@ -141,7 +142,8 @@ export async function measureEvaluationCost(mode: CostMode): Promise<EvaluationC
   add('five classic models, profile intervals', perLineage((lineage) => fitLineage(lineage, classicModels, { intervals: true, intervalMethod: 'profile' })), 5000, null);
   add('five classic models, no intervals', perLineage((lineage) => fitLineage(lineage, classicModels, { intervals: false })), 1000, null);
   add('extended set, no intervals', perLineage((lineage) => fitLineage(lineage, extendedModels, { intervals: false })), 50_000, null);
-  // The replicate loops on one thread (inline: no worker start-up in the time).
+  // The replicate loops on one thread (inline: no worker start-up in the time). The fastest of at least two runs
+  // outside smoke mode: the first run also pays for compiling the replicate code (about twice the time of the next).
   const runner = poolRunner({ threads: 1 });
   const replicates = settings.replicates;
   const observed = fitLineage(lineages[0], classicModels, { intervals: false });
@@ -182,7 +184,35 @@ export function evaluationCostLines(cost: EvaluationCost): string[] {
   return lines;
 }
 
-if (process.argv[1] && import.meta.url.endsWith(process.argv[1].replace(/\\/g, '/'))) {
+/**
+ * Where the extended set's cost goes (issue 14): CPU milliseconds and
+ * evaluation-equivalents of each model of the extended set without
+ * intervals, the median over the lineages of {@link measureEvaluationCost}'s
+ * mode (`--per-model`).
+ */
+export function extendedCostLines(mode: CostMode): string[] {
+  const horizons = 30;
+  const settings = { smoke: { lineages: 1, budget: 20, rounds: 1 }, quick: { lineages: 3, budget: 150, rounds: 3 }, full: { lineages: 5, budget: 600, rounds: 3 } }[mode];
+  const lineages: Lineage[] = Array.from({ length: settings.lineages }, (_, k) => benchLineage(horizons, 1400 + k, k));
+  const unit = lineages[0];
+  let sink = 0;
+  const unitNanoseconds = cpuNanoseconds(() => void (sink += bareRandomWalkLogLik(unit.time, unit.mean, unit.samplingVariance, 5, 0.05)), mode === 'full' ? 2000 : 500, 20);
+  const lines = [`Extended set without intervals, per model (${horizons} horizons; unit ${unitNanoseconds.toFixed(0)} ns)`];
+  let total = 0;
+  for (const model of extendedModels) {
+    if (lineages.some((lineage) => model.unavailable?.(lineage))) continue;
+    const milliseconds = median(lineages.map((lineage) => cpuNanoseconds(() => void fitLineage(lineage, [model], { intervals: false }), settings.budget, settings.rounds, mode !== 'smoke') / 1e6));
+    total += milliseconds;
+    lines.push(`  ${model.id.padEnd(36)} ${milliseconds.toFixed(2).padStart(8)} ms ${Math.round((milliseconds * 1e6) / unitNanoseconds).toLocaleString('en-US').padStart(10)}`);
+  }
+  lines.push(`  ${'sum'.padEnd(36)} ${total.toFixed(2).padStart(8)} ms ${Math.round((total * 1e6) / unitNanoseconds).toLocaleString('en-US').padStart(10)}`);
+  if (sink === 42) process.stdout.write('');
+  return lines;
+}
+
+if (process.argv[1] && import.meta.url.endsWith(process.argv[1].replace(/\\/g, '/')) && process.argv.includes('--per-model')) {
+  process.stdout.write(extendedCostLines(process.argv.includes('--full') ? 'full' : process.argv.includes('--smoke') ? 'smoke' : 'quick').join('\n') + '\n');
+} else if (process.argv[1] && import.meta.url.endsWith(process.argv[1].replace(/\\/g, '/'))) {
   measureEvaluationCost(process.argv.includes('--full') ? 'full' : process.argv.includes('--smoke') ? 'smoke' : 'quick')
     .then((cost) => process.stdout.write(evaluationCostLines(cost).join('\n') + '\n'))
     .catch((error) => {

@@ -3,6 +3,7 @@ import { logLikAt, profileLogLik, profileOut, profileWithFixedCoefficient, type 
 import { allocateStateSpace, type StateSpace } from '../engine/state-space.js';
 import type { Lineage } from '../lineage.js';
 import type { EvolutionModel } from '../models/model.js';
+import { PrefixFilter } from './prefix-filter.js';
 
 /**
  * The exact likelihood of one model for one lineage, evaluated by the O(N)
@@ -26,6 +27,8 @@ export class LikelihoodEvaluator {
   evaluations = 0;
   /** Filter results by process values: see {@link LikelihoodEvaluator.whiten}. */
   private readonly cache: WhitenCache;
+  /** The filter resuming after rows shared by every value of the later process axes (a shift model bound to one position), or null. */
+  readonly prefix: PrefixFilter | null;
 
   constructor(model: EvolutionModel, lineage: Lineage) {
     this.model = model;
@@ -40,6 +43,8 @@ export class LikelihoodEvaluator {
     this.sums = allocateSums(size, width);
     this.work = new Float64Array(workSize(width));
     this.cache = new WhitenCache(model.process.length, width);
+    const shared = model.sharedPrefix;
+    this.prefix = shared !== undefined && shared.rows > 0 && shared.rows < size && shared.axes < model.process.length ? new PrefixFilter(shared.rows, shared.axes, width) : null;
   }
 
   /**
@@ -59,7 +64,8 @@ export class LikelihoodEvaluator {
     if (this.cache.restore(process, sums)) return sums;
     this.model.fillSpace(this.lineage, process, this.space);
     this.evaluations += 1;
-    whiten(this.space, this.data, sums, this.work);
+    if (this.prefix !== null) this.prefix.whiten(this.space, this.data, sums, this.work, process);
+    else whiten(this.space, this.data, sums, this.work);
     this.cache.keep(process, sums);
     return sums;
   }

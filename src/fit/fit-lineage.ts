@@ -35,9 +35,11 @@ export interface LineageFit {
 /**
  * Fit every model to a lineage and rank them by AICc with Akaike weights
  * (N = number of horizons). Models with N - K - 1 <= 0 are listed as not
- * compared. The lineage mean is smoothed under the best model.
+ * compared. The lineage mean is smoothed under the best model, unless
+ * `smooth` is false (replicate loops, which read only the table: `smoothed`
+ * is then null).
  */
-export function fitLineage(lineage: Lineage, models: readonly EvolutionModel[], options: FitOptions = {}): LineageFit {
+export function fitLineage(lineage: Lineage, models: readonly EvolutionModel[], options: FitOptions = {}, smooth = true): LineageFit {
   const fits = models.map((model) => fitModel(model, lineage, options));
   const horizons = lineage.mean.length;
   const criteria = fits.map((fit) => (fit.converged ? aicc(fit.logLik, fit.k, horizons) : null));
@@ -58,7 +60,7 @@ export function fitLineage(lineage: Lineage, models: readonly EvolutionModel[], 
   const best: string | null = lowest === -1 ? null : ranked[lowest].id;
   const bestModel = models.find((model) => model.id === best);
   const bestFit = fits.find((fit) => fit.id === best);
-  const smoothed = bestModel && bestFit ? smoothUnder(bestModel, bestFit, lineage) : null;
+  const smoothed = smooth && bestModel && bestFit ? smoothUnder(bestModel, bestFit, lineage) : null;
   return { lineage, models: ranked, best, smoothed };
 }
 

@@ -53,6 +53,22 @@ interface StandardScaling {
  * unknown).
  */
 function standardScaling(model: EvolutionModel, lineage: Lineage): StandardScaling | null {
+  // An axis a signed parameter is searched through (`searchedAs`) is unit-free.
+  if (!model.process.every((axis) => model.parameters.some((spec) => spec.name === axis.name || spec.searchedAs?.axis === axis.name))) return null;
+  // One standardised copy per lineage for all the models fitted to it (issue 14): the same numbers, and the
+  // caches kept per time array (time span, variance scale, ou's exponentials) then serve every model.
+  let kept = standardisedLineages.get(lineage);
+  if (kept === undefined) {
+    kept = standardise(lineage);
+    standardisedLineages.set(lineage, kept);
+  }
+  return kept;
+}
+
+const standardisedLineages = new WeakMap<Lineage, StandardScaling | null>();
+
+/** The scaling of {@link standardScaling}, whatever the model. */
+function standardise(lineage: Lineage): StandardScaling | null {
   const size = lineage.mean.length;
   if (size < 2) return null;
   // The largest elapsed time (the last one for one section; a lineage of several sections restarts its time).
@@ -62,8 +78,6 @@ function standardScaling(model: EvolutionModel, lineage: Lineage): StandardScali
   const trait = Number.isFinite(variance) && variance > 0 ? Math.sqrt(variance) : 1;
   const time = Number.isFinite(span) && span > 0 ? span : 1;
   if (trait === 1 && time === 1) return null;
-  // An axis a signed parameter is searched through (`searchedAs`) is unit-free.
-  if (!model.process.every((axis) => model.parameters.some((spec) => spec.name === axis.name || spec.searchedAs?.axis === axis.name))) return null;
   const traitSquared = trait * trait;
   return {
     trait,

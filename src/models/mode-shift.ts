@@ -78,6 +78,7 @@ export function modeShift(first: SegmentMode, second: SegmentMode): EvolutionMod
   const varianceNames = variances.map((spec) => spec.name);
   const width = locations.length;
   const secondIsWalk = second !== 'stasis';
+  const firstIsStasis = first === 'stasis';
   const column = (name: string): number => locationNames.indexOf(name);
   /** Design row i, given the shift index s and t_p. */
   const designValue = (name: string, i: number, t: number, shift: number, previousTime: number): number => {
@@ -105,6 +106,21 @@ export function modeShift(first: SegmentMode, second: SegmentMode): EvolutionMod
     if (!secondIsWalk) return inFirst ? start + drift1 * t : parameters.segment_2_mean;
     return start + drift1 * Math.min(t, previousTime) + get(parameters, 'segment_2_drift') * Math.max(0, t - previousTime);
   };
+  /** The design at shift index `shift` over one time axis, kept for the last shift asked for (per model and time axis). */
+  const designs = new WeakMap<Float64Array, { shift: number; design: Float64Array }>();
+  const designAt = (time: Float64Array, shift: number): Float64Array => {
+    let kept = designs.get(time);
+    if (kept === undefined || kept.design.length !== time.length * width) {
+      kept = { shift: -1, design: new Float64Array(time.length * width) };
+      designs.set(time, kept);
+    }
+    if (kept.shift !== shift) {
+      const previousTime = time[shift - 1];
+      for (let i = 0; i < time.length; i++) for (let j = 0; j < width; j++) kept.design[i * width + j] = designValue(locationNames[j], i, time[i], shift, previousTime);
+      kept.shift = shift;
+    }
+    return kept.design;
+  };
   const id = `${first}-then-${second}`;
   const minimumSegment = (options: { minimumSegment?: number }): number => minimumSegmentOf(options, 3);
   const model: EvolutionModel = {
@@ -130,15 +146,20 @@ export function modeShift(first: SegmentMode, second: SegmentMode): EvolutionMod
     parameterCount: () => locations.length + variances.length + 1,
     configurations: (lineage, options) => shiftPlacements(lineage.mean.length, 1, minimumSegment(options)),
     shiftCount: 1,
+    // Rows before the shift follow the first mode with the first variance, and their design does not depend on
+    // the shift (designValue for i < s), so the search resumes the filter there (issue 14).
+    prefixAxes: 1,
     fillSpace(lineage, process, space) {
-      const [shift] = shiftsOf(process, 2, 1);
+      // Called for every likelihood evaluation of the shift search: no array per call, and the design (which
+      // depends on the shift only) kept for the last shift per time axis (issue 14).
+      const shift = Math.round(process[2]);
       const time = lineage.time;
-      const previousTime = time[shift - 1];
+      space.design.set(designAt(time, shift).subarray(0, space.size * width));
       for (let i = 0; i < space.size; i++) {
         const inFirst = i < shift;
-        const mode = inFirst ? first : second;
+        const stasisMode = inFirst ? firstIsStasis : !secondIsWalk;
         const processValue = inFirst ? process[0] : process[1];
-        if (mode === 'stasis') {
+        if (stasisMode) {
           space.transition[i] = 0;
           space.processVariance[i] = processValue;
         } else if (i === 0) {
@@ -148,7 +169,6 @@ export function modeShift(first: SegmentMode, second: SegmentMode): EvolutionMod
           space.transition[i] = 1;
           space.processVariance[i] = processValue * (time[i] - time[i - 1]);
         }
-        for (let j = 0; j < width; j++) space.design[i * width + j] = designValue(locationNames[j], i, time[i], shift, previousTime);
       }
     },
     toParameters(coefficients, process, lineage) {

@@ -269,6 +269,21 @@ export interface EvolutionModel {
    */
   screenBound?(lineage: Lineage, configurations: readonly Configuration[]): Float64Array;
   /**
+   * Optional, for a model with one shift: the state-space rows before the
+   * shift (i < s) depend only on the first `prefixAxes` process values, and
+   * are the same at every shift position (rows i < s of the fill at s equal
+   * those of the fill at any later position). The likelihood evaluator then
+   * keeps the filter's state after those rows per value of those axes and
+   * resumes from it (`fit/prefix-filter.ts`; issue 14), which gives the same
+   * sums bit for bit. Carried to the bound model as {@link EvolutionModel.sharedPrefix}.
+   */
+  readonly prefixAxes?: number;
+  /**
+   * Set by {@link bindConfiguration} on a model declaring `prefixAxes`:
+   * rows 0 .. rows - 1 depend only on the first `axes` process values.
+   */
+  readonly sharedPrefix?: { readonly rows: number; readonly axes: number };
+  /**
    * Optional: when the likelihood at a configuration is a sum over
    * independent blocks (block-diagonal covariance, no shared parameters),
    * each block as a plain model on a sub-lineage, in process-axis order.
@@ -320,12 +335,20 @@ export function bindConfiguration(model: EvolutionModel, configuration: Configur
     const values = Array.from(process).slice(0, searched);
     return values.concat(configuration.shifts);
   };
+  // fillSpace runs at every likelihood evaluation of the shift search: one process vector per bound model, refilled (issue 14).
+  const filled = new Float64Array(searched + configuration.shifts.length);
+  filled.set(configuration.shifts, searched);
   return {
     ...model,
     configurations: undefined,
     screenBound: undefined,
     blocks: undefined,
-    fillSpace: (lineage, process, space) => model.fillSpace(lineage, full(process), space),
+    prefixAxes: undefined,
+    sharedPrefix: model.prefixAxes !== undefined && configuration.shifts.length === 1 ? { rows: configuration.shifts[0], axes: model.prefixAxes } : undefined,
+    fillSpace: (lineage, process, space) => {
+      for (let k = 0; k < searched; k++) filled[k] = process[k];
+      model.fillSpace(lineage, filled, space);
+    },
     toParameters: (coefficients, process, lineage) => model.toParameters(coefficients, full(process), lineage),
     constantCoefficients: (process, lineage) => model.constantCoefficients(full(process), lineage),
     fixLocation: (name, value, process, lineage) => model.fixLocation(name, value, full(process), lineage),

@@ -1,17 +1,65 @@
 import { buildCovariance, type EvolutionModel } from './model.js';
-import { fillAttractionDynamics, ornsteinUhlenbeck, relaxedTime } from './ou.js';
+import { ornsteinUhlenbeck, relaxedTime } from './ou.js';
 import { minimumSegmentOf, shiftEstimates, shiftIndicesFrom, shiftMethodsNote, shiftPlacements, shiftsOf } from './punctuated-shifts.js';
 
+/** The alpha- and shift-dependent factors of the state space over one time axis (see {@link shiftFactors}). */
+interface ShiftFactors {
+  alpha: number;
+  shift: number;
+  /** Transition exp(-alpha dt_i) and process variance per unit step variance (1 - exp(-2 alpha dt_i)) / (2 alpha), as ou's `fillAttractionDynamics`. */
+  readonly transition: Float64Array;
+  readonly varianceTime: Float64Array;
+  /**
+   * Design rows, row-major: the columns of the ancestral mean, of
+   * optimum_before · alpha and of optimum_after · alpha at elapsed time t,
+   * given t_p (the time of the last horizon before the shift):
+   * exp(-alpha t), (1 - exp(-alpha min(t, t_p))) / alpha · exp(-alpha max(0, t - t_p))
+   * and (1 - exp(-alpha max(0, t - t_p))) / alpha. At alpha = 0 they are 1,
+   * min(t, t_p) and max(0, t - t_p).
+   */
+  readonly design: Float64Array;
+}
+
+const shiftFactorsByTime = new WeakMap<Float64Array, ShiftFactors>();
+
 /**
- * Design row of the optimum shift at elapsed time t, given alpha and t_p
- * (the time of the last horizon before the shift): the columns of the
- * ancestral mean, of optimum_before · alpha and of optimum_after · alpha.
- * At alpha = 0 they are 1, min(t, t_p) and max(0, t - t_p).
+ * The factors at the last alpha and shift asked for, per time axis (issue
+ * 14): the search holds alpha and the shift fixed while it varies the step
+ * variance, so most fills reuse the exponentials of the previous one. The
+ * same operations as ou's `fillAttractionDynamics` and the design row, so
+ * the same numbers bit for bit, computed once and without an array per row.
  */
-function designRow(alpha: number, t: number, previousTime: number): [number, number, number] {
-  if (t <= previousTime) return [Math.exp(-alpha * t), relaxedTime(alpha, t), 0];
-  const since = t - previousTime;
-  return [Math.exp(-alpha * t), relaxedTime(alpha, previousTime) * Math.exp(-alpha * since), relaxedTime(alpha, since)];
+function shiftFactors(time: Float64Array, alpha: number, shift: number): ShiftFactors {
+  let factors = shiftFactorsByTime.get(time);
+  const size = time.length;
+  if (factors === undefined || factors.transition.length !== size) {
+    factors = { alpha: Number.NaN, shift: -1, transition: new Float64Array(size), varianceTime: new Float64Array(size), design: new Float64Array(3 * size) };
+    shiftFactorsByTime.set(time, factors);
+  } else if (Object.is(factors.alpha, alpha) && factors.shift === shift) return factors;
+  if (!Object.is(factors.alpha, alpha)) {
+    for (let i = 1; i < size; i++) {
+      const interval = time[i] - time[i - 1];
+      factors.transition[i] = Math.exp(-alpha * interval);
+      factors.varianceTime[i] = relaxedTime(2 * alpha, interval);
+    }
+  }
+  const previousTime = time[shift - 1];
+  const design = factors.design;
+  for (let i = 0; i < size; i++) {
+    const t = time[i];
+    design[3 * i] = Math.exp(-alpha * t);
+    if (t <= previousTime) {
+      design[3 * i + 1] = relaxedTime(alpha, t);
+      design[3 * i + 2] = 0;
+    } else {
+      const since = t - previousTime;
+      design[3 * i + 1] = relaxedTime(alpha, previousTime) * Math.exp(-alpha * since);
+      design[3 * i + 2] = relaxedTime(alpha, since);
+    }
+  }
+  factors.alpha = alpha;
+  factors.shift = shift;
+  return factors;
 }
 
 /** Mean straight from the definition (alpha > 0): ou toward theta_1 up to t_p, then ou toward theta_2 from where the lineage is expected at t_p. */
@@ -108,16 +156,15 @@ export const optimumShift: EvolutionModel = {
   shiftCount: 1,
   fillSpace(lineage, process, space) {
     const alpha = process[0];
-    const [shift] = shiftsOf(process, 2, 1);
-    const time = lineage.time;
-    const previousTime = time[shift - 1];
-    fillAttractionDynamics(lineage, alpha, process[1], space);
-    for (let i = 0; i < space.size; i++) {
-      const row = designRow(alpha, time[i], previousTime);
-      space.design[3 * i] = row[0];
-      space.design[3 * i + 1] = row[1];
-      space.design[3 * i + 2] = row[2];
+    const stepVariance = process[1];
+    const factors = shiftFactors(lineage.time, alpha, Math.round(process[2]));
+    space.transition[0] = 0;
+    space.processVariance[0] = 0;
+    for (let i = 1; i < space.size; i++) {
+      space.transition[i] = factors.transition[i];
+      space.processVariance[i] = stepVariance * factors.varianceTime[i];
     }
+    space.design.set(factors.design.subarray(0, 3 * space.size));
   },
   toParameters: (coefficients, process, lineage) => ({
     ancestral_mean: coefficients[0],

@@ -13,8 +13,10 @@ export interface PoolOptions {
    */
   threads?: number;
   /**
-   * Tasks sent to a worker per message (default: about eight chunks per
-   * thread, so a slow task cannot leave the other threads idle for long).
+   * Tasks sent to a worker per message. Default: guided, each chunk a
+   * quarter of the remaining tasks' share per thread (at least one), so the
+   * chunks shrink toward the end and no thread is left with a long chunk
+   * while the others are idle (issue 14).
    */
   chunkSize?: number;
   /** Called after each finished chunk with the number of tasks done so far. */
@@ -84,12 +86,11 @@ export async function runTasks<T = Task, R = unknown>(
   const results: R[] = new Array(total);
   if (total === 0) return results;
   if (threads === 1) return runInline(module, exportName, tasks, options, results);
-  const chunkSize = Math.max(1, Math.floor(options.chunkSize ?? Math.ceil(total / (threads * 8))));
-  const chunkCount = Math.ceil(total / chunkSize);
-  const workerCount = Math.min(threads, chunkCount);
+  const fixedChunk = options.chunkSize === undefined ? null : Math.max(1, Math.floor(options.chunkSize));
+  const workerCount = Math.min(threads, fixedChunk === null ? total : Math.ceil(total / fixedChunk));
   const moduleHref = compiledModule(module);
   const script = workerScript();
-  let nextChunk = 0;
+  let sent = 0;
   let done = 0;
   const workers: Worker[] = [];
   try {
@@ -101,10 +102,11 @@ export async function runTasks<T = Task, R = unknown>(
         reject(error);
       };
       const sendNext = (worker: Worker): void => {
-        if (nextChunk >= chunkCount) return;
-        const start = nextChunk * chunkSize;
-        nextChunk += 1;
-        const request: WorkerRequest = { start, tasks: tasks.slice(start, start + chunkSize) };
+        if (sent >= total) return;
+        const start = sent;
+        const size = fixedChunk ?? guidedChunk(total - sent, workerCount);
+        sent = Math.min(total, start + size);
+        const request: WorkerRequest = { start, tasks: tasks.slice(start, sent) };
         worker.postMessage(request);
       };
       for (let w = 0; w < workerCount; w++) {
@@ -136,6 +138,22 @@ export async function runTasks<T = Task, R = unknown>(
     await Promise.all(workers.map((worker) => worker.terminate()));
   }
   return results;
+}
+
+/**
+ * Size of the next chunk when `remaining` tasks are left for `workers`
+ * workers: a quarter of each worker's share of what is left (guided
+ * self-scheduling, Polychronopoulos & Kuck 1987, IEEE Trans. Computers
+ * C-36:1425-1439, with a smaller fraction because each worker holds two
+ * chunks). Large chunks while much is left (few messages), single tasks at
+ * the end, so the last chunk of one worker is short.
+ *
+ * @example
+ * guidedChunk(1000, 2); // 125
+ * guidedChunk(3, 2); // 1
+ */
+export function guidedChunk(remaining: number, workers: number): number {
+  return Math.max(1, Math.ceil(remaining / (4 * workers)));
 }
 
 async function runInline<T, R>(module: string | URL, exportName: string, tasks: readonly T[], options: PoolOptions, results: R[]): Promise<R[]> {

@@ -22,21 +22,38 @@ export function simulateMeans(
   parameters: Record<string, number>,
   random: RandomSource,
 ): Float64Array {
+  return meansSimulator(model, design, parameters)(random);
+}
+
+/**
+ * {@link simulateMeans} in two steps (issue 14): the state space is filled
+ * once, and the returned function draws one set of means per call (a new
+ * array each time; the draws are consumed in the same order, so a seeded
+ * source gives the same means as `simulateMeans`). For replicate loops that
+ * draw many data sets from one model at one set of parameters.
+ *
+ * @example
+ * const draw = meansSimulator(randomWalk, design, { ancestral_mean: 5, step_variance: 0.1 });
+ * draw(createRandom(1)); // the same numbers as simulateMeans(randomWalk, design, { ... }, createRandom(1))
+ */
+export function meansSimulator(model: EvolutionModel, design: Lineage, parameters: Record<string, number>): (random: RandomSource) => Float64Array {
   const size = design.time.length;
   const space = allocateStateSpace(size, model.width(design), design.samplingVariance);
   const process = model.processFrom(parameters, design);
   const coefficients = model.coefficientsFrom(parameters, design);
   model.fillSpace(design, process, space);
-  const means = new Float64Array(size);
-  let deviation = 0;
-  for (let i = 0; i < size; i++) {
-    const phi = i === 0 ? 0 : space.transition[i];
-    deviation = phi * deviation + Math.sqrt(Math.max(0, space.processVariance[i])) * random.normal();
-    let location = 0;
-    for (let j = 0; j < space.width; j++) location += space.design[i * space.width + j] * coefficients[j];
-    means[i] = location + deviation + Math.sqrt(Math.max(0, space.observationVariance[i])) * random.normal();
-  }
-  return means;
+  return (random) => {
+    const means = new Float64Array(size);
+    let deviation = 0;
+    for (let i = 0; i < size; i++) {
+      const phi = i === 0 ? 0 : space.transition[i];
+      deviation = phi * deviation + Math.sqrt(Math.max(0, space.processVariance[i])) * random.normal();
+      let location = 0;
+      for (let j = 0; j < space.width; j++) location += space.design[i * space.width + j] * coefficients[j];
+      means[i] = location + deviation + Math.sqrt(Math.max(0, space.observationVariance[i])) * random.normal();
+    }
+    return means;
+  };
 }
 
 /** A copy of a design lineage with new horizon means (e.g. simulated ones). */

@@ -1,10 +1,11 @@
 import { fitLineage } from '../fit/fit-lineage.js';
 import { findModel } from '../models/registry.js';
+import type { Lineage } from '../lineage.js';
 import type { EvolutionModel } from '../models/model.js';
 import { designLineage, type Design } from './design.js';
-import { createRandom } from '../random/random.js';
+import { createRandom, type RandomSource } from '../random/random.js';
 import { replicateSeed } from '../random/seeds.js';
-import { simulateMeans, withMeans } from '../random/simulate-lineage.js';
+import { meansSimulator, withMeans } from '../random/simulate-lineage.js';
 
 /**
  * One simulate-and-refit replicate as plain data, so it can run on any
@@ -44,15 +45,61 @@ function modelById(id: string): EvolutionModel {
 }
 
 /**
+ * The design lineage of a replicate task, built once per design object (the
+ * tasks of one run share it, and so do the tasks of one chunk sent to a
+ * worker, which structured cloning keeps shared): the same lineage, without
+ * rebuilding and checking it for every replicate (issue 14). Nothing writes
+ * to a lineage once built; each replicate gets its own means by `withMeans`.
+ */
+function replicateDesign(design: Design): Lineage {
+  let lineage = designLineages.get(design);
+  if (lineage === undefined) {
+    lineage = designLineage(design);
+    designLineages.set(design, lineage);
+  }
+  return lineage;
+}
+
+const designLineages = new WeakMap<Design, Lineage>();
+
+/**
+ * The means simulator of a task's generator at its parameters on its
+ * design, kept per design lineage and per generator and parameter values
+ * (the replicates of one stream share them): `simulateMeans` without
+ * filling the state space again for every replicate. The key spells every
+ * value exactly (String of a double round-trips; -0 apart).
+ */
+function replicateSimulator(task: FitReplicateTask, generator: EvolutionModel, design: Lineage): (random: RandomSource) => Float64Array {
+  let kept = simulators.get(design);
+  if (kept === undefined) {
+    kept = new Map();
+    simulators.set(design, kept);
+  }
+  const key = [task.generator, ...Object.entries(task.parameters).map(([name, value]) => `${name}=${Object.is(value, -0) ? '-0' : String(value)}`)].join(';');
+  let draw = kept.get(key);
+  if (draw === undefined) {
+    if (kept.size >= simulatorsKept) kept.clear();
+    draw = meansSimulator(generator, design, { ...task.parameters });
+    kept.set(key, draw);
+  }
+  return draw;
+}
+
+/** Simulators kept per design lineage (a power run has one per drift value and assumed step variance). */
+const simulatorsKept = 64;
+const simulators = new WeakMap<Lineage, Map<string, (random: RandomSource) => Float64Array>>();
+
+/**
  * Run one replicate. Its random stream depends on (seed, stream, index)
  * only, so the result is the same on any thread and in any order.
  */
 export function fitReplicate(task: FitReplicateTask): FitReplicateResult {
   const generator = modelById(task.generator);
-  const design = designLineage(task.design);
+  const design = replicateDesign(task.design);
   const random = createRandom(replicateSeed(task.seed, task.stream, task.index));
-  const lineage = withMeans(design, simulateMeans(generator, design, { ...task.parameters }, random));
-  const fitted = fitLineage(lineage, task.fit.map(modelById), { intervals: false, minimumSegment: task.minimumSegment });
+  const lineage = withMeans(design, replicateSimulator(task, generator, design)(random));
+  // Only the table is read: no smoothed lineage (issue 14).
+  const fitted = fitLineage(lineage, task.fit.map(modelById), { intervals: false, minimumSegment: task.minimumSegment }, false);
   const logLik: Record<string, number | null> = {};
   const aicc: Record<string, number | null> = {};
   const weight: Record<string, number | null> = {};

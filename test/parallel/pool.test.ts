@@ -26,6 +26,21 @@ describe('runTasks (worker pool)', () => {
     expect(await runTasks(fixture, 'square', [], { threads: 2 })).toEqual([]);
   });
 
+  it('sends shrinking chunks by default, single tasks at the end (issue 14)', async () => {
+    // Guided self-scheduling (Polychronopoulos & Kuck 1987): each chunk a quarter of a worker's share of the tasks
+    // left, so no worker holds a long chunk while the other is idle. With fixed chunks of 200 / 16 the last
+    // chunks would all be 13 tasks.
+    const tasks = Array.from({ length: 200 }, (_, i) => i);
+    const seen: number[] = [];
+    const squares = await runTasks<number, number>(fixture, 'square', tasks, { threads: 2, onProgress: (done) => seen.push(done) });
+    expect(squares).toEqual(tasks.map((i) => i * i));
+    const steps = seen.map((done, k) => done - (k === 0 ? 0 : seen[k - 1]));
+    // Chunk sizes follow from the tasks left when each is sent, so they do not depend on timing (only their order does).
+    expect(Math.max(...steps)).toBe(25);
+    expect(steps.filter((step) => step === 1).length).toBeGreaterThanOrEqual(5);
+    expect(seen[seen.length - 1]).toBe(200);
+  });
+
   it('passes typed arrays through and names the failing task', async () => {
     const sums = await runTasks<Float64Array, number>(fixture, 'sumTyped', [Float64Array.of(1, 2, 3), Float64Array.of(0.5)], { threads: 2 });
     expect(sums).toEqual([6, 0.5]);
