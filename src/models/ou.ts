@@ -7,6 +7,28 @@ export function relaxedTime(rate: number, t: number): number {
   return rate === 0 ? t : -Math.expm1(-rate * t) / rate;
 }
 
+/** Coefficients of the series of ((1 + x) e^-x - 1) / x^2 in x (the terms (-1)^m (1 - m) / m!, m = 2..10). */
+const slopeSeries = [-1 / 2, 1 / 3, -1 / 8, 1 / 30, -1 / 144, 1 / 840, -1 / 5760, 1 / 45360, -1 / 403200];
+
+/**
+ * d/d(rate) of {@link relaxedTime}: t^2 ((1 + x) e^-x - 1) / x^2 with x = rate t,
+ * -t^2 / 2 at rate 0; by its series below x = 0.1 (truncation below 1e-16
+ * relative), else through expm1 (cancellation below 1e-14 relative).
+ *
+ * @example
+ * relaxedTimeSlope(0, 2); // -2 (= -t^2 / 2)
+ * relaxedTimeSlope(1, 1); // -0.26424111765711533 (to 1e-14; = 2/e - 1)
+ */
+export function relaxedTimeSlope(rate: number, t: number): number {
+  const x = rate * t;
+  if (Math.abs(x) < 0.1) {
+    let sum = 0;
+    for (let m = slopeSeries.length - 1; m >= 0; m--) sum = sum * x + slopeSeries[m];
+    return t * t * sum;
+  }
+  return (t * t * (Math.expm1(-x) + x * Math.exp(-x))) / (x * x);
+}
+
 /**
  * Latent dynamics of ou (and the models built on it): started exactly at the
  * ancestral mean, transition exp(-alpha tau_i), process variance
@@ -139,6 +161,27 @@ export const ornsteinUhlenbeck: EvolutionModel = {
         space.transition[i] = factors.transition[i];
         space.processVariance[i] = stepVariance * factors.varianceTime[i];
       }
+    }
+  },
+  // d/d alpha and d/d step_variance of the entries fillSpace writes (for the score recursions, engine/kalman-score.ts).
+  fillSpaceDerivatives(lineage, process, derivatives) {
+    const [alpha, stepVariance] = [process[0], process[1]];
+    const time = lineage.time;
+    const [byAlpha, byVariance] = derivatives;
+    for (let i = 0; i < time.length; i++) {
+      byAlpha.design[2 * i] = -time[i] * Math.exp(-alpha * time[i]);
+      byAlpha.design[2 * i + 1] = relaxedTimeSlope(alpha, time[i]);
+      byVariance.design[2 * i] = 0;
+      byVariance.design[2 * i + 1] = 0;
+      if (i === 0) {
+        byAlpha.transition[0] = byAlpha.processVariance[0] = byVariance.transition[0] = byVariance.processVariance[0] = 0;
+        continue;
+      }
+      const interval = time[i] - time[i - 1];
+      byAlpha.transition[i] = -interval * Math.exp(-alpha * interval);
+      byAlpha.processVariance[i] = 2 * stepVariance * relaxedTimeSlope(2 * alpha, interval);
+      byVariance.transition[i] = 0;
+      byVariance.processVariance[i] = relaxedTime(2 * alpha, interval);
     }
   },
   // At alpha = 0 the optimum is not finite (it ran away with (optimum - a) alpha -> drift); it is reported as null.
