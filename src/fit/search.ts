@@ -2,6 +2,7 @@ import type { Lineage } from '../lineage.js';
 import type { ProcessAxis } from '../models/model.js';
 import { brentMaximize, nelderMead } from './optimise.js';
 import { polishMaximum } from './polish.js';
+import { slopeMaximize, warmSlopeSearch, type ValueSlope } from './slope-search.js';
 
 /** Where the nested search found the maximum of one axis. */
 export type AxisPosition = 'interior' | 'zero' | 'range-lower' | 'range-upper';
@@ -37,6 +38,19 @@ export interface SearchOptions {
    * profile searches, which need only the maximum's value, go without.
    */
   polish?: boolean;
+  /**
+   * The gradient of `evaluate` with respect to the process values, in
+   * natural units, at the same process values (e.g. from
+   * `LikelihoodEvaluator.profileScore`), when the model provides its state
+   * space's derivatives. The one-dimensional refinements then locate the
+   * zero of the slope (`slope-search.ts`) instead of searching on values,
+   * and the polish uses it instead of finite differences of values. The
+   * grids, and so what makes the search global, are unchanged. At an outer
+   * axis the slope of the profile (the inner axes maximised) is the partial
+   * derivative at the inner maximum (envelope theorem), so one gradient there
+   * serves every level.
+   */
+  gradient?: (process: number[]) => ArrayLike<number>;
 }
 
 interface Found {
@@ -90,6 +104,7 @@ export function maximiseProcess(
 ): ProcessMaximum {
   const points = options.points ?? 24;
   const fixed = options.fixed ?? new Map<number, number>();
+  const gradient = options.gradient;
   const depth = axes.length;
   const chosen: number[] = new Array(depth).fill(0);
   const leaf = (): Found => {
@@ -120,10 +135,25 @@ export function maximiseProcess(
       consider(inner);
       return inner.logLik;
     };
+    // Value and slope in ln units of this axis (the inner axes maximised), for the slope-based refinements.
+    const slopeAt = (logValue: number, innerHint: readonly number[] | null): ValueSlope => {
+      chosen[level] = Math.exp(logValue);
+      const inner = recurse(level + 1, innerHint);
+      consider(inner);
+      if (gradient === undefined || !Number.isFinite(inner.logLik)) return { value: inner.logLik, slope: Number.NaN };
+      return { value: inner.logLik, slope: gradient(inner.process)[level] * inner.process[level] };
+    };
+    // Maximum within one grid cell either side of `centre`: by the slope when there is a gradient, else (or when the
+    // slope does not bracket a maximum there) by Brent's method on values.
+    const refine = (centre: number, left: number, right: number, innerHint: readonly number[] | null, tolerance: number): { at: number; value: number } =>
+      (gradient === undefined ? null : slopeMaximize((x) => slopeAt(x, innerHint), centre, left, right, tolerance)) ??
+      brentMaximize((x) => innerAt(x, innerHint), left, right, tolerance);
     const startValue = hint?.[level];
     let at: number;
     if (hint !== null && startValue !== undefined && startValue > 0 && Number.isFinite(startValue)) {
-      at = warmSearch((x) => innerAt(x, hint), Math.min(logUpper, Math.max(logLower, Math.log(startValue))), logLower, logUpper);
+      const from = Math.min(logUpper, Math.max(logLower, Math.log(startValue)));
+      const warm = gradient === undefined ? null : warmSlopeSearch((x) => slopeAt(x, hint), from, logLower, logUpper, warmHalfWidth, brentTolerance);
+      at = warm !== null ? warm.at : warmSearch((x) => innerAt(x, hint), from, logLower, logUpper);
     } else {
       // Grid over the whole range, then Brent within the neighbours of the best grid point and of every
       // other local maximum of the grid (a narrow interior peak can sit between grid points whose values
@@ -154,8 +184,8 @@ export function maximiseProcess(
           const right = Math.min(logUpper, centre + step);
           // Another local maximum of the grid is first located coarsely; one that then stays clearly below the
           // best peak's refined value cannot win and is not refined further.
-          if (k !== bestIndex && brentMaximize((x) => innerAt(x, innerHint), left, right, screenTolerance).value < atValue - screenMargin) continue;
-          const refined = brentMaximize((x) => innerAt(x, innerHint), left, right, brentTolerance);
+          if (k !== bestIndex && refine(centre, left, right, innerHint, screenTolerance).value < atValue - screenMargin) continue;
+          const refined = refine(centre, left, right, innerHint, brentTolerance);
           if (k === bestIndex ? refined.value >= atValue : refined.value > atValue) {
             at = refined.at;
             atValue = refined.value;
@@ -187,15 +217,15 @@ export function maximiseProcess(
   // searched as a problem of its own too.
   for (let level = 1; level < depth; level++) {
     if (!axes[level].allowZero || fixed.has(level)) continue;
-    const face = maximiseProcess(evaluate, axes, lineage, { points, fixed: new Map([...fixed, [level, 0]]) });
+    const face = maximiseProcess(evaluate, axes, lineage, { points, fixed: new Map([...fixed, [level, 0]]), gradient });
     if (face.logLik > nested.logLik + flatTolerance * Math.max(1, Math.abs(nested.logLik))) {
       nested = { logLik: face.logLik, process: face.process, positions: face.positions.map((position, other) => (other === level ? 'zero' : position)) };
     }
   }
-  const result = preferEnds(evaluate, axes, lineage, fixed, nested);
+  const result = preferEnds(evaluate, axes, lineage, fixed, nested, gradient);
   if (options.polish) {
     const free = result.positions.flatMap((position, level) => (position === 'interior' && !fixed.has(level) ? [level] : []));
-    const polished = polishMaximum(evaluate, axes, lineage, result, free);
+    const polished = polishMaximum(evaluate, axes, lineage, result, free, { gradient });
     return { process: polished.process, logLik: polished.logLik, positions: result.positions };
   }
   return { process: result.process, logLik: result.logLik, positions: result.positions };
@@ -245,6 +275,7 @@ function preferEnds(
   lineage: Lineage,
   fixed: ReadonlyMap<number, number>,
   found: Found,
+  gradient?: (process: number[]) => ArrayLike<number>,
 ): Found {
   if (!Number.isFinite(found.logLik)) return found;
   let result = found;
@@ -268,7 +299,7 @@ function preferEnds(
         // A limit can be approached along a ridge (ou: alpha and step_variance growing together, the
         // stationary variance fixed), so there the other axes are maximised again. (A bound 0 allowed
         // on the axis was already searched over the other axes by the nested search.)
-        const ridge = maximiseProcess(evaluate, axes, lineage, { fixed: new Map([...fixed, [level, value]]), points: 12 });
+        const ridge = maximiseProcess(evaluate, axes, lineage, { fixed: new Map([...fixed, [level, value]]), points: 12, gradient });
         process = ridge.process;
         logLik = ridge.logLik;
         positions = ridge.positions.slice();
