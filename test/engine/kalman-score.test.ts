@@ -129,3 +129,49 @@ describe('relaxedTimeSlope: d/d rate of (1 - exp(-rate t)) / rate', () => {
     expect(relaxedTimeSlope(0, 3)).toBe(-4.5);
   });
 });
+
+describe('score recursions: the variance of the walks and of stasis', () => {
+  // Central differences of the profile (as above) and the dense derivative with dV = C / variance (C linear in
+  // the variance; MODELS.md's covariances: sigma2 min(t_i, t_j) for the walks, omega on the diagonal for stasis)
+  // and no mean term (the designs do not depend on the variance).
+  const covariances: Record<string, (t: number[], i: number, j: number) => number> = {
+    'random-walk': (t, i, j) => Math.min(t[i], t[j]),
+    'directional-walk': (t, i, j) => Math.min(t[i], t[j]),
+    stasis: (_t, i, j) => (i === j ? 1 : 0),
+  };
+  const designs: Record<string, (time: number) => number[]> = {
+    'random-walk': () => [1],
+    'directional-walk': (time) => [1, time],
+    stasis: () => [1],
+  };
+  for (const id of Object.keys(covariances)) {
+    it(`${id}: matches central differences and the dense derivative`, () => {
+      const model = findModel(id)!;
+      const lineage = seededLineage(18, 7);
+      const evaluator = new LikelihoodEvaluator(model, lineage);
+      const t = Array.from(lineage.time);
+      const n = t.length;
+      for (const variance of [0.003, 0.2, 4]) {
+        const gradient = new Float64Array(1);
+        evaluator.profileScore([variance], gradient);
+        const h = variance * 1e-5;
+        const difference = (evaluator.profile([variance + h]) - evaluator.profile([variance - h])) / (2 * h);
+        const scale = Math.abs(gradient[0] * variance) + 1;
+        expect(Math.abs(difference - gradient[0]) * variance).toBeLessThan(1e-6 * scale);
+        const unit = Matrix.from1DArray(n, n, Array.from({ length: n * n }, (_, k) => covariances[id](t, Math.floor(k / n), k % n)));
+        const V = unit.clone().mul(variance);
+        for (let i = 0; i < n; i++) V.set(i, i, V.get(i, i) + lineage.samplingVariance[i]);
+        const X = new Matrix(t.map((time) => designs[id](time)));
+        const x = Matrix.columnVector(Array.from(lineage.mean));
+        const Vi = inverse(V);
+        const beta = inverse(X.transpose().mmul(Vi).mmul(X)).mmul(X.transpose()).mmul(Vi).mmul(x);
+        const Vir = Vi.mmul(x.clone().sub(X.mmul(beta)));
+        let trace = 0;
+        const product = Vi.mmul(unit);
+        for (let i = 0; i < n; i++) trace += product.get(i, i);
+        const dense = -0.5 * trace + 0.5 * Vir.transpose().mmul(unit).mmul(Vir).get(0, 0);
+        expect(Math.abs(dense - gradient[0]) * variance).toBeLessThan(1e-8 * scale);
+      }
+    });
+  }
+});
