@@ -134,20 +134,27 @@ describe('score recursions: the variance of the walks and of stasis', () => {
   // Central differences of the profile (as above) and the dense derivative with dV = C / variance (C linear in
   // the variance; MODELS.md's covariances: sigma2 min(t_i, t_j) for the walks, omega on the diagonal for stasis)
   // and no mean term (the designs do not depend on the variance).
+  // The covariate variants (issue 5's definitions: stasis or the random walk about intercept + slope × covariate,
+  // the walk's covariate measured from its first horizon) have the same covariances.
   const covariances: Record<string, (t: number[], i: number, j: number) => number> = {
     'random-walk': (t, i, j) => Math.min(t[i], t[j]),
     'directional-walk': (t, i, j) => Math.min(t[i], t[j]),
     stasis: (_t, i, j) => (i === j ? 1 : 0),
+    'covariate-stasis': (_t, i, j) => (i === j ? 1 : 0),
+    'covariate-walk': (t, i, j) => Math.min(t[i], t[j]),
   };
-  const designs: Record<string, (time: number) => number[]> = {
+  const covariate = Float64Array.from({ length: 18 }, (_, i) => Math.sin(i) + 0.1 * i);
+  const designs: Record<string, (time: number, i: number) => number[]> = {
     'random-walk': () => [1],
     'directional-walk': (time) => [1, time],
     stasis: () => [1],
+    'covariate-stasis': (_time, i) => [1, covariate[i]],
+    'covariate-walk': (_time, i) => [1, covariate[i] - covariate[0]],
   };
   for (const id of Object.keys(covariances)) {
     it(`${id}: matches central differences and the dense derivative`, () => {
       const model = findModel(id)!;
-      const lineage = seededLineage(18, 7);
+      const lineage = { ...seededLineage(18, 7), covariate };
       const evaluator = new LikelihoodEvaluator(model, lineage);
       const t = Array.from(lineage.time);
       const n = t.length;
@@ -161,7 +168,7 @@ describe('score recursions: the variance of the walks and of stasis', () => {
         const unit = Matrix.from1DArray(n, n, Array.from({ length: n * n }, (_, k) => covariances[id](t, Math.floor(k / n), k % n)));
         const V = unit.clone().mul(variance);
         for (let i = 0; i < n; i++) V.set(i, i, V.get(i, i) + lineage.samplingVariance[i]);
-        const X = new Matrix(t.map((time) => designs[id](time)));
+        const X = new Matrix(t.map((time, i) => designs[id](time, i)));
         const x = Matrix.columnVector(Array.from(lineage.mean));
         const Vi = inverse(V);
         const beta = inverse(X.transpose().mmul(Vi).mmul(X)).mmul(X.transpose()).mmul(Vi).mmul(x);
