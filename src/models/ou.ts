@@ -83,6 +83,38 @@ function alphaFactors(time: Float64Array, alpha: number): AlphaFactors {
   return factors;
 }
 
+/** d/d alpha of the {@link AlphaFactors} at one alpha (the score recursions' inputs; transition and variance per unit step variance). */
+interface AlphaSlopes {
+  alpha: number;
+  readonly decay: Float64Array;
+  readonly relaxed: Float64Array;
+  readonly transition: Float64Array;
+  readonly varianceTime: Float64Array;
+}
+
+/** The slopes at the last alpha asked for, per time axis (the searches vary step_variance at fixed alpha, as for the factors). */
+const slopesByTime = new WeakMap<Float64Array, AlphaSlopes>();
+
+function alphaSlopes(time: Float64Array, alpha: number): AlphaSlopes {
+  let slopes = slopesByTime.get(time);
+  if (slopes === undefined || slopes.decay.length !== time.length) {
+    const size = time.length;
+    slopes = { alpha: Number.NaN, decay: new Float64Array(size), relaxed: new Float64Array(size), transition: new Float64Array(size), varianceTime: new Float64Array(size) };
+    slopesByTime.set(time, slopes);
+  } else if (slopes.alpha === alpha) return slopes;
+  for (let i = 0; i < time.length; i++) {
+    slopes.decay[i] = -time[i] * Math.exp(-alpha * time[i]);
+    slopes.relaxed[i] = relaxedTimeSlope(alpha, time[i]);
+    if (i > 0) {
+      const interval = time[i] - time[i - 1];
+      slopes.transition[i] = -interval * Math.exp(-alpha * interval);
+      slopes.varianceTime[i] = 2 * relaxedTimeSlope(2 * alpha, interval);
+    }
+  }
+  slopes.alpha = alpha;
+  return slopes;
+}
+
 /** Ranges of alpha searched: alpha * span = 1e-5 (the random-walk limit) to alpha * shortest interval = 40 (the stasis-like limit). */
 export function alphaRange(lineage: Lineage): readonly [number, number] {
   const { span, shortest } = timeSpan(lineage);
@@ -165,23 +197,23 @@ export const ornsteinUhlenbeck: EvolutionModel = {
   },
   // d/d alpha and d/d step_variance of the entries fillSpace writes (for the score recursions, engine/kalman-score.ts).
   fillSpaceDerivatives(lineage, process, derivatives) {
-    const [alpha, stepVariance] = [process[0], process[1]];
-    const time = lineage.time;
+    const stepVariance = process[1];
+    const factors = alphaFactors(lineage.time, process[0]);
+    const slopes = alphaSlopes(lineage.time, process[0]);
     const [byAlpha, byVariance] = derivatives;
-    for (let i = 0; i < time.length; i++) {
-      byAlpha.design[2 * i] = -time[i] * Math.exp(-alpha * time[i]);
-      byAlpha.design[2 * i + 1] = relaxedTimeSlope(alpha, time[i]);
+    for (let i = 0; i < lineage.time.length; i++) {
+      byAlpha.design[2 * i] = slopes.decay[i];
+      byAlpha.design[2 * i + 1] = slopes.relaxed[i];
       byVariance.design[2 * i] = 0;
       byVariance.design[2 * i + 1] = 0;
       if (i === 0) {
         byAlpha.transition[0] = byAlpha.processVariance[0] = byVariance.transition[0] = byVariance.processVariance[0] = 0;
         continue;
       }
-      const interval = time[i] - time[i - 1];
-      byAlpha.transition[i] = -interval * Math.exp(-alpha * interval);
-      byAlpha.processVariance[i] = 2 * stepVariance * relaxedTimeSlope(2 * alpha, interval);
+      byAlpha.transition[i] = slopes.transition[i];
+      byAlpha.processVariance[i] = stepVariance * slopes.varianceTime[i];
       byVariance.transition[i] = 0;
-      byVariance.processVariance[i] = relaxedTime(2 * alpha, interval);
+      byVariance.processVariance[i] = factors.varianceTime[i];
     }
   },
   // At alpha = 0 the optimum is not finite (it ran away with (optimum - a) alpha -> drift); it is reported as null.
