@@ -1,5 +1,6 @@
 import { allocateSums, whiten, workSize, type WhitenedSums } from '../engine/kalman-filter.js';
 import { logLikAt, profileLogLik, profileOut, profileWithFixedCoefficient, type ProfileResult } from '../engine/gls.js';
+import { allocateSpaceDerivatives, filterScore, scoreWorkSize, type SpaceDerivative } from '../engine/kalman-score.js';
 import { allocateStateSpace, type StateSpace } from '../engine/state-space.js';
 import type { Lineage } from '../lineage.js';
 import type { EvolutionModel } from '../models/model.js';
@@ -25,10 +26,14 @@ export class LikelihoodEvaluator {
   private readonly work: Float64Array;
   /** Number of filter passes so far (repeated process values answered from the cache are not counted). */
   evaluations = 0;
+  /** Number of score passes ({@link LikelihoodEvaluator.profileScore}) so far. */
+  scoreEvaluations = 0;
   /** Filter results by process values: see {@link LikelihoodEvaluator.whiten}. */
   private readonly cache: WhitenCache;
   /** The filter resuming after rows shared by every value of the later process axes (a shift model bound to one position), or null. */
   readonly prefix: PrefixFilter | null;
+  /** Scratch of {@link LikelihoodEvaluator.profileScore}, allocated on first use. */
+  private scoreScratch: { derivatives: SpaceDerivative[]; work: Float64Array; coefficients: Float64Array } | null = null;
 
   constructor(model: EvolutionModel, lineage: Lineage) {
     this.model = model;
@@ -84,6 +89,54 @@ export class LikelihoodEvaluator {
   /** Profile log-likelihood at these process values (location parameters at their GLS estimate). */
   profile(process: ArrayLike<number>): number {
     return profileLogLik(this.whiten(process));
+  }
+
+  /** True when the model fills its state space's derivatives, so {@link LikelihoodEvaluator.profileScore} can be used. */
+  get hasScore(): boolean {
+    return this.model.fillSpaceDerivatives !== undefined;
+  }
+
+  /**
+   * Profile log-likelihood at these process values (the value of
+   * {@link LikelihoodEvaluator.profile}, bit for bit) and its gradient with
+   * respect to the process values in natural units, written into `gradient`:
+   * the score recursions (`engine/kalman-score.ts`) run over the residual at
+   * the GLS coefficients, where by the envelope theorem the gradient of the
+   * likelihood with the coefficients held is the gradient of the profile.
+   * `gradient` is NaN where the profile is not finite. Needs the model's
+   * `fillSpaceDerivatives` ({@link LikelihoodEvaluator.hasScore}). A stable
+   * entry point for the searches and the interval code.
+   *
+   * @param process process values (natural units)
+   * @param gradient output, length >= the number of process axes
+   * @returns the profile log-likelihood
+   */
+  profileScore(process: ArrayLike<number>, gradient: Float64Array): number {
+    const fill = this.model.fillSpaceDerivatives;
+    if (fill === undefined) throw new Error(`model ${this.model.id} has no state-space derivatives`);
+    const count = this.model.process.length;
+    const sums = this.whiten(process);
+    const logLik = profileLogLik(sums);
+    if (!Number.isFinite(logLik)) {
+      gradient.fill(Number.NaN, 0, count);
+      return logLik;
+    }
+    const width = sums.width;
+    this.scoreScratch ??= { derivatives: allocateSpaceDerivatives(sums.size, width, count), work: new Float64Array(scoreWorkSize(count)), coefficients: new Float64Array(width) };
+    const { derivatives, work, coefficients } = this.scoreScratch;
+    // GLS coefficients (centred trait) by back substitution R beta = z, as profileOut solves them.
+    const triangle = sums.triangle;
+    for (let i = width - 1; i >= 0; i--) {
+      let value = sums.projected[i];
+      for (let k = i + 1; k < width; k++) value -= triangle[i * width + k] * coefficients[k];
+      coefficients[i] = value / triangle[i * width + i];
+    }
+    // The cache may have answered whiten without filling the space.
+    this.model.fillSpace(this.lineage, process, this.space);
+    fill(this.lineage, process, derivatives);
+    this.scoreEvaluations += 1;
+    filterScore(this.space, derivatives, this.data, coefficients, gradient, work);
+    return logLik;
   }
 
   /** GLS details at these process values, with coefficients on the trait's own scale. */

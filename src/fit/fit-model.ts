@@ -154,7 +154,10 @@ function fitStandardised(model: EvolutionModel, lineage: Lineage, options: FitOp
 function fitWithEvaluator(model: EvolutionModel, lineage: Lineage, options: FitOptions, evaluator: LikelihoodEvaluator): ModelFit {
   const size = lineage.mean.length;
   const evaluate = (process: number[]): number => evaluator.profile(process);
-  const maximum = maximiseProcess(evaluate, model.process, lineage, { points: options.gridPoints, polish: true });
+  // Models that give their state space's derivatives are searched with the analytic gradient (ou; issue 14).
+  const slopes = new Float64Array(model.process.length);
+  const gradient = evaluator.hasScore ? (process: number[]): Float64Array => (evaluator.profileScore(process, slopes), slopes) : undefined;
+  const maximum = maximiseProcess(evaluate, model.process, lineage, { points: options.gridPoints, polish: true, gradient });
   if (!Number.isFinite(maximum.logLik)) {
     // Probe at an interior point to tell a singular covariance from a likelihood that is merely not finite.
     const probe = model.process.map((axis) => {

@@ -2,6 +2,7 @@ import type { Lineage } from '../lineage.js';
 import type { ProcessAxis } from '../models/model.js';
 import { brentMaximize, nelderMead } from './optimise.js';
 import { polishMaximum } from './polish.js';
+import { slopeMaximize, warmSlopeSearch, type ValueSlope } from './slope-search.js';
 
 /** Where the nested search found the maximum of one axis. */
 export type AxisPosition = 'interior' | 'zero' | 'range-lower' | 'range-upper';
@@ -37,6 +38,19 @@ export interface SearchOptions {
    * profile searches, which need only the maximum's value, go without.
    */
   polish?: boolean;
+  /**
+   * The gradient of `evaluate` with respect to the process values, in
+   * natural units, at the same process values (e.g. from
+   * `LikelihoodEvaluator.profileScore`), when the model provides its state
+   * space's derivatives. The one-dimensional refinements then locate the
+   * zero of the slope (`slope-search.ts`) instead of searching on values,
+   * and the polish uses it instead of finite differences of values. The
+   * grids, and so what makes the search global, are unchanged. At an outer
+   * axis the slope of the profile (the inner axes maximised) is the partial
+   * derivative at the inner maximum (envelope theorem), so one gradient there
+   * serves every level.
+   */
+  gradient?: (process: number[]) => ArrayLike<number>;
 }
 
 interface Found {
@@ -45,6 +59,21 @@ interface Found {
   positions: AxisPosition[];
 }
 
+/**
+ * With a gradient, the innermost axis at the outer grid's points after the
+ * first is searched from the previous point's inner maximum by the slope,
+ * guarded by a grid of 1/guardStride as many points as the full one (8 of 24):
+ * every local maximum of that grid outside the followed maximum's cell is
+ * screened and refined like a full grid's. Why the search stays global: the
+ * followed maximum is exact wherever the inner maximum moves continuously
+ * with the outer axis, and a jump to another basin needs that basin to
+ * overtake it, which the guard grid sees unless the new basin is narrower
+ * than a guard cell (about 4 ln units of a variance: a factor 50) and lies
+ * between guard points; the outer axis keeps its full grid, the bound 0 is
+ * still tried at every outer point, and the face where the inner variance is
+ * 0 is still searched on its own (issue 25's narrow outer peaks).
+ */
+const guardStride = 3;
 /** Half-width, in ln units, of the first bracket of a warm-started axis (a factor e^1.5 ≈ 4.5 each way). */
 const warmHalfWidth = 1.5;
 /**
@@ -90,14 +119,16 @@ export function maximiseProcess(
 ): ProcessMaximum {
   const points = options.points ?? 24;
   const fixed = options.fixed ?? new Map<number, number>();
+  const gradient = options.gradient;
   const depth = axes.length;
   const chosen: number[] = new Array(depth).fill(0);
   const leaf = (): Found => {
     const process = chosen.slice();
     return { logLik: evaluate(process), process, positions: [] };
   };
-  // `hint`: warm start for this level and the ones below (null = full grid).
-  const recurse = (level: number, hint: readonly number[] | null): Found => {
+  // `hint`: warm start for this level and the ones below (null = full grid). `guarded`: with a hint, the innermost
+  // axis is searched from it by the slope and a coarse guard grid (see guardStride), not by the slope alone.
+  const recurse = (level: number, hint: readonly number[] | null, guarded = false): Found => {
     if (level === depth) return leaf();
     const fixedValue = fixed.get(level);
     if (fixedValue !== undefined) {
@@ -114,17 +145,65 @@ export function maximiseProcess(
     const consider = (found: Found): void => {
       if (best === null || found.logLik > best.logLik || (Number.isNaN(best.logLik) && !Number.isNaN(found.logLik))) best = found;
     };
-    const innerAt = (logValue: number, innerHint: readonly number[] | null): number => {
+    let lastInner: Found | null = null;
+    const innerAt = (logValue: number, innerHint: readonly number[] | null, innerGuarded = false): number => {
+      chosen[level] = Math.exp(logValue);
+      const inner = recurse(level + 1, innerHint, innerGuarded);
+      consider(inner);
+      lastInner = inner;
+      return inner.logLik;
+    };
+    // Value and slope in ln units of this axis (the inner axes maximised), for the slope-based refinements.
+    const slopeAt = (logValue: number, innerHint: readonly number[] | null): ValueSlope => {
       chosen[level] = Math.exp(logValue);
       const inner = recurse(level + 1, innerHint);
       consider(inner);
-      return inner.logLik;
+      if (gradient === undefined || !Number.isFinite(inner.logLik)) return { value: inner.logLik, slope: Number.NaN };
+      return { value: inner.logLik, slope: gradient(inner.process)[level] * inner.process[level] };
     };
+    // Maximum within one grid cell either side of `centre`: by the slope when there is a gradient, else (or when the
+    // slope does not bracket a maximum there) by Brent's method on values.
+    const refine = (centre: number, left: number, right: number, innerHint: readonly number[] | null, tolerance: number): { at: number; value: number } =>
+      (gradient === undefined ? null : slopeMaximize((x) => slopeAt(x, innerHint), centre, left, right, tolerance)) ??
+      brentMaximize((x) => innerAt(x, innerHint), left, right, tolerance);
     const startValue = hint?.[level];
-    let at: number;
-    if (hint !== null && startValue !== undefined && startValue > 0 && Number.isFinite(startValue)) {
-      at = warmSearch((x) => innerAt(x, hint), Math.min(logUpper, Math.max(logLower, Math.log(startValue))), logLower, logUpper);
-    } else {
+    let at = Number.NaN;
+    // A guarded start at the bound 0 (the previous inner maximum was there) starts at the lower end of the range.
+    if (hint !== null && startValue !== undefined && (startValue > 0 || (guarded && startValue === 0)) && Number.isFinite(startValue)) {
+      const from = startValue === 0 ? logLower : Math.min(logUpper, Math.max(logLower, Math.log(startValue)));
+      const warm = gradient === undefined ? null : warmSlopeSearch((x) => slopeAt(x, hint), from, logLower, logUpper, warmHalfWidth, brentTolerance);
+      if (!guarded) at = warm !== null ? warm.at : warmSearch((x) => innerAt(x, hint), from, logLower, logUpper);
+      else if (warm !== null) {
+        // The innermost axis at the next point of an outer grid, started from the maximum at the previous point:
+        // the slope search above follows that maximum; a coarse guard grid catches another basin that overtakes
+        // it, each of its local maxima refined (screened first) as in the full grid's path below.
+        at = warm.at;
+        let atValue = warm.value;
+        const count = Math.max(4, Math.ceil(points / guardStride));
+        const step = (logUpper - logLower) / (count - 1);
+        const guardAt = (k: number): number => (k === count - 1 ? logUpper : logLower + k * step);
+        const values = new Array<number>(count);
+        let bestIndex = 0;
+        for (let k = 0; k < count; k++) {
+          const value = innerAt(guardAt(k), hint);
+          values[k] = Number.isFinite(value) ? value : Number.NEGATIVE_INFINITY;
+          if (values[k] > values[bestIndex]) bestIndex = k;
+        }
+        for (const k of gridPeaks(values, bestIndex)) {
+          const centre = guardAt(k);
+          if (!Number.isFinite(values[k]) || Math.abs(centre - warm.at) < step) continue;
+          const left = Math.max(logLower, centre - step);
+          const right = Math.min(logUpper, centre + step);
+          if (refine(centre, left, right, hint, screenTolerance).value < atValue - screenMargin) continue;
+          const refined = refine(centre, left, right, hint, brentTolerance);
+          if (refined.value > atValue) {
+            at = refined.at;
+            atValue = refined.value;
+          }
+        }
+      }
+    }
+    if (Number.isNaN(at)) {
       // Grid over the whole range, then Brent within the neighbours of the best grid point and of every
       // other local maximum of the grid (a narrow interior peak can sit between grid points whose values
       // are below the best one, e.g. a directional walk's step variance whose best grid value is next to
@@ -135,8 +214,13 @@ export function maximiseProcess(
       const innerBest: Array<Found | null> = new Array(points).fill(null);
       let bestIndex = 0;
       let bestValue = Number.NEGATIVE_INFINITY;
+      // With a gradient, the innermost axis at each outer grid point after the first starts from the inner maximum
+      // at the previous one (guarded: see guardStride) instead of a full grid of its own.
+      const continued = gradient !== undefined && hint === null && level + 2 === depth && !fixed.has(level + 1);
+      let previous: Found | null = null;
       for (let k = 0; k < points; k++) {
-        const value = innerAt(gridAt(k), hint === null ? null : hint);
+        const value = continued && previous !== null && Number.isFinite(previous.logLik) ? innerAt(gridAt(k), previous.process, true) : innerAt(gridAt(k), hint === null ? null : hint);
+        previous = lastInner as Found | null;
         values[k] = Number.isFinite(value) ? value : Number.NEGATIVE_INFINITY;
         innerBest[k] = best;
         if (Number.isFinite(value) && value > bestValue) {
@@ -154,8 +238,8 @@ export function maximiseProcess(
           const right = Math.min(logUpper, centre + step);
           // Another local maximum of the grid is first located coarsely; one that then stays clearly below the
           // best peak's refined value cannot win and is not refined further.
-          if (k !== bestIndex && brentMaximize((x) => innerAt(x, innerHint), left, right, screenTolerance).value < atValue - screenMargin) continue;
-          const refined = brentMaximize((x) => innerAt(x, innerHint), left, right, brentTolerance);
+          if (k !== bestIndex && refine(centre, left, right, innerHint, screenTolerance).value < atValue - screenMargin) continue;
+          const refined = refine(centre, left, right, innerHint, brentTolerance);
           if (k === bestIndex ? refined.value >= atValue : refined.value > atValue) {
             at = refined.at;
             atValue = refined.value;
@@ -187,15 +271,15 @@ export function maximiseProcess(
   // searched as a problem of its own too.
   for (let level = 1; level < depth; level++) {
     if (!axes[level].allowZero || fixed.has(level)) continue;
-    const face = maximiseProcess(evaluate, axes, lineage, { points, fixed: new Map([...fixed, [level, 0]]) });
+    const face = maximiseProcess(evaluate, axes, lineage, { points, fixed: new Map([...fixed, [level, 0]]), gradient });
     if (face.logLik > nested.logLik + flatTolerance * Math.max(1, Math.abs(nested.logLik))) {
       nested = { logLik: face.logLik, process: face.process, positions: face.positions.map((position, other) => (other === level ? 'zero' : position)) };
     }
   }
-  const result = preferEnds(evaluate, axes, lineage, fixed, nested);
+  const result = preferEnds(evaluate, axes, lineage, fixed, nested, gradient);
   if (options.polish) {
     const free = result.positions.flatMap((position, level) => (position === 'interior' && !fixed.has(level) ? [level] : []));
-    const polished = polishMaximum(evaluate, axes, lineage, result, free);
+    const polished = polishMaximum(evaluate, axes, lineage, result, free, { gradient });
     return { process: polished.process, logLik: polished.logLik, positions: result.positions };
   }
   return { process: result.process, logLik: result.logLik, positions: result.positions };
@@ -245,6 +329,7 @@ function preferEnds(
   lineage: Lineage,
   fixed: ReadonlyMap<number, number>,
   found: Found,
+  gradient?: (process: number[]) => ArrayLike<number>,
 ): Found {
   if (!Number.isFinite(found.logLik)) return found;
   let result = found;
@@ -268,7 +353,7 @@ function preferEnds(
         // A limit can be approached along a ridge (ou: alpha and step_variance growing together, the
         // stationary variance fixed), so there the other axes are maximised again. (A bound 0 allowed
         // on the axis was already searched over the other axes by the nested search.)
-        const ridge = maximiseProcess(evaluate, axes, lineage, { fixed: new Map([...fixed, [level, value]]), points: 12 });
+        const ridge = maximiseProcess(evaluate, axes, lineage, { fixed: new Map([...fixed, [level, value]]), points: 12, gradient });
         process = ridge.process;
         logLik = ridge.logLik;
         positions = ridge.positions.slice();

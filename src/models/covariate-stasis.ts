@@ -51,6 +51,12 @@ export const covariateStasis: EvolutionModel = {
       if (space.width === 2) space.design[i * 2 + 1] = covariate[i];
     }
   },
+  // d/d stasis_variance (the design does not depend on it), as stasis's: with a constant covariate the search is stasis's, step for step.
+  fillSpaceDerivatives(_lineage, _process, derivatives) {
+    derivatives[0].transition.fill(0);
+    derivatives[0].design.fill(0);
+    derivatives[0].processVariance.fill(1);
+  },
   toParameters: (coefficients, process) => ({
     covariate_intercept: coefficients[0],
     covariate_slope: coefficients.length > 1 ? coefficients[1] : Number.NaN,

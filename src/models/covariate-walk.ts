@@ -1,6 +1,6 @@
 import { buildCovariance, type EvolutionModel } from './model.js';
 import { covariateIsConstant, covariateMethodsNote, covariateProblem } from './covariate-shared.js';
-import { fillWalkDynamics, stepVarianceRange } from './walk-dynamics.js';
+import { fillWalkDerivatives, fillWalkDynamics, stepVarianceRange } from './walk-dynamics.js';
 
 /**
  * Covariate-following walk: each step of the lineage mean follows the change
@@ -44,6 +44,7 @@ export const covariateWalk: EvolutionModel = {
       if (space.width === 2) space.design[i * 2 + 1] = covariate[i] - covariate[0];
     }
   },
+  fillSpaceDerivatives: (lineage, _process, derivatives) => fillWalkDerivatives(lineage, derivatives[0]),
   toParameters: (coefficients, process) => ({
     ancestral_mean: coefficients[0],
     covariate_slope: coefficients.length > 1 ? coefficients[1] : Number.NaN,

@@ -1,5 +1,5 @@
 import { buildCovariance, type EvolutionModel } from './model.js';
-import { fillWalkDynamics, stepVarianceRange } from './walk-dynamics.js';
+import { fillWalkDerivatives, fillWalkDynamics, stepVarianceRange } from './walk-dynamics.js';
 
 /**
  * General random walk with directional drift (GRW): mu_i = a + delta t_i,
@@ -34,6 +34,7 @@ export const directionalWalk: EvolutionModel = {
       space.design[2 * i + 1] = lineage.time[i];
     }
   },
+  fillSpaceDerivatives: (lineage, _process, derivatives) => fillWalkDerivatives(lineage, derivatives[0]),
   toParameters: (coefficients, process) => ({ ancestral_mean: coefficients[0], drift: coefficients[1], step_variance: process[0] }),
   constantCoefficients: () => Float64Array.of(1, 0),
   fixLocation: (name, value) => ({ index: name === 'drift' ? 1 : 0, coefficient: value }),

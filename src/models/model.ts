@@ -1,3 +1,4 @@
+import type { SpaceDerivative } from '../engine/kalman-score.js';
 import type { StateSpace } from '../engine/state-space.js';
 import type { Lineage } from '../lineage.js';
 
@@ -221,6 +222,13 @@ export interface EvolutionModel {
   readonly minimumHorizons: number;
   /** Fill transition, process variance and design for the given process values. */
   fillSpace(lineage: Lineage, process: ArrayLike<number>, space: StateSpace): void;
+  /**
+   * Fill the derivatives of what {@link EvolutionModel.fillSpace} fills with
+   * respect to each process value (natural units, one entry of `derivatives`
+   * per axis), for the score recursions of `engine/kalman-score.ts`. Models
+   * without it are searched on values only.
+   */
+  fillSpaceDerivatives?(lineage: Lineage, process: ArrayLike<number>, derivatives: readonly SpaceDerivative[]): void;
   /** Natural parameters from design coefficients and process values. */
   toParameters(coefficients: ArrayLike<number>, process: ArrayLike<number>, lineage: Lineage): Record<string, number>;
   /** Design coefficients that reproduce the constant mean 1 (so the trait can be centred). */

@@ -7,6 +7,28 @@ export function relaxedTime(rate: number, t: number): number {
   return rate === 0 ? t : -Math.expm1(-rate * t) / rate;
 }
 
+/** Coefficients of the series of ((1 + x) e^-x - 1) / x^2 in x (the terms (-1)^m (1 - m) / m!, m = 2..10). */
+const slopeSeries = [-1 / 2, 1 / 3, -1 / 8, 1 / 30, -1 / 144, 1 / 840, -1 / 5760, 1 / 45360, -1 / 403200];
+
+/**
+ * d/d(rate) of {@link relaxedTime}: t^2 ((1 + x) e^-x - 1) / x^2 with x = rate t,
+ * -t^2 / 2 at rate 0; by its series below x = 0.1 (truncation below 1e-16
+ * relative), else through expm1 (cancellation below 1e-14 relative).
+ *
+ * @example
+ * relaxedTimeSlope(0, 2); // -2 (= -t^2 / 2)
+ * relaxedTimeSlope(1, 1); // -0.26424111765711533 (to 1e-14; = 2/e - 1)
+ */
+export function relaxedTimeSlope(rate: number, t: number): number {
+  const x = rate * t;
+  if (Math.abs(x) < 0.1) {
+    let sum = 0;
+    for (let m = slopeSeries.length - 1; m >= 0; m--) sum = sum * x + slopeSeries[m];
+    return t * t * sum;
+  }
+  return (t * t * (Math.expm1(-x) + x * Math.exp(-x))) / (x * x);
+}
+
 /**
  * Latent dynamics of ou (and the models built on it): started exactly at the
  * ancestral mean, transition exp(-alpha tau_i), process variance
@@ -59,6 +81,38 @@ function alphaFactors(time: Float64Array, alpha: number): AlphaFactors {
   }
   factors.alpha = alpha;
   return factors;
+}
+
+/** d/d alpha of the {@link AlphaFactors} at one alpha (the score recursions' inputs; transition and variance per unit step variance). */
+interface AlphaSlopes {
+  alpha: number;
+  readonly decay: Float64Array;
+  readonly relaxed: Float64Array;
+  readonly transition: Float64Array;
+  readonly varianceTime: Float64Array;
+}
+
+/** The slopes at the last alpha asked for, per time axis (the searches vary step_variance at fixed alpha, as for the factors). */
+const slopesByTime = new WeakMap<Float64Array, AlphaSlopes>();
+
+function alphaSlopes(time: Float64Array, alpha: number): AlphaSlopes {
+  let slopes = slopesByTime.get(time);
+  if (slopes === undefined || slopes.decay.length !== time.length) {
+    const size = time.length;
+    slopes = { alpha: Number.NaN, decay: new Float64Array(size), relaxed: new Float64Array(size), transition: new Float64Array(size), varianceTime: new Float64Array(size) };
+    slopesByTime.set(time, slopes);
+  } else if (slopes.alpha === alpha) return slopes;
+  for (let i = 0; i < time.length; i++) {
+    slopes.decay[i] = -time[i] * Math.exp(-alpha * time[i]);
+    slopes.relaxed[i] = relaxedTimeSlope(alpha, time[i]);
+    if (i > 0) {
+      const interval = time[i] - time[i - 1];
+      slopes.transition[i] = -interval * Math.exp(-alpha * interval);
+      slopes.varianceTime[i] = 2 * relaxedTimeSlope(2 * alpha, interval);
+    }
+  }
+  slopes.alpha = alpha;
+  return slopes;
 }
 
 /** Ranges of alpha searched: alpha * span = 1e-5 (the random-walk limit) to alpha * shortest interval = 40 (the stasis-like limit). */
@@ -139,6 +193,27 @@ export const ornsteinUhlenbeck: EvolutionModel = {
         space.transition[i] = factors.transition[i];
         space.processVariance[i] = stepVariance * factors.varianceTime[i];
       }
+    }
+  },
+  // d/d alpha and d/d step_variance of the entries fillSpace writes (for the score recursions, engine/kalman-score.ts).
+  fillSpaceDerivatives(lineage, process, derivatives) {
+    const stepVariance = process[1];
+    const factors = alphaFactors(lineage.time, process[0]);
+    const slopes = alphaSlopes(lineage.time, process[0]);
+    const [byAlpha, byVariance] = derivatives;
+    for (let i = 0; i < lineage.time.length; i++) {
+      byAlpha.design[2 * i] = slopes.decay[i];
+      byAlpha.design[2 * i + 1] = slopes.relaxed[i];
+      byVariance.design[2 * i] = 0;
+      byVariance.design[2 * i + 1] = 0;
+      if (i === 0) {
+        byAlpha.transition[0] = byAlpha.processVariance[0] = byVariance.transition[0] = byVariance.processVariance[0] = 0;
+        continue;
+      }
+      byAlpha.transition[i] = slopes.transition[i];
+      byAlpha.processVariance[i] = stepVariance * slopes.varianceTime[i];
+      byVariance.transition[i] = 0;
+      byVariance.processVariance[i] = factors.varianceTime[i];
     }
   },
   // At alpha = 0 the optimum is not finite (it ran away with (optimum - a) alpha -> drift); it is reported as null.

@@ -1,5 +1,5 @@
 import { buildCovariance, type EvolutionModel } from './model.js';
-import { fillWalkDynamics, stepVarianceRange } from './walk-dynamics.js';
+import { fillWalkDerivatives, fillWalkDynamics, stepVarianceRange } from './walk-dynamics.js';
 
 /**
  * Unbiased random walk (URW): mu_i = a, C_ij = sigma2 min(t_i, t_j).
@@ -28,6 +28,7 @@ export const randomWalk: EvolutionModel = {
     fillWalkDynamics(lineage, process[0], space);
     space.design.fill(1);
   },
+  fillSpaceDerivatives: (lineage, _process, derivatives) => fillWalkDerivatives(lineage, derivatives[0]),
   toParameters: (coefficients, process) => ({ ancestral_mean: coefficients[0], step_variance: process[0] }),
   constantCoefficients: () => Float64Array.of(1),
   fixLocation: (_name, value) => ({ index: 0, coefficient: value }),

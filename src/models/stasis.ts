@@ -38,6 +38,12 @@ export const stasis: EvolutionModel = {
     space.processVariance.fill(process[0]);
     space.design.fill(1);
   },
+  // d/d stasis_variance: the process variance of every horizon is that variance itself.
+  fillSpaceDerivatives(_lineage, _process, derivatives) {
+    derivatives[0].transition.fill(0);
+    derivatives[0].design.fill(0);
+    derivatives[0].processVariance.fill(1);
+  },
   toParameters: (coefficients, process) => ({ stasis_mean: coefficients[0], stasis_variance: process[0] }),
   constantCoefficients: () => Float64Array.of(1),
   fixLocation: (_name, value) => ({ index: 0, coefficient: value }),

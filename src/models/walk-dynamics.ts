@@ -1,3 +1,4 @@
+import type { SpaceDerivative } from '../engine/kalman-score.js';
 import type { StateSpace } from '../engine/state-space.js';
 import type { Lineage } from '../lineage.js';
 import { timeSpan, varianceScale } from './model.js';
@@ -21,6 +22,19 @@ export function fillWalkDynamics(lineage: Lineage, stepVariance: number, space: 
     space.transition[i] = 1;
     space.processVariance[i] = stepVariance * (time[i] - time[i - 1]);
   }
+}
+
+/**
+ * d/d stepVariance of what {@link fillWalkDynamics} fills (for the score
+ * recursions): process variance tau_i, nothing else depends on it; the
+ * design's derivative is 0.
+ */
+export function fillWalkDerivatives(lineage: Lineage, derivative: SpaceDerivative): void {
+  const time = lineage.time;
+  derivative.transition.fill(0);
+  derivative.design.fill(0);
+  derivative.processVariance[0] = 0;
+  for (let i = 1; i < time.length; i++) derivative.processVariance[i] = time[i] - time[i - 1];
 }
 
 /**

@@ -29,7 +29,7 @@ describe('npm run bench -- --smoke', () => {
       }
       // Issue 14's rows: every piece of work measured, in units of the bare filter timed in the same run.
       expect(results.evaluationCost.unitNanoseconds).toBeGreaterThan(0);
-      expect(results.evaluationCost.rows).toHaveLength(6);
+      expect(results.evaluationCost.rows).toHaveLength(8);
       for (const row of results.evaluationCost.rows) expect(row.evaluationEquivalents).toBeGreaterThan(1);
       expect(printed).toContain('evaluation-equivalents');
       expect(results.fits.map((row: { horizons: number }) => row.horizons)).toEqual([100, 1000, 100]);

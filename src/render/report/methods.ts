@@ -322,7 +322,7 @@ export function methodsText(document: FitDocumentView, analyses: AnalysesRun = {
     cites: ['kalman1960', 'deJong1991'], paragraph: 'models',
   });
   sentences.push({
-    text: 'The remaining (variance and rate) parameters were maximised numerically on a logarithmic grid, every local maximum of the grid refined by Brent\'s method, with variances allowed to reach their bound of zero; estimates at a bound or a limit are reported as such. The fit was made on the data rescaled to a unit time span and trait scale and reported in the original units.',
+    text: 'The remaining (variance and rate) parameters were maximised numerically on a logarithmic grid, every local maximum of the grid refined by Brent\'s method (applied to the slope of the likelihood, computed exactly by the filter, for the classic and covariate models), with variances allowed to reach their bound of zero; estimates at a bound or a limit are reported as such. The fit was made on the data rescaled to a unit time span and trait scale and reported in the original units.',
     cites: ['brent1973'], paragraph: 'models',
   });
   sentences.push(...intervalSentences(document));
