@@ -28,6 +28,12 @@ export function fillWalkDynamics(lineage: Lineage, stepVariance: number, space: 
  * d/d stepVariance of what {@link fillWalkDynamics} fills (for the score
  * recursions): process variance tau_i, nothing else depends on it; the
  * design's derivative is 0.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 3], mean: [1, 2, 4], samplingVariance: [0.1, 0.1, 0.1] });
+ * const [derivative] = allocateSpaceDerivatives(3, 1, 1);
+ * fillWalkDerivatives(lineage, derivative);
+ * Array.from(derivative.processVariance); // [0, 1, 2] (the intervals: d(step variance × interval) / d step variance)
  */
 export function fillWalkDerivatives(lineage: Lineage, derivative: SpaceDerivative): void {
   const time = lineage.time;
