@@ -102,6 +102,46 @@ export async function nestedCalibrationLineage(task: NestedCalibrationTask): Pro
   };
 }
 
+/** The statistic's distribution under the true null on one design, against chi-square(1). */
+export interface TrueNullRow {
+  readonly model: NestingModelId;
+  readonly horizons: number;
+  readonly draws: number;
+  /** Median and 90%, 95% points of T = 2 (logL_full - logL_reduced) over lineages drawn from the true null. */
+  readonly median: number;
+  readonly q90: number;
+  readonly q95: number;
+  /** Share of T above the chi-square(1) 95% point 3.841. */
+  readonly beyond_chi_square: number;
+}
+
+/**
+ * Why a size is off: T's distribution under the TRUE null parameters on the
+ * design of the row's first lineage (what the bootstrap would use if it knew
+ * them), from `draws` lineages; compare its 95% point with the bootstrap
+ * critical values, which are drawn from the FITTED null. One thread (a
+ * diagnostic: hundreds of fits, not thousands).
+ */
+export function trueNullDistribution(model: NestingModelId, horizons: number, draws: number, seed = 2026): TrueNullRow {
+  const designSeed = replicateSeed(seed, horizons, nestingModelIds.indexOf(model), 0, 0);
+  const design = nestedDesign(horizons, designSeed);
+  const truth = nestedTruth(model, 'null', design);
+  const shape = designLineage(design);
+  const full = findModel(model)!;
+  const reduced = findModel(full.nests!.model)!;
+  const values: number[] = [];
+  for (let index = 0; index < draws; index++) {
+    const lineage = withMeans(shape, simulateMeans(findModel(truth.model)!, shape, truth.parameters, createRandom(replicateSeed(seed, 99, horizons, nestingModelIds.indexOf(model), index))));
+    const fit = fitLineage(lineage, [reduced, full], { intervals: false });
+    const upper = fit.models.find((entry) => entry.id === model)!;
+    const lower = fit.models.find((entry) => entry.id === reduced.id)!;
+    if (upper.converged && lower.converged && Number.isFinite(upper.logLik) && Number.isFinite(lower.logLik)) values.push(Math.max(0, 2 * (upper.logLik - lower.logLik)));
+  }
+  const sorted = [...values].sort((left, right) => left - right);
+  const at = (level: number): number => sorted[Math.min(sorted.length - 1, Math.floor(level * sorted.length))];
+  return { model, horizons, draws: sorted.length, median: at(0.5), q90: at(0.9), q95: at(0.95), beyond_chi_square: values.filter((value) => value > 3.841).length / values.length };
+}
+
 /** One row of the table: rejection rates at 5% with binomial standard errors. */
 export interface NestedCalibrationRow {
   readonly model: NestingModelId;
@@ -215,7 +255,7 @@ export async function runNestedCalibration(options: NestedCalibrationOptions = {
   return rows;
 }
 
-// Run alone: node dist/bench/nested-test-calibration.js [lineages] [--models a,b] [--truth null|alternative] [--horizons 15,25] [--threads n]
+// Run alone: node dist/bench/nested-test-calibration.js [lineages] [--models a,b] [--truth null|alternative] [--horizons 15,25] [--threads n] [--true-null draws]
 if (isMainThread && process.argv[1] && import.meta.url.endsWith(process.argv[1].replace(/\\/g, '/'))) {
   const args = process.argv.slice(2);
   const take = (name: string): string | undefined => {
@@ -226,7 +266,18 @@ if (isMainThread && process.argv[1] && import.meta.url.endsWith(process.argv[1].
   const truth = take('--truth');
   const horizons = take('--horizons')?.split(',').map(Number);
   const threads = take('--threads');
+  const trueNull = take('--true-null');
   const [count] = args.filter((arg) => !arg.startsWith('--')).map(Number);
+  if (trueNull !== undefined) {
+    // node dist/bench/nested-test-calibration.js --true-null 400 --models moving-optimum --horizons 15
+    for (const model of (models ?? nestingModelIds) as NestingModelId[]) {
+      for (const size of horizons ?? [15, 25]) {
+        const row = trueNullDistribution(model, size, Number(trueNull));
+        console.log(`${model} at ${size} horizons, T under the true null (${row.draws} lineages on one design): median ${row.median.toFixed(2)}, 90% ${row.q90.toFixed(2)}, 95% ${row.q95.toFixed(2)}; share above chi-square(1) 3.841: ${row.beyond_chi_square.toFixed(3)}`);
+      }
+    }
+    process.exit(0);
+  }
   const cases = defaultNestedCases(count || 200).filter((entry) =>
     (models === undefined || models.includes(entry.model)) && (truth === undefined || entry.truth === truth) && (horizons === undefined || horizons.includes(entry.horizons)));
   // Not awaited at the top level: with --threads 1 the pool imports this very module, which must have finished evaluating.
