@@ -178,8 +178,9 @@ export interface NestedCalibrationCase {
  * rows (optimum shift at 25, moving optimum at 50) with half the lineages.
  * Every test uses 39 bootstrap replicates: p = (1 + #{T* >= T}) / 40 <= 0.05
  * exactly when at most one replicate reaches T, and a Monte Carlo test
- * keeps its level for any R with 0.05 (R + 1) whole (Davison & Hinkley
- * 1997, section 4.2.5), so R = 39 measures the size the command's default
+ * keeps its level for any R with 0.05 (R + 1) whole when replicates come
+ * from the true null (Davison & Hinkley 1997, Bootstrap Methods and their
+ * Application, ch. 4), so R = 39 should show the size the command's default
  * R = 200 has, at a fifth of the cost; power at R = 39 is a little below
  * power at R = 200.
  */
