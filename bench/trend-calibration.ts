@@ -219,12 +219,21 @@ export async function measureTrendCost(print: (line: string) => void = (line) =>
   return rows;
 }
 
-// Run alone: node dist/bench/trend-calibration.js [lineages] [sizes...] [--scenarios a,b] [--bootstrap-lrt], or --cost
+// Run alone: node dist/bench/trend-calibration.js [lineages] [sizes...] [--scenarios a,b] [--bootstrap-lrt] [--threads k], or --cost
 if (isMainThread && process.argv[1] && import.meta.url.endsWith(process.argv[1].replace(/\\/g, '/'))) {
   const args = process.argv.slice(2);
   const scenarioAt = args.indexOf('--scenarios');
   const scenarios = scenarioAt >= 0 ? (args.splice(scenarioAt, 2)[1].split(',') as TrendScenario[]) : undefined;
+  const threadsAt = args.indexOf('--threads');
+  const threads = threadsAt >= 0 ? Number(args.splice(threadsAt, 2)[1]) : undefined;
   const [count, ...sizes] = args.filter((arg) => !arg.startsWith('--')).map(Number);
-  if (args.includes('--cost')) await measureTrendCost();
-  else await runTrendCalibration({ lineages: count || undefined, sizes: sizes.length > 0 ? sizes : undefined, scenarios, bootstrapLrt: args.includes('--bootstrap-lrt') });
+  // Not awaited at the top level: with --threads 1 the pool imports this very module in the main thread, and that
+  // import would wait for this module's own evaluation to finish (Node then exits with code 13, nothing printed).
+  const run = args.includes('--cost')
+    ? measureTrendCost()
+    : runTrendCalibration({ lineages: count || undefined, sizes: sizes.length > 0 ? sizes : undefined, scenarios, bootstrapLrt: args.includes('--bootstrap-lrt'), threads });
+  run.catch((error: unknown) => {
+    console.error(error);
+    process.exitCode = 1;
+  });
 }
