@@ -129,7 +129,7 @@ export async function runBootstrap(
  *
  * @example
  * measuredNotes({ full: 'accelerating-walk', not_tested: null }, 15); // { size_note: null, chi_square_measured: null }
- * measuredNotes({ full: 'moving-optimum', not_tested: null }, 15).size_note?.includes('12.5% at 15 horizons'); // true
+ * measuredNotes({ full: 'moving-optimum', not_tested: null }, 15).size_note?.includes('12.5% of lineages of 15 horizons'); // true
  */
 export function measuredNotes(test: { readonly full: string; readonly not_tested: string | null }, horizons: number): { size_note: string | null; chi_square_measured: string | null } {
   if (test.not_tested !== null) return { size_note: null, chi_square_measured: null };

@@ -38,7 +38,14 @@ export function jointCoverageNote(modelId: string, atBoundary: boolean): string 
     : `${base}: read them as narrower than 95%`;
 }
 
-/** Whether a joint model's flags say its step covariance is at the boundary (the flag of src/joint/fit-joint.ts). */
+/**
+ * Whether a joint model's flags say its step covariance is at the boundary
+ * of positive semi-definite matrices (the flag src/joint/fit-joint.ts writes).
+ *
+ * @example
+ * stepCovarianceAtBoundary(['step_covariance: at the boundary of positive semi-definite matrices (Cholesky diagonal 2 at 0): a combination of the traits does not change beyond what earlier traits explain']); // true
+ * stepCovarianceAtBoundary(['stasis_covariance: at the boundary of positive semi-definite matrices (Cholesky diagonal 2 at 0): …', 'step_covariance[1][1] at the bound 0']); // false
+ */
 export function stepCovarianceAtBoundary(flags: readonly string[]): boolean {
   return flags.some((flag) => flag.startsWith('step_covariance: at the boundary'));
 }
