@@ -13,6 +13,7 @@ import { seedOption, wholeOption } from './option-values.js';
 import { readingProgress } from '../io/progress.js';
 import type { StageProgress } from '../io/progress.js';
 import { toolVersion } from '../io/version.js';
+import { nestedChiSquareNote, nestedSizeNote } from '../render/measured-cautions.js';
 
 /** Options of `stratotrend bootstrap`. */
 export interface BootstrapCommandOptions extends SampleFileOptions, AgeModelOptions {
@@ -54,8 +55,10 @@ export function nestingModels(text: string | undefined): EvolutionModel[] {
 
 /** What {@link runBootstrap} computed: each lineage's tests and the JSON document. */
 export interface BootstrapRun {
-  readonly results: readonly { readonly name: string; readonly report: BootstrapTestReport }[];
+  readonly results: readonly { readonly name: string; readonly report: BootstrapTestReport; readonly horizons: number }[];
   readonly document: Record<string, unknown>;
+  /** Where a seeded simulation measured a `--models` test rejecting a true null too often (category `test-size`), folded. */
+  readonly cautions: readonly Warning[];
 }
 
 /**
@@ -86,21 +89,49 @@ export async function runBootstrap(
   const seed = seedOption(options.seed);
   const threads = options.threads === undefined ? undefined : wholeOption(options.threads, '--threads', 1, 1, 256);
   const runner = poolRunner({ threads });
-  const results: { name: string; report: BootstrapTestReport }[] = [];
+  const results: { name: string; report: BootstrapTestReport; horizons: number }[] = [];
   for (const lineage of lineages) {
     // The newer models join the classic fit; each model's logL and AICc do not depend on the set, so the default tests are unchanged.
     const fit = fitLineage(lineage, nesting.length > 0 ? [...classicModels, ...nesting] : classicModels, { intervals: false, minimumSegment });
     const progress = hooks.progress;
     const stage = progress ? (label: string, total: number) => progress.stage(`${lineageName(lineage)}: ${label}`.slice(0, 40), total) : undefined;
-    results.push({ name: lineageName(lineage), report: await bootstrapTests(fit, replicates, seed, runner, stage, { nesting: nesting.map((model) => model.id), minimumSegment }) });
+    results.push({ name: lineageName(lineage), horizons: lineage.time.length, report: await bootstrapTests(fit, replicates, seed, runner, stage, { nesting: nesting.map((model) => model.id), minimumSegment }) });
   }
   const document = {
     tool: 'stratotrend',
     version: toolVersion(),
     command: 'bootstrap',
     input: { file: input.name, sha256: input.sha256 },
-    lineages: results.map(({ name, report }) => ({ lineage: name, ...report })),
+    lineages: results.map(({ name, report, horizons }) => ({
+      lineage: name,
+      ...report,
+      // The measured notes sit beside the p-values they qualify (nested_models keeps its place).
+      ...(report.nested_models ? { nested_models: report.nested_models.map((test) => ({ ...test, ...measuredNotes(test, horizons) })) } : {}),
+    })),
     caution,
   };
-  return { results, document };
+  for (const { report, horizons } of results) {
+    for (const test of report.nested_models ?? []) {
+      const notes = measuredNotes(test, horizons);
+      if (notes.size_note !== null) warnings.add('test-size', notes.size_note);
+      if (notes.chi_square_measured !== null) warnings.add('test-size', `optimum-shift vs ou, chi-square(1) p ${notes.chi_square_measured}`);
+    }
+  }
+  return { results, document, cautions: warnings.list().filter((warning) => warning.category === 'test-size') };
+}
+
+/**
+ * The measured notes of one `--models` test on a lineage of `horizons`
+ * horizons: `size_note` beside the bootstrap p (moving-optimum and
+ * optimum-shift below 50 horizons) and `chi_square_measured` beside the
+ * chi-square(1) p (optimum-shift); null where nothing was measured amiss or
+ * the test did not run.
+ *
+ * @example
+ * measuredNotes({ full: 'accelerating-walk', not_tested: null }, 15); // { size_note: null, chi_square_measured: null }
+ * measuredNotes({ full: 'moving-optimum', not_tested: null }, 15).size_note?.includes('12.5% of lineages of 15 horizons'); // true
+ */
+export function measuredNotes(test: { readonly full: string; readonly not_tested: string | null }, horizons: number): { size_note: string | null; chi_square_measured: string | null } {
+  if (test.not_tested !== null) return { size_note: null, chi_square_measured: null };
+  return { size_note: nestedSizeNote(test.full, horizons), chi_square_measured: nestedChiSquareNote(test.full) };
 }

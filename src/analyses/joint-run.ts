@@ -10,6 +10,7 @@ import { jointDocument, type JointGroupFit } from '../render/joint-output.js';
 import type { AgeModelOptions } from './age-model-options.js';
 import { delimiterOption, lineagesOf, readInput, type SampleFileOptions } from './input.js';
 import { toolVersion } from '../io/version.js';
+import { jointCoverageNote, stepCovarianceAtBoundary } from '../render/measured-cautions.js';
 
 /** Options of `stratotrend joint`. */
 export interface JointOptions extends SampleFileOptions, AgeModelOptions {
@@ -129,6 +130,13 @@ async function fitGroup(group: JointGroup, models: readonly JointModel[], warnin
   for (const model of ranked) {
     for (const flag of model.flags) warnings.add('at-bound', `${name}, ${model.id}: ${flag}`);
     if (model.notCompared) warnings.add('not-compared', `${name}, ${model.id}: ${model.notCompared}`);
+  }
+  // Measured shortfall of the printed intervals: one folded line per model and run, and one per group where the fit is at the boundary.
+  for (const model of ranked) {
+    if (!model.intervals) continue;
+    const atBoundary = stepCovarianceAtBoundary(model.flags);
+    const note = jointCoverageNote(model.id, atBoundary);
+    if (note !== null) warnings.add('interval-coverage', atBoundary ? `${name}, ${note}` : note);
   }
   return { group, models: ranked, best };
 }

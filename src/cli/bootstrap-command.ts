@@ -2,12 +2,13 @@ import { caution, runBootstrap, type BootstrapCommandOptions } from '../analyses
 import { stageProgress } from '../io/progress.js';
 import { formatNumber } from '../render/units.js';
 import type { BootstrapTestReport, NestingTest } from '../simulate/bootstrap-test.js';
+import { nestedChiSquareNote, nestedSizeNote } from '../render/measured-cautions.js';
 
 // `stratotrend bootstrap`: the tests are run by runBootstrap
 // (src/analyses/bootstrap-run.ts); this file prints them as text or JSON.
 
-/** One lineage's tests as text. */
-export function bootstrapTable(name: string, report: BootstrapTestReport): string {
+/** One lineage's tests as text; `horizons` (the lineage's) adds the measured size notes of the `--models` tests. */
+export function bootstrapTable(name: string, report: BootstrapTestReport, horizons?: number): string {
   const lines = [`Bootstrap tests: "${name}" (${report.replicates} replicates per null model, seed ${report.seed})`];
   const nested = report.nested;
   if (nested) {
@@ -23,18 +24,22 @@ export function bootstrapTable(name: string, report: BootstrapTestReport): strin
     lines.push(`    under fitted stasis: ${q(other.under_stasis)}; P(at least the observed) = ${formatNumber(other.p_under_stasis)}`);
     lines.push(`    under the fitted random walk: ${q(other.under_random_walk)}; P(at most the observed) = ${formatNumber(other.p_under_random_walk)}`);
   } else lines.push('  random walk vs stasis: not tested (a model was not fitted or not compared)');
-  for (const test of report.nested_models ?? []) lines.push(...nestingLines(test));
+  for (const test of report.nested_models ?? []) lines.push(...nestingLines(test, horizons));
   return lines.join('\n');
 }
 
 /** The text of one `--models` test: a newer model against the classic model it nests. */
-function nestingLines(test: NestingTest): string[] {
+function nestingLines(test: NestingTest, horizons: number | undefined): string[] {
   const heading = `  ${test.full} vs ${test.reduced} (nested, ${test.condition} under the null)`;
   if (test.not_tested !== null) return [`${heading}: not tested (${test.not_tested})`];
   const lines = [`${heading}:`];
-  lines.push(`    likelihood ratio 2 ΔlogL = ${formatNumber(test.statistic)}; bootstrap p = ${formatNumber(test.p_bootstrap)}; chi-square(1) p = ${formatNumber(test.p_chi_square)}${test.chi_square_exact ? '' : ' (for reference only)'}`);
+  const measured = nestedChiSquareNote(test.full);
+  lines.push(`    likelihood ratio 2 ΔlogL = ${formatNumber(test.statistic)}; bootstrap p = ${formatNumber(test.p_bootstrap)}; chi-square(1) p = ${formatNumber(test.p_chi_square)}${measured !== null ? ' (not valid)' : test.chi_square_exact ? '' : ' (for reference only)'}`);
   lines.push(`    bootstrap 95% critical value ${formatNumber(test.critical_value)} (chi-square(1): 3.841)`);
-  if (test.chi_square_note !== null) lines.push(`    chi-square(1) reference ${test.chi_square_note}`);
+  const size = horizons === undefined ? null : nestedSizeNote(test.full, horizons);
+  if (size !== null) lines.push(`    caution: ${size}`);
+  if (measured !== null) lines.push(`    chi-square(1) reference ${measured}`);
+  else if (test.chi_square_note !== null) lines.push(`    chi-square(1) reference ${test.chi_square_note}`);
   if (test.generator !== test.reduced) lines.push(`    replicates drawn from ${test.generator}: the fitted ${test.reduced} sits at a limit where it equals that model`);
   return lines;
 }
@@ -54,6 +59,8 @@ export async function bootstrapCommand(file: string, options: BootstrapCommandOp
   if (options.json) {
     process.stdout.write(JSON.stringify(run.document, null, 2) + '\n');
   } else if (!options.quiet) {
-    process.stdout.write(run.results.map(({ name, report }) => bootstrapTable(name, report)).join('\n\n') + '\n\n' + caution + '\n');
+    process.stdout.write(run.results.map(({ name, report, horizons }) => bootstrapTable(name, report, horizons)).join('\n\n') + '\n\n' + caution + '\n');
   }
+  // Where a simulation measured a test rejecting a true null too often: said once per run, after the tables.
+  for (const warning of run.cautions) process.stderr.write(`warning (${warning.category}): ${warning.message}${warning.count > 1 ? ` (${warning.count} lineages)` : ''}\n`);
 }

@@ -17,6 +17,10 @@ export type WarningCategory =
   | 'long-run'
   /** AICc's first place (directional walk, or ou with a long half-life or open optimum) is not backed by the trend test. */
   | 'trend-check'
+  /** A seeded simulation measured these intervals covering less than their nominal level (joint correlated walks). */
+  | 'interval-coverage'
+  /** A seeded simulation measured this test rejecting a true null more often than its nominal level (bootstrap --models). */
+  | 'test-size'
   | 'input';
 
 /** A folded warning: what, about which lineage, and how often it was raised. */

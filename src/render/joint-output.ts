@@ -5,6 +5,7 @@ import type { JointGroup } from '../joint/joint-groups.js';
 import { finiteOrNull, rankingDocument, type Provenance } from './fit-document.js';
 import { csvField } from './models-csv.js';
 import { formatFixed } from './units.js';
+import { jointCoverageNote, stepCovarianceAtBoundary } from './measured-cautions.js';
 
 /** One group's fits, as `stratotrend joint` computed them. */
 export interface JointGroupFit {
@@ -34,7 +35,7 @@ function paramsDocument(parameters: JointParameters | null): Record<string, unkn
 const end = (value: number | null): number | null => finiteOrNull(value);
 const pairOf = (interval: JointInterval | null): [number | null, number | null] | null => (interval ? [end(interval.lower), end(interval.upper)] : null);
 
-function intervalsDocument(intervals: JointIntervals | null): Record<string, unknown> | null {
+function intervalsDocument(intervals: JointIntervals | null, coverageNote: string | null): Record<string, unknown> | null {
   if (!intervals) return null;
   const list = (values: readonly JointInterval[] | null) => (values ? values.map(pairOf) : null);
   const grid = (rows: readonly (readonly (JointInterval | null)[])[] | null) => (rows ? rows.map((row) => row.map(pairOf)) : null);
@@ -49,6 +50,7 @@ function intervalsDocument(intervals: JointIntervals | null): Record<string, unk
     stasis_covariance: grid(intervals.stasis_covariance),
     optimum: list(intervals.optimum),
     alpha: list(intervals.alpha),
+    coverage_note: coverageNote,
   };
 }
 
@@ -120,7 +122,7 @@ export function jointDocument(fits: readonly JointGroupFit[], provenance: Proven
         compared: model.aicc !== null,
         not_compared: model.notCompared,
         params: paramsDocument(model.parameters),
-        intervals: intervalsDocument(model.intervals),
+        intervals: intervalsDocument(model.intervals, jointCoverageNote(model.id, stepCovarianceAtBoundary(model.flags))),
         flags: model.flags,
       })),
     })),

@@ -17,7 +17,7 @@ interface JointDocumentView {
       readonly delta_aicc?: number | null;
       readonly weight?: number | null;
       readonly params?: { readonly step_correlation?: readonly (readonly (number | null)[])[] | null } | null;
-      readonly intervals?: { readonly step_correlation?: readonly (readonly ([number | null, number | null] | null)[])[] | null } | null;
+      readonly intervals?: { readonly step_correlation?: readonly (readonly ([number | null, number | null] | null)[])[] | null; readonly coverage_note?: string | null } | null;
       readonly flags?: readonly string[];
     }[];
   }[];
@@ -63,6 +63,7 @@ export function jointBlock(document: unknown, figures: (group: number) => string
 <table class="support"><thead><tr><th>model</th><th>K</th><th>logL</th><th>AICc</th><th>ΔAICc</th><th>weight</th></tr></thead><tbody>${rows}</tbody></table>
 <p>${best ? `Best supported: <code>${escapeHtml(best.id)}</code>. ${words.map(escapeHtml).join(' ')}` : 'No model could be compared.'}</p>
 ${(best?.flags ?? []).map((flag) => `<p class="note">${escapeHtml(flag)}</p>`).join('\n')}
+${best?.intervals?.coverage_note ? `<p class="note" data-note="interval-coverage">Measured coverage: ${escapeHtml(best.intervals.coverage_note)}.</p>` : ''}
 ${figures(index)}`;
   }).join('\n');
 }
