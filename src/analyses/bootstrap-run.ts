@@ -122,8 +122,8 @@ export async function runBootstrap(
 
 /**
  * The measured notes of one `--models` test on a lineage of `horizons`
- * horizons: `size_note` beside the bootstrap p (moving-optimum and
- * optimum-shift below 50 horizons) and `chi_square_measured` beside the
+ * horizons: `size_note` beside the bootstrap p (moving-optimum under 50
+ * horizons, optimum-shift on any length) and `chi_square_measured` beside the
  * chi-square(1) p (optimum-shift); null where nothing was measured amiss or
  * the test did not run.
  *
