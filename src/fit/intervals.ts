@@ -39,7 +39,13 @@ export const intervalMethodLabels: Record<IntervalMethod, string> = {
   integrated: 'integrated likelihood (flat priors on locations, uniform on the standard deviation)',
 };
 
-/** Parse a method name, or return null. */
+/**
+ * Parse a method name, or return null.
+ *
+ * @example
+ * parseIntervalMethod('profile'); // 'profile'
+ * parseIntervalMethod('wald'); // null
+ */
 export function parseIntervalMethod(text: string): IntervalMethod | null {
   return (intervalMethods as readonly string[]).includes(text) ? (text as IntervalMethod) : null;
 }
@@ -419,7 +425,14 @@ export function intervalsByProfile(
   return result;
 }
 
-/** Does an interval contain a value? An open end (null) contains everything beyond it. */
+/**
+ * Does an interval contain a value? An open end (null) contains everything beyond it.
+ *
+ * @example
+ * covers({ lower: 1, upper: 2 }, 1.5); // true
+ * covers({ lower: 1, upper: null }, 100); // true (open upper end)
+ * covers({ lower: 1, upper: 2 }, 3); // false
+ */
 export function covers(ends: IntervalEnds, value: number): boolean {
   return (ends.lower === null || value >= ends.lower) && (ends.upper === null || value <= ends.upper);
 }

@@ -293,6 +293,9 @@ export const gridPeaksRefined = 6;
  * local maxima (a value at least its left neighbour's and above its right
  * neighbour's; an end counts against its one neighbour), highest first, at
  * most {@link gridPeaksRefined} of them.
+ *
+ * @example
+ * gridPeaks([0, 3, 1, 2, 1, 5, 4], 5); // [5, 1, 3] (the best, then the other local maxima, highest first)
  */
 export function gridPeaks(values: readonly number[], bestIndex: number): number[] {
   const peaks: number[] = [];

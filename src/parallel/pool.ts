@@ -72,8 +72,13 @@ type Task = unknown;
  * the task index; the other workers are stopped.
  *
  * @example
- * const squares = await runTasks<number, number>(new URL('./square.js', import.meta.url), 'square', [1, 2, 3], { threads: 2 });
- * // squares = [1, 4, 9]
+ * // One thread runs inline (no worker started); a worker needs the compiled module in dist/.
+ * const lineage = lineageFromArrays({ time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * const task = { lineage, models: ['strict-stasis'], options: { intervals: false } };
+ * const fits = await runTasks('dist/src/parallel/fit-lineages.js', 'fitLineageTask', [task, task], { threads: 1 });
+ * fits.map((fit) => fit.models[0].logLik); // [-2.8378770664093453, -2.8378770664093453] (-ln 2 pi - 1 each, closed form)
+ * await runTasks('dist/src/parallel/fit-lineages.js', 'noSuchTask', [1], { threads: 1 });
+ * // throws: does not export a function named "noSuchTask"
  */
 export async function runTasks<T = Task, R = unknown>(
   module: string | URL,

@@ -33,8 +33,11 @@ export function simulateMeans(
  * draw many data sets from one model at one set of parameters.
  *
  * @example
+ * const design = lineageFromArrays({ time: [0, 1, 2], mean: [0, 0, 0], samplingVariance: [0.01, 0.01, 0.01] });
  * const draw = meansSimulator(randomWalk, design, { ancestral_mean: 5, step_variance: 0.1 });
- * draw(createRandom(1)); // the same numbers as simulateMeans(randomWalk, design, { ... }, createRandom(1))
+ * const once = simulateMeans(randomWalk, design, { ancestral_mean: 5, step_variance: 0.1 }, createRandom(1));
+ * Array.from(draw(createRandom(1))).join() === Array.from(once).join(); // true (the same draws in the same order)
+ * draw(createRandom(1)).length; // 3
  */
 export function meansSimulator(model: EvolutionModel, design: Lineage, parameters: Record<string, number>): (random: RandomSource) => Float64Array {
   const size = design.time.length;
