@@ -23,7 +23,13 @@ export interface PoolOptions {
   onProgress?: (done: number, total: number) => void;
 }
 
-/** A task that threw: carries the task's index and the original error's name, message and stack. */
+/**
+ * A task that threw: carries the task's index and the original error's name, message and stack.
+ *
+ * @example
+ * const error = new TaskError(3, 'RangeError', 'bad value', undefined);
+ * [error.name, error.taskIndex, error.originalName, error.message]; // ['TaskError', 3, 'RangeError', 'bad value']
+ */
 export class TaskError extends Error {
   readonly taskIndex: number;
   readonly originalName: string;
@@ -40,6 +46,9 @@ export class TaskError extends Error {
  * Where a module can be loaded from by a worker thread. A `.ts` file under
  * the project (as when running under vitest) maps to its compiled twin in
  * `dist/` (`npm run build`); anything else is used as given.
+ *
+ * @example
+ * compiledModule('/somewhere/task.js'); // 'file:///somewhere/task.js' (not a .ts file: used as given)
  */
 export function compiledModule(module: string | URL): string {
   const url = module instanceof URL ? module : module.startsWith('file:') ? new URL(module) : pathToFileURL(module);
