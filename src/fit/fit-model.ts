@@ -330,6 +330,15 @@ type IntervalEnds = Pick<ParameterEstimate, 'lower' | 'upper' | 'lowerAtBound' |
  * scale), maximise over the other process parameters, and find where the
  * profile crosses the cut-off. The bound 0 (or the lower limit) counts as
  * reached when the profile there is still above the cut-off.
+ *
+ * @example
+ * // Nearly exact means with increments 1, 2, 1: the walk's profile is c - 1.5 ln q - 3/q (closed form, maximum at q = 2);
+ * // the 95% ends are where it falls chi2(1; 0.95)/2 = 1.920729410347062 below the maximum.
+ * const lineage = lineageFromArrays({ time: [0, 1, 2, 3], mean: [0, 1, 3, 4], samplingVariance: [1e-12, 1e-12, 1e-12, 1e-12] });
+ * const evaluator = new LikelihoodEvaluator(randomWalk, lineage);
+ * const ends = processInterval((process) => evaluator.profile(process), randomWalk, lineage, [2], 0, evaluator.profile([2]) - 1.920729410347062);
+ * -1.5 * Math.log(ends.lower) - 3 / ends.lower + 1.5 * Math.log(2) + 1.5; // -1.920729410347062 (to 1e-8)
+ * -1.5 * Math.log(ends.upper) - 3 / ends.upper + 1.5 * Math.log(2) + 1.5; // -1.920729410347062 (to 1e-8)
  */
 export function processInterval(
   evaluate: (process: number[]) => number,

@@ -75,6 +75,12 @@ export interface IntegratedOptions {
  * only error contrasts. Biometrika 61:383-385.
  *
  * @returns interval ends per parameter name, or null when the model has more than one process parameter
+ *
+ * @example
+ * // Strict stasis has no variance to integrate over: the mean's interval is the normal one, 2 ± 1.959964 × sqrt(1/2) (closed form).
+ * const lineage = lineageFromArrays({ time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * integratedIntervals(new LikelihoodEvaluator(strictStasis, lineage), ['stasis_mean']).stasis_mean.upper; // 3.3859038243496773 (to 1e-6)
+ * integratedIntervals(new LikelihoodEvaluator(ornsteinUhlenbeck, lineage), ['optimum']); // null (two process parameters)
  */
 export function integratedIntervals(
   evaluator: LikelihoodEvaluator,

@@ -110,6 +110,14 @@ const screenMargin = 0.05;
  * changes the maximum found only within Brent's tolerance.
  *
  * @param evaluate log-likelihood at given process values (location parameters profiled)
+ *
+ * @example
+ * // The walk's profile on increments 1, 2, 1 has its maximum at q = 2 (closed form, see LikelihoodEvaluator).
+ * const lineage = lineageFromArrays({ time: [0, 1, 2, 3], mean: [0, 1, 3, 4], samplingVariance: [1e-12, 1e-12, 1e-12, 1e-12] });
+ * const evaluator = new LikelihoodEvaluator(randomWalk, lineage);
+ * const best = maximiseProcess((process) => evaluator.profile(process), randomWalk.process, lineage);
+ * best.process[0]; // 2 (to 1e-7)
+ * best.positions; // ['interior']
  */
 export function maximiseProcess(
   evaluate: (process: number[]) => number,

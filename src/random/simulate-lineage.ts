@@ -15,6 +15,12 @@ import type { RandomSource } from './random.js';
  * @param parameters natural parameters of the model (names as in MODELS.md)
  * @param random seeded source; draws are consumed in horizon order
  * @returns simulated horizon means x_i
+ *
+ * @example
+ * // Step variance 0 and tiny sampling variances: the means stay at the ancestral mean (to the sampling sd, 1e-6).
+ * const design = lineageFromArrays({ time: [0, 1, 2], mean: [0, 0, 0], samplingVariance: [1e-12, 1e-12, 1e-12] });
+ * const means = simulateMeans(randomWalk, design, { ancestral_mean: 5, step_variance: 0 }, createRandom(1));
+ * Math.max(...means.map((mean) => Math.abs(mean - 5))) < 1e-5; // true
  */
 export function simulateMeans(
   model: EvolutionModel,
@@ -59,7 +65,14 @@ export function meansSimulator(model: EvolutionModel, design: Lineage, parameter
   };
 }
 
-/** A copy of a design lineage with new horizon means (e.g. simulated ones). */
+/**
+ * A copy of a design lineage with new horizon means (e.g. simulated ones).
+ *
+ * @example
+ * const design = lineageFromArrays({ time: [0, 1, 2], mean: [0, 0, 0], samplingVariance: [0.1, 0.1, 0.1] });
+ * Array.from(withMeans(design, Float64Array.of(1, 2, 3)).mean); // [1, 2, 3]
+ * Array.from(design.mean); // [0, 0, 0] (the design is not changed)
+ */
 export function withMeans(design: Lineage, means: Float64Array): Lineage {
   return { ...design, mean: means };
 }
