@@ -92,7 +92,7 @@ export function runFit(file: string, options: FitCommandOptions): FitRun {
  * files of millions of rows, progress bar on a terminal); same result.
  *
  * @example
- * (await runFitStreamed('sample-data/shell-length.csv', { quiet: true })).selection.name; // 'classic'
+ * (await runFitStreamed('sample-data/shell-length.csv', { quiet: true, intervals: false, trendTest: false })).selection.name; // 'classic'
  */
 export async function runFitStreamed(file: string, options: FitCommandOptions, progress: FitRunProgress = {}): Promise<FitRun> {
   const warnings = new WarningLog();

@@ -82,11 +82,9 @@ type Task = unknown;
  *
  * @example
  * // One thread runs inline (no worker started); a worker needs the compiled module in dist/.
- * const lineage = lineageFromArrays({ time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
- * const task = { lineage, models: ['strict-stasis'], options: { intervals: false } };
- * const fits = await runTasks('dist/src/parallel/fit-lineages.js', 'fitLineageTask', [task, task], { threads: 1 });
- * fits.map((fit) => fit.models[0].logLik); // [-2.8378770664093453, -2.8378770664093453] (-ln 2 pi - 1 each, closed form)
- * await runTasks('dist/src/parallel/fit-lineages.js', 'noSuchTask', [1], { threads: 1 });
+ * const designs = [{ time: [0, 1], count: [5, 3], withinVariance: [0.5, 1], timeUnit: 'Myr' }, { time: [0, 1], count: [1, 1], withinVariance: [4, 4], timeUnit: 'Myr' }];
+ * await runTasks('dist/src/simulate/design.js', 'pooledWithinSd', designs, { threads: 1 }); // [0.816496580927726, 2] (sqrt((4 × 0.5 + 2 × 1) / 6); no degrees of freedom: sqrt of the mean variance)
+ * await runTasks('dist/src/simulate/design.js', 'noSuchTask', [1], { threads: 1 });
  * // throws: does not export a function named "noSuchTask"
  */
 export async function runTasks<T = Task, R = unknown>(
