@@ -46,6 +46,11 @@ export interface FigureRequest {
  * Check the figure options of a command line.
  *
  * @throws InputError (usage) naming the option and the bad value
+ *
+ * @example
+ * figureRequest({ figureFormat: 'svg,png', dpi: '300' }).formats; // ['svg', 'png']
+ * figureRequest({ dpi: 'high' });
+ * // throws: --dpi: expected a number of dots per inch, got "high"
  */
 export function figureRequest(options: FigureCommandOptions): FigureRequest {
   const formats = (options.figureFormat ?? 'png').split(',').map((format) => format.trim().toLowerCase()).filter((format) => format !== '');
@@ -120,6 +125,14 @@ export interface FigurePlanForFolder {
  * Plan the figure files of a fit document's lineages: always pass all of
  * them (names are worked out over the whole document, `figureJobs`) and
  * narrow with `selected`.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 3, 2], samplingVariance: [1, 1, 1] });
+ * const provenance = { tool: 'stratotrend', version: '0.1.0', inputs: [{ file: 'a.csv', sha256: '0' }], options: {} };
+ * const document = fitDocument([fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })], provenance, [], 'classic');
+ * planFigureFiles(document.lineages, { figureFormat: 'svg' }).names; // ['a_length.trajectory.svg', 'a_length.model-support.svg']
+ * planFigureFiles(document.lineages, { drawModel: 'ou' });
+ * // throws: --draw-model: no lineage was fitted with "ou"
  */
 export function planFigureFiles(
   lineages: readonly FigureLineageDocument[],
@@ -144,6 +157,10 @@ export function planFigureFiles(
  * (what drawing took per figure in a 20,000-lineage trial, 8–9 hours in all),
  * scaled by its pixel count over that; SVG and PDF about 0.25 s. Our own
  * measurements; other machines differ.
+ *
+ * @example
+ * secondsPerFigure(figureRequest({ figureFormat: 'svg' })); // 0.25
+ * secondsPerFigure(figureRequest({})); // 0.75 (a PNG at 9 cm and 600 dpi)
  */
 export function secondsPerFigure(request: FigureRequest): number {
   const { widthCm, dpi } = resolveFigureOptions(request.options);
@@ -158,6 +175,12 @@ export const longDrawingSeconds = 120;
  * long, and how to draw fewer (null when the drawing is short).
  *
  * @param advice - what to suggest ("--no-figures" and "redraw --lineage" for fit; "--lineage" / "--only" for redraw)
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 3, 2], samplingVariance: [1, 1, 1] });
+ * const provenance = { tool: 'stratotrend', version: '0.1.0', inputs: [{ file: 'a.csv', sha256: '0' }], options: {} };
+ * const document = fitDocument([fitLineage(lineage, [strictStasis], { intervals: false })], provenance, [], 'classic');
+ * figureTimeWarning(planFigureFiles(document.lineages, {}), 'use --no-figures'); // null (two figures, about 1.5 s)
  */
 export function figureTimeWarning(plan: FigurePlanForFolder, advice: string): string | null {
   const seconds = plan.jobs.length * secondsPerFigure(plan.request);
@@ -173,7 +196,14 @@ export function figureTimeWarning(plan: FigurePlanForFolder, advice: string): st
  * @returns the file names written, in drawing order
  *
  * @example
- * writeFigureFiles(document.lineages, plan, set, { quiet: false }); // ['A_length.trajectory.png', 'A_length.model-support.png', …]
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 3, 2], samplingVariance: [1, 1, 1] });
+ * const provenance = { tool: 'stratotrend', version: '0.1.0', inputs: [{ file: 'a.csv', sha256: '0' }], options: {} };
+ * const document = fitDocument([fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })], provenance, [], 'classic');
+ * const added = [];
+ * // A stand-in for an OutputSet, which would write the files when committed.
+ * const set = { add: (name, bytes) => added.push(name) };
+ * writeFigureFiles(document.lineages, planFigureFiles(document.lineages, { figureFormat: 'svg' }, ['model-support']), set, { quiet: true }); // ['a_length.model-support.svg']
+ * added; // ['a_length.model-support.svg']
  */
 export function writeFigureFiles(lineages: readonly FigureLineageDocument[], plan: FigurePlanForFolder, set: OutputSet, options: { quiet?: boolean } = {}): string[] {
   const written: string[] = [];
@@ -206,6 +236,14 @@ export function writeFigureFiles(lineages: readonly FigureLineageDocument[], pla
  * model's estimates and the document's horizon data (`smoothUnderEstimates`),
  * or null when that cannot be done (the model was not fitted, or needs a
  * covariate the document does not carry); the figure then says why no band is drawn.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 3, 2], samplingVariance: [1, 1, 1] });
+ * const provenance = { tool: 'stratotrend', version: '0.1.0', inputs: [{ file: 'a.csv', sha256: '0' }], options: {} };
+ * const document = fitDocument([fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })], provenance, [], 'classic');
+ * document.lineages[0].smoothed.model; // 'strict-stasis' (the best model's)
+ * withSmootherOf(document.lineages[0], 'random-walk').smoothed.model; // 'random-walk'
+ * withSmootherOf(document.lineages[0], 'ou').smoothed; // null (not fitted)
  */
 export function withSmootherOf(document: FigureLineageDocument, modelId: string): FigureLineageDocument {
   if (document.smoothed?.model === modelId) return document;

@@ -40,7 +40,14 @@ function wholeNumber(option: string, raw: string | undefined, fallback: number, 
   return value;
 }
 
-/** Validate the extension options (usage errors name the option and value). */
+/**
+ * Validate the extension options (usage errors name the option and value).
+ *
+ * @example
+ * extensionSettings({ generationTime: '2' }); // { minimumSegment: undefined, generationTime: 2, rates: true, adequacy: false, adequacyDraws: 199, adequacySeed: 1 }
+ * extensionSettings({ adequacyDraws: '5' });
+ * // throws: --adequacy-draws: must be a whole number >= 19, got "5"
+ */
 export function extensionSettings(options: ExtensionOptions): ExtensionSettings {
   let generationTime: number | null = null;
   if (options.generationTime !== undefined) {
@@ -66,6 +73,17 @@ export function extensionSettings(options: ExtensionOptions): ExtensionSettings 
  * `covariate` column of the samples.
  *
  * @throws InputError naming the covariate file (bad cells) or the samples line of a horizon without a value.
+ *
+ * @example
+ * // mkdtempSync, writeFileSync, rmSync from node:fs, tmpdir from node:os (a scratch folder)
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 3, 2], samplingVariance: [1, 1, 1] });
+ * const folder = mkdtempSync(`${tmpdir()}/stratotrend-example-`);
+ * writeFileSync(`${folder}/covariate.csv`, 'time,covariate\n0,5\n1,6\n2,7\n');
+ * Array.from(attachCovariates([lineage], `${folder}/covariate.csv`)[0].covariate); // [5, 6, 7]
+ * writeFileSync(`${folder}/covariate.csv`, 'time,covariate\n0,5\n1,6\n');
+ * attachCovariates([lineage], `${folder}/covariate.csv`);
+ * // throws: has no covariate for lineage "A / length" at time 2
+ * rmSync(folder, { recursive: true });
  */
 export function attachCovariates(lineages: readonly Lineage[], path: string): Lineage[] {
   const input = readInput(path);
@@ -110,6 +128,11 @@ export function attachCovariates(lineages: readonly Lineage[], path: string): Li
  * The models to fit to one lineage: a named set leaves out models the
  * lineage does not allow (e.g. covariate models without a covariate); an
  * explicit list keeps them (they show as not fitted, with the reason).
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 3, 2], samplingVariance: [1, 1, 1] });
+ * modelsForLineage(lineage, [randomWalk, covariateWalk], 'extended').leftOut; // ['covariate-walk'] (no covariate)
+ * modelsForLineage(lineage, [randomWalk, covariateWalk], 'custom').models.length; // 2 (an explicit list keeps it)
  */
 export function modelsForLineage(lineage: Lineage, models: readonly EvolutionModel[], setName: string): { models: EvolutionModel[]; leftOut: string[] } {
   if (setName === 'custom') return { models: [...models], leftOut: [] };
@@ -131,7 +154,14 @@ export interface LineageExtras {
   readonly leftOut: readonly string[];
 }
 
-/** Rates (from the lineage and its fitted models) and adequacy of the best model. */
+/**
+ * Rates (from the lineage and its fitted models) and adequacy of the best model.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 3, 2], samplingVariance: [1, 1, 1] });
+ * const fit = fitLineage(lineage, [strictStasis, randomWalk], { intervals: false });
+ * lineageExtras(fit, extensionSettings({}), ['covariate-walk']); // { rates: null, adequacy: null, leftOut: ['covariate-walk'] } (neither asked for)
+ */
 export function lineageExtras(fit: LineageFit, settings: ExtensionSettings, leftOut: readonly string[]): LineageExtras {
   const rates = settings.rates ? lineageRates(fit.lineage, fit.models.filter((model) => model.aicc !== null), settings.generationTime) : null;
   let adequacy: AdequacyResult | null = null;
@@ -147,7 +177,13 @@ export function lineageExtras(fit: LineageFit, settings: ExtensionSettings, left
   return { rates, adequacy, leftOut };
 }
 
-/** JSON of rates and adequacy for one lineage document (numbers finite or null). */
+/**
+ * JSON of rates and adequacy for one lineage document (numbers finite or null).
+ *
+ * @example
+ * extrasDocument({ rates: null, adequacy: null, leftOut: ['covariate-walk'] }); // { models_left_out: ['covariate-walk'] }
+ * extrasDocument({ rates: null, adequacy: null, leftOut: [] }); // {}
+ */
 export function extrasDocument(extras: LineageExtras): Record<string, unknown> {
   const document: Record<string, unknown> = {};
   if (extras.leftOut.length > 0) document.models_left_out = extras.leftOut;

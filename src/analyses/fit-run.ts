@@ -92,7 +92,7 @@ export function runFit(file: string, options: FitCommandOptions): FitRun {
  * files of millions of rows, progress bar on a terminal); same result.
  *
  * @example
- * (await runFitStreamed('sample-data/shell-length.csv', { quiet: true })).selection.name; // 'classic'
+ * (await runFitStreamed('sample-data/shell-length.csv', { quiet: true, intervals: false, trendTest: false })).selection.name; // 'classic'
  */
 export async function runFitStreamed(file: string, options: FitCommandOptions, progress: FitRunProgress = {}): Promise<FitRun> {
   const warnings = new WarningLog();
@@ -151,7 +151,10 @@ export async function runFitStreamed(file: string, options: FitCommandOptions, p
  * Fit read lineages and build the result document (no output).
  *
  * @example
- * fitLoaded(input, lineages, options, resolveModels('random-walk,ou'), new WarningLog()).fits[0].models.length; // 2
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 3, 2], samplingVariance: [1, 1, 1] });
+ * const run = fitLoaded({ name: 'a.csv', sha256: '0' }, [lineage], { intervals: false }, resolveModels('random-walk,strict-stasis'), new WarningLog());
+ * run.fits[0].models.map((model) => model.id); // ['random-walk', 'strict-stasis']
+ * run.document.model_set; // 'custom'
  */
 export function fitLoaded(input: Omit<InputText, 'text'>, lineages: readonly Lineage[], options: FitCommandOptions, selection: ModelSelection, warnings: WarningLog, given?: LineageFit[], trends?: readonly TrendTest[] | null): FitRun {
   const { lineageBlocks, provenance, ...run } = fitResults(input, lineages, options, selection, warnings, given, trends);

@@ -254,7 +254,7 @@ const caution =
  * The power report as a terminal table: one block per assumed step variance, each naming it.
  *
  * @example
- * const run = await runPower('sample-data/shell-length.csv', { replicates: '20', drifts: '0', stepVariance: '0.05', threads: '1', models: 'random-walk,directional-walk' });
+ * const run = await runPower('sample-data/shell-length.csv', { replicates: '20', drifts: '0', stepVariance: '0.05', threads: '1', models: 'random-walk,directional-walk', coverage: false });
  * const lines = powerTable(run).split('\n');
  * lines[0]; // 'Power to detect a directional trend: "Varnek Draw / shell length", 24 horizons over 4.3 Myr'
  * lines[2]; // '  Assumed step variance 0.05 (trait units)² per Myr (given):'

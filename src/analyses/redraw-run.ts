@@ -62,7 +62,15 @@ function namingFile<T>(file: string, work: () => T): T {
  *
  * @param onLongRun called with the `long-run` warning, before drawing, when the figures will take long
  * @example
- * redrawFigures('out/fit.json', { only: 'trajectory', quiet: true }).written; // ['varnek-draw_shell-length.trajectory.png', 'tolloway-bluff_shell-length.trajectory.png'] (two sections)
+ * // mkdtempSync, writeFileSync, rmSync from node:fs, tmpdir from node:os (a scratch folder for a small fit.json)
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 3, 2], samplingVariance: [1, 1, 1] });
+ * const provenance = { tool: 'stratotrend', version: '0.1.0', inputs: [{ file: 'a.csv', sha256: '0' }], options: {} };
+ * const folder = mkdtempSync(`${tmpdir()}/stratotrend-example-`);
+ * writeFileSync(`${folder}/fit.json`, JSON.stringify(fitDocument([fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })], provenance, [], 'classic')));
+ * redrawFigures(`${folder}/fit.json`, { only: 'model-support', figureFormat: 'svg', quiet: true }).written; // ['a_length.model-support.svg']
+ * redrawFigures(`${folder}/fit.json`, { lineage: ['B'], quiet: true });
+ * // throws: --lineage: no lineage of
+ * rmSync(folder, { recursive: true });
  */
 export function redrawFigures(file: string, options: RedrawCommandOptions, onLongRun: (warning: string) => void = () => {}): { out: string; written: string[] } {
   const all = readFitDocument(file);

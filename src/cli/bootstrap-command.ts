@@ -7,7 +7,13 @@ import { nestedChiSquareNote, nestedSizeNote } from '../render/measured-cautions
 // `stratotrend bootstrap`: the tests are run by runBootstrap
 // (src/analyses/bootstrap-run.ts); this file prints them as text or JSON.
 
-/** One lineage's tests as text; `horizons` (the lineage's) adds the measured size notes of the `--models` tests. */
+/**
+ * One lineage's tests as text; `horizons` (the lineage's) adds the measured
+ * size notes of the `--models` tests.
+ *
+ * @example
+ * bootstrapTable('A / length', { nested: null, non_nested: null, replicates: 9, seed: 1 }).split('\n')[0]; // 'Bootstrap tests: "A / length" (9 replicates per null model, seed 1)'
+ */
 export function bootstrapTable(name: string, report: BootstrapTestReport, horizons?: number): string {
   const lines = [`Bootstrap tests: "${name}" (${report.replicates} replicates per null model, seed ${report.seed})`];
   const nested = report.nested;
@@ -44,7 +50,14 @@ function nestingLines(test: NestingTest, horizons: number | undefined): string[]
   return lines;
 }
 
-/** `stratotrend bootstrap FILE`: parametric-bootstrap tests for every lineage. */
+/**
+ * `stratotrend bootstrap FILE`: parametric-bootstrap tests for every lineage.
+ *
+ * @example
+ * // A real run prints the tests of every lineage (seconds); the file is read first:
+ * await bootstrapCommand('no-such.csv', { quiet: true });
+ * // throws: no-such.csv: no such file
+ */
 export async function bootstrapCommand(file: string, options: BootstrapCommandOptions): Promise<void> {
   const onRead = (warnings: readonly { category: string; message: string }[]): void => {
     for (const warning of warnings) process.stderr.write(`warning (${warning.category}): ${warning.message}\n`);

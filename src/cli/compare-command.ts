@@ -12,7 +12,9 @@ import { lineageTable } from '../render/text-table.js';
  * `stratotrend compare FILE`: print the comparison tables (or JSON) and write outputs with --out.
  *
  * @example
- * await compareCommand('sample-data/locality-heights.csv', { ageModel: 'sample-data/locality-ties.csv' }); // prints one ranked table per trait
+ * // A real run prints one ranked table per trait (seconds); the file is read first:
+ * await compareCommand('no-such.csv', {});
+ * // throws: no-such.csv: no such file
  */
 export async function compareCommand(file: string, options: CompareCommandOptions): Promise<void> {
   try {

@@ -17,7 +17,9 @@ import { trendSummaryText, trendText } from '../render/trend-text.js';
  * `stratotrend fit FILE`: print the model table (or JSON) and write outputs with --out.
  *
  * @example
- * await fitCommand('sample-data/shell-length.csv', { models: 'classic' }); // prints 'Model set: classic (the five classic models)' and one table per lineage
+ * // A real run prints 'Model set: classic (the five classic models)' and one table per lineage; the file is read first:
+ * await fitCommand('no-such.csv', {});
+ * // throws: no-such.csv: no such file
  */
 export async function fitCommand(file: string, options: FitCommandOptions): Promise<void> {
   try {

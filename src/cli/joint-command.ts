@@ -18,6 +18,11 @@ export interface JointCommandOptions extends JointOptions {
  * `stratotrend joint FILE`: fit the joint models to every section's traits;
  * print the tables (or JSON) and with --out write joint.json and
  * joint-models.csv.
+ *
+ * @example
+ * // A real run prints the joint tables (seconds); the file is read first:
+ * await jointCommand('no-such.csv', {});
+ * // throws: no-such.csv: no such file
  */
 export async function jointCommand(file: string, options: JointCommandOptions): Promise<void> {
   try {
@@ -62,6 +67,9 @@ export async function jointCommand(file: string, options: JointCommandOptions): 
  * The figure files of `joint --out`: per group a panels figure and one
  * trajectory per pair of traits, named from the section and traits, e.g.
  * joint-marrowind-wash-panels.png, joint-marrowind-wash-shell-length-shell-width.png.
+ *
+ * @example
+ * jointFigureNames([{ section: 'Section A', traits: ['length', 'width', 'height'] }]).map((figure) => figure.name); // ['joint-section-a-panels.png', 'joint-section-a-length-width.png', 'joint-section-a-length-height.png', 'joint-section-a-width-height.png']
  */
 export function jointFigureNames(groups: readonly JointFigureGroup[]): { name: string; group: number; pair: [number, number] | null }[] {
   const names: { name: string; group: number; pair: [number, number] | null }[] = [];

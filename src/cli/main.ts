@@ -13,6 +13,10 @@ import { toolVersion } from '../io/version.js';
 /**
  * Command-line entry point. Commands load their modules only when run, so
  * `--help` and light commands never load the fitting or chart stack.
+ *
+ * @example
+ * // As bin/stratotrend calls it; a non-zero exit code would be set on the process (here: none).
+ * await main(['node', 'stratotrend', '--version']); // undefined (the version is printed on stdout)
  */
 export async function main(argv: readonly string[]): Promise<void> {
   const debug = argv.includes('--debug');
@@ -45,6 +49,7 @@ export async function main(argv: readonly string[]): Promise<void> {
  *
  * @example
  * await runCommandLine(['node', 'stratotrend', '--version']); // 0 (the version is printed on stdout)
+ * await runCommandLine(['node', 'stratotrend', 'fit', '--intervals', 'nonsense', 'sample-data/shell-length.csv']); // 2 (a usage error, printed on stderr)
  */
 export async function runCommandLine(argv: readonly string[], program: Command = buildProgram()): Promise<number> {
   try {
@@ -55,7 +60,14 @@ export async function runCommandLine(argv: readonly string[], program: Command =
   }
 }
 
-/** Turn an error into one stderr line and an exit code (1 bad data, 2 bad usage, 70 internal). */
+/**
+ * Turn an error into one stderr line and an exit code (1 bad data, 2 bad usage, 70 internal).
+ *
+ * @example
+ * reportError(new InputError('bad value', { file: 'a.csv', line: 3 }), false); // 1 (stderr: "stratotrend: a.csv line 3: bad value")
+ * reportError(usageError('--seed: bad'), false); // 2
+ * reportError(new Error('bug'), false); // 70
+ */
 export function reportError(error: unknown, debug: boolean): number {
   if (error instanceof CommanderError) return error.exitCode === 0 ? 0 : 2;
   if (error instanceof InputError) {
@@ -68,7 +80,12 @@ export function reportError(error: unknown, debug: boolean): number {
   return 70;
 }
 
-/** The commander program with every command. */
+/**
+ * The commander program with every command.
+ *
+ * @example
+ * buildProgram().commands.map((command) => command.name()); // ['fit', 'compare', 'joint', 'report', 'power', 'simulate', 'bootstrap', 'redraw']
+ */
 export function buildProgram(): Command {
   const program = new Command();
   program

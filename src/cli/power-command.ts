@@ -7,7 +7,14 @@ import { lineageName } from '../lineage.js';
 // `stratotrend power`: the power run is src/analyses/power-run.ts; this file
 // prints its table (or JSON) and writes the power curve.
 
-/** `stratotrend power FILE`. */
+/**
+ * `stratotrend power FILE`.
+ *
+ * @example
+ * // A real run prints the power table (seconds); the options are checked first:
+ * await powerCommand('sample-data/shell-length.csv', { replicates: '9' });
+ * // throws: --replicates must be a whole number from 20 to 100000, got "9"
+ */
 export async function powerCommand(file: string, options: PowerCommandOptions): Promise<void> {
   if (options.correlations !== undefined) {
     // Power to detect an evolutionary correlation between two traits (issue 17, the joint models).

@@ -8,7 +8,13 @@ import { releaseOutputLocks } from '../io/write-output.js';
 
 export type { RedrawCommandOptions } from '../analyses/redraw-run.js';
 
-/** `stratotrend redraw FIT_JSON`: draw the figures of a saved fit again, without refitting. */
+/**
+ * `stratotrend redraw FIT_JSON`: draw the figures of a saved fit again, without refitting.
+ *
+ * @example
+ * redrawCommand('no-such.json', {});
+ * // throws: no-such.json: no such file
+ */
 export function redrawCommand(file: string, options: RedrawCommandOptions): void {
   try {
     redrawAndWrite(file, options);

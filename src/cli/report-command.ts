@@ -8,6 +8,10 @@ import { checkOutputFile, inputPaths, prepareOutputFile, releaseOutputLocks, wri
 /**
  * `stratotrend report FILE`: fit FILE (or read a saved fit.json) and write
  * one self-contained HTML report.
+ *
+ * @example
+ * await reportCommand('no-such.json', {});
+ * // throws: no-such.json: no such file
  */
 export async function reportCommand(file: string, options: ReportCommandOptions): Promise<void> {
   try {

@@ -13,6 +13,10 @@ export { parseParameters } from '../analyses/simulate-run.js';
  * parameters on the design of FILE (each of its lineages) or of the design
  * options, written as a samples CSV the tool reads back. Parameters not given
  * are taken from the model fitted to each lineage of FILE.
+ *
+ * @example
+ * await simulateCommand(undefined, {});
+ * // throws: --parameters: give ancestral_mean, drift, step_variance
  */
 export async function simulateCommand(file: string | undefined, options: SimulateCommandOptions): Promise<void> {
   const joint = await import('../analyses/joint-simulate.js');

@@ -141,6 +141,11 @@ function correlation(x: readonly number[], y: readonly number[]): number {
  * (B + 1) for the lower tail, the same for the upper, two-sided as twice
  * the smaller (capped at 1). (Davison & Hinkley 1997, Bootstrap Methods and
  * their Application, ch. 4.)
+ *
+ * @example
+ * bootstrapPValue(0.5, [0.1, 0.2, 0.7, 0.9], 'lower'); // 0.6 ((1 + 2) / (4 + 1))
+ * bootstrapPValue(0.5, [0.1, 0.2, 0.7, 0.9], 'two-sided'); // 1 (twice 0.6, capped)
+ * bootstrapPValue(0, [0.1, 0.2, 0.7, 0.9], 'two-sided'); // 0.4 (2 × (1 + 0) / 5)
  */
 export function bootstrapPValue(observed: number, simulated: readonly number[], tail: 'two-sided' | 'lower'): number {
   let below = 0;
@@ -168,6 +173,13 @@ export function bootstrapPValue(observed: number, simulated: readonly number[], 
  * Voje, K. L., Starrfelt, J. & Liow, L. H. (2018). Model adequacy and
  * microevolutionary explanations for stasis in the fossil record. American
  * Naturalist 191:509-523.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 2, 3, 4, 5, 6, 7], mean: [0, 1.1, 1.9, 3.2, 3.9, 5.1, 6, 7.2], samplingVariance: Array(8).fill(0.01) });
+ * const result = checkAdequacy(randomWalk, fitModel(randomWalk, lineage, { intervals: false }), lineage, { draws: 9, seed: 1 });
+ * result.checks.map((check) => check.name); // ['autocorrelation', 'runs', 'spreadTrend', 'normality']
+ * result.checks.map((check) => check.pValue); // [1, 0.2, 0.4, 0.1] (multiples of 1 / (9 + 1): nine draws)
+ * result.adequate; // true
  */
 export function checkAdequacy(model: EvolutionModel, fit: ModelFit, lineage: Lineage, options: AdequacyOptions = {}): AdequacyResult {
   const draws = options.draws ?? 199;

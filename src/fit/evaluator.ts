@@ -15,6 +15,15 @@ import { PrefixFilter } from './prefix-filter.js';
  * The trait is centred on its average before filtering (every model's design
  * spans the constant, so this changes nothing but the rounding error of the
  * GLS cross-products, which keeps results invariant to adding a constant).
+ *
+ * @example
+ * // Nearly exact means: the walk's increments 1, 2, 1 are independent N(0, q), so at q = 2
+ * // logL = -2 ln 2 pi - (ln 1e-12 + 3 ln 2) / 2 - 6 / 4 (closed form; the first mean is the ancestral mean, known to 1e-12).
+ * const lineage = lineageFromArrays({ time: [0, 1, 2, 3], mean: [0, 1, 3, 4], samplingVariance: [1e-12, 1e-12, 1e-12, 1e-12] });
+ * const evaluator = new LikelihoodEvaluator(randomWalk, lineage);
+ * evaluator.profile([2]); // 7.600035654304915 (to 1e-9)
+ * evaluator.profile([2]) - evaluator.profile([1]); // 0.46027922915983144 (to 1e-9; 3 - 1.5 ln 2 - 1.5)
+ * evaluator.centre; // 2 (the average of the means, taken off before filtering)
  */
 export class LikelihoodEvaluator {
   readonly model: EvolutionModel;

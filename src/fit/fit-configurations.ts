@@ -28,6 +28,11 @@ type FitPlain = (model: EvolutionModel, lineage: Lineage, options: FitOptions) =
  * for the JSON: one `{ index, age | time }` per shift.
  *
  * @param fitPlain the fitter of models without configurations (fitModel)
+ *
+ * @example
+ * // Two flat stretches, 0 then 2: the best single shift starts the second segment at horizon 4.
+ * const lineage = lineageFromArrays({ time: [0, 1, 2, 3, 4, 5, 6, 7], mean: [0, 0.1, -0.1, 0, 2, 2.1, 1.9, 2], samplingVariance: Array(8).fill(0.01) });
+ * fitOverConfigurations(punctuatedOne, lineage, { intervals: false, minimumSegment: 3 }, fitModel).extra.shifts; // [{ index: 4, time: 4 }]
  */
 export function fitOverConfigurations(model: EvolutionModel, lineage: Lineage, options: FitOptions, fitPlain: FitPlain): ModelFit {
   const configurations = model.configurations?.(lineage, { minimumSegment: options.minimumSegment }) ?? [];
@@ -90,6 +95,10 @@ export function fitOverConfigurations(model: EvolutionModel, lineage: Lineage, o
  * segment and its age (for ages, and for heights/depths placed by an age
  * model: age = firstAge - t, with the height or depth as read beside it), or
  * its elapsed time for "time" input.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 2, 3, 4, 5], mean: [0, 0, 0, 1, 1, 1], samplingVariance: Array(6).fill(0.1) });
+ * shiftRecords(lineage, [3]); // [{ index: 3, time: 3 }]
  */
 export function shiftRecords(lineage: Lineage, shifts: readonly number[]): Record<string, number>[] {
   return shifts.map((index) => {
@@ -109,6 +118,13 @@ export function shiftRecords(lineage: Lineage, shifts: readonly number[]): Recor
  * likelihood separates (each block a plain model on its own horizons),
  * otherwise the bound model in full. The result speaks for the family model
  * (its id, K, and a process vector with the shifts appended).
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 2, 3, 4, 5, 6, 7], mean: [0, 0.1, -0.1, 0, 2, 2.1, 1.9, 2], samplingVariance: Array(8).fill(0.01) });
+ * const fit = fitAtConfiguration(punctuatedOne, lineage, { shifts: [4] }, { intervals: false }, fitModel);
+ * fit.estimates.segment_1_mean; // 0 (to 1e-12; the mean of 0, 0.1, -0.1, 0)
+ * fit.estimates.segment_2_mean; // 2 (to 1e-12; the mean of 2, 2.1, 1.9, 2)
+ * fit.estimates.shift_1_time; // 4
  */
 export function fitAtConfiguration(
   model: EvolutionModel,

@@ -26,6 +26,15 @@ export const profileDrop = chiSquare1At95 / 2;
  *
  * Never throws for legal data: a model that cannot be fitted comes back with
  * converged = false and a message.
+ *
+ * @example
+ * // Strict stasis with unit sampling variances: the ML mean is the average 2, logL = -ln 2 pi - 1, and the
+ * // profile interval is 2 ± 1.959964 × sqrt(1/2) (closed forms: the profile of a normal mean is exactly quadratic).
+ * const lineage = lineageFromArrays({ time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * const fit = fitModel(strictStasis, lineage);
+ * fit.logLik; // -2.8378770664093453 (to 1e-12)
+ * fit.parameters.stasis_mean.estimate; // 2 (to 1e-12)
+ * fit.parameters.stasis_mean.lower; // 0.6140961756503224 (to 1e-9)
  */
 export function fitModel(model: EvolutionModel, lineage: Lineage, options: FitOptions = {}): ModelFit {
   const scaling = standardScaling(model, lineage);
@@ -276,7 +285,13 @@ function derivedEstimates(model: EvolutionModel, parameters: Readonly<Record<str
   return derived;
 }
 
-/** How much the design coefficient that location parameter `name` fixes changes per unit of the parameter (1 for most; alpha for ou's optimum). */
+/**
+ * How much the design coefficient that location parameter `name` fixes changes per unit of the parameter (1 for most; alpha for ou's optimum).
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 2], mean: [1, 3, 4], samplingVariance: [1, 1, 1] });
+ * coefficientPerUnit(directionalWalk, 'drift', [1], lineage); // 1 (the drift is its own coefficient)
+ */
 export function coefficientPerUnit(model: EvolutionModel, name: string, process: ArrayLike<number>, lineage: Lineage): number {
   return model.fixLocation(name, 1, process, lineage).coefficient - model.fixLocation(name, 0, process, lineage).coefficient;
 }
@@ -315,6 +330,15 @@ type IntervalEnds = Pick<ParameterEstimate, 'lower' | 'upper' | 'lowerAtBound' |
  * scale), maximise over the other process parameters, and find where the
  * profile crosses the cut-off. The bound 0 (or the lower limit) counts as
  * reached when the profile there is still above the cut-off.
+ *
+ * @example
+ * // Nearly exact means with increments 1, 2, 1: the walk's profile is c - 1.5 ln q - 3/q (closed form, maximum at q = 2);
+ * // the 95% ends are where it falls chi2(1; 0.95)/2 = 1.920729410347062 below the maximum.
+ * const lineage = lineageFromArrays({ time: [0, 1, 2, 3], mean: [0, 1, 3, 4], samplingVariance: [1e-12, 1e-12, 1e-12, 1e-12] });
+ * const evaluator = new LikelihoodEvaluator(randomWalk, lineage);
+ * const ends = processInterval((process) => evaluator.profile(process), randomWalk, lineage, [2], 0, evaluator.profile([2]) - 1.920729410347062);
+ * -1.5 * Math.log(ends.lower) - 3 / ends.lower + 1.5 * Math.log(2) + 1.5; // -1.920729410347062 (to 1e-8)
+ * -1.5 * Math.log(ends.upper) - 3 / ends.upper + 1.5 * Math.log(2) + 1.5; // -1.920729410347062 (to 1e-8)
  */
 export function processInterval(
   evaluate: (process: number[]) => number,

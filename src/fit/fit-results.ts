@@ -78,7 +78,14 @@ export interface SearchProgress {
   readonly total: number;
 }
 
-/** A model that could not be fitted to this lineage, with the reason in words. */
+/**
+ * A model that could not be fitted to this lineage, with the reason in words.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * const fit = unfittedFit(randomWalk, lineage, 'too few horizons');
+ * [fit.converged, fit.logLik, fit.message, fit.k]; // [false, -Infinity, 'too few horizons', 2]
+ */
 export const unfittedFit = (model: EvolutionModel, lineage: Lineage, message: string): ModelFit => ({
   id: model.id,
   label: model.label,

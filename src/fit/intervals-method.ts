@@ -52,6 +52,15 @@ export const degenerateCutoff = 0.01;
  * Parameters without a finite estimate keep what they have. Called by
  * `fitModel` only, which hands its own fitter in as `options.refit` (the
  * bootstrap refits each replicate) so this file need not import it.
+ *
+ * @example
+ * // The integrated method on strict stasis: the same normal interval, 2 ± 1.959964 × sqrt(1/2) (closed form).
+ * const lineage = lineageFromArrays({ time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * const fit = fitModel(strictStasis, lineage);
+ * const parameters = { ...fit.parameters };
+ * const refit = (model, data) => fitModel(model, data, { intervals: false });
+ * replaceIntervals('integrated', new LikelihoodEvaluator(strictStasis, lineage), fit.estimates, parameters, processInterval, { refit }); // { method: 'integrated', fallback: null }
+ * parameters.stasis_mean.lower; // 0.6140961756503224 (to 1e-6)
  */
 export function replaceIntervals(
   method: Exclude<IntervalMethod, 'profile'>,

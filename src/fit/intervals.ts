@@ -39,7 +39,13 @@ export const intervalMethodLabels: Record<IntervalMethod, string> = {
   integrated: 'integrated likelihood (flat priors on locations, uniform on the standard deviation)',
 };
 
-/** Parse a method name, or return null. */
+/**
+ * Parse a method name, or return null.
+ *
+ * @example
+ * parseIntervalMethod('profile'); // 'profile'
+ * parseIntervalMethod('wald'); // null
+ */
 export function parseIntervalMethod(text: string): IntervalMethod | null {
   return (intervalMethods as readonly string[]).includes(text) ? (text as IntervalMethod) : null;
 }
@@ -63,6 +69,12 @@ export interface IntervalEnds {
  * information when block sizes are unequal. Biometrika 58:545-554.
  * Harville, D. A. (1974). Bayesian inference for variance components using
  * only error contrasts. Biometrika 61:383-385.
+ *
+ * @example
+ * // One mean, unit sampling variances: X'V^-1 X = 2, so the restricted logL is the profile minus 0.5 ln 2 (closed form).
+ * const lineage = lineageFromArrays({ time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * const sums = new LikelihoodEvaluator(strictStasis, lineage).whiten([]);
+ * restrictedLogLik(sums) - profileLogLik(sums); // -0.34657359027997264 (to 1e-12; -0.5 ln 2)
  */
 export function restrictedLogLik(sums: WhitenedSums): number {
   const logLik = profileLogLik(sums);
@@ -78,6 +90,14 @@ export function restrictedLogLik(sums: WhitenedSums): number {
  * a profile likelihood for nuisance parameters; for linear location
  * parameters the adjustment is exactly the restricted likelihood of
  * Patterson & Thompson 1971).
+ *
+ * @example
+ * // Means 1, 3 centred on 2: the coefficient held at 1 (the mean at 3) leaves residuals -2, 0, logL = -ln 2 pi - 2 (closed form);
+ * // no other coefficient, so the adjustment adds nothing.
+ * const lineage = lineageFromArrays({ time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * const sums = new LikelihoodEvaluator(strictStasis, lineage).whiten([]);
+ * fixedCoefficientLogLik(sums, 0, 1, false); // -3.8378770664093453 (to 1e-12)
+ * fixedCoefficientLogLik(sums, 0, 1, true); // -3.8378770664093453 (to 1e-12)
  */
 export function fixedCoefficientLogLik(sums: WhitenedSums, index: number, value: number, adjusted: boolean): number {
   const result = reducedProfileSummary(sums, index, value);
@@ -108,6 +128,13 @@ export interface ParameterProfile {
  * are maximised by the nested search (12 grid points per axis); for a
  * location parameter the other location parameters are profiled by GLS (or
  * integrated out when `adjusted`) and the process parameters maximised.
+ *
+ * @example
+ * // Strict stasis, unit sampling variances, means 1 and 3: the profile of the mean is -ln 2 pi - 1 - (m - 2)^2 (closed form).
+ * const lineage = lineageFromArrays({ time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * const profile = parameterProfile(new LikelihoodEvaluator(strictStasis, lineage), 'stasis_mean', false);
+ * [profile.maximum, profile.maximiser]; // [-2.8378770664093453, 2]
+ * profile.at(2 + Math.SQRT1_2); // -3.3378770664093453 (to 1e-12; half a unit below)
  */
 export function parameterProfile(
   evaluator: LikelihoodEvaluator,
@@ -158,6 +185,11 @@ function locationSupremum(evaluator: LikelihoodEvaluator, name: string, adjusted
  * Interval ends of a parameter from those of its searched axis: the same for
  * an axis parameter; mapped for one searched through another axis
  * (`searchedAs`), an end at the axis's bound or limit becoming open.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 2, 3], mean: [0, 1, 3, 4], samplingVariance: [0.1, 0.1, 0.1, 0.1] });
+ * const spec = randomWalk.parameters.find((parameter) => parameter.name === 'step_variance');
+ * parameterEnds(spec, lineage, { lower: 1, upper: 5, lowerAtBound: false, upperAtBound: false }); // { lower: 1, upper: 5, lowerAtBound: false, upperAtBound: false } (an axis parameter: unchanged)
  */
 export function parameterEnds(spec: ParameterSpec | undefined, lineage: Lineage, ends: IntervalEnds): IntervalEnds {
   const through = spec?.searchedAs;
@@ -182,6 +214,11 @@ export function parameterEnds(spec: ParameterSpec | undefined, lineage: Lineage,
  * ends unchanged.
  *
  * @param cutoff the profile value that defines the interval
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * const ends = { lower: 1, upper: 3, lowerAtBound: false, upperAtBound: false };
+ * openTowardTrendLimit(new LikelihoodEvaluator(strictStasis, lineage), 'stasis_mean', ends, -10, false); // { lower: 1, upper: 3, lowerAtBound: false, upperAtBound: false } (no runaway: unchanged)
  */
 export function openTowardTrendLimit(evaluator: LikelihoodEvaluator, name: string, ends: IntervalEnds, cutoff: number, adjusted: boolean): IntervalEnds {
   const side = trendLimitSide(evaluator, name, cutoff, adjusted);
@@ -195,6 +232,11 @@ export function openTowardTrendLimit(evaluator: LikelihoodEvaluator, name: strin
  * opens the interval of `name`. Known before the ends are searched, so the
  * search can skip that end (issue 14b: ou's optimum then walks out to 2^59
  * standard errors on one side only); the ends come out the same.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * trendLimitSide(new LikelihoodEvaluator(strictStasis, lineage), 'stasis_mean', -10, false); // 0 (not a runaway parameter)
+ * ornsteinUhlenbeck.parameters.filter((parameter) => parameter.runaway).map((parameter) => parameter.name); // ['optimum']
  */
 export function trendLimitSide(evaluator: LikelihoodEvaluator, name: string, cutoff: number, adjusted: boolean): 1 | -1 | 0 {
   const model = evaluator.model;
@@ -215,6 +257,11 @@ export function trendLimitSide(evaluator: LikelihoodEvaluator, name: string, cut
  * @param start for a location parameter, its maximiser and the process
  *   values there, to warm-start the searches from ({@link WarmStarts});
  *   without it the first trial gets the full nested search
+ *
+ * @example
+ * // The profile of strict stasis's mean, -ln 2 pi - 1 - (m - 2)^2 here (closed form).
+ * const lineage = lineageFromArrays({ time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * profileFunction(new LikelihoodEvaluator(strictStasis, lineage), 'stasis_mean', false)(3); // -3.8378770664093453 (to 1e-12)
  */
 export function profileFunction(
   evaluator: LikelihoodEvaluator,
@@ -272,6 +319,13 @@ export function profileFunction(
  * stays on that face (ou's step_variance 0 at the maximum, small but
  * positive a little away from it), while the warm search's grid still
  * holds 0 itself.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 2, 3], mean: [0, 1, 3, 4], samplingVariance: [0.1, 0.1, 0.1, 0.1] });
+ * const starts = new WarmStarts(randomWalk, lineage, { value: 0, process: [2] });
+ * starts.add(1, [3]);
+ * starts.startsFor(1.5); // [[3], [2]] (the nearest kept value toward the maximum, then the maximum's own)
+ * starts.startsFor(-1); // [[2]] (the nearest is the maximum itself)
  */
 export class WarmStarts {
   private readonly values: number[] = [];
@@ -340,6 +394,12 @@ export class WarmStarts {
  *
  * @param peak the profile at `start` (its maximum); default: evaluated
  * @param open a side (1 upper, -1 lower) known to be open, not searched ({@link trendLimitSide})
+ *
+ * @example
+ * // The quadratic -(v - 2)^2 / 2 falls to -1.920729410347062 at 2 ± 1.959963984540054 (closed form).
+ * const ends = locationEnds((value) => -0.5 * (value - 2) ** 2, 2, 1, -1.920729410347062);
+ * ends.upper; // 3.959963984540054 (to 1e-9)
+ * ends.lower; // 0.040036015459946 (to 1e-9)
  */
 export function locationEnds(at: (value: number) => number, start: number, scale: number, cutoff: number, peak?: number, open: 1 | -1 | 0 = 0): IntervalEnds {
   const gap = (value: number): number => at(value) - cutoff;
@@ -357,7 +417,14 @@ export function locationEnds(at: (value: number) => number, start: number, scale
   return { lower, upper, lowerAtBound: lower === null, upperAtBound: upper === null };
 }
 
-/** A standard-error-like step for a location parameter's interval search. */
+/**
+ * A standard-error-like step for a location parameter's interval search.
+ *
+ * @example
+ * // Strict stasis, two unit sampling variances: the GLS standard error of the mean is sqrt(1/2) (closed form).
+ * const lineage = lineageFromArrays({ time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * locationScale(new LikelihoodEvaluator(strictStasis, lineage), 'stasis_mean', [], 2); // 0.7071067811865476 (to 1e-12)
+ */
 export function locationScale(evaluator: LikelihoodEvaluator, name: string, process: readonly number[], estimate: number): number {
   const model = evaluator.model;
   const details = evaluator.details(process);
@@ -384,6 +451,13 @@ export interface IntervalRequest {
  * the maximum. Process parameters use `processEnds` (the fitter's own
  * search for variance and rate ends); location parameters step out by their
  * GLS standard error.
+ *
+ * @example
+ * // Strict stasis: the mean's interval is 2 ± 1.959964 × sqrt(1/2) (closed form: the profile is exactly quadratic).
+ * const lineage = lineageFromArrays({ time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * const ends = intervalsByProfile(new LikelihoodEvaluator(strictStasis, lineage), ['stasis_mean'], { adjusted: false, ratioCutoff: () => 3.841458820694124 }, (evaluate, best, axis, cutoff) => processInterval(evaluate, strictStasis, lineage, best, axis, cutoff));
+ * ends.stasis_mean.lower; // 0.6140961756503224 (to 1e-9)
+ * ends.stasis_mean.upper; // 3.3859038243496773 (to 1e-9)
  */
 export function intervalsByProfile(
   evaluator: LikelihoodEvaluator,
@@ -419,7 +493,14 @@ export function intervalsByProfile(
   return result;
 }
 
-/** Does an interval contain a value? An open end (null) contains everything beyond it. */
+/**
+ * Does an interval contain a value? An open end (null) contains everything beyond it.
+ *
+ * @example
+ * covers({ lower: 1, upper: 2 }, 1.5); // true
+ * covers({ lower: 1, upper: null }, 100); // true (open upper end)
+ * covers({ lower: 1, upper: 2 }, 3); // false
+ */
 export function covers(ends: IntervalEnds, value: number): boolean {
   return (ends.lower === null || value >= ends.lower) && (ends.upper === null || value <= ends.upper);
 }
@@ -446,6 +527,11 @@ export function intervalOptions(value: boolean | string | undefined): { interval
  * parameters by REML, location parameters by GLS at those values): the fit
  * a parametric bootstrap draws from, because unlike the ML fit it rarely
  * puts a variance at exactly 0 (Patterson & Thompson 1971).
+ *
+ * @example
+ * // Nearly exact means: the ancestral mean is the first mean, so the REML step variance is the ML one, (1 + 4 + 1) / 3 (closed form).
+ * const lineage = lineageFromArrays({ time: [0, 1, 2, 3], mean: [0, 1, 3, 4], samplingVariance: [1e-12, 1e-12, 1e-12, 1e-12] });
+ * restrictedEstimates(new LikelihoodEvaluator(randomWalk, lineage)).step_variance; // 2 (to 1e-9)
  */
 export function restrictedEstimates(evaluator: LikelihoodEvaluator): Record<string, number> {
   const evaluate = (process: number[]): number => restrictedLogLik(evaluator.whiten(process));

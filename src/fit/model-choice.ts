@@ -7,7 +7,8 @@
  * selection in small samples. Biometrika 76:297-307.
  *
  * @example
- * aicc(-10, 2, 10); // 24 + 12/7 = 25.714285714285715
+ * aicc(-10, 2, 10); // 25.714285714285715 (20 + 4 + 12/7)
+ * aicc(-10, 2, 3); // null (N - K - 1 = 0)
  */
 export function aicc(logLik: number, parameterCount: number, horizons: number): number | null {
   const denominator = horizons - parameterCount - 1;
@@ -24,7 +25,8 @@ export function aicc(logLik: number, parameterCount: number, horizons: number): 
  * Inference, 2nd ed. Springer.
  *
  * @example
- * akaikeWeights([10, 12, null]); // [0.7310585786300049, 0.2689414213699951, null]
+ * akaikeWeights([10, 12, null]).weight; // [0.7310585786300049, 0.2689414213699951, null] (1 / (1 + e^-1), e^-1 / (1 + e^-1))
+ * akaikeWeights([10, 12, null]).delta; // [0, 2, null]
  */
 export function akaikeWeights(criteria: readonly (number | null)[]): { delta: (number | null)[]; weight: (number | null)[] } {
   const compared = criteria.filter((value): value is number => value !== null);

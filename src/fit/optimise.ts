@@ -126,7 +126,8 @@ export function gridMaximize(f: (x: number) => number, lower: number, upper: num
  * Brent, R. P. (1973). Algorithms for Minimization without Derivatives, ch. 4.
  *
  * @example
- * findRoot((x) => x * x - 2, 0, 2); // 1.414213562373095
+ * findRoot((x) => x * x - 2, 0, 2); // 1.4142135623730951 (to 1e-12; the square root of 2)
+ * findRoot((x) => x * x + 1, 0, 2); // NaN (no sign change)
  */
 export function findRoot(f: (x: number) => number, lower: number, upper: number, tolerance = 1e-12, maxIterations = 200): number {
   let a = lower;
@@ -202,6 +203,11 @@ export interface NelderMeadOptions {
  * Computer Journal 7:308-313. Gao, F. & Han, L. (2012). Implementing the
  * Nelder-Mead simplex algorithm with adaptive parameters. Computational
  * Optimization and Applications 51:259-277.
+ *
+ * @example
+ * const found = nelderMead(([x, y]) => (x - 1) ** 2 + (y + 2) ** 2, [0, 0]);
+ * found.at[0]; // 1 (to 1e-9; the minimum at (1, -2))
+ * found.at[1]; // -2 (to 1e-9)
  */
 export function nelderMead(f: (x: number[]) => number, start: readonly number[], options: NelderMeadOptions = {}): { at: number[]; value: number; evaluations: number } {
   const dimension = start.length;

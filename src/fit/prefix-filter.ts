@@ -19,6 +19,18 @@ import type { StateSpace } from '../engine/state-space.js';
  * design column, the filtered variance, the running ln det (sum of logs and
  * the pending product), the singular flag and the QR factor so far (R, z and
  * the residual).
+ *
+ * @example
+ * // Stasis then a walk, shift at horizon 4: rows 0..3 depend on the first variance only, so a second pass with the
+ * // same first variance resumes after them, with the same result bit for bit.
+ * const lineage = lineageFromArrays({ time: [0, 1, 2, 3, 4, 5, 6, 7], mean: [0, 0.1, -0.1, 0, 1, 2, 2.5, 4], samplingVariance: Array(8).fill(0.01) });
+ * const model = bindConfiguration(modeShift('stasis', 'random-walk'), { shifts: [4] });
+ * const evaluator = new LikelihoodEvaluator(model, lineage);
+ * evaluator.prefix.rows; // 4
+ * evaluator.profile([0.01, 0.5]);
+ * const resumed = evaluator.profile([0.01, 0.7]);
+ * evaluator.prefix.resumed; // 1
+ * resumed === new LikelihoodEvaluator(model, lineage).profile([0.01, 0.7]); // true
  */
 export class PrefixFilter {
   /** Rows shared: 0 .. rows - 1. */

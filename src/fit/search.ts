@@ -110,6 +110,14 @@ const screenMargin = 0.05;
  * changes the maximum found only within Brent's tolerance.
  *
  * @param evaluate log-likelihood at given process values (location parameters profiled)
+ *
+ * @example
+ * // The walk's profile on increments 1, 2, 1 has its maximum at q = 2 (closed form, see LikelihoodEvaluator).
+ * const lineage = lineageFromArrays({ time: [0, 1, 2, 3], mean: [0, 1, 3, 4], samplingVariance: [1e-12, 1e-12, 1e-12, 1e-12] });
+ * const evaluator = new LikelihoodEvaluator(randomWalk, lineage);
+ * const best = maximiseProcess((process) => evaluator.profile(process), randomWalk.process, lineage);
+ * best.process[0]; // 2 (to 1e-7)
+ * best.positions; // ['interior']
  */
 export function maximiseProcess(
   evaluate: (process: number[]) => number,
@@ -293,6 +301,9 @@ export const gridPeaksRefined = 6;
  * local maxima (a value at least its left neighbour's and above its right
  * neighbour's; an end counts against its one neighbour), highest first, at
  * most {@link gridPeaksRefined} of them.
+ *
+ * @example
+ * gridPeaks([0, 3, 1, 2, 1, 5, 4], 5); // [5, 1, 3] (the best, then the other local maxima, highest first)
  */
 export function gridPeaks(values: readonly number[], bestIndex: number): number[] {
   const peaks: number[] = [];

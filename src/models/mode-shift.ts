@@ -54,6 +54,12 @@ const variance = (name: string, label: string, time = 0): ParameterSpec => ({ na
  * After Hunt, G., Hopkins, M. J. & Lidgard, S. (2015). Simple versus complex
  * models of trait evolution and stasis as a response to environmental change.
  * PNAS 112:4885-4890.
+ *
+ * @example
+ * const model = modeShift('stasis', 'random-walk');
+ * model.parameters.map((parameter) => parameter.name); // ['segment_1_mean', 'segment_1_variance', 'segment_2_step_variance']
+ * modeShift('stasis', 'stasis');
+ * // throws: a mode shift needs two different modes
  */
 export function modeShift(first: SegmentMode, second: SegmentMode): EvolutionModel {
   if (first === second) throw new RangeError('a mode shift needs two different modes');

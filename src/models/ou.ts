@@ -2,7 +2,13 @@ import type { StateSpace } from '../engine/state-space.js';
 import type { Lineage } from '../lineage.js';
 import { buildCovariance, timeSpan, varianceScale, type EvolutionModel } from './model.js';
 
-/** (1 - exp(-rate * t)) / rate, equal to t at rate 0 and accurate near it. */
+/**
+ * (1 - exp(-rate * t)) / rate, equal to t at rate 0 and accurate near it.
+ *
+ * @example
+ * relaxedTime(0, 2); // 2 (the limit at rate 0)
+ * relaxedTime(1, 1); // 0.6321205588285577 (to 1e-15; 1 - 1/e)
+ */
 export function relaxedTime(rate: number, t: number): number {
   return rate === 0 ? t : -Math.expm1(-rate * t) / rate;
 }
@@ -33,6 +39,14 @@ export function relaxedTimeSlope(rate: number, t: number): number {
  * Latent dynamics of ou (and the models built on it): started exactly at the
  * ancestral mean, transition exp(-alpha tau_i), process variance
  * sigma2 (1 - exp(-2 alpha tau_i)) / (2 alpha).
+ *
+ * @example
+ * // alpha = ln 2 over unit steps: transition 1/2, process variance sigma2 (1 - 1/4) / (2 ln 2) (closed form).
+ * const lineage = lineageFromArrays({ time: [0, 1, 2], mean: [0, 0, 0], samplingVariance: [0.1, 0.1, 0.1] });
+ * const space = allocateStateSpace(3, 2, lineage.samplingVariance);
+ * fillAttractionDynamics(lineage, Math.LN2, 1, space);
+ * Array.from(space.transition); // [0, 0.5, 0.5]
+ * space.processVariance[1]; // 0.5410106403333613 (to 1e-15; 0.75 / (2 ln 2))
  */
 export function fillAttractionDynamics(lineage: Lineage, alpha: number, stepVariance: number, space: StateSpace): void {
   const time = lineage.time;
@@ -115,7 +129,13 @@ function alphaSlopes(time: Float64Array, alpha: number): AlphaSlopes {
   return slopes;
 }
 
-/** Ranges of alpha searched: alpha * span = 1e-5 (the random-walk limit) to alpha * shortest interval = 40 (the stasis-like limit). */
+/**
+ * Ranges of alpha searched: alpha * span = 1e-5 (the random-walk limit) to alpha * shortest interval = 40 (the stasis-like limit).
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 0.5, 2], mean: [0, 0, 0], samplingVariance: [0.1, 0.1, 0.1] });
+ * alphaRange(lineage); // [0.000005, 80] (1e-5 / span 2, 40 / shortest interval 0.5)
+ */
 export function alphaRange(lineage: Lineage): readonly [number, number] {
   const { span, shortest } = timeSpan(lineage);
   return [1e-5 / span, 40 / shortest];

@@ -29,6 +29,11 @@ import { stasis } from './stasis.js';
  *
  * Hunt, G. (2008). Gradual or pulsed evolution: when should punctuational
  * explanations be preferred? Paleobiology 34:360-377.
+ *
+ * @example
+ * const model = punctuatedSeparateVariances(1);
+ * model.parameters.map((parameter) => parameter.name); // ['segment_1_mean', 'segment_1_variance', 'segment_2_mean', 'segment_2_variance']
+ * model.parameterCount(lineageFromArrays({ time: [0, 1, 2, 3, 4, 5], mean: [0, 0, 0, 1, 1, 1], samplingVariance: Array(6).fill(0.1) })); // 5 (2 means, 2 variances, 1 shift position)
  */
 export function punctuatedSeparateVariances(shiftCount: number): EvolutionModel {
   const segments = shiftCount + 1;

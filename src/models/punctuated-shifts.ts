@@ -38,21 +38,42 @@ export function shiftPlacements(size: number, count: number, minimumSegment: num
   return placements;
 }
 
-/** The minimum segment length asked for, validated (an integer >= 1). */
+/**
+ * The minimum segment length asked for, validated (an integer >= 1).
+ *
+ * @example
+ * minimumSegmentOf({}); // 5 (the default)
+ * minimumSegmentOf({ minimumSegment: 2 }, 3); // 3 (raised to the floor)
+ * minimumSegmentOf({ minimumSegment: 0 });
+ * // throws: minimum segment length must be a whole number >= 1, got 0
+ */
 export function minimumSegmentOf(options: ConfigurationOptions, floor = 1): number {
   const value = options.minimumSegment ?? defaultMinimumSegment;
   if (!Number.isInteger(value) || value < 1) throw new RangeError(`minimum segment length must be a whole number >= 1, got ${value}`);
   return Math.max(floor, value);
 }
 
-/** Segment (0-based) of horizon `index` given increasing shift indices. */
+/**
+ * Segment (0-based) of horizon `index` given increasing shift indices.
+ *
+ * @example
+ * segmentOfIndex(2, [3, 6]); // 0
+ * segmentOfIndex(3, [3, 6]); // 1 (a shift index is the first horizon of the new segment)
+ * segmentOfIndex(7, [3, 6]); // 2
+ */
 export function segmentOfIndex(index: number, shifts: ArrayLike<number>): number {
   let segment = 0;
   while (segment < shifts.length && index >= shifts[segment]) segment += 1;
   return segment;
 }
 
-/** Segment (0-based) of elapsed time `t` given the elapsed times at which new segments start. */
+/**
+ * Segment (0-based) of elapsed time `t` given the elapsed times at which new segments start.
+ *
+ * @example
+ * segmentOfTime(1.5, [2, 4]); // 0
+ * segmentOfTime(2, [2, 4]); // 1
+ */
 export function segmentOfTime(t: number, shiftTimes: readonly number[]): number {
   let segment = 0;
   while (segment < shiftTimes.length && t >= shiftTimes[segment]) segment += 1;
@@ -62,6 +83,9 @@ export function segmentOfTime(t: number, shiftTimes: readonly number[]): number 
 /**
  * The shift indices stored at the end of a process vector (after the
  * `searched` continuous values), rounded to whole horizons.
+ *
+ * @example
+ * shiftsOf([0.3, 1.2, 4.0000001], 2, 1); // [4] (after the two searched values, rounded)
  */
 export function shiftsOf(process: ArrayLike<number>, searched: number, count: number): number[] {
   const shifts: number[] = [];
@@ -74,6 +98,10 @@ export function shiftsOf(process: ArrayLike<number>, searched: number, count: nu
  * can rebuild the model from parameters alone: `shift_K_time` (elapsed time
  * of the first horizon of segment K + 1) and `shift_K_previous_time` (elapsed
  * time of the last horizon before it), K = 1, 2, ...
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1.5, 3, 4.5], mean: [0, 0, 1, 1], samplingVariance: [0.1, 0.1, 0.1, 0.1] });
+ * shiftEstimates(lineage, [2]); // { shift_1_time: 3, shift_1_previous_time: 1.5 }
  */
 export function shiftEstimates(lineage: Lineage, shifts: readonly number[]): Record<string, number> {
   const record: Record<string, number> = {};
@@ -84,12 +112,22 @@ export function shiftEstimates(lineage: Lineage, shifts: readonly number[]): Rec
   return record;
 }
 
-/** Shift times from parameters (see {@link shiftEstimates}). */
+/**
+ * Shift times from parameters (see {@link shiftEstimates}).
+ *
+ * @example
+ * shiftTimesOf({ shift_1_time: 3, shift_1_previous_time: 1.5, shift_2_time: 6 }, 2); // [3, 6]
+ */
 export function shiftTimesOf(parameters: Record<string, number>, count: number): number[] {
   return Array.from({ length: count }, (_, k) => parameters[`shift_${k + 1}_time`]);
 }
 
-/** Previous-horizon times of the shifts from parameters (see {@link shiftEstimates}). */
+/**
+ * Previous-horizon times of the shifts from parameters (see {@link shiftEstimates}).
+ *
+ * @example
+ * shiftPreviousTimesOf({ shift_1_time: 3, shift_1_previous_time: 1.5 }, 1); // [1.5]
+ */
 export function shiftPreviousTimesOf(parameters: Record<string, number>, count: number): number[] {
   return Array.from({ length: count }, (_, k) => parameters[`shift_${k + 1}_previous_time`]);
 }
@@ -97,6 +135,11 @@ export function shiftPreviousTimesOf(parameters: Record<string, number>, count: 
 /**
  * Shift indices of a design lineage from shift times: the first horizon at or
  * after each shift time (so a fit's own lineage gets its own indices back).
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 2, 3, 4], mean: [0, 0, 0, 1, 1], samplingVariance: Array(5).fill(0.1) });
+ * shiftIndicesFrom({ shift_1_time: 2.5 }, 1, lineage); // [3] (the first horizon at or after 2.5)
+ * shiftIndicesFrom({ shift_1_time: 9 }, 1, lineage); // [5] (none: past the last horizon)
  */
 export function shiftIndicesFrom(parameters: Record<string, number>, count: number, lineage: Lineage): number[] {
   return shiftTimesOf(parameters, count).map((shiftTime) => {
@@ -135,6 +178,14 @@ function boundGrid(lineage: Lineage, points: number): Float64Array {
  * GLS residual and log-determinant of a stasis segment [a, b) are O(1):
  * RSS = S2 - S1^2 / S0, because a stasis segment's covariance is diagonal.
  * Rows are made when first asked for (most fine grid points never are).
+ *
+ * @example
+ * // At the grid's first variance, 0, a segment's RSS is sum (x - mean)^2 / e over it: means 0, 2 with e = 1 give 2 (closed form).
+ * const lineage = lineageFromArrays({ time: [0, 1, 2, 3], mean: [0, 2, 5, 5], samplingVariance: [1, 1, 1, 1] });
+ * const sums = new StasisPrefixSums(lineage);
+ * sums.grid[0]; // 0
+ * sums.residual(0, 0, 2); // 2 (to 1e-12)
+ * sums.logDeterminant(0, 0, 4); // 0 (to 1e-12; ln of four unit variances)
  */
 export class StasisPrefixSums {
   /** 0, then the fine log-spaced grid; `coarse` lists the indices of the coarse grid's points in it. */
@@ -260,6 +311,13 @@ function cellBound(sums: StasisPrefixSums, size: number, logDeterminant: (g: num
  * each configuration (see {@link cellBound}): segment means by GLS, the one
  * variance anywhere in [0, infinity). O(grid × segments) per configuration
  * after O(grid × N) set-up.
+ *
+ * @example
+ * // The bound is never below the fitted maximum (a bound on logL over every variance).
+ * const lineage = lineageFromArrays({ time: [0, 1, 2, 3, 4, 5, 6, 7], mean: [0, 0.1, -0.1, 0, 2, 2.1, 1.9, 2], samplingVariance: Array(8).fill(0.01) });
+ * const [bound] = boundSharedVariance(lineage, [{ shifts: [4] }]);
+ * const fit = fitAtConfiguration(punctuatedOne, lineage, { shifts: [4] }, { intervals: false }, fitModel);
+ * bound >= fit.logLik; // true
  */
 export function boundSharedVariance(lineage: Lineage, configurations: readonly Configuration[]): Float64Array {
   const sums = new StasisPrefixSums(lineage);
@@ -279,6 +337,12 @@ export function boundSharedVariance(lineage: Lineage, configurations: readonly C
  * Upper bound of the maximised logL of a separate-variance punctuated model
  * at each configuration: the likelihood is a sum over segments, each bounded
  * on its own by {@link cellBound} (cached by segment), so the sum bounds it.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 2, 3, 4, 5, 6, 7], mean: [0, 0.1, -0.1, 0, 2, 2.1, 1.9, 2], samplingVariance: Array(8).fill(0.01) });
+ * const [bound] = boundSeparateVariances(lineage, [{ shifts: [4] }]);
+ * const fit = fitAtConfiguration(punctuatedOneSeparate, lineage, { shifts: [4] }, { intervals: false }, fitModel);
+ * bound >= fit.logLik; // true
  */
 export function boundSeparateVariances(lineage: Lineage, configurations: readonly Configuration[]): Float64Array {
   const sums = new StasisPrefixSums(lineage);

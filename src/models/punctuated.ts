@@ -30,6 +30,11 @@ const hunt2008 = 'Hunt, G. (2008). Gradual or pulsed evolution: when should punc
  *
  * Hunt, G. (2008). Gradual or pulsed evolution: when should punctuational
  * explanations be preferred? Paleobiology 34:360-377.
+ *
+ * @example
+ * const model = punctuatedSharedVariance(2);
+ * model.parameters.map((parameter) => parameter.name); // ['segment_1_mean', 'segment_2_mean', 'segment_3_mean', 'stasis_variance']
+ * model.parameterCount(lineageFromArrays({ time: [0, 1, 2, 3, 4, 5], mean: [0, 0, 0, 1, 1, 1], samplingVariance: Array(6).fill(0.1) })); // 6 (3 means, 1 variance, 2 shift positions)
  */
 export function punctuatedSharedVariance(shiftCount: number): EvolutionModel {
   const segments = shiftCount + 1;

@@ -35,6 +35,12 @@ export interface LineageTask {
 /**
  * Worker entry: fit one lineage with models named by id. Exported for the
  * pool; not meant to be called directly.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * fitLineageTask({ lineage, models: ['strict-stasis'], options: { intervals: false } }).models[0].logLik; // -2.8378770664093453 (to 1e-12; -ln 2 pi - 1)
+ * fitLineageTask({ lineage, models: ['nothing'], options: {} });
+ * // throws: model "nothing" is not registered in the worker thread
  */
 export function fitLineageTask(task: LineageTask): LineageFit {
   const models = task.models.map((id) => {
@@ -45,7 +51,13 @@ export function fitLineageTask(task: LineageTask): LineageFit {
   return fitLineage(task.lineage, models, task.options);
 }
 
-/** How many threads a batch of this size gets when the caller did not say. */
+/**
+ * How many threads a batch of this size gets when the caller did not say.
+ *
+ * @example
+ * defaultThreads(1); // 1 (a small batch stays in this thread)
+ * defaultThreads(parallelThreshold) >= 1; // true (every core, machine-dependent)
+ */
 export function defaultThreads(lineages: number): number {
   return lineages >= parallelThreshold ? Math.max(1, availableParallelism()) : 1;
 }
@@ -57,6 +69,11 @@ export function defaultThreads(lineages: number): number {
  * the same deterministic code; structured cloning copies doubles exactly).
  * Models that a worker could not find by id (registered at run time in this
  * thread only) make the batch run in this thread.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * const fits = await fitLineages([lineage, lineage], [strictStasis], { intervals: false }, { threads: 1 });
+ * fits.map((fit) => fit.models[0].logLik); // [-2.8378770664093453, -2.8378770664093453] (-ln 2 pi - 1 each, closed form)
  */
 export async function fitLineages(
   lineages: readonly Lineage[],

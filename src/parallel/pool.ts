@@ -23,7 +23,13 @@ export interface PoolOptions {
   onProgress?: (done: number, total: number) => void;
 }
 
-/** A task that threw: carries the task's index and the original error's name, message and stack. */
+/**
+ * A task that threw: carries the task's index and the original error's name, message and stack.
+ *
+ * @example
+ * const error = new TaskError(3, 'RangeError', 'bad value', undefined);
+ * [error.name, error.taskIndex, error.originalName, error.message]; // ['TaskError', 3, 'RangeError', 'bad value']
+ */
 export class TaskError extends Error {
   readonly taskIndex: number;
   readonly originalName: string;
@@ -40,6 +46,9 @@ export class TaskError extends Error {
  * Where a module can be loaded from by a worker thread. A `.ts` file under
  * the project (as when running under vitest) maps to its compiled twin in
  * `dist/` (`npm run build`); anything else is used as given.
+ *
+ * @example
+ * compiledModule('/somewhere/task.js'); // 'file:///somewhere/task.js' (not a .ts file: used as given)
  */
 export function compiledModule(module: string | URL): string {
   const url = module instanceof URL ? module : module.startsWith('file:') ? new URL(module) : pathToFileURL(module);
@@ -72,8 +81,11 @@ type Task = unknown;
  * the task index; the other workers are stopped.
  *
  * @example
- * const squares = await runTasks<number, number>(new URL('./square.js', import.meta.url), 'square', [1, 2, 3], { threads: 2 });
- * // squares = [1, 4, 9]
+ * // One thread runs inline (no worker started); a worker needs the compiled module in dist/.
+ * const designs = [{ time: [0, 1], count: [5, 3], withinVariance: [0.5, 1], timeUnit: 'Myr' }, { time: [0, 1], count: [1, 1], withinVariance: [4, 4], timeUnit: 'Myr' }];
+ * await runTasks('dist/src/simulate/design.js', 'pooledWithinSd', designs, { threads: 1 }); // [0.816496580927726, 2] (sqrt((4 × 0.5 + 2 × 1) / 6); no degrees of freedom: sqrt of the mean variance)
+ * await runTasks('dist/src/simulate/design.js', 'noSuchTask', [1], { threads: 1 });
+ * // throws: does not export a function named "noSuchTask"
  */
 export async function runTasks<T = Task, R = unknown>(
   module: string | URL,

@@ -15,6 +15,12 @@ import type { RandomSource } from './random.js';
  * @param parameters natural parameters of the model (names as in MODELS.md)
  * @param random seeded source; draws are consumed in horizon order
  * @returns simulated horizon means x_i
+ *
+ * @example
+ * // Step variance 0 and tiny sampling variances: the means stay at the ancestral mean (to the sampling sd, 1e-6).
+ * const design = lineageFromArrays({ time: [0, 1, 2], mean: [0, 0, 0], samplingVariance: [1e-12, 1e-12, 1e-12] });
+ * const means = simulateMeans(randomWalk, design, { ancestral_mean: 5, step_variance: 0 }, createRandom(1));
+ * Math.max(...means.map((mean) => Math.abs(mean - 5))) < 1e-5; // true
  */
 export function simulateMeans(
   model: EvolutionModel,
@@ -33,8 +39,11 @@ export function simulateMeans(
  * draw many data sets from one model at one set of parameters.
  *
  * @example
+ * const design = lineageFromArrays({ time: [0, 1, 2], mean: [0, 0, 0], samplingVariance: [0.01, 0.01, 0.01] });
  * const draw = meansSimulator(randomWalk, design, { ancestral_mean: 5, step_variance: 0.1 });
- * draw(createRandom(1)); // the same numbers as simulateMeans(randomWalk, design, { ... }, createRandom(1))
+ * const once = simulateMeans(randomWalk, design, { ancestral_mean: 5, step_variance: 0.1 }, createRandom(1));
+ * Array.from(draw(createRandom(1))).join() === Array.from(once).join(); // true (the same draws in the same order)
+ * draw(createRandom(1)).length; // 3
  */
 export function meansSimulator(model: EvolutionModel, design: Lineage, parameters: Record<string, number>): (random: RandomSource) => Float64Array {
   const size = design.time.length;
@@ -56,7 +65,14 @@ export function meansSimulator(model: EvolutionModel, design: Lineage, parameter
   };
 }
 
-/** A copy of a design lineage with new horizon means (e.g. simulated ones). */
+/**
+ * A copy of a design lineage with new horizon means (e.g. simulated ones).
+ *
+ * @example
+ * const design = lineageFromArrays({ time: [0, 1, 2], mean: [0, 0, 0], samplingVariance: [0.1, 0.1, 0.1] });
+ * Array.from(withMeans(design, Float64Array.of(1, 2, 3)).mean); // [1, 2, 3]
+ * Array.from(design.mean); // [0, 0, 0] (the design is not changed)
+ */
 export function withMeans(design: Lineage, means: Float64Array): Lineage {
   return { ...design, mean: means };
 }

@@ -12,12 +12,24 @@ export interface Provenance {
   readonly options: Readonly<Record<string, unknown>>;
 }
 
-/** A finite number or null (JSON has no Infinity or NaN, and the tool never prints them). */
+/**
+ * A finite number or null (JSON has no Infinity or NaN, and the tool never prints them).
+ *
+ * @example
+ * finiteOrNull(Infinity); // null
+ * finiteOrNull(undefined); // null
+ * finiteOrNull(-2.5); // -2.5
+ */
 export function finiteOrNull(value: number | null | undefined): number | null {
   return value === null || value === undefined || !Number.isFinite(value) ? null : value;
 }
 
-/** An estimate and its interval ends as JSON (null for what is not finite), with where it sits at a bound. */
+/**
+ * An estimate and its interval ends as JSON (null for what is not finite), with where it sits at a bound.
+ *
+ * @example
+ * estimateEndsDocument({ estimate: 2, lower: 1, upper: Infinity, atBound: null, lowerAtBound: false, upperAtBound: true }); // { estimate: 2, lower: 1, upper: null, at_bound: null }
+ */
 export function estimateEndsDocument(estimate: ParameterEstimate): Pick<EstimateView, 'estimate' | 'lower' | 'upper' | 'at_bound'> {
   return {
     estimate: finiteOrNull(estimate.estimate),
@@ -35,7 +47,12 @@ function estimateDocument(estimate: ParameterEstimate): EstimateView {
   };
 }
 
-/** What a ranked model of any kind (one trait, or several traits in `joint`) reports of its place in the AICc table, as JSON fields in this order. */
+/**
+ * What a ranked model of any kind (one trait, or several traits in `joint`) reports of its place in the AICc table, as JSON fields in this order.
+ *
+ * @example
+ * rankingDocument({ id: 'stasis', label: 'stasis', k: 2, logLik: -3, aicc: NaN, deltaAicc: null, weight: 1 }); // { id: 'stasis', label: 'stasis', k: 2, logLik: -3, aicc: null, delta_aicc: null, weight: 1 }
+ */
 export function rankingDocument(model: { id: string; label: string; k: number; logLik: number | null; aicc: number | null; deltaAicc: number | null; weight: number | null }): { id: string; label: string; k: number; logLik: number | null; aicc: number | null; delta_aicc: number | null; weight: number | null } {
   return {
     id: model.id,
@@ -48,7 +65,16 @@ export function rankingDocument(model: { id: string; label: string; k: number; l
   };
 }
 
-/** The JSON form of one ranked model fit. */
+/**
+ * The JSON form of one ranked model fit.
+ *
+ * @example
+ * // Strict stasis with unit sampling variances, means 1, 3, 2: mean 2, logL = -1.5 ln 2 pi - 1 (closed form).
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 3, 2], samplingVariance: [1, 1, 1] });
+ * const model = modelDocument(fitLineage(lineage, [strictStasis], { intervals: false }).models[0]);
+ * [model.id, model.k, model.weight, model.params.stasis_mean.estimate]; // ['strict-stasis', 1, 1, 2]
+ * model.logLik; // -3.7568155996140176 (to 1e-12)
+ */
 export function modelDocument(model: RankedFit): ModelView {
   return {
     ...rankingDocument(model),
@@ -63,7 +89,15 @@ export function modelDocument(model: RankedFit): ModelView {
   };
 }
 
-/** The JSON form of one lineage's fit, including its data so figures can be redrawn without refitting. */
+/**
+ * The JSON form of one lineage's fit, including its data so figures can be redrawn without refitting.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 3, 2], samplingVariance: [1, 1, 1] });
+ * const document = lineageDocument(fitLineage(lineage, [strictStasis, randomWalk], { intervals: false }));
+ * [document.section, document.trait, document.horizons, document.best_model]; // ['A', 'length', 3, 'strict-stasis']
+ * document.models[1].not_compared_reason; // 'not compared: N - K - 1 = 0 <= 0 (too few horizons for K = 2)'
+ */
 export function lineageDocument(fit: LineageFit): LineageView {
   const { lineage } = fit;
   const list = (values: ArrayLike<number>): (number | null)[] => Array.from(values, (value) => finiteOrNull(value));
@@ -151,6 +185,13 @@ export interface FitDocument extends FitDocumentView {
  * so a block cannot be added after the fact (give it in `blocks`).
  * Keys in this order: provenance, model_set, lineages, warnings, then
  * age_model, age_uncertainty and compilation when given.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1, 2], mean: [1, 3, 2], samplingVariance: [1, 1, 1] });
+ * const provenance = { tool: 'stratotrend', version: '0.1.0', inputs: [{ file: 'a.csv', sha256: '0' }], options: {} };
+ * const document = fitDocument([fitLineage(lineage, [strictStasis, randomWalk], { intervals: false })], provenance, [], 'classic');
+ * Object.keys(document); // ['provenance', 'model_set', 'lineages', 'warnings']
+ * Object.isFrozen(document); // true
  */
 export function fitDocument(fits: readonly LineageFit[], provenance: Provenance, warnings: readonly Warning[], modelSet: string, blocks: FitDocumentBlocks = {}): FitDocument {
   const { lineageBlocks, ageModel, ageUncertainty, compilation } = blocks;

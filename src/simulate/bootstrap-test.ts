@@ -77,6 +77,11 @@ export interface NestingTest {
  * Stream of the replicate seeds of the nesting test of `id`: 41 + the
  * model's place among the models that declare `nests`, in registry order
  * (models registered later get later streams, so a seed keeps its draws).
+ *
+ * @example
+ * allModels().filter((model) => model.nests !== undefined).map((model) => model.id); // ['accelerating-walk', 'moving-optimum', 'optimum-shift']
+ * nestingStream('accelerating-walk'); // 41
+ * nestingStream('optimum-shift'); // 43
  */
 export function nestingStream(id: string): number {
   return 41 + allModels().filter((model) => model.nests !== undefined).findIndex((model) => model.id === id);
@@ -87,6 +92,12 @@ export function nestingStream(id: string): number {
  * model: its own estimates, or, when it was fitted at a limit where some of
  * its parameters are not finite, the model it equals there (as figures draw
  * it: `EvolutionModel.limitDrawing`). Null when neither gives finite values.
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 2, 3], mean: [0, 1, 3, 4], samplingVariance: [1e-12, 1e-12, 1e-12, 1e-12] });
+ * const generator = nullGenerator(fitModel(randomWalk, lineage, { intervals: false }));
+ * generator.model; // 'random-walk'
+ * generator.parameters.step_variance; // 2 (to 1e-6; the mean squared increment (1 + 4 + 1) / 3, closed form)
  */
 export function nullGenerator(fitted: ModelFit): { model: string; parameters: Record<string, number> } | null {
   const definition = findModel(fitted.id);
@@ -124,6 +135,14 @@ function summary(values: number[]): DistributionSummary {
  *
  * Davison, A. C. & Hinkley, D. V. (1997). Bootstrap Methods and their
  * Application, ch. 4. Cambridge University Press.
+ *
+ * @example
+ * // A small seeded run (9 replicates); the command's default is larger.
+ * const lineage = lineageFromArrays({ time: [0, 1, 2, 3, 4, 5, 6, 7], mean: [0, 1.1, 1.9, 3.2, 3.9, 5.1, 6, 7.2], samplingVariance: Array(8).fill(0.01) });
+ * const fit = fitLineage(lineage, classicModels, { intervals: false });
+ * const report = await bootstrapTests(fit, 9, 1, poolRunner({ threads: 1 }), undefined, { nested: true, nonNested: false });
+ * [report.nested.full, report.nested.reduced, report.non_nested]; // ['directional-walk', 'random-walk', null]
+ * report.nested.p_bootstrap; // 0.1 (no replicate reached the observed statistic: (0 + 1) / (9 + 1))
  */
 export async function bootstrapTests(
   fit: LineageFit,
@@ -198,6 +217,14 @@ export async function bootstrapTests(
  *
  * @param minimumSegment fewest horizons per segment of a shift model, as the observed fit used (absent: the model's default)
  * @throws Error when `id` is not a model that nests another (the CLI checks first)
+ *
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 2, 3, 4, 5, 6, 7], mean: [0, 1.1, 1.9, 3.2, 3.9, 5.1, 6, 7.2], samplingVariance: Array(8).fill(0.01) });
+ * const fit = fitLineage(lineage, [randomWalk, acceleratingWalk], { intervals: false });
+ * const test = await nestingTest(fit, 'accelerating-walk', 9, 1, poolRunner({ threads: 1 }));
+ * [test.reduced, test.condition, test.null_distribution.replicates]; // ['random-walk', 'rate_change = 0', 9]
+ * await nestingTest(fit, 'random-walk', 9, 1, poolRunner({ threads: 1 }));
+ * // throws: model "random-walk" nests no other model
  */
 export async function nestingTest(
   fit: LineageFit,

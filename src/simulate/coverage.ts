@@ -43,6 +43,13 @@ export interface CoverageResult {
  * Simulate one lineage from the model at the true parameters on the design
  * (seed from (seed, index) only), fit it, and build each method's 95%
  * interval for each named parameter. A pure function of the task.
+ *
+ * @example
+ * const design = { time: [0, 1, 2, 3, 4, 5], count: [5, 5, 5, 5, 5, 5], withinVariance: [0.1, 0.1, 0.1, 0.1, 0.1, 0.1], timeUnit: 'Myr' };
+ * const result = coverageReplicate({ design, model: 'random-walk', parameters: { ancestral_mean: 0, step_variance: 1 }, names: ['step_variance'], methods: ['profile'], seed: 1, index: 0 });
+ * const interval = result.intervals.profile.step_variance;
+ * interval.covered === (interval.lower <= 1 && 1 <= interval.upper); // true
+ * result.converged; // true
  */
 export function coverageReplicate(task: CoverageTask): CoverageResult {
   const model = findModel(task.model);
@@ -97,7 +104,13 @@ export interface CoverageSummary {
   readonly fallback: Record<string, number>;
 }
 
-/** Fractions of covering intervals over replicate results. */
+/**
+ * Fractions of covering intervals over replicate results.
+ *
+ * @example
+ * const result = { index: 0, converged: true, intervals: { profile: { step_variance: { lower: 0.3, upper: 4.8, covered: true } } }, fallbacks: { profile: false } };
+ * summariseCoverage([result, { ...result, converged: false }], ['profile'], ['step_variance']); // { replicates: 2, converged: 1, coverage: { profile: { step_variance: 1 } }, fallback: { profile: 0 } } (over converged replicates)
+ */
 export function summariseCoverage(results: readonly CoverageResult[], methods: readonly string[], names: readonly string[]): CoverageSummary {
   const converged = results.filter((result) => result.converged);
   const coverage: Record<string, Record<string, number>> = {};

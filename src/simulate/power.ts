@@ -121,6 +121,9 @@ const allModels = (): string[] => classicModels.map((model) => model.id);
  * standard error of the drift estimate on this design (a Wald test at 5%
  * reaches 80% power near 2.8 standard errors, so the grid spans the whole
  * rise of the power curve).
+ *
+ * @example
+ * defaultDrifts(2); // [0, 1, 2, 3, 4, 5, 6, 7, 8, 10] (0 to 5 standard errors)
  */
 export function defaultDrifts(standardError: number): number[] {
   return [0, 0.5, 1, 1.5, 2, 2.5, 3, 3.5, 4, 5].map((multiple) => multiple * standardError);
@@ -135,6 +138,15 @@ export function defaultDrifts(standardError: number): number[] {
  * same step variance), i.e. a parametric bootstrap at the fitted null.
  * Pure apart from the injected runner; seeds come from (seed, grid point,
  * replicate) only.
+ *
+ * @example
+ * // A small seeded run (9 replicates per drift); the real command uses hundreds.
+ * const design = { time: [0, 1, 2, 3, 4, 5], count: [5, 5, 5, 5, 5, 5], withinVariance: [0.1, 0.1, 0.1, 0.1, 0.1, 0.1], timeUnit: 'Myr' };
+ * const plan = { design, stepVariance: 0.1, ancestralMean: 0, drifts: [1], replicates: 9, seed: 1, coverage: false, models: ['random-walk', 'directional-walk'] };
+ * const report = await powerAnalysis(plan, poolRunner({ threads: 1 }));
+ * report.grid.map((point) => point.drift); // [0, 1] (0 added: the false-trend rate)
+ * report.lrt.chi_square_critical_value; // 3.841458820694124 (to 1e-9; the chi-square(1) 95% quantile, common practice)
+ * report.settings.pooled_within_sd; // 0.31622776601683794 (to 1e-15; sqrt(0.1))
  */
 export async function powerAnalysis(plan: PowerPlan, runner: ReplicateRunner, progress?: PowerProgress): Promise<PowerReport> {
   const level = plan.level ?? 0.05;
@@ -187,7 +199,14 @@ export async function powerAnalysis(plan: PowerPlan, runner: ReplicateRunner, pr
   };
 }
 
-/** The three decision rules' rates over a set of replicates. */
+/**
+ * The three decision rules' rates over a set of replicates.
+ *
+ * @example
+ * const r1 = { stream: 0, index: 0, logLik: { 'random-walk': -5, 'directional-walk': -2 }, aicc: {}, weight: { 'directional-walk': 0.7 }, best: 'directional-walk', estimates: {} };
+ * const r2 = { stream: 0, index: 1, logLik: { 'random-walk': -5, 'directional-walk': -4.5 }, aicc: {}, weight: { 'directional-walk': 0.2 }, best: 'random-walk', estimates: {} };
+ * rates([r1, r2], 0.5, 3.84); // { p_best: 0.5, p_weight: 0.5, p_lrt: 0.5 } (only r1: best, weight 0.7 > 0.5, statistic 6 > 3.84)
+ */
 export function rates(results: readonly FitReplicateResult[], threshold: number, critical: number): { p_best: number; p_weight: number; p_lrt: number } {
   let best = 0;
   let weight = 0;
@@ -205,7 +224,13 @@ export function rates(results: readonly FitReplicateResult[], threshold: number,
   return { p_best: share(best), p_weight: share(weight), p_lrt: share(rejected) };
 }
 
-/** First point where a rising curve reaches `target`, linearly interpolated between grid points; null when never. */
+/**
+ * First point where a rising curve reaches `target`, linearly interpolated between grid points; null when never.
+ *
+ * @example
+ * firstCrossing([[0, 0.05], [1, 0.5], [2, 0.9]], 0.8); // 1.75 (linear between (1, 0.5) and (2, 0.9))
+ * firstCrossing([[0, 0.05], [1, 0.5]], 0.8); // null (never reached)
+ */
 export function firstCrossing(points: readonly (readonly [number, number])[], target: number): number | null {
   for (let i = 0; i < points.length; i++) {
     const [x, y] = points[i];

@@ -92,6 +92,13 @@ const simulators = new WeakMap<Lineage, Map<string, (random: RandomSource) => Fl
 /**
  * Run one replicate. Its random stream depends on (seed, stream, index)
  * only, so the result is the same on any thread and in any order.
+ *
+ * @example
+ * const design = { time: [0, 1, 2, 3, 4, 5], count: [5, 5, 5, 5, 5, 5], withinVariance: [0.1, 0.1, 0.1, 0.1, 0.1, 0.1], timeUnit: 'Myr' };
+ * const task = { design, generator: 'random-walk', parameters: { ancestral_mean: 0, step_variance: 1 }, fit: ['random-walk', 'directional-walk'], seed: 1, stream: 0, index: 0 };
+ * const result = fitReplicate(task);
+ * Object.keys(result.logLik); // ['random-walk', 'directional-walk']
+ * JSON.stringify(fitReplicate(task)) === JSON.stringify(result); // true (the stream depends on seed, stream and index only)
  */
 export function fitReplicate(task: FitReplicateTask): FitReplicateResult {
   const generator = modelById(task.generator);
@@ -117,6 +124,11 @@ export function fitReplicate(task: FitReplicateTask): FitReplicateResult {
  * Likelihood-ratio statistic 2 (logL_full - logL_reduced) of a replicate,
  * floored at 0 (the nested maximum can only be lower up to search
  * tolerance); null when either model was not fitted.
+ *
+ * @example
+ * const result = { stream: 0, index: 0, logLik: { 'random-walk': -5, 'directional-walk': -2 }, aicc: {}, weight: {}, best: 'directional-walk', estimates: {} };
+ * ratioStatistic(result, 'directional-walk', 'random-walk'); // 6 (2 × (-2 - (-5)))
+ * ratioStatistic(result, 'directional-walk', 'ou'); // null (not fitted)
  */
 export function ratioStatistic(result: FitReplicateResult, full: string, reduced: string): number | null {
   const upper = result.logLik[full];

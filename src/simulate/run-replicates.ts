@@ -21,6 +21,13 @@ export interface ReplicateRunner {
  * The replicate runner on the project's worker pool (`src/parallel/pool.ts`).
  * Each task carries its own seed coordinates, so any thread count gives the
  * same results in the same order.
+ *
+ * @example
+ * const design = { time: [0, 1, 2, 3, 4, 5], count: [5, 5, 5, 5, 5, 5], withinVariance: [0.1, 0.1, 0.1, 0.1, 0.1, 0.1], timeUnit: 'Myr' };
+ * const task = { design, generator: 'random-walk', parameters: { ancestral_mean: 0, step_variance: 1 }, fit: ['random-walk'], seed: 1, stream: 0, index: 0 };
+ * const results = await poolRunner({ threads: 1 }).fits([task, { ...task, index: 1 }]);
+ * results.map((result) => result.index); // [0, 1] (in task order)
+ * JSON.stringify(results[0]) === JSON.stringify(fitReplicate(task)); // true (threads: 1 runs inline; any thread count gives the same)
  */
 export function poolRunner(options: ReplicateRunOptions = {}): ReplicateRunner {
   const here = import.meta.url;

@@ -18,7 +18,13 @@ export interface SimulationRequest {
   readonly form: 'summary' | 'specimen';
 }
 
-/** Numbers as text: 10 significant digits, no trailing zeros (deterministic, and read back exactly enough). */
+/**
+ * Numbers as text: 10 significant digits, no trailing zeros (deterministic, and read back exactly enough).
+ *
+ * @example
+ * formatValue(1 / 3); // '0.3333333333' (10 significant digits)
+ * formatValue(2.5e-12); // '2.5e-12'
+ */
 export function formatValue(value: number): string {
   return String(Number(value.toPrecision(10)));
 }
@@ -45,6 +51,12 @@ function quoteCell(text: string): string {
  * sample variance scatters as a real sample's would.
  *
  * Seeds come from (seed, replicate, lineage) only: same seed, same bytes.
+ *
+ * @example
+ * const design = lineageFromArrays({ section: 'A', trait: 'length', time: [0, 1], mean: [0, 0], samplingVariance: [0.1, 0.1], count: [4, 4] });
+ * const table = simulatedTable({ model: randomWalk, designs: [design], parameters: [{ ancestral_mean: 5, step_variance: 0.1 }], replicates: 1, seed: 1, form: 'summary' });
+ * table.split('\n')[0]; // 'section,trait,time,n,mean,sd'
+ * table.split('\n')[1].split(',').slice(-1)[0]; // '0.632455532' (the design's within sd, sqrt(0.4))
  */
 export function simulatedTable(request: SimulationRequest): string {
   // Heights and depths placed by an age model are written as those ages (firstAge - t), so the file reads back without the tie file.

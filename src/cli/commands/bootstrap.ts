@@ -7,7 +7,14 @@ function nestingChoices(): string {
   return allModels().flatMap((model) => (model.nests ? [`${model.id} (${model.nests.condition}: ${model.nests.model})`] : [])).join(', ');
 }
 
-/** Define `stratotrend bootstrap`; the action loads the simulation code only when run. */
+/**
+ * Define `stratotrend bootstrap`; the action loads the simulation code only when run.
+ *
+ * @example
+ * const program = buildProgram().createCommand('stratotrend');
+ * defineBootstrapCommand(program);
+ * program.commands.map((command) => command.name()); // ['bootstrap']
+ */
 export function defineBootstrapCommand(program: Command): void {
   addAgeModelOptions(addSampleOptions(
     program

@@ -4,6 +4,11 @@ import { addAgeModelOptions, addSampleOptions } from './shared.js';
 /**
  * Define `stratotrend compare`. The action imports the comparison code only
  * when the command runs.
+ *
+ * @example
+ * const program = buildProgram().createCommand('stratotrend');
+ * defineCompareCommand(program);
+ * program.commands.map((command) => command.name()); // ['compare']
  */
 export function defineCompareCommand(program: Command): void {
   addAgeModelOptions(

@@ -8,6 +8,11 @@ import { addAgeModelOptions, addFittingOptions, addSampleOptions } from './share
 /**
  * Define `stratotrend fit`. The action imports the fitting code only when
  * the command runs, so defining commands stays cheap.
+ *
+ * @example
+ * const program = buildProgram().createCommand('stratotrend');
+ * defineFitCommand(program);
+ * program.commands.map((command) => command.name()); // ['fit']
  */
 export function defineFitCommand(program: Command): void {
   addFigureOptions(addFittingOptions(addAgeModelOptions(addSampleOptions(

@@ -4,6 +4,11 @@ import { addAgeModelOptions, addSampleOptions } from './shared.js';
 /**
  * Define `stratotrend joint`: several traits of one lineage fitted
  * together. The action imports the fitting code only when the command runs.
+ *
+ * @example
+ * const program = buildProgram().createCommand('stratotrend');
+ * defineJointCommand(program);
+ * program.commands.map((command) => command.name()); // ['joint']
  */
 export function defineJointCommand(program: Command): void {
   addAgeModelOptions(addSampleOptions(

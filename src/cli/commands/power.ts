@@ -1,7 +1,14 @@
 import type { Command } from 'commander';
 import { addAgeModelOptions, addSampleOptions } from './shared.js';
 
-/** Define `stratotrend power`; the action loads the simulation code only when run. */
+/**
+ * Define `stratotrend power`; the action loads the simulation code only when run.
+ *
+ * @example
+ * const program = buildProgram().createCommand('stratotrend');
+ * definePowerCommand(program);
+ * program.commands[0].options.some((option) => option.long === '--no-coverage'); // true
+ */
 export function definePowerCommand(program: Command): void {
   addAgeModelOptions(addSampleOptions(
     program

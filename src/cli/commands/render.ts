@@ -1,6 +1,12 @@
 import type { Command } from 'commander';
 
-/** Figure options shared by `fit --out` and `redraw` (parsed and checked when the figures are drawn). */
+/**
+ * Figure options shared by `fit --out` and `redraw` (parsed and checked when the figures are drawn).
+ *
+ * @example
+ * const command = addFigureOptions(buildProgram().createCommand('redraw'));
+ * command.options.map((option) => option.long).slice(0, 3); // ['--figure-format', '--figure-width', '--dpi']
+ */
 export function addFigureOptions(command: Command): Command {
   return command
     .option('--figure-format <list>', 'figure files: png, svg, pdf, or a comma-separated list such as png,pdf', 'png')
@@ -18,6 +24,11 @@ export function addFigureOptions(command: Command): Command {
  * Define `stratotrend redraw`: draw the figures again from a saved fit.json
  * with other figure options, without refitting. The chart stack is loaded
  * only when the command runs.
+ *
+ * @example
+ * const program = buildProgram().createCommand('stratotrend');
+ * defineRedrawCommand(program);
+ * program.commands.map((command) => command.name()); // ['redraw']
  */
 export function defineRedrawCommand(program: Command): void {
   addFigureOptions(

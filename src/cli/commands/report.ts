@@ -4,6 +4,11 @@ import { addAgeModelOptions, addFittingOptions, addSampleOptions } from './share
 /**
  * Define `stratotrend report`. The action imports the fitting and report
  * code only when the command runs.
+ *
+ * @example
+ * const program = buildProgram().createCommand('stratotrend');
+ * defineReportCommand(program);
+ * program.commands.map((command) => command.name()); // ['report']
  */
 export function defineReportCommand(program: Command): void {
   addFittingOptions(addAgeModelOptions(addSampleOptions(

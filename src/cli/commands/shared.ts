@@ -5,6 +5,10 @@ import { Option, type Command } from 'commander';
  * `--trait-unit` for commands that print no trait quantities (bootstrap's
  * likelihood ratios and AICc differences have no unit; simulate writes a
  * samples CSV, which has no unit column).
+ *
+ * @example
+ * const command = addSampleOptions(buildProgram().createCommand('fit'));
+ * command.options.map((option) => option.long); // ['--log', '--pool', '--time-unit', '--trait-unit', '--delimiter', '--decimal-comma', '--debug']
  */
 export function addSampleOptions(command: Command, { traitUnit = true }: { traitUnit?: boolean } = {}): Command {
   command
@@ -31,6 +35,10 @@ export function addSampleOptions(command: Command, { traitUnit = true }: { trait
  * `--extrapolate`, and with `draws` (fit, compare: the commands whose
  * conclusions the draws move) `--age-draws` and its `--seed`. The actions
  * read them through `src/cli/age-model-options.ts`.
+ *
+ * @example
+ * const command = addAgeModelOptions(buildProgram().createCommand('power'), { draws: false });
+ * command.options.map((option) => option.long); // ['--age-model', '--extrapolate']
  */
 export function addAgeModelOptions(command: Command, { draws = true }: { draws?: boolean } = {}): Command {
   command
@@ -53,7 +61,8 @@ export function addAgeModelOptions(command: Command, { draws = true }: { draws?:
  * `extensionSettings` (`src/cli/fit-extensions.ts`) and `intervalOptions`.
  *
  * @example
- * addFittingOptions(program.command('fit')).option('--json', '...');
+ * const command = addFittingOptions(buildProgram().createCommand('fit'));
+ * command.options.map((option) => option.long).slice(0, 3); // ['--models', '--min-segment', '--covariate-file']
  */
 export function addFittingOptions(command: Command): Command {
   return command

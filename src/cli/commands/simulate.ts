@@ -1,7 +1,14 @@
 import type { Command } from 'commander';
 import { addAgeModelOptions, addSampleOptions } from './shared.js';
 
-/** Define `stratotrend simulate`; the action loads the simulation code only when run. */
+/**
+ * Define `stratotrend simulate`; the action loads the simulation code only when run.
+ *
+ * @example
+ * const program = buildProgram().createCommand('stratotrend');
+ * defineSimulateCommand(program);
+ * program.commands.map((command) => command.name()); // ['simulate']
+ */
 export function defineSimulateCommand(program: Command): void {
   addAgeModelOptions(addSampleOptions(
     program
