@@ -5,6 +5,7 @@
  * All maximise (or find roots of) plain functions and never throw on
  * non-finite values: -Infinity and NaN count as "worst".
  */
+import { bracketedRoot } from './root-find.js';
 
 const goldenSection = 0.3819660112501051;
 
@@ -130,58 +131,13 @@ export function gridMaximize(f: (x: number) => number, lower: number, upper: num
  * findRoot((x) => x * x + 1, 0, 2); // NaN (no sign change)
  */
 export function findRoot(f: (x: number) => number, lower: number, upper: number, tolerance = 1e-12, maxIterations = 200): number {
-  let a = lower;
-  let b = upper;
-  let fa = f(a);
-  let fb = f(b);
-  if (fa === 0) return a;
-  if (fb === 0) return b;
+  const fa = f(lower);
+  const fb = f(upper);
+  if (fa === 0) return lower;
+  if (fb === 0) return upper;
   if (!(fa * fb < 0)) return Number.NaN;
-  let c = a;
-  let fc = fa;
-  let d = b - a;
-  let e = d;
-  for (let iteration = 0; iteration < maxIterations; iteration++) {
-    if (fb * fc > 0) {
-      c = a; fc = fa; d = b - a; e = d;
-    }
-    if (Math.abs(fc) < Math.abs(fb)) {
-      a = b; b = c; c = a;
-      fa = fb; fb = fc; fc = fa;
-    }
-    const tol1 = 2 * Number.EPSILON * Math.abs(b) + 0.5 * tolerance * Math.max(1, Math.abs(b));
-    const middle = 0.5 * (c - b);
-    if (Math.abs(middle) <= tol1 || fb === 0) return b;
-    if (Math.abs(e) >= tol1 && Math.abs(fa) > Math.abs(fb)) {
-      const s = fb / fa;
-      let p: number;
-      let q: number;
-      if (a === c) {
-        p = 2 * middle * s;
-        q = 1 - s;
-      } else {
-        const qa = fa / fc;
-        const r = fb / fc;
-        p = s * (2 * middle * qa * (qa - r) - (b - a) * (r - 1));
-        q = (qa - 1) * (r - 1) * (s - 1);
-      }
-      if (p > 0) q = -q;
-      p = Math.abs(p);
-      if (2 * p < Math.min(3 * middle * q - Math.abs(tol1 * q), Math.abs(e * q))) {
-        e = d;
-        d = p / q;
-      } else {
-        d = middle; e = d;
-      }
-    } else {
-      d = middle; e = d;
-    }
-    a = b;
-    fa = fb;
-    b += Math.abs(d) > tol1 ? d : middle > 0 ? tol1 : -tol1;
-    fb = f(b);
-  }
-  return b;
+  // The iteration itself is the one root-find.ts runs from end values it already knows.
+  return bracketedRoot(f, lower, fa, upper, fb, tolerance, maxIterations);
 }
 
 /** Options of {@link nelderMead}. */

@@ -89,8 +89,8 @@ export function profileCrossing(gap: (x: number) => number, from: number, fromGa
  * Brent's root finder on [inside, outside], f(inside) = insideValue > 0 and
  * f(outside) = outsideValue < 0 already known (the step-out evaluated them),
  * to the tolerance of {@link CrossingOptions}. The same iteration as
- * Brent (1973), chapter 4, which `findRoot` in optimise.ts follows; here the
- * two end values are not evaluated again.
+ * Brent (1973), chapter 4; `findRoot` in optimise.ts evaluates the two ends
+ * and then runs this. Here the two end values are not evaluated again.
  *
  * @example
  * bracketedRoot((x) => 2 - x * x, 0, 2, 2, -2, 1e-15); // 1.414213562373095
