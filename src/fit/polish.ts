@@ -151,22 +151,11 @@ export function polishMaximum(
       }
     }
     if (!gradient.every(Number.isFinite) || !hessian.every((row) => row.every(Number.isFinite))) return unchanged;
-    let step = newtonStep(hessian, gradient);
-    if (step === null || step.some((value) => Math.abs(value) > stepLimit)) return unchanged;
-    let trial = logs.map((value, j) => value + (step as number[])[j]);
-    let value = at(trial);
-    // Tiny steps are taken as they are (their value differs by rounding only); larger ones must not go downhill.
-    let halvings = 0;
-    for (; options.backtrack && halvings < 20 && step.some((entry) => Math.abs(entry) > quadraticEnough) && !(value >= centreValue); halvings++) {
-      step = step.map((entry) => entry / 2);
-      trial = logs.map((entry, j) => entry + (step as number[])[j]);
-      value = at(trial);
-    }
-    if (!Number.isFinite(value)) return unchanged;
-    logs = trial;
-    centreValue = value;
-    // Newton converges quadratically: after a step this small the next would be below rounding.
-    if (halvings === 0 && step.every((entry) => Math.abs(entry) <= quadraticEnough)) {
+    const moved = newtonMove(logs, hessian, gradient, centreValue, at, stepLimit, options.backtrack === true);
+    if (moved === null) return unchanged;
+    logs = moved.logs;
+    centreValue = moved.value;
+    if (moved.converged) {
       converged = true;
       break;
     }
@@ -252,29 +241,53 @@ function polishWithGradient(
       }
       hessian = rows;
     }
-    let step = newtonStep(hessian, slopes);
-    if (step === null || step.some((value) => Math.abs(value) > stepLimit)) return unchanged;
-    let trial = logs.map((value, j) => value + (step as number[])[j]);
-    let value = valueAt(trial);
-    let halvings = 0;
-    for (; options.backtrack && halvings < 20 && step.some((entry) => Math.abs(entry) > quadraticEnough) && !(value >= centreValue); halvings++) {
-      step = step.map((entry) => entry / 2);
-      trial = logs.map((entry, j) => entry + (step as number[])[j]);
-      value = valueAt(trial);
-    }
-    if (!Number.isFinite(value)) return unchanged;
-    logs = trial;
-    centreValue = value;
-    if (halvings === 0 && step.every((entry) => Math.abs(entry) <= quadraticEnough)) {
+    const moved = newtonMove(logs, hessian, slopes, centreValue, valueAt, stepLimit, options.backtrack === true);
+    if (moved === null) return unchanged;
+    logs = moved.logs;
+    centreValue = moved.value;
+    if (moved.converged) {
       converged = true;
       break;
     }
-    if (step.some((entry) => Math.abs(entry) > 1e-2)) hessian = null;
+    if (moved.step.some((entry) => Math.abs(entry) > 1e-2)) hessian = null;
   }
   if (centreValue < start.logLik - 1e-12 * (1 + Math.abs(start.logLik))) return unchanged;
   const process = start.process.slice();
   free.forEach((level, j) => (process[level] = Math.exp(logs[j])));
   return { process, logLik: centreValue, converged };
+}
+
+/**
+ * One Newton step from `logs` (ln-scale process values) with the given
+ * gradient and Hessian, halved (with `backtrack`) while it goes downhill;
+ * tiny steps are taken as they are, since their value differs by rounding
+ * only. Null when the step cannot be taken (singular Hessian, a step longer
+ * than `stepLimit`, or a non-finite value); `converged` when an undamped step
+ * was below {@link quadraticEnough} (Newton converges quadratically: the next
+ * step would be below rounding). Both polishes take their steps here: the
+ * finite-difference one and the one on the analytic gradient.
+ */
+function newtonMove(
+  logs: readonly number[],
+  hessian: readonly (readonly number[])[],
+  gradient: readonly number[],
+  centreValue: number,
+  at: (logs: number[]) => number,
+  stepLimit: number,
+  backtrack: boolean,
+): { logs: number[]; value: number; step: number[]; converged: boolean } | null {
+  let step = newtonStep(hessian, gradient);
+  if (step === null || step.some((value) => Math.abs(value) > stepLimit)) return null;
+  let trial = logs.map((value, j) => value + (step as number[])[j]);
+  let value = at(trial);
+  let halvings = 0;
+  for (; backtrack && halvings < 20 && step.some((entry) => Math.abs(entry) > quadraticEnough) && !(value >= centreValue); halvings++) {
+    step = step.map((entry) => entry / 2);
+    trial = logs.map((entry, j) => entry + (step as number[])[j]);
+    value = at(trial);
+  }
+  if (!Number.isFinite(value)) return null;
+  return { logs: trial, value, step, converged: halvings === 0 && step.every((entry) => Math.abs(entry) <= quadraticEnough) };
 }
 
 /**
