@@ -103,10 +103,34 @@ export function foldRow(sums: WhitenedSums, row: Float64Array, offset: number): 
  * sums.residual; // 2 (to 1e-12; squares about the mean 2)
  */
 export function whiten(space: StateSpace, data: Float64Array, sums: WhitenedSums, work: Float64Array): WhitenedSums {
+  return whitenRows(space, data, sums, work, 0, null, false);
+}
+
+/**
+ * The loop of {@link whiten}, able to stop after row `split - 1` to keep its
+ * state in `state` (when `resume` is false), or to start at row `split` from
+ * a kept state (`resume`): for shift models whose rows before the shift
+ * depend only on the first process values (`fit/prefix-filter.ts`). With
+ * `state` null it is `whiten`. The kept state: the filtered latent
+ * deviations of the data and of every design column, the filtered variance,
+ * the running ln det (sum of logs and the pending product), the singular
+ * flag and the QR factor so far (residual, R, z); its length is
+ * 2 (width + 1) + 4 + width^2.
+ *
+ * @example
+ * const space = allocateStateSpace(3, 1, Float64Array.of(1, 1, 1)); space.design.fill(1);
+ * const data = Float64Array.of(1, 3, 2);
+ * const state = new Float64Array(2 * 2 + 4 + 1);
+ * const first = whitenRows(space, data, allocateSums(3, 1), new Float64Array(workSize(1)), 2, state, false).residual;
+ * const resumed = whitenRows(space, data, allocateSums(3, 1), new Float64Array(workSize(1)), 2, state, true).residual;
+ * first; // 2 (to 1e-12; squares about the mean 2)
+ * resumed === first; // true (the second pass resumed after two rows, the same sums bit for bit)
+ */
+export function whitenRows(space: StateSpace, data: Float64Array, sums: WhitenedSums, work: Float64Array, split: number, state: Float64Array | null, resume: boolean): WhitenedSums {
   const { size, width, transition, processVariance, observationVariance, design } = space;
-  sums.triangle.fill(0);
-  sums.projected.fill(0);
-  sums.residual = 0;
+  const triangle = sums.triangle;
+  const projected = sums.projected;
+  const rowOffset = width + 1;
   // ln det V: innovation variances are multiplied together and the logarithm
   // taken only when the product leaves [1e-200, 1e200] (one log per many
   // horizons instead of one per horizon; a factor outside [1e-100, 1e100] is
@@ -116,10 +140,37 @@ export function whiten(space: StateSpace, data: Float64Array, sums: WhitenedSums
   let singular = false;
   // work[0] is the filtered latent deviation of the data, work[1 + j] that of
   // column j; work[width + 1 ..] holds this row's whitened values for foldRow.
-  const rowOffset = width + 1;
-  work.fill(0, 0, width + 1);
   let filteredVariance = 0;
-  for (let i = 0; i < size; i++) {
+  let start = 0;
+  if (resume && state !== null) {
+    let at = 0;
+    for (let j = 0; j <= width; j++) work[j] = state[at++];
+    filteredVariance = state[at++];
+    sumLogVariance = state[at++];
+    product = state[at++];
+    singular = state[at++] === 1;
+    sums.residual = state[at++];
+    for (let j = 0; j < triangle.length; j++) triangle[j] = state[at++];
+    for (let j = 0; j < projected.length; j++) projected[j] = state[at++];
+    start = split;
+  } else {
+    triangle.fill(0);
+    projected.fill(0);
+    sums.residual = 0;
+    work.fill(0, 0, width + 1);
+  }
+  for (let i = start; i < size; i++) {
+    if (i === split && state !== null && !resume) {
+      let at = 0;
+      for (let j = 0; j <= width; j++) state[at++] = work[j];
+      state[at++] = filteredVariance;
+      state[at++] = sumLogVariance;
+      state[at++] = product;
+      state[at++] = singular ? 1 : 0;
+      state[at++] = sums.residual;
+      for (let j = 0; j < triangle.length; j++) state[at++] = triangle[j];
+      for (let j = 0; j < projected.length; j++) state[at++] = projected[j];
+    }
     const phi = i === 0 ? 0 : transition[i];
     const predictedVariance = phi * phi * filteredVariance + processVariance[i];
     const innovationVariance = predictedVariance + observationVariance[i];

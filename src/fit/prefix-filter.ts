@@ -1,4 +1,4 @@
-import { foldRow, type WhitenedSums } from '../engine/kalman-filter.js';
+import { whitenRows, type WhitenedSums } from '../engine/kalman-filter.js';
 import type { StateSpace } from '../engine/state-space.js';
 
 /**
@@ -10,10 +10,9 @@ import type { StateSpace } from '../engine/state-space.js';
  * value of the later axes. The shift search varies the later axes most (the
  * nested search holds the outer axis while it searches the inner one), so
  * the state after row s is kept per value of the first axes and the pass
- * resumes from it: the same operations in the same order as
- * `engine/kalman-filter.ts` `whiten` on the rows it runs, so the sums are
- * the same bit for bit (`test/fit/prefix-filter.test.ts` holds the two
- * together).
+ * resumes from it through `whitenRows` of `engine/kalman-filter.ts`, the
+ * loop `whiten` itself runs, so the sums are the same bit for bit
+ * (`test/fit/prefix-filter.test.ts`).
  *
  * The kept state: the filtered latent deviations of the data and of every
  * design column, the filtered variance, the running ln det (sum of logs and
@@ -64,97 +63,16 @@ export class PrefixFilter {
    * was run before. `space` must be filled at `process`.
    */
   whiten(space: StateSpace, data: Float64Array, sums: WhitenedSums, work: Float64Array, process: ArrayLike<number>): WhitenedSums {
-    for (let k = 0; k < this.axes; k++) if (Number.isNaN(process[k])) return filterRows(space, data, sums, work, this.rows, null, false);
+    for (let k = 0; k < this.axes; k++) if (Number.isNaN(process[k])) return whitenRows(space, data, sums, work, this.rows, null, false);
     const key = this.key(process);
     const state = this.kept.get(key);
     if (state !== undefined) {
       this.resumed += 1;
-      return filterRows(space, data, sums, work, this.rows, state, true);
+      return whitenRows(space, data, sums, work, this.rows, state, true);
     }
     if (this.kept.size >= PrefixFilter.keptStates) this.kept.clear();
     const fresh = new Float64Array(this.stateSize);
     this.kept.set(key, fresh);
-    return filterRows(space, data, sums, work, this.rows, fresh, false);
+    return whitenRows(space, data, sums, work, this.rows, fresh, false);
   }
-}
-
-/**
- * The body of `whiten` (engine/kalman-filter.ts), written so that it can
- * stop after row `split - 1` to save its state in `state`, or start at row
- * `split` from a saved state (`resume`). With `state` null it is `whiten`.
- */
-function filterRows(space: StateSpace, data: Float64Array, sums: WhitenedSums, work: Float64Array, split: number, state: Float64Array | null, resume: boolean): WhitenedSums {
-  const { size, width, transition, processVariance, observationVariance, design } = space;
-  const triangle = sums.triangle;
-  const projected = sums.projected;
-  const rowOffset = width + 1;
-  let sumLogVariance = 0;
-  let product = 1;
-  let singular = false;
-  let filteredVariance = 0;
-  let start = 0;
-  if (resume && state !== null) {
-    let at = 0;
-    for (let j = 0; j <= width; j++) work[j] = state[at++];
-    filteredVariance = state[at++];
-    sumLogVariance = state[at++];
-    product = state[at++];
-    singular = state[at++] === 1;
-    sums.residual = state[at++];
-    for (let j = 0; j < triangle.length; j++) triangle[j] = state[at++];
-    for (let j = 0; j < projected.length; j++) projected[j] = state[at++];
-    start = split;
-  } else {
-    triangle.fill(0);
-    projected.fill(0);
-    sums.residual = 0;
-    work.fill(0, 0, width + 1);
-  }
-  for (let i = start; i < size; i++) {
-    if (i === split && state !== null && !resume) {
-      let at = 0;
-      for (let j = 0; j <= width; j++) state[at++] = work[j];
-      state[at++] = filteredVariance;
-      state[at++] = sumLogVariance;
-      state[at++] = product;
-      state[at++] = singular ? 1 : 0;
-      state[at++] = sums.residual;
-      for (let j = 0; j < triangle.length; j++) state[at++] = triangle[j];
-      for (let j = 0; j < projected.length; j++) state[at++] = projected[j];
-    }
-    const phi = i === 0 ? 0 : transition[i];
-    const predictedVariance = phi * phi * filteredVariance + processVariance[i];
-    const innovationVariance = predictedVariance + observationVariance[i];
-    if (!(innovationVariance > 0)) {
-      singular = true;
-      filteredVariance = 0;
-      for (let j = 0; j <= width; j++) work[j] = 0;
-      continue;
-    }
-    const gain = predictedVariance / innovationVariance;
-    const scale = 1 / Math.sqrt(innovationVariance);
-    if (innovationVariance > 1e-100 && innovationVariance < 1e100) {
-      product *= innovationVariance;
-      if (product < 1e-200 || product > 1e200) {
-        sumLogVariance += Math.log(product);
-        product = 1;
-      }
-    } else sumLogVariance += Math.log(innovationVariance);
-    const predictedData = phi * work[0];
-    const dataInnovation = data[i] - predictedData;
-    work[0] = predictedData + gain * dataInnovation;
-    work[rowOffset + width] = dataInnovation * scale;
-    const row = i * width;
-    for (let j = 0; j < width; j++) {
-      const predicted = phi * work[1 + j];
-      const innovation = design[row + j] - predicted;
-      work[1 + j] = predicted + gain * innovation;
-      work[rowOffset + j] = innovation * scale;
-    }
-    foldRow(sums, work, rowOffset);
-    filteredVariance = (predictedVariance * observationVariance[i]) / innovationVariance;
-  }
-  sums.sumLogVariance = sumLogVariance + Math.log(product);
-  sums.singular = singular;
-  return sums;
 }
