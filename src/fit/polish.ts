@@ -115,16 +115,7 @@ export function polishMaximum(
   let logs = free.map((level) => Math.log(start.process[level]));
   if (!logs.every(Number.isFinite)) return unchanged;
   /** Value at these ln values of the free axes, or NaN when a point leaves the nested ranges. */
-  const at = (trial: readonly number[]): number => {
-    const process = start.process.slice();
-    free.forEach((level, j) => (process[level] = Math.exp(trial[j])));
-    for (const level of free) {
-      const [lower, upper] = axes[level].range(lineage, process.slice(0, level));
-      if (!(process[level] >= lower && process[level] <= upper)) return Number.NaN;
-    }
-    const value = evaluate(process);
-    return Number.isFinite(value) ? value : Number.NaN;
-  };
+  const at = (trial: readonly number[]): number => valueOf(evaluate, processWithin(start, free, axes, lineage, trial));
   let centreValue = start.logLik;
   for (let iteration = 0; iteration < (options.iterations ?? iterations); iteration++) {
     const gradient = new Array<number>(dimension);
@@ -160,10 +151,7 @@ export function polishMaximum(
       break;
     }
   }
-  if (centreValue < start.logLik - 1e-12 * (1 + Math.abs(start.logLik))) return unchanged;
-  const process = start.process.slice();
-  free.forEach((level, j) => (process[level] = Math.exp(logs[j])));
-  return { process, logLik: centreValue, converged };
+  return polishedAt(start, free, logs, centreValue, converged);
 }
 
 /**
@@ -196,20 +184,8 @@ function polishWithGradient(
   const h = gradientStencilStep;
   let logs = free.map((level) => Math.log(start.process[level]));
   if (!logs.every(Number.isFinite)) return unchanged;
-  const processAt = (trial: readonly number[]): number[] | null => {
-    const process = start.process.slice();
-    free.forEach((level, j) => (process[level] = Math.exp(trial[j])));
-    for (const level of free) {
-      const [lower, upper] = axes[level].range(lineage, process.slice(0, level));
-      if (!(process[level] >= lower && process[level] <= upper)) return null;
-    }
-    return process;
-  };
-  const valueAt = (trial: readonly number[]): number => {
-    const process = processAt(trial);
-    const value = process === null ? Number.NaN : evaluate(process);
-    return Number.isFinite(value) ? value : Number.NaN;
-  };
+  const processAt = (trial: readonly number[]): number[] | null => processWithin(start, free, axes, lineage, trial);
+  const valueAt = (trial: readonly number[]): number => valueOf(evaluate, processAt(trial));
   /** Gradient in ln units of the free axes, or null outside the ranges or where it is not finite. */
   const slopesAt = (trial: readonly number[]): number[] | null => {
     const process = processAt(trial);
@@ -251,10 +227,50 @@ function polishWithGradient(
     }
     if (moved.step.some((entry) => Math.abs(entry) > 1e-2)) hessian = null;
   }
-  if (centreValue < start.logLik - 1e-12 * (1 + Math.abs(start.logLik))) return unchanged;
+  return polishedAt(start, free, logs, centreValue, converged);
+}
+
+/**
+ * The process values with the free axes at these ln values, or null when one
+ * leaves its nested range (the ranges of later axes depend on earlier ones).
+ */
+function processWithin(
+  start: { readonly process: readonly number[] },
+  free: readonly number[],
+  axes: readonly ProcessAxis[],
+  lineage: Lineage,
+  trial: readonly number[],
+): number[] | null {
+  const process = start.process.slice();
+  free.forEach((level, j) => (process[level] = Math.exp(trial[j])));
+  for (const level of free) {
+    const [lower, upper] = axes[level].range(lineage, process.slice(0, level));
+    if (!(process[level] >= lower && process[level] <= upper)) return null;
+  }
+  return process;
+}
+
+/** The value at `process`, NaN outside the ranges (null) or where it is not finite. */
+function valueOf(evaluate: (process: number[]) => number, process: number[] | null): number {
+  const value = process === null ? Number.NaN : evaluate(process);
+  return Number.isFinite(value) ? value : Number.NaN;
+}
+
+/**
+ * What a polish returns: the point it reached, or the start unchanged when
+ * the reached value is below the start's (beyond rounding).
+ */
+function polishedAt(
+  start: { readonly process: readonly number[]; readonly logLik: number },
+  free: readonly number[],
+  logs: readonly number[],
+  value: number,
+  converged: boolean,
+): PolishedMaximum {
+  if (value < start.logLik - 1e-12 * (1 + Math.abs(start.logLik))) return { process: start.process.slice(), logLik: start.logLik, converged: false };
   const process = start.process.slice();
   free.forEach((level, j) => (process[level] = Math.exp(logs[j])));
-  return { process, logLik: centreValue, converged };
+  return { process, logLik: value, converged };
 }
 
 /**
