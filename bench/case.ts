@@ -1,3 +1,4 @@
+import { runsAsCommand } from './command-line.js';
 /**
  * One benchmark case run in a process of its own, so its peak memory (VmHWM)
  * is its own: `node dist/bench/case.js <case> '<json arguments>'` prints one
@@ -89,7 +90,7 @@ async function main(): Promise<void> {
   process.stdout.write(JSON.stringify(result) + '\n');
 }
 
-if (process.argv[1] && import.meta.url.endsWith(process.argv[1].replace(/\\/g, '/'))) {
+if (runsAsCommand(import.meta.url)) {
   main().catch((error) => {
     process.stderr.write(`${(error as Error).stack ?? String(error)}\n`);
     process.exit(1);

@@ -1,3 +1,4 @@
+import { runsAsCommand } from './command-line.js';
 /**
  * The fitter's cost in evaluation-equivalents (issue 14): each piece of work
  * on one 30-horizon lineage, timed in CPU time and divided by the time of
@@ -215,9 +216,9 @@ export function extendedCostLines(mode: CostMode): string[] {
   return lines;
 }
 
-if (process.argv[1] && import.meta.url.endsWith(process.argv[1].replace(/\\/g, '/')) && process.argv.includes('--per-model')) {
+if (runsAsCommand(import.meta.url) && process.argv.includes('--per-model')) {
   process.stdout.write(extendedCostLines(process.argv.includes('--full') ? 'full' : process.argv.includes('--smoke') ? 'smoke' : 'quick').join('\n') + '\n');
-} else if (process.argv[1] && import.meta.url.endsWith(process.argv[1].replace(/\\/g, '/'))) {
+} else if (runsAsCommand(import.meta.url)) {
   measureEvaluationCost(process.argv.includes('--full') ? 'full' : process.argv.includes('--smoke') ? 'smoke' : 'quick')
     .then((cost) => process.stdout.write(evaluationCostLines(cost).join('\n') + '\n'))
     .catch((error) => {

@@ -1,4 +1,4 @@
-import { isMainThread } from 'node:worker_threads';
+import { runsAsCommand, takeOption } from './command-line.js';
 import { fitJointModel } from '../src/joint/fit-joint.js';
 import type { JointInterval } from '../src/joint/joint-intervals.js';
 import { jointModel, type JointModel, type JointModelId } from '../src/joint/joint-models.js';
@@ -191,12 +191,9 @@ export async function runJointCoverage(options: JointCoverageOptions = {}): Prom
 }
 
 // Run alone: node dist/bench/joint-coverage.js [groups] [sizes...] [--models a,b] [--threads n]
-if (isMainThread && process.argv[1] && import.meta.url.endsWith(process.argv[1].replace(/\\/g, '/'))) {
+if (runsAsCommand(import.meta.url)) {
   const args = process.argv.slice(2);
-  const take = (name: string): string | undefined => {
-    const at = args.indexOf(name);
-    return at >= 0 ? args.splice(at, 2)[1] : undefined;
-  };
+  const take = (name: string): string | undefined => takeOption(args, name);
   const models = take('--models')?.split(',') as CoverageModelId[] | undefined;
   const threads = take('--threads');
   const [count, ...sizes] = args.filter((arg) => !arg.startsWith('--')).map(Number);

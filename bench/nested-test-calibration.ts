@@ -1,4 +1,4 @@
-import { isMainThread } from 'node:worker_threads';
+import { runsAsCommand, takeOption } from './command-line.js';
 import { fitLineage } from '../src/fit/fit-lineage.js';
 import { findModel } from '../src/models/registry.js';
 import { runTasks } from '../src/parallel/pool.js';
@@ -257,12 +257,9 @@ export async function runNestedCalibration(options: NestedCalibrationOptions = {
 }
 
 // Run alone: node dist/bench/nested-test-calibration.js [lineages] [--models a,b] [--truth null|alternative] [--horizons 15,25] [--threads n] [--true-null draws]
-if (isMainThread && process.argv[1] && import.meta.url.endsWith(process.argv[1].replace(/\\/g, '/'))) {
+if (runsAsCommand(import.meta.url)) {
   const args = process.argv.slice(2);
-  const take = (name: string): string | undefined => {
-    const at = args.indexOf(name);
-    return at >= 0 ? args.splice(at, 2)[1] : undefined;
-  };
+  const take = (name: string): string | undefined => takeOption(args, name);
   const models = take('--models')?.split(',');
   const truth = take('--truth');
   const horizons = take('--horizons')?.split(',').map(Number);

@@ -1,5 +1,5 @@
 import { availableParallelism } from 'node:os';
-import { isMainThread } from 'node:worker_threads';
+import { runsAsCommand, takeOption } from './command-line.js';
 import { fitLineage } from '../src/fit/fit-lineage.js';
 import { classicModels, findModel } from '../src/models/registry.js';
 import { runTasks } from '../src/parallel/pool.js';
@@ -220,12 +220,11 @@ export async function measureTrendCost(print: (line: string) => void = (line) =>
 }
 
 // Run alone: node dist/bench/trend-calibration.js [lineages] [sizes...] [--scenarios a,b] [--bootstrap-lrt] [--threads k], or --cost
-if (isMainThread && process.argv[1] && import.meta.url.endsWith(process.argv[1].replace(/\\/g, '/'))) {
+if (runsAsCommand(import.meta.url)) {
   const args = process.argv.slice(2);
-  const scenarioAt = args.indexOf('--scenarios');
-  const scenarios = scenarioAt >= 0 ? (args.splice(scenarioAt, 2)[1].split(',') as TrendScenario[]) : undefined;
-  const threadsAt = args.indexOf('--threads');
-  const threads = threadsAt >= 0 ? Number(args.splice(threadsAt, 2)[1]) : undefined;
+  const scenarios = takeOption(args, '--scenarios')?.split(',') as TrendScenario[] | undefined;
+  const threadOption = takeOption(args, '--threads');
+  const threads = threadOption === undefined ? undefined : Number(threadOption);
   const [count, ...sizes] = args.filter((arg) => !arg.startsWith('--')).map(Number);
   // Not awaited at the top level: with --threads 1 the pool imports this very module in the main thread, and that
   // import would wait for this module's own evaluation to finish (Node then exits with code 13, nothing printed).
