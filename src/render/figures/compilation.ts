@@ -2,7 +2,7 @@ import type { ChartConfiguration, ChartDataset, Plugin } from 'chart.js';
 import type { CompilationSummary } from '../../compare/compilation.js';
 import { drawFigure, measureText, type FigurePlan, type RenderedFigure } from './chart-backend.js';
 import { pointsPerCm, resolveFigureOptions, type FigureOptions, type ResolvedFigureOptions } from './figure-options.js';
-import { font, wrapText } from './marks.js';
+import { drawTitleLines, font, wrapText } from './marks.js';
 import { ink, lineWidth, supportInk, typeSize } from './style.js';
 import { shortModelLabel } from './trajectory.js';
 
@@ -117,12 +117,7 @@ export function compilationPlan(summary: CompilationSummary, options: ResolvedFi
         context.fillText(winsText[i], margin, centre + typeSize.note + 0.5);
       });
       context.textBaseline = 'alphabetic';
-      context.fillStyle = ink.text;
-      context.font = font(typeSize.title, 'bold');
-      context.fillText(title, margin, margin + typeSize.title);
-      context.font = font(typeSize.subtitle);
-      context.fillStyle = ink.muted;
-      subtitle.forEach((line, k) => context.fillText(line, margin, margin + titleHeight + typeSize.subtitle * (1.3 * k + 1)));
+      drawTitleLines(context, [title], subtitle, margin, margin);
       context.strokeStyle = supportInk.rule;
       context.lineWidth = lineWidth.rule;
       context.beginPath();
@@ -130,6 +125,7 @@ export function compilationPlan(summary: CompilationSummary, options: ResolvedFi
       context.lineTo(area.right, area.top - 3);
       context.stroke();
       context.font = font(typeSize.note);
+      context.fillStyle = ink.muted;
       const notesTop = area.bottom + axisHeight + 2;
       notes.forEach((line, k) => context.fillText(line, margin, notesTop + typeSize.note * (1.3 * k + 1)));
       context.restore();

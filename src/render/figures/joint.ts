@@ -2,7 +2,7 @@ import type { ChartConfiguration, ChartDataset, Plugin, Scale } from 'chart.js';
 import { drawFigure, measureText, type FigurePlan, type RenderedFigure } from './chart-backend.js';
 import { pointsPerCm, resolveFigureOptions, type FigureOptions, type ResolvedFigureOptions } from './figure-options.js';
 import { normal95, paddedLimits } from './geometry.js';
-import { drawInterval, font, wrapText } from './marks.js';
+import { drawInterval, drawTitleLines, font, wrapText } from './marks.js';
 import { ink, lineWidth, seriesStyle, typeSize } from './style.js';
 import { roundStep, roundTicks, tickLabel } from './ticks.js';
 
@@ -68,20 +68,6 @@ function titleBlock(title: string, subtitle: string, inner: number): { titleLine
   return { titleLines, lines, height: titleLines.length * typeSize.title * 1.3 + lines.length * typeSize.subtitle * 1.3 + 6 };
 }
 
-function drawTitles(context: CanvasRenderingContext2D, titleLines: readonly string[], lines: readonly string[]): void {
-  context.save();
-  context.textAlign = 'left';
-  context.textBaseline = 'alphabetic';
-  context.fillStyle = ink.text;
-  context.font = font(typeSize.title, 'bold');
-  titleLines.forEach((line, k) => context.fillText(line, margin, margin + typeSize.title * (1.3 * k + 1)));
-  const below = margin + titleLines.length * typeSize.title * 1.3;
-  context.font = font(typeSize.subtitle);
-  context.fillStyle = ink.muted;
-  lines.forEach((line, k) => context.fillText(line, margin, below + typeSize.subtitle * (1.3 * k + 1)));
-  context.restore();
-}
-
 /** Axis look shared by the joint figures; ticks at round values (1, 2 or 5 × 10^k) inside the limits, about `target` of them. */
 const axisStyle = (title: string, limits: { min: number; max: number }, target = 5) => ({
   afterBuildTicks: (scale: Scale) => {
@@ -138,7 +124,7 @@ export function jointTrajectoryPlan(group: JointFigureGroup, first: number, seco
       context.restore();
     },
     afterDraw(chart) {
-      drawTitles(chart.ctx, header.titleLines, header.lines);
+      drawTitleLines(chart.ctx, header.titleLines, header.lines, margin, margin);
     },
   };
   const configuration = (): ChartConfiguration => {
@@ -223,7 +209,7 @@ export function jointPanelsPlan(group: JointFigureGroup, options: ResolvedFigure
       context.restore();
     },
     afterDraw(chart) {
-      drawTitles(chart.ctx, header.titleLines, header.lines);
+      drawTitleLines(chart.ctx, header.titleLines, header.lines, margin, margin);
     },
   };
   const configuration = (): ChartConfiguration => {

@@ -2,7 +2,7 @@ import type { Chart, ChartConfiguration, Plugin } from 'chart.js';
 import { measureText, type FigurePlan } from './chart-backend.js';
 import { figureLineageName, type FigureLineage, type FigureModel } from './figure-input.js';
 import { pointsPerCm, type ResolvedFigureOptions } from './figure-options.js';
-import { font, wrapText } from './marks.js';
+import { drawTitleLines, font, wrapText } from './marks.js';
 import { ink, lineWidth, supportInk, typeSize } from './style.js';
 import { formatWeight } from './trajectory.js';
 
@@ -266,15 +266,9 @@ export function modelSupportPlan(lineage: FigureLineage, options: ResolvedFigure
     const area = chart.chartArea;
     const y = chart.scales.y;
     const x = chart.scales.x;
+    drawTitleLines(context, titleLines, subtitle, margin, margin);
     context.save();
     context.textBaseline = 'alphabetic';
-    context.fillStyle = ink.text;
-    context.font = font(typeSize.title, 'bold');
-    context.textAlign = 'left';
-    titleLines.forEach((line, i) => context.fillText(line, margin, margin + typeSize.title * (1.3 * i + 1)));
-    context.font = font(typeSize.subtitle);
-    context.fillStyle = ink.muted;
-    subtitle.forEach((line, i) => context.fillText(line, margin, margin + titleHeight + typeSize.subtitle * (1.3 * i + 1)));
     // Rules of a typeset table: above the header, below it, and below the last row.
     const headerTop = area.top - headerHeight;
     const rule = (atY: number, width: number) => {

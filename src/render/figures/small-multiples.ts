@@ -4,7 +4,7 @@ import { measureText, type FigurePlan } from './chart-backend.js';
 import type { FigureLineage } from './figure-input.js';
 import { pointsPerCm, type ResolvedFigureOptions } from './figure-options.js';
 import { horizonMarks, modelCurve, paddedLimits, timeAxisFor, traitAxisTitle, type HorizonMark, type ModelCurve } from './geometry.js';
-import { drawInterval, drawMarker, drawStyledLine, fillBetween, font, hasEmphasis, styledWords, wrapStyled, wrapText, type Context } from './marks.js';
+import { drawInterval, drawMarker, drawStyledLine, drawTitleLines, fillBetween, font, hasEmphasis, styledWords, wrapStyled, wrapText, type Context } from './marks.js';
 import { ink, lineWidth, modelInk, typeSize } from './style.js';
 import { drawableLimits, fittedTicks, tickLabel } from './ticks.js';
 import { capitalised } from '../words.js';
@@ -278,16 +278,7 @@ export function smallMultiplesPlan(lineages: readonly FigureLineage[], options: 
     id: 'stratotrendSmallMultiples',
     afterDraw(chart) {
       const context = chart.ctx;
-      context.save();
-      context.textAlign = 'left';
-      context.textBaseline = 'alphabetic';
-      context.fillStyle = ink.text;
-      context.font = font(typeSize.title, 'bold');
-      titleLines.forEach((line, i) => context.fillText(line, margin, margin + typeSize.title * (1.3 * i + 1)));
-      context.fillStyle = ink.muted;
-      context.font = font(typeSize.subtitle);
-      subtitle.forEach((line, i) => context.fillText(line, margin, margin + titleHeight + typeSize.subtitle * (1.3 * i + 1)));
-      context.restore();
+      drawTitleLines(context, titleLines, subtitle, margin, margin);
       items.forEach((item, index) => drawPanel(context, panels[index], item, heads[index]));
       drawAxes(context);
     },
