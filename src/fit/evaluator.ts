@@ -1,6 +1,6 @@
 import { allocateSums, whiten, workSize, type WhitenedSums } from '../engine/kalman-filter.js';
-import { logLikAt, profileLogLik, profileOut, profileWithFixedCoefficient, type ProfileResult } from '../engine/gls.js';
-import { allocateSpaceDerivatives, filterScore, scoreWorkSize, type SpaceDerivative } from '../engine/kalman-score.js';
+import { informationLogDet, logLikAt, profileLogLik, profileOut, profileWithFixedCoefficient, type ProfileResult } from '../engine/gls.js';
+import { allocateSpaceDerivatives, filterScore, informationScore, informationScoreWorkSize, scoreWorkSize, type SpaceDerivative } from '../engine/kalman-score.js';
 import { allocateStateSpace, type StateSpace } from '../engine/state-space.js';
 import type { Lineage } from '../lineage.js';
 import type { EvolutionModel } from '../models/model.js';
@@ -35,7 +35,7 @@ export class LikelihoodEvaluator {
   private readonly work: Float64Array;
   /** Number of filter passes so far (repeated process values answered from the cache are not counted). */
   evaluations = 0;
-  /** Number of score passes ({@link LikelihoodEvaluator.profileScore}) so far. */
+  /** Number of score passes ({@link LikelihoodEvaluator.profileScore}, also run by {@link LikelihoodEvaluator.restrictedScore}) so far. */
   scoreEvaluations = 0;
   /** Filter results by process values: see {@link LikelihoodEvaluator.whiten}. */
   private readonly cache: WhitenCache;
@@ -43,6 +43,8 @@ export class LikelihoodEvaluator {
   readonly prefix: PrefixFilter | null;
   /** Scratch of {@link LikelihoodEvaluator.profileScore}, allocated on first use. */
   private scoreScratch: { derivatives: SpaceDerivative[]; work: Float64Array; coefficients: Float64Array } | null = null;
+  /** Scratch of {@link LikelihoodEvaluator.restrictedScore}, allocated on first use. */
+  private informationScratch: { work: Float64Array; gradient: Float64Array } | null = null;
 
   constructor(model: EvolutionModel, lineage: Lineage) {
     this.model = model;
@@ -146,6 +148,45 @@ export class LikelihoodEvaluator {
     this.scoreEvaluations += 1;
     filterScore(this.space, derivatives, this.data, coefficients, gradient, work);
     return logLik;
+  }
+
+  /**
+   * Restricted (REML-type) log-likelihood at these process values (the value
+   * of `restrictedLogLik(whiten(process))` in `fit/intervals.ts`, bit for
+   * bit: the profile minus 0.5 ln det(X' V^-1 X)) and its gradient with
+   * respect to the process values in natural units, written into `gradient`:
+   * the profile's gradient ({@link LikelihoodEvaluator.profileScore}) minus
+   * half that of ln det(X' V^-1 X), from the score recursions run over the
+   * design columns (`informationScore`, `engine/kalman-score.ts`; Harville
+   * 1977, J. Amer. Statist. Assoc. 72:320-340, for the derivatives of the
+   * restricted likelihood). `gradient` is NaN where the value is not finite.
+   * Needs the model's `fillSpaceDerivatives` ({@link LikelihoodEvaluator.hasScore}).
+   *
+   * @param process process values (natural units)
+   * @param gradient output, length >= the number of process axes
+   * @returns the restricted log-likelihood
+   * @example
+   * // Stasis, two horizons of unit sampling variance, means 1 and 3: X'V^-1 X = 2 / (omega + 1), so the restricted logL is
+   * // -ln 2 pi - 0.5 ln(omega + 1) - 1 / (omega + 1) - 0.5 ln 2, slope -0.5 / (omega + 1) + 1 / (omega + 1)^2 (closed form).
+   * const lineage = lineageFromArrays({ time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+   * const evaluator = new LikelihoodEvaluator(stasis, lineage);
+   * const gradient = new Float64Array(1);
+   * evaluator.restrictedScore([3], gradient); // -3.1275978372492634 (to 1e-12; -ln 2 pi - 1.5 ln 2 - 0.25 at omega = 3)
+   * gradient[0]; // -0.0625 (to 1e-12; -1/8 + 1/16)
+   */
+  restrictedScore(process: ArrayLike<number>, gradient: Float64Array): number {
+    const logLik = this.profileScore(process, gradient);
+    const count = this.model.process.length;
+    if (!Number.isFinite(logLik)) return Number.NEGATIVE_INFINITY;
+    // profileScore left this pass's sums, state space and derivatives in place.
+    const sums = this.sums;
+    const width = sums.width;
+    this.informationScratch ??= { work: new Float64Array(informationScoreWorkSize(width, count)), gradient: new Float64Array(count) };
+    const { work, gradient: information } = this.informationScratch;
+    const derivatives = (this.scoreScratch as { derivatives: SpaceDerivative[] }).derivatives;
+    informationScore(this.space, derivatives, sums, information, work);
+    for (let k = 0; k < count; k++) gradient[k] -= 0.5 * information[k];
+    return logLik - 0.5 * informationLogDet(sums);
   }
 
   /** GLS details at these process values, with coefficients on the trait's own scale. */
