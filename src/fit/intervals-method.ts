@@ -15,6 +15,7 @@ export type ProcessEnds = (
   best: readonly number[],
   axisIndex: number,
   cutoff: number,
+  gradient?: (process: number[]) => ArrayLike<number>,
 ) => IntervalEnds;
 
 /** What {@link replaceIntervals} did: the method used, or why the fit must fall back to the plain profile. */
@@ -82,8 +83,8 @@ export function replaceIntervals(
       return { method: 'integrated', fallback: null };
     }
   }
-  const ends = (evaluate: (process: number[]) => number, best: readonly number[], axisIndex: number, cutoff: number): IntervalEnds =>
-    processEnds(evaluate, evaluator.model, evaluator.lineage, best, axisIndex, cutoff);
+  const ends = (evaluate: (process: number[]) => number, best: readonly number[], axisIndex: number, cutoff: number, gradient?: (process: number[]) => ArrayLike<number>): IntervalEnds =>
+    processEnds(evaluate, evaluator.model, evaluator.lineage, best, axisIndex, cutoff, gradient);
   let ratioCutoff = (_name: string): number => chiSquare1At95;
   if (method === 'bootstrap') {
     // Draw from the restricted (REML) fit: an ML variance at 0 would simulate a world without that variance.

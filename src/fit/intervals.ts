@@ -151,7 +151,7 @@ export function parameterProfile(
       const sums = evaluator.whiten(process);
       return adjusted ? restrictedLogLik(sums) : profileLogLik(sums);
     };
-    const best = maximiseProcess(evaluate, model.process, lineage, { points: Math.max(points, 24) });
+    const best = maximiseProcess(evaluate, model.process, lineage, { points: Math.max(points, 24), gradient: scoreOf(evaluator, adjusted) });
     const through = model.parameters.find((spec) => spec.name === name)?.searchedAs;
     const maximiser = through ? through.fromAxis(best.process[axisIndex], lineage) : best.process[axisIndex];
     return { at, maximum: best.logLik, maximiser, process: best.process };
@@ -463,7 +463,7 @@ export function intervalsByProfile(
   evaluator: LikelihoodEvaluator,
   names: readonly string[],
   request: IntervalRequest,
-  processEnds: (evaluate: (process: number[]) => number, best: readonly number[], axisIndex: number, cutoff: number) => IntervalEnds,
+  processEnds: (evaluate: (process: number[]) => number, best: readonly number[], axisIndex: number, cutoff: number, gradient?: (process: number[]) => ArrayLike<number>) => IntervalEnds,
 ): Record<string, IntervalEnds> {
   const model = evaluator.model;
   const result: Record<string, IntervalEnds> = {};
@@ -471,6 +471,7 @@ export function intervalsByProfile(
     const sums = evaluator.whiten(process);
     return request.adjusted ? restrictedLogLik(sums) : profileLogLik(sums);
   };
+  const gradient = scoreOf(evaluator, request.adjusted);
   // The maximum over every process parameter is the same for each of them: searched once.
   let processBest: ProcessMaximum | null = null;
   for (const name of names) {
@@ -478,10 +479,10 @@ export function intervalsByProfile(
     const drop = Math.max(request.ratioCutoff(name), 1e-6) / 2;
     const axisIndex = axisIndexOf(model, name);
     if (axisIndex >= 0) {
-      processBest ??= maximiseProcess(evaluate, model.process, evaluator.lineage, { points: 24 });
+      processBest ??= maximiseProcess(evaluate, model.process, evaluator.lineage, { points: 24, gradient });
       const best = processBest;
       const spec = model.parameters.find((candidate) => candidate.name === name);
-      result[name] = parameterEnds(spec, evaluator.lineage, processEnds(evaluate, best.process, axisIndex, best.logLik - drop));
+      result[name] = parameterEnds(spec, evaluator.lineage, processEnds(evaluate, best.process, axisIndex, best.logLik - drop, gradient));
       continue;
     }
     const profile = parameterProfile(evaluator, name, request.adjusted);
@@ -491,6 +492,26 @@ export function intervalsByProfile(
     result[name] = locationEnds(profile.at, profile.maximiser, scale, profile.maximum - drop, profile.maximum, open);
   }
   return result;
+}
+
+/**
+ * The gradient of the (plain or adjusted) profile over the process values
+ * for the searches (`SearchOptions.gradient`): `profileScore` or
+ * `restrictedScore` of the evaluator, into one reused array; undefined when
+ * the model gives no state-space derivatives.
+ *
+ * @example
+ * // Stasis, two horizons of unit sampling variance, means 1 and 3: the restricted slope at omega = 3 is -1/8 + 1/16 (closed form; see restrictedScore).
+ * const lineage = lineageFromArrays({ time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * scoreOf(new LikelihoodEvaluator(stasis, lineage), true)?.([3])[0]; // -0.0625 (to 1e-12)
+ * scoreOf(new LikelihoodEvaluator(strictStasis, lineage), false); // undefined (no process values, no derivatives)
+ */
+export function scoreOf(evaluator: LikelihoodEvaluator, adjusted: boolean): ((process: number[]) => Float64Array) | undefined {
+  if (!evaluator.hasScore) return undefined;
+  const slopes = new Float64Array(evaluator.model.process.length);
+  return adjusted
+    ? (process) => (evaluator.restrictedScore(process, slopes), slopes)
+    : (process) => (evaluator.profileScore(process, slopes), slopes);
 }
 
 /**
