@@ -1,8 +1,8 @@
 #!/usr/bin/env node
 // Issue 14 (the restricted profile's derivatives): ou's process-parameter interval ends and what they cost.
 //
-//   npm run build && node scripts/process-interval-passes.mjs OUT.json [FIRST LAST]
-//     for benchLineage(30, seed), seeds FIRST..LAST (default 1..20), ou's alpha and step_variance ends by the
+//   npm run build && node scripts/process-interval-passes.mjs OUT.json [FIRST LAST [HORIZONS]]
+//     for benchLineage(HORIZONS, seed) (default 30), seeds FIRST..LAST (default 1..20), ou's alpha and step_variance ends by the
 //     plain profile (processInterval, as fit --intervals profile makes them) and by the adjusted profile
 //     (intervalsByProfile with adjusted = true, as a default fit makes them for ou), each on a fresh evaluator,
 //     with the filter passes (evaluator.evaluations) and score passes (evaluator.scoreEvaluations) they took;
@@ -10,9 +10,9 @@
 //     Prints the medians and totals; OUT.json keeps every number, for scripts/interval-ends.mjs compare.
 import { writeFileSync } from 'node:fs';
 
-const [out, firstText, lastText] = process.argv.slice(2);
+const [out, firstText, lastText, horizonsText] = process.argv.slice(2);
 if (!out) {
-  process.stderr.write('usage: node scripts/process-interval-passes.mjs OUT.json [FIRST LAST]\n');
+  process.stderr.write('usage: node scripts/process-interval-passes.mjs OUT.json [FIRST LAST [HORIZONS]]\n');
   process.exit(2);
 }
 const { LikelihoodEvaluator } = await import('../dist/src/fit/evaluator.js');
@@ -27,10 +27,11 @@ const { benchLineage } = await import('../dist/bench/workload.js');
 const ou = findModel('ou');
 const first = Number(firstText ?? 1);
 const last = Number(lastText ?? 20);
+const horizons = Number(horizonsText ?? 30);
 const result = {};
 const counts = { plain: [], adjusted: [], plainScore: [], adjustedScore: [], fitProfile: [], fitDefault: [] };
 for (let seed = first; seed <= last; seed++) {
-  const lineage = benchLineage(30, seed);
+  const lineage = benchLineage(horizons, seed);
   // Plain: the fit's own search for the maximum (not counted), then each end as fitModel makes it.
   const plainEvaluator = new LikelihoodEvaluator(ou, lineage);
   const slopes = new Float64Array(2);
@@ -72,7 +73,7 @@ writeFileSync(out, JSON.stringify(result, null, 1));
 const row = (label, key) => `${label}: median ${median(counts[key])}, total ${total(counts[key])}`;
 process.stdout.write(
   [
-    `ou on benchLineage(30, seed), seeds ${first}..${last}`,
+    `ou on benchLineage(${horizons}, seed), seeds ${first}..${last}`,
     row('plain process ends (alpha + step_variance), filter passes', 'plain'),
     row('plain process ends, score passes', 'plainScore'),
     row('adjusted process ends incl. the restricted maximum, filter passes', 'adjusted'),

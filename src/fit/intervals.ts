@@ -449,8 +449,9 @@ export interface IntervalRequest {
  * The model-free part of every interval: for each parameter, the set of
  * values whose (plain or adjusted) profile lies within ratioCutoff / 2 of
  * the maximum. Process parameters use `processEnds` (the fitter's own
- * search for variance and rate ends); location parameters step out by their
- * GLS standard error.
+ * search for variance and rate ends), handed the gradient of the plain or
+ * restricted profile ({@link scoreOf}) when the model has state-space
+ * derivatives; location parameters step out by their GLS standard error.
  *
  * @example
  * // Strict stasis: the mean's interval is 2 ± 1.959964 × sqrt(1/2) (closed form: the profile is exactly quadratic).

@@ -51,19 +51,6 @@ export interface SearchOptions {
    * serves every level.
    */
   gradient?: (process: number[]) => ArrayLike<number>;
-  /**
-   * With `gradient` and exactly one free axis: search that axis from its
-   * value in these process values (e.g. the maximum at a neighbouring trial
-   * value of a profile) as ou's inner axis follows its maximum along the
-   * outer grid: the slope search from there, guarded by a grid of
-   * {@link SearchOptions.guardPoints} points whose every local maximum
-   * outside the followed one's cell is screened and refined like a full
-   * grid's, the bound 0 still tried, ends still preferred. Falls back to the
-   * full grid when the slope search fails. Ignored otherwise.
-   */
-  follow?: readonly number[];
-  /** Points of the guard grids (`follow`, and the outer-grid continuation with a gradient; default: `points` / 3, at least 4). */
-  guardPoints?: number;
 }
 
 interface Found {
@@ -154,7 +141,7 @@ export function maximiseProcess(
     const fixedValue = fixed.get(level);
     if (fixedValue !== undefined) {
       chosen[level] = fixedValue;
-      const inner = recurse(level + 1, hint, guarded);
+      const inner = recurse(level + 1, hint);
       inner.positions.unshift('interior');
       return inner;
     }
@@ -200,7 +187,7 @@ export function maximiseProcess(
         // it, each of its local maxima refined (screened first) as in the full grid's path below.
         at = warm.at;
         let atValue = warm.value;
-        const count = Math.max(4, options.guardPoints ?? Math.ceil(points / guardStride));
+        const count = Math.max(4, Math.ceil(points / guardStride));
         const step = (logUpper - logLower) / (count - 1);
         const guardAt = (k: number): number => (k === count - 1 ? logUpper : logLower + k * step);
         const values = new Array<number>(count);
@@ -285,10 +272,7 @@ export function maximiseProcess(
     return { logLik: result.logLik, process: result.process, positions: [position, ...result.positions] };
   };
   if (options.start !== undefined) return gridAndPolish(evaluate, axes, lineage, points, fixed, options.start);
-  // A followed maximum (SearchOptions.follow): the one free axis from there by the slope, guarded.
-  const freeCount = axes.reduce((count, _, level) => count + (fixed.has(level) ? 0 : 1), 0);
-  const follow = gradient !== undefined && freeCount === 1 && options.follow !== undefined && options.follow.length === depth ? options.follow : null;
-  let nested = recurse(0, follow, follow !== null);
+  let nested = recurse(0, null);
   // An inner axis whose bound 0 wins over part of the outer range makes the outer profile the upper envelope of
   // two smooth curves, with a narrow peak where the curve at 0 is on top, which a grid and Brent on the envelope
   // can step over (ou: step_variance 0 only near one alpha; issue 25). So the face where that axis is 0 is
