@@ -6,7 +6,8 @@ import { lineageFromArrays, type Lineage } from '../../src/lineage.js';
 import { findModel } from '../../src/models/registry.js';
 import { createRandom } from '../../src/random/random.js';
 
-// LikelihoodEvaluator.restrictedScore: the gradient of the restricted (REML-type) log-likelihood
+// LikelihoodEvaluator.restrictedScore: the gradient of the restricted (REML-type) log-likelihood (ou, the walks, stasis
+// and the two covariate models)
 // profile - 0.5 ln det(X' V^-1 X) in the process values, checked two independent ways.
 //
 // 1. Central finite differences of restrictedLogLik itself, (f(x + h) - f(x - h)) / 2h, truncation
@@ -34,7 +35,7 @@ function seededLineage(size: number, seed: number): Lineage {
 }
 
 /** The designs of MODELS.md (ou in the basis exp(-alpha t), (1 - exp(-alpha t)) / alpha) and their derivatives per process axis. */
-const designs: Record<string, (process: number[], t: number) => { row: number[]; slopes: number[][] }> = {
+const designs: Record<string, (process: number[], t: number, i: number) => { row: number[]; slopes: number[][] }> = {
   ou: ([alpha], t) => ({
     row: [Math.exp(-alpha * t), (1 - Math.exp(-alpha * t)) / alpha],
     slopes: [[-t * Math.exp(-alpha * t), (t * Math.exp(-alpha * t)) / alpha - (1 - Math.exp(-alpha * t)) / (alpha * alpha)], [0, 0]],
@@ -42,7 +43,14 @@ const designs: Record<string, (process: number[], t: number) => { row: number[];
   'random-walk': () => ({ row: [1], slopes: [[0]] }),
   'directional-walk': (_process, t) => ({ row: [1, t], slopes: [[0, 0]] }),
   stasis: () => ({ row: [1], slopes: [[0]] }),
+  // The covariate variants (issue 5's definitions: stasis or the random walk about intercept + slope × covariate,
+  // the walk's covariate measured from its first horizon; see test/engine/kalman-score.test.ts).
+  'covariate-stasis': (_process, _t, i) => ({ row: [1, covariate[i]], slopes: [[0, 0]] }),
+  'covariate-walk': (_process, _t, i) => ({ row: [1, covariate[i] - covariate[0]], slopes: [[0, 0]] }),
 };
+
+/** The covariate of the covariate models' cases (as in test/engine/kalman-score.test.ts). */
+const covariate = Float64Array.from({ length: 18 }, (_, i) => Math.sin(i) + 0.1 * i);
 
 /** Natural parameters for the model's dense covariance at these process values (locations do not enter it). */
 const parametersOf: Record<string, (process: number[]) => Record<string, number>> = {
@@ -50,6 +58,8 @@ const parametersOf: Record<string, (process: number[]) => Record<string, number>
   'random-walk': ([stepVariance]) => ({ ancestral_mean: 0, step_variance: stepVariance }),
   'directional-walk': ([stepVariance]) => ({ ancestral_mean: 0, drift: 0, step_variance: stepVariance }),
   stasis: ([variance]) => ({ stasis_mean: 0, stasis_variance: variance }),
+  'covariate-stasis': ([variance]) => ({ covariate_intercept: 0, covariate_slope: 0, stasis_variance: variance }),
+  'covariate-walk': ([stepVariance]) => ({ ancestral_mean: 0, covariate_slope: 0, step_variance: stepVariance }),
 };
 
 function denseRestrictedGradient(id: string, lineage: Lineage, process: number[]): number[] {
@@ -61,7 +71,7 @@ function denseRestrictedGradient(id: string, lineage: Lineage, process: number[]
   };
   const V = covarianceAt(process);
   for (let i = 0; i < n; i++) V.set(i, i, V.get(i, i) + lineage.samplingVariance[i]);
-  const rows = Array.from(lineage.time, (t) => designs[id](process, t));
+  const rows = Array.from(lineage.time, (t, i) => designs[id](process, t, i));
   const X = new Matrix(rows.map((entry) => entry.row));
   const x = Matrix.columnVector(Array.from(lineage.mean));
   const Vi = inverse(V);
@@ -104,10 +114,15 @@ describe('restrictedScore: gradient of the restricted log-likelihood', () => {
     ['stasis', 18, 9, [0.003]],
     ['stasis', 18, 9, [0.2]],
     ['stasis', 18, 9, [4]],
+    ['covariate-stasis', 18, 10, [0.05]],
+    ['covariate-stasis', 18, 10, [2]],
+    ['covariate-walk', 18, 10, [0.05]],
+    ['covariate-walk', 18, 10, [2]],
   ];
   for (const [id, size, seed, process] of cases) {
     it(`${id} at ${process.join(', ')} (N = ${size}): matches central differences and the dense closed form`, () => {
-      const lineage = seededLineage(size, seed);
+      const seeded = seededLineage(size, seed);
+      const lineage = id.startsWith('covariate') ? { ...seeded, covariate } : seeded;
       const evaluator = new LikelihoodEvaluator(findModel(id)!, lineage);
       const gradient = new Float64Array(process.length);
       const value = evaluator.restrictedScore(process, gradient);
