@@ -4,7 +4,7 @@ import { LikelihoodEvaluator } from './evaluator.js';
 import { fitOverConfigurations, shiftRecords } from './fit-configurations.js';
 import { unfittedFit, type FitOptions, type ModelFit, type ParameterEstimate } from './fit-results.js';
 import { replaceIntervals, type IntervalMethod } from './intervals-method.js';
-import { locationEnds, parameterEnds, trendLimitSide, WarmStarts } from './intervals.js';
+import { locationEndsBySupremum, locationScale, parameterEnds, trendLimitSide } from './intervals.js';
 import { chiSquare1At95 } from './model-choice.js';
 import { profileCrossing } from './root-find.js';
 import { maximiseProcess, type AxisPosition } from './search.js';
@@ -401,10 +401,10 @@ export function processInterval(
 }
 
 /**
- * Profile interval of a location parameter: hold it at trial values, profile
- * the other location parameters by GLS and maximise over the process
- * parameters, and find where the profile crosses the cut-off. Steps start
- * from the GLS standard error at the maximum.
+ * Profile interval of a location parameter: the values where the profile
+ * (the other location parameters by GLS, the process parameters maximised)
+ * stays above the cut-off, each end as one maximisation over the process
+ * values ({@link locationEndsBySupremum}), started at the maximum.
  */
 function locationInterval(
   evaluator: LikelihoodEvaluator,
@@ -417,22 +417,8 @@ function locationInterval(
   cutoff: number,
   gridPoints: number | undefined,
 ): IntervalEnds {
-  // Warm start from the maximum at the nearest trial value on the estimate's side (WarmStarts; search.ts: grid, mostly kept by the evaluator, + polish).
-  const warm = new WarmStarts(model, lineage, { value: estimate, process: best });
-  const profileAt = (value: number): number => {
-    const evaluate = (process: number[]): number => evaluator.profileWithLocation(name, value, process);
-    if (model.process.length === 0) return evaluate([]);
-    const found = maximiseProcess(evaluate, model.process, lineage, { points: Math.min(gridPoints ?? 12, 12), start: warm.startsFor(value)[0] });
-    warm.add(value, found.process);
-    return found.logLik;
-  };
-  const index = model.fixLocation(name, estimate, best, lineage).index;
-  const width = Math.sqrt(details.coefficientCovariance.length);
-  let scale = Math.sqrt(Math.max(0, details.coefficientCovariance[index * width + index]));
-  // The coefficient can be a multiple of the parameter (ou's optimum enters as optimum·alpha): the step is in the parameter's units.
-  const perUnit = coefficientPerUnit(model, name, best, lineage);
-  if (perUnit > 0) scale /= perUnit;
-  if (!(scale > 0) || !Number.isFinite(scale)) scale = Math.max(1e-8, Math.abs(estimate) * 1e-3);
+  const scale = locationScale(evaluator, name, best, estimate);
   // The side the trend limit opens (openTowardTrendLimit) is known first and not searched.
-  return locationEnds(profileAt, estimate, scale, cutoff, cutoff + profileDrop, trendLimitSide(evaluator, name, cutoff, false));
+  const open = trendLimitSide(evaluator, name, cutoff, false);
+  return locationEndsBySupremum(evaluator, name, false, cutoff, best, estimate, scale, open, Math.min(gridPoints ?? 12, 12));
 }
