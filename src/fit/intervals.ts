@@ -426,7 +426,9 @@ export function liftedOffZero(model: EvolutionModel, lineage: Lineage, process: 
  * @example
  * // One mean, unit sampling variances, means 1, 3 centred on 2: estimate 0 (the centred mean), variance 1/2 (closed form).
  * const lineage = lineageFromArrays({ time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
- * coefficientSpread(new LikelihoodEvaluator(strictStasis, lineage).whiten([]), 0); // { estimate: 0, variance: 0.5 } (to 1e-12)
+ * const spread = coefficientSpread(new LikelihoodEvaluator(strictStasis, lineage).whiten([]), 0);
+ * spread.estimate; // 0 (to 1e-12)
+ * spread.variance; // 0.5 (to 1e-12)
  */
 export function coefficientSpread(sums: WhitenedSums, index: number): { estimate: number; variance: number } {
   const width = sums.width;
@@ -556,7 +558,8 @@ function reachParts(evaluator: LikelihoodEvaluator, name: string, adjusted: bool
  * const lineage = lineageFromArrays({ time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
  * const evaluator = new LikelihoodEvaluator(strictStasis, lineage);
  * const ends = locationEndsBySupremum(evaluator, 'stasis_mean', false, evaluator.profile([]) - 1.920729410347062, [], 2, Math.SQRT1_2);
- * [ends.lower, ends.upper]; // [0.6140961756503224, 3.385903824349677] (to 1e-9)
+ * ends.lower; // 0.6140961756503224 (to 1e-9)
+ * ends.upper; // 3.385903824349677 (to 1e-9)
  */
 export function locationEndsBySupremum(
   evaluator: LikelihoodEvaluator,
