@@ -3,7 +3,7 @@ import { axisIndexOf, varianceScale, type EvolutionModel } from '../models/model
 import { LikelihoodEvaluator } from './evaluator.js';
 import { fitOverConfigurations, shiftRecords } from './fit-configurations.js';
 import { unfittedFit, type FitOptions, type ModelFit, type ParameterEstimate } from './fit-results.js';
-import { replaceIntervals, type IntervalMethod } from './intervals-method.js';
+import { replaceIntervals, strayIntervals, type IntervalMethod } from './intervals-method.js';
 import { locationEndsBySupremum, locationScale, parameterEnds, trendLimitSide } from './intervals.js';
 import { chiSquare1At95 } from './model-choice.js';
 import { profileCrossing } from './root-find.js';
@@ -294,25 +294,6 @@ function derivedEstimates(model: EvolutionModel, parameters: Readonly<Record<str
  */
 export function coefficientPerUnit(model: EvolutionModel, name: string, process: ArrayLike<number>, lineage: Lineage): number {
   return model.fixLocation(name, 1, process, lineage).coefficient - model.fixLocation(name, 0, process, lineage).coefficient;
-}
-
-/**
- * Names of the parameters whose interval leaves out their own finite
- * estimate. An estimate at a bound or limit is inside when the interval
- * reaches it (an end equal to it, or open on that side); ends are compared
- * with a relative tolerance of 1e-9 (root-finder precision).
- *
- * @example
- * strayIntervals({ alpha: { estimate: 0, lower: 1206, upper: null, atBound: 'alpha-zero', lowerAtBound: false, upperAtBound: true } }); // ['alpha']
- */
-export function strayIntervals(parameters: Readonly<Record<string, ParameterEstimate>>): string[] {
-  const stray: string[] = [];
-  for (const [name, { estimate, lower, upper }] of Object.entries(parameters)) {
-    if (estimate === null) continue;
-    const slack = (end: number): number => 1e-9 * Math.max(Math.abs(end), Math.abs(estimate));
-    if ((lower !== null && estimate < lower - slack(lower)) || (upper !== null && estimate > upper + slack(upper))) stray.push(name);
-  }
-  return stray;
 }
 
 function positionName(model: EvolutionModel, axisIndex: number, position: AxisPosition): string | null {
