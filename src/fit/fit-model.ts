@@ -3,8 +3,8 @@ import { axisIndexOf, varianceScale, type EvolutionModel } from '../models/model
 import { LikelihoodEvaluator } from './evaluator.js';
 import { fitOverConfigurations, shiftRecords } from './fit-configurations.js';
 import { unfittedFit, type FitOptions, type ModelFit, type ParameterEstimate } from './fit-results.js';
-import { replaceIntervals, type IntervalMethod } from './intervals-method.js';
-import { locationEnds, parameterEnds, trendLimitSide, WarmStarts } from './intervals.js';
+import { replaceIntervals, strayIntervals, type IntervalMethod } from './intervals-method.js';
+import { locationEndsBySupremum, locationScale, parameterEnds, trendLimitSide } from './intervals.js';
 import { chiSquare1At95 } from './model-choice.js';
 import { profileCrossing } from './root-find.js';
 import { maximiseProcess, type AxisPosition } from './search.js';
@@ -296,25 +296,6 @@ export function coefficientPerUnit(model: EvolutionModel, name: string, process:
   return model.fixLocation(name, 1, process, lineage).coefficient - model.fixLocation(name, 0, process, lineage).coefficient;
 }
 
-/**
- * Names of the parameters whose interval leaves out their own finite
- * estimate. An estimate at a bound or limit is inside when the interval
- * reaches it (an end equal to it, or open on that side); ends are compared
- * with a relative tolerance of 1e-9 (root-finder precision).
- *
- * @example
- * strayIntervals({ alpha: { estimate: 0, lower: 1206, upper: null, atBound: 'alpha-zero', lowerAtBound: false, upperAtBound: true } }); // ['alpha']
- */
-export function strayIntervals(parameters: Readonly<Record<string, ParameterEstimate>>): string[] {
-  const stray: string[] = [];
-  for (const [name, { estimate, lower, upper }] of Object.entries(parameters)) {
-    if (estimate === null) continue;
-    const slack = (end: number): number => 1e-9 * Math.max(Math.abs(end), Math.abs(estimate));
-    if ((lower !== null && estimate < lower - slack(lower)) || (upper !== null && estimate > upper + slack(upper))) stray.push(name);
-  }
-  return stray;
-}
-
 function positionName(model: EvolutionModel, axisIndex: number, position: AxisPosition): string | null {
   const axis = model.process[axisIndex];
   if (position === 'zero') return axis.limitNames?.[0] ?? 'zero';
@@ -410,10 +391,10 @@ export function processInterval(
 }
 
 /**
- * Profile interval of a location parameter: hold it at trial values, profile
- * the other location parameters by GLS and maximise over the process
- * parameters, and find where the profile crosses the cut-off. Steps start
- * from the GLS standard error at the maximum.
+ * Profile interval of a location parameter: the values where the profile
+ * (the other location parameters by GLS, the process parameters maximised)
+ * stays above the cut-off, each end as one maximisation over the process
+ * values ({@link locationEndsBySupremum}), started at the maximum.
  */
 function locationInterval(
   evaluator: LikelihoodEvaluator,
@@ -426,22 +407,8 @@ function locationInterval(
   cutoff: number,
   gridPoints: number | undefined,
 ): IntervalEnds {
-  // Warm start from the maximum at the nearest trial value on the estimate's side (WarmStarts; search.ts: grid, mostly kept by the evaluator, + polish).
-  const warm = new WarmStarts(model, lineage, { value: estimate, process: best });
-  const profileAt = (value: number): number => {
-    const evaluate = (process: number[]): number => evaluator.profileWithLocation(name, value, process);
-    if (model.process.length === 0) return evaluate([]);
-    const found = maximiseProcess(evaluate, model.process, lineage, { points: Math.min(gridPoints ?? 12, 12), start: warm.startsFor(value)[0] });
-    warm.add(value, found.process);
-    return found.logLik;
-  };
-  const index = model.fixLocation(name, estimate, best, lineage).index;
-  const width = Math.sqrt(details.coefficientCovariance.length);
-  let scale = Math.sqrt(Math.max(0, details.coefficientCovariance[index * width + index]));
-  // The coefficient can be a multiple of the parameter (ou's optimum enters as optimum·alpha): the step is in the parameter's units.
-  const perUnit = coefficientPerUnit(model, name, best, lineage);
-  if (perUnit > 0) scale /= perUnit;
-  if (!(scale > 0) || !Number.isFinite(scale)) scale = Math.max(1e-8, Math.abs(estimate) * 1e-3);
+  const scale = locationScale(evaluator, name, best, estimate);
   // The side the trend limit opens (openTowardTrendLimit) is known first and not searched.
-  return locationEnds(profileAt, estimate, scale, cutoff, cutoff + profileDrop, trendLimitSide(evaluator, name, cutoff, false));
+  const open = trendLimitSide(evaluator, name, cutoff, false);
+  return locationEndsBySupremum(evaluator, name, false, cutoff, best, estimate, scale, open, Math.min(gridPoints ?? 12, 12));
 }

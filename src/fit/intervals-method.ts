@@ -4,6 +4,7 @@ import { bootstrapCutoffs, type Refit } from './intervals-bootstrap.js';
 import { integratedIntervals } from './intervals-integrated.js';
 import { intervalsByProfile, restrictedEstimates, type IntervalEnds, type IntervalMethod } from './intervals.js';
 import { chiSquare1At95 } from './model-choice.js';
+import { axisIndexOf } from '../models/model.js';
 
 export type { IntervalMethod } from './intervals.js';
 
@@ -33,6 +34,25 @@ export interface ReplacedIntervals {
  * the truth they were drawn from: the interval would shrink to the estimate.
  */
 export const degenerateCutoff = 0.01;
+
+/**
+ * Names of the parameters whose interval leaves out their own finite
+ * estimate. An estimate at a bound or limit is inside when the interval
+ * reaches it (an end equal to it, or open on that side); ends are compared
+ * with a relative tolerance of 1e-9 (root-finder precision).
+ *
+ * @example
+ * strayIntervals({ alpha: { estimate: 0, lower: 1206, upper: null, atBound: 'alpha-zero', lowerAtBound: false, upperAtBound: true } }); // ['alpha']
+ */
+export function strayIntervals(parameters: Readonly<Record<string, ParameterEstimate>>): string[] {
+  const stray: string[] = [];
+  for (const [name, { estimate, lower, upper }] of Object.entries(parameters)) {
+    if (estimate === null) continue;
+    const slack = (end: number): number => 1e-9 * Math.max(Math.abs(end), Math.abs(estimate));
+    if ((lower !== null && estimate < lower - slack(lower)) || (upper !== null && estimate > upper + slack(upper))) stray.push(name);
+  }
+  return stray;
+}
 
 /**
  * Replace the plain profile intervals of a fit (in `parameters`, in place)
@@ -107,7 +127,21 @@ export function replaceIntervals(
     ratioCutoff = (name) => cutoffs.cutoff[name];
   }
   const adjusted = method === 'adjusted' || method === 'integrated';
-  const replaced = intervalsByProfile(evaluator, names, { adjusted, ratioCutoff }, ends);
-  for (const name of names) parameters[name] = { ...parameters[name], ...replaced[name] };
-  return { method: adjusted ? 'adjusted' : method, fallback: null };
+  const used: IntervalMethod = adjusted ? 'adjusted' : method;
+  // The process parameters first: when one of their intervals leaves out its own estimate (ou's alpha, whose restricted
+  // maximum can sit at the opposite limit: more than half of the bench's ou fits) the fit falls back to the plain
+  // profile anyway, so the location parameters' intervals are not searched (issue 14). The reason then names the
+  // process parameters left out.
+  const model = evaluator.model;
+  const replaced: Record<string, ParameterEstimate> = {};
+  const search = (some: readonly string[]): void => {
+    const found = intervalsByProfile(evaluator, some, { adjusted, ratioCutoff }, ends);
+    for (const name of some) replaced[name] = { ...parameters[name], ...found[name] };
+  };
+  search(names.filter((name) => axisIndexOf(model, name) >= 0));
+  const stray = strayIntervals(replaced);
+  if (stray.length > 0) return { method: used, fallback: `the ${used} intervals left out the estimate of ${stray.join(', ')}` };
+  search(names.filter((name) => axisIndexOf(model, name) < 0));
+  for (const name of names) parameters[name] = replaced[name];
+  return { method: used, fallback: null };
 }

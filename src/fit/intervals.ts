@@ -4,7 +4,7 @@ import type { WhitenedSums } from '../engine/kalman-filter.js';
 import type { Lineage } from '../lineage.js';
 import { axisIndexOf, type EvolutionModel, type ParameterSpec } from '../models/model.js';
 import type { LikelihoodEvaluator } from './evaluator.js';
-import { profileCrossing } from './root-find.js';
+import { polishMaximum } from './polish.js';
 import { maximiseProcess, type ProcessMaximum } from './search.js';
 
 /**
@@ -285,14 +285,34 @@ export function profileFunction(
       return maximiseProcess(evaluate, model.process, lineage, { fixed: new Map([[axisIndex, value]]), points }).logLik;
     };
   }
+  const profile = locationProfile(evaluator, name, adjusted, points, start);
+  return (value: number): number => profile.at(value).logLik;
+}
+
+/**
+ * The location branch of {@link profileFunction}: at a trial value, the
+ * maximum over the process values and where it is, each trial's search
+ * warm-started ({@link WarmStarts}) from the trials kept so far (`keep`
+ * adds a value whose maximiser is known from elsewhere).
+ */
+function locationProfile(
+  evaluator: LikelihoodEvaluator,
+  name: string,
+  adjusted: boolean,
+  points: number,
+  start?: { readonly value: number; readonly process: readonly number[] },
+): { at(value: number): ProcessMaximum; evaluateAt(value: number): (process: number[]) => number; keep(value: number, process: readonly number[]): void } {
+  const model = evaluator.model;
+  const lineage = evaluator.lineage;
   const warm = new WarmStarts(model, lineage, start);
-  return (value: number): number => {
-    const evaluate = (process: number[]): number => {
-      const { index, coefficient } = model.fixLocation(name, value, process, lineage);
-      const constant = model.constantCoefficients(process, lineage);
-      return fixedCoefficientLogLik(evaluator.whiten(process), index, coefficient - evaluator.centre * constant[index], adjusted);
-    };
-    if (model.process.length === 0) return evaluate([]);
+  const evaluateAt = (value: number) => (process: number[]): number => {
+    const { index, coefficient } = model.fixLocation(name, value, process, lineage);
+    const constant = model.constantCoefficients(process, lineage);
+    return fixedCoefficientLogLik(evaluator.whiten(process), index, coefficient - evaluator.centre * constant[index], adjusted);
+  };
+  const at = (value: number): ProcessMaximum => {
+    const evaluate = evaluateAt(value);
+    if (model.process.length === 0) return { process: [], logLik: evaluate([]), positions: [] };
     // The higher of the warm searches from the nearest trial on the maximum's side and from the maximum (WarmStarts).
     let found: ProcessMaximum | null = null;
     for (const from of warm.startsFor(value)) {
@@ -301,8 +321,9 @@ export function profileFunction(
     }
     found ??= maximiseProcess(evaluate, model.process, lineage, { points });
     warm.add(value, found.process);
-    return found.logLik;
+    return found;
   };
+  return { at, evaluateAt, keep: (value, process) => warm.add(value, process) };
 }
 
 /**
@@ -373,48 +394,315 @@ export class WarmStarts {
   }
 
   private awayFromZero(process: readonly number[]): number[] {
-    return process.map((value, level) => {
-      const axis = this.model.process[level];
-      if (value !== 0 || !axis?.allowZero) return value;
-      const [lower, upper] = axis.range(this.lineage, process.slice(0, level));
-      return Math.sqrt(lower * upper);
-    });
+    return liftedOffZero(this.model, this.lineage, process);
   }
 }
 
 /**
- * Interval of a location parameter where a profile stays above `cutoff`:
- * from `start` (the profile's maximiser, where it is `peak`) each end by
- * {@link profileCrossing}, the first trial value where the quadratic with
- * the curvature 1/scale^2 of the GLS standard error `scale` falls to the
- * cut-off (issue 14b: about half the trial values of stepping out by
- * doubling multiples of `scale`, which this replaced, with the same ends to
- * the root finder's tolerance). An end not crossed within 2^59 scales of
- * the start is open (null, `AtBound` true).
+ * Process values with each value at an allowed bound 0 moved to the
+ * geometric middle of its range (a polish started at 0 stays on that face).
  *
- * @param peak the profile at `start` (its maximum); default: evaluated
+ * @example
+ * const lineage = lineageFromArrays({ time: [0, 1, 2, 3], mean: [0, 1, 3, 4], samplingVariance: [0.1, 0.1, 0.1, 0.1] });
+ * const [lower, upper] = randomWalk.process[0].range(lineage, []);
+ * liftedOffZero(randomWalk, lineage, [0])[0] === Math.sqrt(lower * upper); // true
+ * liftedOffZero(randomWalk, lineage, [2]); // [2] (not at 0: unchanged)
+ */
+export function liftedOffZero(model: EvolutionModel, lineage: Lineage, process: readonly number[]): number[] {
+  return process.map((value, level) => {
+    const axis = model.process[level];
+    if (value !== 0 || !axis?.allowZero) return value;
+    const [lower, upper] = axis.range(lineage, process.slice(0, level));
+    return Math.sqrt(lower * upper);
+  });
+}
+
+/**
+ * GLS estimate of design coefficient `index` and its variance
+ * [(X' V^-1 X)^-1]_ii from the whitened sums (R beta = z; the variance is
+ * the squared length of row `index` of R^-1), without allocating beyond a
+ * kept scratch. Call only where {@link profileLogLik} is finite.
+ *
+ * @example
+ * // One mean, unit sampling variances, means 1, 3 centred on 2: estimate 0 (the centred mean), variance 1/2 (closed form).
+ * const lineage = lineageFromArrays({ time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * const spread = coefficientSpread(new LikelihoodEvaluator(strictStasis, lineage).whiten([]), 0);
+ * spread.estimate; // 0 (to 1e-12)
+ * spread.variance; // 0.5 (to 1e-12)
+ */
+export function coefficientSpread(sums: WhitenedSums, index: number): { estimate: number; variance: number } {
+  const width = sums.width;
+  const triangle = sums.triangle;
+  if (spreadScratch.length < 2 * width) spreadScratch = new Float64Array(2 * width);
+  const coefficients = spreadScratch;
+  for (let i = width - 1; i >= 0; i--) {
+    let value = sums.projected[i];
+    for (let k = i + 1; k < width; k++) value -= triangle[i * width + k] * coefficients[k];
+    coefficients[i] = value / triangle[i * width + i];
+  }
+  const estimate = coefficients[index];
+  // Row `index` of R^-1 (upper triangular): u R = e_index, solved left to right from column `index`.
+  let variance = 0;
+  for (let column = index; column < width; column++) {
+    let value = column === index ? 1 : 0;
+    for (let k = index; k < column; k++) value -= spreadScratch[width + k] * triangle[k * width + column];
+    const entry = value / triangle[column * width + column];
+    spreadScratch[width + column] = entry;
+    variance += entry * entry;
+  }
+  return { estimate, variance };
+}
+
+let spreadScratch = new Float64Array(8);
+
+/**
+ * How far one side of a location parameter's interval reaches at given
+ * process values: the log-likelihood with the parameter's coefficient held
+ * at c and the other coefficients profiled by GLS is exactly the quadratic
+ * top(theta) - (c - c_hat)^2 / (2 s^2) (c_hat the GLS estimate, s^2 its
+ * variance; for the adjusted profile `top` also carries the restricted
+ * adjustment -0.5 ln det(X_r' V^-1 X_r) = -0.5 (ln det(X' V^-1 X) + ln s^2),
+ * which does not depend on c), so the values of the parameter where it stays
+ * above `cutoff` are the interval c_hat ± s sqrt(2 (top - cutoff)), mapped
+ * from the coefficient to the parameter through `fixLocation` (affine in the
+ * parameter). Returns `direction` × that interval's end on the side
+ * `direction` (so larger is farther out), -Infinity where the profile at
+ * these process values is below the cut-off everywhere, and +Infinity where
+ * the coefficient does not depend on the parameter (ou's optimum at alpha =
+ * 0) and the likelihood there is above the cut-off: every value is inside.
+ * Maximised over the process values this is the interval's end
+ * ({@link locationEndsBySupremum}).
+ *
+ * @example
+ * // Strict stasis, means 1 and 3, unit sampling variances: the mean's 95% ends are 2 ± 1.959964 sqrt(1/2) (closed form).
+ * const lineage = lineageFromArrays({ time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * const evaluator = new LikelihoodEvaluator(strictStasis, lineage);
+ * const cutoff = evaluator.profile([]) - 1.920729410347062;
+ * locationReach(evaluator, 'stasis_mean', false, cutoff, 1)([]); // 3.385903824349677 (to 1e-9)
+ * locationReach(evaluator, 'stasis_mean', false, cutoff, -1)([]); // -0.6140961756503224 (to 1e-9; minus the lower end)
+ */
+export function locationReach(evaluator: LikelihoodEvaluator, name: string, adjusted: boolean, cutoff: number, direction: 1 | -1): (process: number[]) => number {
+  const parts = reachParts(evaluator, name, adjusted, cutoff, direction);
+  return (process: number[]): number => {
+    const reach = parts(process);
+    return reach.whole ? Number.POSITIVE_INFINITY : reach.inside ? reach.value : Number.NEGATIVE_INFINITY;
+  };
+}
+
+/** What {@link locationReach} computes, where it is -Infinity outside the region continued by the mirror image of the root (finite), for the searches. */
+interface ReachParts {
+  /** direction × the end at these process values; outside the region, direction × (c_hat - s sqrt(2 (cutoff - top))) mapped (continuous at the region's edge, falling away from it). */
+  readonly value: number;
+  /** The profile at these process values reaches the cut-off (the value is an end, not the continuation). */
+  readonly inside: boolean;
+  /** Every value of the parameter is inside (its coefficient does not depend on it here). */
+  readonly whole: boolean;
+}
+
+function reachParts(evaluator: LikelihoodEvaluator, name: string, adjusted: boolean, cutoff: number, direction: 1 | -1): (process: number[]) => ReachParts {
+  const model = evaluator.model;
+  const lineage = evaluator.lineage;
+  const nowhere: ReachParts = { value: Number.NEGATIVE_INFINITY, inside: false, whole: false };
+  return (process: number[]): ReachParts => {
+    const sums = evaluator.whiten(process);
+    const logLik = profileLogLik(sums);
+    if (!Number.isFinite(logLik)) return nowhere;
+    const atZero = model.fixLocation(name, 0, process, lineage);
+    const index = atZero.index;
+    // The centred coefficient is perUnit × value + offset (the evaluator centres the trait).
+    const offset = atZero.coefficient - evaluator.centre * model.constantCoefficients(process, lineage)[index];
+    const perUnit = model.fixLocation(name, 1, process, lineage).coefficient - atZero.coefficient;
+    const { estimate, variance } = coefficientSpread(sums, index);
+    if (!(variance > 0) || !Number.isFinite(variance)) return nowhere;
+    const top = adjusted ? logLik - 0.5 * (informationLogDet(sums) + Math.log(variance)) : logLik;
+    if (!Number.isFinite(top)) return nowhere;
+    if (perUnit === 0) return top - (offset - estimate) ** 2 / (2 * variance) >= cutoff ? { value: Number.POSITIVE_INFINITY, inside: true, whole: true } : nowhere;
+    const room = top - cutoff;
+    const inside = room >= 0;
+    const half = Math.sqrt(2 * Math.abs(room) * variance) * (inside ? 1 : -1);
+    const end = ((direction * perUnit > 0 ? estimate + half : estimate - half) - offset) / perUnit;
+    return { value: direction * end, inside, whole: false };
+  };
+}
+
+/**
+ * Interval of a location parameter where its (plain or adjusted) profile
+ * stays above `cutoff`, each end found by one maximisation over the process
+ * values and a few Newton steps, instead of a root search whose every trial
+ * value maximises over them (issue 14). The upper end is
+ * sup{v : max_theta L(theta, v) >= cutoff} = max_theta of the upper end at
+ * fixed theta, which is closed-form ({@link locationReach}); likewise the
+ * lower end. That maximisation is the warm one of the profile searches
+ * (`maximiseProcess` with a start: the grid over every process axis, with 0
+ * where allowed, then polishes from the start and from the best grid point),
+ * from `best` (the process values at the profile's maximum, where the reach
+ * is finite) and from `best` lifted off any face at 0. Its maximum can sit a
+ * hair inside the edge of the region where the reach is defined (ou's
+ * adjusted optimum: 1e-3 of ln alpha), where a polish stalls; the farthest
+ * point found is inside the interval, so safeguarded Newton steps on the
+ * profile, from there, finish the end ({@link newtonCrossing}; the inner
+ * maximisations local from the last trial's maximiser, the warm global
+ * search where that is on a face at 0 or the local polish does not
+ * converge). The end is thus never inside a point already shown to be in the
+ * interval; a profile that dipped below the cut-off and rose again could
+ * give its outer crossing. An end beyond 2^59 `scale`s of `estimate`, or
+ * where every value is inside, is open (null, `AtBound` true).
+ *
+ * @param best process values at the profile's maximum (inside the interval's region)
+ * @param estimate the parameter's value at that maximum
+ * @param scale its standard-error-like step ({@link locationScale})
  * @param open a side (1 upper, -1 lower) known to be open, not searched ({@link trendLimitSide})
  *
  * @example
- * // The quadratic -(v - 2)^2 / 2 falls to -1.920729410347062 at 2 ± 1.959963984540054 (closed form).
- * const ends = locationEnds((value) => -0.5 * (value - 2) ** 2, 2, 1, -1.920729410347062);
- * ends.upper; // 3.959963984540054 (to 1e-9)
- * ends.lower; // 0.040036015459946 (to 1e-9)
+ * // Strict stasis, means 1 and 3, unit sampling variances: 2 ± 1.959964 sqrt(1/2) (closed form).
+ * const lineage = lineageFromArrays({ time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * const evaluator = new LikelihoodEvaluator(strictStasis, lineage);
+ * const ends = locationEndsBySupremum(evaluator, 'stasis_mean', false, evaluator.profile([]) - 1.920729410347062, [], 2, Math.SQRT1_2);
+ * ends.lower; // 0.6140961756503224 (to 1e-9)
+ * ends.upper; // 3.385903824349677 (to 1e-9)
  */
-export function locationEnds(at: (value: number) => number, start: number, scale: number, cutoff: number, peak?: number, open: 1 | -1 | 0 = 0): IntervalEnds {
-  const gap = (value: number): number => at(value) - cutoff;
-  const fromGap = peak !== undefined && Number.isFinite(peak) ? peak - cutoff : gap(start);
+export function locationEndsBySupremum(
+  evaluator: LikelihoodEvaluator,
+  name: string,
+  adjusted: boolean,
+  cutoff: number,
+  best: readonly number[],
+  estimate: number,
+  scale: number,
+  open: 1 | -1 | 0 = 0,
+  points = 12,
+): IntervalEnds {
+  const model = evaluator.model;
+  const lineage = evaluator.lineage;
   const end = (direction: 1 | -1): number | null => {
     if (direction === open) return null;
-    // Not above the cut-off at the start (a profile maximum that was not found): no interval around it, as before.
-    if (!(fromGap > 0)) return null;
-    const firstTrial = start + direction * Math.sqrt(2 * fromGap) * scale;
-    const root = profileCrossing(gap, start, fromGap, firstTrial, { tolerance: 1e-12, limit: start + direction * scale * 2 ** 59, maxSteps: 120 });
-    return root !== null && Number.isFinite(root) ? root : null;
+    const reach = reachParts(evaluator, name, adjusted, cutoff, direction);
+    // The farthest reach seen at process values inside the region (the search also sees the continuation outside it).
+    let everything = false;
+    let farthest = Number.NEGATIVE_INFINITY;
+    let farthestAt: readonly number[] = best;
+    const searched = (process: number[]): number => {
+      const found = reach(process);
+      if (found.whole) everything = true;
+      else if (found.inside && found.value > farthest) {
+        farthest = found.value;
+        farthestAt = process.slice();
+      }
+      return found.value;
+    };
+    searched(best.slice());
+    if (model.process.length > 0 && !everything) {
+      maximiseProcess(searched, model.process, lineage, { points, start: best });
+      // A start on a face (a variance at 0) polishes on that face only: the farthest reach can be off it, so also from
+      // the start lifted off it (zeros to the middle of their range, as WarmStarts does).
+      const lifted = liftedOffZero(model, lineage, best);
+      if (lifted.some((value, level) => value !== best[level])) maximiseProcess(searched, model.process, lineage, { points, start: lifted });
+    }
+    if (everything || !Number.isFinite(farthest)) return null;
+    const inside = direction * farthest;
+    if (Math.abs(inside - estimate) > scale * 2 ** 59) return null;
+    if (model.process.length === 0) return inside;
+    // The sup search was the global one (its grid covers every process axis, 0 included); each Newton trial maximises
+    // over the process values locally, from the last trial's maximiser, and only a polish that does not converge
+    // falls back to the warm global search of the profile.
+    const profile = locationProfile(evaluator, name, adjusted, points, { value: estimate, process: best });
+    profile.keep(inside, farthestAt);
+    let last: readonly number[] = farthestAt;
+    const maximumAt = (value: number): ProcessMaximum => {
+      const evaluate = profile.evaluateAt(value);
+      // From a face (a value at 0) a local polish cannot leave it, and the farthest reach can be off it (the sup searches'
+      // polishes, even from the start lifted off the face, can miss that): the warm global search of the profile there.
+      const onFace = last.some((processValue) => processValue === 0);
+      const start = { process: last, logLik: evaluate(last.slice()) };
+      const polished = onFace ? null : polishMaximum(evaluate, model.process, lineage, start, last.map((_, level) => level), { largestStep: 2, backtrack: true, iterations: 8 });
+      const found = polished?.converged ? { process: polished.process.slice(), logLik: polished.logLik, positions: [] } : profile.at(value);
+      last = found.process;
+      return found;
+    };
+    const root = newtonCrossing(evaluator, name, cutoff, direction, inside, estimate, maximumAt);
+    return root === null || Math.abs(root - estimate) > scale * 2 ** 59 ? null : root;
   };
   const lower = end(-1);
   const upper = end(1);
   return { lower, upper, lowerAtBound: lower === null, upperAtBound: upper === null };
+}
+
+/**
+ * Where a location parameter's profile P(v) crosses `cutoff` beyond `inside`
+ * (a value known to be inside the interval), by safeguarded Newton steps with
+ * the profile's exact slope: by the envelope theorem dP/dv is the partial
+ * derivative at the process values that maximise the profile at v, and there
+ * the log-likelihood is the quadratic of {@link locationReach} in the
+ * coefficient c = k v + b, so dP/dv = -k (c - c_hat) / s^2. Steps outward are
+ * at most 4 times the distance from the estimate; once a trial falls below
+ * the cut-off the root is kept in the bracket (false position with the
+ * Illinois halving when a Newton step leaves it; Dowell & Jarratt 1971, BIT
+ * 11:168-174, from memory). Converged when a Newton step is below 1e-12
+ * relative (the root finder's tolerance); null when it does not converge in
+ * 60 trials.
+ */
+function newtonCrossing(
+  evaluator: LikelihoodEvaluator,
+  name: string,
+  cutoff: number,
+  direction: 1 | -1,
+  inside: number,
+  estimate: number,
+  maximumAt: (value: number) => ProcessMaximum,
+): number | null {
+  const model = evaluator.model;
+  const lineage = evaluator.lineage;
+  const slopeAt = (value: number, process: readonly number[]): number => {
+    const sums = evaluator.whiten(process as number[]);
+    const atZero = model.fixLocation(name, 0, process, lineage);
+    const offset = atZero.coefficient - evaluator.centre * model.constantCoefficients(process, lineage)[atZero.index];
+    const perUnit = model.fixLocation(name, 1, process, lineage).coefficient - atZero.coefficient;
+    const { estimate: centre, variance } = coefficientSpread(sums, atZero.index);
+    return (-perUnit * (perUnit * value + offset - centre)) / variance;
+  };
+  let inner = inside;
+  let innerGap = Number.NaN;
+  let outer: number | null = null;
+  let outerGap = Number.NaN;
+  let value = inside;
+  let side = 0;
+  for (let trial = 0; trial < 60; trial++) {
+    const found = maximumAt(value);
+    const gap = found.logLik - cutoff;
+    if (!Number.isFinite(gap)) return null;
+    if (gap >= 0) {
+      inner = value;
+      innerGap = gap;
+    } else {
+      outer = value;
+      outerGap = gap;
+    }
+    const slope = slopeAt(value, found.process);
+    const newton = value - gap / slope;
+    const tolerance = 1e-12 * Math.max(1, Math.abs(value));
+    // Converged: the Newton step (toward the crossing from either side) is below the tolerance.
+    if (Number.isFinite(newton) && Math.abs(newton - value) <= tolerance) return newton;
+    let next = newton;
+    const reachable = Number.isFinite(newton) && direction * slope < 0;
+    if (outer === null) {
+      const farthest = inner + direction * Math.max(4 * Math.abs(inner - estimate), tolerance);
+      if (!reachable || direction * (next - inner) <= 0 || direction * (next - farthest) > 0) next = farthest;
+    } else if (!reachable || (next - inner) * (next - outer) >= 0) {
+      // Outside the bracket: false position, with the Illinois halving of the end kept twice in a row.
+      if (gap < 0) {
+        if (side === -1) innerGap *= 0.5;
+        side = -1;
+      } else {
+        if (side === 1) outerGap *= 0.5;
+        side = 1;
+      }
+      next = inner - innerGap * ((outer - inner) / (outerGap - innerGap));
+      if (!Number.isFinite(next) || (next - inner) * (next - outer) >= 0) next = 0.5 * (inner + outer);
+    }
+    if (outer !== null && Math.abs(outer - inner) <= tolerance) return inner;
+    value = next;
+  }
+  return null;
 }
 
 /**
@@ -490,7 +778,7 @@ export function intervalsByProfile(
     const scale = locationScale(evaluator, name, profile.process, profile.maximiser);
     // The side the trend limit opens (openTowardTrendLimit) is known first and not searched.
     const open = trendLimitSide(evaluator, name, profile.maximum - drop, request.adjusted);
-    result[name] = locationEnds(profile.at, profile.maximiser, scale, profile.maximum - drop, profile.maximum, open);
+    result[name] = locationEndsBySupremum(evaluator, name, request.adjusted, profile.maximum - drop, profile.process, profile.maximiser, scale, open);
   }
   return result;
 }

@@ -201,3 +201,18 @@ describe('integrated intervals agree with brute-force numerical integration of t
     expect(Math.abs(quantile(0.975) - high)).toBeLessThan(1e-3 * width);
   });
 });
+
+describe('an adjusted interval that leaves out its estimate: the plain profile, decided before the location parameters (issue 14)', () => {
+  it('moving-optimum on an invented 20-horizon lineage: alpha is left out, the fit falls back, and its intervals are the plain profile fit\'s', async () => {
+    const { benchLineage } = await import('../../bench/workload.js');
+    const { movingOptimum } = await import('../../src/models/moving-optimum.js');
+    // Before the process parameters were searched first the reason also named optimum and optimum_drift, whose adjusted
+    // intervals had been searched (and thrown away) too.
+    const lineage = benchLineage(20, 8);
+    const fit = fitModel(movingOptimum, lineage, { intervals: true, intervalMethod: 'integrated' });
+    expect(fit.intervalMethod).toBe('profile');
+    expect(fit.flags).toContain('intervals by the plain profile likelihood: the adjusted intervals left out the estimate of alpha');
+    const plain = fitModel(movingOptimum, lineage, { intervals: true, intervalMethod: 'profile' });
+    expect(fit.parameters).toEqual(plain.parameters);
+  });
+});

@@ -1,6 +1,9 @@
 import { describe, expect, it } from 'vitest';
 import { bracketedRoot, profileCrossing } from '../../src/fit/root-find.js';
-import { locationEnds } from '../../src/fit/intervals.js';
+import { LikelihoodEvaluator } from '../../src/fit/evaluator.js';
+import { locationEndsBySupremum } from '../../src/fit/intervals.js';
+import { lineageFromArrays } from '../../src/lineage.js';
+import { strictStasis } from '../../src/models/strict-stasis.js';
 
 // Half the 95% quantile of chi-square(1): 1.959963984540054^2 / 2 (common practice; the quantile from any table).
 const drop = 1.959963984540054 ** 2 / 2;
@@ -48,13 +51,18 @@ describe('profileCrossing: interval ends of a profile (issue 14b)', () => {
   });
 });
 
-describe('locationEnds on a normal-mean profile (closed form)', () => {
-  it('weighted-mean interval: estimate ± 1.959964 se, with and without the peak value given', () => {
-    const estimate = 2.25;
-    const se = 0.125;
-    const at = (value: number): number => 10 - (value - estimate) ** 2 / (2 * se * se);
-    for (const peak of [10, undefined]) {
-      const ends = locationEnds(at, estimate, se, 10 - drop, peak);
+describe('locationEndsBySupremum on a normal-mean profile (closed form)', () => {
+  it('strict stasis, unequal sampling variances: the weighted mean ± 1.959964 / sqrt(sum 1/e), plain and adjusted (one coefficient: no adjustment)', () => {
+    const samplingVariance = [0.5, 1, 2, 0.25];
+    const mean = [1, 3, 2.5, 1.75];
+    const weights = samplingVariance.map((e) => 1 / e);
+    const total = weights.reduce((sum, w) => sum + w, 0);
+    const estimate = weights.reduce((sum, w, i) => sum + w * mean[i], 0) / total;
+    const se = 1 / Math.sqrt(total);
+    const lineage = lineageFromArrays({ time: [0, 1, 2, 3], mean, samplingVariance });
+    const evaluator = new LikelihoodEvaluator(strictStasis, lineage);
+    for (const adjusted of [false, true]) {
+      const ends = locationEndsBySupremum(evaluator, 'stasis_mean', adjusted, evaluator.profile([]) - drop, [], estimate, se);
       expect(Math.abs((ends.lower as number) - (estimate - 1.959963984540054 * se))).toBeLessThan(1e-11);
       expect(Math.abs((ends.upper as number) - (estimate + 1.959963984540054 * se))).toBeLessThan(1e-11);
       expect(ends.lowerAtBound || ends.upperAtBound).toBe(false);
