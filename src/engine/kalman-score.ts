@@ -178,6 +178,10 @@ export function informationScoreWorkSize(width: number, count: number): number {
  * @param sums that pass's sums (only R, `triangle`, is read)
  * @param gradient output, overwritten: d ln det(X' V^-1 X) / dtheta_k (NaN when V is singular or R rank-deficient)
  * @param work scratch of length >= {@link informationScoreWorkSize}(width, derivatives.length)
+ * @param omit a design column to leave out (default none): then the gradient of ln det(X_r' V^-1 X_r), X_r
+ *   the design without that column, from ln det A_r = ln det A + ln (A^-1)_oo and d (A^-1)_oo = -2 a' W' dW a
+ *   (a the column of A^-1; the partitioned-inverse identity, e.g. Harville 1997, Matrix Algebra from a
+ *   Statistician's Perspective, section 13.3; from memory)
  * @example
  * // Two independent horizons of variance q + e around one mean: X' V^-1 X = 2 / (q + e), so d/dq ln det = -1 / (q + e) (closed form).
  * const space = allocateStateSpace(2, 1, Float64Array.of(1, 1)); space.design.fill(1); space.processVariance.fill(1);
@@ -187,7 +191,7 @@ export function informationScoreWorkSize(width: number, count: number): number {
  * informationScore(space, [derivative], sums, gradient, new Float64Array(informationScoreWorkSize(1, 1)));
  * gradient[0]; // -0.5 (to 1e-12)
  */
-export function informationScore(space: StateSpace, derivatives: readonly SpaceDerivative[], sums: WhitenedSums, gradient: Float64Array, work: Float64Array): void {
+export function informationScore(space: StateSpace, derivatives: readonly SpaceDerivative[], sums: WhitenedSums, gradient: Float64Array, work: Float64Array, omit = -1): void {
   const { size, width, transition, processVariance, observationVariance, design } = space;
   const count = derivatives.length;
   // Layout of `work`: filtered column states af_j; their derivatives af'_kj; Pf'_k; this row's F'_k; the
@@ -273,5 +277,14 @@ export function informationScore(space: StateSpace, derivatives: readonly SpaceD
     let trace = 0;
     for (let l = 0; l < width; l++) for (let j = 0; j < width; j++) trace += work[inverseInformation + j * width + l] * work[base + l * width + j];
     gradient[k] = 2 * trace;
+    if (omit < 0) continue;
+    // Without column `omit`: ln det A_rr = ln det A + ln (A^-1)_oo (the Schur complement), and
+    // d (A^-1)_oo = -a' dA a = -2 a' (W'dW) a with a the column `omit` of A^-1.
+    let quadratic = 0;
+    for (let l = 0; l < width; l++) {
+      const left = work[inverseInformation + l * width + omit];
+      for (let j = 0; j < width; j++) quadratic += left * work[base + l * width + j] * work[inverseInformation + j * width + omit];
+    }
+    gradient[k] -= (2 * quadratic) / work[inverseInformation + omit * width + omit];
   }
 }

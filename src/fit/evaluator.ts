@@ -164,6 +164,9 @@ export class LikelihoodEvaluator {
    *
    * @param process process values (natural units)
    * @param gradient output, length >= the number of process axes
+   * @param omit a design column whose coefficient is held rather than integrated out (default none): the gradient is
+   *   then that of the profile minus 0.5 ln det(X_r' V^-1 X_r), X_r without that column (the adjusted profile of a
+   *   location parameter maximised over it, `parameterProfile`); the returned value is still the full restricted one
    * @returns the restricted log-likelihood
    * @example
    * // Stasis, two horizons of unit sampling variance, means 1 and 3: X'V^-1 X = 2 / (omega + 1), so the restricted logL is
@@ -174,7 +177,7 @@ export class LikelihoodEvaluator {
    * evaluator.restrictedScore([3], gradient); // -3.1275978372492634 (to 1e-12; -ln 2 pi - 1.5 ln 2 - 0.25 at omega = 3)
    * gradient[0]; // -0.0625 (to 1e-12; -1/8 + 1/16)
    */
-  restrictedScore(process: ArrayLike<number>, gradient: Float64Array): number {
+  restrictedScore(process: ArrayLike<number>, gradient: Float64Array, omit = -1): number {
     const logLik = this.profileScore(process, gradient);
     const count = this.model.process.length;
     if (!Number.isFinite(logLik)) return Number.NEGATIVE_INFINITY;
@@ -184,7 +187,7 @@ export class LikelihoodEvaluator {
     this.informationScratch ??= { work: new Float64Array(informationScoreWorkSize(width, count)), gradient: new Float64Array(count) };
     const { work, gradient: information } = this.informationScratch;
     const derivatives = (this.scoreScratch as { derivatives: SpaceDerivative[] }).derivatives;
-    informationScore(this.space, derivatives, sums, information, work);
+    informationScore(this.space, derivatives, sums, information, work, omit);
     for (let k = 0; k < count; k++) gradient[k] -= 0.5 * information[k];
     return logLik - 0.5 * informationLogDet(sums);
   }

@@ -166,3 +166,41 @@ describe('restrictedScore: gradient of the restricted log-likelihood', () => {
     expect(Number.isNaN(gradient[0])).toBe(true);
   });
 });
+
+describe('the adjusted supremum of a location parameter: its gradient (issue 14)', () => {
+  // locationSupremum's adjusted value is profile - 0.5 ln det(X_r' V^-1 X_r), X_r the design without the parameter's
+  // column, computed from the reduced QR factor (reducedProfileSummary). Its gradient (supremumScore: restrictedScore
+  // with `omit`) is checked against central finite differences of that value (Abramowitz & Stegun 1964, 25.3.21; from
+  // memory), h = 1e-5 relative, for ou's two location parameters at interior process values.
+  it('ou, ancestral_mean and optimum, three seeded lineages: slopes agree to 1e-6 relative', async () => {
+    const { reducedProfileSummary, profileLogLik } = await import('../../src/engine/gls.js');
+    const { supremumScore } = await import('../../src/fit/intervals.js');
+    const ou = findModel('ou');
+    if (!ou) throw new Error('ou not registered');
+    for (const seed of [3, 17, 29]) {
+      const lineage = seededLineage(14, seed);
+      const evaluator = new LikelihoodEvaluator(ou, lineage);
+      for (const name of ['ancestral_mean', 'optimum']) {
+        const index = ou.fixLocation(name, 0, [1, 1], lineage).index;
+        const value = (process: number[]): number => {
+          const sums = evaluator.whiten(process);
+          return profileLogLik(sums) - 0.5 * reducedProfileSummary(sums, index, 0).logDetInformation;
+        };
+        const score = supremumScore(evaluator, name, true);
+        if (!score) throw new Error('ou has derivatives');
+        for (const process of [[0.4, 0.05], [1.3, 0.2], [0.08, 0.01]]) {
+          const slopes = Array.from(score(process.slice()));
+          for (let k = 0; k < 2; k++) {
+            const h = 1e-5 * process[k];
+            const up = process.slice();
+            const down = process.slice();
+            up[k] += h;
+            down[k] -= h;
+            const numeric = (value(up) - value(down)) / (2 * h);
+            expect(Math.abs(slopes[k] - numeric)).toBeLessThan(1e-6 * Math.max(1, Math.abs(numeric)));
+          }
+        }
+      }
+    }
+  });
+});
