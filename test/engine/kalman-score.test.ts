@@ -1,10 +1,10 @@
 import { Matrix, inverse } from 'ml-matrix';
 import { describe, expect, it } from 'vitest';
 import { LikelihoodEvaluator } from '../../src/fit/evaluator.js';
-import { lineageFromArrays, type Lineage } from '../../src/lineage.js';
+import type { Lineage } from '../../src/lineage.js';
 import { relaxedTimeSlope } from '../../src/models/ou.js';
 import { findModel } from '../../src/models/registry.js';
-import { createRandom } from '../../src/random/random.js';
+import { approachingLineage } from '../support/random-lineage.js';
 
 // The score recursions (src/engine/kalman-score.ts) through
 // LikelihoodEvaluator.profileScore: the gradient of ou's profile
@@ -24,19 +24,6 @@ import { createRandom } from '../../src/random/random.js';
 //    inverted by ml-matrix.
 
 const ou = findModel('ou')!;
-
-function seededLineage(size: number, seed: number): Lineage {
-  const random = createRandom(seed);
-  const time = [0];
-  for (let i = 1; i < size; i++) time.push(time[i - 1] + 0.2 + random.uniform() * 1.5);
-  const samplingVariance = time.map(() => 0.02 + 0.1 * random.uniform());
-  let level = 1;
-  const mean = time.map((t, i) => {
-    if (i > 0) level += 0.6 * (2 - level) * (t - time[i - 1]) * 0.3 + 0.3 * random.normal();
-    return level + Math.sqrt(samplingVariance[i]) * random.normal();
-  });
-  return lineageFromArrays({ time, mean, samplingVariance });
-}
 
 /** The dense derivative of item 2 above, in natural units of (alpha, step_variance). */
 function denseGradient(lineage: Lineage, alpha: number, stepVariance: number): [number, number] {
@@ -78,7 +65,7 @@ describe('score recursions: gradient of the profile log-likelihood (ou)', () => 
   ];
   for (const [size, seed, alpha, stepVariance] of cases) {
     it(`matches central differences and the dense derivative (N = ${size}, alpha = ${alpha}, step_variance = ${stepVariance})`, () => {
-      const lineage = seededLineage(size, seed);
+      const lineage = approachingLineage(size, seed);
       const evaluator = new LikelihoodEvaluator(ou, lineage);
       const gradient = new Float64Array(2);
       const logLik = evaluator.profileScore([alpha, stepVariance], gradient);
@@ -103,7 +90,7 @@ describe('score recursions: gradient of the profile log-likelihood (ou)', () => 
   }
 
   it('at alpha = 0 is the one-sided derivative: the central difference at a tiny alpha', () => {
-    const lineage = seededLineage(15, 5);
+    const lineage = approachingLineage(15, 5);
     const evaluator = new LikelihoodEvaluator(ou, lineage);
     const atZero = new Float64Array(2);
     evaluator.profileScore([0, 0.1], atZero);
@@ -154,7 +141,7 @@ describe('score recursions: the variance of the walks and of stasis', () => {
   for (const id of Object.keys(covariances)) {
     it(`${id}: matches central differences and the dense derivative`, () => {
       const model = findModel(id)!;
-      const lineage = { ...seededLineage(18, 7), covariate };
+      const lineage = { ...approachingLineage(18, 7), covariate };
       const evaluator = new LikelihoodEvaluator(model, lineage);
       const t = Array.from(lineage.time);
       const n = t.length;

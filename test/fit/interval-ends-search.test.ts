@@ -3,6 +3,7 @@ import { benchLineage } from '../../bench/workload.js';
 import { fitModel } from '../../src/fit/fit-model.js';
 import type { Lineage } from '../../src/lineage.js';
 import { ornsteinUhlenbeck as ou } from '../../src/models/ou.js';
+import { goldenSection } from '../support/random-lineage.js';
 
 // Issue 14b: the interval-end search (root-find.ts, warm-started location profiles) against a dense reference.
 // The reference profile of ou at a fixed ancestral_mean or optimum is written here from the definitions
@@ -60,30 +61,6 @@ function denseOuLogLik(lineage: Lineage, name: 'ancestral_mean' | 'optimum', val
   return -0.5 * (size * Math.log(2 * Math.PI) + logDet + residual);
 }
 
-function goldenMax(f: (x: number) => number, low: number, high: number): number {
-  const ratio = (Math.sqrt(5) - 1) / 2;
-  let c = high - ratio * (high - low);
-  let d = low + ratio * (high - low);
-  let fc = f(c);
-  let fd = f(d);
-  for (let k = 0; k < 50; k++) {
-    if (fc > fd) {
-      high = d;
-      d = c;
-      fd = fc;
-      c = high - ratio * (high - low);
-      fc = f(c);
-    } else {
-      low = c;
-      c = d;
-      fc = fd;
-      d = low + ratio * (high - low);
-      fd = f(d);
-    }
-  }
-  return 0.5 * (low + high);
-}
-
 /** Reference profile: max over ln alpha (alpha span 1e-5 .. alpha min-spacing 40, the fitter's documented range) and ln sigma2 (or 0). */
 function denseOuProfile(lineage: Lineage, name: 'ancestral_mean' | 'optimum', value: number): number {
   const time = lineage.time;
@@ -123,10 +100,10 @@ function denseOuProfile(lineage: Lineage, name: 'ancestral_mean' | 'optimum', va
           centre = v;
         }
       }
-      const v = goldenMax((vv) => at(a, vv), Math.max(logVariance[0], centre - cellVariance), Math.min(logVariance[1], centre + cellVariance));
+      const v = goldenSection((vv) => at(a, vv), Math.max(logVariance[0], centre - cellVariance), Math.min(logVariance[1], centre + cellVariance), 50).at;
       return Math.max(at(a, Number.NEGATIVE_INFINITY), at(a, v), top);
     };
-    const a = goldenMax(inner, Math.max(logAlpha[0], start.a - cellAlpha), Math.min(logAlpha[1], start.a + cellAlpha));
+    const a = goldenSection(inner, Math.max(logAlpha[0], start.a - cellAlpha), Math.min(logAlpha[1], start.a + cellAlpha), 50).at;
     best = Math.max(best, inner(a), start.value);
   }
   return best;

@@ -7,6 +7,7 @@ import { chiSquare1At95 } from '../../src/fit/model-choice.js';
 import { maximiseProcess } from '../../src/fit/search.js';
 import type { Lineage } from '../../src/lineage.js';
 import { ornsteinUhlenbeck as ou } from '../../src/models/ou.js';
+import { goldenSection } from '../support/random-lineage.js';
 
 // Issue 14: ou's process-parameter interval ends (alpha, step_variance) found on the analytic gradient of the
 // plain profile (profileScore) and of the restricted profile (restrictedScore), checked against:
@@ -64,30 +65,6 @@ function denseOu(lineage: Lineage, alpha: number, stepVariance: number, restrict
   return restricted ? logLik - 0.5 * Math.log(determinant) : logLik;
 }
 
-function goldenMax(f: (x: number) => number, low: number, high: number): number {
-  const ratio = (Math.sqrt(5) - 1) / 2;
-  let c = high - ratio * (high - low);
-  let d = low + ratio * (high - low);
-  let fc = f(c);
-  let fd = f(d);
-  for (let k = 0; k < 60; k++) {
-    if (fc > fd) {
-      high = d;
-      d = c;
-      fd = fc;
-      c = high - ratio * (high - low);
-      fc = f(c);
-    } else {
-      low = c;
-      c = d;
-      fc = fd;
-      d = low + ratio * (high - low);
-      fd = f(d);
-    }
-  }
-  return Math.max(fc, fd);
-}
-
 /** The reference profile of axis `axisIndex` at `value`: the other axis maximised over its grid, its refinements and its 0. */
 function denseProfile(lineage: Lineage, axisIndex: number, value: number, restricted: boolean): number {
   const time = lineage.time;
@@ -104,7 +81,7 @@ function denseProfile(lineage: Lineage, axisIndex: number, value: number, restri
   const grid = Array.from({ length: points }, (_, k) => ({ x: low + k * cell, value: at(low + k * cell) }));
   let best = axisIndex === 1 ? denseOu(lineage, 0, value, restricted) : denseOu(lineage, value, 0, restricted);
   for (const point of grid.slice().sort((p, q) => q.value - p.value).slice(0, 3)) {
-    best = Math.max(best, point.value, goldenMax(at, Math.max(low, point.x - cell), Math.min(high, point.x + cell)));
+    best = Math.max(best, point.value, goldenSection(at, Math.max(low, point.x - cell), Math.min(high, point.x + cell)).value);
   }
   return best;
 }

@@ -4,7 +4,7 @@ import { LikelihoodEvaluator } from '../../src/fit/evaluator.js';
 import { restrictedLogLik } from '../../src/fit/intervals.js';
 import { lineageFromArrays, type Lineage } from '../../src/lineage.js';
 import { findModel } from '../../src/models/registry.js';
-import { createRandom } from '../../src/random/random.js';
+import { approachingLineage } from '../support/random-lineage.js';
 
 // LikelihoodEvaluator.restrictedScore: the gradient of the restricted (REML-type) log-likelihood (ou, the walks, stasis
 // and the two covariate models)
@@ -20,19 +20,6 @@ import { createRandom } from '../../src/random/random.js';
 //    from memory; the derivative of ln det and of an inverse are common practice), with dV by central
 //    differences of the dense covariance in the parameter (step 1e-6 relative; the covariance is smooth in it)
 //    and X, dX from MODELS.md's designs, all inverted by ml-matrix.
-
-function seededLineage(size: number, seed: number): Lineage {
-  const random = createRandom(seed);
-  const time = [0];
-  for (let i = 1; i < size; i++) time.push(time[i - 1] + 0.2 + random.uniform() * 1.5);
-  const samplingVariance = time.map(() => 0.02 + 0.1 * random.uniform());
-  let level = 1;
-  const mean = time.map((t, i) => {
-    if (i > 0) level += 0.6 * (2 - level) * (t - time[i - 1]) * 0.3 + 0.3 * random.normal();
-    return level + Math.sqrt(samplingVariance[i]) * random.normal();
-  });
-  return lineageFromArrays({ time, mean, samplingVariance });
-}
 
 /** The designs of MODELS.md (ou in the basis exp(-alpha t), (1 - exp(-alpha t)) / alpha) and their derivatives per process axis. */
 const designs: Record<string, (process: number[], t: number, i: number) => { row: number[]; slopes: number[][] }> = {
@@ -121,7 +108,7 @@ describe('restrictedScore: gradient of the restricted log-likelihood', () => {
   ];
   for (const [id, size, seed, process] of cases) {
     it(`${id} at ${process.join(', ')} (N = ${size}): matches central differences and the dense closed form`, () => {
-      const seeded = seededLineage(size, seed);
+      const seeded = approachingLineage(size, seed);
       const lineage = id.startsWith('covariate') ? { ...seeded, covariate } : seeded;
       const evaluator = new LikelihoodEvaluator(findModel(id)!, lineage);
       const gradient = new Float64Array(process.length);
@@ -146,7 +133,7 @@ describe('restrictedScore: gradient of the restricted log-likelihood', () => {
   }
 
   it('differs from the profile gradient by the design term (ou: the adjustment depends on alpha and the step variance)', () => {
-    const lineage = seededLineage(20, 11);
+    const lineage = approachingLineage(20, 11);
     const evaluator = new LikelihoodEvaluator(findModel('ou')!, lineage);
     const restricted = new Float64Array(2);
     const profile = new Float64Array(2);
@@ -178,7 +165,7 @@ describe('the adjusted supremum of a location parameter: its gradient (issue 14)
     const ou = findModel('ou');
     if (!ou) throw new Error('ou not registered');
     for (const seed of [3, 17, 29]) {
-      const lineage = seededLineage(14, seed);
+      const lineage = approachingLineage(14, seed);
       const evaluator = new LikelihoodEvaluator(ou, lineage);
       for (const name of ['ancestral_mean', 'optimum']) {
         const index = ou.fixLocation(name, 0, [1, 1], lineage).index;
