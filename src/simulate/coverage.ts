@@ -62,8 +62,8 @@ export function coverageReplicate(task: CoverageTask): CoverageResult {
   const fallbacks: Record<string, boolean> = {};
   if (!fit.converged) return { index: task.index, converged: false, intervals, fallbacks };
   const evaluator = new LikelihoodEvaluator(model, lineage);
-  const ends = (evaluate: (process: number[]) => number, best: readonly number[], axisIndex: number, cutoff: number): IntervalEnds =>
-    processInterval(evaluate, model, lineage, best, axisIndex, cutoff);
+  const ends = (evaluate: (process: number[]) => number, best: readonly number[], axisIndex: number, cutoff: number, gradient?: (process: number[]) => ArrayLike<number>): IntervalEnds =>
+    processInterval(evaluate, model, lineage, best, axisIndex, cutoff, gradient);
   for (const method of task.methods) {
     const fixed = method === 'bootstrap' ? task.bootstrapCutoff : undefined;
     if (fixed) {
