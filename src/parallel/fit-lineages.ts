@@ -19,7 +19,7 @@ export const parallelThreshold = 24;
 
 /** Options of {@link fitLineages}. */
 export interface BatchOptions {
-  /** Threads: 1 fits in the calling thread; default: the machine's parallelism when the batch is large enough. */
+  /** Threads, the calling thread included (n > 1: it and n − 1 workers); 1 fits in the calling thread alone; default: the machine's parallelism when the batch is large enough. */
   threads?: number;
   /** Called as lineages finish (in chunks on workers). */
   onProgress?: (done: number, total: number) => void;
