@@ -1,5 +1,4 @@
 import { availableParallelism } from 'node:os';
-import { setFlagsFromString } from 'node:v8';
 import { existsSync } from 'node:fs';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { Worker } from 'node:worker_threads';
@@ -149,7 +148,7 @@ export async function runTasks<T = Task, R = unknown>(
   };
   try {
     for (let w = 0; w < workerCount && script !== null; w++) {
-      const worker = startWorker(script, { workerData: { module: moduleHref, exportName }, execArgv: workerExecArgv() });
+      const worker = new Worker(script, { workerData: { module: moduleHref, exportName }, execArgv: workerExecArgv() });
       workers.push(worker);
       inFlight.push(0);
       worker.on('message', (reply: WorkerReply) => {
@@ -237,46 +236,6 @@ async function runInline<T, R>(run: (task: unknown) => unknown, tasks: readonly 
     if ((index + 1) % step === 0 || index + 1 === tasks.length) options.onProgress?.(index + 1, tasks.length);
   }
   return results;
-}
-
-/**
- * Young-generation semi-space a worker starts with, in MiB: V8's default
- * largest one on 64-bit machines (from memory; `node --trace-gc` shows the
- * main thread's scavenges freeing 16 MB each once its heap has grown). A new
- * isolate starts at 1–2 MiB and, as fitting keeps little alive, grows slowly:
- * in a 400-lineage batch on 2 threads a worker scavenged about 340 times for
- * its ~200 fits, the main thread about 180 times for the same number, and the
- * worker's scavenge pauses summed to 1.2–1.6 s against 0.45–0.64 s when it
- * started at this size (issue 14; `--trace-gc`, load average 4.5–5).
- */
-export const workerSemiSpaceMiB = 16;
-
-/** Workers being started with the larger semi-space (the flag is reset when the last is running). */
-let startingWorkers = 0;
-
-/**
- * Start a worker whose heap begins with a {@link workerSemiSpaceMiB} semi-space.
- * Node accepts no V8 heap flags per worker (`execArgv`, `resourceLimits` has
- * only maximum sizes), so V8's process-wide `--min-semi-space-size` is set
- * while the worker's isolate is created (read once, when a heap is set up)
- * and put back to its default (0: V8 chooses) once every worker started here
- * is online. Left alone when the node command line sets semi-space sizes.
- */
-function startWorker(script: URL, options: ConstructorParameters<typeof Worker>[1]): Worker {
-  const userSet = process.execArgv.some((arg) => /^--(min|max)[-_]semi[-_]space[-_]size/.test(arg));
-  if (userSet) return new Worker(script, options);
-  if (startingWorkers++ === 0) setFlagsFromString(`--min-semi-space-size=${workerSemiSpaceMiB}`);
-  const worker = new Worker(script, options);
-  let started = false;
-  const settled = (): void => {
-    if (started) return;
-    started = true;
-    if (--startingWorkers === 0) setFlagsFromString('--min-semi-space-size=0');
-  };
-  worker.once('online', settled);
-  worker.once('error', settled);
-  worker.once('exit', settled);
-  return worker;
 }
 
 /**

@@ -1,6 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { Worker } from 'node:worker_threads';
-import { guidedChunk, runTasks, TaskError, workerSemiSpaceMiB } from '../../src/parallel/pool.js';
+import { guidedChunk, runTasks, TaskError } from '../../src/parallel/pool.js';
 
 const fixture = new URL('./fixtures/arithmetic.mjs', import.meta.url);
 const numbers = Array.from({ length: 57 }, (_, i) => i);
@@ -84,18 +83,6 @@ describe('runTasks (worker pool)', () => {
     expect(onWorker).toBeInstanceOf(TaskError);
     expect((onWorker as TaskError).taskIndex).toBe(0);
     expect((onWorker as TaskError).originalName).toBe('TypeError');
-  });
-
-  it('starts workers with a full-size young generation and leaves other workers alone (issue 14)', async () => {
-    // V8 starts a heap with a 1-2 MiB semi-space (seen with --trace-gc; from memory); the pool's workers start at
-    // workerSemiSpaceMiB, fewer scavenges for the same fits. Tasks run one per chunk, so the worker answers some.
-    const sizes = await runTasks<number, number>(fixture, 'newSpaceSize', [1, 2, 3, 4, 5, 6], { threads: 2, chunkSize: 1 });
-    expect(Math.max(...sizes)).toBe(workerSemiSpaceMiB * 2 ** 20);
-    // The process-wide flag is back to its default once the pool's workers run: a worker started later is not affected.
-    const later = new Worker(new URL('./fixtures/new-space-worker.mjs', import.meta.url));
-    const size = await new Promise<number>((resolve, reject) => later.once('message', resolve).once('error', reject));
-    await later.terminate();
-    expect(size).toBeLessThan(workerSemiSpaceMiB * 2 ** 20);
   });
 
   it('rejects a missing export', async () => {
