@@ -7,9 +7,11 @@ import type { WorkerReply, WorkerRequest } from './worker.js';
 /** Options of {@link runTasks}. */
 export interface PoolOptions {
   /**
-   * Number of threads. 1 runs every task inline in the calling thread (no
-   * worker is started); the default is the machine's available parallelism.
-   * Never more workers are started than there are chunks of tasks.
+   * Number of threads, the calling thread included: 1 runs every task inline
+   * (no worker is started), n > 1 starts n − 1 workers and runs tasks in the
+   * calling thread too; the default is the machine's available parallelism.
+   * Never more workers are started than there are chunks of tasks left after
+   * the calling thread's first task.
    */
   threads?: number;
   /**
@@ -75,10 +77,13 @@ type Task = unknown;
  * numbers, strings, arrays, typed arrays, plain objects); the function may be
  * synchronous or return a promise. With `threads: 1` everything runs inline
  * in the calling thread, which gives exactly the same results (useful for
- * small inputs, where starting workers costs more than it saves).
+ * small inputs, where starting workers costs more than it saves). With more
+ * threads the calling thread is one of them (issue 14): `threads: 2` starts
+ * one worker and fits tasks in this thread too, one at a time, answering the
+ * worker between tasks.
  *
- * A task that throws rejects the whole run with a {@link TaskError} naming
- * the task index; the other workers are stopped.
+ * A task that throws (in a worker or in this thread) rejects the whole run
+ * with a {@link TaskError} naming the task index; the workers are stopped.
  *
  * @example
  * // One thread runs inline (no worker started); a worker needs the compiled module in dist/.
@@ -97,55 +102,92 @@ export async function runTasks<T = Task, R = unknown>(
   const threads = Math.max(1, Math.floor(options.threads ?? availableParallelism()));
   const results: R[] = new Array(total);
   if (total === 0) return results;
-  if (threads === 1) return runInline(module, exportName, tasks, options, results);
+  const run = await loadTask(module, exportName);
+  if (threads === 1) return runInline(run, tasks, options, results);
   const fixedChunk = options.chunkSize === undefined ? null : Math.max(1, Math.floor(options.chunkSize));
-  const workerCount = Math.min(threads, fixedChunk === null ? total : Math.ceil(total / fixedChunk));
-  const moduleHref = compiledModule(module);
-  const script = workerScript();
+  // This thread takes tasks one at a time, so a worker is only worth starting when some chunk is left for it.
+  const workerCount = Math.min(threads - 1, fixedChunk === null ? total - 1 : Math.ceil(total / fixedChunk) - 1);
+  const moduleHref = workerCount > 0 ? compiledModule(module) : '';
+  const script = workerCount > 0 ? workerScript() : null;
   let sent = 0;
   let done = 0;
+  let reported = 0;
+  const step = Math.max(1, Math.ceil(total / 100));
   const workers: Worker[] = [];
+  const inFlight: number[] = [];
+  let failed = false;
+  let settle: { resolve: () => void; reject: (error: Error) => void } = { resolve: () => undefined, reject: () => undefined };
+  const finished = new Promise<void>((resolve, reject) => {
+    settle = { resolve, reject };
+  });
+  // A worker may fail while this thread is between tasks: the rejection is awaited below, not unhandled meanwhile.
+  finished.catch(() => undefined);
+  const fail = (error: Error): void => {
+    if (failed) return;
+    failed = true;
+    settle.reject(error);
+  };
+  const progress = (force: boolean): void => {
+    if (!force && done - reported < step && done < total) return;
+    reported = done;
+    options.onProgress?.(done, total);
+  };
+  const sendNext = (w: number): void => {
+    if (sent >= total || failed) return;
+    const start = sent;
+    const size = fixedChunk ?? guidedChunk(total - sent, threads);
+    sent = Math.min(total, start + size);
+    const request: WorkerRequest = { start, tasks: tasks.slice(start, sent) };
+    inFlight[w]++;
+    workers[w].postMessage(request);
+  };
+  // Two chunks in flight per worker: the next one is already queued when a worker posts its results, so it never
+  // waits for this thread to finish its own task, read the results and answer.
+  const topUp = (): void => {
+    for (let w = 0; w < workers.length; w++) while (inFlight[w] < 2 && sent < total && !failed) sendNext(w);
+  };
   try {
-    await new Promise<void>((resolve, reject) => {
-      let failed = false;
-      const fail = (error: Error): void => {
+    for (let w = 0; w < workerCount && script !== null; w++) {
+      const worker = new Worker(script, { workerData: { module: moduleHref, exportName }, execArgv: workerExecArgv() });
+      workers.push(worker);
+      inFlight.push(0);
+      worker.on('message', (reply: WorkerReply) => {
         if (failed) return;
-        failed = true;
-        reject(error);
-      };
-      const sendNext = (worker: Worker): void => {
-        if (sent >= total) return;
-        const start = sent;
-        const size = fixedChunk ?? guidedChunk(total - sent, workerCount);
-        sent = Math.min(total, start + size);
-        const request: WorkerRequest = { start, tasks: tasks.slice(start, sent) };
-        worker.postMessage(request);
-      };
-      for (let w = 0; w < workerCount; w++) {
-        const worker = new Worker(script, { workerData: { module: moduleHref, exportName }, execArgv: workerExecArgv() });
-        workers.push(worker);
-        worker.on('message', (reply: WorkerReply) => {
-          if (failed) return;
-          if (reply.kind === 'error') {
-            fail(new TaskError(reply.index, reply.name, reply.message, reply.stack));
-            return;
-          }
-          for (let j = 0; j < reply.results.length; j++) results[reply.start + j] = reply.results[j] as R;
-          done += reply.results.length;
-          options.onProgress?.(done, total);
-          if (done === total) resolve();
-          else sendNext(worker);
-        });
-        worker.on('error', (error) => fail(error));
-        worker.on('exit', (code) => {
-          if (code !== 0 && !failed && done < total) fail(new Error(`worker thread stopped with exit code ${code}`));
-        });
-        // Two chunks in flight per worker: the next one is already queued when a worker posts its results, so it
-        // never waits for the main thread to read them and answer.
-        sendNext(worker);
-        sendNext(worker);
+        if (reply.kind === 'error') {
+          fail(new TaskError(reply.index, reply.name, reply.message, reply.stack));
+          return;
+        }
+        inFlight[w]--;
+        for (let j = 0; j < reply.results.length; j++) results[reply.start + j] = reply.results[j] as R;
+        done += reply.results.length;
+        progress(true);
+        if (done === total) settle.resolve();
+        else topUp();
+      });
+      worker.on('error', (error) => fail(error));
+      worker.on('exit', (code) => {
+        if (code !== 0 && !failed && done < total) fail(new Error(`worker thread stopped with exit code ${code}`));
+      });
+      // One chunk each to begin with, so a short run leaves tasks for this thread too; the second follows below.
+      sendNext(w);
+    }
+    // This thread's share: one task at a time from the same queue, yielding between tasks so the workers' results
+    // are read and answered (their second chunk is topped up here) while this thread is busy.
+    while (sent < total && !failed) {
+      const index = sent++;
+      topUp();
+      try {
+        results[index] = (await run(tasks[index])) as R;
+      } catch (error) {
+        fail(taskError(index, error));
+        break;
       }
-    });
+      done++;
+      progress(false);
+      if (done === total) settle.resolve();
+      await new Promise<void>((resolve) => setImmediate(resolve));
+    }
+    await finished;
   } finally {
     await Promise.all(workers.map((worker) => worker.terminate()));
   }
@@ -168,18 +210,28 @@ export function guidedChunk(remaining: number, workers: number): number {
   return Math.max(1, Math.ceil(remaining / (4 * workers)));
 }
 
-async function runInline<T, R>(module: string | URL, exportName: string, tasks: readonly T[], options: PoolOptions, results: R[]): Promise<R[]> {
+/** The task function, loaded in this thread (the module as given: under vitest, its source). */
+async function loadTask(module: string | URL, exportName: string): Promise<(task: unknown) => unknown> {
   const href = module instanceof URL ? module.href : module.startsWith('file:') ? module : pathToFileURL(module).href;
   const loaded = (await import(href)) as Record<string, unknown>;
   const run = loaded[exportName];
   if (typeof run !== 'function') throw new Error(`${href} does not export a function named "${exportName}"`);
+  return run as (task: unknown) => unknown;
+}
+
+/** A {@link TaskError} for task `index` from whatever it threw. */
+function taskError(index: number, error: unknown): TaskError {
+  const cause = error as Error;
+  return new TaskError(index, cause?.name ?? 'Error', cause?.message ?? String(error), cause?.stack);
+}
+
+async function runInline<T, R>(run: (task: unknown) => unknown, tasks: readonly T[], options: PoolOptions, results: R[]): Promise<R[]> {
   const step = Math.max(1, Math.ceil(tasks.length / 100));
   for (let index = 0; index < tasks.length; index++) {
     try {
       results[index] = (await run(tasks[index])) as R;
     } catch (error) {
-      const cause = error as Error;
-      throw new TaskError(index, cause?.name ?? 'Error', cause?.message ?? String(error), cause?.stack);
+      throw taskError(index, error);
     }
     if ((index + 1) % step === 0 || index + 1 === tasks.length) options.onProgress?.(index + 1, tasks.length);
   }

@@ -25,7 +25,7 @@ export function defineBootstrapCommand(program: Command): void {
   ), { draws: false })
     .option('--replicates <R>', 'replicates drawn from each fitted null model', '200')
     .option('--seed <s>', 'seed (same seed, same results on any number of threads)', '1')
-    .option('--threads <k>', 'worker threads (default: every core)')
+    .option('--threads <k>', 'threads: this one and k − 1 workers (default: every core)')
     .option('--models <ids>', `also test newer models against the classic model each nests, by the same likelihood-ratio bootstrap, chi-square(1) p beside (ids separated by commas; a shift position is searched in every replicate; where a simulation measured a test rejecting too often — moving-optimum under 50 horizons, optimum-shift on any length and its chi-square p — the output says so): ${nestingChoices()}`)
     .option('--min-segment <n>', 'with --models optimum-shift: fewest horizons in a segment, in the observed fit and every replicate, as for fit (default 5; at least 3)')
     .option('--json', 'print one JSON document instead of the text')

@@ -27,7 +27,7 @@ export function defineFitCommand(program: Command): void {
     .option('--no-figures', 'with --out, write no figure files (by default each lineage gets a trajectory and a model-support figure, each trait with several sections a sections figure; drawing estimated over two minutes is announced first)')
     .option('--report <file>', 'also write one self-contained HTML report (as "stratotrend report" does; never over an input, nor over a file of that name stratotrend did not write: checked before fitting)')
     .option('--summary', 'print the cross-lineage summary (wins per model, Akaike weights, drift) instead of one table per lineage; adds "compilation" to the JSON and compilation.png with --out')
-    .option('--threads <count>', 'worker threads for many lineages (1 = no workers; default: every core when there are enough lineages to pay off)', parseThreads)
+    .option('--threads <count>', 'threads for many lineages: this one and count − 1 workers (1 = no workers; default: every core when there are enough lineages to pay off)', parseThreads)
     .addHelpText('after', modelHelp())
     .action(async (file: string, options) => {
       const { fitCommand } = await import('../fit-command.js');

@@ -24,7 +24,7 @@ export function defineJointCommand(program: Command): void {
     .option('--no-figures', 'with --out, write no figures (by default each section gets a panels figure and one trait-against-trait trajectory per pair of traits)')
     .option('--quiet', 'print nothing but errors and warnings')
     .option('--no-intervals', 'skip the 95% profile-likelihood intervals (faster; with them, the correlated walks\' measured coverage below 95% is said in a warning)')
-    .option('--threads <count>', 'worker threads, one model per task (1 = no workers; default: every core when intervals are computed, else 1); results do not depend on it', parseThreads)
+    .option('--threads <count>', 'threads, one model per task: this one and count − 1 workers (1 = no workers; default: every core when intervals are computed, else 1); results do not depend on it', parseThreads)
     .addHelpText('after', `
 Joint models (k traits; t from the section's oldest horizon; R the step covariance per time unit):
   independent-random-walks       each trait an unbiased random walk, R diagonal (K = 2k)

@@ -26,7 +26,7 @@ export function definePowerCommand(program: Command): void {
     .option('--models <set>', 'models fitted to every replicate: classic (default), extended, or a comma-separated list of model ids (see "stratotrend fit --help") that includes random-walk and directional-walk', 'classic')
     .option('--target-drift <d>', 'also find how many horizons at the same spacing and sample sizes give 80% power for this drift')
     .option('--no-coverage', 'skip the check of interval coverage on this design')
-    .option('--threads <k>', 'worker threads (default: every core; results do not depend on it)')
+    .option('--threads <k>', 'threads: this one and k − 1 workers (default: every core; results do not depend on it)')
     .option('--figure <file>', 'write the power curve (png, or svg/pdf by extension)')
     .option('--correlations <list>', 'instead: the power to detect a correlation between the steps of the first two traits of a section (--lineage SECTION; default the first with two or more traits) on this design, for these true correlations (0 is added: the false-correlation rate); see "stratotrend joint"')
     .option('--json', 'print one JSON document instead of the table')
