@@ -148,7 +148,7 @@ export async function runTasks<T = Task, R = unknown>(
   };
   try {
     for (let w = 0; w < workerCount && script !== null; w++) {
-      const worker = new Worker(script, { workerData: { module: moduleHref, exportName }, execArgv: workerExecArgv() });
+      const worker = startWorker(script, { module: moduleHref, exportName });
       workers.push(worker);
       inFlight.push(0);
       worker.on('message', (reply: WorkerReply) => {
@@ -236,6 +236,29 @@ async function runInline<T, R>(run: (task: unknown) => unknown, tasks: readonly 
     if ((index + 1) % step === 0 || index + 1 === tasks.length) options.onProgress?.(index + 1, tasks.length);
   }
   return results;
+}
+
+/**
+ * Start one worker with the parent's Node options ({@link workerExecArgv}).
+ * Node refuses V8 and process-wide options in a worker's `execArgv` (e.g.
+ * `node --max-old-space-size=4096 bin/stratotrend ... --threads 2` failed
+ * with an internal error): the options it names are left out and the worker
+ * started again; a heap size asked for with `--max-old-space-size` becomes
+ * the worker's own `resourceLimits.maxOldGenerationSizeMb`.
+ */
+function startWorker(script: URL, workerData: { module: string; exportName: string }): Worker {
+  const execArgv = workerExecArgv();
+  const heap = execArgv.map((arg) => /^--max[-_]old[-_]space[-_]size=(\d+)$/.exec(arg)?.[1]).find((size) => size !== undefined);
+  const resourceLimits = heap === undefined ? undefined : { maxOldGenerationSizeMb: Number(heap) };
+  try {
+    return new Worker(script, { workerData, execArgv, resourceLimits });
+  } catch (error) {
+    if ((error as { code?: string }).code !== 'ERR_WORKER_INVALID_EXEC_ARGV') throw error;
+    // "Initiated Worker with invalid execArgv flags: --a, --b"
+    const message = (error as Error).message;
+    const rejected = new Set(message.slice(message.indexOf(':') + 1).split(',').map((flag) => flag.trim()));
+    return new Worker(script, { workerData, execArgv: execArgv.filter((arg) => !rejected.has(arg)), resourceLimits });
+  }
 }
 
 /**
