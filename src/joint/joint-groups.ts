@@ -115,7 +115,7 @@ export function jointGroups(lineages: readonly Lineage[], file: string, warnings
       warnings.add('input', `${name} has one trait ("${members[0].trait}"): skipped, the joint models need two or more`);
       continue;
     }
-    groups.push(groupOf(section, members, file, specimens));
+    groups.push(groupOf(section, members, file, specimens, warnings));
   }
   if (groups.length === 0) {
     throw new InputError('no section has two or more traits, so there is nothing to fit jointly (add a "trait" column naming each measurement, or use "stratotrend fit" for one trait)', { file });
@@ -123,7 +123,7 @@ export function jointGroups(lineages: readonly Lineage[], file: string, warnings
   return groups;
 }
 
-function groupOf(section: string, members: readonly Lineage[], file: string, specimens: SpecimenTable | null): JointGroup {
+function groupOf(section: string, members: readonly Lineage[], file: string, specimens: SpecimenTable | null, warnings: WarningLog): JointGroup {
   const k = members.length;
   const firstAge = Math.max(...members.map((lineage) => lineage.firstAge ?? 0));
   // One horizon per position as read; t_i from the group's oldest (exactly the trait's own t when it starts there).
@@ -192,6 +192,19 @@ function groupOf(section: string, members: readonly Lineage[], file: string, spe
           sampling[i * k * k + l * k + j] = value;
         }
       }
+      // With three or more traits, correlations estimated from different subsets of specimens (each pair from the
+      // specimens measured for both) need not fit together: the matrix can have a negative eigenvalue, which no
+      // sampling covariance has. Its off-diagonal terms are then scaled down to the largest share that is valid.
+      if (k < 3) return;
+      const shrink = validCovarianceShare(sampling.subarray(i * k * k, (i + 1) * k * k), k);
+      if (shrink < 1) {
+        for (let j = 0; j < k; j++) for (let l = 0; l < k; l++) if (j !== l) sampling[i * k * k + j * k + l] *= shrink;
+        const where = `${section === '' ? 'the file' : `section "${section}"`} at ${members[0].positionKind} ${position}`;
+        warnings.add(
+          'input',
+          `${where}: the within-horizon correlations of ${members.map((lineage) => `"${lineage.trait}"`).join(', ')}, each estimated from the specimens measured for both traits of a pair, do not form a valid covariance matrix (specimens measured for only some of the traits); their covariances were scaled by ${shrink.toPrecision(3)}, the largest share that is valid`,
+        );
+      }
     });
   }
   return {
@@ -208,4 +221,48 @@ function groupOf(section: string, members: readonly Lineage[], file: string, spe
     logTransformed: members[0].logTransformed,
     firstLines: members.map((lineage) => lineage.lines[0]),
   };
+}
+
+/**
+ * The largest share s in [0, 1] of the off-diagonal terms of a symmetric
+ * k × k matrix (row-major, positive diagonal) that leaves it positive
+ * semi-definite: 1 when it already is (to rounding), else found by
+ * bisection (40 halvings) on the Cholesky factorisation of D + s O (D its
+ * diagonal, O the rest; at s = 0 the diagonal alone is valid), with the
+ * diagonal 1e-10 smaller so that the result is safely positive definite.
+ *
+ * @example
+ * validCovarianceShare(Float64Array.of(1, 0.5, 0.5, 1), 2); // 1 (already valid)
+ * // Correlations 0.9, 0.9 and -0.9 cannot hold together; halved they can (common practice: a Cholesky factor exists only for a positive definite matrix).
+ * validCovarianceShare(Float64Array.of(1, 0.9, 0.9, 0.9, 1, -0.9, 0.9, -0.9, 1), 3) < 0.6; // true
+ */
+export function validCovarianceShare(matrix: ArrayLike<number>, k: number): number {
+  const margin = 1e-10;
+  // The first check tolerates rounding (a valid matrix is left alone); the shares tried after it must be valid with the
+  // diagonal a little smaller, so that the result is safely positive definite.
+  let diagonalFactor = 1 + margin;
+  const valid = (share: number): boolean => {
+    const lower = new Float64Array(k * k);
+    for (let j = 0; j < k; j++) {
+      for (let l = 0; l <= j; l++) {
+        let sum = j === l ? matrix[j * k + j] * diagonalFactor : share * matrix[j * k + l];
+        for (let m = 0; m < l; m++) sum -= lower[j * k + m] * lower[l * k + m];
+        if (j === l) {
+          if (!(sum > 0)) return false;
+          lower[j * k + j] = Math.sqrt(sum);
+        } else lower[j * k + l] = sum / lower[l * k + l];
+      }
+    }
+    return true;
+  };
+  if (valid(1)) return 1;
+  diagonalFactor = 1 - margin;
+  let low = 0;
+  let high = 1;
+  for (let step = 0; step < 40; step++) {
+    const middle = 0.5 * (low + high);
+    if (valid(middle)) low = middle;
+    else high = middle;
+  }
+  return low;
 }
