@@ -97,6 +97,13 @@ export async function runBootstrap(
     const stage = progress ? (label: string, total: number) => progress.stage(`${lineageName(lineage)}: ${label}`.slice(0, 40), total) : undefined;
     results.push({ name: lineageName(lineage), horizons: lineage.time.length, report: await bootstrapTests(fit, replicates, seed, runner, stage, { nesting: nesting.map((model) => model.id), minimumSegment }) });
   }
+  for (const { report, horizons } of results) {
+    for (const test of report.nested_models ?? []) {
+      const notes = measuredNotes(test, horizons);
+      if (notes.size_note !== null) warnings.add('test-size', notes.size_note);
+      if (notes.chi_square_measured !== null) warnings.add('test-size', `optimum-shift vs ou, chi-square(1) p ${notes.chi_square_measured}`);
+    }
+  }
   const document = {
     tool: 'stratotrend',
     version: toolVersion(),
@@ -109,14 +116,9 @@ export async function runBootstrap(
       ...(report.nested_models ? { nested_models: report.nested_models.map((test) => ({ ...test, ...measuredNotes(test, horizons) })) } : {}),
     })),
     caution,
+    // Every warning of the run (reading, time axis, and the measured test sizes), as fit --json lists them.
+    warnings: warnings.list(),
   };
-  for (const { report, horizons } of results) {
-    for (const test of report.nested_models ?? []) {
-      const notes = measuredNotes(test, horizons);
-      if (notes.size_note !== null) warnings.add('test-size', notes.size_note);
-      if (notes.chi_square_measured !== null) warnings.add('test-size', `optimum-shift vs ou, chi-square(1) p ${notes.chi_square_measured}`);
-    }
-  }
   return { results, document, cautions: warnings.list().filter((warning) => warning.category === 'test-size') };
 }
 

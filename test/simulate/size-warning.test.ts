@@ -69,6 +69,8 @@ describe('bootstrap --models: measured size said where the p-values are read', (
     expect(run.cautions[0].message).toContain(`${measured.get(15)!.bootstrap} of lineages of 15 horizons and ${measured.get(25)!.bootstrap} of 25`);
     expect(run.cautions[0].message).toContain(`(${measured.get(50)!.bootstrap} of 50)`);
     expect(run.cautions[0].message).toContain('weaker evidence than it looks');
+    // bootstrap --json lists the run's warnings as fit --json does (it had none before).
+    expect(run.document.warnings).toContainEqual(run.cautions[0]);
   });
 
   it('says nothing for accelerating-walk (keeps its size) or without --models; the text shows the caution under the p', async () => {
