@@ -355,6 +355,7 @@ export function fitJointModel(model: JointModel, data: JointData, options: Joint
       step_covariance: model.process === 'stasis' ? null : covarianceIntervals,
       stasis_covariance: model.process === 'stasis' ? covarianceIntervals : null,
       step_correlation: model.process === 'stasis' ? null : found.correlations.map((row, j) => row.map((interval, l) => (j === l || !model.correlated ? null : interval))),
+      stasis_correlation: model.process === 'stasis' ? found.correlations.map((row, j) => row.map((interval, l) => (j === l || !model.correlated ? null : interval))) : null,
     };
   }
   return {

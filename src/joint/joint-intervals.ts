@@ -43,6 +43,8 @@ export interface JointIntervals {
   readonly stasis_covariance: (JointInterval | null)[][] | null;
   /** Off-diagonal: the correlations; diagonal null. */
   readonly step_correlation: (JointInterval | null)[][] | null;
+  /** The stasis models' correlations of the fluctuations about the stasis means, as `step_correlation`. */
+  readonly stasis_correlation: (JointInterval | null)[][] | null;
 }
 
 const cutoff = chiSquare1At95 / 2;

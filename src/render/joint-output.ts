@@ -48,6 +48,7 @@ function intervalsDocument(intervals: JointIntervals | null, coverageNote: strin
     step_correlation: grid(intervals.step_correlation),
     stasis_mean: list(intervals.stasis_mean),
     stasis_covariance: grid(intervals.stasis_covariance),
+    stasis_correlation: grid(intervals.stasis_correlation),
     optimum: list(intervals.optimum),
     alpha: list(intervals.alpha),
     coverage_note: coverageNote,
@@ -229,7 +230,7 @@ export function jointText(fits: readonly JointGroupFit[]): string {
     if (parameters?.step_correlation && winner.id.startsWith('correlated')) lines.push(...correlationWords(group.traits, parameters.step_correlation, '  Steps', winner.intervals?.step_correlation ?? null));
     if (parameters?.stasis_covariance && winner.id.startsWith('correlated')) {
       const correlation = parameters.stasis_covariance.map((row, j) => row.map((value, l) => value / Math.sqrt(parameters.stasis_covariance![j][j] * parameters.stasis_covariance![l][l])));
-      lines.push(...correlationWords(group.traits, correlation, '  Fluctuations'));
+      lines.push(...correlationWords(group.traits, correlation, '  Fluctuations', winner.intervals?.stasis_correlation ?? null));
     }
     for (const flag of winner.flags) lines.push(`  Note: ${flag}.`);
     return lines.join('\n');

@@ -38,6 +38,12 @@ function placedIntervals(fit: JointModelFit): Placed[] {
     const estimate = parameters.step_correlation?.[j][l];
     if (interval && l > j && typeof estimate === 'number') placed.push({ name: `step_correlation[${j + 1}][${l + 1}]`, estimate, interval });
   }));
+  // The stasis models' correlation, from their covariance (the estimate is not a parameter of its own).
+  const stasis = parameters.stasis_covariance;
+  intervals.stasis_correlation?.forEach((row, j) => row.forEach((interval, l) => {
+    if (!interval || l <= j || !stasis) return;
+    placed.push({ name: `stasis_correlation[${j + 1}][${l + 1}]`, estimate: stasis[j][l] / Math.sqrt(stasis[j][j] * stasis[l][l]), interval });
+  }));
   return placed;
 }
 
@@ -97,8 +103,8 @@ describe('every joint interval contains its estimate (property over seeded group
     const model = jointModel(id)!;
     const fit = fitJointModel(model, group(model, horizons, seed), { intervals: true });
     const placed = placedIntervals(fit);
-    // Every parameter has an interval: 2 locations per trait for drift models, 1 otherwise, 2 variances, and the correlation of a correlated walk.
-    const expected = 2 * (model.mean === 'drift' ? 2 : 1) + 2 + (model.correlated && model.process !== 'stasis' ? 1 : 0);
+    // Every parameter has an interval: 2 locations per trait for drift models, 1 otherwise, 2 variances, and the correlation of a correlated model (walk or stasis).
+    const expected = 2 * (model.mean === 'drift' ? 2 : 1) + 2 + (model.correlated ? 1 : 0);
     expect(placed).toHaveLength(expected);
     expect(misplaced(placed)).toEqual([]);
   });
