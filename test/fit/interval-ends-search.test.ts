@@ -3,6 +3,7 @@ import { benchLineage } from '../../bench/workload.js';
 import { fitModel } from '../../src/fit/fit-model.js';
 import type { Lineage } from '../../src/lineage.js';
 import { ornsteinUhlenbeck as ou } from '../../src/models/ou.js';
+import { denseCholesky } from '../support/dense-solve.js';
 import { goldenSection } from '../support/random-lineage.js';
 
 // Issue 14b: the interval-end search (root-find.ts, warm-started location profiles) against a dense reference.
@@ -18,27 +19,12 @@ const halfChiSquare95 = 1.959963984540054 ** 2 / 2;
 function denseOuLogLik(lineage: Lineage, name: 'ancestral_mean' | 'optimum', value: number, alpha: number, stepVariance: number): number {
   const time = lineage.time;
   const size = time.length;
-  const lower = Array.from({ length: size }, () => new Float64Array(size));
-  for (let i = 0; i < size; i++) {
-    for (let j = 0; j <= i; j++) {
-      const shared = Math.min(time[i], time[j]);
-      let sum = (stepVariance / (2 * alpha)) * Math.exp(-alpha * (time[i] + time[j])) * Math.expm1(2 * alpha * shared) + (i === j ? lineage.samplingVariance[i] : 0);
-      for (let k = 0; k < j; k++) sum -= lower[i][k] * lower[j][k];
-      if (i === j) {
-        if (!(sum > 0)) return Number.NEGATIVE_INFINITY;
-        lower[i][i] = Math.sqrt(sum);
-      } else lower[i][j] = sum / lower[j][j];
-    }
-  }
-  const solve = (vector: Float64Array): Float64Array => {
-    const out = new Float64Array(size);
-    for (let i = 0; i < size; i++) {
-      let sum = vector[i];
-      for (let k = 0; k < i; k++) sum -= lower[i][k] * out[k];
-      out[i] = sum / lower[i][i];
-    }
-    return out;
-  };
+  const factor = denseCholesky(size, (i, j) => {
+    const shared = Math.min(time[i], time[j]);
+    return (stepVariance / (2 * alpha)) * Math.exp(-alpha * (time[i] + time[j])) * Math.expm1(2 * alpha * shared) + (i === j ? lineage.samplingVariance[i] : 0);
+  });
+  if (factor === null) return Number.NEGATIVE_INFINITY;
+  const solve = factor.solve;
   const decay = time.map((t) => Math.exp(-alpha * t));
   // Held coefficient's column times its value moved to the data; the other column estimated by GLS.
   const held = name === 'ancestral_mean' ? decay : decay.map((d) => 1 - d);
@@ -53,11 +39,8 @@ function denseOuLogLik(lineage: Lineage, name: 'ancestral_mean' | 'optimum', val
   }
   const coefficient = cross / information;
   let residual = 0;
-  let logDet = 0;
-  for (let i = 0; i < size; i++) {
-    residual += (data[i] - coefficient * column[i]) ** 2;
-    logDet += 2 * Math.log(lower[i][i]);
-  }
+  const logDet = factor.logDet;
+  for (let i = 0; i < size; i++) residual += (data[i] - coefficient * column[i]) ** 2;
   return -0.5 * (size * Math.log(2 * Math.PI) + logDet + residual);
 }
 

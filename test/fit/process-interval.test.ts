@@ -7,6 +7,7 @@ import { chiSquare1At95 } from '../../src/fit/model-choice.js';
 import { maximiseProcess } from '../../src/fit/search.js';
 import type { Lineage } from '../../src/lineage.js';
 import { ornsteinUhlenbeck as ou } from '../../src/models/ou.js';
+import { denseCholesky } from '../support/dense-solve.js';
 import { goldenSection } from '../support/random-lineage.js';
 
 // Issue 14: ou's process-parameter interval ends (alpha, step_variance) found on the analytic gradient of the
@@ -27,26 +28,9 @@ function denseOu(lineage: Lineage, alpha: number, stepVariance: number, restrict
   const size = time.length;
   const covariance = (i: number, j: number): number =>
     alpha === 0 ? stepVariance * Math.min(time[i], time[j]) : (stepVariance / (2 * alpha)) * (Math.exp(-alpha * Math.abs(time[i] - time[j])) - Math.exp(-alpha * (time[i] + time[j])));
-  const lower = Array.from({ length: size }, () => new Float64Array(size));
-  for (let i = 0; i < size; i++) {
-    for (let j = 0; j <= i; j++) {
-      let sum = covariance(i, j) + (i === j ? lineage.samplingVariance[i] : 0);
-      for (let k = 0; k < j; k++) sum -= lower[i][k] * lower[j][k];
-      if (i === j) {
-        if (!(sum > 0)) return Number.NEGATIVE_INFINITY;
-        lower[i][i] = Math.sqrt(sum);
-      } else lower[i][j] = sum / lower[j][j];
-    }
-  }
-  const solve = (vector: ArrayLike<number>): Float64Array => {
-    const out = new Float64Array(size);
-    for (let i = 0; i < size; i++) {
-      let sum = vector[i];
-      for (let k = 0; k < i; k++) sum -= lower[i][k] * out[k];
-      out[i] = sum / lower[i][i];
-    }
-    return out;
-  };
+  const factor = denseCholesky(size, (i, j) => covariance(i, j) + (i === j ? lineage.samplingVariance[i] : 0));
+  if (factor === null) return Number.NEGATIVE_INFINITY;
+  const solve = factor.solve;
   const first = solve(Array.from(time, (t) => Math.exp(-alpha * t)));
   const second = solve(Array.from(time, (t) => (alpha === 0 ? t : -Math.expm1(-alpha * t) / alpha)));
   const data = solve(lineage.mean);
@@ -56,11 +40,8 @@ function denseOu(lineage: Lineage, alpha: number, stepVariance: number, restrict
   const beta1 = (a22 * b1 - a12 * b2) / determinant;
   const beta2 = (a11 * b2 - a12 * b1) / determinant;
   let residual = 0;
-  let logDet = 0;
-  for (let i = 0; i < size; i++) {
-    residual += (data[i] - beta1 * first[i] - beta2 * second[i]) ** 2;
-    logDet += 2 * Math.log(lower[i][i]);
-  }
+  const logDet = factor.logDet;
+  for (let i = 0; i < size; i++) residual += (data[i] - beta1 * first[i] - beta2 * second[i]) ** 2;
   const logLik = -0.5 * (size * Math.log(2 * Math.PI) + logDet + residual);
   return restricted ? logLik - 0.5 * Math.log(determinant) : logLik;
 }
