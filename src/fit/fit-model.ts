@@ -212,7 +212,7 @@ function fitWithEvaluator(model: EvolutionModel, lineage: Lineage, options: FitO
       const axisIndex = axisIndexOf(model, spec.name);
       const interval = axisIndex >= 0
         ? parameterEnds(spec, lineage, processInterval(evaluate, model, lineage, maximum.process, axisIndex, cutoff, gradient))
-        : locationInterval(evaluator, model, lineage, spec.name, estimate, maximum.process, details, cutoff, options.gridPoints);
+        : locationInterval(evaluator, spec.name, estimate, maximum.process, cutoff, options.gridPoints);
       parameters[spec.name] = { estimate, atBound, ...interval };
     }
   };
@@ -283,17 +283,6 @@ function derivedEstimates(model: EvolutionModel, parameters: Readonly<Record<str
     };
   }
   return derived;
-}
-
-/**
- * How much the design coefficient that location parameter `name` fixes changes per unit of the parameter (1 for most; alpha for ou's optimum).
- *
- * @example
- * const lineage = lineageFromArrays({ time: [0, 1, 2], mean: [1, 3, 4], samplingVariance: [1, 1, 1] });
- * coefficientPerUnit(directionalWalk, 'drift', [1], lineage); // 1 (the drift is its own coefficient)
- */
-export function coefficientPerUnit(model: EvolutionModel, name: string, process: ArrayLike<number>, lineage: Lineage): number {
-  return model.fixLocation(name, 1, process, lineage).coefficient - model.fixLocation(name, 0, process, lineage).coefficient;
 }
 
 function positionName(model: EvolutionModel, axisIndex: number, position: AxisPosition): string | null {
@@ -398,12 +387,9 @@ export function processInterval(
  */
 function locationInterval(
   evaluator: LikelihoodEvaluator,
-  model: EvolutionModel,
-  lineage: Lineage,
   name: string,
   estimate: number,
   best: readonly number[],
-  details: { coefficientCovariance: Float64Array; coefficients: Float64Array },
   cutoff: number,
   gridPoints: number | undefined,
 ): IntervalEnds {
