@@ -3,7 +3,7 @@ import { axisIndexOf, varianceScale, type EvolutionModel } from '../models/model
 import { LikelihoodEvaluator } from './evaluator.js';
 import { fitOverConfigurations, shiftRecords } from './fit-configurations.js';
 import { unfittedFit, type FitOptions, type ModelFit, type ParameterEstimate } from './fit-results.js';
-import { replaceIntervals, strayIntervals, type IntervalMethod } from './intervals-method.js';
+import { replaceIntervals, strayIntervals, strayReason, type IntervalMethod } from './intervals-method.js';
 import { locationEndsBySupremum, locationScale, parameterEnds, trendLimitSide } from './intervals.js';
 import { chiSquare1At95 } from './model-choice.js';
 import { profileCrossing } from './root-find.js';
@@ -226,7 +226,7 @@ function fitWithEvaluator(model: EvolutionModel, lineage: Lineage, options: FitO
     let fallback = replaced.fallback;
     const stray = fallback === null ? strayIntervals(parameters) : [];
     // Intervals that leave out their own estimate describe another fit (ou's restricted maximum at the opposite limit, issue 18): the plain profile describes this one.
-    if (stray.length > 0) fallback = `the ${intervalMethod} intervals left out the estimate of ${stray.join(', ')}`;
+    if (stray.length > 0) fallback = strayReason(intervalMethod, stray);
     if (fallback !== null) {
       flags.push(`${intervalFallbackPrefix}: ${fallback}`);
       plainIntervals(true);

@@ -55,6 +55,16 @@ export function strayIntervals(parameters: Readonly<Record<string, ParameterEsti
 }
 
 /**
+ * The fall-back reason when intervals of `method` leave out estimates (`strayIntervals`).
+ *
+ * @example
+ * strayReason('adjusted', ['alpha']); // 'the adjusted intervals left out the estimate of alpha'
+ */
+export function strayReason(method: string, stray: readonly string[]): string {
+  return `the ${method} intervals left out the estimate of ${stray.join(', ')}`;
+}
+
+/**
  * Replace the plain profile intervals of a fit (in `parameters`, in place)
  * by those of another method: `adjusted` (restricted profile, chi-square
  * cut-off), `bootstrap` (plain profile, parametric-bootstrap cut-off) or
@@ -140,7 +150,7 @@ export function replaceIntervals(
   };
   search(names.filter((name) => axisIndexOf(model, name) >= 0));
   const stray = strayIntervals(replaced);
-  if (stray.length > 0) return { method: used, fallback: `the ${used} intervals left out the estimate of ${stray.join(', ')}` };
+  if (stray.length > 0) return { method: used, fallback: strayReason(used, stray) };
   search(names.filter((name) => axisIndexOf(model, name) < 0));
   for (const name of names) parameters[name] = replaced[name];
   return { method: used, fallback: null };

@@ -411,11 +411,7 @@ export class WarmStarts {
     }
     const chosen = bestInside >= 0 ? bestInside : best;
     if (chosen < 0) return [];
-    return (chosen === 0 ? [0] : [chosen, 0]).map((k) => this.awayFromZero(this.processes[k]));
-  }
-
-  private awayFromZero(process: readonly number[]): number[] {
-    return liftedOffZero(this.model, this.lineage, process);
+    return (chosen === 0 ? [0] : [chosen, 0]).map((k) => liftedOffZero(this.model, this.lineage, this.processes[k]));
   }
 }
 
@@ -520,19 +516,32 @@ interface ReachParts {
   readonly whole: boolean;
 }
 
-function reachParts(evaluator: LikelihoodEvaluator, name: string, adjusted: boolean, cutoff: number, direction: 1 | -1): (process: number[]) => ReachParts {
+/**
+ * How location parameter `name` enters the design at these process values:
+ * the coefficient it fixes (`index`) is perUnit × value + offset on the
+ * evaluator's centred trait (`fixLocation` is affine in the value; ou's
+ * optimum enters as optimum·alpha, so perUnit = alpha there).
+ *
+ * @example
+ * // Strict stasis, means 1 and 3 centred on 2: the mean is its own coefficient, less the centre.
+ * const lineage = lineageFromArrays({ time: [0, 1], mean: [1, 3], samplingVariance: [1, 1] });
+ * coefficientLine(new LikelihoodEvaluator(strictStasis, lineage), 'stasis_mean', []); // { index: 0, offset: -2, perUnit: 1 }
+ */
+export function coefficientLine(evaluator: LikelihoodEvaluator, name: string, process: readonly number[]): { index: number; offset: number; perUnit: number } {
   const model = evaluator.model;
-  const lineage = evaluator.lineage;
+  const atZero = model.fixLocation(name, 0, process, evaluator.lineage);
+  const offset = atZero.coefficient - evaluator.centre * model.constantCoefficients(process, evaluator.lineage)[atZero.index];
+  const perUnit = model.fixLocation(name, 1, process, evaluator.lineage).coefficient - atZero.coefficient;
+  return { index: atZero.index, offset, perUnit };
+}
+
+function reachParts(evaluator: LikelihoodEvaluator, name: string, adjusted: boolean, cutoff: number, direction: 1 | -1): (process: number[]) => ReachParts {
   const nowhere: ReachParts = { value: Number.NEGATIVE_INFINITY, inside: false, whole: false };
   return (process: number[]): ReachParts => {
     const sums = evaluator.whiten(process);
     const logLik = profileLogLik(sums);
     if (!Number.isFinite(logLik)) return nowhere;
-    const atZero = model.fixLocation(name, 0, process, lineage);
-    const index = atZero.index;
-    // The centred coefficient is perUnit × value + offset (the evaluator centres the trait).
-    const offset = atZero.coefficient - evaluator.centre * model.constantCoefficients(process, lineage)[index];
-    const perUnit = model.fixLocation(name, 1, process, lineage).coefficient - atZero.coefficient;
+    const { index, offset, perUnit } = coefficientLine(evaluator, name, process);
     const { estimate, variance } = coefficientSpread(sums, index);
     if (!(variance > 0) || !Number.isFinite(variance)) return nowhere;
     const top = adjusted ? logLik - 0.5 * (informationLogDet(sums) + Math.log(variance)) : logLik;
@@ -671,14 +680,10 @@ function newtonCrossing(
   estimate: number,
   maximumAt: (value: number) => ProcessMaximum,
 ): number | null {
-  const model = evaluator.model;
-  const lineage = evaluator.lineage;
   const slopeAt = (value: number, process: readonly number[]): number => {
     const sums = evaluator.whiten(process as number[]);
-    const atZero = model.fixLocation(name, 0, process, lineage);
-    const offset = atZero.coefficient - evaluator.centre * model.constantCoefficients(process, lineage)[atZero.index];
-    const perUnit = model.fixLocation(name, 1, process, lineage).coefficient - atZero.coefficient;
-    const { estimate: centre, variance } = coefficientSpread(sums, atZero.index);
+    const { index, offset, perUnit } = coefficientLine(evaluator, name, process);
+    const { estimate: centre, variance } = coefficientSpread(sums, index);
     return (-perUnit * (perUnit * value + offset - centre)) / variance;
   };
   let inner = inside;
@@ -740,7 +745,7 @@ export function locationScale(evaluator: LikelihoodEvaluator, name: string, proc
   const index = model.fixLocation(name, estimate, process, evaluator.lineage).index;
   const width = Math.sqrt(details.coefficientCovariance.length);
   let scale = Math.sqrt(Math.max(0, details.coefficientCovariance[index * width + index]));
-  const perUnit = model.fixLocation(name, 1, process, evaluator.lineage).coefficient - model.fixLocation(name, 0, process, evaluator.lineage).coefficient;
+  const { perUnit } = coefficientLine(evaluator, name, process);
   if (perUnit > 0) scale /= perUnit;
   if (!(scale > 0) || !Number.isFinite(scale)) scale = Math.max(1e-8, Math.abs(estimate) * 1e-3);
   return scale;

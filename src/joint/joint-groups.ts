@@ -3,7 +3,7 @@ import { numberCell, sectionColumnOf, type SampleSet } from '../data/samples.js'
 import type { Table } from '../data/read-table.js';
 import type { WarningLog } from '../data/warnings.js';
 import type { Lineage, TimeUnit } from '../lineage.js';
-import type { JointData } from './vector-filter.js';
+import { choleskyInPlace, type JointData } from './vector-filter.js';
 
 /**
  * One group of `stratotrend joint`: the traits of one section, in file
@@ -241,19 +241,10 @@ export function validCovarianceShare(matrix: ArrayLike<number>, k: number): numb
   // The first check tolerates rounding (a valid matrix is left alone); the shares tried after it must be valid with the
   // diagonal a little smaller, so that the result is safely positive definite.
   let diagonalFactor = 1 + margin;
+  const trial = new Float64Array(k * k);
   const valid = (share: number): boolean => {
-    const lower = new Float64Array(k * k);
-    for (let j = 0; j < k; j++) {
-      for (let l = 0; l <= j; l++) {
-        let sum = j === l ? matrix[j * k + j] * diagonalFactor : share * matrix[j * k + l];
-        for (let m = 0; m < l; m++) sum -= lower[j * k + m] * lower[l * k + m];
-        if (j === l) {
-          if (!(sum > 0)) return false;
-          lower[j * k + j] = Math.sqrt(sum);
-        } else lower[j * k + l] = sum / lower[l * k + l];
-      }
-    }
-    return true;
+    for (let j = 0; j < k; j++) for (let l = 0; l < k; l++) trial[j * k + l] = j === l ? matrix[j * k + j] * diagonalFactor : share * matrix[j * k + l];
+    return choleskyInPlace(trial, k);
   };
   if (valid(1)) return 1;
   diagonalFactor = 1 - margin;
