@@ -52,6 +52,8 @@ describe('profileCrossing: interval ends of a profile (issue 14b)', () => {
 });
 
 describe('locationEndsBySupremum on a normal-mean profile (closed form)', () => {
+  // The GLS mean of independent normals is their inverse-variance weighted mean with variance 1 / sum(1/e), and its
+  // profile is exactly quadratic, so its 95% profile interval is the normal one (common practice).
   it('strict stasis, unequal sampling variances: the weighted mean ± 1.959964 / sqrt(sum 1/e), plain and adjusted (one coefficient: no adjustment)', () => {
     const samplingVariance = [0.5, 1, 2, 0.25];
     const mean = [1, 3, 2.5, 1.75];
