@@ -84,8 +84,12 @@ function parameterTable(model: JointModel, truth: JointTruth, fit: ReturnType<ty
     if (model.mean === 'drift') rows.push({ name: `drift[${j + 1}]`, truth: truth.locations[j * per + 1], estimate: parameters.drift![j], interval: intervals.drift![j] });
     rows.push({ name: `${covariance}[${j + 1}][${j + 1}]`, truth: truth.covariance[j * 3], estimate: parameters[covariance]![j][j], interval: intervals[covariance]![j][j] });
   }
-  // The stasis models report their correlation only through the covariance; its interval is the step_correlation slot's for walks.
+  // The stasis models give their correlation's estimate through the covariance and its interval as stasis_correlation.
   if (model.process !== 'stasis') rows.push({ name: 'step_correlation', truth: trueCorrelation, estimate: parameters.step_correlation![0][1], interval: intervals.step_correlation![0][1] });
+  else {
+    const stasis = parameters.stasis_covariance!;
+    rows.push({ name: 'stasis_correlation', truth: trueCorrelation, estimate: stasis[0][1] / Math.sqrt(stasis[0][0] * stasis[1][1]), interval: intervals.stasis_correlation![0][1] });
+  }
   return rows;
 }
 
